@@ -1,0 +1,173 @@
+#!/usr/bin/env bash
+# The project's own PostgreSQL: Debian's server binaries, a git-ignored data folder, 127.0.0.1 only, a
+# non-default port. Works as root (the server then runs as the `postgres` system user) and as an ordinary
+# user. Idempotent; recovers after the server was killed.
+#
+# usage: scripts/db.sh start|stop|status|url [dbname]|reset|ensure-db NAME|psql [args]
+set -euo pipefail
+
+ROOT=$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)
+PORT=${SUMPWISE_PG_PORT:-54329}
+DB_USER=sumpwise
+DEV_DB=sumpwise
+LOG_PREFIX="[db]"
+
+say() { echo "$LOG_PREFIX $*" >&2; }
+die() { echo "$LOG_PREFIX error: $*" >&2; exit 1; }
+
+find_bin() {
+  local dir
+  for dir in $(ls -d /usr/lib/postgresql/*/bin 2>/dev/null | sort -t/ -k4 -V -r); do
+    [ -x "$dir/pg_ctl" ] && [ -x "$dir/postgres" ] && { echo "$dir"; return 0; }
+  done
+  return 1
+}
+
+PGBIN=$(find_bin || true)
+if [ -z "$PGBIN" ]; then
+  if [ "$(id -u)" = 0 ] && command -v apt-get >/dev/null; then
+    say "PostgreSQL server not found: installing Debian's postgresql package (apt-get)…"
+    (apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq postgresql >/dev/null) \
+      || die "apt-get could not install postgresql; install it by hand: apt-get install -y postgresql"
+    PGBIN=$(find_bin) || die "postgresql installed but no server binaries under /usr/lib/postgresql/*/bin"
+  else
+    die "PostgreSQL server binaries not found. Install them as root: sudo apt-get install -y postgresql"
+  fi
+fi
+
+AS_ROOT=0
+[ "$(id -u)" = 0 ] && AS_ROOT=1
+RUN=()
+if [ $AS_ROOT = 1 ]; then
+  id postgres >/dev/null 2>&1 || die "running as root but there is no 'postgres' system user (apt-get install -y postgresql creates it)"
+  RUN=(runuser -u postgres --)
+fi
+
+# Where the cluster lives: .data/pg in the clone, unless the server's user cannot reach it (a clone under a
+# mode-700 home folder, say); then a folder under /tmp named after a hash of the clone's path.
+can_reach() {
+  if [ $AS_ROOT = 1 ]; then runuser -u postgres -- test -x "$1" 2>/dev/null; else test -x "$1"; fi
+}
+if [ -n "${SUMPWISE_PG_DIR:-}" ]; then
+  BASE=$SUMPWISE_PG_DIR
+else
+  mkdir -p "$ROOT/.data"
+  if can_reach "$ROOT/.data"; then BASE="$ROOT/.data/pg"
+  else
+    HASH=$(printf '%s' "$ROOT" | sha256sum | cut -c1-12)
+    BASE="${XDG_RUNTIME_DIR:-/tmp}/sumpwise-pg-$HASH"
+  fi
+fi
+DATA="$BASE/data"
+SOCK="$BASE/run"
+LOG="$BASE/server.log"
+
+pg() { "${RUN[@]}" "$PGBIN/$1" "${@:2}"; }
+psql_admin() { "${RUN[@]}" "$PGBIN/psql" -X -q -v ON_ERROR_STOP=1 -h 127.0.0.1 -p "$PORT" -U "$DB_USER" -d postgres "$@"; }
+
+ready() { "$PGBIN/pg_isready" -q -h 127.0.0.1 -p "$PORT" -d postgres -U "$DB_USER" >/dev/null 2>&1; }
+
+init_cluster() {
+  mkdir -p "$BASE" "$SOCK"
+  [ $AS_ROOT = 1 ] && chown -R postgres:postgres "$BASE"
+  chmod 700 "$BASE"
+  if [ ! -s "$DATA/PG_VERSION" ]; then
+    say "creating a new cluster in $DATA"
+    rm -rf "$DATA"
+    pg initdb -D "$DATA" -U "$DB_USER" --auth=trust --encoding=UTF8 --locale=C.UTF-8 >/dev/null \
+      || pg initdb -D "$DATA" -U "$DB_USER" --auth=trust --encoding=UTF8 --locale=C >/dev/null
+    # Loopback only, never a public interface.
+    {
+      echo "listen_addresses = '127.0.0.1'"
+      echo "port = $PORT"
+      echo "unix_socket_directories = '$SOCK'"
+      echo "fsync = on"
+      echo "max_connections = 200"
+    } >> "$DATA/postgresql.conf"
+  fi
+}
+
+pid_alive() {
+  kill -0 "$1" 2>/dev/null || return 1
+  [ "$(awk '{print $3}' "/proc/$1/stat" 2>/dev/null)" != Z ]
+}
+
+port_owner_is_other() {
+  # Something answers on the port but it is not our cluster.
+  if ready; then
+    [ -f "$DATA/postmaster.pid" ] || return 0
+    local pid; pid=$(head -1 "$DATA/postmaster.pid" 2>/dev/null || true)
+    [ -n "$pid" ] && pid_alive "$pid" && return 1
+    return 0
+  fi
+  return 1
+}
+
+start() {
+  init_cluster
+  if ready && ! port_owner_is_other; then say "already running on 127.0.0.1:$PORT"; return 0; fi
+  if port_owner_is_other; then
+    die "port $PORT on 127.0.0.1 is taken by another PostgreSQL; set SUMPWISE_PG_PORT to a free port"
+  fi
+  if (exec 3<>"/dev/tcp/127.0.0.1/$PORT") 2>/dev/null; then
+    die "port $PORT on 127.0.0.1 is in use by another program; set SUMPWISE_PG_PORT to a free port"
+  fi
+  # A server killed with -9 leaves postmaster.pid and the socket lock behind, and its PID can linger for
+  # a moment as an unreaped process; wait for it to go, then the files are stale.
+  local lock pid
+  for lock in "$DATA/postmaster.pid" "$SOCK/.s.PGSQL.$PORT.lock"; do
+    [ -f "$lock" ] || continue
+    pid=$(head -1 "$lock" 2>/dev/null | tr -d ' ' || true)
+    for _ in $(seq 1 100); do
+      [ -n "$pid" ] && pid_alive "$pid" || break
+      ready && { say "already running on 127.0.0.1:$PORT"; return 0; }
+      sleep 0.1
+    done
+    if [ -z "$pid" ] || ! pid_alive "$pid"; then
+      say "removing stale $(basename "$lock") (the server had stopped without cleaning up)"
+      rm -f "$lock" "${lock%.lock}"
+    fi
+  done
+  pg pg_ctl -D "$DATA" -l "$LOG" -w -t 60 -o "-p $PORT" start >/dev/null \
+    || { tail -20 "$LOG" >&2 || true; die "the server did not start (log: $LOG)"; }
+  for _ in $(seq 1 100); do ready && break; sleep 0.1; done
+  ready || die "the server started but does not answer on 127.0.0.1:$PORT (log: $LOG)"
+  say "running on 127.0.0.1:$PORT (data: $DATA)"
+}
+
+stop() {
+  if [ -f "$DATA/postmaster.pid" ]; then
+    pg pg_ctl -D "$DATA" -m fast -w -t 60 stop >/dev/null 2>&1 || true
+  fi
+  say "stopped"
+}
+
+status() {
+  if ready && ! port_owner_is_other; then echo "running on 127.0.0.1:$PORT (data: $DATA)"; return 0; fi
+  echo "not running (data: $DATA)"; return 3
+}
+
+ensure_db() {
+  local name=$1
+  [[ "$name" =~ ^[a-z_][a-z0-9_]*$ ]] || die "bad database name: $name"
+  ready || start
+  if [ "$(psql_admin -tAc "select 1 from pg_database where datname = '$name'")" != 1 ]; then
+    psql_admin -c "create database $name" && say "created database $name"
+  fi
+}
+
+url() { echo "postgres://$DB_USER@127.0.0.1:$PORT/${1:-$DEV_DB}"; }
+
+case "${1:-}" in
+  start) start; ensure_db "$DEV_DB" ;;
+  stop) stop ;;
+  status) status ;;
+  url) url "${2:-}" ;;
+  ensure-db) ensure_db "${2:?database name}" ;;
+  drop-db)
+    [[ "${2:?database name}" =~ ^[a-z_][a-z0-9_]*$ ]] || die "bad database name"
+    psql_admin -c "drop database if exists ${2} with (force)" ;;
+  reset) stop; say "removing $BASE"; rm -rf "$BASE"; start; ensure_db "$DEV_DB" ;;
+  psql) shift; "${RUN[@]}" "$PGBIN/psql" -X -h 127.0.0.1 -p "$PORT" -U "$DB_USER" "$@" ;;
+  *) echo "usage: scripts/db.sh start|stop|status|url [db]|ensure-db NAME|drop-db NAME|reset|psql [args]" >&2; exit 2 ;;
+esac

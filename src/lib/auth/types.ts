@@ -1,0 +1,25 @@
+import type { Role } from '../db/database';
+
+/** What every page knows of the signed-in user. */
+export interface SessionUser {
+  id: string;
+  email: string;
+  displayName: string;
+  emailVerified: boolean;
+  distanceUnit: 'mi' | 'km';
+  lengthUnit: 'in' | 'mm';
+  temperatureUnit: 'F' | 'C';
+}
+
+export interface SessionInfo {
+  id: string;
+  expiresAt: Date;
+  fresh: boolean;
+}
+
+/** A user's place in one crew. */
+export interface CrewMembership {
+  crewId: string;
+  crewName: string;
+  role: Role;
+}

@@ -1,0 +1,44 @@
+import { z } from 'zod';
+
+/** Every setting Sumpwise reads from the environment, with its default for a local machine. */
+export const configSchema = z.object({
+  DATABASE_URL: z
+    .string()
+    .default('postgres://sumpwise@127.0.0.1:54329/sumpwise')
+    .refine((v) => /^postgres(ql)?:\/\//.test(v), 'must be a postgres:// URL'),
+  PUBLIC_URL: z.url({ protocol: /^https?$/ }).default('http://127.0.0.1:4321'),
+  HOST: z.string().min(1).default('127.0.0.1'),
+  PORT: z.coerce.number().int().min(1).max(65535).default(4321),
+  SMTP_URL: z.string().default('smtp://127.0.0.1:2525'),
+  MAIL_FROM: z.string().default('Sumpwise <no-reply@sumpwise.test>'),
+  UPLOAD_DIR: z.string().default('.data/uploads'),
+  APP_SECRET: z.string().min(32).optional(),
+  NODE_ENV: z.enum(['development', 'production', 'test']).default('production'),
+});
+
+export type AppConfig = z.infer<typeof configSchema>;
+
+/** Parses the environment; throws one readable line naming the bad variable. */
+export function readConfig(env: Record<string, string | undefined> = process.env): AppConfig {
+  const picked = Object.fromEntries(
+    Object.keys(configSchema.shape).map((k) => [k, env[k] === '' ? undefined : env[k]]),
+  );
+  const parsed = configSchema.safeParse(picked);
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0]!;
+    throw new Error(`configuration: ${issue.path.join('.')} ${issue.message}`);
+  }
+  return parsed.data;
+}
+
+let cached: AppConfig | undefined;
+/** The process's configuration, read once. */
+export function getConfig(): AppConfig {
+  cached ??= readConfig();
+  return cached;
+}
+
+/** True when cookies must carry the Secure flag (the public URL is https). */
+export function isSecureOrigin(config: AppConfig): boolean {
+  return new URL(config.PUBLIC_URL).protocol === 'https:';
+}

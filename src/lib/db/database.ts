@@ -1,0 +1,294 @@
+import type { ColumnType, Generated, Insertable, Selectable, Updateable } from 'kysely';
+
+/** Timestamps come back as Date and may be written as Date or ISO text. */
+type Timestamp = ColumnType<Date, Date | string | undefined, Date | string>;
+type TimestampNullable = ColumnType<Date | null, Date | string | null | undefined, Date | string | null>;
+/** `date` columns come back as 'YYYY-MM-DD' text (see the type parser in db.ts). */
+type DateText = ColumnType<string, string, string>;
+type Json<T> = ColumnType<T, string | T | undefined, string | T>;
+
+export type Role = 'lead' | 'mechanic' | 'rider';
+export type Cooling = 'air' | 'oil' | 'liquid';
+export type Meter = 'mi' | 'km' | 'h';
+export type SampleState = 'drawn' | 'shipped' | 'results_in' | 'reviewed';
+export type Level = 'steady' | 'watch' | 'act';
+export type IntervalCallKind = 'shorten' | 'hold' | 'stretch';
+
+export interface UsersTable {
+  id: string;
+  email: string;
+  email_verified_at: TimestampNullable;
+  password_hash: string;
+  display_name: string;
+  distance_unit: Generated<'mi' | 'km'>;
+  length_unit: Generated<'in' | 'mm'>;
+  temperature_unit: Generated<'F' | 'C'>;
+  created_at: Generated<Date>;
+}
+
+export interface CrewsTable {
+  id: Generated<string>;
+  name: string;
+  created_at: Generated<Date>;
+}
+
+export interface CrewMembersTable {
+  crew_id: string;
+  user_id: string;
+  role: Role;
+  joined_at: Generated<Date>;
+}
+
+export interface SessionsTable {
+  id: string;
+  user_id: string;
+  expires_at: Timestamp;
+  current_crew_id: string | null;
+}
+
+export interface RecommendedGrade {
+  grade: string;
+  minC: number;
+  maxC: number;
+}
+
+export interface MachinesTable {
+  id: Generated<string>;
+  crew_id: string;
+  owner_user_id: string;
+  name: string;
+  model_year: number | null;
+  engine_layout: 'single' | 'twin' | 'triple' | 'four' | 'other';
+  displacement_cc: number | null;
+  cooling: Cooling;
+  shared_oil: Generated<boolean>;
+  oil_capacity_l: number | null;
+  meter: Meter;
+  recommended_grades: Json<RecommendedGrade[]>;
+  max_interval_distance: number | null;
+  max_interval_days: number | null;
+  notes: Generated<string>;
+  archived_at: TimestampNullable;
+  created_at: Generated<Date>;
+  updated_at: Generated<Date>;
+}
+
+export interface OilChangesTable {
+  id: Generated<string>;
+  crew_id: string;
+  machine_id: string;
+  changed_on: DateText;
+  odometer: number;
+  meter_replaced: Generated<boolean>;
+  oil_product: Generated<string>;
+  sae_grade: string;
+  volume_l: number | null;
+  filter_changed: Generated<boolean>;
+  top_up_l: Generated<number>;
+  other_work: Json<string[]>;
+  notes: Generated<string>;
+  created_by: string;
+  created_at: Generated<Date>;
+}
+
+export interface PhotosTable {
+  id: Generated<string>;
+  crew_id: string;
+  oil_change_id: string | null;
+  sha256: string;
+  content_type: string;
+  byte_size: number;
+  width: number | null;
+  height: number | null;
+  caption: Generated<string>;
+  created_by: string;
+  created_at: Generated<Date>;
+}
+
+export interface SamplesTable {
+  id: Generated<string>;
+  crew_id: string;
+  machine_id: string;
+  oil_change_id: string | null;
+  bottle_code: string;
+  bottle_code_norm: string;
+  issued_code: Generated<boolean>;
+  drawn_on: DateText;
+  odometer: number;
+  distance_on_oil: number | null;
+  top_up_l: Generated<number>;
+  sae_grade: string | null;
+  oil_product: Generated<string>;
+  draw_method: Generated<'midstream' | 'pump' | 'valve'>;
+  state: Generated<SampleState>;
+  tracking_note: Generated<string>;
+  in_baseline: Generated<boolean>;
+  client_key: string | null;
+  created_by: string;
+  created_at: Generated<Date>;
+}
+
+export interface SampleEventsTable {
+  id: Generated<string>;
+  sample_id: string;
+  state: SampleState;
+  note: Generated<string>;
+  actor_user_id: string | null;
+  at: Generated<Date>;
+}
+
+export interface WearPartsTable {
+  id: Generated<string>;
+  crew_id: string;
+  machine_id: string;
+  name: string;
+  piece_count: Generated<number>;
+  new_min_mm: number;
+  new_max_mm: number;
+  service_limit_mm: number;
+  limit_direction: Generated<'min' | 'max'>;
+  notes: Generated<string>;
+  created_at: Generated<Date>;
+}
+
+export interface WearMeasurementsTable {
+  id: Generated<string>;
+  wear_part_id: string;
+  measured_on: DateText;
+  odometer: number;
+  pieces_mm: Json<number[]>;
+  summary_mm: number;
+  note: Generated<string>;
+  created_by: string;
+  created_at: Generated<Date>;
+}
+
+export interface LabFilesTable {
+  id: Generated<string>;
+  crew_id: string;
+  sha256: string;
+  file_name: string;
+  byte_size: number;
+  content: Buffer;
+  uploaded_by: string;
+  uploaded_at: Generated<Date>;
+}
+
+export interface LabProfilesTable {
+  id: Generated<string>;
+  crew_id: string;
+  name: string;
+  header_signature: string;
+  mapping: Json<Record<string, string>>;
+  created_by: string;
+  created_at: Generated<Date>;
+}
+
+export interface LabImportsTable {
+  id: Generated<string>;
+  crew_id: string;
+  lab_file_id: string;
+  confirmed_by: string;
+  confirmed_at: Generated<Date>;
+  samples_written: number;
+  readings_written: number;
+}
+
+export interface ReadingsTable {
+  sample_id: string;
+  measurand: string;
+  value: number;
+  qualifier: '<' | '>' | null;
+  lab_import_id: string | null;
+}
+
+export interface ReadingHistoryTable {
+  id: Generated<string>;
+  sample_id: string;
+  measurand: string;
+  value: number;
+  qualifier: string | null;
+  replaced_by_import: string | null;
+  replaced_at: Generated<Date>;
+}
+
+export interface FindingsTable {
+  id: Generated<string>;
+  sample_id: string;
+  measurand: string | null;
+  level: Level;
+  rule_id: string;
+  numbers: Json<Record<string, unknown>>;
+  sentence: string;
+  created_at: Generated<Date>;
+}
+
+export interface IntervalCallsTable {
+  id: Generated<string>;
+  sample_id: string;
+  machine_id: string;
+  call: IntervalCallKind;
+  next_interval: number | null;
+  next_sample_odometer: number | null;
+  next_sample_on: string | null;
+  reasons: Json<string[]>;
+  source: 'engine' | 'confirmed' | 'override';
+  note: Generated<string>;
+  made_by: string | null;
+  created_at: Generated<Date>;
+}
+
+export interface ReviewNotesTable {
+  id: Generated<string>;
+  sample_id: string;
+  author_user_id: string;
+  body: string;
+  created_at: Generated<Date>;
+}
+
+export interface CrewLimitsTable {
+  crew_id: string;
+  measurand: string;
+  watch_at: number | null;
+  act_at: number | null;
+  updated_by: string | null;
+  updated_at: Generated<Date>;
+}
+
+/** Every table Kysely may touch; later migrations add their tables here too. */
+export interface Database {
+  users: UsersTable;
+  crews: CrewsTable;
+  crew_members: CrewMembersTable;
+  sessions: SessionsTable;
+  machines: MachinesTable;
+  oil_changes: OilChangesTable;
+  photos: PhotosTable;
+  samples: SamplesTable;
+  sample_events: SampleEventsTable;
+  wear_parts: WearPartsTable;
+  wear_measurements: WearMeasurementsTable;
+  lab_files: LabFilesTable;
+  lab_profiles: LabProfilesTable;
+  lab_imports: LabImportsTable;
+  readings: ReadingsTable;
+  reading_history: ReadingHistoryTable;
+  findings: FindingsTable;
+  interval_calls: IntervalCallsTable;
+  review_notes: ReviewNotesTable;
+  crew_limits: CrewLimitsTable;
+}
+
+export type UserRow = Selectable<UsersTable>;
+export type NewUserRow = Insertable<UsersTable>;
+export type CrewRow = Selectable<CrewsTable>;
+export type MachineRow = Selectable<MachinesTable>;
+export type NewMachineRow = Insertable<MachinesTable>;
+export type MachineRowUpdate = Updateable<MachinesTable>;
+export type OilChangeRow = Selectable<OilChangesTable>;
+export type SampleRow = Selectable<SamplesTable>;
+export type ReadingRow = Selectable<ReadingsTable>;
+export type FindingRow = Selectable<FindingsTable>;
+export type IntervalCallRow = Selectable<IntervalCallsTable>;
+export type WearPartRow = Selectable<WearPartsTable>;
+export type WearMeasurementRow = Selectable<WearMeasurementsTable>;

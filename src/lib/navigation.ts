@@ -1,0 +1,19 @@
+/** The page shell's navigation. Only screens that exist are listed, so there are no dead links. */
+export interface NavItem {
+  href: string;
+  label: string;
+  /** Shown only to signed-in users when true; only to signed-out users when 'signed-out'. */
+  audience: 'all' | 'signed-in' | 'signed-out';
+}
+
+export const NAV_ITEMS: NavItem[] = [
+  { href: '/', label: 'Home', audience: 'all' },
+];
+
+/** The items a visitor sees, and which one is current. */
+export function navFor(pathname: string, signedIn: boolean): (NavItem & { current: boolean })[] {
+  return NAV_ITEMS.filter((i) => i.audience === 'all' || (i.audience === 'signed-in') === signedIn).map((i) => ({
+    ...i,
+    current: i.href === '/' ? pathname === '/' : pathname === i.href || pathname.startsWith(`${i.href}/`),
+  }));
+}
