@@ -1,0 +1,732 @@
+/**
+ * The lab CSV reader: text in, recognised columns, rows keyed by bottle code, and every problem worded
+ * for a rider with the line and column it sits in. Pure: no database, no I/O. The importer decides
+ * what to write; this module only reads.
+ */
+import Papa from 'papaparse';
+import { ELEMENT_CODES, isMeasurandCode, type MeasurandCode } from '../analysis/measurands';
+import {
+  evidenceOfDateOrder,
+  formatIsoDate,
+  isRealDate,
+  parseDateCell,
+  parseGlycolCell,
+  parseReadingCell,
+  type DateCell,
+  type DateOrder,
+  type DecimalMark,
+  type Qualifier,
+  type ReadingParse,
+} from './cell-values';
+import { isUnitCell, recogniseHeader, type ColumnKind, type LabUnit, type RecognisedHeader } from './column-recognition';
+import { isFormulaLikeCell } from './csv-cell';
+import { convertSayboltToKinematic } from './saybolt';
+
+export { decodeLabFile, MAX_LAB_FILE_BYTES } from './decode-lab-file';
+export { neutraliseCsvCell } from './csv-cell';
+export type { ColumnKind, LabUnit } from './column-recognition';
+export type { DateOrder, DecimalMark, Qualifier } from './cell-values';
+
+export interface LabReading {
+  value: number;
+  qualifier?: Qualifier;
+}
+
+export type LabReadings = Partial<Record<MeasurandCode, LabReading>>;
+
+export interface LabCsvRow {
+  /** 1-based line of the file where the row starts. */
+  line: number;
+  bottle: { raw: string; normalised: string };
+  /** ISO yyyy-mm-dd. */
+  sampled?: string;
+  reported?: string;
+  readings: LabReadings;
+  /** Cells of unrecognised columns, by header, kept as text so nothing is dropped silently. */
+  other: Record<string, string>;
+}
+
+export type LabCsvConversion = 'SUS210→KV100' | '%→ppm' | 'ppm→%' | '°F→°C';
+
+export interface LabCsvColumn {
+  /** 0-based position in the file. */
+  index: number;
+  header: string;
+  kind: ColumnKind;
+  code?: MeasurandCode;
+  unit?: LabUnit;
+  conversion?: LabCsvConversion;
+  /** Why the column is unknown or ignored, when there is more to say than "not recognised". */
+  note?: string;
+}
+
+export type LabCsvIssueCode =
+  | 'empty-file'
+  | 'no-data-rows'
+  | 'no-bottle-column'
+  | 'duplicate-column'
+  | 'unknown-column'
+  | 'ragged-row'
+  | 'malformed-csv'
+  | 'missing-bottle-code'
+  | 'bottle-code-too-long'
+  | 'duplicate-bottle-code'
+  | 'formula-like-cell'
+  | 'negative-value'
+  | 'not-a-number'
+  | 'unclear-number'
+  | 'impossible-value'
+  | 'out-of-range'
+  | 'ambiguous-date'
+  | 'invalid-date'
+  | 'no-readings'
+  | 'lines-skipped';
+
+export interface LabCsvIssue {
+  /** An error blocks the import; a warning is shown in the preview and does not. */
+  severity: 'error' | 'warning';
+  code: LabCsvIssueCode;
+  /** 1-based line number in the file, or null for the file as a whole. */
+  row: number | null;
+  /** Header text of the column, or null when the issue is not about one column. */
+  column: string | null;
+  message: string;
+}
+
+export type LabCsvMappingTarget = MeasurandCode | 'bottle' | 'sampled' | 'reported' | 'ignore';
+
+export interface ParseLabCsvOptions {
+  /** A saved lab profile: header text (exact, or ignoring case and surrounding spaces) → meaning. */
+  mapping?: Record<string, LabCsvMappingTarget>;
+  /** Settles day/month order for dates like 03/04/2026 when the file cannot. */
+  dateOrder?: DateOrder;
+}
+
+export interface LabCsvResult {
+  rows: LabCsvRow[];
+  columns: LabCsvColumn[];
+  errors: LabCsvIssue[];
+  delimiter: ',' | ';' | '\t';
+  decimalMark: DecimalMark;
+  /** Line of the header row, and of the units row under it if there is one. */
+  headerLine: number | null;
+  unitsLine: number | null;
+}
+
+/** Longest bottle code accepted; lab kit numbers and Sumpwise codes are far shorter. */
+const MAX_BOTTLE_CODE_LENGTH = 64;
+
+/** Sanity ceiling for kinematic viscosity: ISO 3448's heaviest grade, VG 3200, tops out at 3520 mm²/s (from memory); 100,000 leaves room for anything real. */
+const MAX_VISCOSITY = 100_000;
+
+interface Bounds {
+  max: number;
+  why: string;
+}
+
+function boundsFor(code: MeasurandCode): Bounds {
+  if ((ELEMENT_CODES as readonly string[]).includes(code)) {
+    // 1,000,000 mg/kg is the whole kilogram: a physical bound, not a judgement.
+    return { max: 1_000_000, why: '1,000,000 ppm would mean the sample is nothing but that element' };
+  }
+  switch (code) {
+    case 'FUEL':
+    case 'WATER':
+    case 'INSOL':
+      return { max: 100, why: 'a share of the sample cannot exceed 100 %' };
+    case 'TBN':
+    case 'TAN':
+      // Pure KOH neutralises 1000 mg KOH per gram by definition of the unit.
+      return { max: 1000, why: 'not even pure potassium hydroxide reaches 1000 mg KOH/g' };
+    case 'KV40':
+    case 'KV100':
+      return { max: MAX_VISCOSITY, why: 'no engine or gear oil is anywhere near 100,000 mm²/s' };
+    case 'SUS210':
+      return { max: 4.6324 * MAX_VISCOSITY, why: 'no engine or gear oil is anywhere near that many Saybolt seconds' };
+    case 'VI':
+      return { max: 1000, why: 'viscosity index of oils stays in the hundreds (common practice, no published source)' };
+    case 'FLASH':
+      return { max: 1000, why: 'oils flash far below 1000 °C (common practice, no published source)' };
+    case 'GLYCOL':
+      return { max: 1, why: 'glycol is read as positive (1) or negative (0)' };
+    default:
+      return { max: Number.POSITIVE_INFINITY, why: '' };
+  }
+}
+
+function defaultUnit(code: MeasurandCode): LabUnit | undefined {
+  if ((ELEMENT_CODES as readonly string[]).includes(code)) return 'ppm';
+  switch (code) {
+    case 'KV40':
+    case 'KV100':
+      return 'mm²/s';
+    case 'SUS210':
+      return 'SUS';
+    case 'TBN':
+    case 'TAN':
+      return 'mg KOH/g';
+    case 'FUEL':
+    case 'WATER':
+    case 'INSOL':
+      return '%';
+    case 'FLASH':
+      return '°C';
+    default:
+      return undefined;
+  }
+}
+
+/** Readable name of a measurand for messages. */
+const MEASURAND_LABELS: Partial<Record<MeasurandCode, string>> = {
+  Fe: 'iron', Al: 'aluminium', Cr: 'chromium', Cu: 'copper', Pb: 'lead', Sn: 'tin', Ni: 'nickel',
+  Ag: 'silver', Ti: 'titanium', V: 'vanadium', Mn: 'manganese', Si: 'silicon', Na: 'sodium',
+  K: 'potassium', B: 'boron', Mo: 'molybdenum', Zn: 'zinc', P: 'phosphorus', Ca: 'calcium',
+  Mg: 'magnesium', Ba: 'barium', S: 'sulfur', KV40: 'viscosity at 40 °C', KV100: 'viscosity at 100 °C',
+  VI: 'viscosity index', SUS210: 'Saybolt viscosity at 210 °F', FLASH: 'flash point', FUEL: 'fuel dilution',
+  WATER: 'water', GLYCOL: 'glycol', INSOL: 'insolubles', TBN: 'TBN', TAN: 'TAN',
+};
+
+function describeCode(code: MeasurandCode): string {
+  const label = MEASURAND_LABELS[code] ?? code;
+  return label === code ? code : `${label} (${code})`;
+}
+
+/** Quote a cell for a message: shortened, so a pasted essay does not flood the preview. */
+function quoteCell(text: string): string {
+  const short = text.length > 40 ? `${text.slice(0, 37)}...` : text;
+  return `"${short}"`;
+}
+
+function where(line: number, column: string): string {
+  return `Line ${line}, column "${column}"`;
+}
+
+/** Count delimiter characters outside double quotes. */
+function countOutsideQuotes(line: string, delimiter: string): number {
+  let count = 0;
+  let quoted = false;
+  for (let i = 0; i < line.length; i += 1) {
+    const ch = line[i];
+    if (ch === '"') quoted = !quoted;
+    else if (ch === delimiter && !quoted) count += 1;
+  }
+  return count;
+}
+
+/**
+ * Pick the delimiter: the one whose count per line is the same on the most of the first lines
+ * (a decimal comma varies from line to line; the real delimiter does not). Ties go to tab, then
+ * semicolon, then comma, since a tab or semicolon in a comma file is rarer than the reverse.
+ */
+function detectDelimiter(lines: readonly string[]): ',' | ';' | '\t' {
+  let best: { delimiter: ',' | ';' | '\t'; frequency: number; mode: number } = { delimiter: ',', frequency: 0, mode: 0 };
+  for (const delimiter of ['\t', ';', ','] as const) {
+    const tally = new Map<number, number>();
+    for (const line of lines) {
+      const n = countOutsideQuotes(line, delimiter);
+      if (n > 0) tally.set(n, (tally.get(n) ?? 0) + 1);
+    }
+    for (const [mode, frequency] of tally) {
+      if (frequency > best.frequency || (frequency === best.frequency && mode > best.mode)) {
+        best = { delimiter, frequency, mode };
+      }
+    }
+  }
+  return best.delimiter;
+}
+
+/** Decide the decimal mark from the numbers themselves; see parseLabCsv's doc for the rule. */
+function detectDecimalMark(delimiter: ',' | ';' | '\t', data: readonly string[][], start: number): DecimalMark {
+  if (delimiter === ',') return '.';
+  let commaEvidence = false;
+  let pointEvidence = false;
+  const limit = Math.min(data.length, start + 200);
+  for (let r = start; r < limit; r += 1) {
+    const row = data[r] ?? [];
+    for (const raw of row) {
+      const cell = raw.trim();
+      if (cell.length > 24 || !/^[<>≤≥]?\s*[\d.,\s]+$/.test(cell)) continue;
+      // "1.234" or "1,234" could be a grouped thousand either way: not evidence.
+      if (/\d,\d/.test(cell) && !/^[<>≤≥]?\s*\d{1,3}(,\d{3})+$/.test(cell)) commaEvidence = true;
+      if (/\d\.\d/.test(cell) && !/^[<>≤≥]?\s*\d{1,3}(\.\d{3})+$/.test(cell)) pointEvidence = true;
+    }
+  }
+  if (delimiter === ';') return pointEvidence && !commaEvidence ? '.' : ',';
+  return commaEvidence && !pointEvidence ? ',' : '.';
+}
+
+function normaliseBottleCode(raw: string): string {
+  return raw.toUpperCase().replace(/[\s\-\u2010-\u2015\u2212]/g, '');
+}
+
+function normaliseMappingKey(header: string): string {
+  return header.normalize('NFKC').trim().toLowerCase();
+}
+
+/** The recogniser's answer, or the lab profile's when it names this header. */
+function resolveHeader(
+  header: string,
+  unitsCell: string,
+  mapping: ReadonlyMap<string, LabCsvMappingTarget> | null,
+  exactMapping: Readonly<Record<string, LabCsvMappingTarget>> | undefined,
+): RecognisedHeader {
+  const recognised = recogniseHeader(header, unitsCell);
+  const target = exactMapping?.[header] ?? mapping?.get(normaliseMappingKey(header));
+  if (target === undefined) return recognised;
+  if (target === 'ignore') return { kind: 'ignored', note: 'ignored by the lab profile' };
+  if (target === 'bottle' || target === 'sampled' || target === 'reported') return { kind: target };
+  if (!isMeasurandCode(target)) return recognised;
+  // Keep a unit the header states when it fits the mapped code (a profile can map "Visc 210F SUS" to KV100).
+  const unit = recognised.unit;
+  if (target === 'KV100' && unit === 'SUS') return { kind: 'measurand', code: 'SUS210', unit: 'SUS' };
+  return unit === undefined ? { kind: 'measurand', code: target } : { kind: 'measurand', code: target, unit };
+}
+
+type CellReader = (cell: string) => ReadingParse;
+
+interface MeasurandPlan {
+  index: number;
+  header: string;
+  code: MeasurandCode;
+  read: CellReader;
+  convert: ((value: number) => number) | null;
+  /** For a Saybolt column: also write KV100 converted from it. */
+  alsoKv100: boolean;
+}
+
+function planColumns(
+  headerCells: readonly string[],
+  unitsCells: readonly string[] | null,
+  options: ParseLabCsvOptions,
+  mark: DecimalMark,
+  headerLine: number,
+  issues: LabCsvIssue[],
+): { columns: LabCsvColumn[]; measurands: MeasurandPlan[] } {
+  const exact = options.mapping;
+  const folded = exact ? new Map(Object.entries(exact).map(([k, v]) => [normaliseMappingKey(k), v] as const)) : null;
+  const recognised = headerCells.map((header, index) =>
+    resolveHeader(header.trim(), unitsCells?.[index] ?? '', folded, exact),
+  );
+  const hasDirectKv100 = recognised.some((r) => r.kind === 'measurand' && r.code === 'KV100');
+  const columns: LabCsvColumn[] = [];
+  const measurands: MeasurandPlan[] = [];
+  const firstSeen = new Map<string, LabCsvColumn>();
+  const readNumber: CellReader = (cell) => parseReadingCell(cell, mark);
+
+  recognised.forEach((r, index) => {
+    const header = headerCells[index]?.trim() || `column ${index + 1}`;
+    const column: LabCsvColumn = { index, header, kind: r.kind };
+    if (r.note !== undefined) column.note = r.note;
+    columns.push(column);
+    if (r.kind === 'unknown') {
+      issues.push({
+        severity: 'warning',
+        code: 'unknown-column',
+        row: headerLine,
+        column: header,
+        message: `${where(headerLine, header)}: this column was not recognised${r.note ? ` (${r.note})` : ''}. Its cells are kept as text and not read as readings; a lab profile can map it.`,
+      });
+      return;
+    }
+    if (r.kind === 'ignored') return;
+    const key = r.kind === 'measurand' ? (r.code ?? '') : r.kind;
+    const earlier = firstSeen.get(key);
+    if (earlier) {
+      column.kind = 'ignored';
+      column.note = `same meaning as column "${earlier.header}"`;
+      issues.push({
+        severity: 'error',
+        code: 'duplicate-column',
+        row: headerLine,
+        column: header,
+        message: `${where(headerLine, header)}: reads as ${r.kind === 'measurand' && r.code ? describeCode(r.code) : `the ${r.kind === 'bottle' ? 'bottle code' : `${r.kind} date`}`}, like column "${earlier.header}". Remove one of them, or map one to "ignore" in the lab profile.`,
+      });
+      return;
+    }
+    firstSeen.set(key, column);
+    if (r.kind !== 'measurand' || r.code === undefined) return;
+
+    const code = r.code;
+    column.code = code;
+    const unit = r.unit ?? defaultUnit(code);
+    if (unit !== undefined) column.unit = unit;
+    let convert: ((v: number) => number) | null = null;
+    let alsoKv100 = false;
+    if ((ELEMENT_CODES as readonly string[]).includes(code) && unit === '%') {
+      convert = (v) => v * 10_000; // 1 % = 10,000 ppm (mass fraction).
+      column.conversion = '%→ppm';
+    } else if (code === 'WATER' && unit === 'ppm') {
+      convert = (v) => v / 10_000;
+      column.conversion = 'ppm→%';
+    } else if (code === 'FLASH' && unit === '°F') {
+      convert = (v) => ((v - 32) * 5) / 9;
+      column.conversion = '°F→°C';
+    } else if (code === 'SUS210' && !hasDirectKv100) {
+      // The catalogue keeps the lab's SUS as reported and gains KV100 by ASTM D2161.
+      alsoKv100 = true;
+      column.code = 'KV100';
+      column.conversion = 'SUS210→KV100';
+    }
+    measurands.push({
+      index,
+      header,
+      code,
+      read: code === 'GLYCOL' ? parseGlycolCell : readNumber,
+      convert,
+      alsoKv100,
+    });
+  });
+  return { columns, measurands };
+}
+
+function problemMessage(problem: string, detail: string, line: number, column: string, mark: DecimalMark): string {
+  const at = where(line, column);
+  switch (problem) {
+    case 'formula-like-cell':
+      return `${at}: ${quoteCell(detail)} starts like a spreadsheet formula. It was kept as text and not run; the lab should send a number here.`;
+    case 'negative-value':
+      return `${at}: ${quoteCell(detail)} is negative, and a lab reading cannot be below zero. Check the cell against the lab's report.`;
+    case 'unclear-number':
+      return mark === '.'
+        ? `${at}: ${quoteCell(detail)} has a comma inside a number. In this file the decimal mark is a point, so the comma can only group thousands (1,234); write 1.5 or 1,234.`
+        : `${at}: ${quoteCell(detail)} has a point inside a number. In this file the decimal mark is a comma, so the point can only group thousands (1.234,5); write 1,5 or 1.234.`;
+    default:
+      return `${at}: ${quoteCell(detail)} is not a number. Leave the cell blank if there is no result, or write a number such as 12, <1 or ND.`;
+  }
+}
+
+interface PendingDate {
+  row: LabCsvRow;
+  field: 'sampled' | 'reported';
+  cell: Extract<DateCell, { kind: 'numeric' }>;
+  raw: string;
+}
+
+/**
+ * Read a lab CSV: delimiter (comma, semicolon, tab), BOM, CRLF, quoted fields, units in headers or in a
+ * units row under the header, decimal commas in semicolon files, detection-limit qualifiers and dates.
+ *
+ * Rules worth knowing:
+ * - Decimal mark: comma files use a point ("1,234" only as a quoted, grouped thousand). Semicolon files
+ *   use a comma unless no number has a comma between digits and some number has a point that cannot be
+ *   a grouped thousand. Tab files use a point unless the reverse holds.
+ * - Dates: ISO and month-name dates are exact. For d/m/y versus m/d/y the column decides: a cell whose
+ *   first number is over 12 is day-first, one whose second number is over 12 is month-first, a dotted
+ *   date (03.04.2026) is day-first. When the column's other cells all point one way, its ambiguous cells
+ *   (both numbers 12 or less and different) follow; otherwise each is an "ambiguous-date" error, never a
+ *   guess. `options.dateOrder` (a lab profile) settles it instead.
+ * - Cells below detection ("<1", "ND", "n.d.") keep qualifier '<'; ND without a limit is 0.
+ * - Rows with a wrong number of cells, or no bottle code, are reported and left out of `rows`.
+ */
+export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): LabCsvResult {
+  const issues: LabCsvIssue[] = [];
+  const result = (
+    rows: LabCsvRow[],
+    columns: LabCsvColumn[],
+    delimiter: LabCsvResult['delimiter'],
+    decimalMark: DecimalMark,
+    headerLine: number | null,
+    unitsLine: number | null,
+  ): LabCsvResult => ({ rows, columns, errors: issues, delimiter, decimalMark, headerLine, unitsLine });
+
+  // One line ending everywhere: papaparse picks a single newline style per file, and mixed files exist.
+  let body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
+  if (body.includes('\r')) body = body.replace(/\r\n?/g, '\n');
+  if (body.trim() === '') {
+    issues.push({ severity: 'error', code: 'empty-file', row: null, column: null, message: 'The file is empty: it holds no header and no readings.' });
+    return result([], [], ',', '.', null, null);
+  }
+
+  const firstLines: string[] = [];
+  for (let from = 0; firstLines.length < 20 && from < body.length; ) {
+    const end = body.indexOf('\n', from);
+    const line = body.slice(from, end === -1 ? body.length : end);
+    if (line.trim() !== '') firstLines.push(line);
+    if (end === -1) break;
+    from = end + 1;
+  }
+  const delimiter = detectDelimiter(firstLines);
+  const parsed = Papa.parse<string[]>(body, { delimiter, newline: '\n', skipEmptyLines: false });
+  const data = parsed.data;
+
+  // 1-based line where each parsed row starts; a quoted field may span lines.
+  const lineOf = new Array<number>(data.length);
+  const mayHaveQuotedNewlines = body.includes('"');
+  let nextLine = 1;
+  for (let r = 0; r < data.length; r += 1) {
+    lineOf[r] = nextLine;
+    nextLine += 1;
+    if (mayHaveQuotedNewlines) {
+      for (const cell of data[r] ?? []) {
+        for (let i = cell.indexOf('\n'); i !== -1; i = cell.indexOf('\n', i + 1)) nextLine += 1;
+      }
+    }
+  }
+  const isBlank = (row: readonly string[] | undefined): boolean => !row || row.every((c) => c.trim() === '');
+
+  const brokenRows = new Set<number>();
+  for (const e of parsed.errors) {
+    if (e.row === undefined || e.row === null) continue;
+    brokenRows.add(e.row);
+    const line = lineOf[e.row] ?? e.row + 1;
+    issues.push({
+      severity: 'error',
+      code: 'malformed-csv',
+      row: line,
+      column: null,
+      message:
+        e.code === 'MissingQuotes'
+          ? `Line ${line}: a quoted cell is never closed (a " is missing), so the rest of the file cannot be read reliably.`
+          : `Line ${line}: the CSV is malformed here (${e.message}).`,
+    });
+  }
+
+  // The header is the first of the opening rows that reads as one: a lab may put a title line above it.
+  let headerRow = -1;
+  let fallbackRow = -1;
+  for (let r = 0, seen = 0; r < data.length && seen < 10; r += 1) {
+    const row = data[r];
+    if (isBlank(row) || !row) continue;
+    seen += 1;
+    if (fallbackRow === -1) fallbackRow = r;
+    const meaningful = row.filter((cell) => recogniseHeader(cell.trim()).kind !== 'unknown').length;
+    if (meaningful >= 2) {
+      headerRow = r;
+      break;
+    }
+  }
+  if (headerRow === -1) headerRow = fallbackRow;
+  const headerCells = data[headerRow] ?? [];
+  const headerLine = lineOf[headerRow] ?? 1;
+  if (headerRow !== fallbackRow) {
+    const firstSkipped = lineOf[fallbackRow] ?? 1;
+    issues.push({
+      severity: 'warning',
+      code: 'lines-skipped',
+      row: firstSkipped,
+      column: null,
+      message: `${firstSkipped === headerLine - 1 ? `Line ${firstSkipped} comes` : `Lines ${firstSkipped} to ${headerLine - 1} come`} before the header row (line ${headerLine}) and ${firstSkipped === headerLine - 1 ? 'was' : 'were'} skipped as a title.`,
+    });
+  }
+
+  // A units row sits right under the header: every filled cell is a unit ("ppm", "cSt", "SUS", "%").
+  let firstDataRow = headerRow + 1;
+  let unitsCells: string[] | null = null;
+  let unitsLine: number | null = null;
+  const candidate = data[firstDataRow];
+  if (candidate && !isBlank(candidate)) {
+    const filled = candidate.map((c) => c.trim()).filter((c) => c !== '' && c !== '-' && c !== '—');
+    if (filled.length >= 1 && filled.every(isUnitCell)) {
+      unitsCells = candidate;
+      unitsLine = lineOf[firstDataRow] ?? null;
+      firstDataRow += 1;
+    }
+  }
+
+  const decimalMark = detectDecimalMark(delimiter, data, firstDataRow);
+  const { columns, measurands } = planColumns(headerCells, unitsCells, options, decimalMark, headerLine, issues);
+  const bottleColumn = columns.find((c) => c.kind === 'bottle');
+  const sampledColumn = columns.find((c) => c.kind === 'sampled');
+  const reportedColumn = columns.find((c) => c.kind === 'reported');
+  const otherColumns = columns.filter((c) => c.kind === 'unknown');
+
+  let dataRowCount = 0;
+  for (let r = firstDataRow; r < data.length; r += 1) if (!isBlank(data[r])) dataRowCount += 1;
+  if (dataRowCount === 0) {
+    issues.push({
+      severity: 'error',
+      code: 'no-data-rows',
+      row: headerLine,
+      column: null,
+      message: `Line ${headerLine} is a header row, but no rows of readings follow it. Export the report again with its results.`,
+    });
+    return result([], columns, delimiter, decimalMark, headerLine, unitsLine);
+  }
+  if (!bottleColumn) {
+    issues.push({
+      severity: 'error',
+      code: 'no-bottle-column',
+      row: headerLine,
+      column: null,
+      message: `Line ${headerLine} (the header) has no bottle code column, so no row can be matched to a sample. Columns found: ${columns.map((c) => `"${c.header}"`).join(', ')}. Name the column "Bottle" or map it in the lab profile.`,
+    });
+    return result([], columns, delimiter, decimalMark, headerLine, unitsLine);
+  }
+
+  const rows: LabCsvRow[] = [];
+  const bottleLines = new Map<string, number>();
+  const pendingDates = new Map<number, PendingDate[]>();
+  const width = headerCells.length;
+
+  for (let r = firstDataRow; r < data.length; r += 1) {
+    let cells = data[r];
+    if (!cells || isBlank(cells)) continue;
+    const line = lineOf[r] ?? r + 1;
+    if (brokenRows.has(r)) continue;
+    if (cells.length > width && cells.slice(width).every((c) => c.trim() === '')) cells = cells.slice(0, width);
+    if (cells.length !== width) {
+      issues.push({
+        severity: 'error',
+        code: 'ragged-row',
+        row: line,
+        column: cells.length > width ? (columns[width - 1]?.header ?? null) : (columns[cells.length]?.header ?? null),
+        message: `Line ${line} has ${cells.length} cells but the header has ${width}, so its values cannot be matched to columns (from column "${(cells.length > width ? columns[width - 1] : columns[cells.length])?.header ?? '?'}" on). In a comma file, a decimal comma such as 12,5 splits a cell in two.`,
+      });
+      continue;
+    }
+
+    const bottleRaw = (cells[bottleColumn.index] ?? '').trim();
+    if (bottleRaw === '') {
+      issues.push({ severity: 'error', code: 'missing-bottle-code', row: line, column: bottleColumn.header, message: `${where(line, bottleColumn.header)}: the bottle code is blank, so this row cannot be matched to a sample.` });
+      continue;
+    }
+    if (isFormulaLikeCell(bottleRaw)) {
+      issues.push({ severity: 'error', code: 'formula-like-cell', row: line, column: bottleColumn.header, message: problemMessage('formula-like-cell', bottleRaw, line, bottleColumn.header, decimalMark).replace('the lab should send a number here', 'a bottle code never starts like this') });
+      continue;
+    }
+    if (bottleRaw.length > MAX_BOTTLE_CODE_LENGTH) {
+      issues.push({ severity: 'error', code: 'bottle-code-too-long', row: line, column: bottleColumn.header, message: `${where(line, bottleColumn.header)}: the bottle code is ${bottleRaw.length} characters long; codes up to ${MAX_BOTTLE_CODE_LENGTH} are accepted.` });
+      continue;
+    }
+    const normalised = normaliseBottleCode(bottleRaw);
+    const row: LabCsvRow = { line, bottle: { raw: bottleRaw, normalised }, readings: {}, other: {} };
+    const earlierLine = bottleLines.get(normalised);
+    if (earlierLine !== undefined) {
+      issues.push({
+        severity: 'error',
+        code: 'duplicate-bottle-code',
+        row: line,
+        column: bottleColumn.header,
+        message: `${where(line, bottleColumn.header)}: bottle code ${quoteCell(bottleRaw)} was already used on line ${earlierLine}. One bottle gets one result; remove the repeated row or correct its code.`,
+      });
+    } else {
+      bottleLines.set(normalised, line);
+    }
+
+    for (const dateColumn of [sampledColumn, reportedColumn]) {
+      if (!dateColumn) continue;
+      const field = dateColumn.kind === 'sampled' ? 'sampled' : 'reported';
+      const raw = cells[dateColumn.index] ?? '';
+      const parsedDate = parseDateCell(raw);
+      if (parsedDate.kind === 'exact') row[field] = formatIsoDate(parsedDate.year, parsedDate.month, parsedDate.day);
+      else if (parsedDate.kind === 'numeric') {
+        const list = pendingDates.get(dateColumn.index) ?? [];
+        list.push({ row, field, cell: parsedDate, raw: raw.trim() });
+        pendingDates.set(dateColumn.index, list);
+      } else if (parsedDate.kind === 'problem') {
+        issues.push({
+          severity: 'error',
+          code: parsedDate.problem,
+          row: line,
+          column: dateColumn.header,
+          message:
+            parsedDate.problem === 'formula-like-cell'
+              ? problemMessage('formula-like-cell', parsedDate.detail, line, dateColumn.header, decimalMark).replace('the lab should send a number here', 'a date is expected here')
+              : `${where(line, dateColumn.header)}: ${quoteCell(parsedDate.detail)} is not a date that exists. Write it as yyyy-mm-dd, for example 2026-04-03.`,
+        });
+      }
+    }
+
+    for (const plan of measurands) {
+      const cell = cells[plan.index] ?? '';
+      const parsedCell = plan.read(cell);
+      if (parsedCell.status === 'missing') continue;
+      if (parsedCell.status === 'problem') {
+        issues.push({ severity: 'error', code: parsedCell.problem, row: line, column: plan.header, message: problemMessage(parsedCell.problem, parsedCell.detail, line, plan.header, decimalMark) });
+        continue;
+      }
+      // Bounds apply in the catalogue's unit, after conversion (500 ppm of water is 0.05 %).
+      const value = plan.convert ? plan.convert(parsedCell.value) : parsedCell.value;
+      const bounds = boundsFor(plan.code);
+      if (value > bounds.max) {
+        issues.push({
+          severity: 'error',
+          code: 'impossible-value',
+          row: line,
+          column: plan.header,
+          message: `${where(line, plan.header)}: ${quoteCell(cell.trim())} is impossible for ${describeCode(plan.code)}: ${bounds.why}. Check the cell against the lab's report.`,
+        });
+        continue;
+      }
+      const reading: LabReading = parsedCell.qualifier === undefined ? { value } : { value, qualifier: parsedCell.qualifier };
+      row.readings[plan.code] = reading;
+      if (plan.alsoKv100) {
+        if (parsedCell.belowDetection || parsedCell.value === 0) continue;
+        const kv100 = convertSayboltToKinematic(parsedCell.value, 210);
+        if (kv100 === null) {
+          issues.push({
+            severity: 'error',
+            code: 'out-of-range',
+            row: line,
+            column: plan.header,
+            message: `${where(line, plan.header)}: ${quoteCell(cell.trim())} Saybolt seconds is below the range ASTM D2161 converts (32 SUS and up), so no viscosity at 100 °C can be given for it.`,
+          });
+          continue;
+        }
+        row.readings.KV100 = parsedCell.qualifier === undefined ? { value: kv100 } : { value: kv100, qualifier: parsedCell.qualifier };
+      }
+    }
+
+    for (const column of otherColumns) {
+      const raw = (cells[column.index] ?? '').trim();
+      if (raw === '') continue;
+      row.other[column.header] = raw;
+      if (isFormulaLikeCell(raw)) {
+        issues.push({ severity: 'warning', code: 'formula-like-cell', row: line, column: column.header, message: problemMessage('formula-like-cell', raw, line, column.header, decimalMark).replace('; the lab should send a number here', '') });
+      }
+    }
+    if (measurands.length > 0 && Object.keys(row.readings).length === 0) {
+      issues.push({ severity: 'warning', code: 'no-readings', row: line, column: null, message: `Line ${line} (bottle ${quoteCell(bottleRaw)}) has no readings at all: every measurand cell is blank.` });
+    }
+    rows.push(row);
+  }
+
+  settleDates(pendingDates, columns, options.dateOrder, issues);
+  return result(rows, columns, delimiter, decimalMark, headerLine, unitsLine);
+}
+
+/** Settle d/m/y versus m/d/y per column, by the rule in parseLabCsv's doc. */
+function settleDates(
+  pending: ReadonlyMap<number, PendingDate[]>,
+  columns: readonly LabCsvColumn[],
+  profileOrder: DateOrder | undefined,
+  issues: LabCsvIssue[],
+): void {
+  for (const [index, list] of pending) {
+    const header = columns[index]?.header ?? `column ${index + 1}`;
+    const orders = new Set<DateOrder>();
+    for (const { cell } of list) {
+      const evidence = evidenceOfDateOrder(cell);
+      if (evidence) orders.add(evidence);
+    }
+    const columnOrder: DateOrder | null = profileOrder ?? (orders.size === 1 ? [...orders][0] ?? null : null);
+    for (const { row, field, cell, raw } of list) {
+      const own = evidenceOfDateOrder(cell);
+      const order = own ?? (cell.first === cell.second ? 'dmy' : columnOrder);
+      if (order === null) {
+        const { first, second, year } = cell;
+        issues.push({
+          severity: 'error',
+          code: 'ambiguous-date',
+          row: row.line,
+          column: header,
+          message: `${where(row.line, header)}: ${quoteCell(raw)} could be ${describeDay(year, second, first)} or ${describeDay(year, first, second)}, and ${orders.size > 1 ? 'this column mixes both orders' : 'no other date in this column settles it'}. Write it as yyyy-mm-dd, or set the date order in the lab profile.`,
+        });
+        continue;
+      }
+      const day = order === 'dmy' ? cell.first : cell.second;
+      const month = order === 'dmy' ? cell.second : cell.first;
+      if (!isRealDate(cell.year, month, day)) {
+        issues.push({ severity: 'error', code: 'invalid-date', row: row.line, column: header, message: `${where(row.line, header)}: ${quoteCell(raw)} is not a date that exists when read ${order === 'dmy' ? 'day-month-year' : 'month-day-year'} like the rest of this column. Write it as yyyy-mm-dd.` });
+        continue;
+      }
+      row[field] = formatIsoDate(cell.year, month, day);
+    }
+  }
+}
+
+const MONTH_NAMES = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
+
+function describeDay(year: number, month: number, day: number): string {
+  return `${day} ${MONTH_NAMES[month - 1] ?? '?'} ${year}`;
+}
