@@ -1,0 +1,92 @@
+/** Plain types shared by the analysis engine. No database or framework types here. */
+import type { MeasurandCode } from './measurands';
+
+export type Level = 'steady' | 'watch' | 'act';
+export type Cooling = 'air' | 'oil' | 'liquid';
+/** Distance unit of the machine: miles, kilometres, or engine hours from an hour meter. */
+export type DistanceUnit = 'mi' | 'km' | 'h';
+
+export interface Reading {
+  value: number;
+  /** '<' below detection (value is the detection limit), '>' above the lab's range. */
+  qualifier?: '<' | '>' | undefined;
+}
+
+export interface SamplePoint {
+  id: string;
+  /** ISO date (YYYY-MM-DD or full ISO timestamp) the oil was drawn. */
+  takenAt: string;
+  /** Machine odometer (or hour meter) when drawn. */
+  odometer: number;
+  /** Distance (or hours) the sampled oil had run: odometer now − odometer at the oil change. */
+  distanceOnOil: number;
+  /** Fresh oil added since the oil change, same volume unit as oilVolume. */
+  topUpVolume?: number | undefined;
+  /** Oil fill volume of the engine. */
+  oilVolume?: number | undefined;
+  /** SAE grade poured, e.g. '10W-40'. */
+  grade?: string | undefined;
+  /** Oil product as entered on the oil change (free text). */
+  oilProduct?: string | undefined;
+  /** KV100 of the same oil new (mm²/s), from the data sheet or a new-oil sample, if known. */
+  newOilKv100?: number | undefined;
+  readings: Partial<Record<MeasurandCode, Reading>>;
+}
+
+export interface MachineProfile {
+  cooling: Cooling;
+  distanceUnit: DistanceUnit;
+  /** Manufacturer's longest allowed oil change interval, in distanceUnit. */
+  maxIntervalDistance?: number | undefined;
+  /** Manufacturer's longest allowed oil change interval in days (the calendar limit). */
+  maxIntervalDays?: number | undefined;
+}
+
+/** Fixed alarm limits a crew lead can change. Elements in ppm; the rest as named. */
+export interface FixedLimits {
+  Fe: number;
+  Cr: number;
+  Cu: number;
+  Sn: number;
+  Al: number;
+  Pb: number;
+  B: number;
+  Si: number;
+  /** KV100 may differ from the same oil new by at most this many percent either way. */
+  kv100ChangePercent: number;
+  /** Fuel dilution, % (act at or above). */
+  fuelPercent: number;
+  /** Water, % (act at or above). */
+  waterPercent: number;
+}
+
+export type FixedLimitElement = 'Fe' | 'Cr' | 'Cu' | 'Sn' | 'Al' | 'Pb' | 'B' | 'Si';
+
+export type RuleId =
+  | 'baseline-jump'
+  | 'climbing-trend'
+  | 'fixed-limit'
+  | 'viscosity-grade'
+  | 'fuel-dilution'
+  | 'coolant-markers'
+  | 'dirt'
+  | 'additive-mismatch';
+
+export interface Finding {
+  ruleId: RuleId;
+  level: Exclude<Level, 'steady'>;
+  /** The measurands the finding is about; the first is the main one. */
+  measurands: MeasurandCode[];
+  /** The numbers behind the call, named, so the interface can show how it was made. */
+  numbers: Record<string, number>;
+  /** One plain sentence a rider understands, worded as advice. */
+  sentence: string;
+}
+
+export interface AnalyseInput {
+  machine: MachineProfile;
+  /** Previous accepted samples of this machine, oldest first. */
+  history: readonly SamplePoint[];
+  sample: SamplePoint;
+  limits?: Partial<FixedLimits> | undefined;
+}
