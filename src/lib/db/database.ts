@@ -149,6 +149,10 @@ export interface WearPartsTable {
   limit_direction: Generated<'min' | 'max'>;
   notes: Generated<string>;
   created_at: Generated<Date>;
+  /** Odometer (stored unit) when the part was fitted new; migration 2026_12_02_0400. */
+  fitted_odometer: Generated<number>;
+  /** The unit the service manual gives the part's figures in. */
+  manual_unit: Generated<'in' | 'mm'>;
 }
 
 export interface WearMeasurementsTable {
