@@ -1,0 +1,33 @@
+// Builds the Astro server when its output is missing or older than any of its inputs.
+import { existsSync, readdirSync, statSync } from 'node:fs';
+import path from 'node:path';
+import { ROOT, run } from './processes';
+
+const INPUTS = ['src', 'public', 'astro.config.mjs', 'tailwind.config.cjs', 'package-lock.json', 'tsconfig.json'];
+export const SERVER_ENTRY = path.join(ROOT, 'dist/server/entry.mjs');
+
+function newestMtime(p: string): number {
+  const s = statSync(p);
+  if (!s.isDirectory()) return s.mtimeMs;
+  let newest = s.mtimeMs;
+  for (const name of readdirSync(p)) newest = Math.max(newest, newestMtime(path.join(p, name)));
+  return newest;
+}
+
+/** True when dist/ is missing or older than a source file. */
+export function buildIsStale(): boolean {
+  if (!existsSync(SERVER_ENTRY)) return true;
+  const built = statSync(SERVER_ENTRY).mtimeMs;
+  return INPUTS.some((i) => existsSync(path.join(ROOT, i)) && newestMtime(path.join(ROOT, i)) > built);
+}
+
+/** Runs `astro build` when needed (or always with force); throws when it fails. */
+export function buildIfNeeded(force = false): boolean {
+  if (!force && !buildIsStale()) return false;
+  console.log('[build] building the server…');
+  const code = run(path.join(ROOT, 'node_modules/.bin/astro'), ['build', '--silent'], {
+    env: { ...process.env, ASTRO_TELEMETRY_DISABLED: '1' },
+  });
+  if (code !== 0) throw new Error('astro build failed (see above)');
+  return true;
+}

@@ -1,0 +1,108 @@
+// `npm start`: the project's PostgreSQL, migrations, demo data on first run, a build when needed, the local
+// mail relay and job worker, then the built server on 127.0.0.1:4321. One clear line when something is wrong.
+import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
+import type { ChildProcess } from 'node:child_process';
+import { readConfig } from '../src/lib/config';
+import { createDb } from '../src/lib/db/db';
+import { isDatabaseEmpty, seedDemo } from '../sample-data/seed';
+import { assertReachable, ensureEmbeddedDatabase, migrateToLatest } from './lib/database';
+import { buildIfNeeded, SERVER_ENTRY } from './lib/build';
+import { ROOT, httpOk, isPortOpen, startService, stopService, waitFor } from './lib/processes';
+
+const PID_FILE = path.join(ROOT, '.data/app.pid');
+const started = performance.now();
+const children: ChildProcess[] = [];
+let ownsPidFile = false;
+
+function fail(message: string): never {
+  console.error(`[start] ${message}`);
+  process.exit(1);
+}
+
+function runningInstance(): { pid: number; url: string } | null {
+  if (!existsSync(PID_FILE)) return null;
+  try {
+    const { pid, url } = JSON.parse(readFileSync(PID_FILE, 'utf8')) as { pid: number; url: string };
+    process.kill(pid, 0);
+    return { pid, url };
+  } catch {
+    return null;
+  }
+}
+
+async function main(): Promise<void> {
+  const embedded = !process.env.DATABASE_URL;
+  let config;
+  try {
+    config = readConfig({ NODE_ENV: 'production', DEV_MAILBOX: '1', ...process.env });
+  } catch (error) {
+    fail(error instanceof Error ? error.message : String(error));
+  }
+  const url = `http://${config.HOST}:${config.PORT}`;
+
+  const other = runningInstance();
+  if (other) fail(`Sumpwise is already running at ${other.url} (pid ${other.pid}); stop it first (Ctrl-C in its terminal, or kill ${other.pid}).`);
+  if (await isPortOpen(config.HOST, config.PORT)) fail(`port ${config.PORT} on ${config.HOST} is already in use by another program: stop it or choose another port, e.g. PORT=4400 npm start`);
+
+  mkdirSync(path.join(ROOT, '.data'), { recursive: true });
+  writeFileSync(PID_FILE, JSON.stringify({ pid: process.pid, url }));
+  ownsPidFile = true;
+
+  const databaseUrl = embedded ? ensureEmbeddedDatabase('sumpwise') : config.DATABASE_URL;
+  await assertReachable(databaseUrl);
+  await migrateToLatest(databaseUrl, false);
+  const db = createDb(databaseUrl, { max: 2 });
+  try {
+    if (await isDatabaseEmpty(db)) console.log(`[seed] demo data loaded: ${await seedDemo(db)}`);
+  } finally {
+    await db.destroy();
+  }
+  buildIfNeeded();
+
+  const env: NodeJS.ProcessEnv = {
+    ...process.env,
+    DATABASE_URL: databaseUrl,
+    HOST: config.HOST,
+    PORT: String(config.PORT),
+    PUBLIC_URL: process.env.PUBLIC_URL ?? url,
+    DEV_MAILBOX: process.env.DEV_MAILBOX ?? '1',
+    ASTRO_TELEMETRY_DISABLED: '1',
+  };
+  const node = process.execPath;
+  const smtp = new URL(config.SMTP_URL);
+  const localRelay = ['127.0.0.1', 'localhost'].includes(smtp.hostname) && !process.env.SMTP_URL;
+  if (localRelay && existsSync(path.join(ROOT, 'scripts/mail-relay.ts'))) {
+    if (await isPortOpen(smtp.hostname, Number(smtp.port || 25))) fail(`port ${smtp.port} for the local mail relay is in use: stop that program or set SMTP_URL`);
+    children.push(startService('mail', node, ['--import', 'tsx', 'scripts/mail-relay.ts'], env));
+  }
+  if (existsSync(path.join(ROOT, 'scripts/worker.ts'))) children.push(startService('worker', node, ['--import', 'tsx', 'scripts/worker.ts'], env));
+  const server = startService('app', node, [SERVER_ENTRY], env, true);
+  children.push(server);
+  server.once('exit', (code) => { if (!stopping) fail(`the app server stopped unexpectedly (exit ${code})`); });
+
+  await waitFor(() => httpOk(`${url}/api/health`), 30_000, 'the app server');
+  const seconds = ((performance.now() - started) / 1000).toFixed(1);
+  console.log(`\nSumpwise is running at ${url}  (ready in ${seconds} s; Ctrl-C stops it)\n`);
+}
+
+let stopping = false;
+async function shutdown(code = 0): Promise<void> {
+  if (stopping) return;
+  stopping = true;
+  for (const child of children.reverse()) await stopService(child);
+  if (ownsPidFile) rmSync(PID_FILE, { force: true });
+  console.log('[start] stopped (the database keeps running; `npm run db stop` stops it)');
+  process.exit(code);
+}
+process.on('SIGINT', () => void shutdown(0));
+process.on('SIGTERM', () => void shutdown(0));
+process.on('exit', () => {
+  if (ownsPidFile) rmSync(PID_FILE, { force: true });
+  for (const child of children) if (child.exitCode === null) child.kill('SIGTERM');
+});
+
+main().catch((error: unknown) => {
+  console.error(`[start] ${error instanceof Error ? error.message : String(error)}`);
+  void shutdown(1);
+});

@@ -1,0 +1,70 @@
+// Starts the built app for end-to-end tests on its own database, with the local mail relay and the job
+// worker when they exist. Used by the e2e global setup and by benchmarks.
+import { existsSync, mkdirSync, rmSync } from 'node:fs';
+import path from 'node:path';
+import type { ChildProcess } from 'node:child_process';
+import { createDb } from '../../../src/lib/db/db';
+import { seedDemo } from '../../../sample-data/seed';
+import { migrateToLatest, recreateEmbeddedDatabase } from '../../../scripts/lib/database';
+import { buildIfNeeded, SERVER_ENTRY } from '../../../scripts/lib/build';
+import { ROOT, freePort, httpOk, startService, stopService, waitFor } from '../../../scripts/lib/processes';
+
+export interface RunningApp {
+  baseUrl: string;
+  databaseUrl: string;
+  smtpPort: number;
+  env: NodeJS.ProcessEnv;
+  stop(): Promise<void>;
+  /** Kills and restarts only the app server (for fault tests). */
+  restartServer(): Promise<void>;
+}
+
+/** Recreates database `dbName`, migrates and seeds it, builds if needed, and serves the app on a free port. */
+export async function startApp(dbName = 'sumpwise_e2e', options: { seed?: boolean } = {}): Promise<RunningApp> {
+  const databaseUrl = recreateEmbeddedDatabase(dbName);
+  await migrateToLatest(databaseUrl, false);
+  if (options.seed !== false) {
+    const db = createDb(databaseUrl, { max: 2 });
+    try { await seedDemo(db); } finally { await db.destroy(); }
+  }
+  buildIfNeeded();
+  const [port, smtpPort] = [await freePort(), await freePort()];
+  const uploads = path.join(ROOT, '.data', `${dbName}-uploads`);
+  rmSync(uploads, { recursive: true, force: true });
+  mkdirSync(uploads, { recursive: true });
+  const baseUrl = `http://127.0.0.1:${port}`;
+  const env: NodeJS.ProcessEnv = {
+    ...process.env,
+    NODE_ENV: 'production',
+    DATABASE_URL: databaseUrl,
+    HOST: '127.0.0.1',
+    PORT: String(port),
+    PUBLIC_URL: baseUrl,
+    SMTP_URL: `smtp://127.0.0.1:${smtpPort}`,
+    DEV_MAILBOX: '1',
+    UPLOAD_DIR: uploads,
+    ASTRO_TELEMETRY_DISABLED: '1',
+  };
+  const node = process.execPath;
+  const children: ChildProcess[] = [];
+  if (existsSync(path.join(ROOT, 'scripts/mail-relay.ts'))) children.push(startService('mail', node, ['--import', 'tsx', 'scripts/mail-relay.ts'], env, true));
+  if (existsSync(path.join(ROOT, 'scripts/worker.ts'))) children.push(startService('worker', node, ['--import', 'tsx', 'scripts/worker.ts'], env, true));
+  let server = startService('app', node, [SERVER_ENTRY], env, true);
+  await waitFor(() => httpOk(`${baseUrl}/api/health`), 30_000, 'the app server');
+  return {
+    baseUrl,
+    databaseUrl,
+    smtpPort,
+    env,
+    async stop() {
+      await stopService(server);
+      for (const c of children.reverse()) await stopService(c);
+    },
+    async restartServer() {
+      server.kill('SIGKILL');
+      await new Promise((r) => server.once('exit', r));
+      server = startService('app', node, [SERVER_ENTRY], env, true);
+      await waitFor(() => httpOk(`${baseUrl}/api/health`), 30_000, 'the app server');
+    },
+  };
+}

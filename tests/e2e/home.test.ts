@@ -1,0 +1,41 @@
+import { afterAll, beforeAll, describe, expect, test } from 'vitest';
+import type { Browser } from 'playwright-core';
+import { DESKTOP, PHONE, baseUrl, launchBrowser, newContext, screenshot } from './helpers/browser';
+
+describe('home page and health', () => {
+  let browser: Browser;
+  beforeAll(async () => { browser = await launchBrowser(); });
+  afterAll(async () => { await browser?.close(); });
+
+  test.each([
+    ['phone', PHONE],
+    ['desktop', DESKTOP],
+  ])('the home page renders at %s size without horizontal scrolling', async (name, viewport) => {
+    const context = await newContext(browser, viewport);
+    const page = await context.newPage();
+    const errors: string[] = [];
+    page.on('pageerror', (e) => errors.push(e.message));
+    page.on('console', (m) => { if (m.type() === 'error') errors.push(m.text()); });
+    const response = await page.goto('/');
+    expect(response?.status()).toBe(200);
+    await expect(page.title()).resolves.toContain('Sumpwise');
+    expect(await page.getByRole('heading', { level: 1 }).textContent()).toBeTruthy();
+    // Levels are readable without colour: each badge carries its word.
+    for (const word of ['Steady', 'Watch', 'Act']) await expect(page.locator(`[data-level] >> text=${word}`).first().isVisible()).resolves.toBe(true);
+    const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+    expect(overflow).toBeLessThanOrEqual(0);
+    await screenshot(page, `home-${name}`);
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+
+  test('GET /api/health reports the version and a reachable database', async () => {
+    const res = await fetch(`${baseUrl()}/api/health`);
+    expect(res.status).toBe(200);
+    const body = (await res.json()) as { status: string; version: string; database: { reachable: boolean } };
+    expect(body.status).toBe('ok');
+    expect(body.version).toMatch(/^\d+\.\d+\.\d+/);
+    expect(body.database.reachable).toBe(true);
+    expect(res.headers.get('x-content-type-options')).toBe('nosniff');
+  });
+});

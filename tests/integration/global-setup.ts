@@ -1,0 +1,22 @@
+import { execFileSync } from 'node:child_process';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { createDb } from '../../src/lib/db/db';
+import { assertMigrated, createMigrator } from '../../src/lib/db/migrator';
+import { TEST_DATABASE } from './test-database';
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
+
+/** Starts the project's PostgreSQL, recreates the test database and migrates it once for all files. */
+export default async function setup(): Promise<void> {
+  execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'start'], { stdio: 'inherit' });
+  execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'drop-db', TEST_DATABASE.name], { stdio: 'inherit' });
+  execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'ensure-db', TEST_DATABASE.name], { stdio: 'inherit' });
+  const db = createDb(TEST_DATABASE.url(), { max: 2 });
+  try {
+    assertMigrated(await createMigrator(db, path.join(root, 'migrations')).migrateToLatest());
+  } finally {
+    await db.destroy();
+  }
+  process.env.DATABASE_URL = TEST_DATABASE.url();
+}

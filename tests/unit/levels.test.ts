@@ -1,0 +1,26 @@
+import { describe, expect, test } from 'vitest';
+import { LEVEL_DISPLAY, levelRank } from '../../src/lib/levels';
+import { navFor } from '../../src/lib/navigation';
+
+describe('levels', () => {
+  test('each level has its own word and its own shape, so colour is never the only cue', () => {
+    const words = new Set(Object.values(LEVEL_DISPLAY).map((d) => d.word));
+    const shapes = new Set(Object.values(LEVEL_DISPLAY).map((d) => d.shape));
+    expect(words.size).toBe(3);
+    expect(shapes.size).toBe(3);
+  });
+
+  test.each([
+    ['steady', 'watch'],
+    ['watch', 'act'],
+  ] as const)('%s ranks below %s', (low, high) => {
+    expect(levelRank(low)).toBeLessThan(levelRank(high));
+  });
+});
+
+describe('navigation', () => {
+  test('marks the current page, including nested paths', () => {
+    expect(navFor('/', false).find((i) => i.href === '/')?.current).toBe(true);
+    expect(navFor('/elsewhere', false).find((i) => i.href === '/')?.current).toBe(false);
+  });
+});
