@@ -92,7 +92,7 @@ async function shutdown(code = 0): Promise<void> {
   stopping = true;
   for (const child of children.reverse()) await stopService(child);
   if (ownsPidFile) rmSync(PID_FILE, { force: true });
-  console.log('[start] stopped (the database keeps running; `npm run db stop` stops it)');
+  if (children.length > 0) console.log('[start] stopped (the database keeps running; `npm run db stop` stops it)');
   process.exit(code);
 }
 process.on('SIGINT', () => void shutdown(0));
