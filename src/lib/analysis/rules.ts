@@ -181,7 +181,8 @@ export function findFixedLimitBreaches(ctx: RuleContext): Finding[] {
   const kv = readFiringValue(ctx.sample, 'KV100');
   const kvNew = ctx.sample.newOilKv100;
   if (kv !== undefined && kvNew !== undefined && kvNew > 0) {
-    const changePercent = (Math.abs(kv - kvNew) / kvNew) * 100;
+    // Rounded to 1e-9 so a change of exactly the limit (11.9 against 14.0 is 15 %) counts as reaching it.
+    const changePercent = Math.round((Math.abs(kv - kvNew) / kvNew) * 100 * 1e9) / 1e9;
     const limit = ctx.limits.kv100ChangePercent;
     if (changePercent >= p.watchFraction * limit) {
       const level = changePercent >= limit ? 'act' : 'watch';
