@@ -588,6 +588,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       issues.push({ severity: 'error', code: 'bottle-code-too-long', row: line, column: bottleColumn.header, message: `${where(line, bottleColumn.header)}: the bottle code is ${bottleRaw.length} characters long; codes up to ${MAX_BOTTLE_CODE_LENGTH} are accepted.` });
       continue;
     }
+    const issuesBeforeRow = issues.length;
     const normalised = normaliseBottleCode(bottleRaw);
     const row: LabCsvRow = { line, bottle: { raw: bottleRaw, normalised }, readings: {}, other: {} };
     const earlierLine = bottleLines.get(normalised);
@@ -675,7 +676,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
         issues.push({ severity: 'warning', code: 'formula-like-cell', row: line, column: column.header, message: problemMessage('formula-like-cell', raw, line, column.header, decimalMark).replace('; the lab should send a number here', '') });
       }
     }
-    if (measurands.length > 0 && Object.keys(row.readings).length === 0) {
+    if (measurands.length > 0 && Object.keys(row.readings).length === 0 && issues.length === issuesBeforeRow) {
       issues.push({ severity: 'warning', code: 'no-readings', row: line, column: null, message: `Line ${line} (bottle ${quoteCell(bottleRaw)}) has no readings at all: every measurand cell is blank.` });
     }
     rows.push(row);
