@@ -57,13 +57,14 @@ export const CLIMBING_TREND = {
     'A wear metal or contaminant that keeps rising over recent samples. A least-squares line is fitted over the ' +
     'last `window` samples (this one included, at least minPoints); it is climbing when at least minRisingSteps ' +
     'steps went up and the fitted rise across the window is at least minRisePpm and watchRiseFraction of the fitted ' +
-    'starting level (act at actRiseFraction, i.e. the level doubled).',
+    'starting level; act when the rise is at least actMinRisePpm and actRiseFraction of the start (the level doubled).',
   source: 'Sumpwise rule (common practice, no published source); slope by ordinary least squares, checked against NIST StRD Norris.',
   params: {
     window: 5,
     minPoints: 4,
     minRisingSteps: 3,
     minRisePpm: 3,
+    actMinRisePpm: 6,
     baseFloorPpm: 2,
     watchRiseFraction: 0.5,
     actRiseFraction: 1.0,

@@ -140,7 +140,7 @@ export function findClimbingTrends(ctx: RuleContext): Finding[] {
     // The fitted start, floored, so a climb from near zero is judged against a sensible level.
     const base = Math.max(fit.intercept, p.baseFloorPpm);
     const watchRise = Math.max(p.minRisePpm, p.watchRiseFraction * base);
-    const actRise = Math.max(p.minRisePpm, p.actRiseFraction * base);
+    const actRise = Math.max(p.actMinRisePpm, p.actRiseFraction * base);
     if (rise < watchRise) continue;
     const level = rise >= actRise ? 'act' : 'watch';
     findings.push({
