@@ -11,6 +11,8 @@ export const configSchema = z.object({
   PORT: z.coerce.number().int().min(1).max(65535).default(4321),
   SMTP_URL: z.string().default('smtp://127.0.0.1:2525'),
   MAIL_FROM: z.string().default('Sumpwise <no-reply@sumpwise.test>'),
+  // The /dev/mailbox page (what the local fake relay received) answers 404 unless this is exactly '1'.
+  DEV_MAILBOX: z.string().default('0').transform((v) => v === '1'),
   UPLOAD_DIR: z.string().default('.data/uploads'),
   APP_SECRET: z.string().min(32).optional(),
   NODE_ENV: z.enum(['development', 'production', 'test']).default('production'),

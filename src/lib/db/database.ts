@@ -296,3 +296,49 @@ export type FindingRow = Selectable<FindingsTable>;
 export type IntervalCallRow = Selectable<IntervalCallsTable>;
 export type WearPartRow = Selectable<WearPartsTable>;
 export type WearMeasurementRow = Selectable<WearMeasurementsTable>;
+
+// ---- mail (migration 2026_12_02_0300): appended as a merged declaration so parallel edits above don't collide.
+
+/** One outgoing message, written in the caller's transaction; the worker sets sent_at once the relay accepted it. */
+export interface MailOutboxTable {
+  id: Generated<string>;
+  idempotency_key: string;
+  kind: string;
+  to_address: string;
+  subject: string;
+  text_body: string;
+  html_body: string;
+  headers: Json<Record<string, string>>;
+  message_id: string;
+  attempts: Generated<number>;
+  last_error: string | null;
+  last_attempt_at: TimestampNullable;
+  next_attempt_at: Generated<Date>;
+  sent_at: TimestampNullable;
+  failed_at: TimestampNullable;
+  relay_response: string | null;
+  created_at: Generated<Date>;
+}
+
+/** What the local fake relay received (development and tests only). */
+export interface DevMailboxTable {
+  id: Generated<number>;
+  message_id: string | null;
+  envelope_from: string | null;
+  envelope_to: string;
+  from_header: string | null;
+  to_header: string | null;
+  subject: Generated<string>;
+  text_body: string | null;
+  html_body: string | null;
+  raw: string;
+  received_at: Generated<Date>;
+}
+
+export interface Database {
+  mail_outbox: MailOutboxTable;
+  dev_mailbox: DevMailboxTable;
+}
+
+export type MailOutboxRow = Selectable<MailOutboxTable>;
+export type DevMailboxRow = Selectable<DevMailboxTable>;

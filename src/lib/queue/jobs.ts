@@ -1,0 +1,35 @@
+import type PgBoss from 'pg-boss';
+import type { Kysely } from 'kysely';
+import type { AppConfig } from '../config';
+import type { Database } from '../db/database';
+import { registerMailJobs, type MailJobOptions } from '../mail/mail-jobs';
+import type { MailTransport } from '../mail/transport';
+import type { JobRegistration } from './job-queue';
+
+// Every job family the worker runs is registered here. Issue 8 (reminders, digests) adds its queues and
+// pg-boss schedules (`boss.schedule(name, cron)`) as further entries, each returning a JobRegistration.
+
+export interface JobDependencies {
+  db: Kysely<Database>;
+  config: Pick<AppConfig, 'DATABASE_URL' | 'MAIL_FROM'>;
+  transport: MailTransport;
+  log?: (line: string) => void;
+  /** Overrides for the mail job (tests shorten its tick and backoff). */
+  mail?: Partial<Pick<MailJobOptions, 'tickSeconds' | 'pollingIntervalSeconds' | 'batchSize' | 'backoff'>>;
+}
+
+/** Registers every job family on a started pg-boss; stop them with stopJobQueue. */
+export async function registerJobs(boss: PgBoss, deps: JobDependencies): Promise<JobRegistration[]> {
+  const registrations: JobRegistration[] = [];
+  registrations.push(
+    await registerMailJobs(boss, {
+      db: deps.db,
+      transport: deps.transport,
+      from: deps.config.MAIL_FROM,
+      listenConnectionString: deps.config.DATABASE_URL,
+      ...(deps.log ? { log: deps.log } : {}),
+      ...deps.mail,
+    }),
+  );
+  return registrations;
+}
