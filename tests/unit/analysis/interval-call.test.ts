@@ -1,9 +1,10 @@
 import { describe, expect, test } from 'vitest';
 import { makeIntervalCall } from '~/lib/analysis/interval-call';
+import type { MeasurandCode } from '~/lib/analysis/measurands';
 import type { MachineProfile } from '~/lib/analysis/types';
 import { AIR_SINGLE, makeHistory, makeSample } from './sample-builder';
 
-const steadySet = { Fe: 20, Al: 4, Cu: 3, Si: 6 };
+const steadySet: Partial<Record<MeasurandCode, number>> = { Fe: 20, Al: 4, Cu: 3, Si: 6 };
 const steadyHistory = makeHistory([steadySet, steadySet, steadySet, steadySet]);
 
 function callFor(machine: MachineProfile, history = steadyHistory, readings = steadySet, interval = 3000) {
