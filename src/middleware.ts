@@ -1,18 +1,34 @@
 import { defineMiddleware } from 'astro:middleware';
 import { randomUUID } from 'node:crypto';
 import { securityHeaders } from './lib/http/security-headers';
+import { getDb } from './lib/db';
+import { getLucia } from './lib/auth/lucia';
+import { loadSession } from './lib/auth/session';
 
-// Every request: defaults for the locals pages read, then the security headers on the response.
-// The accounts module adds session loading here.
+// Every request: defaults for the locals pages read, the session and crew behind the cookie, then the
+// security headers on the response.
 export const onRequest = defineMiddleware(async (context, next) => {
   context.locals.requestId = randomUUID();
   context.locals.user = null;
   context.locals.session = null;
   context.locals.crew = null;
   context.locals.crews = [];
+  const loaded = await loadSession(getDb(), getLucia(), context.cookies).catch((error: unknown) => {
+    // The health check must still answer while the database is down; every other route fails loudly.
+    if (context.url.pathname === '/api/health') return null;
+    throw error;
+  });
+  if (loaded) {
+    context.locals.user = loaded.user;
+    context.locals.session = loaded.session;
+    context.locals.crews = loaded.crews;
+    context.locals.crew = loaded.crew;
+  }
   const response = await next();
   for (const [name, value] of Object.entries(securityHeaders())) {
     if (!response.headers.has(name)) response.headers.set(name, value);
   }
+  // Pages behind a session must not be kept by shared caches or the back button after sign-out.
+  if (loaded && !response.headers.has('cache-control')) response.headers.set('cache-control', 'private, no-store');
   return response;
 });

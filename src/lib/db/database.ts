@@ -259,6 +259,52 @@ export interface CrewLimitsTable {
   updated_at: Generated<Date>;
 }
 
+export type AuthTokenPurpose = 'verify_email' | 'reset_password';
+
+/** Single-use tokens for e-mail verification and password reset; only the SHA-256 of the token is kept. */
+export interface AuthTokensTable {
+  id: Generated<string>;
+  user_id: string;
+  purpose: AuthTokenPurpose;
+  token_hash: string;
+  email: string;
+  expires_at: Timestamp;
+  used_at: TimestampNullable;
+  created_at: Generated<Date>;
+}
+
+export interface CrewInvitationsTable {
+  id: Generated<string>;
+  crew_id: string;
+  email: string;
+  role: Role;
+  token_hash: string;
+  invited_by: string | null;
+  expires_at: Timestamp;
+  accepted_at: TimestampNullable;
+  accepted_by: string | null;
+  revoked_at: TimestampNullable;
+  created_at: Generated<Date>;
+}
+
+export interface AuditEventsTable {
+  id: Generated<number>;
+  crew_id: string | null;
+  actor_user_id: string | null;
+  subject_user_id: string | null;
+  kind: string;
+  detail: Json<Record<string, unknown>>;
+  ip: string | null;
+  at: Generated<Date>;
+}
+
+/** rate-limiter-flexible's counters (RateLimiterPostgres). */
+export interface RateLimitsTable {
+  key: string;
+  points: number;
+  expire: number | null;
+}
+
 /** Every table Kysely may touch; later migrations add their tables here too. */
 export interface Database {
   users: UsersTable;
@@ -281,6 +327,10 @@ export interface Database {
   interval_calls: IntervalCallsTable;
   review_notes: ReviewNotesTable;
   crew_limits: CrewLimitsTable;
+  auth_tokens: AuthTokensTable;
+  crew_invitations: CrewInvitationsTable;
+  audit_events: AuditEventsTable;
+  rate_limits: RateLimitsTable;
 }
 
 export type UserRow = Selectable<UsersTable>;
