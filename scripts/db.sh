@@ -3,7 +3,7 @@
 # non-default port. Works as root (the server then runs as the `postgres` system user) and as an ordinary
 # user. Idempotent; recovers after the server was killed.
 #
-# usage: scripts/db.sh start|stop|status|url [dbname]|reset|ensure-db NAME|psql [args]
+# usage: scripts/db.sh start|stop|status|url [dbname]|reset|ensure-db NAME|drop-db NAME|backup FILE [db]|restore FILE [db]|psql [args]
 set -euo pipefail
 
 ROOT=$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)
@@ -168,6 +168,21 @@ case "${1:-}" in
     [[ "${2:?database name}" =~ ^[a-z_][a-z0-9_]*$ ]] || die "bad database name"
     psql_admin -c "drop database if exists ${2} with (force)" ;;
   reset) stop; say "removing $BASE"; rm -rf "$BASE"; start; ensure_db "$DEV_DB" ;;
+  backup)
+    # A consistent snapshot of one database in pg_dump's custom format (compressed, restorable table by table).
+    out=${2:?usage: db.sh backup FILE [dbname]}; name=${3:-$DEV_DB}
+    ready || die "the server is not running (scripts/db.sh start)"
+    "$PGBIN/pg_dump" -h 127.0.0.1 -p "$PORT" -U "$DB_USER" -Fc --no-owner -f "$out" "$name"
+    say "backed up $name to $out ($(du -h "$out" | cut -f1))" ;;
+  restore)
+    # Restores into an EMPTY database (created when missing); refuses one that already has tables.
+    in=${2:?usage: db.sh restore FILE [dbname]}; name=${3:-$DEV_DB}
+    [ -r "$in" ] || die "cannot read $in"
+    ensure_db "$name"
+    tables=$(psql_admin -d "$name" -tAc "select count(*) from pg_tables where schemaname = 'public'")
+    [ "$tables" = 0 ] || die "database $name is not empty ($tables tables): restore into a new name, e.g. scripts/db.sh restore $in ${name}_restored"
+    "$PGBIN/pg_restore" -h 127.0.0.1 -p "$PORT" -U "$DB_USER" --no-owner --exit-on-error -d "$name" "$in"
+    say "restored $in into $name" ;;
   psql) shift; "${RUN[@]}" "$PGBIN/psql" -X -h 127.0.0.1 -p "$PORT" -U "$DB_USER" "$@" ;;
-  *) echo "usage: scripts/db.sh start|stop|status|url [db]|ensure-db NAME|drop-db NAME|reset|psql [args]" >&2; exit 2 ;;
+  *) echo "usage: scripts/db.sh start|stop|status|url [db]|ensure-db NAME|drop-db NAME|reset|backup FILE [db]|restore FILE [db]|psql [args]" >&2; exit 2 ;;
 esac

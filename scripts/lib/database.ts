@@ -13,9 +13,14 @@ export function ensureEmbeddedDatabase(name: string): string {
   return capture('bash', [path.join(ROOT, 'scripts/db.sh'), 'url', name]);
 }
 
+/** Drops database `name` on the embedded server (no error when it does not exist). */
+export function dropEmbeddedDatabase(name: string): void {
+  run('bash', [path.join(ROOT, 'scripts/db.sh'), 'drop-db', name], { stdio: ['ignore', 'ignore', 'inherit'] });
+}
+
 /** Recreates database `name` empty on the embedded server. */
 export function recreateEmbeddedDatabase(name: string): string {
-  run('bash', [path.join(ROOT, 'scripts/db.sh'), 'drop-db', name], { stdio: ['ignore', 'ignore', 'inherit'] });
+  dropEmbeddedDatabase(name);
   return ensureEmbeddedDatabase(name);
 }
 

@@ -8,7 +8,9 @@ import { TEST_DATABASE } from './test-database';
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 
 /** Starts the project's PostgreSQL, recreates the test database and migrates it once for all files. */
-export default async function setup(): Promise<void> {
+export default async function setup(): Promise<() => void> {
+  // One database per run (the workers inherit this variable), dropped at the end.
+  process.env.SUMPWISE_TEST_DB ??= `sumpwise_test_${process.pid}`;
   execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'start'], { stdio: 'inherit' });
   execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'drop-db', TEST_DATABASE.name], { stdio: 'inherit' });
   execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'ensure-db', TEST_DATABASE.name], { stdio: 'inherit' });
@@ -19,4 +21,7 @@ export default async function setup(): Promise<void> {
     await db.destroy();
   }
   process.env.DATABASE_URL = TEST_DATABASE.url();
+  return () => {
+    execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'drop-db', TEST_DATABASE.name], { stdio: 'ignore' });
+  };
 }

@@ -16,7 +16,10 @@ describe('migrations', () => {
   execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'drop-db', scratch]);
   execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'ensure-db', scratch]);
   const db = createDb(TEST_DATABASE.url().replace(/\/[^/]+$/, `/${scratch}`), { max: 2 });
-  afterAll(async () => { await db.destroy(); });
+  afterAll(async () => {
+    await db.destroy();
+    execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'drop-db', scratch], { stdio: 'ignore' });
+  });
 
   const tableCount = async () =>
     Number((await sql<{ n: string }>`select count(*)::int as n from pg_tables where schemaname = 'public' and tablename not like 'kysely_%'`.execute(db)).rows[0]!.n);

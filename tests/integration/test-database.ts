@@ -4,7 +4,10 @@ import type { Database } from '../../src/lib/db/database';
 
 /** The integration tests' own database on the project's server: never the demo data. */
 export const TEST_DATABASE = {
-  name: process.env.SUMPWISE_TEST_DB ?? 'sumpwise_test',
+  /** Set per run by the global setup, so two runs at once never share (or drop) each other's database. */
+  get name(): string {
+    return process.env.SUMPWISE_TEST_DB ?? 'sumpwise_test';
+  },
   url(): string {
     const port = process.env.SUMPWISE_PG_PORT ?? '54329';
     return `postgres://sumpwise@127.0.0.1:${port}/${this.name}`;
