@@ -1,0 +1,47 @@
+// `npm run bench`: runs every benchmark under tests/bench/ (each a script printing a JSON object as its
+// last line of output) one after another, and prints one table of every figure with the machine it ran on.
+import { spawnSync } from 'node:child_process';
+import { mkdirSync, readdirSync, writeFileSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { ROOT } from './lib/processes';
+
+const dir = path.join(ROOT, 'tests/bench');
+const only = process.argv.slice(2);
+const files = readdirSync(dir).filter((f) => f.endsWith('.bench.ts') && (only.length === 0 || only.some((o) => f.includes(o)))).sort();
+const rows: [string, string, string][] = [];
+let failures = 0;
+
+function flatten(prefix: string, value: unknown, out: [string, string][]): void {
+  if (value !== null && typeof value === 'object' && !Array.isArray(value)) {
+    for (const [k, v] of Object.entries(value)) flatten(prefix ? `${prefix}.${k}` : k, v, out);
+  } else {
+    out.push([prefix, typeof value === 'number' ? String(Math.round(value * 100) / 100) : JSON.stringify(value)]);
+  }
+}
+
+for (const file of files) {
+  const name = file.replace(/\.bench\.ts$/, '');
+  process.stderr.write(`[bench] ${name}…\n`);
+  const result = spawnSync(process.execPath, ['--expose-gc', '--import', 'tsx', path.join(dir, file)], {
+    cwd: ROOT, encoding: 'utf8', env: { ...process.env, ASTRO_TELEMETRY_DISABLED: '1' }, maxBuffer: 64 << 20, timeout: 15 * 60_000,
+  });
+  const lines = String(result.stdout).trim().split('\n').reverse();
+  const json = lines.map((l) => { try { return JSON.parse(l) as unknown; } catch { return undefined; } }).find((v) => v && typeof v === 'object');
+  if (result.status !== 0 || !json) {
+    failures++;
+    rows.push([name, 'error', (String(result.stderr).trim().split('\n').pop() ?? `exit ${result.status}`).slice(0, 120)]);
+    continue;
+  }
+  const flat: [string, string][] = [];
+  flatten('', json, flat);
+  for (const [k, v] of flat) rows.push([name, k, v]);
+}
+
+const cpu = os.cpus()[0]?.model ?? 'unknown CPU';
+const header = `Machine: ${os.cpus().length} × ${cpu}, ${(os.totalmem() / 2 ** 30).toFixed(0)} GiB, Node.js ${process.version}, ${new Date().toISOString().slice(0, 10)}`;
+const table = ['| benchmark | figure | value |', '| --- | --- | --- |', ...rows.map((r) => `| ${r.join(' | ')} |`)].join('\n');
+console.log(`${header}\n\n${table}`);
+mkdirSync(path.join(ROOT, 'tests/bench/results'), { recursive: true });
+writeFileSync(path.join(ROOT, 'tests/bench/results/latest.md'), `${header}\n\n${table}\n`);
+process.exit(failures ? 1 : 0);
