@@ -35,11 +35,10 @@
  *    duplicate recognisable, every attempt of a message carries the same Message-ID, derived from its
  *    idempotency key, so clients and relays that collapse duplicates by Message-ID show it once.
  */
-import { createHash } from 'node:crypto';
 import type { Kysely, Transaction } from 'kysely';
 import { getConfig } from '../config';
 import type { Database, MailOutboxRow } from '../db/database';
-import { DEFAULT_BACKOFF, computeRetryDelayMs, queuedMailSchema, type BackoffPolicy, type DeliveryReport, type QueuedMail } from './mail';
+import { DEFAULT_BACKOFF, computeRetryDelayMs, deriveMessageId, queuedMailSchema, type BackoffPolicy, type DeliveryReport, type QueuedMail } from './mail';
 import { insertOutboxMail, lockNextDueMail, markMailSent, notifyOutbox, recordMailFailure } from './mail.repository';
 import type { MailTransport } from './transport';
 
@@ -57,13 +56,6 @@ export async function queueMail(db: Kysely<Database> | Transaction<Database>, ma
     message_id: deriveMessageId(parsed.idempotencyKey, getConfig().MAIL_FROM),
   });
   if (written) await notifyOutbox(db);
-}
-
-/** A stable Message-ID for a logical message: the same idempotency key always gives the same id. */
-export function deriveMessageId(idempotencyKey: string, fromAddress: string): string {
-  const domain = /@([A-Za-z0-9.-]+)>?\s*$/.exec(fromAddress)?.[1] ?? 'sumpwise.invalid';
-  const digest = createHash('sha256').update(idempotencyKey).digest('hex').slice(0, 40);
-  return `<${digest}.mail@${domain.toLowerCase()}>`;
 }
 
 export interface DeliverOptions {

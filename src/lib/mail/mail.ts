@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { z } from 'zod';
 
 // Header names the sender sets itself; a caller overriding them could forge or break a message.
@@ -54,4 +55,11 @@ export const DEFAULT_BACKOFF: BackoffPolicy = { baseMs: 30_000, maxMs: 30 * 60_0
 export function computeRetryDelayMs(attempts: number, policy: BackoffPolicy): number {
   const exponent = Math.max(0, attempts - 1);
   return Math.min(policy.maxMs, policy.baseMs * 2 ** Math.min(exponent, 30));
+}
+
+/** A stable Message-ID for a logical message: the same idempotency key always gives the same id. */
+export function deriveMessageId(idempotencyKey: string, fromAddress: string): string {
+  const domain = /@([A-Za-z0-9.-]+)>?\s*$/.exec(fromAddress)?.[1] ?? 'sumpwise.invalid';
+  const digest = createHash('sha256').update(idempotencyKey).digest('hex').slice(0, 40);
+  return `<${digest}.mail@${domain.toLowerCase()}>`;
 }
