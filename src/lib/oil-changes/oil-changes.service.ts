@@ -1,0 +1,91 @@
+import type { Kysely } from 'kysely';
+import type { Database } from '../db/database';
+import { canActorEdit, getMachine } from '../machines/machines.service';
+import { refuse, refuseInvalid, succeed, type Actor, type FieldErrors, type ServiceResult } from '../machines/service-result';
+import type { PreparedPhoto } from '../photos/photos';
+import { attachPhotos, findPhotosOfOilChanges, type PhotoRow } from '../photos/photos.repository';
+import { storePreparedPhoto } from '../photos/photos.service';
+import { formatMeter, toStoredMeter } from '../units/units';
+import { computeDistances, explainAbsurdOdometer, oilChangeInputSchema, toOilChange, type OilChange } from './oil-changes';
+import { findLatestOilChange, findOilChangeAfter, findOilChangeBefore, findOilChangesOfMachine } from './oil-changes.repository';
+import { parseSaeGrade } from './sae-grade';
+
+/** A machine's oil changes, newest first, each with the distance since the one before and its photos. */
+export async function listOilChanges(db: Kysely<Database>, actor: Actor, machineId: string): Promise<ServiceResult<(OilChange & { photos: PhotoRow[] })[]>> {
+  const m = await getMachine(db, actor, machineId);
+  if (!m.ok) return m;
+  const rows = await findOilChangesOfMachine(db, actor.membership.crewId, machineId);
+  const photos = await findPhotosOfOilChanges(db, actor.membership.crewId, rows.map((r) => r.id));
+  return succeed(computeDistances(rows).reverse().map((c) => ({ ...c, photos: photos.filter((p) => p.oil_change_id === c.id) })));
+}
+
+/** The machine's latest oil change (what a drain card prefills from), or null. */
+export async function getLatestOilChange(db: Kysely<Database>, actor: Actor, machineId: string): Promise<OilChange | null> {
+  const row = await findLatestOilChange(db, actor.membership.crewId, machineId);
+  return row ? toOilChange(row) : null;
+}
+
+/**
+ * Logs an oil change. The odometer (machine's own unit) may not go below the previous change's unless the
+ * meter was replaced; photos already uploaded (photoIds) are attached, and photos from a plain form post
+ * (newPhotos, already checked) are stored in the same transaction.
+ */
+export async function createOilChange(
+  db: Kysely<Database>, actor: Actor, machineId: string, input: unknown,
+  options: { newPhotos?: PreparedPhoto[]; uploadDir?: string } = {},
+): Promise<ServiceResult<OilChange>> {
+  const m = await getMachine(db, actor, machineId);
+  if (!m.ok) return m;
+  const machine = m.value;
+  if (!canActorEdit(actor, machine)) return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can log its oil changes.');
+  const parsed = oilChangeInputSchema.safeParse(input);
+  const fields: FieldErrors = parsed.success ? {} : refuseInvalid(parsed.error).fields;
+  const grade = parseSaeGrade(String((input as Record<string, unknown> | null)?.['saeGrade'] ?? ''));
+  if (!grade.ok) fields['saeGrade'] = grade.message;
+  if (!parsed.success || !grade.ok) return refuse(400, 'invalid_input', 'Some fields need attention.', fields);
+  const d = parsed.data;
+  const crewId = actor.membership.crewId;
+  const odometer = toStoredMeter(d.odometer, machine.meter);
+  const absurd = explainAbsurdOdometer(odometer, machine.meter);
+  if (absurd) return refuse(400, 'invalid_input', 'Some fields need attention.', { odometer: absurd });
+
+  return db.transaction().execute(async (trx) => {
+    if (!d.meterReplaced) {
+      const before = await findOilChangeBefore(trx, crewId, machineId, d.changedOn);
+      if (before && odometer < before.odometer - 1e-9) {
+        return refuse(400, 'invalid_input', 'Some fields need attention.', {
+          odometer: `Lower than the reading at the oil change on ${before.changed_on} (${formatMeter(before.odometer, machine.meter)}). If the odometer or hour meter was replaced, tick “meter replaced”.`,
+        });
+      }
+      const after = await findOilChangeAfter(trx, crewId, machineId, d.changedOn);
+      if (after && !after.meter_replaced && odometer > after.odometer + 1e-9) {
+        return refuse(400, 'invalid_input', 'Some fields need attention.', {
+          odometer: `Higher than the reading at the later oil change on ${after.changed_on} (${formatMeter(after.odometer, machine.meter)}).`,
+        });
+      }
+    }
+    const row = await trx.insertInto('oil_changes').values({
+      crew_id: crewId, machine_id: machineId, changed_on: d.changedOn, odometer, meter_replaced: d.meterReplaced,
+      oil_product: d.oilProduct, sae_grade: grade.grade, volume_l: d.volumeL ?? null, filter_changed: d.filterChanged,
+      top_up_l: d.topUpL ?? 0, other_work: JSON.stringify(d.otherWork), notes: d.notes, created_by: actor.userId,
+    }).returningAll().executeTakeFirstOrThrow();
+    const ids = [...new Set(d.photoIds)];
+    const attached = await attachPhotos(trx, crewId, actor.userId, ids, row.id);
+    if (attached !== ids.length) {
+      // Throwing rolls the oil change back: a photo of someone else, or one already used, writes nothing.
+      throw new PhotoAttachError();
+    }
+    for (const p of options.newPhotos ?? []) {
+      if (!options.uploadDir) throw new Error('uploadDir is required to store photos.');
+      await storePreparedPhoto(trx, actor, p, options.uploadDir, row.id);
+    }
+    return succeed(toOilChange(row));
+  }).catch((e: unknown) => {
+    if (e instanceof PhotoAttachError) {
+      return refuse(400, 'invalid_input', 'Some fields need attention.', { photos: 'A photo could not be attached; upload it again.' });
+    }
+    throw e;
+  });
+}
+
+class PhotoAttachError extends Error {}

@@ -1,0 +1,54 @@
+import type { Kysely, Transaction } from 'kysely';
+import type { Database, SampleRow, SampleState } from '../db/database';
+import { isUuid } from '../machines/machines.repository';
+
+type Db = Kysely<Database> | Transaction<Database>;
+
+/** One sample of the crew, or undefined. */
+export function findSampleOfCrew(db: Db, crewId: string, id: string): Promise<SampleRow | undefined> {
+  if (!isUuid(id)) return Promise.resolve(undefined);
+  return db.selectFrom('samples').selectAll().where('crew_id', '=', crewId).where('id', '=', id).executeTakeFirst();
+}
+
+/** The sample a card key already created in this crew (a resend of the same card), or undefined. */
+export function findSampleByClientKey(db: Db, crewId: string, clientKey: string): Promise<SampleRow | undefined> {
+  return db.selectFrom('samples').selectAll().where('crew_id', '=', crewId).where('client_key', '=', clientKey).executeTakeFirst();
+}
+
+/** The sample holding a normalised bottle code in this crew, with its machine's name, or undefined. */
+export function findSampleByBottleCode(db: Db, crewId: string, norm: string) {
+  return db.selectFrom('samples').innerJoin('machines', 'machines.id', 'samples.machine_id')
+    .select(['samples.id', 'samples.drawn_on', 'machines.name as machine_name'])
+    .where('samples.crew_id', '=', crewId).where('samples.bottle_code_norm', '=', norm).executeTakeFirst();
+}
+
+/** A machine's samples, newest first. */
+export function findSamplesOfMachine(db: Db, crewId: string, machineId: string): Promise<SampleRow[]> {
+  return db.selectFrom('samples').selectAll().where('crew_id', '=', crewId).where('machine_id', '=', machineId)
+    .orderBy('drawn_on', 'desc').orderBy('created_at', 'desc').execute();
+}
+
+/** The crew's samples with machine name and meter, optionally of one state, newest first. */
+export function findSamplesOfCrew(db: Db, crewId: string, state?: SampleState) {
+  let q = db.selectFrom('samples').innerJoin('machines', 'machines.id', 'samples.machine_id')
+    .selectAll('samples').select(['machines.name as machine_name', 'machines.meter as machine_meter'])
+    .where('samples.crew_id', '=', crewId);
+  if (state) q = q.where('samples.state', '=', state);
+  return q.orderBy('samples.drawn_on', 'desc').orderBy('samples.created_at', 'desc').limit(500).execute();
+}
+
+/** How many samples the crew has in each state. */
+export async function countSamplesByState(db: Db, crewId: string): Promise<Record<SampleState, number>> {
+  const rows = await db.selectFrom('samples').select(['state']).select((eb) => eb.fn.countAll<number>().as('n'))
+    .where('crew_id', '=', crewId).groupBy('state').execute();
+  const out: Record<SampleState, number> = { drawn: 0, shipped: 0, results_in: 0, reviewed: 0 };
+  for (const r of rows) out[r.state] = Number(r.n);
+  return out;
+}
+
+/** A sample's state history with who set each state, oldest first. */
+export function findSampleEvents(db: Db, sampleId: string) {
+  return db.selectFrom('sample_events').leftJoin('users', 'users.id', 'sample_events.actor_user_id')
+    .select(['sample_events.id', 'sample_events.state', 'sample_events.note', 'sample_events.at', 'users.display_name as actor_name'])
+    .where('sample_events.sample_id', '=', sampleId).orderBy('sample_events.at').orderBy('sample_events.id').execute();
+}

@@ -1,0 +1,196 @@
+import type { Kysely, Transaction } from 'kysely';
+import type { Database, SampleState } from '../db/database';
+import { canReadCrew } from '../auth/permissions';
+import { canActorEdit, getMachine } from '../machines/machines.service';
+import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type FieldErrors, type ServiceResult } from '../machines/service-result';
+import { explainAbsurdOdometer, toOilChange, type OilChange } from '../oil-changes/oil-changes';
+import { findLatestOilChange, findOilChangesOfMachine } from '../oil-changes/oil-changes.repository';
+import { parseSaeGrade } from '../oil-changes/sae-grade';
+import { formatMeter, toStoredMeter } from '../units/units';
+import { explainIssuedCode, generateIssuedCode, normaliseBottleCode } from './bottle-code';
+import { drainCardSchema, SAMPLE_STATES, shipSchema, toSample, type Sample } from './samples';
+import {
+  countSamplesByState, findSampleByBottleCode, findSampleByClientKey, findSampleEvents, findSampleOfCrew, findSamplesOfCrew,
+  findSamplesOfMachine,
+} from './samples.repository';
+
+type Db = Kysely<Database> | Transaction<Database>;
+
+/** What a drain card is prefilled with: the latest oil change's grade, product, volume and odometer. */
+export interface DrainCardPrefill {
+  latest: OilChange | null;
+  values: { saeGrade: string; oilProduct: string; odometer: number | null; volumeL: number | null };
+}
+
+/** The prefill for a machine's drain card (the odometer in the stored unit). */
+export async function prefillDrainCard(db: Kysely<Database>, actor: Actor, machineId: string): Promise<DrainCardPrefill> {
+  const row = await findLatestOilChange(db, actor.membership.crewId, machineId);
+  const latest = row ? toOilChange(row) : null;
+  return {
+    latest,
+    values: { saeGrade: latest?.saeGrade ?? '', oilProduct: latest?.oilProduct ?? '', odometer: latest?.odometer ?? null, volumeL: latest?.volumeL ?? null },
+  };
+}
+
+/**
+ * The oil change the drained oil came from: the latest one on or before the day whose reading is below the
+ * sample's. A sample at exactly a change's reading was drawn as that change drained the oil, so it belongs
+ * to the change before (unless the meter was replaced in between).
+ */
+export function pickOilChangeOfSample(changesOldestFirst: readonly OilChange[], drawnOn: string, odometer: number): OilChange | null {
+  const eligible = changesOldestFirst.filter((c) => c.changedOn <= drawnOn);
+  for (let i = eligible.length - 1; i >= 0; i--) {
+    const c = eligible[i]!;
+    if (c.odometer < odometer) return c;
+    if (c.meterReplaced) return null;
+  }
+  return null;
+}
+
+/** A fresh Sumpwise bottle code not yet used in the crew (normal form). */
+export async function issueBottleCode(db: Db, crewId: string): Promise<string> {
+  for (let attempt = 0; attempt < 20; attempt++) {
+    const code = generateIssuedCode();
+    if (!(await findSampleByBottleCode(db, crewId, code))) return code;
+  }
+  throw new Error('Could not find an unused bottle code.');
+}
+
+export type DrainCardOutcome = { sample: Sample; repeated: boolean };
+
+/**
+ * Registers a drain card: checks the bottle code (an issued one by its check character), its uniqueness in
+ * the crew, and the odometer against the oil change; computes the distance on oil; records the 'drawn'
+ * state. A card sent twice with the same client key answers the first sample and writes nothing new.
+ */
+export async function registerDrainCard(db: Kysely<Database>, actor: Actor, machineId: string, input: unknown): Promise<ServiceResult<DrainCardOutcome>> {
+  const m = await getMachine(db, actor, machineId);
+  if (!m.ok) return m;
+  const machine = m.value;
+  if (!canActorEdit(actor, machine)) return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can register its samples.');
+  const crewId = actor.membership.crewId;
+
+  const parsed = drainCardSchema.safeParse(input);
+  if (parsed.success && parsed.data.clientKey) {
+    const again = await findSampleByClientKey(db, crewId, parsed.data.clientKey);
+    if (again) {
+      if (again.machine_id !== machineId) return refuse(409, 'client_key_reused', 'This card key belongs to another sample.');
+      return succeed({ sample: toSample(again), repeated: true });
+    }
+  }
+  const fields: FieldErrors = parsed.success ? {} : refuseInvalid(parsed.error).fields;
+  const raw = (input ?? {}) as Record<string, unknown>;
+  const gradeText = String(raw['saeGrade'] ?? '').trim();
+  const grade = gradeText === '' ? null : parseSaeGrade(gradeText);
+  if (grade && !grade.ok) fields['saeGrade'] = grade.message;
+  if (!parsed.success || (grade && !grade.ok)) return refuse(400, 'invalid_input', 'Some fields need attention.', fields);
+  const d = parsed.data;
+
+  const norm = normaliseBottleCode(d.bottleCode);
+  if (d.codeSource === 'issued') {
+    const why = explainIssuedCode(norm);
+    if (why) return refuse(400, 'invalid_input', 'Some fields need attention.', { bottleCode: why });
+  } else if (!/^[A-Z0-9]{3,32}$/.test(norm)) {
+    return refuse(400, 'invalid_input', 'Some fields need attention.', { bottleCode: 'Use 3 to 32 letters and digits, as printed on the lab kit.' });
+  }
+  const odometer = toStoredMeter(d.odometer, machine.meter);
+  const absurd = explainAbsurdOdometer(odometer, machine.meter);
+  if (absurd) return refuse(400, 'invalid_input', 'Some fields need attention.', { odometer: absurd });
+
+  const changes = (await findOilChangesOfMachine(db, crewId, machineId)).map((r) => toOilChange(r));
+  const change = pickOilChangeOfSample(changes, d.drawnOn, odometer);
+  const firstOnDay = changes.filter((c) => c.changedOn <= d.drawnOn).at(-1);
+  if (!change && firstOnDay && firstOnDay.odometer > odometer && !firstOnDay.meterReplaced) {
+    return refuse(400, 'invalid_input', 'Some fields need attention.', {
+      odometer: `Lower than at the oil change on ${firstOnDay.changedOn} (${formatMeter(firstOnDay.odometer, machine.meter)}).`,
+    });
+  }
+  const distanceOnOil = change ? odometer - change.odometer : null;
+
+  try {
+    return await db.transaction().execute(async (trx) => {
+      const taken = await findSampleByBottleCode(trx, crewId, norm);
+      if (taken) {
+        return refuse(409, 'duplicate_bottle_code', 'That bottle code is already used.', {
+          bottleCode: `Bottle code ${d.bottleCode} is already on a sample of ${taken.machine_name} drawn on ${taken.drawn_on}. Each bottle needs its own code.`,
+        });
+      }
+      const row = await trx.insertInto('samples').values({
+        crew_id: crewId, machine_id: machineId, oil_change_id: change?.id ?? null, bottle_code: d.bottleCode.toUpperCase(),
+        bottle_code_norm: norm, issued_code: d.codeSource === 'issued', drawn_on: d.drawnOn, odometer, distance_on_oil: distanceOnOil,
+        top_up_l: d.topUpL ?? 0, sae_grade: grade && grade.ok ? grade.grade : change?.saeGrade ?? null,
+        oil_product: d.oilProduct || change?.oilProduct || '', draw_method: d.drawMethod, client_key: d.clientKey ?? null,
+        created_by: actor.userId,
+      }).returningAll().executeTakeFirstOrThrow();
+      await trx.insertInto('sample_events').values({ sample_id: row.id, state: 'drawn', actor_user_id: actor.userId }).execute();
+      return succeed({ sample: toSample(row), repeated: false });
+    });
+  } catch (e) {
+    // Two sends of one card racing, or two riders typing the same code at once: the unique indexes decide.
+    const constraint = (e as { constraint?: string }).constraint;
+    if (constraint === 'samples_client_key_key' && d.clientKey) {
+      const again = await findSampleByClientKey(db, crewId, d.clientKey);
+      if (again) return succeed({ sample: toSample(again), repeated: true });
+    }
+    if (constraint === 'samples_crew_id_bottle_code_norm_key') {
+      return refuse(409, 'duplicate_bottle_code', 'That bottle code is already used.', { bottleCode: `Bottle code ${d.bottleCode} is already used in this crew.` });
+    }
+    throw e;
+  }
+}
+
+/**
+ * Moves a sample forward to a later state and records when and by whom (the lab import calls this with
+ * 'results_in', a review with 'reviewed'). Moving backwards or to the same state is refused.
+ */
+export async function recordSampleState(trx: Db, sampleId: string, state: SampleState, actorUserId: string | null, note = ''): Promise<boolean> {
+  const row = await trx.selectFrom('samples').select(['state']).where('id', '=', sampleId).forUpdate().executeTakeFirst();
+  if (!row || SAMPLE_STATES.indexOf(state) <= SAMPLE_STATES.indexOf(row.state)) return false;
+  const patch = state === 'shipped' ? { state, tracking_note: note } : { state };
+  await trx.updateTable('samples').set(patch).where('id', '=', sampleId).execute();
+  await trx.insertInto('sample_events').values({ sample_id: sampleId, state, note, actor_user_id: actorUserId }).execute();
+  return true;
+}
+
+/** Marks a drawn sample shipped, with an optional tracking note. */
+export async function markSampleShipped(db: Kysely<Database>, actor: Actor, sampleId: string, input: unknown): Promise<ServiceResult<Sample>> {
+  const found = await getSampleDetail(db, actor, sampleId);
+  if (!found.ok) return found;
+  const m = await getMachine(db, actor, found.value.sample.machineId);
+  if (!m.ok) return m;
+  if (!canActorEdit(actor, m.value)) return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can mark its samples shipped.');
+  const parsed = shipSchema.safeParse(input ?? {});
+  if (!parsed.success) return refuseInvalid(parsed.error);
+  if (found.value.sample.state !== 'drawn') {
+    return refuse(409, 'wrong_state', `This sample is already ${found.value.sample.state.replace('_', ' ')}.`);
+  }
+  const moved = await db.transaction().execute((trx) => recordSampleState(trx, sampleId, 'shipped', actor.userId, parsed.data.trackingNote));
+  if (!moved) return refuse(409, 'wrong_state', 'This sample has moved on already.');
+  const row = await findSampleOfCrew(db, actor.membership.crewId, sampleId);
+  return row ? succeed(toSample(row)) : refuseNotFound('sample');
+}
+
+/** A sample of the actor's crew with its machine and state history. */
+export async function getSampleDetail(db: Kysely<Database>, actor: Actor, sampleId: string) {
+  if (!canReadCrew(actor.membership)) return refuseNotFound('sample');
+  const row = await findSampleOfCrew(db, actor.membership.crewId, sampleId);
+  if (!row) return refuseNotFound('sample');
+  const [machine, events] = await Promise.all([getMachine(db, actor, row.machine_id), findSampleEvents(db, row.id)]);
+  if (!machine.ok) return machine;
+  const oilChange = row.oil_change_id
+    ? await db.selectFrom('oil_changes').selectAll().where('id', '=', row.oil_change_id).executeTakeFirst()
+    : undefined;
+  return succeed({ sample: toSample(row), machine: machine.value, events, oilChange: oilChange ? toOilChange(oilChange) : null });
+}
+
+/** The crew's samples grouped by state, with counts. */
+export async function listSamplesByState(db: Kysely<Database>, actor: Actor, state?: SampleState) {
+  if (!canReadCrew(actor.membership)) return { counts: { drawn: 0, shipped: 0, results_in: 0, reviewed: 0 }, samples: [] };
+  const [counts, rows] = await Promise.all([countSamplesByState(db, actor.membership.crewId), findSamplesOfCrew(db, actor.membership.crewId, state)]);
+  return { counts, samples: rows.map((r) => ({ ...toSample(r), machineName: r.machine_name, machineMeter: r.machine_meter })) };
+}
+
+/** A machine's samples, newest first. */
+export async function listSamplesOfMachine(db: Kysely<Database>, actor: Actor, machineId: string): Promise<Sample[]> {
+  return (await findSamplesOfMachine(db, actor.membership.crewId, machineId)).map(toSample);
+}
