@@ -1,4 +1,4 @@
-import nodemailer from 'nodemailer';
+import nodemailer, { type SendMailOptions } from 'nodemailer';
 import { describe, expect, test } from 'vitest';
 import {
   decodeBody, decodeEncodedWords, decodeQuotedPrintable, parseContentType, parseMime, splitMultipart,
@@ -79,7 +79,7 @@ describe('splitMultipart and decodeBody', () => {
 });
 
 /** The raw message nodemailer itself would put on the wire, so the parser is tested against the real producer. */
-async function composeWithNodemailer(message: nodemailer.SendMailOptions): Promise<string> {
+async function composeWithNodemailer(message: SendMailOptions): Promise<string> {
   const transport = nodemailer.createTransport({ streamTransport: true, buffer: true, newline: 'unix' });
   const info = (await transport.sendMail(message)) as { message: Buffer };
   return info.message.toString('utf8');
