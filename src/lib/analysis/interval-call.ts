@@ -1,7 +1,7 @@
 /** makeIntervalCall: shorten, hold or stretch the oil change interval, with the reasons and the next sample due. */
 import { analyseSample, type SampleAnalysis } from './analyse-sample';
 import { BASELINE_JUMP, INTERVAL_CALL } from './rule-definitions';
-import type { AnalyseInput } from './types';
+import type { AnalyseInput, Level } from './types';
 
 export type Call = 'shorten' | 'hold' | 'stretch';
 
@@ -49,7 +49,14 @@ function estimatePace(input: AnalyseInput): number | undefined {
  * The interval call for a sample: act means shorten and resample soon; a climbing trend shortens; other watch
  * findings hold; a steady run on a ready baseline stretches. Never beyond the manufacturer's longest interval.
  */
-export function makeIntervalCall(input: AnalyseInput & { analysis?: SampleAnalysis | undefined }): IntervalCall {
+export function makeIntervalCall(
+  input: AnalyseInput & {
+    /** This sample's analysis when the caller already has it (else it is computed). */
+    analysis?: SampleAnalysis | undefined;
+    /** Worst level of each previous sample, aligned with the end of `history` (else they are recomputed). */
+    previousWorst?: readonly Level[] | undefined;
+  },
+): IntervalCall {
   const p = INTERVAL_CALL.params;
   const { machine, sample, history } = input;
   const analysis = input.analysis ?? analyseSample(input);
@@ -104,8 +111,10 @@ export function makeIntervalCall(input: AnalyseInput & { analysis?: SampleAnalys
     let previousSteady = ready && history.length >= needSteady;
     for (let i = 0; previousSteady && i < needSteady; i++) {
       const idx = history.length - 1 - i;
-      const earlier = analyseSample({ ...input, history: history.slice(0, idx), sample: history[idx]! });
-      if (earlier.worst !== 'steady') previousSteady = false;
+      const known = input.previousWorst?.[input.previousWorst.length - 1 - i];
+      const worst =
+        known ?? analyseSample({ machine, limits: input.limits, history: history.slice(0, idx), sample: history[idx]! }).worst;
+      if (worst !== 'steady') previousSteady = false;
     }
     const stretched = clamp(currentInterval * p.stretchFactor);
     if (!ready) {

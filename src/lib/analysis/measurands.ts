@@ -84,11 +84,14 @@ const CATALOGUE: Record<MeasurandCode, Omit<MeasurandInfo, 'code'>> = {
 };
 
 /** The whole catalogue, in MEASURAND_CODES order. */
-export const MEASURANDS: readonly MeasurandInfo[] = MEASURAND_CODES.map((code) => ({ code, ...CATALOGUE[code] }));
+export const MEASURANDS: readonly Readonly<MeasurandInfo>[] = MEASURAND_CODES.map((code) => Object.freeze({ code, ...CATALOGUE[code] }));
+
+// Built once: the rules look entries up on every reading, so no object is allocated per look-up.
+const BY_CODE = new Map<MeasurandCode, Readonly<MeasurandInfo>>(MEASURANDS.map((m) => [m.code, m]));
 
 /** Look up one measurand's catalogue entry. */
-export function getMeasurand(code: MeasurandCode): MeasurandInfo {
-  return { code, ...CATALOGUE[code] };
+export function getMeasurand(code: MeasurandCode): Readonly<MeasurandInfo> {
+  return BY_CODE.get(code)!;
 }
 
 /** Codes of one group, in catalogue order. */

@@ -70,6 +70,13 @@ describe('makeIntervalCall', () => {
     expect(callFor(AIR_SINGLE, history).call).toBe('hold');
   });
 
+  test('levels the caller already knows for earlier samples are used instead of re-analysing them', () => {
+    const sample = makeSample(4, steadySet);
+    const machine = AIR_SINGLE;
+    expect(makeIntervalCall({ machine, history: steadyHistory, sample, previousWorst: ['steady', 'steady'] }).call).toBe('stretch');
+    expect(makeIntervalCall({ machine, history: steadyHistory, sample, previousWorst: ['watch', 'steady'] }).call).toBe('hold');
+  });
+
   test('hour-meter machines round to 5 h', () => {
     const machine: MachineProfile = { cooling: 'liquid', distanceUnit: 'h', maxIntervalDistance: 100 };
     const history = makeHistory([steadySet, steadySet, steadySet, steadySet], {}, 37);

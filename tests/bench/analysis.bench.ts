@@ -1,0 +1,129 @@
+/**
+ * Benchmark of the analysis engine: findings and the interval call for one machine with 500 samples of 30
+ * measurands each (invented data from a seeded generator). Run: npx tsx tests/bench/analysis.bench.ts
+ * Prints one JSON line of figures; the target (under 50 ms) is reported, not asserted.
+ */
+import { performance } from 'node:perf_hooks';
+import {
+  analyseSample,
+  makeIntervalCall,
+  type Level,
+  type MachineProfile,
+  type MeasurandCode,
+  type SamplePoint,
+} from '../../src/lib/analysis/index';
+
+const SAMPLES = 500;
+const CODES: MeasurandCode[] = [
+  'Fe', 'Al', 'Cr', 'Cu', 'Pb', 'Sn', 'Ni', 'Ag', 'Ti', 'V', 'Mn', 'Si', 'Na', 'K', 'B',
+  'Mo', 'Zn', 'P', 'Ca', 'Mg', 'Ba', 'S',
+  'KV40', 'KV100', 'VI', 'SUS210', 'FLASH', 'FUEL', 'WATER', 'INSOL',
+];
+const TYPICAL: Record<string, number> = {
+  Fe: 20, Al: 4, Cr: 1, Cu: 5, Pb: 2, Sn: 1, Ni: 1, Ag: 0.5, Ti: 0.5, V: 0.5, Mn: 1, Si: 7, Na: 5, K: 2, B: 4,
+  Mo: 60, Zn: 1100, P: 950, Ca: 2100, Mg: 20, Ba: 1, S: 2500,
+  KV40: 100, KV100: 14, VI: 145, SUS210: 75, FLASH: 220, FUEL: 0.6, WATER: 0.02, INSOL: 0.3,
+};
+
+// mulberry32: a small seeded generator so every run measures the same invented history.
+function makeRandom(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+function buildMachineHistory(): SamplePoint[] {
+  const random = makeRandom(20240501);
+  const samples: SamplePoint[] = [];
+  for (let i = 0; i < SAMPLES; i++) {
+    const readings: SamplePoint['readings'] = {};
+    for (const code of CODES) {
+      const typical = TYPICAL[code]!;
+      // ±15 % scatter, an occasional excursion so some rules fire.
+      const excursion = random() < 0.03 ? 2.5 : 1;
+      readings[code] = { value: Number((typical * excursion * (0.85 + 0.3 * random())).toFixed(3)) };
+    }
+    samples.push({
+      id: `bench-${i}`,
+      takenAt: new Date(Date.UTC(2010, 0, 1) + i * 20 * 86_400_000).toISOString().slice(0, 10),
+      odometer: (i + 1) * 3000,
+      distanceOnOil: 3000,
+      topUpVolume: 0.2,
+      oilVolume: 3,
+      grade: '10W-40',
+      oilProduct: i % 50 < 45 ? 'Valley Trail 10W-40' : 'Ridge Synth 15W-50',
+      newOilKv100: 14.2,
+      readings,
+    });
+  }
+  return samples;
+}
+
+function median(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  return s[Math.floor(s.length / 2)]!;
+}
+
+const machine: MachineProfile = { cooling: 'liquid', distanceUnit: 'km', maxIntervalDistance: 6000, maxIntervalDays: 365 };
+const samples = buildMachineHistory();
+const history = samples.slice(0, -1);
+const sample = samples.at(-1)!;
+
+function runLatest(): number {
+  const analysis = analyseSample({ machine, history, sample });
+  const call = makeIntervalCall({ machine, history, sample, analysis });
+  return analysis.findings.length + call.reasons.length;
+}
+
+// Every sample analysed against the samples before it, as a wear chart flags each point; the levels already
+// found are passed on so the call does not analyse earlier samples again.
+function runReplay(): number {
+  let findings = 0;
+  const worst: Level[] = [];
+  for (let i = 0; i < samples.length; i++) {
+    const h = samples.slice(0, i);
+    const analysis = analyseSample({ machine, history: h, sample: samples[i]! });
+    makeIntervalCall({ machine, history: h, sample: samples[i]!, analysis, previousWorst: worst });
+    worst.push(analysis.worst);
+    findings += analysis.findings.length;
+  }
+  return findings;
+}
+
+for (let i = 0; i < 20; i++) runLatest();
+runReplay();
+
+const latest: number[] = [];
+for (let i = 0; i < 200; i++) {
+  const t0 = performance.now();
+  runLatest();
+  latest.push(performance.now() - t0);
+}
+const replay: number[] = [];
+let replayFindings = 0;
+for (let i = 0; i < 5; i++) {
+  const t0 = performance.now();
+  replayFindings = runReplay();
+  replay.push(performance.now() - t0);
+}
+
+const latestMedian = median(latest);
+console.log(
+  JSON.stringify({
+    bench: 'analysis',
+    samples: SAMPLES,
+    measurands: CODES.length,
+    latestSampleMs: Number(latestMedian.toFixed(3)),
+    latestSampleMaxMs: Number(Math.max(...latest).toFixed(3)),
+    replayAllSamplesMs: Number(median(replay).toFixed(1)),
+    replayFindings,
+    targetMs: 50,
+    withinTarget: latestMedian < 50,
+    node: process.version,
+  }),
+);
