@@ -1,0 +1,255 @@
+/**
+ * The wear chart island: an element picker, raw ppm or rate, x by odometer or date, the baseline band behind
+ * each line, level-shaped points, a tooltip with the sample's figures, grade changes on the axis, and the same
+ * data as a table for keyboards and screen readers. Only the Chart.js pieces used are registered.
+ */
+import { useEffect, useMemo, useState } from 'react';
+import {
+  Chart as ChartJS,
+  Filler,
+  LinearScale,
+  LineController,
+  LineElement,
+  PointElement,
+  Tooltip,
+  type ChartDataset,
+  type ChartOptions,
+  type Plugin,
+  type TooltipItem,
+} from 'chart.js';
+import { Line } from 'react-chartjs-2';
+import { MEASURANDS } from '../../lib/analysis/measurands';
+import { PICKER_GROUPS, type TrendAxis, type TrendBasis, type TrendResponse } from '../../lib/trends/trend-types';
+import { buildChartDatasets, buildGradeMarks, type XYPoint } from './chart-data';
+import { LEVEL_COLOURS, SERIES_COLOURS, pointRadiusFor, pointStyleFor, withAlpha } from './chart-styles';
+import { formatBand, formatDistance, formatFigure, formatFromBaseline, formatReported, xToDate } from './format';
+import { TrendTable } from './TrendTable';
+
+ChartJS.register(LineController, LineElement, PointElement, LinearScale, Filler, Tooltip);
+
+interface Props {
+  machineId: string;
+  /** Elements shown first; a ?chart=Al,Si in the page address wins. */
+  initial?: string[];
+}
+
+type State = { status: 'loading' } | { status: 'error'; message: string } | { status: 'ready'; data: TrendResponse };
+
+const DEFAULT_CODES = ['Fe', 'Al', 'Si'];
+
+function readInitial(initial: string[] | undefined): string[] {
+  if (typeof window !== 'undefined') {
+    const fromUrl = new URLSearchParams(window.location.search).get('chart');
+    if (fromUrl) {
+      const codes = fromUrl.split(',').filter((c) => MEASURANDS.some((m) => m.code === c));
+      if (codes.length > 0) return codes.slice(0, 8);
+    }
+  }
+  return initial && initial.length > 0 ? initial : DEFAULT_CODES;
+}
+
+/** Dashed vertical lines where an oil change poured a different grade. */
+function gradeMarksPlugin(marks: { x: number; label: string }[]): Plugin<'line'> {
+  return {
+    id: 'gradeMarks',
+    afterDatasetsDraw(chart) {
+      const { ctx, chartArea, scales } = chart;
+      const xScale = scales['x'];
+      if (!xScale) return;
+      ctx.save();
+      ctx.strokeStyle = '#3a4a5a';
+      ctx.fillStyle = '#16202a';
+      ctx.setLineDash([4, 4]);
+      ctx.font = '12px sans-serif';
+      for (const m of marks) {
+        const px = xScale.getPixelForValue(m.x);
+        if (px < chartArea.left || px > chartArea.right) continue;
+        ctx.beginPath();
+        ctx.moveTo(px, chartArea.top);
+        ctx.lineTo(px, chartArea.bottom);
+        ctx.stroke();
+        ctx.fillText(m.label, Math.min(px + 4, chartArea.right - ctx.measureText(m.label).width), chartArea.top + 12);
+      }
+      ctx.restore();
+    },
+  };
+}
+
+/** The wear chart of one machine. */
+export default function WearChart({ machineId, initial }: Props) {
+  const [codes, setCodes] = useState<string[]>(() => readInitial(initial));
+  const [basis, setBasis] = useState<TrendBasis>('ppm');
+  const [axis, setAxis] = useState<TrendAxis>('odometer');
+  const [state, setState] = useState<State>({ status: 'loading' });
+  const [attempt, setAttempt] = useState(0);
+
+  useEffect(() => {
+    if (codes.length === 0) return;
+    const controller = new AbortController();
+    setState({ status: 'loading' });
+    const q = new URLSearchParams({ measurands: codes.join(','), basis, x: axis });
+    fetch(`/api/trends/${encodeURIComponent(machineId)}?${q}`, { signal: controller.signal, headers: { accept: 'application/json' } })
+      .then(async (res) => {
+        const body = (await res.json()) as TrendResponse | { error: { message: string } };
+        if (!res.ok || 'error' in body) throw new Error('error' in body ? body.error.message : `The server answered ${res.status}.`);
+        setState({ status: 'ready', data: body });
+      })
+      .catch((e: unknown) => {
+        if (controller.signal.aborted) return;
+        setState({ status: 'error', message: e instanceof Error ? e.message : 'The chart could not be loaded.' });
+      });
+    return () => controller.abort();
+  }, [machineId, codes, basis, axis, attempt]);
+
+  const toggle = (code: string) =>
+    setCodes((cur) => (cur.includes(code) ? cur.filter((c) => c !== code) : cur.length >= 8 ? cur : [...cur, code]));
+
+  const ready = state.status === 'ready' ? state.data : null;
+  const chart = useMemo(() => (ready ? buildChart(ready) : null), [ready]);
+  const empty = ready !== null && ready.series.every((s) => s.points.length === 0);
+
+  return (
+    <div className="space-y-4" data-testid="wear-chart">
+      <form className="grid gap-3 md:grid-cols-[1fr_auto]" onSubmit={(e) => e.preventDefault()} aria-label="Wear chart settings">
+        <div className="grid gap-2 sm:grid-cols-2 lg:grid-cols-4">
+          {PICKER_GROUPS.map((g) => (
+            <fieldset key={g.group} className="rounded-card border border-line p-2">
+              <legend className="px-1 text-sm font-semibold">{g.label}</legend>
+              <div className="flex flex-wrap gap-1">
+                {MEASURANDS.filter((m) => m.group === g.group).map((m) => (
+                  <label key={m.code} className="flex min-h-tap min-w-tap cursor-pointer items-center gap-1 rounded px-2 hover:bg-paper-sunk" title={m.name}>
+                    <input type="checkbox" checked={codes.includes(m.code)} onChange={() => toggle(m.code)} className="h-5 w-5" aria-label={m.name} />
+                    <span className="font-mono text-sm">{m.code}</span>
+                  </label>
+                ))}
+              </div>
+            </fieldset>
+          ))}
+        </div>
+        <div className="flex flex-wrap gap-3 md:flex-col">
+          <fieldset className="rounded-card border border-line p-2">
+            <legend className="px-1 text-sm font-semibold">Values</legend>
+            {(['ppm', 'rate'] as const).map((b) => (
+              <label key={b} className="flex min-h-tap items-center gap-2 px-1">
+                <input type="radio" name="basis" value={b} checked={basis === b} onChange={() => setBasis(b)} className="h-5 w-5" />
+                {b === 'ppm' ? 'Raw ppm' : 'Per 1,000 of oil use'}
+              </label>
+            ))}
+          </fieldset>
+          <fieldset className="rounded-card border border-line p-2">
+            <legend className="px-1 text-sm font-semibold">Across</legend>
+            {(['odometer', 'date'] as const).map((a) => (
+              <label key={a} className="flex min-h-tap items-center gap-2 px-1">
+                <input type="radio" name="axis" value={a} checked={axis === a} onChange={() => setAxis(a)} className="h-5 w-5" />
+                {a === 'odometer' ? 'Odometer' : 'Date'}
+              </label>
+            ))}
+          </fieldset>
+        </div>
+      </form>
+
+      <div aria-live="polite" className="min-h-[1.5rem]">
+        {codes.length === 0 && <p>Pick at least one element to draw.</p>}
+        {codes.length > 0 && state.status === 'loading' && <p data-testid="wear-chart-loading">Loading the wear chart…</p>}
+        {state.status === 'error' && (
+          <div role="alert" className="rounded-card border-l-8 border-level-act bg-level-act-bg p-3">
+            <p>The wear chart could not be loaded: {state.message}</p>
+            <button type="button" className="btn-secondary mt-2" onClick={() => setAttempt((n) => n + 1)}>Try again</button>
+          </div>
+        )}
+        {empty && <p data-testid="wear-chart-empty">No results for these elements yet. The chart fills in as lab results come in.</p>}
+      </div>
+
+      {ready && chart && !empty && (
+        <>
+          <figure className="relative h-72 w-full md:h-96" aria-label="Wear chart; the same data is in the table below">
+            <Line data={chart.data} options={chart.options} plugins={[gradeMarksPlugin(buildGradeMarks(ready))]} />
+          </figure>
+          <Legend data={ready} />
+          {ready.notes.map((n) => (
+            <p key={n} className="text-sm text-ink-soft">{n}</p>
+          ))}
+          <TrendTable data={ready} />
+        </>
+      )}
+    </div>
+  );
+}
+
+function Legend({ data }: { data: TrendResponse }) {
+  return (
+    <ul className="flex flex-wrap gap-x-4 gap-y-1 text-sm" aria-label="Chart key">
+      {data.series.map((s, i) => (
+        <li key={s.code} className="flex items-center gap-2">
+          <span aria-hidden="true" className="inline-block h-1 w-6" style={{ background: SERIES_COLOURS[i % SERIES_COLOURS.length] }} />
+          {s.name} ({s.unit})
+        </li>
+      ))}
+      <li className="flex items-center gap-2"><span aria-hidden="true" className="inline-block h-3 w-6 bg-steel-100" />Baseline band</li>
+      <li>● steady · ◆ watch · ⯃ act</li>
+      {data.gradeChanges.length > 0 && <li>┆ a different oil grade poured</li>}
+    </ul>
+  );
+}
+
+function buildChart(data: TrendResponse): { data: { datasets: ChartDataset<'line', XYPoint[]>[] }; options: ChartOptions<'line'> } {
+  const specs = buildChartDatasets(data, SERIES_COLOURS);
+  const meter = data.machine.meter;
+  const datasets: ChartDataset<'line', XYPoint[]>[] = specs.map((spec) => {
+    if (spec.kind === 'band-lower') {
+      return { label: spec.label, data: spec.data, borderWidth: 0, pointRadius: 0, pointHitRadius: 0, fill: false, borderColor: 'transparent' };
+    }
+    if (spec.kind === 'band-upper') {
+      return {
+        label: spec.label, data: spec.data, borderWidth: 1, borderDash: [3, 3], borderColor: withAlpha(spec.colour, 0.45),
+        backgroundColor: withAlpha(spec.colour, 0.12), pointRadius: 0, pointHitRadius: 0, fill: '-1',
+      };
+    }
+    return {
+      label: spec.label, data: spec.data, borderColor: spec.colour, borderWidth: 2, fill: false, tension: 0,
+      pointStyle: spec.levels.map(pointStyleFor),
+      pointRadius: spec.levels.map(pointRadiusFor),
+      pointHoverRadius: spec.levels.map((l) => pointRadiusFor(l) + 2),
+      pointBackgroundColor: spec.levels.map((l) => LEVEL_COLOURS[l]),
+      pointBorderColor: spec.levels.map((l) => (l === 'steady' ? spec.colour : LEVEL_COLOURS[l])),
+    };
+  });
+  const lineIndexes = new Set(specs.flatMap((s, i) => (s.kind === 'line' ? [i] : [])));
+  const options: ChartOptions<'line'> = {
+    responsive: true,
+    maintainAspectRatio: false,
+    animation: false,
+    parsing: false,
+    normalized: true,
+    interaction: { mode: 'nearest', intersect: false },
+    scales: {
+      x: {
+        type: 'linear',
+        title: { display: true, text: data.x === 'date' ? 'Date drawn' : `Odometer (${meter})` },
+        ticks: { callback: (v) => (data.x === 'date' ? xToDate(Number(v)) : Number(v).toLocaleString('en-US')), maxRotation: 0, autoSkip: true },
+      },
+      y: { type: 'linear', beginAtZero: true, title: { display: true, text: data.series.map((s) => s.unit).filter((u, i, a) => a.indexOf(u) === i).join(' · ') } },
+    },
+    plugins: {
+      tooltip: {
+        filter: (item) => lineIndexes.has(item.datasetIndex),
+        callbacks: {
+          title: (items: TooltipItem<'line'>[]) => {
+            const p = (items[0]?.raw as XYPoint | undefined)?.point;
+            return p ? `Bottle ${p.bottleCode} · ${p.date}` : '';
+          },
+          label: (item: TooltipItem<'line'>) => {
+            const p = (item.raw as XYPoint).point;
+            const s = data.series[Math.floor(item.datasetIndex / 3)]!;
+            return [
+              `${s.name}: ${formatFigure(p.value)} ${s.unit}${s.basis === 'rate' ? ` (lab: ${formatReported(p)} ppm)` : p.qualifier ? ` (lab: ${formatReported(p)})` : ''} · ${p.level}`,
+              `Odometer ${formatDistance(p.odometer, meter)} · on oil ${formatDistance(p.distanceOnOil, meter)} · ${p.grade ?? 'grade not recorded'}`,
+              `Baseline ${formatBand(p)} · ${formatFromBaseline(p)}`,
+            ];
+          },
+        },
+      },
+    },
+  };
+  return { data: { datasets }, options };
+}

@@ -1,0 +1,44 @@
+/** Number and label formatting shared by the wear chart and its table. */
+import type { TrendPoint } from '../../lib/trends/trend-types';
+
+/** A figure to sensible precision: whole from 100, one decimal from 10, two below. */
+export function formatFigure(v: number): string {
+  const digits = Math.abs(v) >= 100 ? 0 : Math.abs(v) >= 10 ? 1 : 2;
+  return Number(v.toFixed(digits)).toLocaleString('en-US');
+}
+
+/** The reading as the lab reported it, with its qualifier. */
+export function formatReported(p: TrendPoint): string {
+  return `${p.qualifier ?? ''}${formatFigure(p.reported)}`;
+}
+
+/** "+4.1 (2.3 spreads above)" or "building baseline". */
+export function formatFromBaseline(p: TrendPoint): string {
+  if (!p.fromBaseline || !p.band) return 'baseline still building';
+  const d = p.fromBaseline.delta;
+  const s = p.fromBaseline.spreads;
+  const dir = d >= 0 ? 'above' : 'below';
+  return `${d >= 0 ? '+' : '−'}${formatFigure(Math.abs(d))} (${formatFigure(Math.abs(s))} sd ${dir} the mean)`;
+}
+
+/** Baseline band as "lower–upper (mean m)". */
+export function formatBand(p: TrendPoint): string {
+  if (!p.band) return 'building';
+  return `${formatFigure(p.band.lower)}–${formatFigure(p.band.upper)} (mean ${formatFigure(p.band.mean)})`;
+}
+
+/** Whole distance with thousands separators, one decimal for hour meters. */
+export function formatDistance(v: number | null, meter: string): string {
+  if (v === null) return '—';
+  return `${v.toLocaleString('en-US', { maximumFractionDigits: meter === 'h' ? 1 : 0 })} ${meter}`;
+}
+
+/** Epoch milliseconds of a YYYY-MM-DD date (UTC), the x value when the axis is by date. */
+export function dateToX(date: string): number {
+  return Date.parse(`${date.slice(0, 10)}T00:00:00Z`);
+}
+
+/** YYYY-MM-DD of an epoch-millisecond tick. */
+export function xToDate(ms: number): string {
+  return new Date(ms).toISOString().slice(0, 10);
+}

@@ -1,0 +1,89 @@
+/**
+ * Wear chart types and picker groups: no zod and no analysis engine here, so the React island that imports
+ * them stays small.
+ */
+import type { MeasurandCode, MeasurandGroup } from '../analysis/measurands';
+import type { Level } from '../db/database';
+import type { MeterUnit } from '../units/units';
+
+export type TrendBasis = 'ppm' | 'rate';
+export type TrendAxis = 'odometer' | 'date';
+
+/** One sample as the repository loads it: stored units (km or h, litres). */
+export interface TrendSampleRow {
+  id: string;
+  bottleCode: string;
+  drawnOn: string;
+  odometerStored: number;
+  distanceOnOilStored: number | null;
+  grade: string | null;
+  topUpL: number;
+  oilVolumeL: number | null;
+  inBaseline: boolean;
+  readings: Partial<Record<MeasurandCode, { value: number; qualifier: '<' | '>' | null }>>;
+  /** Worst stored finding level per measurand of this sample. */
+  levels: Partial<Record<MeasurandCode, Level>>;
+}
+
+export interface TrendOilChangeRow {
+  changedOn: string;
+  odometerStored: number;
+  grade: string;
+}
+
+export interface TrendPoint {
+  sampleId: string;
+  bottleCode: string;
+  date: string;
+  /** Odometer in the machine's meter unit. */
+  odometer: number;
+  distanceOnOil: number | null;
+  grade: string | null;
+  /** The plotted value in the response's basis (ppm, or ppm per 1,000 mi/km / 100 h). */
+  value: number;
+  /** The reading as the lab reported it, with its qualifier ('<1' means below detection). */
+  reported: number;
+  qualifier: '<' | '>' | null;
+  level: Level;
+  /** The baseline band from this machine's previous accepted samples, or null while it is building. */
+  band: { lower: number; mean: number; upper: number } | null;
+  /** value − band mean, and that in spreads (standard deviations, floored), when a band exists. */
+  fromBaseline: { delta: number; spreads: number } | null;
+}
+
+export interface TrendSeries {
+  code: MeasurandCode;
+  name: string;
+  group: MeasurandGroup;
+  /** Unit of `value`: 'ppm', 'ppm per 1,000 km', '%', 'mm²/s'… */
+  unit: string;
+  /** Oil-condition figures have no wear rate: they stay in their own unit whatever the basis. */
+  basis: TrendBasis;
+  points: TrendPoint[];
+}
+
+export interface GradeChangeMark {
+  date: string;
+  odometer: number;
+  from: string;
+  to: string;
+}
+
+export interface TrendResponse {
+  machine: { id: string; name: string; meter: MeterUnit };
+  basis: TrendBasis;
+  x: TrendAxis;
+  series: TrendSeries[];
+  gradeChanges: GradeChangeMark[];
+  /** Said beside the chart whenever a rate is shown (PRODUCT.md: the correction is an approximation). */
+  notes: string[];
+}
+
+/** Elements of the picker, grouped as the wear chart shows them. */
+export const PICKER_GROUPS: readonly { group: MeasurandGroup; label: string }[] = [
+  { group: 'wear', label: 'Wear metals' },
+  { group: 'contaminant', label: 'Contaminants' },
+  { group: 'additive', label: 'Additives' },
+  { group: 'condition', label: 'Oil condition' },
+];
+

@@ -1,0 +1,109 @@
+/** Queries behind the wear chart: one machine's samples with results, their readings and stored findings. */
+import type { Kysely } from 'kysely';
+import { isMeasurandCode, type MeasurandCode } from '../analysis';
+import type { Database, Level, MachineRow } from '../db/database';
+import { levelRank } from '../levels';
+import type { TrendOilChangeRow, TrendSampleRow } from './trends';
+
+/** A machine of the crew, or undefined (another crew's machine is "not found", never forbidden). */
+export async function findCrewMachine(
+  db: Kysely<Database>,
+  crewId: string,
+  machineId: string,
+): Promise<Pick<MachineRow, 'id' | 'name' | 'meter' | 'cooling' | 'oil_capacity_l'> | undefined> {
+  if (!isUuid(machineId)) return undefined;
+  return db
+    .selectFrom('machines')
+    .select(['id', 'name', 'meter', 'cooling', 'oil_capacity_l'])
+    .where('id', '=', machineId)
+    .where('crew_id', '=', crewId)
+    .executeTakeFirst();
+}
+
+/** Samples with results (results in or reviewed), oldest first, with the requested readings and finding levels. */
+export async function listTrendSamples(
+  db: Kysely<Database>,
+  machine: { id: string; oil_capacity_l: number | null },
+  measurands: readonly MeasurandCode[],
+): Promise<TrendSampleRow[]> {
+  const samples = await db
+    .selectFrom('samples')
+    .leftJoin('oil_changes', 'oil_changes.id', 'samples.oil_change_id')
+    .select([
+      'samples.id',
+      'samples.bottle_code',
+      'samples.drawn_on',
+      'samples.odometer',
+      'samples.distance_on_oil',
+      'samples.sae_grade',
+      'samples.top_up_l',
+      'samples.in_baseline',
+      'oil_changes.volume_l',
+    ])
+    .where('samples.machine_id', '=', machine.id)
+    .where('samples.state', 'in', ['results_in', 'reviewed'])
+    .orderBy('samples.drawn_on')
+    .orderBy('samples.odometer')
+    .execute();
+  if (samples.length === 0) return [];
+  const ids = samples.map((s) => s.id);
+  const [readings, findings] = await Promise.all([
+    db
+      .selectFrom('readings')
+      .select(['sample_id', 'measurand', 'value', 'qualifier'])
+      .where('sample_id', 'in', ids)
+      .where('measurand', 'in', [...measurands])
+      .execute(),
+    db
+      .selectFrom('findings')
+      .select(['sample_id', 'measurand', 'level'])
+      .where('sample_id', 'in', ids)
+      .where('measurand', 'in', [...measurands])
+      .execute(),
+  ]);
+  const byId = new Map<string, TrendSampleRow>();
+  for (const s of samples) {
+    byId.set(s.id, {
+      id: s.id,
+      bottleCode: s.bottle_code,
+      drawnOn: s.drawn_on,
+      odometerStored: Number(s.odometer),
+      distanceOnOilStored: s.distance_on_oil === null ? null : Number(s.distance_on_oil),
+      grade: s.sae_grade,
+      topUpL: Number(s.top_up_l),
+      oilVolumeL: s.volume_l !== null ? Number(s.volume_l) : machine.oil_capacity_l !== null ? Number(machine.oil_capacity_l) : null,
+      inBaseline: s.in_baseline,
+      readings: {},
+      levels: {},
+    });
+  }
+  for (const r of readings) {
+    const row = byId.get(r.sample_id);
+    if (row && isMeasurandCode(r.measurand)) row.readings[r.measurand] = { value: Number(r.value), qualifier: r.qualifier };
+  }
+  for (const f of findings) {
+    const row = byId.get(f.sample_id);
+    if (!row || f.measurand === null || !isMeasurandCode(f.measurand)) continue;
+    const prev: Level = row.levels[f.measurand] ?? 'steady';
+    if (levelRank(f.level) > levelRank(prev)) row.levels[f.measurand] = f.level;
+  }
+  return [...byId.values()];
+}
+
+/** The machine's oil changes with the grade poured, for grade-change marks. */
+export async function listTrendOilChanges(db: Kysely<Database>, machineId: string): Promise<TrendOilChangeRow[]> {
+  const rows = await db
+    .selectFrom('oil_changes')
+    .select(['changed_on', 'odometer', 'sae_grade'])
+    .where('machine_id', '=', machineId)
+    .orderBy('odometer')
+    .execute();
+  return rows.map((r) => ({ changedOn: r.changed_on, odometerStored: Number(r.odometer), grade: r.sae_grade }));
+}
+
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+/** True for a UUID; anything else cannot name a row and answers 404 without a query error. */
+export function isUuid(value: string): boolean {
+  return UUID.test(value);
+}

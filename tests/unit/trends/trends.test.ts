@@ -1,0 +1,129 @@
+import { describe, expect, test } from 'vitest';
+import { describeRateUnit, findGradeChanges, shapeTrendSeries, trendQuerySchema, type TrendSampleRow } from '~/lib/trends/trends';
+import { buildChartDatasets, buildGradeMarks } from '~/components/wear-chart/chart-data';
+import { KM_PER_MI } from '~/lib/units/units';
+
+// Invented demo figures throughout; the check values are worked by hand from the engine's band rule
+// (mean ± 2 × spread, spread = max(sd, 2 ppm, 10 % of the mean): BASELINE_JUMP in rule-definitions.ts).
+
+function sample(i: number, over: Partial<TrendSampleRow> = {}): TrendSampleRow {
+  return {
+    id: `s${i}`, bottleCode: `B${i}`, drawnOn: `2026-0${i}-01`, odometerStored: 1000 * i, distanceOnOilStored: 1000,
+    grade: '10W-40', topUpL: 0, oilVolumeL: 2, inBaseline: true, readings: {}, levels: {}, ...over,
+  };
+}
+
+describe('trendQuerySchema', () => {
+  test.each([
+    ['Fe,Al', { measurands: ['Fe', 'Al'], basis: 'ppm', x: 'odometer' }],
+    ['Fe,Fe, Si', { measurands: ['Fe', 'Si'], basis: 'ppm', x: 'odometer' }],
+    ['KV100', { measurands: ['KV100'], basis: 'ppm', x: 'odometer' }],
+  ])('accepts %s', (measurands, expected) => {
+    expect(trendQuerySchema.parse({ measurands })).toEqual(expected);
+  });
+
+  test.each([
+    [{ measurands: '' }],
+    [{ measurands: 'Fe,Xx' }],
+    [{ measurands: 'fe' }],
+    [{ measurands: 'Fe,Al,Cr,Cu,Pb,Sn,Ni,Ag,Ti' }],
+    [{ measurands: 'Fe', basis: 'ppb' }],
+    [{ measurands: 'Fe', x: 'hours' }],
+  ])('refuses %j', (q) => {
+    expect(trendQuerySchema.safeParse(q).success).toBe(false);
+  });
+});
+
+describe('shapeTrendSeries', () => {
+  const flat = [10, 10, 10, 16].map((v, i) => sample(i + 1, { readings: { Fe: { value: v, qualifier: null } } }));
+
+  test.each([
+    // index, expected band (null while fewer than 3 previous samples), delta
+    [0, null, null],
+    [1, null, null],
+    [2, null, null],
+    // previous 10,10,10: mean 10, sd 0, spread floored to 2 → band 6–14; 16 − 10 = +6 = 3 spreads.
+    [3, { lower: 6, mean: 10, upper: 14 }, { delta: 6, spreads: 3 }],
+  ])('point %i of a flat history carries band %j', (i, band, from) => {
+    const [series] = shapeTrendSeries({ meter: 'km', samples: flat, measurands: ['Fe'], basis: 'ppm' });
+    expect(series!.points[i]!.band).toEqual(band);
+    expect(series!.points[i]!.fromBaseline).toEqual(from);
+  });
+
+  test('samples outside the baseline do not build it', () => {
+    const rows = [sample(1, { readings: { Fe: { value: 10, qualifier: null } } }), sample(2, { inBaseline: false, readings: { Fe: { value: 90, qualifier: null } } }),
+      sample(3, { readings: { Fe: { value: 10, qualifier: null } } }), sample(4, { readings: { Fe: { value: 10, qualifier: null } } }), sample(5, { readings: { Fe: { value: 10, qualifier: null } } })];
+    const [series] = shapeTrendSeries({ meter: 'km', samples: rows, measurands: ['Fe'], basis: 'ppm' });
+    expect(series!.points[4]!.band).toEqual({ lower: 6, mean: 10, upper: 14 });
+  });
+
+  test.each([
+    // ppm 20 over 1,000 km → 20 per 1,000 km; 2 L fill with 0.5 L top-up → 20 × 2.5 / 2 = 25 (the engine's correction).
+    ['km', 1000, 0, 20],
+    ['km', 1000, 0.5, 25],
+    ['km', 500, 0, 40],
+    // A mi machine stores km: 1,609.344 km on the oil is 1,000 mi → 20 per 1,000 mi (NIST SP 811 mile).
+    ['mi', 1000 * KM_PER_MI, 0, 20],
+  ] as const)('rate on a %s machine with %d stored on oil and top-up %d L is %d', (meter, dist, topUp, expected) => {
+    const rows = [sample(1, { distanceOnOilStored: dist, topUpL: topUp, readings: { Fe: { value: 20, qualifier: null } } })];
+    const [series] = shapeTrendSeries({ meter, samples: rows, measurands: ['Fe'], basis: 'rate' });
+    expect(series!.points[0]!.value).toBeCloseTo(expected, 9);
+    expect(series!.unit).toBe(describeRateUnit(meter));
+  });
+
+  test.each([
+    ['a missing distance on oil drops the point from a rate series', { distanceOnOilStored: null }, 'Fe', 'rate', 0],
+    ['a condition figure stays in its own unit under rate', {}, 'KV100', 'rate', 1],
+    ['a missing reading is no point', {}, 'Al', 'ppm', 0],
+  ] as const)('%s', (_name, over, code, basis, count) => {
+    const rows = [sample(1, { ...over, readings: { Fe: { value: 20, qualifier: null }, KV100: { value: 13.1, qualifier: null } } })];
+    const [series] = shapeTrendSeries({ meter: 'km', samples: rows, measurands: [code], basis });
+    expect(series!.points).toHaveLength(count);
+    if (code === 'KV100') expect(series!.basis).toBe('ppm');
+  });
+
+  test('keeps the lab qualifier and the stored level, and sorts by date', () => {
+    const rows = [sample(2, { readings: { Cr: { value: 3, qualifier: null } }, levels: { Cr: 'watch' } }), sample(1, { readings: { Cr: { value: 1, qualifier: '<' } } })];
+    const [series] = shapeTrendSeries({ meter: 'km', samples: rows, measurands: ['Cr'], basis: 'ppm' });
+    expect(series!.points.map((p) => [p.bottleCode, p.qualifier, p.level])).toEqual([['B1', '<', 'steady'], ['B2', null, 'watch']]);
+  });
+});
+
+describe('findGradeChanges', () => {
+  test.each([
+    [['10W-40', '10W-40', '10w40'], []],
+    [['10W-40', '15W-50', '15W-50'], [{ from: '10W-40', to: '15W-50', odometer: 2000 }]],
+    [['10W-40', '15W-50', '10W-40'], [{ from: '10W-40', to: '15W-50', odometer: 2000 }, { from: '15W-50', to: '10W-40', odometer: 3000 }]],
+  ])('grades %j mark %j', (grades, expected) => {
+    const changes = grades.map((grade, i) => ({ changedOn: `2026-0${i + 1}-01`, odometerStored: 1000 * (i + 1), grade }));
+    expect(findGradeChanges(changes, 'km').map(({ from, to, odometer }) => ({ from, to, odometer }))).toEqual(expected);
+  });
+});
+
+describe('buildChartDatasets', () => {
+  const rows = [10, 10, 10, 16].map((v, i) => sample(i + 1, { readings: { Fe: { value: v, qualifier: null }, Al: { value: 2, qualifier: null } }, levels: i === 3 ? { Fe: 'act' } : {} }));
+  const series = shapeTrendSeries({ meter: 'km', samples: rows, measurands: ['Fe', 'Al'], basis: 'ppm' });
+  const response = { machine: { id: 'm', name: 'M', meter: 'km' as const }, basis: 'ppm' as const, x: 'odometer' as const, series, notes: [],
+    gradeChanges: [{ date: '2026-03-01', odometer: 3000, from: '10W-40', to: '15W-50' }] };
+
+  test.each([
+    [0, 'band-lower', 1, 6],
+    [1, 'band-upper', 1, 14],
+    [2, 'line', 4, 16],
+    [5, 'line', 4, 2],
+  ])('dataset %i is %s with %i points, last y %d', (i, kind, n, lastY) => {
+    const ds = buildChartDatasets(response, ['#000', '#111'])[i]!;
+    expect(ds.kind).toBe(kind);
+    expect(ds.data).toHaveLength(n);
+    expect(ds.data.at(-1)!.y).toBe(lastY);
+  });
+
+  test('line levels follow the points; colours repeat per series; x by date is epoch ms', () => {
+    const ds = buildChartDatasets(response, ['#000', '#111']);
+    expect(ds[2]!.levels).toEqual(['steady', 'steady', 'steady', 'act']);
+    expect(ds[3]!.colour).toBe('#111');
+    const byDate = buildChartDatasets({ ...response, x: 'date' }, ['#000']);
+    expect(byDate[2]!.data[0]!.x).toBe(Date.UTC(2026, 0, 1));
+    expect(buildGradeMarks(response)).toEqual([{ x: 3000, label: '10W-40 → 15W-50' }]);
+  });
+});
