@@ -47,11 +47,11 @@ function parseUnsigned(s: string, mark: DecimalMark): number | CellProblem {
 
 /** Read a numeric reading cell: "12", "12,5", "1.234,5", "<1", ">1000", "ND", "ND (<0.5)"; blank is missing. */
 export function parseReadingCell(cell: string, mark: DecimalMark): ReadingParse {
-  const s = tidy(cell);
   // Fast path first: almost every cell of a real report is a plain number.
-  if (mark === '.' ? PLAIN_POINT.test(s) : PLAIN_COMMA.test(s)) {
-    return { status: 'ok', value: Number(mark === '.' ? s : s.replace(',', '.')) };
+  if (mark === '.' ? PLAIN_POINT.test(cell) : PLAIN_COMMA.test(cell)) {
+    return { status: 'ok', value: Number(mark === '.' ? cell : cell.replace(',', '.')) };
   }
+  const s = tidy(cell);
   const lower = s.toLowerCase();
   if (MISSING_MARKERS.has(lower)) return { status: 'missing' };
   const nd = NOT_DETECTED.exec(lower);

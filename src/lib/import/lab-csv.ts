@@ -113,6 +113,9 @@ export interface LabCsvResult {
   unitsLine: number | null;
 }
 
+const PLAIN_POINT = /^\d+(?:\.\d+)?$/;
+const PLAIN_COMMA = /^\d+(?:,\d+)?$/;
+
 /** Longest bottle code accepted; lab kit numbers and Sumpwise codes are far shorter. */
 const MAX_BOTTLE_CODE_LENGTH = 64;
 
@@ -292,6 +295,9 @@ interface MeasurandPlan {
   convert: ((value: number) => number) | null;
   /** For a Saybolt column: also write KV100 converted from it. */
   alsoKv100: boolean;
+  bounds: Bounds;
+  /** Plain numbers need no qualifier, grouping or conversion handling: the hot path of a big file. */
+  fast: RegExp | null;
 }
 
 function planColumns(
@@ -374,6 +380,8 @@ function planColumns(
       read: code === 'GLYCOL' ? parseGlycolCell : readNumber,
       convert,
       alsoKv100,
+      bounds: boundsFor(code),
+      fast: code === 'GLYCOL' || convert !== null || alsoKv100 ? null : mark === '.' ? PLAIN_POINT : PLAIN_COMMA,
     });
   });
   return { columns, measurands };
@@ -628,8 +636,17 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       }
     }
 
+    let readingCount = 0;
     for (const plan of measurands) {
       const cell = cells[plan.index] ?? '';
+      if (plan.fast?.test(cell)) {
+        const plainValue = Number(decimalMark === '.' ? cell : cell.replace(',', '.'));
+        if (plainValue <= plan.bounds.max) {
+          row.readings[plan.code] = { value: plainValue };
+          readingCount += 1;
+          continue;
+        }
+      }
       const parsedCell = plan.read(cell);
       if (parsedCell.status === 'missing') continue;
       if (parsedCell.status === 'problem') {
@@ -638,7 +655,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       }
       // Bounds apply in the catalogue's unit, after conversion (500 ppm of water is 0.05 %).
       const value = plan.convert ? plan.convert(parsedCell.value) : parsedCell.value;
-      const bounds = boundsFor(plan.code);
+      const bounds = plan.bounds;
       if (value > bounds.max) {
         issues.push({
           severity: 'error',
@@ -651,6 +668,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       }
       const reading: LabReading = parsedCell.qualifier === undefined ? { value } : { value, qualifier: parsedCell.qualifier };
       row.readings[plan.code] = reading;
+      readingCount += 1;
       if (plan.alsoKv100) {
         if (parsedCell.belowDetection || parsedCell.value === 0) continue;
         const kv100 = convertSayboltToKinematic(parsedCell.value, 210);
@@ -676,7 +694,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
         issues.push({ severity: 'warning', code: 'formula-like-cell', row: line, column: column.header, message: problemMessage('formula-like-cell', raw, line, column.header, decimalMark).replace('; the lab should send a number here', '') });
       }
     }
-    if (measurands.length > 0 && Object.keys(row.readings).length === 0 && issues.length === issuesBeforeRow) {
+    if (measurands.length > 0 && readingCount === 0 && issues.length === issuesBeforeRow) {
       issues.push({ severity: 'warning', code: 'no-readings', row: line, column: null, message: `Line ${line} (bottle ${quoteCell(bottleRaw)}) has no readings at all: every measurand cell is blank.` });
     }
     rows.push(row);
