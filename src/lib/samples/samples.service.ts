@@ -127,8 +127,9 @@ export async function registerDrainCard(db: Kysely<Database>, actor: Actor, mach
     });
   } catch (e) {
     // Two sends of one card racing, or two riders typing the same code at once: the unique indexes decide.
+    // Whichever unique index fires first, a resend of the same card is recognised by its key.
     const constraint = (e as { constraint?: string }).constraint;
-    if (constraint === 'samples_client_key_key' && d.clientKey) {
+    if (constraint !== undefined && d.clientKey) {
       const again = await findSampleByClientKey(db, crewId, d.clientKey);
       if (again) return succeed({ sample: toSample(again), repeated: true });
     }

@@ -1,0 +1,77 @@
+import { afterAll, beforeEach, describe, expect, test } from 'vitest';
+import { openTestDb, truncateAll } from '../test-database';
+import { countRiderRows, makeActor, MACHINE_450 } from '../rider-fixtures';
+import { collectMachineForm } from '../../../src/lib/machines/machines';
+import { readFormObject } from '../../../src/lib/machines/service-result';
+import { createMachine } from '../../../src/lib/machines/machines.service';
+import { addWearMeasurement, createWearPart, getWearPartDetail } from '../../../src/lib/wear-parts/wear-parts.service';
+
+const db = openTestDb();
+afterAll(() => db.destroy());
+beforeEach(() => truncateAll(db));
+
+// Clutch friction plates: new 0.115–0.121 in, service limit 0.100 in — common practice for that engine,
+// no published source.
+const CLUTCH = { name: 'Clutch friction plates', pieceCount: '8', unit: 'in', newMin: '0.115', newMax: '0.121', serviceLimit: '0.100', fittedOdometer: '0' };
+
+async function setup() {
+  const rider = await makeActor(db);
+  const m = await createMachine(db, rider, collectMachineForm(readFormObject(new URLSearchParams(MACHINE_450))), 'C');
+  if (!m.ok) throw new Error('setup');
+  const part = await createWearPart(db, rider, m.value.id, CLUTCH);
+  if (!part.ok) throw new Error(JSON.stringify(part));
+  return { rider, machineId: m.value.id, partId: part.value.id };
+}
+
+describe('wear parts', () => {
+  test('stored in mm; a measurement at 17,000 mi forecasts the limit at 38,250 mi with a wide range', async () => {
+    const { rider, partId } = await setup();
+    const r = await addWearMeasurement(db, rider, partId, { measuredOn: '2025-05-01', odometer: '17000', unit: 'in', pieces: '0.111 0.110 0.112 0.111 0.110 0.111 0.112 0.111' });
+    if (!r.ok) throw new Error(JSON.stringify(r));
+    expect(r.value.summaryMm).toBeCloseTo(0.11 * 25.4, 9); // worst piece, NIST SP 811 B.8
+    const d = await getWearPartDetail(db, rider, partId);
+    if (!d.ok) throw new Error('detail');
+    expect(d.value.part.newMinMm).toBeCloseTo(2.921, 9);
+    const f = d.value.forecast;
+    if (f.status !== 'forecast') throw new Error(f.status);
+    expect(f.limitAt).toBeCloseTo(38_250, 3);
+    expect(f.sureness).toBe('wide');
+  });
+
+  test.each([
+    { name: 'above the new range', input: { summary: '0.130' }, field: 'summary', message: /above the new range/ },
+    { name: 'below zero', input: { summary: '-0.01' }, field: 'summary', message: /more than zero/ },
+    { name: 'a piece above the new range', input: { pieces: '0.110 0.140' }, field: 'pieces', message: /above the new range/ },
+    { name: 'more pieces than the part has', input: { pieces: '0.11 0.11 0.11 0.11 0.11 0.11 0.11 0.11 0.11' }, field: 'pieces', message: /has 8 piece/ },
+    { name: 'no value', input: {}, field: 'summary', message: /Enter the measurement/ },
+    { name: 'a negative odometer', input: { summary: '0.11', odometer: '-3' }, field: 'odometer', message: /cannot be negative/ },
+    { name: 'an absurd odometer', input: { summary: '0.11', odometer: '3000000' }, field: 'odometer', message: /further than any engine/ },
+  ])('a measurement $name is refused and writes nothing', async ({ input, field, message }) => {
+    const { rider, partId } = await setup();
+    const r = await addWearMeasurement(db, rider, partId, { measuredOn: '2025-05-01', odometer: '17000', unit: 'in', ...input });
+    expect(r.ok).toBe(false);
+    if (!r.ok) expect(r.fields[field]).toMatch(message);
+    expect((await countRiderRows(db)).wear_measurements).toBe(0);
+  });
+
+  test.each([
+    { name: 'limit above the new range', over: { serviceLimit: '0.125' }, field: 'serviceLimit' },
+    { name: 'new range upside down', over: { newMin: '0.121', newMax: '0.115' }, field: 'newMax' },
+    { name: 'no name', over: { name: '' }, field: 'name' },
+  ])('a part with $name is refused', async ({ over, field }) => {
+    const { rider, machineId } = await setup();
+    const r = await createWearPart(db, rider, machineId, { ...CLUTCH, ...over });
+    expect(r.ok).toBe(false);
+    if (!r.ok) expect(r.fields[field]).toBeTruthy();
+    expect((await countRiderRows(db)).wear_parts).toBe(1);
+  });
+
+  test('another crew’s wear part answers not found', async () => {
+    const { partId } = await setup();
+    const stranger = await makeActor(db, 'lead', 'Elsewhere');
+    const r = await addWearMeasurement(db, stranger, partId, { measuredOn: '2025-05-01', odometer: '1', unit: 'in', summary: '0.11' });
+    expect(r.ok ? 200 : r.status).toBe(404);
+    const d = await getWearPartDetail(db, stranger, partId);
+    expect(d.ok ? 200 : d.status).toBe(404);
+  });
+});
