@@ -1,0 +1,404 @@
+/** Every query of the lab import. Each function takes `db` or a transaction first. */
+import { sql, type Kysely, type Transaction } from 'kysely';
+import type { Database, Level, SampleState } from '../db/database';
+
+type Db = Kysely<Database> | Transaction<Database>;
+
+/** Column list of a lab file without its bytes. */
+const FILE_COLUMNS = [
+  'lab_files.id',
+  'lab_files.crew_id',
+  'lab_files.sha256',
+  'lab_files.file_name',
+  'lab_files.byte_size',
+  'lab_files.uploaded_by',
+  'lab_files.uploaded_at',
+] as const;
+
+/** The crew's lab file with this hash, with its import if it has one. */
+export function findLabFileByHash(db: Db, crewId: string, sha256: string) {
+  return db
+    .selectFrom('lab_files')
+    .leftJoin('lab_imports', 'lab_imports.lab_file_id', 'lab_files.id')
+    .select([...FILE_COLUMNS, 'lab_imports.id as import_id', 'lab_imports.confirmed_at'])
+    .where('lab_files.crew_id', '=', crewId)
+    .where('lab_files.sha256', '=', sha256)
+    .executeTakeFirst();
+}
+
+/** One lab file of the crew (never another crew's), with its import if any. */
+export function findLabFileOfCrew(db: Db, crewId: string, id: string) {
+  return db
+    .selectFrom('lab_files')
+    .leftJoin('lab_imports', 'lab_imports.lab_file_id', 'lab_files.id')
+    .select([...FILE_COLUMNS, 'lab_imports.id as import_id', 'lab_imports.confirmed_at'])
+    .where('lab_files.crew_id', '=', crewId)
+    .where('lab_files.id', '=', id)
+    .executeTakeFirst();
+}
+
+/** The raw bytes of a crew's lab file. */
+export async function findLabFileContent(db: Db, crewId: string, id: string): Promise<Buffer | undefined> {
+  const row = await db.selectFrom('lab_files').select('content').where('crew_id', '=', crewId).where('id', '=', id).executeTakeFirst();
+  return row?.content;
+}
+
+/** The crew's latest lab files, newest first, with their import state. */
+export function listLabFilesOfCrew(db: Db, crewId: string, limit = 20) {
+  return db
+    .selectFrom('lab_files')
+    .leftJoin('lab_imports', 'lab_imports.lab_file_id', 'lab_files.id')
+    .select([...FILE_COLUMNS, 'lab_imports.id as import_id', 'lab_imports.confirmed_at', 'lab_imports.samples_written', 'lab_imports.readings_written'])
+    .where('lab_files.crew_id', '=', crewId)
+    .orderBy('lab_files.uploaded_at', 'desc')
+    .limit(limit)
+    .execute();
+}
+
+/** Store an upload; on a hash the crew already has, insert nothing and return null. */
+export async function insertLabFile(
+  db: Db,
+  row: { crewId: string; sha256: string; fileName: string; content: Buffer; uploadedBy: string },
+): Promise<{ id: string } | null> {
+  const inserted = await db
+    .insertInto('lab_files')
+    .values({
+      crew_id: row.crewId,
+      sha256: row.sha256,
+      file_name: row.fileName,
+      byte_size: row.content.byteLength,
+      content: row.content,
+      uploaded_by: row.uploadedBy,
+    })
+    .onConflict((oc) => oc.columns(['crew_id', 'sha256']).doNothing())
+    .returning('id')
+    .executeTakeFirst();
+  return inserted ?? null;
+}
+
+/** The crew's lab profile for a header signature. */
+export function findProfileBySignature(db: Db, crewId: string, signature: string) {
+  return db
+    .selectFrom('lab_profiles')
+    .select(['id', 'name', 'header_signature', 'mapping'])
+    .where('crew_id', '=', crewId)
+    .where('header_signature', '=', signature)
+    .executeTakeFirst();
+}
+
+/** Save (or rename and remap) the crew's profile for a header signature. */
+export function upsertProfile(
+  db: Db,
+  row: { crewId: string; name: string; signature: string; mapping: Record<string, string>; createdBy: string },
+) {
+  return db
+    .insertInto('lab_profiles')
+    .values({
+      crew_id: row.crewId,
+      name: row.name,
+      header_signature: row.signature,
+      mapping: JSON.stringify(row.mapping),
+      created_by: row.createdBy,
+    })
+    .onConflict((oc) =>
+      oc.columns(['crew_id', 'header_signature']).doUpdateSet({ name: row.name, mapping: JSON.stringify(row.mapping) }),
+    )
+    .returning(['id', 'name'])
+    .executeTakeFirstOrThrow();
+}
+
+/** The crew's samples whose normalised bottle code is in `codes`, with their machine and reading count. */
+export async function findSamplesByCodes(db: Db, crewId: string, codes: readonly string[]) {
+  if (codes.length === 0) return [];
+  return db
+    .selectFrom('samples')
+    .innerJoin('machines', 'machines.id', 'samples.machine_id')
+    .select((eb) => [
+      'samples.id',
+      'samples.machine_id',
+      'samples.bottle_code',
+      'samples.bottle_code_norm',
+      'samples.issued_code',
+      'samples.drawn_on',
+      'samples.state',
+      'machines.name as machine_name',
+      eb.selectFrom('readings').select(sql<number>`count(*)::int`.as('n')).whereRef('readings.sample_id', '=', 'samples.id').as('reading_count'),
+    ])
+    .where('samples.crew_id', '=', crewId)
+    .where('machines.crew_id', '=', crewId)
+    .where('samples.bottle_code_norm', '=', sql<string>`any(${sql.val(codes)}::text[])`)
+    .execute();
+}
+
+/** The crew's machines that are not archived, for the "create the sample on" choice. */
+export function findMachinesForImport(db: Db, crewId: string) {
+  return db
+    .selectFrom('machines')
+    .select(['id', 'name'])
+    .where('crew_id', '=', crewId)
+    .where('archived_at', 'is', null)
+    .orderBy('name')
+    .execute();
+}
+
+/** The newest odometer on file for a machine (samples and oil changes), 0 when there is none. */
+export async function findLatestOdometer(db: Db, machineId: string): Promise<number> {
+  const row = await db
+    .selectFrom('machines')
+    .select((eb) => [
+      eb.selectFrom('samples').select(sql<number>`max(odometer)`.as('m')).where('samples.machine_id', '=', machineId).as('sample_odo'),
+      eb.selectFrom('oil_changes').select(sql<number>`max(odometer)`.as('m')).where('oil_changes.machine_id', '=', machineId).as('change_odo'),
+    ])
+    .where('id', '=', machineId)
+    .executeTakeFirst();
+  return Math.max(row?.sample_odo ?? 0, row?.change_odo ?? 0);
+}
+
+/** Create a sample for a lab row whose bottle was never registered on a drain card. */
+export function insertSampleForRow(
+  db: Db,
+  row: { crewId: string; machineId: string; bottleCode: string; bottleCodeNorm: string; drawnOn: string; odometer: number; createdBy: string },
+) {
+  return db
+    .insertInto('samples')
+    .values({
+      crew_id: row.crewId,
+      machine_id: row.machineId,
+      bottle_code: row.bottleCode,
+      bottle_code_norm: row.bottleCodeNorm,
+      drawn_on: row.drawnOn,
+      odometer: row.odometer,
+      distance_on_oil: null,
+      // Without the odometer of its oil change, the sample cannot join the baseline honestly.
+      in_baseline: false,
+      tracking_note: 'Created from a lab import: bottle not registered on a drain card.',
+      client_key: null,
+      created_by: row.createdBy,
+      sae_grade: null,
+    })
+    .returning('id')
+    .executeTakeFirstOrThrow();
+}
+
+export function insertLabImport(
+  db: Db,
+  row: { crewId: string; labFileId: string; confirmedBy: string; samplesWritten: number; readingsWritten: number },
+) {
+  return db
+    .insertInto('lab_imports')
+    .values({
+      crew_id: row.crewId,
+      lab_file_id: row.labFileId,
+      confirmed_by: row.confirmedBy,
+      samples_written: row.samplesWritten,
+      readings_written: row.readingsWritten,
+    })
+    .returning('id')
+    .executeTakeFirstOrThrow();
+}
+
+/** Copy the current readings of these samples into reading_history, then delete them. */
+export async function moveReadingsToHistory(db: Db, sampleIds: readonly string[], importId: string): Promise<number> {
+  if (sampleIds.length === 0) return 0;
+  const moved = await sql<{ n: number }>`
+    with gone as (
+      delete from readings where sample_id = any(${sql.val(sampleIds)}::uuid[])
+      returning sample_id, measurand, value, qualifier
+    ), kept as (
+      insert into reading_history (sample_id, measurand, value, qualifier, replaced_by_import)
+      select sample_id, measurand, value, qualifier, ${importId}::uuid from gone
+      returning 1
+    )
+    select count(*)::int as n from kept`.execute(db);
+  return moved.rows[0]?.n ?? 0;
+}
+
+export interface ReadingInsert {
+  sampleId: string;
+  measurand: string;
+  value: number;
+  qualifier: '<' | '>' | null;
+}
+
+/** Bulk insert of readings as column arrays (one statement per 50,000 rows, whatever the file's width). */
+export async function insertReadings(db: Db, rows: readonly ReadingInsert[], importId: string): Promise<number> {
+  const CHUNK = 50_000;
+  for (let from = 0; from < rows.length; from += CHUNK) {
+    const part = rows.slice(from, from + CHUNK);
+    await sql`
+      insert into readings (sample_id, measurand, value, qualifier, lab_import_id)
+      select s, m, v, q, ${importId}::uuid
+      from unnest(${sql.val(part.map((r) => r.sampleId))}::uuid[], ${sql.val(part.map((r) => r.measurand))}::text[],
+                  ${sql.val(part.map((r) => r.value))}::float8[], ${sql.val(part.map((r) => r.qualifier))}::text[]) as t(s, m, v, q)`.execute(db);
+  }
+  return rows.length;
+}
+
+/** Move samples to a state, with one sample_events row each. */
+export async function updateSampleStates(db: Db, sampleIds: readonly string[], state: SampleState, note: string, actorUserId: string): Promise<void> {
+  if (sampleIds.length === 0) return;
+  await db.updateTable('samples').set({ state }).where('id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`).execute();
+  await sql`
+    insert into sample_events (sample_id, state, note, actor_user_id)
+    select s, ${state}, ${note}, ${actorUserId} from unnest(${sql.val(sampleIds)}::uuid[]) as t(s)`.execute(db);
+}
+
+/** A machine's profile for the analysis engine, scoped to the crew through the sample. */
+export function findMachineOfSample(db: Db, sampleId: string) {
+  return db
+    .selectFrom('samples')
+    .innerJoin('machines', 'machines.id', 'samples.machine_id')
+    .select([
+      'machines.id',
+      'machines.crew_id',
+      'machines.cooling',
+      'machines.meter',
+      'machines.oil_capacity_l',
+      'machines.max_interval_distance',
+      'machines.max_interval_days',
+    ])
+    .where('samples.id', '=', sampleId)
+    .executeTakeFirst();
+}
+
+export function findMachineProfile(db: Db, machineId: string) {
+  return db
+    .selectFrom('machines')
+    .select(['id', 'crew_id', 'cooling', 'meter', 'oil_capacity_l', 'max_interval_distance', 'max_interval_days'])
+    .where('id', '=', machineId)
+    .executeTakeFirst();
+}
+
+/** Every sample of a machine that has readings, oldest first, with its oil change's oil volume. */
+export function findSamplesWithReadings(db: Db, machineId: string) {
+  return db
+    .selectFrom('samples')
+    .leftJoin('oil_changes', 'oil_changes.id', 'samples.oil_change_id')
+    .select([
+      'samples.id',
+      'samples.drawn_on',
+      'samples.odometer',
+      'samples.distance_on_oil',
+      'samples.top_up_l',
+      'samples.sae_grade',
+      'samples.oil_product',
+      'samples.in_baseline',
+      'samples.created_at',
+      'oil_changes.volume_l',
+    ])
+    .where('samples.machine_id', '=', machineId)
+    .where((eb) => eb.exists(eb.selectFrom('readings').select('readings.sample_id').whereRef('readings.sample_id', '=', 'samples.id')))
+    .orderBy('samples.drawn_on')
+    .orderBy('samples.odometer')
+    .orderBy('samples.created_at')
+    .execute();
+}
+
+/** The readings of a set of samples. */
+export async function findReadingsOfSamples(db: Db, sampleIds: readonly string[]) {
+  if (sampleIds.length === 0) return [];
+  return db
+    .selectFrom('readings')
+    .select(['sample_id', 'measurand', 'value', 'qualifier'])
+    .where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`)
+    .execute();
+}
+
+/** The crew's own fixed limits (act level), by measurand. */
+export function findCrewLimits(db: Db, crewId: string) {
+  return db.selectFrom('crew_limits').select(['measurand', 'act_at']).where('crew_id', '=', crewId).execute();
+}
+
+export interface FindingInsert {
+  sampleId: string;
+  measurand: string | null;
+  level: Level;
+  ruleId: string;
+  numbers: Record<string, number>;
+  sentence: string;
+}
+
+/** Replace the findings of these samples with new ones. */
+export async function replaceFindings(db: Db, sampleIds: readonly string[], rows: readonly FindingInsert[]): Promise<void> {
+  if (sampleIds.length === 0) return;
+  await db.deleteFrom('findings').where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`).execute();
+  const CHUNK = 2_000;
+  for (let from = 0; from < rows.length; from += CHUNK) {
+    await db
+      .insertInto('findings')
+      .values(
+        rows.slice(from, from + CHUNK).map((f) => ({
+          sample_id: f.sampleId,
+          measurand: f.measurand,
+          level: f.level,
+          rule_id: f.ruleId,
+          numbers: JSON.stringify(f.numbers),
+          sentence: f.sentence,
+        })),
+      )
+      .execute();
+  }
+}
+
+export interface IntervalCallInsert {
+  sampleId: string;
+  machineId: string;
+  call: 'shorten' | 'hold' | 'stretch';
+  nextInterval: number | null;
+  nextSampleOdometer: number | null;
+  nextSampleOn: string | null;
+  reasons: string[];
+}
+
+/** Replace the engine's interval calls of these samples (a mechanic's confirm or override stays). */
+export async function replaceEngineCalls(db: Db, sampleIds: readonly string[], rows: readonly IntervalCallInsert[]): Promise<void> {
+  if (sampleIds.length === 0) return;
+  await db
+    .deleteFrom('interval_calls')
+    .where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`)
+    .where('source', '=', 'engine')
+    .execute();
+  const CHUNK = 2_000;
+  for (let from = 0; from < rows.length; from += CHUNK) {
+    await db
+      .insertInto('interval_calls')
+      .values(
+        rows.slice(from, from + CHUNK).map((c) => ({
+          sample_id: c.sampleId,
+          machine_id: c.machineId,
+          call: c.call,
+          next_interval: c.nextInterval,
+          next_sample_odometer: c.nextSampleOdometer,
+          next_sample_on: c.nextSampleOn,
+          reasons: JSON.stringify(c.reasons),
+          source: 'engine' as const,
+          made_by: null,
+        })),
+      )
+      .execute();
+  }
+}
+
+/** Readings, findings and the latest interval call of one of the crew's samples (for the sample page). */
+export async function findSampleResults(db: Db, crewId: string, sampleId: string) {
+  const sample = await db.selectFrom('samples').select(['id', 'state']).where('crew_id', '=', crewId).where('id', '=', sampleId).executeTakeFirst();
+  if (!sample) return undefined;
+  const [readings, findings, call, history] = await Promise.all([
+    db.selectFrom('readings').select(['measurand', 'value', 'qualifier']).where('sample_id', '=', sampleId).execute(),
+    db.selectFrom('findings').select(['measurand', 'level', 'rule_id', 'sentence']).where('sample_id', '=', sampleId).execute(),
+    db
+      .selectFrom('interval_calls')
+      .select(['call', 'next_interval', 'next_sample_odometer', 'next_sample_on', 'reasons', 'source', 'note', 'created_at'])
+      .where('sample_id', '=', sampleId)
+      .orderBy('created_at', 'desc')
+      .limit(1)
+      .executeTakeFirst(),
+    db
+      .selectFrom('reading_history')
+      .select(['measurand', 'value', 'qualifier', 'replaced_at'])
+      .where('sample_id', '=', sampleId)
+      .orderBy('replaced_at', 'desc')
+      .execute(),
+  ]);
+  return { sample, readings, findings, call, history };
+}

@@ -1,0 +1,526 @@
+/**
+ * Lab import rules: keep the upload, build the preview (profile, matching, decisions), save lab profiles,
+ * and confirm: one transaction that writes readings, replaced values, sample states, findings and the
+ * engine's interval call, or nothing at all.
+ */
+import { createHash } from 'node:crypto';
+import { sql, type Kysely, type Transaction } from 'kysely';
+import { analyseSample, makeIntervalCall, type FixedLimits, type MachineProfile, type SamplePoint } from '../analysis';
+import { isMeasurandCode, type MeasurandCode } from '../analysis/measurands';
+import type { Database } from '../db/database';
+import {
+  decodeLabFile,
+  MAX_LAB_FILE_BYTES,
+  parseLabCsv,
+  type LabCsvColumn,
+  type LabCsvIssue,
+  type LabCsvMappingTarget,
+} from '../import/lab-csv';
+import { CODE_ALPHABET, explainIssuedCode, hasValidCheckSymbol, ISSUED_DATA_LENGTH, normaliseBottleCode } from '../samples/bottle-code';
+import {
+  computeHeaderSignature,
+  type ConfirmHooks,
+  type ImportPreview,
+  type ImportSummary,
+  type LabFile,
+  type LabImportFailure,
+  type LabImportResult,
+  type LabProfile,
+  type PreviewRow,
+  type RowDecision,
+  type RowMatch,
+} from './lab-import';
+import * as repo from './lab-import.repository';
+
+type Db = Kysely<Database> | Transaction<Database>;
+
+function refuse(status: LabImportFailure['status'], code: string, message: string, fields?: Record<string, string>): LabImportFailure {
+  return fields ? { ok: false, status, code, message, fields } : { ok: false, status, code, message };
+}
+
+/** A file name safe to show and store: the last path segment, printable, at most 200 characters. */
+export function cleanFileName(name: string): string {
+  const base = name.split(/[\\/]/).pop() ?? '';
+  // eslint-disable-next-line no-control-regex
+  const printable = base.replace(/[\u0000-\u001f\u007f]/g, '').trim();
+  return (printable || 'lab-report.csv').slice(0, 200);
+}
+
+/** Hex SHA-256 of the bytes: the identity of an upload within a crew. */
+export function computeFileHash(bytes: Uint8Array): string {
+  return createHash('sha256').update(bytes).digest('hex');
+}
+
+export interface StoredLabFile {
+  labFileId: string;
+  /** 'stored' for a new file; 'already-uploaded' when the crew uploaded the same bytes and has not confirmed them yet. */
+  status: 'stored' | 'already-uploaded';
+}
+
+/**
+ * Keep an uploaded lab file (bytes, SHA-256, uploader, crew, time) after checking its size and content.
+ * The same bytes again write nothing: an imported file is refused as already imported, a pending one is reused.
+ */
+export async function storeLabFile(
+  db: Db,
+  input: { crewId: string; userId: string; fileName: string; bytes: Uint8Array },
+): Promise<LabImportResult<StoredLabFile>> {
+  if (input.bytes.byteLength > MAX_LAB_FILE_BYTES) {
+    const mib = (input.bytes.byteLength / (1024 * 1024)).toFixed(1);
+    return refuse(413, 'file_too_large', `"${cleanFileName(input.fileName)}" is ${mib} MiB; lab files up to 5 MiB are accepted. Split the report into smaller files.`);
+  }
+  const decoded = decodeLabFile(input.bytes);
+  if ('error' in decoded) {
+    const status = decoded.error.code === 'empty-file' ? 400 : 415;
+    return refuse(status, decoded.error.code.replace(/-/g, '_'), `"${cleanFileName(input.fileName)}": ${decoded.error.message}`);
+  }
+  const sha256 = computeFileHash(input.bytes);
+  const existing = await repo.findLabFileByHash(db, input.crewId, sha256);
+  if (existing) return answerExisting(existing);
+  const inserted = await repo.insertLabFile(db, {
+    crewId: input.crewId,
+    sha256,
+    fileName: cleanFileName(input.fileName),
+    content: Buffer.from(input.bytes),
+    uploadedBy: input.userId,
+  });
+  if (inserted) return { ok: true, value: { labFileId: inserted.id, status: 'stored' } };
+  // Two uploads of the same bytes at once: the other one won; answer as if it came first.
+  const winner = await repo.findLabFileByHash(db, input.crewId, sha256);
+  if (!winner) return refuse(409, 'upload_conflict', 'The same file was uploaded twice at once; try again.');
+  return answerExisting(winner);
+}
+
+function answerExisting(file: { id: string; file_name: string; import_id: string | null; confirmed_at: Date | null }): LabImportResult<StoredLabFile> {
+  if (file.import_id) {
+    const on = file.confirmed_at ? ` on ${file.confirmed_at.toISOString().slice(0, 10)}` : '';
+    return {
+      ...refuse(409, 'already_imported', `This file was already imported${on} (as "${file.file_name}"); nothing new was written.`),
+      fields: { labFileId: file.id },
+    };
+  }
+  return { ok: true, value: { labFileId: file.id, status: 'already-uploaded' } };
+}
+
+function toLabFile(row: NonNullable<Awaited<ReturnType<typeof repo.findLabFileOfCrew>>>): LabFile {
+  return {
+    id: row.id,
+    crewId: row.crew_id,
+    sha256: row.sha256,
+    fileName: row.file_name,
+    byteSize: row.byte_size,
+    uploadedBy: row.uploaded_by,
+    uploadedAt: row.uploaded_at,
+    importId: row.import_id,
+    importedAt: row.confirmed_at,
+  };
+}
+
+/** The crew's recent lab files with their import state, for the lab import page. */
+export async function listLabFiles(db: Db, crewId: string) {
+  const rows = await repo.listLabFilesOfCrew(db, crewId);
+  return rows.map((r) => ({ ...toLabFile(r), samplesWritten: r.samples_written, readingsWritten: r.readings_written }));
+}
+
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+/** The headers of a file's header row, read from its first lines only (a profile is looked up before the full read). */
+function readHeaders(text: string): string[] {
+  let end = 0;
+  for (let n = 0; n < 40 && end !== -1; n += 1) end = text.indexOf('\n', end + 1);
+  const head = end === -1 ? text : text.slice(0, end);
+  return parseLabCsv(head).columns.map((c) => c.header);
+}
+
+/** What a column means now: the target its select starts on in the mapping form. */
+export function findColumnTarget(column: LabCsvColumn): LabCsvMappingTarget {
+  if (column.kind === 'bottle' || column.kind === 'sampled' || column.kind === 'reported') return column.kind;
+  if (column.kind === 'measurand' && column.code) return column.conversion === 'SUS210→KV100' ? 'SUS210' : column.code;
+  return 'ignore';
+}
+
+function looksIssued(norm: string): boolean {
+  return norm.length === ISSUED_DATA_LENGTH + 1 && [...norm].every((ch) => CODE_ALPHABET.includes(ch));
+}
+
+function describeDecision(match: RowMatch, decision: RowDecision | null, errors: number, machineIds: ReadonlySet<string>, bottle: string, at: string): string | null {
+  if (decision?.action === 'skip') return null;
+  if (errors > 0) return `${at}: fix the ${errors === 1 ? 'error' : `${errors} errors`} in this row in the lab file and upload it again, or skip the row.`;
+  switch (match.kind) {
+    case 'matched':
+      if (decision === null || decision.action === 'write' || decision.action === 'replace') return null;
+      return `${at}: bottle "${bottle}" is already registered on ${match.machineName}; write it there or skip the row.`;
+    case 'has-results':
+      if (decision?.action === 'replace') return null;
+      return `${at}: the sample with bottle "${bottle}" (${match.machineName}, ${match.drawnOn}) already has ${match.existing} results. Choose "replace" to write these and keep the old values in its history, or skip the row.`;
+    case 'unknown':
+      if (decision?.action === 'create') {
+        return machineIds.has(decision.machineId) ? null : `${at}: the machine chosen for bottle "${bottle}" is not one of this crew's machines; pick another or skip the row.`;
+      }
+      return `${at}: no sample of this crew has bottle code "${bottle}". Create the sample on one of your machines, or skip the row.`;
+  }
+}
+
+/** Read a crew's stored file with its profile, match every row to the crew's samples, and apply the decisions. */
+export async function previewLabImport(
+  db: Db,
+  input: { crewId: string; labFileId: string; decisions?: Record<string, RowDecision> },
+): Promise<LabImportResult<ImportPreview>> {
+  if (!UUID.test(input.labFileId)) return refuse(404, 'not_found', 'No such lab file in this crew.');
+  const fileRow = await repo.findLabFileOfCrew(db, input.crewId, input.labFileId);
+  if (!fileRow) return refuse(404, 'not_found', 'No such lab file in this crew.');
+  const content = await repo.findLabFileContent(db, input.crewId, input.labFileId);
+  if (!content) return refuse(404, 'not_found', 'No such lab file in this crew.');
+  const decoded = decodeLabFile(new Uint8Array(content.buffer, content.byteOffset, content.byteLength));
+  if ('error' in decoded) return refuse(415, decoded.error.code.replace(/-/g, '_'), decoded.error.message);
+
+  const signature = computeHeaderSignature(readHeaders(decoded.text));
+  const profileRow = await repo.findProfileBySignature(db, input.crewId, signature);
+  const profile: LabProfile | null = profileRow
+    ? { id: profileRow.id, name: profileRow.name, headerSignature: profileRow.header_signature, mapping: profileRow.mapping as Record<string, LabCsvMappingTarget> }
+    : null;
+  const parsed = parseLabCsv(decoded.text, profile ? { mapping: profile.mapping } : {});
+  const bottleHeader = parsed.columns.find((c) => c.kind === 'bottle')?.header ?? 'Bottle';
+
+  const norms = parsed.rows.map((r) => normaliseBottleCode(r.bottle.raw));
+  const [samples, machines] = await Promise.all([
+    repo.findSamplesByCodes(db, input.crewId, [...new Set(norms)]),
+    repo.findMachinesForImport(db, input.crewId),
+  ]);
+  const byCode = new Map(samples.map((s) => [s.bottle_code_norm, s]));
+  const machineIds = new Set(machines.map((m) => m.id));
+
+  const rowIssues = new Map<number, LabCsvIssue[]>();
+  const rowLines = new Set(parsed.rows.map((r) => r.line));
+  const fileIssues: LabCsvIssue[] = [];
+  for (const issue of parsed.errors) {
+    if (issue.row !== null && rowLines.has(issue.row) && issue.code !== 'unknown-column' && issue.code !== 'lines-skipped') {
+      const list = rowIssues.get(issue.row) ?? [];
+      list.push(issue);
+      rowIssues.set(issue.row, list);
+    } else {
+      fileIssues.push(issue);
+    }
+  }
+
+  const firstLineOfCode = new Map<string, number>();
+  const rows: PreviewRow[] = parsed.rows.map((r, i) => {
+    const norm = norms[i] ?? r.bottle.normalised;
+    const issues = rowIssues.get(r.line) ?? [];
+    const at = `Line ${r.line}, column "${bottleHeader}"`;
+    // The samples' normal form also drops _ . / — two cells the reader saw as different can be one bottle.
+    const earlier = firstLineOfCode.get(norm);
+    if (earlier === undefined) firstLineOfCode.set(norm, r.line);
+    else if (!issues.some((x) => x.code === 'duplicate-bottle-code')) {
+      issues.push({ severity: 'error', code: 'duplicate-bottle-code', row: r.line, column: bottleHeader, message: `${at}: bottle code "${r.bottle.raw}" is the same bottle as line ${earlier}. One bottle gets one result; remove the repeated row or correct its code.` });
+    }
+    const sample = byCode.get(norm);
+    let match: RowMatch;
+    if (sample && sample.issued_code && !hasValidCheckSymbol(norm)) {
+      match = { kind: 'unknown', codeProblem: explainIssuedCode(norm) };
+    } else if (sample) {
+      const base = { sampleId: sample.id, machineId: sample.machine_id, machineName: sample.machine_name, drawnOn: sample.drawn_on };
+      match = (sample.reading_count ?? 0) > 0 ? { kind: 'has-results', ...base, existing: sample.reading_count ?? 0 } : { kind: 'matched', ...base };
+    } else {
+      match = { kind: 'unknown', codeProblem: looksIssued(norm) ? explainIssuedCode(norm) : null };
+    }
+    const warnings = issues.filter((x) => x.severity === 'warning');
+    if (match.kind === 'unknown' && match.codeProblem) {
+      warnings.push({ severity: 'warning', code: 'missing-bottle-code', row: r.line, column: bottleHeader, message: `${at}: "${r.bottle.raw}" looks like a Sumpwise bottle code, but ${match.codeProblem.charAt(0).toLowerCase()}${match.codeProblem.slice(1)}` });
+    }
+    const errors = issues.filter((x) => x.severity === 'error');
+    const chosen = input.decisions?.[String(r.line)] ?? null;
+    const decision: RowDecision | null = chosen ?? (match.kind === 'matched' && errors.length === 0 ? { action: 'write' } : null);
+    return {
+      line: r.line,
+      bottle: r.bottle.raw,
+      bottleNorm: norm,
+      sampled: r.sampled ?? null,
+      reported: r.reported ?? null,
+      readings: r.readings,
+      match,
+      errors,
+      warnings,
+      decision,
+      needs: describeDecision(match, decision, errors.length, machineIds, r.bottle.raw, at),
+    };
+  });
+
+  const blockingFileIssues = fileIssues.filter((x) => x.severity === 'error');
+  let ready = 0;
+  let skipped = 0;
+  let readings = 0;
+  for (const row of rows) {
+    if (row.decision?.action === 'skip') skipped += 1;
+    else if (row.needs === null) {
+      ready += 1;
+      readings += Object.keys(row.readings).length;
+    }
+  }
+  const blocked = rows.length - ready - skipped;
+  return {
+    ok: true,
+    value: {
+      file: toLabFile(fileRow),
+      columns: parsed.columns,
+      headers: parsed.columns.map((c) => c.header),
+      headerSignature: signature,
+      profile,
+      fileIssues,
+      rows,
+      machines,
+      counts: { rows: rows.length, ready, skipped, blocked, readings },
+      canConfirm: fileRow.import_id === null && blockingFileIssues.length === 0 && blocked === 0 && ready > 0,
+    },
+  };
+}
+
+/** Save the crew's lab profile for a file's header (name + one target per header) and return it. */
+export async function saveLabProfile(
+  db: Db,
+  input: { crewId: string; userId: string; labFileId: string; name: string; targets: Record<number, LabCsvMappingTarget> },
+): Promise<LabImportResult<{ profileId: string; name: string }>> {
+  const preview = await previewLabImport(db, { crewId: input.crewId, labFileId: input.labFileId });
+  if (!preview.ok) return preview;
+  const mapping: Record<string, LabCsvMappingTarget> = {};
+  const fields: Record<string, string> = {};
+  const seen = new Map<string, string>();
+  preview.value.columns.forEach((column, index) => {
+    const target = input.targets[index] ?? findColumnTarget(column);
+    mapping[column.header] = target;
+    if (target === 'ignore') return;
+    const other = seen.get(target);
+    if (other !== undefined) fields[`col.${index}`] = `Column "${column.header}" and column "${other}" are both mapped to ${target}; map one of them to "ignore".`;
+    else seen.set(target, column.header);
+  });
+  if (!Object.values(mapping).includes('bottle')) fields._ = 'Map one column to "Bottle code", or no row can be matched to a sample.';
+  if (Object.keys(fields).length > 0) return refuse(400, 'invalid_mapping', 'The lab profile needs attention.', fields);
+  const saved = await repo.upsertProfile(db, {
+    crewId: input.crewId,
+    name: input.name,
+    signature: preview.value.headerSignature,
+    mapping,
+    createdBy: input.userId,
+  });
+  return { ok: true, value: { profileId: saved.id, name: saved.name } };
+}
+
+/**
+ * Write a previewed file in one transaction: the import record, samples created for unknown bottles,
+ * earlier results moved to reading history, the readings, "results in" with a sample event, and the
+ * findings and engine interval call of every sample whose history changed. Refused while any row is in error
+ * or undecided; the crew always comes from the caller's session, never from the request.
+ */
+export async function confirmLabImport(
+  db: Kysely<Database>,
+  input: { crewId: string; userId: string; labFileId: string; decisions: Record<string, RowDecision> },
+  hooks: ConfirmHooks = {},
+): Promise<LabImportResult<ImportSummary>> {
+  try {
+    return await db.transaction().execute(async (trx) => {
+      if (UUID.test(input.labFileId)) {
+        // One confirm at a time per file: a second one waits here and then sees the first one's import.
+        await sql`select id from lab_files where id = ${input.labFileId}::uuid and crew_id = ${input.crewId}::uuid for update`.execute(trx);
+      }
+      const previewed = await previewLabImport(trx, input);
+      if (!previewed.ok) return previewed;
+      const preview = previewed.value;
+      if (preview.file.importId) return refuse(409, 'already_imported', 'This file was already imported; nothing new was written.');
+      if (!preview.canConfirm) return refuseUnready(preview);
+
+      const writes = preview.rows.filter((r) => r.decision !== null && r.decision.action !== 'skip');
+      const readingsCount = writes.reduce((n, r) => n + Object.keys(r.readings).length, 0);
+      const imported = await repo.insertLabImport(trx, {
+        crewId: input.crewId,
+        labFileId: preview.file.id,
+        confirmedBy: input.userId,
+        samplesWritten: writes.length,
+        readingsWritten: readingsCount,
+      });
+
+      const sampleOf = new Map<number, { sampleId: string; machineId: string }>();
+      let created = 0;
+      const odometers = new Map<string, number>();
+      for (const row of writes) {
+        if (row.match.kind !== 'unknown') {
+          sampleOf.set(row.line, { sampleId: row.match.sampleId, machineId: row.match.machineId });
+          continue;
+        }
+        if (row.decision?.action !== 'create') continue;
+        const machineId = row.decision.machineId;
+        const odometer = odometers.get(machineId) ?? (await repo.findLatestOdometer(trx, machineId));
+        odometers.set(machineId, odometer);
+        const sample = await repo.insertSampleForRow(trx, {
+          crewId: input.crewId,
+          machineId,
+          bottleCode: row.bottle,
+          bottleCodeNorm: row.bottleNorm,
+          drawnOn: row.sampled ?? row.reported ?? new Date().toISOString().slice(0, 10),
+          odometer,
+          createdBy: input.userId,
+        });
+        sampleOf.set(row.line, { sampleId: sample.id, machineId });
+        created += 1;
+      }
+
+      const replacedIds = writes.filter((r) => r.decision?.action === 'replace').map((r) => sampleOf.get(r.line)?.sampleId).filter((id): id is string => id !== undefined);
+      await repo.moveReadingsToHistory(trx, replacedIds, imported.id);
+
+      const readingRows: repo.ReadingInsert[] = [];
+      for (const row of writes) {
+        const target = sampleOf.get(row.line);
+        if (!target) continue;
+        for (const [measurand, reading] of Object.entries(row.readings)) {
+          if (!reading) continue;
+          readingRows.push({ sampleId: target.sampleId, measurand, value: reading.value, qualifier: reading.qualifier ?? null });
+        }
+      }
+      await repo.insertReadings(trx, readingRows, imported.id);
+      await hooks.afterReadings?.(trx);
+
+      const sampleIds = [...new Set([...sampleOf.values()].map((s) => s.sampleId))];
+      await repo.updateSampleStates(trx, sampleIds, 'results_in', `Lab results imported from "${preview.file.fileName}".`, input.userId);
+
+      const byMachine = new Map<string, Set<string>>();
+      for (const { sampleId, machineId } of sampleOf.values()) {
+        const set = byMachine.get(machineId) ?? new Set<string>();
+        set.add(sampleId);
+        byMachine.set(machineId, set);
+      }
+      let findingsWritten = 0;
+      for (const [machineId, changed] of byMachine) findingsWritten += await recomputeMachineFindings(trx, machineId, changed);
+
+      return {
+        ok: true as const,
+        value: {
+          importId: imported.id,
+          samplesWritten: writes.length,
+          readingsWritten: readingsCount,
+          samplesCreated: created,
+          samplesReplaced: replacedIds.length,
+          findingsWritten,
+        },
+      };
+    });
+  } catch (error) {
+    // The unique lab_file_id of lab_imports: a confirm that raced another one for the same file.
+    if (error instanceof Error && /lab_imports_lab_file_id_key/.test(error.message)) {
+      return refuse(409, 'already_imported', 'This file was already imported; nothing new was written.');
+    }
+    throw error;
+  }
+}
+
+function refuseUnready(preview: ImportPreview): LabImportFailure {
+  const fields: Record<string, string> = {};
+  for (const issue of preview.fileIssues) if (issue.severity === 'error') fields[issue.row === null ? 'file' : `line.${issue.row}`] ??= issue.message;
+  for (const row of preview.rows) {
+    if (row.needs === null) continue;
+    const firstError = row.errors[0];
+    fields[`row.${row.line}`] = row.decision?.action !== 'skip' && firstError ? firstError.message : row.needs;
+  }
+  const n = Object.keys(fields).length;
+  if (n === 0) return refuse(422, 'nothing_to_import', 'Every row is skipped, so there is nothing to write.');
+  return refuse(422, 'rows_need_attention', `Nothing was written: ${n} ${n === 1 ? 'problem needs' : 'problems need'} attention first.`, fields);
+}
+
+type SampleWithReadings = Awaited<ReturnType<typeof repo.findSamplesWithReadings>>[number];
+
+function toSamplePoint(s: SampleWithReadings, readings: SamplePoint['readings'], oilCapacity: number | null): SamplePoint {
+  return {
+    id: s.id,
+    takenAt: s.drawn_on,
+    odometer: s.odometer,
+    // Unknown distance stays NaN: the engine skips wear rates and intervals it cannot compute.
+    distanceOnOil: s.distance_on_oil ?? Number.NaN,
+    topUpVolume: s.top_up_l,
+    oilVolume: s.volume_l ?? oilCapacity ?? undefined,
+    grade: s.sae_grade ?? undefined,
+    oilProduct: s.oil_product || undefined,
+    readings,
+  };
+}
+
+const LIMIT_KEYS: Partial<Record<string, keyof FixedLimits>> = {
+  Fe: 'Fe', Cr: 'Cr', Cu: 'Cu', Sn: 'Sn', Al: 'Al', Pb: 'Pb', B: 'B', Si: 'Si', FUEL: 'fuelPercent', WATER: 'waterPercent',
+};
+
+/**
+ * Recompute findings and the engine's interval call for `changed` samples of one machine, each against the
+ * machine's earlier accepted samples (in baseline, with readings), plus every later sample whose history
+ * they are part of. Returns the number of findings stored.
+ */
+export async function recomputeMachineFindings(trx: Db, machineId: string, changed: ReadonlySet<string>): Promise<number> {
+  const machineRow = await repo.findMachineProfile(trx, machineId);
+  if (!machineRow) return 0;
+  const [samples, limitRows] = await Promise.all([repo.findSamplesWithReadings(trx, machineId), repo.findCrewLimits(trx, machineRow.crew_id)]);
+  const readingRows = await repo.findReadingsOfSamples(trx, samples.map((s) => s.id));
+  const readingsBySample = new Map<string, SamplePoint['readings']>();
+  for (const r of readingRows) {
+    if (!isMeasurandCode(r.measurand)) continue;
+    const map = readingsBySample.get(r.sample_id) ?? {};
+    map[r.measurand as MeasurandCode] = r.qualifier === '<' || r.qualifier === '>' ? { value: r.value, qualifier: r.qualifier } : { value: r.value };
+    readingsBySample.set(r.sample_id, map);
+  }
+  const limits: Partial<FixedLimits> = {};
+  for (const l of limitRows) {
+    const key = LIMIT_KEYS[l.measurand];
+    if (key && l.act_at !== null) limits[key] = l.act_at;
+  }
+  const machine: MachineProfile = {
+    cooling: machineRow.cooling,
+    distanceUnit: machineRow.meter,
+    maxIntervalDistance: machineRow.max_interval_distance ?? undefined,
+    maxIntervalDays: machineRow.max_interval_days ?? undefined,
+  };
+
+  const firstChanged = samples.findIndex((s) => changed.has(s.id));
+  if (firstChanged === -1) return 0;
+  const history: SamplePoint[] = [];
+  const findings: repo.FindingInsert[] = [];
+  const calls: repo.IntervalCallInsert[] = [];
+  const recomputed: string[] = [];
+  samples.forEach((s, index) => {
+    const point = toSamplePoint(s, readingsBySample.get(s.id) ?? {}, machineRow.oil_capacity_l);
+    if (index >= firstChanged) {
+      const input = { machine, history, sample: point, limits };
+      const analysis = analyseSample(input);
+      recomputed.push(s.id);
+      for (const f of analysis.findings) {
+        findings.push({ sampleId: s.id, measurand: f.measurands[0] ?? null, level: f.level, ruleId: f.ruleId, numbers: f.numbers, sentence: f.sentence });
+      }
+      try {
+        const call = makeIntervalCall({ ...input, analysis });
+        calls.push({
+          sampleId: s.id,
+          machineId,
+          call: call.call,
+          nextInterval: Number.isFinite(call.nextIntervalDistance) ? call.nextIntervalDistance : null,
+          nextSampleOdometer: Number.isFinite(call.nextSampleDue.distance) ? call.nextSampleDue.distance : null,
+          nextSampleOn: call.nextSampleDue.date ?? null,
+          reasons: call.reasons,
+        });
+      } catch (error) {
+        // No distance on this oil, no earlier one and no manufacturer interval: no call can be made yet.
+        if (!(error instanceof RangeError)) throw error;
+      }
+    }
+    if (s.in_baseline) history.push(point);
+  });
+  await repo.replaceFindings(trx, recomputed, findings);
+  await repo.replaceEngineCalls(trx, recomputed, calls);
+  return findings.length;
+}
+
+/** Recompute findings and the engine interval call of one sample (and the later samples of its machine). */
+export async function recomputeFindings(trx: Db, sampleId: string): Promise<number> {
+  const machine = await repo.findMachineOfSample(trx, sampleId);
+  if (!machine) return 0;
+  return recomputeMachineFindings(trx, machine.id, new Set([sampleId]));
+}
+
+/** Readings, findings, the latest interval call and replaced values of one of the crew's samples. */
+export function getSampleResults(db: Db, crewId: string, sampleId: string) {
+  if (!UUID.test(sampleId)) return Promise.resolve(undefined);
+  return repo.findSampleResults(db, crewId, sampleId);
+}

@@ -1,0 +1,181 @@
+/**
+ * Lab import: the types and input schemas shared by the service, the routes and the pages.
+ * Row types (snake_case) live in src/lib/db/database.ts; these are the domain shapes.
+ */
+import { z } from 'zod';
+import { MEASURAND_CODES, type MeasurandCode } from '../analysis/measurands';
+import type { LabCsvColumn, LabCsvIssue, LabCsvMappingTarget, LabReadings } from '../import/lab-csv';
+
+/** What a column can be mapped to in a lab profile. */
+export const MAPPING_TARGETS: readonly LabCsvMappingTarget[] = ['bottle', 'sampled', 'reported', 'ignore', ...MEASURAND_CODES];
+
+export const mappingTargetSchema = z.enum(MAPPING_TARGETS as [LabCsvMappingTarget, ...LabCsvMappingTarget[]]);
+
+/** A saved lab profile, as the preview shows it. */
+export interface LabProfile {
+  id: string;
+  name: string;
+  headerSignature: string;
+  mapping: Record<string, LabCsvMappingTarget>;
+}
+
+/** The stored upload, without its bytes. */
+export interface LabFile {
+  id: string;
+  crewId: string;
+  sha256: string;
+  fileName: string;
+  byteSize: number;
+  uploadedBy: string;
+  uploadedAt: Date;
+  /** Set once the file has been confirmed and written. */
+  importId: string | null;
+  importedAt: Date | null;
+}
+
+/**
+ * What the user decides per row: write it to its matched sample, replace a sample's earlier results,
+ * create the sample on a machine (unknown bottle), or leave the row out.
+ */
+export type RowDecision =
+  | { action: 'write' }
+  | { action: 'replace' }
+  | { action: 'skip' }
+  | { action: 'create'; machineId: string };
+
+/** How a row of the file stands against the crew's samples. */
+export type RowMatch =
+  /** A sample of the crew with this bottle code and no results yet. */
+  | { kind: 'matched'; sampleId: string; machineId: string; machineName: string; drawnOn: string }
+  /** A sample that already has results: written only after an explicit "replace". */
+  | { kind: 'has-results'; sampleId: string; machineId: string; machineName: string; drawnOn: string; existing: number }
+  /** No sample of this crew has the code. `codeProblem` says when it looks like a mistyped Sumpwise code. */
+  | { kind: 'unknown'; codeProblem: string | null };
+
+export interface PreviewRow {
+  line: number;
+  bottle: string;
+  bottleNorm: string;
+  sampled: string | null;
+  reported: string | null;
+  readings: LabReadings;
+  match: RowMatch;
+  /** Errors of this row (from the reader and from matching): the import is refused while any remain. */
+  errors: LabCsvIssue[];
+  warnings: LabCsvIssue[];
+  /** The decision in force: the user's, else the default (write a match, nothing for the rest). */
+  decision: RowDecision | null;
+  /** Why this row cannot be written yet, in words, when `decision` is missing or not allowed. */
+  needs: string | null;
+}
+
+export interface ImportPreview {
+  file: LabFile;
+  columns: LabCsvColumn[];
+  headers: string[];
+  headerSignature: string;
+  /** The saved profile applied to this header, if any. */
+  profile: LabProfile | null;
+  /** Issues about the file as a whole (no row) or about a row that the reader dropped. */
+  fileIssues: LabCsvIssue[];
+  rows: PreviewRow[];
+  machines: { id: string; name: string }[];
+  counts: { rows: number; ready: number; skipped: number; blocked: number; readings: number };
+  /** True when one confirm would write: no errors and every row decided. */
+  canConfirm: boolean;
+}
+
+export interface ImportSummary {
+  importId: string;
+  samplesWritten: number;
+  readingsWritten: number;
+  samplesCreated: number;
+  samplesReplaced: number;
+  findingsWritten: number;
+}
+
+export type LabImportFailure = {
+  ok: false;
+  status: 400 | 404 | 409 | 413 | 415 | 422;
+  code: string;
+  message: string;
+  fields?: Record<string, string>;
+};
+
+export type LabImportResult<T> = { ok: true; value: T } | LabImportFailure;
+
+/** Hooks for fault tests: each runs inside the confirm transaction, and a throw rolls everything back. */
+export interface ConfirmHooks {
+  afterReadings?: (trx: unknown) => Promise<void> | void;
+}
+
+/** A row decision as it arrives from a form field: "write", "replace", "skip" or "create:<machine id>". */
+export const rowDecisionSchema = z.union([
+  z.literal('write').transform(() => ({ action: 'write' }) as RowDecision),
+  z.literal('replace').transform(() => ({ action: 'replace' }) as RowDecision),
+  z.literal('skip').transform(() => ({ action: 'skip' }) as RowDecision),
+  z
+    .string()
+    .regex(/^create:[0-9a-f-]{36}$/i, 'pick a machine to create the sample on')
+    .transform((v) => ({ action: 'create', machineId: v.slice('create:'.length) }) as RowDecision),
+]);
+
+/** The confirm request: decisions keyed by file line. No crew id: the crew is always the session's. */
+export const confirmInputSchema = z
+  .object({
+    decisions: z.record(z.string().regex(/^\d{1,7}$/, 'is not a line number'), rowDecisionSchema).default({}),
+  })
+  .strict();
+
+export type ConfirmInput = z.infer<typeof confirmInputSchema>;
+
+/** The lab profile form: a name and one target per column header. */
+export const profileInputSchema = z
+  .object({
+    name: z.string().trim().min(1, 'Give the lab profile a name').max(80, 'Keep the name under 80 characters'),
+    mapping: z.record(z.string().max(200), mappingTargetSchema),
+  })
+  .strict();
+
+export type ProfileInput = z.infer<typeof profileInputSchema>;
+
+/** Form field name of a row decision, e.g. "row.12". */
+export function formatDecisionField(line: number): string {
+  return `row.${line}`;
+}
+
+/** Form field name of a column's mapping, by position, e.g. "col.3". */
+export function formatColumnField(index: number): string {
+  return `col.${index}`;
+}
+
+/** Plain label of a mapping target for the column selects. */
+export function describeMappingTarget(target: LabCsvMappingTarget): string {
+  switch (target) {
+    case 'bottle':
+      return 'Bottle code';
+    case 'sampled':
+      return 'Date sampled';
+    case 'reported':
+      return 'Date reported';
+    case 'ignore':
+      return 'Ignore this column';
+    default:
+      return MEASURAND_LABELS[target] ?? target;
+  }
+}
+
+const MEASURAND_LABELS: Partial<Record<MeasurandCode, string>> = {
+  Fe: 'Fe · iron', Al: 'Al · aluminium', Cr: 'Cr · chromium', Cu: 'Cu · copper', Pb: 'Pb · lead', Sn: 'Sn · tin',
+  Ni: 'Ni · nickel', Ag: 'Ag · silver', Ti: 'Ti · titanium', V: 'V · vanadium', Mn: 'Mn · manganese',
+  Si: 'Si · silicon', Na: 'Na · sodium', K: 'K · potassium', B: 'B · boron', Mo: 'Mo · molybdenum', Zn: 'Zn · zinc',
+  P: 'P · phosphorus', Ca: 'Ca · calcium', Mg: 'Mg · magnesium', Ba: 'Ba · barium', S: 'S · sulfur',
+  KV40: 'Viscosity 40 °C (mm²/s)', KV100: 'Viscosity 100 °C (mm²/s)', VI: 'Viscosity index',
+  SUS210: 'Saybolt seconds 210 °F', FLASH: 'Flash point °C', FUEL: 'Fuel dilution %', WATER: 'Water %',
+  GLYCOL: 'Glycol (coolant)', INSOL: 'Insolubles %', TBN: 'TBN (mg KOH/g)', TAN: 'TAN (mg KOH/g)',
+};
+
+/** The header signature a lab profile is keyed by: each header normalised (NFKC, trimmed, lower case), joined. */
+export function computeHeaderSignature(headers: readonly string[]): string {
+  return headers.map((h) => h.normalize('NFKC').trim().toLowerCase().replace(/\s+/g, ' ')).join('|');
+}
