@@ -28,14 +28,20 @@ export async function notifyOutbox(db: Db): Promise<void> {
   await sql`select pg_notify(${MAIL_OUTBOX_CHANNEL}, '')`.execute(db);
 }
 
-/** Locks the oldest due, unsent message; rows another worker holds are skipped, not waited for. */
-export async function lockNextDueMail(trx: Transaction<Database>): Promise<MailOutboxRow | undefined> {
+/** The database clock, so "due" never depends on the worker machine's clock. */
+export async function readDatabaseNow(db: Db): Promise<Date> {
+  const { rows } = await sql<{ now: Date }>`select now() as now`.execute(db);
+  return rows[0]!.now;
+}
+
+/** Locks the oldest unsent message due by `dueBy`; rows another worker holds are skipped, not waited for. */
+export async function lockNextDueMail(trx: Transaction<Database>, dueBy: Date): Promise<MailOutboxRow | undefined> {
   return trx
     .selectFrom('mail_outbox')
     .selectAll()
     .where('sent_at', 'is', null)
     .where('failed_at', 'is', null)
-    .where('next_attempt_at', '<=', sql<Date>`now()`)
+    .where('next_attempt_at', '<=', dueBy)
     .orderBy('next_attempt_at')
     .orderBy('created_at')
     .limit(1)

@@ -16,7 +16,7 @@
  *    worker starts (catch-up after downtime).
  *
  * 3. Delivering (`deliverDueMail`). A flush takes due rows one at a time, each in its own transaction:
- *    `select … where sent_at is null and failed_at is null and next_attempt_at <= now()
+ *    `select … where sent_at is null and failed_at is null and next_attempt_at <= <flush start>
  *     for update skip locked limit 1`. The row lock is held while the message goes to the relay, so two
  *    workers (or two flushes) can never send the same row concurrently: the second skips it, and once the
  *    first commits the row no longer matches `sent_at is null`. `sent_at` is set only after the relay
@@ -39,7 +39,7 @@ import type { Kysely, Transaction } from 'kysely';
 import { getConfig } from '../config';
 import type { Database, MailOutboxRow } from '../db/database';
 import { DEFAULT_BACKOFF, computeRetryDelayMs, deriveMessageId, queuedMailSchema, type BackoffPolicy, type DeliveryReport, type QueuedMail } from './mail';
-import { insertOutboxMail, lockNextDueMail, markMailSent, notifyOutbox, recordMailFailure } from './mail.repository';
+import { insertOutboxMail, lockNextDueMail, markMailSent, notifyOutbox, readDatabaseNow, recordMailFailure } from './mail.repository';
 import type { MailTransport } from './transport';
 
 /** Writes a message to the outbox inside the caller's transaction; a repeated idempotency key is a no-op. */
@@ -72,8 +72,11 @@ export async function deliverDueMail(db: Kysely<Database>, options: DeliverOptio
   const report: DeliveryReport = { sent: 0, deferred: 0, failed: 0 };
   const batchSize = options.batchSize ?? 100;
   const backoff = options.backoff ?? DEFAULT_BACKOFF;
+  // Only what was due when the flush began: a message that fails now is retried by a later flush, never
+  // again within this one, however short its backoff.
+  const dueBy = await readDatabaseNow(db);
   for (let i = 0; i < batchSize; i++) {
-    const outcome = await db.transaction().execute((trx) => deliverOne(trx, options, backoff));
+    const outcome = await db.transaction().execute((trx) => deliverOne(trx, dueBy, options, backoff));
     if (outcome === 'none') break;
     report[outcome] += 1;
   }
@@ -82,10 +85,11 @@ export async function deliverDueMail(db: Kysely<Database>, options: DeliverOptio
 
 async function deliverOne(
   trx: Transaction<Database>,
+  dueBy: Date,
   options: DeliverOptions,
   backoff: BackoffPolicy,
 ): Promise<'sent' | 'deferred' | 'failed' | 'none'> {
-  const row = await lockNextDueMail(trx);
+  const row = await lockNextDueMail(trx, dueBy);
   // The query already filters on sent_at, under the lock; the check is repeated so the guarantee does not
   // hang on a WHERE clause someone might edit.
   if (!row || row.sent_at !== null) return 'none';
