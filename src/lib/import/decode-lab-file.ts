@@ -51,6 +51,25 @@ function hasBinaryControls(text: string): boolean {
   return /[\u0001-\u0008\u000b\u000e-\u001a\u001c-\u001f\u007f]/.test(text);
 }
 
+/**
+ * UTF-16 without a byte-order mark: ASCII text then has a NUL in every other byte, on the odd bytes
+ * for little-endian and the even ones for big-endian. Judged on the first 512 bytes.
+ */
+function guessBomlessUtf16(bytes: Uint8Array): 'utf-16le' | 'utf-16be' | null {
+  const n = Math.min(bytes.length, 512) & ~1;
+  if (n < 4) return null;
+  let evenNul = 0;
+  let oddNul = 0;
+  for (let i = 0; i < n; i += 2) {
+    if (bytes[i] === 0) evenNul += 1;
+    if (bytes[i + 1] === 0) oddNul += 1;
+  }
+  const pairs = n / 2;
+  if (oddNul >= pairs * 0.9 && evenNul === 0) return 'utf-16le';
+  if (evenNul >= pairs * 0.9 && oddNul === 0) return 'utf-16be';
+  return null;
+}
+
 /** Decode an uploaded lab file: UTF-8 (with or without BOM), UTF-16 with BOM, else Windows-1252; rejects images and binaries. */
 export function decodeLabFile(bytes: Uint8Array): DecodeLabFileResult {
   if (bytes.length > MAX_LAB_FILE_BYTES) {
@@ -71,6 +90,7 @@ export function decodeLabFile(bytes: Uint8Array): DecodeLabFileResult {
 
   let text: string;
   let encoding: LabFileEncoding;
+  const bomlessUtf16 = guessBomlessUtf16(bytes);
   if (startsWith(bytes, [0xef, 0xbb, 0xbf])) {
     encoding = 'utf-8';
     try {
@@ -81,6 +101,9 @@ export function decodeLabFile(bytes: Uint8Array): DecodeLabFileResult {
   } else if (startsWith(bytes, [0xff, 0xfe]) || startsWith(bytes, [0xfe, 0xff])) {
     encoding = bytes[0] === 0xff ? 'utf-16le' : 'utf-16be';
     // UTF-16 text has NUL bytes in it, so the NUL check below runs on the decoded text instead.
+    text = new TextDecoder(encoding).decode(bytes);
+  } else if (bomlessUtf16 !== null) {
+    encoding = bomlessUtf16;
     text = new TextDecoder(encoding).decode(bytes);
   } else {
     if (bytes.includes(0)) {

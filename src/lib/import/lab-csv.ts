@@ -325,6 +325,8 @@ function planColumns(
     if (r.note !== undefined) column.note = r.note;
     columns.push(column);
     if (r.kind === 'unknown') {
+      // A blank header over blank cells is a trailing delimiter, not a column; it is reported only if it holds data.
+      if (!headerCells[index]?.trim()) return;
       issues.push({
         severity: 'warning',
         code: 'unknown-column',
@@ -453,7 +455,10 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     if (end === -1) break;
     from = end + 1;
   }
-  const delimiter = detectDelimiter(firstLines);
+  // Spreadsheet exports may open with a "sep=;" line naming the delimiter; it is honoured, then read as blank.
+  const sepLine = /^sep=([,;\t])\n/i.exec(body);
+  if (sepLine) body = `\n${body.slice(sepLine[0].length)}`;
+  const delimiter = sepLine?.[1] === ',' || sepLine?.[1] === ';' || sepLine?.[1] === '\t' ? sepLine[1] : detectDelimiter(firstLines.slice(sepLine ? 1 : 0));
   const parsed = Papa.parse<string[]>(body, { delimiter, newline: '\n', skipEmptyLines: false });
   const data = parsed.data;
 
@@ -490,6 +495,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
   }
 
   // The header is the first of the opening rows that reads as one: a lab may put a title line above it.
+  const mappedHeaders = new Set(Object.keys(options.mapping ?? {}).map(normaliseMappingKey));
   let headerRow = -1;
   let fallbackRow = -1;
   for (let r = 0, seen = 0; r < data.length && seen < 10; r += 1) {
@@ -497,7 +503,9 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     if (isBlank(row) || !row) continue;
     seen += 1;
     if (fallbackRow === -1) fallbackRow = r;
-    const meaningful = row.filter((cell) => recogniseHeader(cell.trim()).kind !== 'unknown').length;
+    const meaningful = row.filter(
+      (cell) => recogniseHeader(cell.trim()).kind !== 'unknown' || mappedHeaders.has(normaliseMappingKey(cell)),
+    ).length;
     if (meaningful >= 2) {
       headerRow = r;
       break;
@@ -700,6 +708,16 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     rows.push(row);
   }
 
+  for (const column of otherColumns) {
+    if (headerCells[column.index]?.trim() || !rows.some((row) => column.header in row.other)) continue;
+    issues.push({
+      severity: 'warning',
+      code: 'unknown-column',
+      row: headerLine,
+      column: column.header,
+      message: `${where(headerLine, column.header)}: this column has no header but holds values. They are kept as text and not read as readings; a lab profile can map it.`,
+    });
+  }
   settleDates(pendingDates, columns, options.dateOrder, issues);
   return result(rows, columns, delimiter, decimalMark, headerLine, unitsLine);
 }

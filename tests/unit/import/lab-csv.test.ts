@@ -65,6 +65,16 @@ describe('decodeLabFile decodes text', () => {
     expect(result.text.charCodeAt(0)).not.toBe(0xfeff);
   });
 
+  test.each([
+    { encoding: 'utf-16le', bom: false },
+    { encoding: 'utf-16be', bom: false },
+  ] as const)('$encoding without a BOM is recognised by its NUL pattern', ({ encoding }) => {
+    const text = 'Bottle,Fe\nSW-1,5\n';
+    const bytes = new Uint8Array(text.length * 2);
+    for (let i = 0; i < text.length; i += 1) bytes[i * 2 + (encoding === 'utf-16le' ? 0 : 1)] = text.charCodeAt(i);
+    expect(decodeLabFile(bytes)).toEqual({ text, encoding });
+  });
+
   test('UTF-16 big-endian with BOM', () => {
     const text = 'Bottle,Fe\nSW-1,5\n';
     const bytes = new Uint8Array(2 + text.length * 2);
@@ -386,6 +396,28 @@ describe('parseLabCsv: inline cases', () => {
     const result = parseLabCsv('Bottle,Sulfur %\nSW-1,0.25\n');
     expect(result.columns[1]).toMatchObject({ code: 'S', unit: '%', conversion: '%→ppm' });
     expect(result.rows[0]?.readings.S).toEqual({ value: 2500 });
+  });
+
+  test('an Excel "sep=;" first line names the delimiter and still counts as a line', () => {
+    const result = parseLabCsv('sep=;\nBottle;Fe;Notes\nSW-1;12,5;a, b, c\n');
+    expect(result.delimiter).toBe(';');
+    expect(errorsOf(result)).toEqual([]);
+    expect(result.rows[0]).toMatchObject({ line: 3, readings: { Fe: { value: 12.5 } }, other: { Notes: 'a, b, c' } });
+  });
+
+  test.each([
+    { text: 'Bottle,Fe,\nSW-1,1,\n', warned: false },
+    { text: 'Bottle,Fe,\nSW-1,1,x\n', warned: true },
+  ])('a blank header is reported only when its column holds values ($text)', ({ text, warned }) => {
+    const result = parseLabCsv(text);
+    expect(result.errors.some((e) => e.code === 'unknown-column' && e.column === 'column 3')).toBe(warned);
+    expect(result.rows[0]?.readings).toEqual({ Fe: { value: 1 } });
+  });
+
+  test('a mapped header counts when finding the header under a title line', () => {
+    const result = parseLabCsv('Report\nProbe,Eisen\nSW-1,3\n', { mapping: { Probe: 'bottle', Eisen: 'Fe' } });
+    expect(result.headerLine).toBe(2);
+    expect(result.rows[0]).toMatchObject({ bottle: { normalised: 'SW1' }, readings: { Fe: { value: 3 } } });
   });
 
   test('a row with only blank readings is kept with a warning', () => {
