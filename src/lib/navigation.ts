@@ -8,6 +8,11 @@ export interface NavItem {
 
 export const NAV_ITEMS: NavItem[] = [
   { href: '/', label: 'Home', audience: 'all' },
+  { href: '/imports', label: 'Lab import', audience: 'signed-in' },
+  { href: '/crews', label: 'Crew', audience: 'signed-in' },
+  { href: '/account', label: 'Account', audience: 'signed-in' },
+  { href: '/sign-in', label: 'Sign in', audience: 'signed-out' },
+  { href: '/sign-up', label: 'Sign up', audience: 'signed-out' },
 ];
 
 /** The items a visitor sees, and which one is current. */

@@ -1,0 +1,16 @@
+import type { APIRoute } from 'astro';
+import { signInSchema } from '../../../lib/auth/auth';
+import { signIn } from '../../../lib/auth/auth.service';
+import { applySessionCookie, clientIp, getAuthDeps } from '../../../lib/auth/deps';
+import { jsonOk, parseJsonBody } from '../../../lib/http/json';
+import { jsonFailure } from '../../../lib/http/responses';
+
+/** Signs in with { email, password }; sets the session cookie. */
+export const POST: APIRoute = async (context) => {
+  const body = await parseJsonBody(context.request, signInSchema);
+  if (!body.ok) return body.response;
+  const result = await signIn(getAuthDeps(), body.data, { ip: clientIp(context), previousSessionId: context.locals.session?.id ?? null });
+  if (!result.ok) return jsonFailure(result);
+  applySessionCookie(context.cookies, result.cookie);
+  return jsonOk({ userId: result.userId });
+};

@@ -1,0 +1,30 @@
+import type { APIRoute } from 'astro';
+import { getAuthDeps } from '../../../lib/auth/deps';
+import { requireApiUser } from '../../../lib/auth/guards';
+import { switchCrewSchema } from '../../../lib/crews/crews';
+import { switchCrew } from '../../../lib/crews/crews.service';
+import { formText, readForm, safeNextPath } from '../../../lib/http/form';
+import { jsonError, jsonOk, parseJsonBody } from '../../../lib/http/json';
+import { jsonFailure } from '../../../lib/http/responses';
+
+/** Switches the session's crew: a plain form (crewId, next) redirects back; JSON { crewId } answers JSON. */
+export const POST: APIRoute = async (context) => {
+  const isForm = /^application\/x-www-form-urlencoded\b/i.test(context.request.headers.get('content-type') ?? '');
+  if (isForm) {
+    if (!context.locals.user) return context.redirect('/sign-in', 303);
+    const body = await readForm(context.request);
+    if (!body.ok) return body.response;
+    const parsed = switchCrewSchema.safeParse({ crewId: formText(body.form, 'crewId') });
+    if (!parsed.success) return new Response('Choose a crew.', { status: 400 });
+    const result = await switchCrew(getAuthDeps().db, context.locals.session!.id, context.locals.user.id, parsed.data.crewId);
+    if (!result.ok) return new Response(null, { status: 404 });
+    return context.redirect(safeNextPath(formText(body.form, 'next')), 303);
+  }
+  const user = requireApiUser(context.locals);
+  if (user instanceof Response) return user;
+  const body = await parseJsonBody(context.request, switchCrewSchema);
+  if (!body.ok) return body.response;
+  const result = await switchCrew(getAuthDeps().db, context.locals.session!.id, user.id, body.data.crewId);
+  if (!result.ok) return jsonFailure(result);
+  return result.crew ? jsonOk({ crew: result.crew }) : jsonError(404, 'not_found', 'No such crew.');
+};

@@ -1,0 +1,124 @@
+// The role matrix: for every route under src/pages, what each kind of visitor gets. One row per request;
+// a route may have several rows (methods, or a record of the crew and of no crew). tests/integration/
+// role-matrix.test.ts fails when a route file has no row here; tests/e2e/role-matrix.test.ts sends every
+// row's request to the built server as each visitor and compares statuses.
+//
+// Adding a route? Append rows. `path` builds the concrete URL for a record of crew A (the visitors' crew;
+// the other lead is in crew B), creating the record with ctx.db if it needs one. Pages answer 303 to the
+// sign-in page for anonymous visitors; JSON endpoints answer 401. A record of another crew answers 404.
+import { randomUUID } from 'node:crypto';
+import type { Kysely } from 'kysely';
+import type { Database } from '../../src/lib/db/database';
+import { generateToken, hashToken } from '../../src/lib/auth/tokens';
+import { makeMachine } from './factories';
+
+export type Visitor = 'anonymous' | 'rider' | 'mechanic' | 'lead' | 'otherLead';
+export const VISITORS: readonly Visitor[] = ['anonymous', 'rider', 'mechanic', 'lead', 'otherLead'];
+
+export interface MatrixContext {
+  db: Kysely<Database>;
+  crewA: { id: string; leadId: string; mechanicId: string; riderId: string };
+  crewB: { id: string; leadId: string };
+}
+
+export interface MatrixRow {
+  /** The route as derived from its file: src/pages/crews/[id].astro → '/crews/[id]'. */
+  route: string;
+  method: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE';
+  /** The URL to request (a record of crew A unless said otherwise). Called once per visitor. */
+  path: string | ((ctx: MatrixContext, visitor: Visitor) => string | Promise<string>);
+  /** A JSON body, or an urlencoded form body (sent with this server's Origin unless `origin` says otherwise). */
+  json?: unknown;
+  form?: Record<string, string>;
+  origin?: string;
+  /** Sign in afresh for this request (for requests that end the session). */
+  freshSession?: boolean;
+  expect: Record<Visitor, number>;
+  note?: string;
+}
+
+const all = (status: number): Record<Visitor, number> => ({ anonymous: status, rider: status, mechanic: status, lead: status, otherLead: status });
+/** A page every member reads; anonymous visitors are sent to sign in; other crews get 404. */
+const memberPage = { anonymous: 303, rider: 200, mechanic: 200, lead: 200, otherLead: 404 };
+/** A page of one's own account (no crew record in the URL). */
+const signedInPage = { anonymous: 303, rider: 200, mechanic: 200, lead: 200, otherLead: 200 };
+
+async function riderMachine(ctx: MatrixContext): Promise<string> {
+  const m = await makeMachine(ctx.db, ctx.crewA.id, ctx.crewA.riderId, { name: 'Matrix 450' } as never);
+  return m.id;
+}
+
+async function openInvitation(ctx: MatrixContext): Promise<string> {
+  const token = generateToken();
+  await ctx.db.insertInto('crew_invitations').values({
+    crew_id: ctx.crewA.id, email: 'matrix-invitee@crew-a.example', role: 'rider', token_hash: hashToken(token),
+    invited_by: ctx.crewA.leadId, expires_at: new Date(Date.now() + 86_400_000),
+  }).execute();
+  return token;
+}
+
+async function throwawayMember(ctx: MatrixContext): Promise<string> {
+  const id = `matrix-tmp-${randomUUID().slice(0, 8)}`;
+  await ctx.db.insertInto('users').values({ id, email: `${id}@crew-a.example`, display_name: 'Temp', password_hash: 'x' }).execute();
+  await ctx.db.insertInto('crew_members').values({ crew_id: ctx.crewA.id, user_id: id, role: 'rider' }).execute();
+  return id;
+}
+
+export const ROLE_MATRIX: MatrixRow[] = [
+  // Public pages and the health check.
+  { route: '/', method: 'GET', path: '/', expect: all(200) },
+  { route: '/api/health', method: 'GET', path: '/api/health', expect: all(200) },
+  { route: '/sign-in', method: 'GET', path: '/sign-in', expect: all(200) },
+  { route: '/sign-up', method: 'GET', path: '/sign-up', expect: all(200) },
+  { route: '/forgot-password', method: 'GET', path: '/forgot-password', expect: all(200) },
+  { route: '/reset-password', method: 'GET', path: '/reset-password?token=not-a-real-token', expect: all(400), note: 'an invalid link says so' },
+  { route: '/verify-email', method: 'GET', path: '/verify-email', expect: all(200) },
+  { route: '/verify-email', method: 'GET', path: '/verify-email?token=not-a-real-token', expect: all(400) },
+  { route: '/invitations/[token]', method: 'GET', path: (ctx) => openInvitation(ctx).then((t) => `/invitations/${t}`), expect: all(200), note: 'the link itself is the credential' },
+  { route: '/invitations/[token]', method: 'GET', path: '/invitations/no-such-invitation', expect: all(404) },
+  { route: '/sign-out', method: 'GET', path: '/sign-out', expect: { ...signedInPage, anonymous: 303 } },
+  { route: '/sign-out', method: 'POST', path: '/sign-out', form: {}, freshSession: true, expect: all(303) },
+
+  // Own account and crews.
+  { route: '/account', method: 'GET', path: '/account', expect: signedInPage },
+  { route: '/crews', method: 'GET', path: '/crews', expect: signedInPage },
+  { route: '/crews/[id]', method: 'GET', path: (ctx) => `/crews/${ctx.crewA.id}`, expect: memberPage },
+  { route: '/crews/[id]', method: 'GET', path: `/crews/${'0'.repeat(8)}-0000-4000-8000-${'0'.repeat(12)}`, expect: { ...all(404), anonymous: 303 }, note: 'no such crew looks like another crew' },
+  { route: '/crews/[id]', method: 'POST', path: (ctx) => `/crews/${ctx.crewA.id}`, form: { action: 'invite', email: 'matrix-form@crew-a.example', role: 'mechanic' },
+    expect: { anonymous: 303, rider: 403, mechanic: 403, lead: 200, otherLead: 404 } },
+  { route: '/crews/[id]', method: 'POST', path: (ctx) => `/crews/${ctx.crewA.id}`, form: { action: 'invite', email: 'x@crew-a.example', role: 'lead' },
+    origin: 'https://attacker.example', expect: all(403), note: 'cross-site form post: Astro origin check' },
+
+  // JSON: accounts.
+  { route: '/api/auth/me', method: 'GET', path: '/api/auth/me', expect: { ...all(200), anonymous: 401 } },
+  { route: '/api/auth/sign-in', method: 'POST', path: '/api/auth/sign-in', json: { email: 'not-an-address' }, expect: all(400) },
+  { route: '/api/auth/sign-up', method: 'POST', path: '/api/auth/sign-up', json: { email: 'x@crew-a.example', password: 'short' }, expect: all(400) },
+  { route: '/api/auth/sign-out', method: 'POST', path: '/api/auth/sign-out', json: {}, freshSession: true, expect: { ...all(204), anonymous: 401 } },
+
+  // JSON: crews.
+  { route: '/api/crews', method: 'GET', path: '/api/crews', expect: { ...all(200), anonymous: 401 } },
+  { route: '/api/crews', method: 'POST', path: '/api/crews', json: { name: '' }, expect: { ...all(400), anonymous: 401 } },
+  { route: '/api/crews/switch', method: 'POST', path: '/api/crews/switch', json: {}, freshSession: true,
+    expect: { ...all(400), anonymous: 401 } },
+  { route: '/api/crews/switch', method: 'POST', path: '/api/crews/switch', freshSession: true, json: 'crewA',
+    expect: { anonymous: 401, rider: 200, mechanic: 200, lead: 200, otherLead: 404 }, note: 'json "crewA" is replaced by { crewId: crew A }' },
+  { route: '/api/crews/[id]/invitations', method: 'POST', path: (ctx) => `/api/crews/${ctx.crewA.id}/invitations`, json: { email: 'matrix-json@crew-a.example', role: 'rider' },
+    expect: { anonymous: 401, rider: 403, mechanic: 403, lead: 201, otherLead: 404 } },
+  { route: '/api/crews/[id]/invitations', method: 'POST', path: (ctx) => `/api/crews/${ctx.crewA.id}/invitations`, json: { email: 'matrix-json@crew-a.example', role: 'rider', crewId: 'forged' },
+    expect: { anonymous: 401, rider: 400, mechanic: 400, lead: 400, otherLead: 404 }, note: 'a forged extra field is refused' },
+  { route: '/api/crews/[id]/members/[userId]', method: 'PATCH', path: (ctx) => `/api/crews/${ctx.crewA.id}/members/${ctx.crewA.riderId}`, json: { role: 'rider' },
+    expect: { anonymous: 401, rider: 403, mechanic: 403, lead: 204, otherLead: 404 } },
+  { route: '/api/crews/[id]/members/[userId]', method: 'DELETE', path: async (ctx) => `/api/crews/${ctx.crewA.id}/members/${await throwawayMember(ctx)}`,
+    expect: { anonymous: 401, rider: 403, mechanic: 403, lead: 204, otherLead: 404 } },
+
+  // Machines (machines helper): a machine of crew A owned by its rider.
+  { route: '/machines', method: 'GET', path: '/machines', expect: signedInPage },
+  { route: '/machines/new', method: 'GET', path: '/machines/new', expect: { anonymous: 303, rider: 200, mechanic: 403, lead: 200, otherLead: 200 } },
+  { route: '/machines/[id]', method: 'GET', path: async (ctx) => `/machines/${await riderMachine(ctx)}`, expect: memberPage },
+  { route: '/machines/[id]/edit', method: 'GET', path: async (ctx) => `/machines/${await riderMachine(ctx)}/edit`,
+    expect: { anonymous: 303, rider: 200, mechanic: 403, lead: 200, otherLead: 404 } },
+  { route: '/machines/[id]/oil-change', method: 'GET', path: async (ctx) => `/machines/${await riderMachine(ctx)}/oil-change`,
+    expect: { anonymous: 303, rider: 200, mechanic: 403, lead: 200, otherLead: 404 } },
+  { route: '/api/trends/[machineId]', method: 'GET', path: async (ctx) => `/api/trends/${await riderMachine(ctx)}`,
+    expect: { anonymous: 401, rider: 200, mechanic: 200, lead: 200, otherLead: 404 } },
+];
