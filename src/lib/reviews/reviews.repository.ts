@@ -1,0 +1,93 @@
+/** Queries of review notes and interval calls; every read is scoped by the crew. */
+import type { Kysely, Transaction } from 'kysely';
+import type { Database } from '../db/database';
+import { isUuid } from '../trends/trends.repository';
+import type { CallHistoryEntry, ReviewNote } from './reviews';
+
+type Db = Kysely<Database> | Transaction<Database>;
+
+/** The crew's sample with its machine's meter, or undefined. */
+export async function findReviewSample(db: Db, crewId: string, sampleId: string) {
+  if (!isUuid(sampleId)) return undefined;
+  return db
+    .selectFrom('samples')
+    .innerJoin('machines', 'machines.id', 'samples.machine_id')
+    .select(['samples.id', 'samples.machine_id', 'samples.state', 'samples.odometer', 'samples.bottle_code', 'machines.meter', 'machines.name as machine_name'])
+    .where('samples.id', '=', sampleId)
+    .where('samples.crew_id', '=', crewId)
+    .executeTakeFirst();
+}
+
+/** Every interval call of a sample, newest first, with who made it. */
+export async function listCallHistory(db: Db, sampleId: string): Promise<CallHistoryEntry[]> {
+  const rows = await db
+    .selectFrom('interval_calls')
+    .leftJoin('users', 'users.id', 'interval_calls.made_by')
+    .select([
+      'interval_calls.id', 'interval_calls.call', 'interval_calls.source', 'interval_calls.next_interval',
+      'interval_calls.next_sample_odometer', 'interval_calls.next_sample_on', 'interval_calls.reasons',
+      'interval_calls.note', 'interval_calls.created_at', 'users.display_name',
+    ])
+    .where('interval_calls.sample_id', '=', sampleId)
+    .orderBy('interval_calls.created_at', 'desc')
+    .orderBy('interval_calls.id', 'desc')
+    .execute();
+  return rows.map((r) => ({
+    id: r.id,
+    call: r.call,
+    source: r.source,
+    nextInterval: r.next_interval === null ? null : Number(r.next_interval),
+    nextSampleOdometer: r.next_sample_odometer === null ? null : Number(r.next_sample_odometer),
+    nextSampleOn: r.next_sample_on === null ? null : String(r.next_sample_on).slice(0, 10),
+    reasons: Array.isArray(r.reasons) ? r.reasons : [],
+    note: r.note,
+    madeByName: r.display_name,
+    createdAt: r.created_at,
+  }));
+}
+
+/** Insert one interval call row (a confirm or an override). */
+export async function insertIntervalCall(
+  db: Db,
+  row: { sampleId: string; machineId: string; call: CallHistoryEntry['call']; source: 'confirmed' | 'override'; nextInterval: number | null;
+    nextSampleOdometer: number | null; nextSampleOn: string | null; reasons: string[]; note: string; madeBy: string },
+): Promise<string> {
+  const r = await db
+    .insertInto('interval_calls')
+    .values({
+      sample_id: row.sampleId, machine_id: row.machineId, call: row.call, source: row.source, next_interval: row.nextInterval,
+      next_sample_odometer: row.nextSampleOdometer, next_sample_on: row.nextSampleOn, reasons: JSON.stringify(row.reasons),
+      note: row.note, made_by: row.madeBy,
+    })
+    .returning('id')
+    .executeTakeFirstOrThrow();
+  return r.id;
+}
+
+/** Moves a sample with results to reviewed, recording who did it (no change for other states). */
+export async function markSampleReviewed(db: Db, sampleId: string, actorUserId: string, note: string): Promise<boolean> {
+  const updated = await db.updateTable('samples').set({ state: 'reviewed' }).where('id', '=', sampleId).where('state', '=', 'results_in').executeTakeFirst();
+  if (Number(updated.numUpdatedRows) === 0) return false;
+  await db.insertInto('sample_events').values({ sample_id: sampleId, state: 'reviewed', note, actor_user_id: actorUserId }).execute();
+  return true;
+}
+
+/** Review notes of a sample, oldest first, with the author's name and role in the sample's crew. */
+export async function listReviewNotes(db: Db, crewId: string, sampleId: string): Promise<ReviewNote[]> {
+  const rows = await db
+    .selectFrom('review_notes')
+    .innerJoin('users', 'users.id', 'review_notes.author_user_id')
+    .leftJoin('crew_members', (j) => j.onRef('crew_members.user_id', '=', 'review_notes.author_user_id').on('crew_members.crew_id', '=', crewId))
+    .select(['review_notes.id', 'review_notes.body', 'review_notes.created_at', 'users.display_name', 'crew_members.role'])
+    .where('review_notes.sample_id', '=', sampleId)
+    .orderBy('review_notes.created_at')
+    .orderBy('review_notes.id')
+    .execute();
+  return rows.map((r) => ({ id: r.id, body: r.body, authorName: r.display_name, authorRole: r.role, createdAt: r.created_at }));
+}
+
+/** Insert a review note. */
+export async function insertReviewNote(db: Db, sampleId: string, authorUserId: string, body: string): Promise<string> {
+  const r = await db.insertInto('review_notes').values({ sample_id: sampleId, author_user_id: authorUserId, body }).returning('id').executeTakeFirstOrThrow();
+  return r.id;
+}

@@ -1,0 +1,85 @@
+/** Review rules: who may write, confirm keeps the current call, override needs a note; each decision is one transaction. */
+import type { Kysely } from 'kysely';
+import { canReviewSample } from '../auth/permissions';
+import type { CrewMembership } from '../auth/types';
+import type { Database } from '../db/database';
+import { toStoredMeter } from '../units/units';
+import type { CallDecision, CallHistoryEntry, ReviewNote } from './reviews';
+import { findReviewSample, insertIntervalCall, insertReviewNote, listCallHistory, listReviewNotes, markSampleReviewed } from './reviews.repository';
+
+export type ReviewResult<T> =
+  | { ok: true; value: T }
+  | { ok: false; code: 'not_found' | 'forbidden' | 'no_call' | 'no_results'; message: string };
+
+interface Actor {
+  userId: string;
+  membership: CrewMembership | null;
+}
+
+const NOT_FOUND = { ok: false, code: 'not_found', message: 'No such sample in this crew.' } as const;
+
+/** Everything the review panel shows: the call history (newest first) and the notes (oldest first). */
+export async function loadSampleReview(db: Kysely<Database>, crewId: string, sampleId: string) {
+  const sample = await findReviewSample(db, crewId, sampleId);
+  if (!sample) return null;
+  const [calls, notes] = await Promise.all([listCallHistory(db, sampleId), listReviewNotes(db, crewId, sampleId)]);
+  return { sample, calls, notes, current: calls[0] ?? null };
+}
+
+/** Adds a mechanic's or lead's note to a sample. */
+export async function addReviewNote(db: Kysely<Database>, actor: Actor, sampleId: string, body: string): Promise<ReviewResult<{ id: string }>> {
+  if (!actor.membership) return NOT_FOUND;
+  const sample = await findReviewSample(db, actor.membership.crewId, sampleId);
+  if (!sample) return NOT_FOUND;
+  if (!canReviewSample(actor.membership)) return { ok: false, code: 'forbidden', message: 'Only a lead or a mechanic of the crew writes review notes.' };
+  const id = await insertReviewNote(db, sampleId, actor.userId, body);
+  return { ok: true, value: { id } };
+}
+
+/**
+ * Confirms or overrides the sample's current interval call. Confirm copies the current call as the reviewer's;
+ * override writes the reviewer's call with their note as its reason. Either marks the sample reviewed.
+ */
+export async function decideIntervalCall(
+  db: Kysely<Database>,
+  actor: Actor,
+  sampleId: string,
+  decision: CallDecision,
+): Promise<ReviewResult<{ id: string; entry: CallHistoryEntry }>> {
+  if (!actor.membership) return NOT_FOUND;
+  const crewId = actor.membership.crewId;
+  const membership = actor.membership;
+  return db.transaction().execute(async (trx) => {
+    const sample = await findReviewSample(trx, crewId, sampleId);
+    if (!sample) return NOT_FOUND;
+    if (!canReviewSample(membership)) return { ok: false, code: 'forbidden', message: 'Only a lead or a mechanic of the crew confirms or overrides a call.' } as const;
+    if (sample.state === 'drawn' || sample.state === 'shipped') {
+      return { ok: false, code: 'no_results', message: 'This sample has no results yet, so there is no call to decide.' } as const;
+    }
+    const history = await listCallHistory(trx, sampleId);
+    const current = history[0];
+    let id: string;
+    if (decision.action === 'confirm') {
+      if (!current) return { ok: false, code: 'no_call', message: 'There is no interval call to confirm yet; override it with your own call instead.' } as const;
+      id = await insertIntervalCall(trx, {
+        sampleId, machineId: sample.machine_id, call: current.call, source: 'confirmed', nextInterval: current.nextInterval,
+        nextSampleOdometer: current.nextSampleOdometer, nextSampleOn: current.nextSampleOn, reasons: current.reasons,
+        note: decision.note, madeBy: actor.userId,
+      });
+    } else {
+      const meter = sample.meter;
+      id = await insertIntervalCall(trx, {
+        sampleId, machineId: sample.machine_id, call: decision.call, source: 'override',
+        nextInterval: decision.nextInterval !== undefined ? toStoredMeter(decision.nextInterval, meter) : current?.nextInterval ?? null,
+        nextSampleOdometer: decision.nextSampleOdometer !== undefined ? toStoredMeter(decision.nextSampleOdometer, meter) : current?.nextSampleOdometer ?? null,
+        nextSampleOn: decision.nextSampleOn ?? current?.nextSampleOn ?? null,
+        reasons: [decision.note], note: decision.note, madeBy: actor.userId,
+      });
+    }
+    await markSampleReviewed(trx, sampleId, actor.userId, decision.action === 'confirm' ? 'Interval call confirmed.' : 'Interval call overridden.');
+    const entry = (await listCallHistory(trx, sampleId)).find((c) => c.id === id)!;
+    return { ok: true, value: { id, entry } } as const;
+  });
+}
+
+export type { ReviewNote };

@@ -1,0 +1,59 @@
+/** Review notes and interval-call decisions: input schemas and domain shapes. */
+import { z } from 'zod';
+import type { IntervalCallKind } from '../db/database';
+
+export const NOTE_MAX = 4000;
+
+const noteText = z.string().trim().max(NOTE_MAX, `Keep a note under ${NOTE_MAX} characters.`);
+
+/** A review note on a sample. */
+export const reviewNoteSchema = z.object({
+  body: noteText.pipe(z.string().min(1, 'Write the note before saving it.')),
+});
+
+const optionalPositive = (what: string) =>
+  z.preprocess(
+    (v) => (v === '' || v === null || v === undefined ? undefined : typeof v === 'string' ? Number(v) : v),
+    z.number({ error: `Enter the ${what} as a number.` }).finite().positive(`The ${what} must be above zero.`).max(10_000_000, `That ${what} is too large.`).optional(),
+  );
+
+/** Confirm the current call, or override it with a note (required) and, optionally, new figures. */
+export const callDecisionSchema = z.discriminatedUnion('action', [
+  z.object({ action: z.literal('confirm'), note: noteText.optional().default('') }),
+  z.object({
+    action: z.literal('override'),
+    call: z.enum(['shorten', 'hold', 'stretch'], { error: 'Pick shorten, hold or stretch.' }),
+    note: noteText.pipe(z.string().min(1, 'An override needs a note saying why.')),
+    /** In the machine's meter unit (mi, km or h). */
+    nextInterval: optionalPositive('next interval'),
+    nextSampleOdometer: optionalPositive('odometer for the next sample'),
+    nextSampleOn: z.preprocess(
+      (v) => (v === '' ? undefined : v),
+      z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Enter the date as YYYY-MM-DD.').optional(),
+    ),
+  }),
+]);
+
+export type CallDecision = z.infer<typeof callDecisionSchema>;
+
+export interface CallHistoryEntry {
+  id: string;
+  call: IntervalCallKind;
+  source: 'engine' | 'confirmed' | 'override';
+  /** Stored units (km or h). */
+  nextInterval: number | null;
+  nextSampleOdometer: number | null;
+  nextSampleOn: string | null;
+  reasons: string[];
+  note: string;
+  madeByName: string | null;
+  createdAt: Date;
+}
+
+export interface ReviewNote {
+  id: string;
+  body: string;
+  authorName: string;
+  authorRole: string | null;
+  createdAt: Date;
+}
