@@ -5,7 +5,7 @@
  * - analyseSample({ machine, history, sample, limits? }) → { findings, worst, readingLevels, baselineStatus,
  *   bands, wearRates, cautions }. `history` holds the machine's previous accepted samples, oldest first;
  *   `limits` are a crew lead's overrides of DEFAULT_FIXED_LIMITS.
- * - makeIntervalCall({ machine, history, sample, limits?, analysis? }) → { call: 'shorten'|'hold'|'stretch',
+ * - makeIntervalCall({ machine, history, sample, limits?, analysis?, previousWorst? }) → { call: 'shorten'|'hold'|'stretch',
  *   nextIntervalDistance, nextSampleDue: { distance, date? }, reasons, basis }. Never beyond the
  *   manufacturer's longest interval (machine.maxIntervalDistance / maxIntervalDays).
  * - RULE_DEFINITIONS: id, title, description, source and thresholds of every rule, the same data the rule

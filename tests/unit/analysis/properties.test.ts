@@ -9,16 +9,37 @@ import type { Level, MachineProfile, SamplePoint } from '~/lib/analysis/types';
 const RANK: Record<Level, number> = { steady: 0, watch: 1, act: 2 };
 // Measurands whose concern is a rise (wear, contaminants, fuel, water, glycol, insolubles, TAN).
 const UP_CODES = MEASURANDS.filter((m) => m.concern === 'up').map((m) => m.code);
-const SOME_CODES: MeasurandCode[] = ['Fe', 'Al', 'Cu', 'Si', 'Na', 'K', 'B', 'Zn', 'P', 'KV100', 'FUEL', 'WATER'];
 
-const readingsArb = fc.dictionary(
-  fc.constantFrom(...SOME_CODES, ...UP_CODES),
-  fc.record({ value: fc.double({ min: 0, max: 300, noNaN: true }) }),
-  { maxKeys: 10 },
-) as fc.Arbitrary<SamplePoint['readings']>;
+// Clustered ranges so bands, trends and limits are actually crossed: most readings present, most values small.
+const RANGES: [MeasurandCode, number, number][] = [
+  ['Fe', 0, 120], ['Al', 0, 30], ['Cu', 0, 30], ['Cr', 0, 12], ['Pb', 0, 30], ['Sn', 0, 12], ['Si', 0, 30],
+  ['Na', 0, 80], ['K', 0, 30], ['B', 0, 30], ['Zn', 500, 1500], ['P', 500, 1300], ['KV100', 8, 18],
+  ['FUEL', 0, 7], ['WATER', 0, 0.15], ['GLYCOL', 0, 1], ['INSOL', 0, 2], ['TAN', 0, 5],
+];
+const RAISED_CODES = RANGES.map(([code]) => code).filter((code) => UP_CODES.includes(code));
+// Uniform over [min, max]: fc.double leans towards the ends of its range, which would starve the middle.
+function uniform(min: number, max: number): fc.Arbitrary<number> {
+  return fc.integer({ min: 0, max: 10_000 }).map((i) => min + ((max - min) * i) / 10_000);
+}
+
+// A machine's readings scatter around its own level (±20 %), so bands and trends are really crossed.
+function readingsAround(bases: (number | undefined)[]): fc.Arbitrary<SamplePoint['readings']> {
+  return fc.tuple(...bases.map(() => uniform(0.8, 1.2))).map((factors) => {
+    const readings: SamplePoint['readings'] = {};
+    bases.forEach((base, i) => {
+      if (base === undefined) return;
+      const code = RANGES[i]![0];
+      readings[code] = { value: code === 'GLYCOL' ? Math.round(base) : base * factors[i]! };
+    });
+    return readings;
+  });
+}
+const basesArb = fc.tuple(
+  ...RANGES.map(([, min, max]) => fc.option(uniform(min, max), { nil: undefined, freq: 6 })),
+);
 
 const machineArb: fc.Arbitrary<MachineProfile> = fc.record({
-  cooling: fc.constantFrom('air', 'oil', 'liquid'),
+  cooling: fc.constantFrom('air', 'oil', 'liquid', 'liquid'),
   distanceUnit: fc.constantFrom('mi', 'km', 'h'),
   maxIntervalDistance: fc.option(fc.integer({ min: 20, max: 20000 }), { nil: undefined }),
   maxIntervalDays: fc.option(fc.integer({ min: 30, max: 730 }), { nil: undefined }),
@@ -37,27 +58,41 @@ function buildSample(i: number, readings: SamplePoint['readings'], interval: num
   };
 }
 
-const scenarioArb = fc.record({
-  machine: machineArb,
-  historyReadings: fc.array(readingsArb, { maxLength: 12 }),
-  current: readingsArb,
-  interval: fc.integer({ min: 10, max: 12000 }),
-  product: fc.constantFrom('Valley Trail 10W-40', 'Ridge Synth 15W-50'),
-});
+const scenarioArb = basesArb.chain((bases) =>
+  fc.record({
+    machine: machineArb,
+    historyReadings: fc.array(readingsAround(bases), { maxLength: 12 }),
+    current: readingsAround(bases),
+    interval: fc.integer({ min: 10, max: 12000 }),
+    product: fc.constantFrom('Valley Trail 10W-40', 'Ridge Synth 15W-50'),
+  }),
+);
 
 describe('properties (fast-check)', () => {
   test('raising one reading whose concern is a rise never lowers its level', () => {
     fc.assert(
-      fc.property(scenarioArb, fc.constantFrom(...UP_CODES), fc.double({ min: 0.001, max: 500, noNaN: true }), (s, code, delta) => {
-        const history = s.historyReadings.map((r, i) => buildSample(i, r, s.interval, s.product));
-        const base = s.current[code]?.value ?? 0;
-        const before = buildSample(history.length, { ...s.current, [code]: { value: base } }, s.interval, s.product);
-        const after = buildSample(history.length, { ...s.current, [code]: { value: base + delta } }, s.interval, s.product);
-        const lb = analyseSample({ machine: s.machine, history, sample: before }).readingLevels[code] ?? 'steady';
-        const la = analyseSample({ machine: s.machine, history, sample: after }).readingLevels[code] ?? 'steady';
-        expect(RANK[la]).toBeGreaterThanOrEqual(RANK[lb]);
-      }),
-      { numRuns: 400 },
+      fc.property(
+        scenarioArb,
+        fc.constantFrom(...RAISED_CODES),
+        // The reading before: either anywhere from 0 to twice the top of its range (limits), or 0.8 to 2
+        // times the machine's usual level (band edges, trends); the raise is sized the same two ways.
+        fc.boolean(),
+        uniform(0, 2),
+        uniform(0.0001, 1),
+        (s, code, nearUsual, where, raise) => {
+          const history = s.historyReadings.map((r, i) => buildSample(i, r, s.interval, s.product));
+          const top = RANGES.find(([c]) => c === code)![2];
+          const usual = s.current[code]?.value ?? top / 2;
+          const beforeValue = nearUsual ? usual * (0.8 + 0.6 * where) : where * top;
+          const afterValue = beforeValue + (nearUsual ? 0.5 * usual * raise : raise * top);
+          const before = buildSample(history.length, { ...s.current, [code]: { value: beforeValue } }, s.interval, s.product);
+          const after = buildSample(history.length, { ...s.current, [code]: { value: afterValue } }, s.interval, s.product);
+          const lb = analyseSample({ machine: s.machine, history, sample: before }).readingLevels[code] ?? 'steady';
+          const la = analyseSample({ machine: s.machine, history, sample: after }).readingLevels[code] ?? 'steady';
+          expect(RANK[la]).toBeGreaterThanOrEqual(RANK[lb]);
+        },
+      ),
+      { numRuns: 1500 },
     );
   });
 
