@@ -119,6 +119,6 @@ export const ROLE_MATRIX: MatrixRow[] = [
     expect: { anonymous: 303, rider: 200, mechanic: 403, lead: 200, otherLead: 404 } },
   { route: '/machines/[id]/oil-change', method: 'GET', path: async (ctx) => `/machines/${await riderMachine(ctx)}/oil-change`,
     expect: { anonymous: 303, rider: 200, mechanic: 403, lead: 200, otherLead: 404 } },
-  { route: '/api/trends/[machineId]', method: 'GET', path: async (ctx) => `/api/trends/${await riderMachine(ctx)}`,
+  { route: '/api/trends/[machineId]', method: 'GET', path: async (ctx) => `/api/trends/${await riderMachine(ctx)}?measurands=Fe`,
     expect: { anonymous: 401, rider: 200, mechanic: 200, lead: 200, otherLead: 404 } },
 ];
