@@ -9,7 +9,6 @@ export interface NavItem {
 export const NAV_ITEMS: NavItem[] = [
   { href: '/', label: 'Home', audience: 'all' },
   { href: '/imports', label: 'Lab import', audience: 'signed-in' },
-  { href: '/imports', label: 'Lab import', audience: 'signed-in' },
   { href: '/crews', label: 'Crew', audience: 'signed-in' },
   { href: '/account', label: 'Account', audience: 'signed-in' },
   { href: '/sign-in', label: 'Sign in', audience: 'signed-out' },
