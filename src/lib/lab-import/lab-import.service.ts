@@ -312,12 +312,15 @@ export async function saveLabProfile(
  * or undecided; the crew always comes from the caller's session, never from the request.
  */
 export async function confirmLabImport(
-  db: Kysely<Database>,
+  db: Db,
   input: { crewId: string; userId: string; labFileId: string; decisions: Record<string, RowDecision> },
   hooks: ConfirmHooks = {},
 ): Promise<LabImportResult<ImportSummary>> {
+  // Inside a caller's transaction (the demo seed) the import joins it; otherwise it is its own transaction.
+  const inTransaction = <T>(work: (trx: Transaction<Database>) => Promise<T>): Promise<T> =>
+    db.isTransaction ? work(db as Transaction<Database>) : db.transaction().execute(work);
   try {
-    return await db.transaction().execute(async (trx) => {
+    return await inTransaction(async (trx) => {
       if (UUID.test(input.labFileId)) {
         // One confirm at a time per file: a second one waits here and then sees the first one's import.
         await sql`select id from lab_files where id = ${input.labFileId}::uuid and crew_id = ${input.crewId}::uuid for update`.execute(trx);

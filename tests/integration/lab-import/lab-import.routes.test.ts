@@ -26,7 +26,7 @@ function sessionOf(userId: string, crewId: string, role: Role = 'lead'): RouteCo
 function uploadRequest(bytes: Uint8Array, options: { html?: boolean; extra?: Record<string, string>; name?: string } = {}): Request {
   const form = new FormData();
   for (const [k, v] of Object.entries(options.extra ?? {})) form.append(k, v);
-  form.append('file', new Blob([bytes]), options.name ?? 'report.csv');
+  form.append('file', new Blob([bytes as BlobPart]), options.name ?? 'report.csv');
   return new Request('http://127.0.0.1/api/imports', {
     method: 'POST',
     headers: { accept: options.html ? 'text/html,application/xhtml+xml' : 'application/json' },
