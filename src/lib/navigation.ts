@@ -8,6 +8,8 @@ export interface NavItem {
 
 export const NAV_ITEMS: NavItem[] = [
   { href: '/', label: 'Home', audience: 'all' },
+  { href: '/machines', label: 'Machines', audience: 'signed-in' },
+  { href: '/samples', label: 'Samples', audience: 'signed-in' },
   { href: '/imports', label: 'Lab import', audience: 'signed-in' },
   { href: '/crews', label: 'Crew', audience: 'signed-in' },
   { href: '/account', label: 'Account', audience: 'signed-in' },

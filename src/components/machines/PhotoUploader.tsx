@@ -1,0 +1,63 @@
+// The oil change's photo uploader: Uppy's Dashboard (drag and drop, the phone's camera, progress, retry)
+// sending each photo to /api/photos. Each stored photo's id becomes a hidden photoIds input of the
+// surrounding form, so saving the oil change attaches them. Without JavaScript the form's own file input
+// does the job instead; this island switches that input off once it is running.
+import { useEffect, useState } from 'react';
+import Uppy from '@uppy/core';
+import XHRUpload from '@uppy/xhr-upload';
+import Dashboard from '@uppy/react/dashboard';
+import '@uppy/core/css/style.min.css';
+import '@uppy/dashboard/css/style.min.css';
+
+interface Props {
+  /** id of the plain file input this island replaces. */
+  fallbackInputId: string;
+  maxFileBytes: number;
+}
+
+interface UploadBody extends Record<string, unknown> {
+  photo?: { id: string };
+}
+
+export default function PhotoUploader({ fallbackInputId, maxFileBytes }: Props) {
+  const [uppy] = useState(() =>
+    new Uppy<Record<string, unknown>, UploadBody>({
+      restrictions: { maxFileSize: maxFileBytes, allowedFileTypes: ['image/*'], maxNumberOfFiles: 10 },
+      autoProceed: true,
+    }).use(XHRUpload, { endpoint: '/api/photos', fieldName: 'file', formData: true, limit: 2, withCredentials: true }),
+  );
+  const [ids, setIds] = useState<string[]>([]);
+
+  useEffect(() => {
+    const fallback = document.getElementById(fallbackInputId) as HTMLInputElement | null;
+    const wrapper = fallback?.closest('[data-photo-fallback]') as HTMLElement | null;
+    if (fallback) fallback.disabled = true;
+    if (wrapper) wrapper.hidden = true;
+    const onSuccess = (_file: unknown, response: { body?: UploadBody }) => {
+      const id = response.body?.photo?.id;
+      if (id) setIds((prev) => (prev.includes(id) ? prev : [...prev, id]));
+    };
+    uppy.on('upload-success', onSuccess);
+    return () => {
+      uppy.off('upload-success', onSuccess);
+      uppy.destroy();
+    };
+  }, [uppy, fallbackInputId]);
+
+  return (
+    <div data-testid="photo-uploader">
+      <Dashboard
+        uppy={uppy}
+        height={300}
+        width="100%"
+        proudlyDisplayPoweredByUppy={false}
+        showNativePhotoCameraButton
+        nativeCameraFacingMode="environment"
+        note="Photos only, up to 10 MB each."
+        locale={{ strings: { dropPasteFiles: 'Drop photos here or %{browseFiles}', browseFiles: 'choose photos' } }}
+      />
+      {ids.map((id) => <input key={id} type="hidden" name="photoIds" value={id} />)}
+      <p className="mt-2 text-sm" aria-live="polite">{ids.length > 0 ? `${ids.length} photo(s) ready; they are attached when you save.` : ''}</p>
+    </div>
+  );
+}

@@ -1,0 +1,52 @@
+import type { APIRoute } from 'astro';
+import { requireApiCrew } from '../../../lib/auth/guards';
+import { getConfig } from '../../../lib/config';
+import { getDb } from '../../../lib/db';
+import { jsonError, jsonOk } from '../../../lib/http/json';
+import { actorFrom, refusalJson } from '../../../lib/machines/page-context';
+import { PHOTO_MAX_BYTES } from '../../../lib/photos/photos';
+import { uploadPhoto } from '../../../lib/photos/photos.service';
+
+/** Room for the multipart envelope around one photo. */
+const ENVELOPE_BYTES = 64 * 1024;
+const tooLarge = (bytes: number) => jsonError(413, 'too_large', `The upload is ${(bytes / 1048576).toFixed(1)} MB; photos can be at most 10 MB each.`, { file: 'Photos can be at most 10 MB each.' });
+
+/** POST multipart/form-data with one `file`: checks and stores a photo, answers its id. */
+export const POST: APIRoute = async ({ request, locals }) => {
+  const g = requireApiCrew(locals);
+  if (g instanceof Response) return g;
+  if (!/^multipart\/form-data\b/i.test(request.headers.get('content-type') ?? '')) {
+    return jsonError(415, 'unsupported_media_type', 'Send the photo as multipart/form-data in a field named "file".');
+  }
+  const limit = PHOTO_MAX_BYTES + ENVELOPE_BYTES;
+  const declared = Number(request.headers.get('content-length') ?? 'NaN');
+  if (Number.isFinite(declared) && declared > limit) return tooLarge(declared);
+  // Read with a cap, so an upload without a length header is cut off instead of buffered whole.
+  const chunks: Uint8Array[] = [];
+  let size = 0;
+  if (request.body) {
+    const reader = request.body.getReader();
+    for (;;) {
+      const { done, value } = await reader.read();
+      if (done) break;
+      size += value.byteLength;
+      if (size > limit) {
+        await reader.cancel().catch(() => {});
+        return tooLarge(size);
+      }
+      chunks.push(value);
+    }
+  }
+  let form: FormData;
+  try {
+    form = await new Request(request.url, { method: 'POST', headers: { 'content-type': request.headers.get('content-type')! }, body: Buffer.concat(chunks) }).formData();
+  } catch {
+    return jsonError(400, 'invalid_form', 'The upload could not be read as a form.');
+  }
+  const file = form.get('file');
+  if (!file || typeof file === 'string') return jsonError(400, 'invalid_input', 'Attach the photo in a field named "file".', { file: 'Choose a photo.' });
+  const r = await uploadPhoto(getDb(), actorFrom(g), new Uint8Array(await file.arrayBuffer()), file.name || 'The file', getConfig().UPLOAD_DIR);
+  if (!r.ok) return refusalJson(r);
+  const p = r.value;
+  return jsonOk({ photo: { id: p.id, url: `/api/photos/${p.id}`, contentType: p.content_type, byteSize: p.byte_size, width: p.width, height: p.height, sha256: p.sha256 } }, 201);
+};
