@@ -7,7 +7,7 @@
 // the other lead is in crew B), creating the record with ctx.db if it needs one. Pages answer 303 to the
 // sign-in page for anonymous visitors; JSON endpoints answer 401. A record of another crew answers 404.
 import { randomUUID } from 'node:crypto';
-import type { Kysely } from 'kysely';
+import { sql, type Kysely } from 'kysely';
 import type { Database } from '../../src/lib/db/database';
 import { generateToken, hashToken } from '../../src/lib/auth/tokens';
 import { makeMachine } from './factories';
@@ -64,6 +64,12 @@ async function throwawayMember(ctx: MatrixContext): Promise<string> {
   return id;
 }
 
+async function devMail(ctx: MatrixContext): Promise<string> {
+  const { rows } = await sql<{ id: number }>`
+    insert into dev_mailbox (envelope_to, subject, text_body, raw) values ('matrix@crew-a.example', 'Matrix', 'body', 'raw') returning id`.execute(ctx.db);
+  return String(rows[0]!.id);
+}
+
 export const ROLE_MATRIX: MatrixRow[] = [
   // Public pages and the health check.
   { route: '/', method: 'GET', path: '/', expect: all(200) },
@@ -110,6 +116,10 @@ export const ROLE_MATRIX: MatrixRow[] = [
     expect: { anonymous: 401, rider: 403, mechanic: 403, lead: 204, otherLead: 404 } },
   { route: '/api/crews/[id]/members/[userId]', method: 'DELETE', path: async (ctx) => `/api/crews/${ctx.crewA.id}/members/${await throwawayMember(ctx)}`,
     expect: { anonymous: 401, rider: 403, mechanic: 403, lead: 204, otherLead: 404 } },
+
+  // The local relay's mailbox (mail helper): served only with DEV_MAILBOX=1, as in development and e2e.
+  { route: '/dev/mailbox', method: 'GET', path: '/dev/mailbox', expect: all(200), note: 'DEV_MAILBOX=1 only' },
+  { route: '/dev/mailbox/[id]', method: 'GET', path: async (ctx) => `/dev/mailbox/${await devMail(ctx)}`, expect: all(200), note: 'DEV_MAILBOX=1 only' },
 
   // Machines (machines helper): a machine of crew A owned by its rider.
   { route: '/machines', method: 'GET', path: '/machines', expect: signedInPage },
