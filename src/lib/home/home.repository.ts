@@ -1,0 +1,61 @@
+/** Queries of the crew home page; every one scoped by crew. */
+import { sql, type Kysely } from 'kysely';
+import type { Database } from '../db/database';
+
+/** Samples of the crew in a state, with machine name, oldest first (limited). */
+export async function listSamplesInState(db: Kysely<Database>, crewId: string, state: 'drawn' | 'results_in', limit = 50) {
+  return db
+    .selectFrom('samples')
+    .innerJoin('machines', 'machines.id', 'samples.machine_id')
+    .select(['samples.id', 'samples.bottle_code', 'samples.drawn_on', 'samples.machine_id', 'machines.name as machine_name'])
+    .where('samples.crew_id', '=', crewId)
+    .where('samples.state', '=', state)
+    .orderBy('samples.drawn_on')
+    .limit(limit)
+    .execute();
+}
+
+/** Samples shipped on or before `shippedBefore` (YYYY-MM-DD) with no results yet. */
+export async function listOverdueShipments(db: Kysely<Database>, crewId: string, shippedBefore: string, limit = 50) {
+  const { rows } = await sql<{ id: string; bottle_code: string; drawn_on: string; machine_name: string; shipped_on: string }>`
+    select s.id, s.bottle_code, s.drawn_on::text as drawn_on, m.name as machine_name,
+      coalesce((select max(e.at) from sample_events e where e.sample_id = s.id and e.state = 'shipped')::date, s.drawn_on)::text as shipped_on
+    from samples s join machines m on m.id = s.machine_id
+    where s.crew_id = ${crewId} and s.state = 'shipped'
+      and coalesce((select max(e.at) from sample_events e where e.sample_id = s.id and e.state = 'shipped')::date, s.drawn_on) <= ${shippedBefore}::date
+    order by shipped_on limit ${limit}
+  `.execute(db);
+  return rows;
+}
+
+/** Act findings on each machine's latest sample with results: the ones still open. */
+export async function listOpenActFindings(db: Kysely<Database>, crewId: string, limit = 50) {
+  const { rows } = await sql<{ finding_id: string; sample_id: string; bottle_code: string; drawn_on: string; machine_id: string; machine_name: string; rule_id: string; measurand: string | null; sentence: string }>`
+    select f.id as finding_id, ls.id as sample_id, ls.bottle_code, ls.drawn_on::text as drawn_on, m.id as machine_id, m.name as machine_name,
+      f.rule_id, f.measurand, f.sentence
+    from machines m
+    join lateral (
+      select s.id, s.bottle_code, s.drawn_on from samples s
+      where s.machine_id = m.id and s.state in ('results_in', 'reviewed') order by s.drawn_on desc, s.odometer desc limit 1
+    ) ls on true
+    join findings f on f.sample_id = ls.id and f.level = 'act'
+    where m.crew_id = ${crewId} and m.archived_at is null
+    order by ls.drawn_on desc, m.name, f.rule_id limit ${limit}
+  `.execute(db);
+  return rows;
+}
+
+/** Each active machine of the crew with its latest interval call and manufacturer limits, for the due check. */
+export async function listMachinesForDue(db: Kysely<Database>, crewId: string) {
+  const { rows } = await sql<{ id: string; name: string; meter: 'mi' | 'km' | 'h'; next_sample_on: string | null; next_sample_odometer: number | null;
+    last_change_on: string | null; last_change_odometer: number | null; max_interval_distance: number | null; max_interval_days: number | null }>`
+    select m.id, m.name, m.meter, ic.next_sample_on::text as next_sample_on, ic.next_sample_odometer,
+      oc.changed_on::text as last_change_on, oc.odometer as last_change_odometer, m.max_interval_distance, m.max_interval_days
+    from machines m
+    left join lateral (select next_sample_on, next_sample_odometer from interval_calls where machine_id = m.id order by created_at desc, id desc limit 1) ic on true
+    left join lateral (select changed_on, odometer from oil_changes where machine_id = m.id order by odometer desc, changed_on desc limit 1) oc on true
+    where m.crew_id = ${crewId} and m.archived_at is null
+    order by m.name
+  `.execute(db);
+  return rows;
+}

@@ -1,0 +1,50 @@
+/** The crew home: what needs doing now, each list scoped to the current crew. */
+import type { Kysely } from 'kysely';
+import type { Database } from '../db/database';
+import { listOdometerHistory } from '../overview/overview.repository';
+import { estimateCurrentOdometer, findSampleDue, type DueStatus, type OdometerEstimate } from './odometer-estimate';
+import { listMachinesForDue, listOpenActFindings, listOverdueShipments, listSamplesInState } from './home.repository';
+
+/** Shipped samples without results after this many days surface on the home page (PRODUCT.md, issue 7). */
+export const SHIPPED_OVERDUE_DAYS = 21;
+
+export interface DueMachine {
+  id: string;
+  name: string;
+  meter: 'mi' | 'km' | 'h';
+  due: DueStatus;
+  estimate: OdometerEstimate | null;
+  /** 'call' when the interval call set the target; 'manufacturer' when only the manual's interval did. */
+  target: 'call' | 'manufacturer';
+  nextSampleOn: string | null;
+  nextSampleOdometer: number | null;
+}
+
+function addDays(iso: string, days: number): string {
+  return new Date(Date.parse(`${iso}T00:00:00Z`) + days * 86_400_000).toISOString().slice(0, 10);
+}
+
+/** Everything on the crew home, for `today` (YYYY-MM-DD). */
+export async function loadCrewHome(db: Kysely<Database>, crewId: string, today: string) {
+  const [drawn, overdue, waiting, act, machines] = await Promise.all([
+    listSamplesInState(db, crewId, 'drawn'),
+    listOverdueShipments(db, crewId, addDays(today, -SHIPPED_OVERDUE_DAYS)),
+    listSamplesInState(db, crewId, 'results_in'),
+    listOpenActFindings(db, crewId),
+    listMachinesForDue(db, crewId),
+  ]);
+  const histories = await listOdometerHistory(db, machines.map((m) => m.id));
+  const due: DueMachine[] = [];
+  for (const m of machines) {
+    const estimate = estimateCurrentOdometer(histories.get(m.id) ?? [], today);
+    const fromCall = m.next_sample_on !== null || m.next_sample_odometer !== null;
+    // Without a call, the manufacturer's interval from the last oil change is the target.
+    const nextSampleOn = fromCall ? m.next_sample_on : m.last_change_on && m.max_interval_days ? addDays(m.last_change_on, m.max_interval_days) : null;
+    const nextSampleOdometer = fromCall
+      ? m.next_sample_odometer === null ? null : Number(m.next_sample_odometer)
+      : m.last_change_odometer !== null && m.max_interval_distance !== null ? Number(m.last_change_odometer) + Number(m.max_interval_distance) : null;
+    const status = findSampleDue({ today, estimate, nextSampleOn, nextSampleOdometer });
+    if (status.due) due.push({ id: m.id, name: m.name, meter: m.meter, due: status, estimate, target: fromCall ? 'call' : 'manufacturer', nextSampleOn, nextSampleOdometer });
+  }
+  return { drawn, overdue, waiting, act, due };
+}
