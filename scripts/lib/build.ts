@@ -26,7 +26,8 @@ export function buildIfNeeded(force = false): boolean {
   if (!force && !buildIsStale()) return false;
   console.log('[build] building the server…');
   const code = run(path.join(ROOT, 'node_modules/.bin/astro'), ['build', '--silent'], {
-    env: { ...process.env, ASTRO_TELEMETRY_DISABLED: '1' },
+    // Always a production build: under Vitest NODE_ENV is 'test', which would bundle React's development JSX.
+    env: { ...process.env, NODE_ENV: 'production', ASTRO_TELEMETRY_DISABLED: '1' },
   });
   if (code !== 0) throw new Error('astro build failed (see above)');
   return true;
