@@ -3,6 +3,7 @@
 // on an empty database.
 import { sql, type Kysely } from 'kysely';
 import type { Database } from '../src/lib/db/database';
+import { DEMO_ACCOUNTS, seedAccounts } from './seed-accounts';
 
 /** True when the database holds no users yet (a fresh install). */
 export async function isDatabaseEmpty(db: Kysely<Database>): Promise<boolean> {
@@ -13,8 +14,9 @@ export async function isDatabaseEmpty(db: Kysely<Database>): Promise<boolean> {
 /** Loads the demo scenario into an empty database, all or nothing. Returns a one-line summary. */
 export async function seedDemo(db: Kysely<Database>): Promise<string> {
   return db.transaction().execute(async (trx) => {
-    const summary: string[] = [];
-    void trx;
-    return summary.join(', ') || 'no demo steps yet';
+    const accounts = await seedAccounts(trx);
+    const summary = [`${DEMO_ACCOUNTS.length} demo accounts in 2 crews`];
+    void accounts;
+    return summary.join(', ');
   });
 }
