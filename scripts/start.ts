@@ -90,7 +90,8 @@ let stopping = false;
 async function shutdown(code = 0): Promise<void> {
   if (stopping) return;
   stopping = true;
-  for (const child of children.reverse()) await stopService(child);
+  // The worker may need up to 30 s to finish a running job; stopping it sooner risks a resend.
+  for (const child of children.reverse()) await stopService(child, 35_000);
   if (ownsPidFile) rmSync(PID_FILE, { force: true });
   if (children.length > 0) console.log('[start] stopped (the database keeps running; `npm run db stop` stops it)');
   process.exit(code);
