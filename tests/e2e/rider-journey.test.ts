@@ -88,8 +88,13 @@ describe('rider journey on a phone', () => {
     await screenshot(page, 'rider-04-oil-change-form');
     await Promise.all([page.waitForURL(/\?logged=1$/), page.getByRole('button', { name: 'Save oil change' }).click()]);
     const img = page.locator('[data-testid=oil-changes] img').first();
-    await img.waitFor();
-    expect(await img.evaluate((el) => (el as HTMLImageElement).complete && (el as HTMLImageElement).naturalWidth)).toBe(64);
+    await img.scrollIntoViewIfNeeded();
+    // The thumbnail loads lazily: wait for it, then check the browser decoded the stored photo.
+    const width = await img.evaluate((el) => {
+      const im = el as HTMLImageElement;
+      return im.complete && im.naturalWidth > 0 ? im.naturalWidth : new Promise<number>((resolve) => im.addEventListener('load', () => resolve(im.naturalWidth), { once: true }));
+    });
+    expect(width).toBe(64);
     const src = await img.getAttribute('src');
     const res = await page.request.get(src!);
     expect(res.headers()['content-type']).toBe('image/png');
@@ -194,7 +199,8 @@ describe('rider journey on a phone', () => {
     expect(await page.evaluate(() => JSON.parse(localStorage.getItem('sumpwise.drainCards.v1') ?? '[]').length)).toBe(1);
     await screenshot(page, 'rider-12-drain-card-offline');
     await context.setOffline(false);
-    await page.getByText(/Bottle KIT-.* is registered/).waitFor({ timeout: 20_000 });
+    // Back online, the waiting card is sent and its sample opens, as a direct send would.
+    await page.waitForURL(/\/samples\/[0-9a-f-]{36}\?registered=1$/, { timeout: 20_000 });
     expect(await page.evaluate(() => JSON.parse(localStorage.getItem('sumpwise.drainCards.v1') ?? '[]').length)).toBe(0);
     const list = await page.request.get('/api/samples');
     const body = (await list.json()) as { samples: { bottleCode: string }[] };

@@ -31,6 +31,12 @@ export default function DrainCardQueue({ mode, formId, machineId, machineName }:
         if (out.kind === 'sent') {
           dropCard(window.localStorage, card.clientKey);
           setStatus(`Bottle ${card.body['bottleCode'] ?? ''} of ${card.machineName} is registered.`);
+          // The card still on screen has gone through: show its sample, as a direct send would.
+          const onScreen = formId ? (document.getElementById(formId) as HTMLFormElement | null)?.elements.namedItem('clientKey') : null;
+          if (onScreen instanceof HTMLInputElement && onScreen.value === card.clientKey) {
+            window.location.assign(`/samples/${out.sampleId}?registered=1`);
+            return;
+          }
         } else {
           enqueueCard(window.localStorage, { ...card, refused: Object.values(out.fields)[0] ?? out.message });
         }
@@ -39,7 +45,7 @@ export default function DrainCardQueue({ mode, formId, machineId, machineName }:
       busy.current = false;
       refresh();
     }
-  }, []);
+  }, [formId]);
 
   useEffect(() => {
     refresh();
