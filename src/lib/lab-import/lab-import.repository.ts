@@ -213,25 +213,28 @@ export async function moveReadingsToHistory(db: Db, sampleIds: readonly string[]
   return moved.rows[0]?.n ?? 0;
 }
 
-export interface ReadingInsert {
-  sampleId: string;
-  measurand: string;
-  value: number;
-  qualifier: '<' | '>' | null;
+/** Readings as parallel columns: index i of each array is one reading. */
+export interface ReadingColumns {
+  sampleIds: string[];
+  measurands: string[];
+  values: number[];
+  qualifiers: ('<' | '>' | null)[];
 }
 
-/** Bulk insert of readings as column arrays (one statement per 50,000 rows, whatever the file's width). */
-export async function insertReadings(db: Db, rows: readonly ReadingInsert[], importId: string): Promise<number> {
-  const CHUNK = 50_000;
-  for (let from = 0; from < rows.length; from += CHUNK) {
-    const part = rows.slice(from, from + CHUNK);
+/** Bulk insert of readings as column arrays (one statement per 20,000 rows, whatever the file's width). */
+export async function insertReadings(db: Db, rows: ReadingColumns, importId: string): Promise<number> {
+  // 20,000 rows keep each statement's serialised arrays around a megabyte.
+  const CHUNK = 20_000;
+  const n = rows.sampleIds.length;
+  for (let from = 0; from < n; from += CHUNK) {
+    const to = Math.min(n, from + CHUNK);
     await sql`
       insert into readings (sample_id, measurand, value, qualifier, lab_import_id)
       select s, m, v, q, ${importId}::uuid
-      from unnest(${sql.val(part.map((r) => r.sampleId))}::uuid[], ${sql.val(part.map((r) => r.measurand))}::text[],
-                  ${sql.val(part.map((r) => r.value))}::float8[], ${sql.val(part.map((r) => r.qualifier))}::text[]) as t(s, m, v, q)`.execute(db);
+      from unnest(${sql.val(rows.sampleIds.slice(from, to))}::uuid[], ${sql.val(rows.measurands.slice(from, to))}::text[],
+                  ${sql.val(rows.values.slice(from, to))}::float8[], ${sql.val(rows.qualifiers.slice(from, to))}::text[]) as t(s, m, v, q)`.execute(db);
   }
-  return rows.length;
+  return n;
 }
 
 /** Move samples to a state, with one sample_events row each. */
@@ -318,25 +321,19 @@ export interface FindingInsert {
   sentence: string;
 }
 
-/** Replace the findings of these samples with new ones. */
+/** Replace the findings of these samples with new ones (column arrays: one statement per 20,000 findings). */
 export async function replaceFindings(db: Db, sampleIds: readonly string[], rows: readonly FindingInsert[]): Promise<void> {
   if (sampleIds.length === 0) return;
   await db.deleteFrom('findings').where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`).execute();
-  const CHUNK = 2_000;
+  const CHUNK = 10_000;
   for (let from = 0; from < rows.length; from += CHUNK) {
-    await db
-      .insertInto('findings')
-      .values(
-        rows.slice(from, from + CHUNK).map((f) => ({
-          sample_id: f.sampleId,
-          measurand: f.measurand,
-          level: f.level,
-          rule_id: f.ruleId,
-          numbers: JSON.stringify(f.numbers),
-          sentence: f.sentence,
-        })),
-      )
-      .execute();
+    const part = rows.slice(from, from + CHUNK);
+    await sql`
+      insert into findings (sample_id, measurand, level, rule_id, numbers, sentence)
+      select s, m, l, r, n::jsonb, t
+      from unnest(${sql.val(part.map((f) => f.sampleId))}::uuid[], ${sql.val(part.map((f) => f.measurand))}::text[],
+                  ${sql.val(part.map((f) => f.level))}::text[], ${sql.val(part.map((f) => f.ruleId))}::text[],
+                  ${sql.val(part.map((f) => JSON.stringify(f.numbers)))}::text[], ${sql.val(part.map((f) => f.sentence))}::text[]) as x(s, m, l, r, n, t)`.execute(db);
   }
 }
 
@@ -358,24 +355,16 @@ export async function replaceEngineCalls(db: Db, sampleIds: readonly string[], r
     .where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`)
     .where('source', '=', 'engine')
     .execute();
-  const CHUNK = 2_000;
+  const CHUNK = 20_000;
   for (let from = 0; from < rows.length; from += CHUNK) {
-    await db
-      .insertInto('interval_calls')
-      .values(
-        rows.slice(from, from + CHUNK).map((c) => ({
-          sample_id: c.sampleId,
-          machine_id: c.machineId,
-          call: c.call,
-          next_interval: c.nextInterval,
-          next_sample_odometer: c.nextSampleOdometer,
-          next_sample_on: c.nextSampleOn,
-          reasons: JSON.stringify(c.reasons),
-          source: 'engine' as const,
-          made_by: null,
-        })),
-      )
-      .execute();
+    const part = rows.slice(from, from + CHUNK);
+    await sql`
+      insert into interval_calls (sample_id, machine_id, call, next_interval, next_sample_odometer, next_sample_on, reasons, source)
+      select s, m, c, ni, no, nd::date, r::jsonb, 'engine'
+      from unnest(${sql.val(part.map((c) => c.sampleId))}::uuid[], ${sql.val(part.map((c) => c.machineId))}::uuid[],
+                  ${sql.val(part.map((c) => c.call))}::text[], ${sql.val(part.map((c) => c.nextInterval))}::float8[],
+                  ${sql.val(part.map((c) => c.nextSampleOdometer))}::float8[], ${sql.val(part.map((c) => c.nextSampleOn))}::text[],
+                  ${sql.val(part.map((c) => JSON.stringify(c.reasons)))}::text[]) as x(s, m, c, ni, no, nd, r)`.execute(db);
   }
 }
 

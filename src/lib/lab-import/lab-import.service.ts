@@ -369,16 +369,23 @@ export async function confirmLabImport(
       const replacedIds = writes.filter((r) => r.decision?.action === 'replace').map((r) => sampleOf.get(r.line)?.sampleId).filter((id): id is string => id !== undefined);
       await repo.moveReadingsToHistory(trx, replacedIds, imported.id);
 
-      const readingRows: repo.ReadingInsert[] = [];
+      // Column arrays straight from the rows: no object per reading, for files of many thousand rows.
+      const columns: repo.ReadingColumns = { sampleIds: [], measurands: [], values: [], qualifiers: [] };
+      const known = new Map<string, SamplePoint['readings']>();
       for (const row of writes) {
         const target = sampleOf.get(row.line);
         if (!target) continue;
-        for (const [measurand, reading] of Object.entries(row.readings)) {
+        known.set(target.sampleId, row.readings);
+        for (const measurand in row.readings) {
+          const reading = row.readings[measurand as MeasurandCode];
           if (!reading) continue;
-          readingRows.push({ sampleId: target.sampleId, measurand, value: reading.value, qualifier: reading.qualifier ?? null });
+          columns.sampleIds.push(target.sampleId);
+          columns.measurands.push(measurand);
+          columns.values.push(reading.value);
+          columns.qualifiers.push(reading.qualifier ?? null);
         }
       }
-      await repo.insertReadings(trx, readingRows, imported.id);
+      await repo.insertReadings(trx, columns, imported.id);
       await hooks.afterReadings?.(trx);
 
       const sampleIds = [...new Set([...sampleOf.values()].map((s) => s.sampleId))];
@@ -391,7 +398,7 @@ export async function confirmLabImport(
         byMachine.set(machineId, set);
       }
       let findingsWritten = 0;
-      for (const [machineId, changed] of byMachine) findingsWritten += await recomputeMachineFindings(trx, machineId, changed);
+      for (const [machineId, changed] of byMachine) findingsWritten += await recomputeMachineFindings(trx, machineId, changed, known);
 
       return {
         ok: true as const,
@@ -451,14 +458,20 @@ const LIMIT_KEYS: Partial<Record<string, keyof FixedLimits>> = {
 /**
  * Recompute findings and the engine's interval call for `changed` samples of one machine, each against the
  * machine's earlier accepted samples (in baseline, with readings), plus every later sample whose history
- * they are part of. Returns the number of findings stored.
+ * they are part of. `known` holds readings already in memory by sample id. Returns the number of findings stored.
  */
-export async function recomputeMachineFindings(trx: Db, machineId: string, changed: ReadonlySet<string>): Promise<number> {
+export async function recomputeMachineFindings(
+  trx: Db,
+  machineId: string,
+  changed: ReadonlySet<string>,
+  known: ReadonlyMap<string, SamplePoint['readings']> = new Map(),
+): Promise<number> {
   const machineRow = await repo.findMachineProfile(trx, machineId);
   if (!machineRow) return 0;
   const [samples, limitRows] = await Promise.all([repo.findSamplesWithReadings(trx, machineId), repo.findCrewLimits(trx, machineRow.crew_id)]);
-  const readingRows = await repo.findReadingsOfSamples(trx, samples.map((s) => s.id));
-  const readingsBySample = new Map<string, SamplePoint['readings']>();
+  // Readings this import just wrote are in memory already; only the machine's earlier ones are read back.
+  const readingRows = await repo.findReadingsOfSamples(trx, samples.filter((s) => !known.has(s.id)).map((s) => s.id));
+  const readingsBySample = new Map<string, SamplePoint['readings']>(known);
   for (const r of readingRows) {
     if (!isMeasurandCode(r.measurand)) continue;
     const map = readingsBySample.get(r.sample_id) ?? {};

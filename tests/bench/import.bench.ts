@@ -1,0 +1,168 @@
+/**
+ * Lab import budget: a 10,000-row × 30-column report imported end to end (store, preview with bottle matching,
+ * one-transaction confirm with findings and interval calls) into a scratch database, beside two floors:
+ * papaparse parsing the same file alone, and one bulk insert of the same readings. Target: the whole import
+ * within 5 × (papaparse + bulk insert), peak RSS under 300 MB. Prints JSON; no assertions.
+ * Run: node --import tsx tests/bench/import.bench.ts
+ */
+import { performance } from 'node:perf_hooks';
+import { sql } from 'kysely';
+import Papa from 'papaparse';
+import { ELEMENT_CODES } from '../../src/lib/analysis/measurands';
+import { createDb } from '../../src/lib/db/db';
+import { parseLabCsv } from '../../src/lib/import/lab-csv';
+import { confirmLabImport, previewLabImport, storeLabFile } from '../../src/lib/lab-import/lab-import.service';
+import { normaliseBottleCode } from '../../src/lib/samples/bottle-code';
+import { dropEmbeddedDatabase, ensureEmbeddedDatabase, migrateToLatest } from '../../scripts/lib/database';
+
+const ROWS = 10_000;
+const MACHINES = 20;
+const DB_NAME = 'sumpwise_bench';
+
+/** Deterministic pseudo-random numbers (mulberry32), so every run imports the same file. */
+function createRandom(seed: number): () => number {
+  let a = seed;
+  return () => {
+    a = (a + 0x6d2b79f5) | 0;
+    let t = Math.imul(a ^ (a >>> 15), 1 | a);
+    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+const code = (i: number) => `SW-${String(i).padStart(5, '0')}`;
+const dayOf = (i: number) => new Date(Date.UTC(2020, 0, 1) + Math.floor(i / MACHINES) * 86_400_000).toISOString().slice(0, 10);
+
+/** 30 columns: bottle, sampled, reported, 22 elements, KV40, KV100, VI, TBN, fuel %. Invented values. */
+function generateReport(): string {
+  const random = createRandom(20261202);
+  const header = ['Bottle', 'Sampled', 'Reported', ...ELEMENT_CODES, 'KV40', 'KV100', 'VI', 'TBN', 'Fuel %'];
+  const lines = [header.join(',')];
+  for (let i = 0; i < ROWS; i += 1) {
+    const cells = [code(i), dayOf(i), dayOf(i + MACHINES * 7)];
+    for (let e = 0; e < ELEMENT_CODES.length; e += 1) {
+      const r = random();
+      cells.push(r < 0.1 ? '<1' : String(Math.round(r * 600) / 10));
+    }
+    cells.push(String(Math.round((80 + random() * 20) * 10) / 10), String(Math.round((12 + random() * 2) * 10) / 10));
+    cells.push(String(Math.round(140 + random() * 10)), String(Math.round(60 + random() * 20) / 10), String(Math.round(random() * 30) / 10));
+    lines.push(cells.join(','));
+  }
+  return `${lines.join('\n')}\n`;
+}
+
+const ms = (from: number) => Math.round((performance.now() - from) * 10) / 10;
+const mb = (bytes: number) => Math.round((bytes / (1024 * 1024)) * 10) / 10;
+
+async function main(): Promise<void> {
+  const url = ensureEmbeddedDatabase(DB_NAME);
+  await migrateToLatest(url, false);
+  const db = createDb(url, { max: 4 });
+  let peakHeap = 0;
+  let peakRssImport = 0;
+  let importing = false;
+  const sampler = setInterval(() => {
+    const m = process.memoryUsage();
+    peakHeap = Math.max(peakHeap, m.heapUsed);
+    if (importing) peakRssImport = Math.max(peakRssImport, m.rss);
+  }, 5);
+  try {
+    const text = generateReport();
+    const bytes = new TextEncoder().encode(text);
+
+    // Scratch data: one crew, 20 machines, 10,000 registered samples (one per row).
+    const user = await db.insertInto('users').values({ id: 'bench-user', email: 'bench@example.test', display_name: 'Bench', password_hash: 'x', email_verified_at: new Date() } as never).returning('id').executeTakeFirstOrThrow();
+    const crew = await db.insertInto('crews').values({ name: 'Bench crew' } as never).returning('id').executeTakeFirstOrThrow();
+    const machineIds: string[] = [];
+    for (let m = 0; m < MACHINES; m += 1) {
+      const row = await db.insertInto('machines').values({
+        crew_id: crew.id, owner_user_id: user.id, name: `Bench ${m}`, engine_layout: 'single', cooling: 'liquid', meter: 'km',
+        recommended_grades: JSON.stringify([]), max_interval_distance: 6000,
+      } as never).returning('id').executeTakeFirstOrThrow();
+      machineIds.push(row.id);
+    }
+    await sql`
+      insert into samples (crew_id, machine_id, bottle_code, bottle_code_norm, drawn_on, odometer, distance_on_oil, sae_grade, created_by, state)
+      select ${crew.id}::uuid, (${sql.val(machineIds)}::uuid[])[(i % ${MACHINES}) + 1], c, n, d::date, 3000 * (i / ${MACHINES} + 1), 3000, '10W-40', ${user.id}, 'shipped'
+      from unnest(${sql.val(Array.from({ length: ROWS }, (_, i) => i))}::int[], ${sql.val(Array.from({ length: ROWS }, (_, i) => code(i)))}::text[],
+                  ${sql.val(Array.from({ length: ROWS }, (_, i) => normaliseBottleCode(code(i))))}::text[], ${sql.val(Array.from({ length: ROWS }, (_, i) => dayOf(i)))}::text[]) as t(i, c, n, d)`.execute(db);
+
+    // The import, phase by phase.
+    const rssBeforeImport = process.memoryUsage().rss;
+    importing = true;
+    const storeStart = performance.now();
+    const stored = await storeLabFile(db, { crewId: crew.id, userId: user.id, fileName: 'bench.csv', bytes });
+    const storeMs = ms(storeStart);
+    if (!stored.ok) throw new Error(stored.message);
+    const previewStart = performance.now();
+    // The preview is its own request in the app: its result is not kept while the confirm runs.
+    const clean = await previewLabImport(db, { crewId: crew.id, labFileId: stored.value.labFileId }).then((p) => p.ok && p.value.canConfirm);
+    const previewMs = ms(previewStart);
+    if (!clean) throw new Error('the bench file should preview clean');
+    const confirmStart = performance.now();
+    const confirmed = await confirmLabImport(db, { crewId: crew.id, userId: user.id, labFileId: stored.value.labFileId, decisions: {} });
+    const confirmMs = ms(confirmStart);
+    if (!confirmed.ok) throw new Error(confirmed.message);
+    importing = false;
+    const peakRss = process.resourceUsage().maxRSS * 1024;
+
+    // Floor 1: papaparse alone on the same text (best of 3, warm).
+    let papaMs = Infinity;
+    for (let run = 0; run < 3; run += 1) {
+      const t = performance.now();
+      Papa.parse<string[]>(text, { skipEmptyLines: true });
+      papaMs = Math.min(papaMs, ms(t));
+    }
+    // The reader alone, for scale.
+    const readerStart = performance.now();
+    const parsed = parseLabCsv(text);
+    const readerMs = ms(readerStart);
+
+    // Floor 2: the same readings in one bulk insert, into a bare table and into the real readings table
+    // (its key and foreign keys; rolled back).
+    const readings = parsed.rows.flatMap((r) => Object.entries(r.readings).map(([m, v]) => ({ s: r.bottle.normalised, m, v: v!.value, q: v!.qualifier ?? null })));
+    await sql`create table bench_readings (bottle text, measurand text, value float8, qualifier text)`.execute(db);
+    const bulkStart = performance.now();
+    await sql`insert into bench_readings select * from unnest(${sql.val(readings.map((r) => r.s))}::text[], ${sql.val(readings.map((r) => r.m))}::text[], ${sql.val(readings.map((r) => r.v))}::float8[], ${sql.val(readings.map((r) => r.q))}::text[])`.execute(db);
+    const bulkBareMs = ms(bulkStart);
+    const bulkRealMs = await db.transaction().execute(async (trx) => {
+      await sql`delete from readings`.execute(trx);
+      const t = performance.now();
+      await sql`insert into readings (sample_id, measurand, value, qualifier, lab_import_id)
+        select s.id, b.measurand, b.value, b.qualifier, ${confirmed.value.importId}::uuid from bench_readings b join samples s on s.bottle_code_norm = b.bottle`.execute(trx);
+      const took = ms(t);
+      throw Object.assign(new Error('rollback'), { took });
+    }).catch((e: { took?: number }) => e.took ?? Number.NaN);
+
+    const wholeMs = Math.round((storeMs + previewMs + confirmMs) * 10) / 10;
+    const floorMs = Math.round((papaMs + bulkRealMs) * 10) / 10;
+    console.log(JSON.stringify({
+      file: { rows: ROWS, columns: parsed.columns.length, bytes: bytes.byteLength, machines: MACHINES },
+      // The floor: papaparse alone + one bulk insert of the readings into the readings table (key and foreign keys).
+      floor: { papaparseMs: papaMs, bulkInsertBareTableMs: bulkBareMs, bulkInsertReadingsTableMs: bulkRealMs, totalMs: floorMs },
+      import: {
+        readerParseMs: readerMs,
+        storeMs,
+        // Preview = read the stored file, parse, match 10,000 bottle codes and decide every row (the validation).
+        previewValidationMs: previewMs,
+        // Confirm = the preview again under a row lock, then every write, findings and interval calls, in one transaction.
+        confirmWriteMs: confirmMs,
+        wholeMs,
+        samplesWritten: confirmed.value.samplesWritten,
+        readingsWritten: confirmed.value.readingsWritten,
+        findingsWritten: confirmed.value.findingsWritten,
+      },
+      ratioToFloor: Math.round((wholeMs / floorMs) * 100) / 100,
+      targetRatio: 5,
+      // Process peak (maxRSS, includes generating the file), the peak sampled while the import ran, and the RSS before it.
+      memory: { peakRssMb: mb(peakRss), peakRssDuringImportMb: mb(peakRssImport), rssBeforeImportMb: mb(rssBeforeImport), peakHeapMb: mb(peakHeap), targetMb: 300 },
+      node: process.version,
+    }, null, 2));
+  } finally {
+    clearInterval(sampler);
+    await db.destroy();
+    dropEmbeddedDatabase(DB_NAME);
+  }
+}
+
+await main();
