@@ -10,9 +10,12 @@ export const NAV_ITEMS: NavItem[] = [
   { href: '/', label: 'Home', audience: 'all' },
   { href: '/machines', label: 'Machines', audience: 'signed-in' },
   { href: '/samples', label: 'Samples', audience: 'signed-in' },
+  { href: '/overview', label: 'Overview', audience: 'signed-in' },
   { href: '/imports', label: 'Lab import', audience: 'signed-in' },
   { href: '/crews', label: 'Crew', audience: 'signed-in' },
   { href: '/account', label: 'Account', audience: 'signed-in' },
+  { href: '/tools', label: 'Oil tools', audience: 'all' },
+  { href: '/rules', label: 'How calls are made', audience: 'all' },
   { href: '/sign-in', label: 'Sign in', audience: 'signed-out' },
   { href: '/sign-up', label: 'Sign up', audience: 'signed-out' },
 ];
