@@ -48,6 +48,45 @@ async function riderMachine(ctx: MatrixContext): Promise<string> {
   return m.id;
 }
 
+/** Pages and endpoints of a machine's own records: its rider and the lead; mechanics read only. */
+const ownerPage = { anonymous: 303, rider: 200, mechanic: 403, lead: 200, otherLead: 404 };
+const memberApi = { anonymous: 401, rider: 200, mechanic: 200, lead: 200, otherLead: 404 };
+const ownerApi = (ok: number): Record<Visitor, number> => ({ anonymous: 401, rider: ok, mechanic: 403, lead: ok, otherLead: 404 });
+
+async function riderSample(ctx: MatrixContext): Promise<string> {
+  const machineId = await riderMachine(ctx);
+  const code = `MX${randomUUID().slice(0, 8).toUpperCase()}`;
+  const s = await ctx.db.insertInto('samples').values({
+    crew_id: ctx.crewA.id, machine_id: machineId, bottle_code: code, bottle_code_norm: code, drawn_on: '2025-01-01', odometer: 100,
+    created_by: ctx.crewA.riderId,
+  }).returning('id').executeTakeFirstOrThrow();
+  return s.id;
+}
+
+async function riderWearPart(ctx: MatrixContext): Promise<string> {
+  const machineId = await riderMachine(ctx);
+  const p = await ctx.db.insertInto('wear_parts').values({
+    crew_id: ctx.crewA.id, machine_id: machineId, name: 'Matrix plates', new_min_mm: 2.9, new_max_mm: 3.1, service_limit_mm: 2.6,
+  }).returning('id').executeTakeFirstOrThrow();
+  return `/machines/${machineId}/wear-parts/${p.id}`;
+}
+
+/** A photo of crew A with its file in the e2e server's upload folder (tests/e2e/helpers/server.ts names it). */
+async function crewPhoto(ctx: MatrixContext): Promise<string> {
+  const { mkdirSync, writeFileSync } = await import('node:fs');
+  const path = await import('node:path');
+  const { createHash } = await import('node:crypto');
+  const bytes = Buffer.from('89504e470d0a1a0a0000000d49484452000000010000000108060000001f15c4890000000d4944415478da63f8cfc0f01f0005000200ff5f1b5c0000000049454e44ae426082', 'hex');
+  const sha = createHash('sha256').update(bytes).digest('hex');
+  const dir = process.env.MATRIX_UPLOAD_DIR ?? path.resolve(new URL('../../.data/sumpwise_e2e-uploads', import.meta.url).pathname);
+  mkdirSync(path.join(dir, sha.slice(0, 2)), { recursive: true });
+  writeFileSync(path.join(dir, sha.slice(0, 2), sha), bytes);
+  const p = await ctx.db.insertInto('photos').values({
+    crew_id: ctx.crewA.id, sha256: sha, content_type: 'image/png', byte_size: bytes.length, created_by: ctx.crewA.riderId,
+  }).returning('id').executeTakeFirstOrThrow();
+  return p.id;
+}
+
 async function openInvitation(ctx: MatrixContext): Promise<string> {
   const token = generateToken();
   await ctx.db.insertInto('crew_invitations').values({
@@ -129,6 +168,36 @@ export const ROLE_MATRIX: MatrixRow[] = [
     expect: { anonymous: 303, rider: 200, mechanic: 403, lead: 200, otherLead: 404 } },
   { route: '/machines/[id]/oil-change', method: 'GET', path: async (ctx) => `/machines/${await riderMachine(ctx)}/oil-change`,
     expect: { anonymous: 303, rider: 200, mechanic: 403, lead: 200, otherLead: 404 } },
+  // Rider side (machines helper): drain cards, samples, wear parts, photos and their JSON endpoints.
+  { route: '/machines/[id]/drain-card', method: 'GET', path: async (ctx) => `/machines/${await riderMachine(ctx)}/drain-card`, expect: ownerPage },
+  { route: '/machines/[id]/drain-card', method: 'POST', path: async (ctx) => `/machines/${await riderMachine(ctx)}/drain-card`,
+    form: { bottleCode: '', drawnOn: '2025-01-01', odometer: '10' }, expect: { anonymous: 303, rider: 400, mechanic: 403, lead: 400, otherLead: 404 }, note: 'a card with no bottle code' },
+  { route: '/machines/[id]/wear-parts/new', method: 'GET', path: async (ctx) => `/machines/${await riderMachine(ctx)}/wear-parts/new`, expect: ownerPage },
+  { route: '/machines/[id]/wear-parts/[partId]', method: 'GET', path: async (ctx) => riderWearPart(ctx), expect: memberPage },
+  { route: '/samples', method: 'GET', path: '/samples', expect: signedInPage },
+  { route: '/samples/[id]', method: 'GET', path: async (ctx) => `/samples/${await riderSample(ctx)}`, expect: memberPage },
+  { route: '/samples/[id]', method: 'POST', path: async (ctx) => `/samples/${await riderSample(ctx)}`, form: { trackingNote: 'matrix' },
+    expect: { anonymous: 303, rider: 303, mechanic: 403, lead: 303, otherLead: 404 }, note: 'mark shipped' },
+  { route: '/samples/[id]/tag', method: 'GET', path: async (ctx) => `/samples/${await riderSample(ctx)}/tag`, expect: memberPage },
+  { route: '/api/machines', method: 'GET', path: '/api/machines', expect: { ...all(200), anonymous: 401 } },
+  { route: '/api/machines', method: 'POST', path: '/api/machines', json: { name: 'Matrix API', engineLayout: 'single', cooling: 'air', meter: 'km' },
+    expect: { anonymous: 401, rider: 201, mechanic: 403, lead: 201, otherLead: 201 } },
+  { route: '/api/machines/[id]', method: 'GET', path: async (ctx) => `/api/machines/${await riderMachine(ctx)}`, expect: memberApi },
+  { route: '/api/machines/[id]', method: 'PUT', path: async (ctx) => `/api/machines/${await riderMachine(ctx)}`,
+    json: { name: 'Matrix renamed', engineLayout: 'single', cooling: 'air', meter: 'km' }, expect: ownerApi(200) },
+  { route: '/api/machines/[id]', method: 'PATCH', path: async (ctx) => `/api/machines/${await riderMachine(ctx)}`, json: { archived: true }, expect: ownerApi(200) },
+  { route: '/api/machines/[id]', method: 'DELETE', path: async (ctx) => `/api/machines/${await riderMachine(ctx)}`, expect: ownerApi(200), note: 'a machine with no records' },
+  { route: '/api/machines/[id]/oil-changes', method: 'GET', path: async (ctx) => `/api/machines/${await riderMachine(ctx)}/oil-changes`, expect: memberApi },
+  { route: '/api/machines/[id]/oil-changes', method: 'POST', path: async (ctx) => `/api/machines/${await riderMachine(ctx)}/oil-changes`,
+    json: { changedOn: '2025-01-01', odometer: 1200, saeGrade: '10W-40' }, expect: ownerApi(201) },
+  { route: '/api/samples', method: 'GET', path: '/api/samples', expect: { ...all(200), anonymous: 401 } },
+  { route: '/api/samples', method: 'POST', path: '/api/samples', json: { machineId: `${'0'.repeat(8)}-0000-4000-8000-${'0'.repeat(12)}`, bottleCode: 'MX1', drawnOn: '2025-01-01', odometer: 5 },
+    expect: { ...all(404), anonymous: 401 }, note: 'a machine of no crew' },
+  { route: '/api/samples/bottle-codes', method: 'POST', path: '/api/samples/bottle-codes', json: {}, expect: { anonymous: 401, rider: 201, mechanic: 403, lead: 201, otherLead: 201 } },
+  { route: '/api/samples/[id]', method: 'GET', path: async (ctx) => `/api/samples/${await riderSample(ctx)}`, expect: memberApi },
+  { route: '/api/samples/[id]/ship', method: 'POST', path: async (ctx) => `/api/samples/${await riderSample(ctx)}/ship`, json: { trackingNote: 'matrix' }, expect: ownerApi(200) },
+  { route: '/api/photos', method: 'POST', path: '/api/photos', form: { file: 'not multipart' }, expect: { ...all(415), anonymous: 401 }, note: 'a photo must come as multipart' },
+  { route: '/api/photos/[id]', method: 'GET', path: async (ctx) => `/api/photos/${await crewPhoto(ctx)}`, expect: memberApi },
   { route: '/api/trends/[machineId]', method: 'GET', path: async (ctx) => `/api/trends/${await riderMachine(ctx)}?measurands=Fe`,
     expect: { anonymous: 401, rider: 200, mechanic: 200, lead: 200, otherLead: 404 } },
 ];
