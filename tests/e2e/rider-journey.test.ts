@@ -100,6 +100,8 @@ describe('rider journey on a phone', () => {
     expect(res.headers()['content-type']).toBe('image/png');
     expect(res.headers()['cache-control']).toBe('private, max-age=31536000, immutable');
     expect(res.headers()['etag']).toMatch(/^"[0-9a-f]{64}"$/);
+    const again = await page.request.get(src!, { headers: { 'if-none-match': res.headers()['etag']! } });
+    expect(again.status()).toBe(304);
     await screenshot(page, 'rider-05-machine-with-oil-change');
   });
 
