@@ -106,7 +106,7 @@ describe('rider journey on a phone', () => {
   });
 
   test('the upload endpoint refuses a renamed text file and a 40 MB upload, and a stranger gets 404', async () => {
-    const fileBody = (bytes: Uint8Array, name: string) => {
+    const fileBody = (bytes: Uint8Array<ArrayBuffer>, name: string) => {
       const fd = new FormData();
       fd.append('file', new Blob([bytes], { type: 'image/jpeg' }), name);
       return fd;
