@@ -392,3 +392,53 @@ export interface Database {
 
 export type MailOutboxRow = Selectable<MailOutboxTable>;
 export type DevMailboxRow = Selectable<DevMailboxTable>;
+
+// ---- alerts and reminders (migration 2026_12_02_0700): appended as a merged declaration, like the mail tables.
+
+export type NotificationKind = 'import_findings' | 'sample_due' | 'shipped_overdue' | 'invitation_pending';
+export type NotificationDelivery = 'immediate' | 'digest' | 'off';
+
+/** How one user wants one kind of message from one crew; no row means the kind's default. */
+export interface NotificationPreferencesTable {
+  user_id: string;
+  crew_id: string;
+  kind: NotificationKind;
+  delivery: NotificationDelivery;
+  updated_at: Generated<Date>;
+}
+
+/** One logical alert given to one user (immediately or into the digest); its key makes re-runs no-ops. */
+export interface AlertDeliveriesTable {
+  dedupe_key: string;
+  user_id: string;
+  crew_id: string;
+  kind: NotificationKind;
+  delivery: 'immediate' | 'digest';
+  created_at: Generated<Date>;
+}
+
+/** A line of a digest item: words, and the page it points to. */
+export interface AlertLine {
+  text: string;
+  url?: string;
+}
+
+/** An alert waiting for the user's daily digest. */
+export interface AlertDigestItemsTable {
+  id: Generated<string>;
+  dedupe_key: string;
+  user_id: string;
+  crew_id: string;
+  kind: NotificationKind;
+  title: string;
+  lines: Json<AlertLine[]>;
+  created_at: Generated<Date>;
+  digested_at: TimestampNullable;
+  digest_key: string | null;
+}
+
+export interface Database {
+  notification_preferences: NotificationPreferencesTable;
+  alert_deliveries: AlertDeliveriesTable;
+  alert_digest_items: AlertDigestItemsTable;
+}

@@ -31,6 +31,7 @@ import {
   type RowMatch,
 } from './lab-import';
 import * as repo from './lab-import.repository';
+import { queueImportAlerts } from '../alerts/alerts.service';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
@@ -399,6 +400,8 @@ export async function confirmLabImport(
       }
       let findingsWritten = 0;
       for (const [machineId, changed] of byMachine) findingsWritten += await recomputeMachineFindings(trx, machineId, changed, known);
+      // Issue 8: alert mails are queued in this transaction, so a rolled-back import sends nothing and a retry nothing twice.
+      await queueImportAlerts(trx, imported.id);
 
       return {
         ok: true as const,

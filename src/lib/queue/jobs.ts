@@ -31,5 +31,6 @@ export async function registerJobs(boss: PgBoss, deps: JobDependencies): Promise
       ...deps.mail,
     }),
   );
+  registrations.push(await (await import('../alerts/alert-jobs')).registerAlertJobs(boss, { db: deps.db, ...(deps.log ? { log: deps.log } : {}) }));
   return registrations;
 }

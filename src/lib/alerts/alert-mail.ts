@@ -1,0 +1,240 @@
+/**
+ * The words of every alert and reminder, and their rendering into the Sumpwise mail layout. Pure: no
+ * database, no clock, no config (addresses and dates are passed in), so the tests read exactly what a rider
+ * reads. Lists are paragraphs with the page's address on its own line: the text version stays clickable in
+ * every client, and the HTML turns those addresses into links (no images anywhere, so "images off" loses
+ * nothing).
+ */
+import type { AlertLine, Level, Meter, NotificationKind } from '../db/database';
+import { escapeHtml, renderMailLayout } from '../mail/templates';
+import { formatMeter } from '../units/units';
+
+/** One alert before rendering: what the digest keeps of it, and what an immediate mail shows. */
+export interface AlertContent {
+  kind: NotificationKind;
+  subject: string;
+  title: string;
+  intro: string;
+  lines: AlertLine[];
+  action: { label: string; url: string };
+}
+
+export interface RenderedAlert {
+  subject: string;
+  text: string;
+  html: string;
+}
+
+/** The addresses every message ends with. */
+export interface AlertFooterLinks {
+  unsubscribeUrl: string;
+  /** What the unsubscribe link stops, in words ("findings from lab imports of Valley school"). */
+  unsubscribeWhat: string;
+  preferencesUrl: string;
+}
+
+export const LEVEL_WORDS: Record<Exclude<Level, 'steady'>, string> = { act: 'ACT', watch: 'Watch' };
+
+const SUBJECT_MAX = 200;
+
+/** Cuts a subject to the outbox's limit on a word boundary. */
+export function fitSubject(subject: string): string {
+  const one = subject.replace(/\s+/g, ' ').trim();
+  if (one.length <= SUBJECT_MAX) return one;
+  const cut = one.slice(0, SUBJECT_MAX - 1);
+  return `${cut.slice(0, Math.max(cut.lastIndexOf(' '), SUBJECT_MAX - 40))}…`;
+}
+
+export interface ImportFindingInput {
+  level: Exclude<Level, 'steady'>;
+  measurand: string | null;
+  sentence: string;
+}
+
+export interface ImportMachineInput {
+  name: string;
+  url: string;
+  samples: { bottleCode: string; drawnOn: string; url: string; findings: ImportFindingInput[] }[];
+}
+
+/** The mail after a lab import: every machine of the recipient's with findings at watch or act, act first. */
+export function composeImportFindingsAlert(input: { crewName: string; fileName: string; homeUrl: string; machines: ImportMachineInput[] }): AlertContent {
+  const all = input.machines.flatMap((m) => m.samples.flatMap((s) => s.findings));
+  const acts = all.filter((f) => f.level === 'act').length;
+  const watches = all.length - acts;
+  const counted = [acts ? `${acts} at act` : '', watches ? `${watches} at watch` : ''].filter(Boolean).join(' and ');
+  const machineNames = input.machines.map((m) => m.name);
+  const lines: AlertLine[] = [];
+  for (const m of input.machines) {
+    lines.push({ text: `${m.name}`, url: m.url });
+    for (const s of m.samples) {
+      const ordered = [...s.findings].sort((a, b) => (a.level === b.level ? 0 : a.level === 'act' ? -1 : 1));
+      for (const f of ordered) {
+        lines.push({ text: `${LEVEL_WORDS[f.level]}${f.measurand ? ` · ${f.measurand}` : ''} (bottle ${s.bottleCode}, drawn ${s.drawnOn}): ${f.sentence}` });
+      }
+      lines.push({ text: `Sample ${s.bottleCode}, readings and findings`, url: s.url });
+    }
+  }
+  return {
+    kind: 'import_findings',
+    subject: fitSubject(`${acts ? 'Act' : 'Watch'}: lab results for ${machineNames.join(', ')} (${input.crewName})`),
+    title: acts ? 'Lab results need a look' : 'Lab results to keep an eye on',
+    intro: `A lab import in ${input.crewName} (${input.fileName}) brought ${counted} on ${machineNames.length === 1 ? machineNames[0] : `${machineNames.length} machines`}. Findings are advice: check them against the service manual, and where work could hurt someone, leave it to a licensed mechanic.`,
+    lines,
+    action: { label: 'Open the crew home', url: input.homeUrl },
+  };
+}
+
+/** The reminder that a machine's next sample is due, by date, by estimated odometer, or both. */
+export function composeSampleDueAlert(input: {
+  crewName: string;
+  machineName: string;
+  machineUrl: string;
+  drainCardUrl: string;
+  meter: Meter;
+  reasons: ('date' | 'odometer')[];
+  nextSampleOn: string | null;
+  nextSampleOdometer: number | null;
+  estimatedOdometer: number | null;
+}): AlertContent {
+  const why: string[] = [];
+  if (input.reasons.includes('date') && input.nextSampleOn) why.push(`the next sample was due on ${input.nextSampleOn}`);
+  if (input.reasons.includes('odometer') && input.nextSampleOdometer !== null) {
+    const est = input.estimatedOdometer === null ? '' : ` and, from its recent riding, it is probably near ${formatMeter(input.estimatedOdometer, input.meter)} now`;
+    why.push(`the next sample is due at ${formatMeter(input.nextSampleOdometer, input.meter)}${est}`);
+  }
+  return {
+    kind: 'sample_due',
+    subject: fitSubject(`Sample due: ${input.machineName} (${input.crewName})`),
+    title: `${input.machineName}: next sample due`,
+    intro: `In ${input.crewName}, ${why.join('; ') || 'the next sample is due'}.`,
+    lines: [
+      { text: 'Draw the sample warm, at the next oil change or from the valve, and fill in a drain card in the garage. Hot oil burns: wear gloves and eye protection, and take the used oil to a collection point.' },
+      { text: `${input.machineName}, its interval call and wear chart`, url: input.machineUrl },
+    ],
+    action: { label: 'Fill in a drain card', url: input.drainCardUrl },
+  };
+}
+
+/** The reminder that a shipped bottle has had no results for `days` days. */
+export function composeShippedOverdueAlert(input: {
+  crewName: string;
+  machineName: string;
+  bottleCode: string;
+  shippedOn: string;
+  days: number;
+  sampleUrl: string;
+}): AlertContent {
+  return {
+    kind: 'shipped_overdue',
+    subject: fitSubject(`No results yet: bottle ${input.bottleCode} of ${input.machineName} (${input.crewName})`),
+    title: `Bottle ${input.bottleCode}: no results after ${input.days} days`,
+    intro: `The bottle from ${input.machineName} in ${input.crewName} was shipped on ${input.shippedOn} and no lab results have been imported since.`,
+    lines: [
+      { text: 'Ask the lab whether it arrived, or import their results if they came by another route. A note on the sample keeps the crew in the picture.' },
+    ],
+    action: { label: 'Open the sample', url: input.sampleUrl },
+  };
+}
+
+/** The reminder to a lead that an invitation has waited `days` days. */
+export function composeInvitationPendingAlert(input: { crewName: string; email: string; invitedOn: string; days: number; crewUrl: string; expired: boolean }): AlertContent {
+  return {
+    kind: 'invitation_pending',
+    subject: fitSubject(`Invitation to ${input.crewName} not accepted yet: ${input.email}`),
+    title: 'An invitation is still waiting',
+    intro: `${input.email} was invited to ${input.crewName} on ${input.invitedOn} and has not accepted after ${input.days} days.`,
+    lines: [
+      {
+        text: input.expired
+          ? 'The link has expired. If they still want to join, send a new invitation from the crew page.'
+          : 'The mail may have gone to their spam folder. You can send a new invitation, or revoke this one, from the crew page.',
+      },
+    ],
+    action: { label: 'Open the crew page', url: input.crewUrl },
+  };
+}
+
+/** Renders one alert for immediate delivery, with its unsubscribe and preferences links. */
+export function renderAlertMail(content: AlertContent, links: AlertFooterLinks): RenderedAlert {
+  const paragraphs = [...content.lines.map(lineParagraph), ...footerParagraphs(links)];
+  const { text, html } = renderMailLayout({
+    title: content.title,
+    intro: content.intro,
+    paragraphs,
+    action: content.action,
+    footer: 'You receive this because of your Sumpwise account and your crew. Findings are advice, not a diagnosis.',
+  });
+  return { subject: content.subject, text, html: linkifyParagraphs(html, [...content.lines.flatMap((l) => (l.url ? [l.url] : [])), links.unsubscribeUrl, links.preferencesUrl]) };
+}
+
+/** One stored digest item: an alert already composed, with its crew. */
+export interface DigestEntry {
+  crewName: string;
+  title: string;
+  lines: AlertLine[];
+}
+
+/** Renders the daily digest: every waiting alert of the user, grouped by crew, in one message. */
+export function renderDigestMail(input: { day: string; homeUrl: string; entries: DigestEntry[] }, links: AlertFooterLinks): RenderedAlert {
+  const paragraphs: string[] = [];
+  const urls: string[] = [];
+  const crews = [...new Set(input.entries.map((e) => e.crewName))];
+  for (const crew of crews) {
+    paragraphs.push(`— ${crew} —`);
+    for (const e of input.entries.filter((x) => x.crewName === crew)) {
+      paragraphs.push(e.title);
+      for (const l of e.lines) {
+        paragraphs.push(lineParagraph(l));
+        if (l.url) urls.push(l.url);
+      }
+    }
+  }
+  paragraphs.push(...footerParagraphs(links));
+  const n = input.entries.length;
+  const { text, html } = renderMailLayout({
+    title: `Your Sumpwise digest for ${input.day}`,
+    intro: `${n} ${n === 1 ? 'thing' : 'things'} from ${crews.join(', ')} since your last digest.`,
+    paragraphs,
+    action: { label: 'Open the crew home', url: input.homeUrl },
+    footer: 'You receive this daily digest because you chose it on your notification settings.',
+  });
+  return {
+    subject: fitSubject(`Sumpwise digest ${input.day}: ${n} ${n === 1 ? 'item' : 'items'}`),
+    text,
+    html: linkifyParagraphs(html, [...urls, links.unsubscribeUrl, links.preferencesUrl]),
+  };
+}
+
+/** The List-Unsubscribe headers of RFC 2369 §3.2 and the one-click POST of RFC 8058 §3.1. */
+export function buildUnsubscribeHeaders(oneClickUrl: string): Record<string, string> {
+  return { 'List-Unsubscribe': `<${oneClickUrl}>`, 'List-Unsubscribe-Post': 'List-Unsubscribe=One-Click' };
+}
+
+function lineParagraph(line: AlertLine): string {
+  // The address on its own line in the text version; the HTML joins the two with a space and links it.
+  return line.url ? `${line.text}:\n${line.url}` : line.text;
+}
+
+function footerParagraphs(links: AlertFooterLinks): string[] {
+  return [
+    `Stop ${links.unsubscribeWhat} (one click, no sign-in):\n${links.unsubscribeUrl}`,
+    `Choose what you get, right away or in a daily digest:\n${links.preferencesUrl}`,
+  ];
+}
+
+/**
+ * Turns the given addresses into links inside the layout's plain paragraphs. Only text nodes of <p>
+ * elements without markup are touched, so the action button (already a link) is left alone, and only
+ * addresses we put there ourselves are linked.
+ */
+function linkifyParagraphs(html: string, urls: readonly string[]): string {
+  const escaped = [...new Set(urls)].map((u) => escapeHtml(u)).sort((a, b) => b.length - a.length);
+  if (escaped.length === 0) return html;
+  // One pass, longest address first, so an address that starts another one is never linked inside it.
+  const pattern = new RegExp(escaped.map((u) => u.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')).join('|'), 'g');
+  return html.replace(/(<p\b[^>]*>)([^<]*)(<\/p>)/g, (_m, open: string, body: string, close: string) => {
+    const out = body.replace(pattern, (u) => `<a href="${u}" style="color:#1f4560;text-decoration:underline;">${u}</a>`);
+    return `${open}${out.replace(/:\n/g, ': ')}${close}`;
+  });
+}
