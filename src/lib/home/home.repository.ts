@@ -52,7 +52,9 @@ export async function listMachinesForDue(db: Kysely<Database>, crewId: string) {
     select m.id, m.name, m.meter, ic.next_sample_on::text as next_sample_on, ic.next_sample_odometer,
       oc.changed_on::text as last_change_on, oc.odometer as last_change_odometer, m.max_interval_distance, m.max_interval_days
     from machines m
-    left join lateral (select next_sample_on, next_sample_odometer from interval_calls where machine_id = m.id order by created_at desc, id desc limit 1) ic on true
+    left join lateral (select ic2.next_sample_on, ic2.next_sample_odometer from interval_calls ic2 join samples s2 on s2.id = ic2.sample_id
+        where ic2.machine_id = m.id
+        order by s2.drawn_on desc, s2.odometer desc, ic2.created_at desc, case ic2.source when 'engine' then 0 else 1 end desc, ic2.id desc limit 1) ic on true
     left join lateral (select changed_on, odometer from oil_changes where machine_id = m.id order by odometer desc, changed_on desc limit 1) oc on true
     where m.crew_id = ${crewId} and m.archived_at is null
     order by m.name

@@ -76,8 +76,9 @@ export async function listOverviewPage(db: Kysely<Database>, crewId: string, que
         where sample_id = ls.id and rule_id = 'climbing-trend' and measurand is not null
       ) cl on true
       left join lateral (
-        select call, source, next_sample_on, next_sample_odometer from interval_calls
-        where machine_id = m.id order by created_at desc, id desc limit 1
+        select ic2.call, ic2.source, ic2.next_sample_on, ic2.next_sample_odometer from interval_calls ic2 join samples s2 on s2.id = ic2.sample_id
+        where ic2.machine_id = m.id
+        order by s2.drawn_on desc, s2.odometer desc, ic2.created_at desc, case ic2.source when 'engine' then 0 else 1 end desc, ic2.id desc limit 1
       ) ic on true
       where m.crew_id = ${crewId} and m.archived_at is null
         ${like ? sql`and m.name ilike ${like}` : sql``}
@@ -139,8 +140,9 @@ export async function findMachineOverview(db: Kysely<Database>, crewId: string, 
       order by case level when 'act' then 2 when 'watch' then 1 else 0 end desc, created_at, id limit 1
     ) top on true
     left join lateral (
-      select call, source, next_sample_on, next_sample_odometer from interval_calls
-      where machine_id = m.id order by created_at desc, id desc limit 1
+      select ic2.call, ic2.source, ic2.next_sample_on, ic2.next_sample_odometer from interval_calls ic2 join samples s2 on s2.id = ic2.sample_id
+        where ic2.machine_id = m.id
+        order by s2.drawn_on desc, s2.odometer desc, ic2.created_at desc, case ic2.source when 'engine' then 0 else 1 end desc, ic2.id desc limit 1
     ) ic on true
     where m.id = ${machineId} and m.crew_id = ${crewId}
   `.execute(db);

@@ -1,5 +1,5 @@
 /** Queries of review notes and interval calls; every read is scoped by the crew. */
-import type { Kysely, Transaction } from 'kysely';
+import { sql, type Kysely, type Transaction } from 'kysely';
 import type { Database } from '../db/database';
 import { isUuid } from '../trends/trends.repository';
 import type { CallHistoryEntry, ReviewNote } from './reviews';
@@ -30,6 +30,8 @@ export async function listCallHistory(db: Db, sampleId: string): Promise<CallHis
     ])
     .where('interval_calls.sample_id', '=', sampleId)
     .orderBy('interval_calls.created_at', 'desc')
+    // Rows written in one transaction share created_at: a reviewer's call ranks above the engine's.
+    .orderBy(sql`case interval_calls.source when 'engine' then 0 else 1 end`, 'desc')
     .orderBy('interval_calls.id', 'desc')
     .execute();
   return rows.map((r) => ({
