@@ -143,9 +143,12 @@ export function makeIntervalCall(
     dueAfter = next;
   }
 
-  if (next < currentInterval && call === 'hold') {
+  // Only running past the ceiling turns a hold into a shorten; rounding the next interval down does not.
+  if (currentInterval > ceiling && call === 'hold') {
     call = 'shorten';
-    reasons.push(`This oil ran ${currentInterval} ${machine.distanceUnit}, beyond the longest allowed ${ceiling}: bring the interval back within it.`);
+    reasons.push(
+      `This oil ran ${Math.round(currentInterval)} ${machine.distanceUnit}, beyond the longest allowed ${Math.round(ceiling)} ${machine.distanceUnit}: bring the interval back within it.`,
+    );
   }
 
   const pace = estimatePace(input);

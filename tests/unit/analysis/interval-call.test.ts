@@ -32,6 +32,19 @@ describe('makeIntervalCall', () => {
     expect(c.nextIntervalDistance).toBe(2200);
   });
 
+  test.each([
+    // [distance run on this oil, manufacturer maximum, expected call]
+    [2950, 6000, 'hold'], // not a multiple of the 100 rounding step, well inside the maximum: still hold
+    [4820, 10000, 'hold'],
+    [6400, 6000, 'shorten'], // beyond the maximum: bring it back within it
+  ] as const)('a steady-but-building run of %d against a maximum of %d gives %s', (run, max, expected) => {
+    const history = makeHistory([steadySet]);
+    const c = makeIntervalCall({ machine: { ...AIR_SINGLE, maxIntervalDistance: max }, history, sample: makeSample(1, steadySet, { distanceOnOil: run }) });
+    expect(c.call).toBe(expected);
+    expect(c.nextIntervalDistance).toBeLessThanOrEqual(max);
+    if (expected === 'shorten') expect(c.reasons.at(-1)).toMatch(new RegExp(`ran ${run} km, beyond the longest allowed ${max} km`));
+  });
+
   test('other watch findings hold', () => {
     const c = callFor(AIR_SINGLE, steadyHistory, { ...steadySet, FUEL: 3 });
     expect(c.call).toBe('hold');
