@@ -200,4 +200,14 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { route: '/api/photos/[id]', method: 'GET', path: async (ctx) => `/api/photos/${await crewPhoto(ctx)}`, expect: memberApi },
   { route: '/api/trends/[machineId]', method: 'GET', path: async (ctx) => `/api/trends/${await riderMachine(ctx)}?measurands=Fe`,
     expect: { anonymous: 401, rider: 200, mechanic: 200, lead: 200, otherLead: 404 } },
+
+  // Alerts and reminders (issue 8): preferences of one's own account; the unsubscribe page and one-click
+  // endpoint work without a session (the signed token is the proof), so every visitor gets the same answer.
+  { route: '/account/notifications', method: 'GET', path: '/account/notifications', expect: signedInPage },
+  { route: '/account/notifications', method: 'POST', path: '/account/notifications', form: { action: 'save' }, expect: all(303),
+    note: 'anonymous to sign in; members back to the page, saved' },
+  { route: '/unsubscribe', method: 'GET', path: '/unsubscribe?token=not-a-real-token', expect: all(400), note: 'an invalid link says so' },
+  { route: '/unsubscribe', method: 'POST', path: '/unsubscribe', form: { token: 'not-a-real-token' }, expect: all(400) },
+  { route: '/api/unsubscribe', method: 'POST', path: '/api/unsubscribe?token=not-a-real-token', form: { 'List-Unsubscribe': 'One-Click' }, expect: all(400) },
+  { route: '/api/unsubscribe', method: 'GET', path: '/api/unsubscribe?token=x', expect: all(303), note: 'a GET only leads to the page that asks' },
 ];
