@@ -1,4 +1,5 @@
 /** The wear chart's data as tables, one per element: the accessible twin of the canvas. */
+import { useEffect, useState } from 'react';
 import type { Level } from '../../lib/db/database';
 import type { TrendResponse } from '../../lib/trends/trend-types';
 import { LEVEL_COLOURS } from './chart-styles';
@@ -22,12 +23,15 @@ function LevelMark({ level }: { level: Level }) {
 /** One table per series with every point's figures. */
 export function TrendTable({ data }: { data: TrendResponse }) {
   const meter = data.machine.meter;
+  // Open beside the chart on wide screens; folded on a phone, where the tables would push everything down.
+  const [open, setOpen] = useState(true);
+  useEffect(() => { if (window.matchMedia('(max-width: 767px)').matches) setOpen(false); }, []);
   return (
-    <details className="rounded-card border border-line bg-paper-raised p-3" open data-testid="wear-chart-table">
+    <details className="rounded-card border border-line bg-paper-raised p-3" open={open} onToggle={(e) => setOpen(e.currentTarget.open)} data-testid="wear-chart-table">
       <summary className="min-h-tap cursor-pointer font-semibold">The chart's data as tables</summary>
       {data.series.map((s) => (
         <div key={s.code} className="table-wrap mt-3">
-          <table className="data-table" data-measurand={s.code}>
+          <table className="data-table whitespace-nowrap" data-measurand={s.code}>
             <caption className="px-3 py-2 text-left font-semibold">{s.name} ({s.code}), {s.unit}</caption>
             <thead>
               <tr>

@@ -105,6 +105,8 @@ export default function WearChart({ machineId, initial }: Props) {
     setCodes((cur) => (cur.includes(code) ? cur.filter((c) => c !== code) : cur.length >= 8 ? cur : [...cur, code]));
 
   const ready = state.status === 'ready' ? state.data : null;
+  const [meter, setMeter] = useState<string | null>(null);
+  useEffect(() => { if (ready) setMeter(ready.machine.meter); }, [ready]);
   const chart = useMemo(() => (ready ? buildChart(ready) : null), [ready]);
   const empty = ready !== null && ready.series.every((s) => s.points.length === 0);
 
@@ -132,7 +134,7 @@ export default function WearChart({ machineId, initial }: Props) {
             {(['ppm', 'rate'] as const).map((b) => (
               <label key={b} className="flex min-h-tap items-center gap-2 px-1">
                 <input type="radio" name="basis" value={b} checked={basis === b} onChange={() => setBasis(b)} className="h-5 w-5" />
-                {b === 'ppm' ? 'Raw ppm' : 'Per 1,000 of oil use'}
+                {b === 'ppm' ? 'Raw ppm' : meter === 'h' ? 'Per 100 h of oil use' : `Per 1,000 ${meter ?? 'mi/km'} of oil use`}
               </label>
             ))}
           </fieldset>
@@ -186,7 +188,16 @@ function Legend({ data }: { data: TrendResponse }) {
         </li>
       ))}
       <li className="flex items-center gap-2"><span aria-hidden="true" className="inline-block h-3 w-6 bg-steel-100" />Baseline band</li>
-      <li>● steady · ◆ watch · ⯃ act</li>
+      {(['steady', 'watch', 'act'] as const).map((l) => (
+        <li key={l} className="flex items-center gap-1">
+          <svg width="12" height="12" viewBox="0 0 20 20" aria-hidden="true" fill={LEVEL_COLOURS[l]}>
+            {l === 'steady' && <circle cx="10" cy="10" r="7" />}
+            {l === 'watch' && <path d="M10 1.5 18.5 10 10 18.5 1.5 10Z" />}
+            {l === 'act' && <path d="M6.3 1.5h7.4l4.8 4.8v7.4l-4.8 4.8H6.3l-4.8-4.8V6.3Z" />}
+          </svg>
+          {l}
+        </li>
+      ))}
       {data.gradeChanges.length > 0 && <li>┆ a different oil grade poured</li>}
     </ul>
   );

@@ -54,7 +54,7 @@ export async function listOverviewPage(db: Kysely<Database>, crewId: string, que
     with base as (
       select m.id as machine_id, m.name, m.meter,
         ls.id as sample_id, ls.bottle_code, ls.drawn_on::text as drawn_on, ls.state,
-        f.worst_rank, top.rule_id as top_rule, top.measurand as top_measurand, top.sentence as top_sentence,
+        case when ls.id is null then null else coalesce(f.worst_rank, 0) end as worst_rank, top.rule_id as top_rule, top.measurand as top_measurand, top.sentence as top_sentence,
         coalesce(cl.climbing, '{}') as climbing,
         ic.call, ic.source as call_source, ic.next_sample_on::text as next_sample_on, ic.next_sample_odometer
       from machines m
