@@ -6,7 +6,7 @@ module.exports = {
   theme: {
     extend: {
       colors: {
-        ink: { DEFAULT: '#16202a', soft: '#3a4a5a', faint: '#6b7a89' },
+        ink: { DEFAULT: '#16202a', soft: '#3a4a5a', faint: '#56636f' },
         paper: { DEFAULT: '#f7f5f0', raised: '#ffffff', sunk: '#ece8df' },
         steel: { 50: '#eef4f8', 100: '#d6e4ee', 300: '#8fb0c6', 500: '#3d6f91', 600: '#2c5a7a', 700: '#1f4560', 900: '#0f2536' },
         level: {
