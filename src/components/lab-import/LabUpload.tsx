@@ -62,7 +62,8 @@ export default function LabUpload({ endpoint, maxBytes, fallbackId }: Props) {
 
   useEffect(() => {
     const fallback = document.getElementById(fallbackId);
-    if (fallback) fallback.hidden = true;
+    // display:none, not only `hidden`: the form's own flex class would show it again.
+    if (fallback) fallback.style.display = 'none';
     const onSuccess = (_file: unknown, response: { body?: UploadBody }) => {
       const url = response.body?.previewUrl;
       if (url && url.startsWith('/imports/')) {
@@ -76,7 +77,7 @@ export default function LabUpload({ endpoint, maxBytes, fallbackId }: Props) {
     return () => {
       uppy.off('upload-success', onSuccess);
       uppy.off('upload-error', onError);
-      if (fallback) fallback.hidden = false;
+      if (fallback) fallback.style.display = '';
     };
   }, [uppy, fallbackId]);
 

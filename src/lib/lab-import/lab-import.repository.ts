@@ -130,6 +130,16 @@ export async function findSamplesByCodes(db: Db, crewId: string, codes: readonly
     .execute();
 }
 
+/** Bottle codes (normal form) of the samples an import wrote readings to. */
+export async function findCodesWrittenBy(db: Db, importId: string): Promise<Set<string>> {
+  const rows = await db
+    .selectFrom('samples')
+    .select('bottle_code_norm')
+    .where((eb) => eb.exists(eb.selectFrom('readings').select('readings.sample_id').whereRef('readings.sample_id', '=', 'samples.id').where('readings.lab_import_id', '=', importId)))
+    .execute();
+  return new Set(rows.map((r) => r.bottle_code_norm));
+}
+
 /** The crew's machines that are not archived, for the "create the sample on" choice. */
 export function findMachinesForImport(db: Db, crewId: string) {
   return db
@@ -366,28 +376,4 @@ export async function replaceEngineCalls(db: Db, sampleIds: readonly string[], r
                   ${sql.val(part.map((c) => c.nextSampleOdometer))}::float8[], ${sql.val(part.map((c) => c.nextSampleOn))}::text[],
                   ${sql.val(part.map((c) => JSON.stringify(c.reasons)))}::text[]) as x(s, m, c, ni, no, nd, r)`.execute(db);
   }
-}
-
-/** Readings, findings and the latest interval call of one of the crew's samples (for the sample page). */
-export async function findSampleResults(db: Db, crewId: string, sampleId: string) {
-  const sample = await db.selectFrom('samples').select(['id', 'state']).where('crew_id', '=', crewId).where('id', '=', sampleId).executeTakeFirst();
-  if (!sample) return undefined;
-  const [readings, findings, call, history] = await Promise.all([
-    db.selectFrom('readings').select(['measurand', 'value', 'qualifier']).where('sample_id', '=', sampleId).execute(),
-    db.selectFrom('findings').select(['measurand', 'level', 'rule_id', 'sentence']).where('sample_id', '=', sampleId).execute(),
-    db
-      .selectFrom('interval_calls')
-      .select(['call', 'next_interval', 'next_sample_odometer', 'next_sample_on', 'reasons', 'source', 'note', 'created_at'])
-      .where('sample_id', '=', sampleId)
-      .orderBy('created_at', 'desc')
-      .limit(1)
-      .executeTakeFirst(),
-    db
-      .selectFrom('reading_history')
-      .select(['measurand', 'value', 'qualifier', 'replaced_at'])
-      .where('sample_id', '=', sampleId)
-      .orderBy('replaced_at', 'desc')
-      .execute(),
-  ]);
-  return { sample, readings, findings, call, history };
 }

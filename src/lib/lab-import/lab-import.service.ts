@@ -189,6 +189,8 @@ export async function previewLabImport(
     repo.findMachinesForImport(db, input.crewId),
   ]);
   const byCode = new Map(samples.map((s) => [s.bottle_code_norm, s]));
+  // An imported file is shown as it was written: which rows went in, which were skipped.
+  const writtenCodes = fileRow.import_id ? await repo.findCodesWrittenBy(db, fileRow.import_id) : null;
   const machineIds = new Set(machines.map((m) => m.id));
 
   const rowIssues = new Map<number, LabCsvIssue[]>();
@@ -243,7 +245,8 @@ export async function previewLabImport(
       errors,
       warnings,
       decision,
-      needs: describeDecision(match, decision, errors.length, machineIds, r.bottle.raw, at),
+      needs: writtenCodes ? null : describeDecision(match, decision, errors.length, machineIds, r.bottle.raw, at),
+      written: writtenCodes?.has(norm) ?? false,
     };
   });
 
@@ -536,10 +539,4 @@ export async function recomputeFindings(trx: Db, sampleId: string): Promise<numb
   const machine = await repo.findMachineOfSample(trx, sampleId);
   if (!machine) return 0;
   return recomputeMachineFindings(trx, machine.id, new Set([sampleId]));
-}
-
-/** Readings, findings, the latest interval call and replaced values of one of the crew's samples. */
-export function getSampleResults(db: Db, crewId: string, sampleId: string) {
-  if (!UUID.test(sampleId)) return Promise.resolve(undefined);
-  return repo.findSampleResults(db, crewId, sampleId);
 }

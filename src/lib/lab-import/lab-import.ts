@@ -67,6 +67,8 @@ export interface PreviewRow {
   decision: RowDecision | null;
   /** Why this row cannot be written yet, in words, when `decision` is missing or not allowed. */
   needs: string | null;
+  /** For a file already imported: whether this row's readings were written by that import. */
+  written: boolean;
 }
 
 export interface ImportPreview {
