@@ -44,9 +44,13 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn('digest_key', 'text')
     .execute();
   await sql`create index alert_digest_items_pending_idx on alert_digest_items (user_id, created_at) where digested_at is null`.execute(db);
+  // The import alert finds the samples an import wrote through their readings, inside the import's
+  // transaction: without this index that is a scan of every reading ever imported.
+  await sql`create index readings_lab_import_idx on readings (lab_import_id)`.execute(db);
 }
 
 export async function down(db: Kysely<any>): Promise<void> {
+  await sql`drop index if exists readings_lab_import_idx`.execute(db);
   await db.schema.dropTable('alert_digest_items').execute();
   await db.schema.dropTable('alert_deliveries').execute();
   await db.schema.dropTable('notification_preferences').execute();
