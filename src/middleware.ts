@@ -4,8 +4,20 @@ import { securityHeaders } from './lib/http/security-headers';
 import { getDb } from './lib/db';
 import { getLucia } from './lib/auth/lucia';
 import { loadSession } from './lib/auth/session';
+import { isForbiddenCrossSiteWrite } from './lib/http/origin-check';
+import { getConfig } from './lib/config';
 
-// Every request: defaults for the locals pages read, the session and crew behind the cookie, then the
+/** Writes that carry their own proof (a signed token) and are POSTed by mail providers' servers. */
+const ORIGIN_EXEMPT_PATHS = ['/api/unsubscribe'];
+
+function withSecurityHeaders(response: Response): Response {
+  for (const [name, value] of Object.entries(securityHeaders())) {
+    if (!response.headers.has(name)) response.headers.set(name, value);
+  }
+  return response;
+}
+
+// Every request: the cross-site write guard, defaults for the locals pages read, the session and crew behind the cookie, then the
 // security headers on the response.
 export const onRequest = defineMiddleware(async (context, next) => {
   context.locals.requestId = randomUUID();
@@ -13,6 +25,10 @@ export const onRequest = defineMiddleware(async (context, next) => {
   context.locals.session = null;
   context.locals.crew = null;
   context.locals.crews = [];
+  const allowedOrigins = [context.url.origin, new URL(getConfig().PUBLIC_URL).origin];
+  if (isForbiddenCrossSiteWrite(context.request.method, context.url.pathname, context.request.headers, { allowedOrigins, exemptPaths: ORIGIN_EXEMPT_PATHS })) {
+    return withSecurityHeaders(new Response('Cross-site POST form submissions are forbidden', { status: 403, headers: { 'content-type': 'text/plain' } }));
+  }
   const loaded = await loadSession(getDb(), getLucia(), context.cookies).catch((error: unknown) => {
     // The health check must still answer while the database is down; every other route fails loudly.
     if (context.url.pathname === '/api/health') return null;
@@ -24,10 +40,7 @@ export const onRequest = defineMiddleware(async (context, next) => {
     context.locals.crews = loaded.crews;
     context.locals.crew = loaded.crew;
   }
-  const response = await next();
-  for (const [name, value] of Object.entries(securityHeaders())) {
-    if (!response.headers.has(name)) response.headers.set(name, value);
-  }
+  const response = withSecurityHeaders(await next());
   // Pages behind a session must not be kept by shared caches or the back button after sign-out.
   if (loaded && !response.headers.has('cache-control')) response.headers.set('cache-control', 'private, no-store');
   return response;
