@@ -38,4 +38,20 @@ describe('home page and health', () => {
     expect(body.database.reachable).toBe(true);
     expect(res.headers.get('x-content-type-options')).toBe('nosniff');
   });
+
+  test('a cross-site form POST is refused (403); a mail provider\'s one-click unsubscribe POST is not', async () => {
+    const crossSite = await fetch(`${baseUrl()}/sign-in`, {
+      method: 'POST', redirect: 'manual',
+      headers: { origin: 'https://evil.example', 'content-type': 'application/x-www-form-urlencoded' },
+      body: 'email=a%40b.example&password=whatever-long',
+    });
+    expect(crossSite.status).toBe(403);
+    // RFC 8058: the provider's server POSTs "List-Unsubscribe=One-Click" with no Origin and no cookies.
+    // A bad token answers 400 from the app itself, proving the request got past the origin check.
+    const oneClick = await fetch(`${baseUrl()}/api/unsubscribe?token=not-a-real-token`, {
+      method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'List-Unsubscribe=One-Click',
+    });
+    expect(oneClick.status).toBe(400);
+    expect(((await oneClick.json()) as { error: { code: string } }).error.code).toBe('invalid_token');
+  });
 });
