@@ -4,6 +4,8 @@
 import { sql, type Kysely } from 'kysely';
 import type { Database } from '../src/lib/db/database';
 import { DEMO_ACCOUNTS, seedAccounts } from './seed-accounts';
+import { seedMachines } from './seed-machines';
+import { seedLabReports } from './seed-labs';
 
 /** True when the database holds no users yet (a fresh install). */
 export async function isDatabaseEmpty(db: Kysely<Database>): Promise<boolean> {
@@ -15,8 +17,21 @@ export async function isDatabaseEmpty(db: Kysely<Database>): Promise<boolean> {
 export async function seedDemo(db: Kysely<Database>): Promise<string> {
   return db.transaction().execute(async (trx) => {
     const accounts = await seedAccounts(trx);
-    const summary = [`${DEMO_ACCOUNTS.length} demo accounts in 2 crews`];
-    void accounts;
-    return summary.join(', ');
+    const machines = await seedMachines(trx, {
+      crewId: accounts.schoolCrewId,
+      ownerUserIds: [accounts.userIds.riderA, accounts.userIds.riderB, accounts.userIds.lead],
+      soloCrewId: accounts.soloCrewId,
+      soloUserId: accounts.userIds.solo,
+    });
+    // The school's mechanic imports the school's reports; the solo rider imports their own.
+    const schoolLabs = await seedLabReports(trx, { crewIds: [accounts.schoolCrewId], userId: accounts.userIds.mechanic });
+    const soloLabs = await seedLabReports(trx, { crewIds: [accounts.soloCrewId], userId: accounts.userIds.solo });
+    return [
+      `${DEMO_ACCOUNTS.length} accounts in 2 crews`,
+      `${Object.keys(machines.machineIds).length} machines`,
+      `${machines.oilChanges} oil changes`,
+      `${machines.samples} samples`,
+      `${schoolLabs.files + soloLabs.files} lab reports with ${schoolLabs.readings + soloLabs.readings} readings`,
+    ].join(', ');
   });
 }
