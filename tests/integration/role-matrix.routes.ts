@@ -103,6 +103,20 @@ async function throwawayMember(ctx: MatrixContext): Promise<string> {
   return id;
 }
 
+/** A lab file of crew A whose only bottle is one no crew registered (so a confirm writes nothing). */
+async function crewLabFile(ctx: MatrixContext): Promise<string> {
+  const { createHash } = await import('node:crypto');
+  const content = Buffer.from(`Bottle,Fe\nMX-${randomUUID().slice(0, 8)},3\n`);
+  const f = await ctx.db.insertInto('lab_files').values({
+    crew_id: ctx.crewA.id, sha256: createHash('sha256').update(content).digest('hex'), file_name: 'matrix.csv', byte_size: content.length,
+    content, uploaded_by: ctx.crewA.leadId,
+  }).returning('id').executeTakeFirstOrThrow();
+  return f.id;
+}
+
+/** Lab import pages: leads and mechanics; riders are refused; another crew's file answers 404. */
+const importerPage = { anonymous: 303, rider: 403, mechanic: 200, lead: 200, otherLead: 404 };
+
 async function devMail(ctx: MatrixContext): Promise<string> {
   const { rows } = await sql<{ id: number }>`
     insert into dev_mailbox (envelope_to, subject, text_body, raw) values ('matrix@crew-a.example', 'Matrix', 'body', 'raw') returning id`.execute(ctx.db);
@@ -210,4 +224,13 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { route: '/unsubscribe', method: 'POST', path: '/unsubscribe', form: { token: 'not-a-real-token' }, expect: all(400) },
   { route: '/api/unsubscribe', method: 'POST', path: '/api/unsubscribe?token=not-a-real-token', form: { 'List-Unsubscribe': 'One-Click' }, expect: all(400) },
   { route: '/api/unsubscribe', method: 'GET', path: '/api/unsubscribe?token=x', expect: all(303), note: 'a GET only leads to the page that asks' },
+
+  // Lab import (issue 6): leads and mechanics upload, preview and confirm; the crew is always the session's.
+  { route: '/imports', method: 'GET', path: '/imports', expect: signedInPage, note: 'a rider sees why they cannot import' },
+  { route: '/imports/[id]', method: 'GET', path: async (ctx) => `/imports/${await crewLabFile(ctx)}`, expect: importerPage },
+  { route: '/imports/[id]', method: 'POST', path: async (ctx) => `/imports/${await crewLabFile(ctx)}`, form: { action: 'check' }, expect: importerPage },
+  { route: '/api/imports', method: 'POST', path: '/api/imports', form: { file: 'not multipart' },
+    expect: { anonymous: 401, rider: 403, mechanic: 415, lead: 415, otherLead: 415 }, note: 'a lab file must come as multipart' },
+  { route: '/api/imports/[id]/confirm', method: 'POST', path: async (ctx) => `/api/imports/${await crewLabFile(ctx)}/confirm`, json: { decisions: {} },
+    expect: { anonymous: 401, rider: 403, mechanic: 422, lead: 422, otherLead: 404 }, note: 'its only bottle is unknown, so nothing is written' },
 ];

@@ -8,6 +8,7 @@ import { canImportLabReport } from '../auth/permissions';
 import type { CrewMembership, SessionUser } from '../auth/types';
 import type { Database } from '../db/database';
 import { jsonError, jsonOk } from '../http/json';
+import { notFoundPage } from '../http/not-found';
 import { MAX_LAB_FILE_BYTES, type LabCsvMappingTarget } from '../import/lab-csv';
 import { confirmInputSchema, MAPPING_TARGETS, profileInputSchema, rowDecisionSchema, type RowDecision } from './lab-import';
 import { confirmLabImport, saveLabProfile, storeLabFile } from './lab-import.service';
@@ -187,7 +188,7 @@ export async function handlePreviewPost(db: Kysely<Database>, ctx: RouteContext,
     if (!input.success) return { kind: 'render', decisions: {}, message: 'The lab profile needs attention.', fields: { profileName: input.error.issues[0]?.message ?? 'Give the lab profile a name' }, profileName: form.get('profileName') ?? '' };
     const saved = await saveLabProfile(db, { crewId: gate.crew.crewId, userId: gate.user.id, labFileId, name: input.data.name, targets: readColumnFields(form) });
     if (!saved.ok) {
-      if (saved.status === 404) return { kind: 'response', response: new Response('Not found', { status: 404 }) };
+      if (saved.status === 404) return { kind: 'response', response: notFoundPage() };
       return { kind: 'render', decisions: {}, message: saved.message, fields: saved.fields ?? {}, profileName: input.data.name };
     }
     return { kind: 'response', response: redirect(`/imports/${labFileId}?profile=saved`) };
@@ -198,6 +199,6 @@ export async function handlePreviewPost(db: Kysely<Database>, ctx: RouteContext,
   }
   const result = await confirmLabImport(db, { crewId: gate.crew.crewId, userId: gate.user.id, labFileId, decisions });
   if (result.ok) return { kind: 'response', response: redirect(`/imports/${labFileId}?done=1`) };
-  if (result.status === 404) return { kind: 'response', response: new Response('Not found', { status: 404 }) };
+  if (result.status === 404) return { kind: 'response', response: notFoundPage() };
   return { kind: 'render', decisions, message: result.message, fields: result.fields ?? {} };
 }
