@@ -1,4 +1,5 @@
 import type { CrewMembership, SessionUser } from '../auth/types';
+import { notFoundPage } from '../http/not-found';
 import type { Actor, Refusal } from './service-result';
 
 /** The services' actor for a signed-in user working in a crew. */
@@ -6,8 +7,10 @@ export function actorFrom(g: { user: SessionUser; crew: CrewMembership }): Actor
   return { userId: g.user.id, membership: g.crew };
 }
 
-/** A page's answer to a refusal that has no field to show it beside (404, 403). */
+/** A page's answer to a refusal that has no field to show it beside: 404 renders src/pages/404.astro, 403 says why. */
 export function refusalPage(r: Refusal): Response {
+  // Astro renders the 404 page only for a body-less 404; another crew's record then looks like no record at all.
+  if (r.status === 404) return notFoundPage();
   return new Response(r.message, { status: r.status, headers: { 'content-type': 'text/plain; charset=utf-8' } });
 }
 
