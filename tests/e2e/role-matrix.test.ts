@@ -1,11 +1,13 @@
 // Sends every row of the role matrix to the built server as each visitor (anonymous, rider, mechanic and
 // lead of crew A, and the lead of crew B) and compares the status with the table.
+import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { inject } from 'vitest';
 import type { Kysely } from 'kysely';
 import { createDb } from '../../src/lib/db/db';
 import type { Database } from '../../src/lib/db/database';
 import { ROLE_MATRIX, VISITORS, type MatrixContext, type MatrixRow, type Visitor } from '../integration/role-matrix.routes';
+import { ROOT } from '../../scripts/lib/processes';
 import { baseUrl } from './helpers/browser';
 import { MATRIX_PASSWORD, MATRIX_USERS, ensureMatrixAccounts } from './helpers/matrix-accounts';
 import { sessionCookieFor } from './helpers/sign-in';
@@ -24,8 +26,10 @@ async function cookieFor(visitor: Visitor, fresh: boolean): Promise<string | nul
   return cookies.get(visitor)!;
 }
 
-/** Sends one row's request as one visitor and returns the status. */
-async function send(row: MatrixRow, visitor: Visitor): Promise<number> {
+interface Answer { status: number; location: string | null; contentType: string; body: string }
+
+/** Sends one row's request as one visitor and returns the answer. */
+async function request(row: MatrixRow, visitor: Visitor): Promise<Answer> {
   const path = typeof row.path === 'function' ? await row.path(ctx, visitor) : row.path;
   const headers: Record<string, string> = {};
   const cookie = await cookieFor(visitor, row.freshSession ?? false);
@@ -41,13 +45,28 @@ async function send(row: MatrixRow, visitor: Visitor): Promise<number> {
     body = new URLSearchParams(row.form).toString();
   }
   const res = await fetch(`${baseUrl()}${path}`, { method: row.method, headers, body, redirect: 'manual' });
-  await res.arrayBuffer();
-  return res.status;
+  return { status: res.status, location: res.headers.get('location'), contentType: res.headers.get('content-type') ?? '', body: await res.text() };
+}
+
+/** Sends one row's request as one visitor and returns the status. */
+async function send(row: MatrixRow, visitor: Visitor): Promise<number> {
+  return (await request(row, visitor)).status;
+}
+
+/** The styled not-found page (src/pages/404.astro) inside the app shell, as opposed to a bare status. */
+function expectNotFoundPage(a: Answer): void {
+  expect(a.status).toBe(404);
+  expect(a.contentType).toMatch(/^text\/html/);
+  expect(a.body).toContain('Nothing here');
+  expect(a.body).toContain('href="/"');
+  expect(a.body).toContain('Sumpwise home');
 }
 
 describe('role matrix against the built server', () => {
   beforeAll(async () => {
     db = createDb(inject('databaseUrl'), { max: 2 });
+    // The server keeps uploads in .data/<database>-uploads (helpers/server.ts); photo rows write their file there.
+    process.env.MATRIX_UPLOAD_DIR ??= path.join(ROOT, '.data', `${new URL(inject('databaseUrl')).pathname.slice(1)}-uploads`);
     ctx = { db, ...(await ensureMatrixAccounts(db)) };
   });
   afterAll(async () => { await db?.destroy(); });
@@ -58,3 +77,45 @@ describe('role matrix against the built server', () => {
     expect(got).toEqual(row.expect);
   });
 });
+
+describe('answers behind the statuses', () => {
+  beforeAll(async () => {
+    db = createDb(inject('databaseUrl'), { max: 2 });
+    ctx = { db, ...(await ensureMatrixAccounts(db)) };
+  });
+  afterAll(async () => { await db?.destroy(); });
+
+  // Every page (not a JSON endpoint) that answers another crew's lead 404 shows the styled page, and no
+  // record of crew A: the matrix machines are all named "Matrix 450".
+  const pageRows = ROLE_MATRIX.filter((r) => r.method === 'GET' && !r.route.startsWith('/api/') && r.expect.otherLead === 404);
+  test.each(pageRows.map((r) => [`${r.route}${r.note ? ` (${r.note})` : ''}`, r] as const))('another crew gets the not-found page: GET %s', async (_n, row) => {
+    const a = await request(row, 'otherLead');
+    expectNotFoundPage(a);
+    expect(a.body).not.toContain('Matrix 450');
+  });
+
+  test.each<[string, Visitor]>([['/no-such-page', 'anonymous'], ['/no-such-page', 'rider'], ['/machines/00000000-0000-4000-8000-000000000000', 'lead']])(
+    'an unknown address %s (%s) gets the not-found page', async (path, visitor) => {
+      expectNotFoundPage(await request({ route: path, method: 'GET', path, expect: all404 }, visitor));
+    });
+
+  test('a form post for another crew\'s sample gets the not-found page, not a trip back to that sample', async () => {
+    const row = ROLE_MATRIX.find((r) => r.route === '/api/reviews/[sampleId]/notes' && r.form)!;
+    expectNotFoundPage(await request(row, 'otherLead'));
+  });
+
+  test.each(['/api/reviews/[sampleId]/notes', '/api/reviews/[sampleId]/call'])('%s: a signed-out form goes to sign in and back to the sample; JSON gets 401', async (route) => {
+    const formRow = ROLE_MATRIX.find((r) => r.route === route && r.form)!;
+    const sampleId = (await (formRow.path as (c: MatrixContext, v: Visitor) => Promise<string>)(ctx, 'anonymous')).split('/')[3]!;
+    const form = await request({ ...formRow, path: `/api/reviews/${sampleId}/${route.split('/').pop()}` }, 'anonymous');
+    expect(form.status).toBe(303);
+    expect(form.location).toBe(`/sign-in?next=${encodeURIComponent(`/samples/${sampleId}`)}`);
+    const jsonRow = ROLE_MATRIX.find((r) => r.route === route && r.json !== undefined)!;
+    const json = await request({ ...jsonRow, path: `/api/reviews/${sampleId}/${route.split('/').pop()}` }, 'anonymous');
+    expect(json.status).toBe(401);
+    expect(json.contentType).toMatch(/^application\/json/);
+    expect(JSON.parse(json.body)).toMatchObject({ error: { code: 'unauthenticated' } });
+  });
+});
+
+const all404: Record<Visitor, number> = { anonymous: 404, rider: 404, mechanic: 404, lead: 404, otherLead: 404 };

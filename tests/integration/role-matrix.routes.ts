@@ -63,6 +63,13 @@ async function riderSample(ctx: MatrixContext): Promise<string> {
   return s.id;
 }
 
+/** A sample of crew A's rider machine whose lab results are in, so a reviewer has a call to decide. */
+async function resultsSample(ctx: MatrixContext): Promise<string> {
+  const id = await riderSample(ctx);
+  await ctx.db.updateTable('samples').set({ state: 'results_in' }).where('id', '=', id).execute();
+  return id;
+}
+
 async function riderWearPart(ctx: MatrixContext): Promise<string> {
   const machineId = await riderMachine(ctx);
   const p = await ctx.db.insertInto('wear_parts').values({
@@ -214,6 +221,46 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { route: '/api/photos/[id]', method: 'GET', path: async (ctx) => `/api/photos/${await crewPhoto(ctx)}`, expect: memberApi },
   { route: '/api/trends/[machineId]', method: 'GET', path: async (ctx) => `/api/trends/${await riderMachine(ctx)}?measurands=Fe`,
     expect: { anonymous: 401, rider: 200, mechanic: 200, lead: 200, otherLead: 404 } },
+
+  // Machine and wear-part forms (machines helper): the POST side of the pages above. Invalid input
+  // answers 400 on the page, so a status tells a refusal from an accepted form without writing anything.
+  { route: '/machines/new', method: 'POST', path: '/machines/new', form: { name: '' },
+    expect: { anonymous: 303, rider: 400, mechanic: 403, lead: 400, otherLead: 400 }, note: 'a machine with no name' },
+  { route: '/machines/[id]/edit', method: 'POST', path: async (ctx) => `/machines/${await riderMachine(ctx)}/edit`, form: { action: 'archive' },
+    expect: { anonymous: 303, rider: 303, mechanic: 403, lead: 303, otherLead: 404 }, note: 'archive' },
+  { route: '/machines/[id]/oil-change', method: 'POST', path: async (ctx) => `/machines/${await riderMachine(ctx)}/oil-change`, form: { changedOn: '', odometer: '' },
+    expect: { anonymous: 303, rider: 400, mechanic: 403, lead: 400, otherLead: 404 }, note: 'an oil change with no date' },
+  { route: '/machines/[id]/wear-parts/new', method: 'POST', path: async (ctx) => `/machines/${await riderMachine(ctx)}/wear-parts/new`, form: { name: '' },
+    expect: { anonymous: 303, rider: 400, mechanic: 403, lead: 400, otherLead: 404 }, note: 'a wear part with no name' },
+  { route: '/machines/[id]/wear-parts/[partId]', method: 'POST', path: async (ctx) => riderWearPart(ctx), form: { measuredOn: '2025-01-01', odometer: '100' },
+    expect: { anonymous: 303, rider: 400, mechanic: 403, lead: 400, otherLead: 404 }, note: 'a measurement with no value' },
+  { route: '/machines/[id]/history', method: 'GET', path: async (ctx) => `/machines/${await riderMachine(ctx)}/history`, expect: memberPage },
+  { route: '/machines/[id]/history', method: 'GET', path: '/machines/not-a-machine/history', expect: { ...all(404), anonymous: 303 } },
+
+  // Reading side (issue 7): overview, rules, oil tools, trends and the readings export.
+  { route: '/overview', method: 'GET', path: '/overview', expect: signedInPage, note: 'each visitor sees their own crew' },
+  { route: '/rules', method: 'GET', path: '/rules', expect: all(200), note: 'how findings are made is public' },
+  { route: '/tools', method: 'GET', path: '/tools?tool=vi&kv40=100&kv100=11', expect: all(200), note: 'the calculators need no account' },
+  { route: '/tools', method: 'GET', path: async (ctx) => `/tools?tool=suits&machine=${await riderMachine(ctx)}&grade=10W-40&low=0&high=30`, expect: all(200),
+    note: 'another crew’s machine is simply not offered' },
+  { route: '/api/exports/readings.csv', method: 'GET', path: '/api/exports/readings.csv', expect: { ...all(200), anonymous: 401 }, note: 'the own crew’s readings' },
+  { route: '/api/exports/readings.csv', method: 'GET', path: async (ctx) => `/api/exports/readings.csv?machine=${await riderMachine(ctx)}`, expect: memberApi },
+
+  // Reviews (issue 7): leads and mechanics write notes and decide calls, as JSON or as the sample page's
+  // plain forms. A signed-out browser's form goes to sign in; a JSON call gets 401.
+  { route: '/api/reviews/[sampleId]/notes', method: 'POST', path: async (ctx) => `/api/reviews/${await riderSample(ctx)}/notes`, json: { body: 'Matrix note' },
+    expect: { anonymous: 401, rider: 403, mechanic: 201, lead: 201, otherLead: 404 } },
+  { route: '/api/reviews/[sampleId]/notes', method: 'POST', path: async (ctx) => `/api/reviews/${await riderSample(ctx)}/notes`, form: { body: 'Matrix note' },
+    expect: { anonymous: 303, rider: 403, mechanic: 303, lead: 303, otherLead: 404 }, note: 'the sample page’s form' },
+  { route: '/api/reviews/[sampleId]/call', method: 'POST', path: async (ctx) => `/api/reviews/${await resultsSample(ctx)}/call`,
+    json: { action: 'override', call: 'hold', note: 'Matrix override' }, expect: { anonymous: 401, rider: 403, mechanic: 201, lead: 201, otherLead: 404 } },
+  { route: '/api/reviews/[sampleId]/call', method: 'POST', path: async (ctx) => `/api/reviews/${await riderSample(ctx)}/call`,
+    json: { action: 'confirm' }, expect: { anonymous: 401, rider: 403, mechanic: 409, lead: 409, otherLead: 404 }, note: 'no results yet, so no call' },
+  { route: '/api/reviews/[sampleId]/call', method: 'POST', path: async (ctx) => `/api/reviews/${await resultsSample(ctx)}/call`,
+    form: { action: 'override', call: 'shorten', note: 'Matrix override' }, expect: { anonymous: 303, rider: 403, mechanic: 303, lead: 303, otherLead: 404 }, note: 'the sample page’s form' },
+
+  // The not-found page itself (rendered for unknown addresses and for other crews' records).
+  { route: '/404', method: 'GET', path: '/404', expect: all(404) },
 
   // Alerts and reminders (issue 8): preferences of one's own account; the unsubscribe page and one-click
   // endpoint work without a session (the signed token is the proof), so every visitor gets the same answer.

@@ -1,7 +1,24 @@
 /** Shared answers of the review endpoints: JSON for scripts and the island, 303 redirects for plain HTML forms. */
+import { signInRedirect } from '../../../lib/auth/guards';
 import { readForm } from '../../../lib/http/form';
+import { rewriteToNotFoundPage } from '../../../lib/http/not-found';
 import { fieldErrorsFrom, jsonError, jsonOk, parseJsonBody } from '../../../lib/http/json';
+import type { APIContext } from 'astro';
 import type { z } from 'zod';
+
+/** True for a plain HTML form post (urlencoded or multipart), which a browser follows to a page. */
+export function isFormPost(request: Request): boolean {
+  return /^(application\/x-www-form-urlencoded|multipart\/form-data)\b/i.test(request.headers.get('content-type') ?? '');
+}
+
+/**
+ * The answer to a signed-out visitor: a browser's form post goes to sign in and comes back to the sample
+ * page (the endpoint itself has no page to return to); a JSON call gets 401 JSON.
+ */
+export function refuseSignedOut(request: Request, back: string, message: string): Response {
+  if (isFormPost(request)) return signInRedirect(new URL(back, 'http://local'));
+  return jsonError(401, 'unauthenticated', message);
+}
 
 export type Body<T> = { ok: true; data: T; form: boolean } | { ok: false; response: Response };
 
@@ -29,9 +46,16 @@ export function redirectBack(back: string, params: Record<string, string>): Resp
   return new Response(null, { status: 303, headers: { location: `${back}${q ? `?${q}` : ''}#review` } });
 }
 
-/** The answer for a failed service call in either mode. */
-export function failure(form: boolean, back: string, status: number, code: string, message: string): Response {
-  return form ? redirectBack(back, { review_error: message }) : jsonError(status, code, message);
+/**
+ * The answer for a failed service call in either mode. A form for a sample the crew does not hold gets the
+ * 404 page (never a trip back to that sample), and a role that may not review gets a plain refusal; what a
+ * reviewer can fix (no results yet, no call) goes back to the panel with the message.
+ */
+export async function failure(context: APIContext, form: boolean, back: string, status: number, code: string, message: string): Promise<Response> {
+  if (!form) return jsonError(status, code, message);
+  if (status === 404) return rewriteToNotFoundPage(context);
+  if (status === 403) return new Response(message, { status, headers: { 'content-type': 'text/plain; charset=utf-8' } });
+  return redirectBack(back, { review_error: message });
 }
 
 /** The answer for a success in either mode. */
