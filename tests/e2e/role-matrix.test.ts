@@ -1,5 +1,6 @@
 // Sends every row of the role matrix to the built server as each visitor (anonymous, rider, mechanic and
 // lead of crew A, and the lead of crew B) and compares the status with the table.
+import { randomUUID } from 'node:crypto';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { inject } from 'vitest';
@@ -9,6 +10,7 @@ import type { Database } from '../../src/lib/db/database';
 import { ROLE_MATRIX, VISITORS, type MatrixContext, type MatrixRow, type Visitor } from '../integration/role-matrix.routes';
 import { ROOT } from '../../scripts/lib/processes';
 import { baseUrl } from './helpers/browser';
+import { makeMachine } from '../integration/factories';
 import { MATRIX_PASSWORD, MATRIX_USERS, ensureMatrixAccounts } from './helpers/matrix-accounts';
 import { sessionCookieFor } from './helpers/sign-in';
 
@@ -26,6 +28,16 @@ async function cookieFor(visitor: Visitor, fresh: boolean): Promise<string | nul
   return cookies.get(visitor)!;
 }
 
+/** Row bodies that name records of crew A: "crewA" switches to crew A; "riderMachineSample" registers a drain card for a fresh rider machine. */
+async function jsonBody(json: unknown): Promise<unknown> {
+  if (json === 'crewA') return { crewId: ctx.crewA.id };
+  if (json === 'riderMachineSample') {
+    const m = await makeMachine(ctx.db, ctx.crewA.id, ctx.crewA.riderId, { name: 'Matrix 450' } as never);
+    return { machineId: m.id, bottleCode: `MX${randomUUID().slice(0, 8).toUpperCase()}`, drawnOn: '2025-01-01', odometer: 5 };
+  }
+  return json;
+}
+
 interface Answer { status: number; location: string | null; contentType: string; body: string }
 
 /** Sends one row's request as one visitor and returns the answer. */
@@ -39,10 +51,10 @@ async function request(row: MatrixRow, visitor: Visitor): Promise<Answer> {
   let body: string | undefined;
   if (row.json !== undefined) {
     headers['content-type'] = 'application/json';
-    body = JSON.stringify(row.json === 'crewA' ? { crewId: ctx.crewA.id } : row.json);
+    body = JSON.stringify(await jsonBody(row.json));
   } else if (row.form) {
     headers['content-type'] = 'application/x-www-form-urlencoded';
-    body = new URLSearchParams(row.form).toString();
+    body = new URLSearchParams(typeof row.form === 'function' ? row.form(ctx) : row.form).toString();
   }
   const res = await fetch(`${baseUrl()}${path}`, { method: row.method, headers, body, redirect: 'manual' });
   return { status: res.status, location: res.headers.get('location'), contentType: res.headers.get('content-type') ?? '', body: await res.text() };
@@ -98,6 +110,12 @@ describe('answers behind the statuses', () => {
     'an unknown address %s (%s) gets the not-found page', async (path, visitor) => {
       expectNotFoundPage(await request({ route: path, method: 'GET', path, expect: all404 }, visitor));
     });
+
+  // Form posts to pages (not JSON endpoints) that another crew's lead cannot reach get the same page.
+  const formRows = ROLE_MATRIX.filter((r) => r.method === 'POST' && r.form && !r.route.startsWith('/api/') && r.expect.otherLead === 404);
+  test.each(formRows.map((r) => [`${r.route}${r.note ? ` (${r.note})` : ''}`, r] as const))('another crew gets the not-found page: POST %s', async (_n, row) => {
+    expectNotFoundPage(await request(row, 'otherLead'));
+  });
 
   test('a form post for another crew\'s sample gets the not-found page, not a trip back to that sample', async () => {
     const row = ROLE_MATRIX.find((r) => r.route === '/api/reviews/[sampleId]/notes' && r.form)!;

@@ -29,7 +29,8 @@ export interface MatrixRow {
   path: string | ((ctx: MatrixContext, visitor: Visitor) => string | Promise<string>);
   /** A JSON body, or an urlencoded form body (sent with this server's Origin unless `origin` says otherwise). */
   json?: unknown;
-  form?: Record<string, string>;
+  /** A form body, or a function building one from the matrix's crews (for fields that name a record). */
+  form?: Record<string, string> | ((ctx: MatrixContext) => Record<string, string>);
   origin?: string;
   /** Sign in afresh for this request (for requests that end the session). */
   freshSession?: boolean;
@@ -214,6 +215,8 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { route: '/api/samples', method: 'GET', path: '/api/samples', expect: { ...all(200), anonymous: 401 } },
   { route: '/api/samples', method: 'POST', path: '/api/samples', json: { machineId: `${'0'.repeat(8)}-0000-4000-8000-${'0'.repeat(12)}`, bottleCode: 'MX1', drawnOn: '2025-01-01', odometer: 5 },
     expect: { ...all(404), anonymous: 401 }, note: 'a machine of no crew' },
+  { route: '/api/samples', method: 'POST', path: '/api/samples',
+    json: 'riderMachineSample', expect: { anonymous: 401, rider: 201, mechanic: 403, lead: 201, otherLead: 404 }, note: 'a drain card for crew A’s rider machine' },
   { route: '/api/samples/bottle-codes', method: 'POST', path: '/api/samples/bottle-codes', json: {}, expect: { anonymous: 401, rider: 201, mechanic: 403, lead: 201, otherLead: 201 } },
   { route: '/api/samples/[id]', method: 'GET', path: async (ctx) => `/api/samples/${await riderSample(ctx)}`, expect: memberApi },
   { route: '/api/samples/[id]/ship', method: 'POST', path: async (ctx) => `/api/samples/${await riderSample(ctx)}/ship`, json: { trackingNote: 'matrix' }, expect: ownerApi(200) },
@@ -267,6 +270,9 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { route: '/account/notifications', method: 'GET', path: '/account/notifications', expect: signedInPage },
   { route: '/account/notifications', method: 'POST', path: '/account/notifications', form: { action: 'save' }, expect: all(303),
     note: 'anonymous to sign in; members back to the page, saved' },
+  { route: '/account/notifications', method: 'POST', path: '/account/notifications',
+    form: (ctx) => ({ action: 'save', [`pref.${ctx.crewA.id}.sample_due`]: 'digest' }), expect: { ...all(303), otherLead: 404 },
+    note: 'a choice for crew A: its members save it; crew B’s lead is not in it' },
   { route: '/unsubscribe', method: 'GET', path: '/unsubscribe?token=not-a-real-token', expect: all(400), note: 'an invalid link says so' },
   { route: '/unsubscribe', method: 'POST', path: '/unsubscribe', form: { token: 'not-a-real-token' }, expect: all(400) },
   { route: '/api/unsubscribe', method: 'POST', path: '/api/unsubscribe?token=not-a-real-token', form: { 'List-Unsubscribe': 'One-Click' }, expect: all(400) },
