@@ -57,7 +57,8 @@ export const CLIMBING_TREND = {
     'A wear metal or contaminant that keeps rising over recent samples. A least-squares line is fitted over the ' +
     'last `window` samples (this one included, at least minPoints); it is climbing when at least minRisingSteps ' +
     'steps went up and the fitted rise across the window is at least minRisePpm and watchRiseFraction of the fitted ' +
-    'starting level; act when the rise is at least actMinRisePpm and actRiseFraction of the start (the level doubled).',
+    'starting level; act when the rise is at least actMinRisePpm and actRiseFraction of the start (the level doubled). ' +
+    'A reading lower than the one before is falling back, not climbing, and never fires this rule.',
   source: 'Sumpwise rule (common practice, no published source); slope by ordinary least squares, checked against NIST StRD Norris.',
   params: {
     window: 5,
@@ -68,6 +69,8 @@ export const CLIMBING_TREND = {
     baseFloorPpm: 2,
     watchRiseFraction: 0.5,
     actRiseFraction: 1.0,
+    /** The newest reading must be at least the one before it. */
+    lastStepMustNotFall: true,
     groups: ['wear', 'contaminant'],
   },
 } as const;

@@ -132,6 +132,8 @@ export function findClimbingTrends(ctx: RuleContext): Finding[] {
     ys.push(current);
     const window = ys.slice(-p.window);
     if (window.length < p.minPoints) continue;
+    // After a spike the next reading falls back: the line still slopes up, but nothing is climbing now.
+    if (p.lastStepMustNotFall && window[window.length - 1]! < window[window.length - 2]!) continue;
     let risingSteps = 0;
     for (let i = 1; i < window.length; i++) if (window[i]! > window[i - 1]!) risingSteps++;
     if (risingSteps < p.minRisingSteps) continue;

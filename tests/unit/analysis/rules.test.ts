@@ -85,6 +85,10 @@ describe('climbing-trend', () => {
     { history: [{ Al: 5 }, { Al: 7 }, { Al: 9 }, { Al: 11 }], current: 13, expected: ['Al:act'] },
     { history: [{ Al: 5 }, { Al: 12 }, { Al: 6 }, { Al: 13 }], current: 7, expected: [] },
     { history: [{ Al: 5 }, { Al: 7 }], current: 13, expected: [] },
+    // A spike falling back (the dusty-week silicon story): 3 rising steps and an upward fit, but the newest
+    // reading is below the one before, so nothing is climbing now.
+    { history: [{ Al: 7 }, { Al: 8 }, { Al: 9 }, { Al: 48 }], current: 13, expected: [] },
+    { history: [{ Al: 7 }, { Al: 8 }, { Al: 9 }, { Al: 48 }], current: 48, expected: ['Al:act'] },
   ])('Al $history.length samples then $current gives $expected', ({ history, current, expected }) => {
     expect(levelsOf('climbing-trend', history, { Al: current })).toEqual(expected);
   });
