@@ -15,7 +15,9 @@ export function createDb(connectionString: string, options: { max?: number } = {
     connectionTimeoutMillis: 5_000,
     idleTimeoutMillis: 30_000,
   });
-  // An idle client losing its server (a restart) must not crash the process; the pool drops it.
+  // An idle client losing its server (a restart) must not crash the process; the pool drops it. A client
+  // whose connection is killed mid-query also emits 'error' after the query has failed: swallow that too.
   pool.on('error', () => {});
+  pool.on('connect', (client) => { client.on('error', () => {}); });
   return new Kysely<Database>({ dialect: new PostgresDialect({ pool }) });
 }
