@@ -136,4 +136,35 @@ describe('answers behind the statuses', () => {
   });
 });
 
+// A page shows a state-changing form only to the roles whose post the server accepts; the statuses above
+// prove the server refuses the others, this proves the page does not offer them the form.
+describe('forms offered by role', () => {
+  beforeAll(async () => {
+    db = createDb(inject('databaseUrl'), { max: 2 });
+    ctx = { db, ...(await ensureMatrixAccounts(db)) };
+  });
+  afterAll(async () => { await db?.destroy(); });
+
+  const pathOf = (route: string, pick: (r: MatrixRow) => boolean = () => true) => ROLE_MATRIX.find((r) => r.route === route && r.method === 'GET' && pick(r))!.path;
+  /** A form that posts back to its own page (the app shell's sign-out and crew forms name their action). */
+  const ownForm = /<form method="post"(?![^>]*action=)/;
+  const cases: [string, MatrixRow['path'], RegExp, Visitor[], Visitor[]][] = [
+    ['machine page: edit, drain card, oil change, wear part links', pathOf('/machines/[id]'), /href="\/machines\/[^"]+\/(edit|drain-card|oil-change|wear-parts\/new)"/, ['rider', 'lead'], ['mechanic']],
+    ['sample page: mark shipped', pathOf('/samples/[id]'), ownForm, ['rider', 'lead'], ['mechanic']],
+    ['wear part page: record a measurement', pathOf('/machines/[id]/wear-parts/[partId]'), ownForm, ['rider', 'lead'], ['mechanic']],
+    ['sample page: review note form', pathOf('/samples/[id]'), /action="\/api\/reviews\/[^"]+\/notes"/, ['mechanic', 'lead'], ['rider']],
+    ['sample page with results: interval call forms', async (c) => `/samples/${(await (ROLE_MATRIX.find((r) => r.route === '/api/reviews/[sampleId]/call' && r.json !== undefined && r.expect.mechanic === 201)!.path as (x: MatrixContext, v: Visitor) => Promise<string>)(c, 'lead')).split('/')[3]}`,
+      /action="\/api\/reviews\/[^"]+\/call"/, ['mechanic', 'lead'], ['rider']],
+    ['machines list: add a machine', '/machines', /href="\/machines\/new"/, ['rider', 'lead', 'otherLead'], ['mechanic']],
+  ];
+  test.each(cases)('%s', async (_label, path, form, offered, withheld) => {
+    for (const visitor of [...offered, ...withheld]) {
+      const a = await request({ route: '', method: 'GET', path, expect: all404 }, visitor);
+      expect(a.status, visitor).toBe(200);
+      if (offered.includes(visitor)) expect(a.body, `${visitor} is offered the form`).toMatch(form);
+      else expect(a.body, `${visitor} is not offered the form`).not.toMatch(form);
+    }
+  });
+});
+
 const all404: Record<Visitor, number> = { anonymous: 404, rider: 404, mechanic: 404, lead: 404, otherLead: 404 };
