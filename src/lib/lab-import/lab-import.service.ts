@@ -31,6 +31,7 @@ import {
   type RowMatch,
 } from './lab-import';
 import * as repo from './lab-import.repository';
+import { fromStoredMeter, toStoredMeter, type MeterUnit } from '../units/units';
 import { queueImportAlerts } from '../alerts/alerts.service';
 
 type Db = Kysely<Database> | Transaction<Database>;
@@ -442,13 +443,17 @@ function refuseUnready(preview: ImportPreview): LabImportFailure {
 
 type SampleWithReadings = Awaited<ReturnType<typeof repo.findSamplesWithReadings>>[number];
 
-function toSamplePoint(s: SampleWithReadings, readings: SamplePoint['readings'], oilCapacity: number | null): SamplePoint {
+/**
+ * A stored sample as the analysis engine sees it. The engine works in the machine's own meter unit (its
+ * sentences and rounding steps say mi, km or h), so stored kilometres are converted here and back below.
+ */
+function toSamplePoint(s: SampleWithReadings, readings: SamplePoint['readings'], oilCapacity: number | null, meter: MeterUnit): SamplePoint {
   return {
     id: s.id,
     takenAt: s.drawn_on,
-    odometer: s.odometer,
+    odometer: fromStoredMeter(s.odometer, meter),
     // Unknown distance stays NaN: the engine skips wear rates and intervals it cannot compute.
-    distanceOnOil: s.distance_on_oil ?? Number.NaN,
+    distanceOnOil: s.distance_on_oil === null ? Number.NaN : fromStoredMeter(s.distance_on_oil, meter),
     topUpVolume: s.top_up_l,
     oilVolume: s.volume_l ?? oilCapacity ?? undefined,
     grade: s.sae_grade ?? undefined,
@@ -492,7 +497,7 @@ export async function recomputeMachineFindings(
   const machine: MachineProfile = {
     cooling: machineRow.cooling,
     distanceUnit: machineRow.meter,
-    maxIntervalDistance: machineRow.max_interval_distance ?? undefined,
+    maxIntervalDistance: machineRow.max_interval_distance === null ? undefined : fromStoredMeter(machineRow.max_interval_distance, machineRow.meter),
     maxIntervalDays: machineRow.max_interval_days ?? undefined,
   };
 
@@ -503,7 +508,7 @@ export async function recomputeMachineFindings(
   const calls: repo.IntervalCallInsert[] = [];
   const recomputed: string[] = [];
   samples.forEach((s, index) => {
-    const point = toSamplePoint(s, readingsBySample.get(s.id) ?? {}, machineRow.oil_capacity_l);
+    const point = toSamplePoint(s, readingsBySample.get(s.id) ?? {}, machineRow.oil_capacity_l, machineRow.meter);
     if (index >= firstChanged) {
       const input = { machine, history, sample: point, limits };
       const analysis = analyseSample(input);
@@ -517,8 +522,9 @@ export async function recomputeMachineFindings(
           sampleId: s.id,
           machineId,
           call: call.call,
-          nextInterval: Number.isFinite(call.nextIntervalDistance) ? call.nextIntervalDistance : null,
-          nextSampleOdometer: Number.isFinite(call.nextSampleDue.distance) ? call.nextSampleDue.distance : null,
+          // Back to the stored unit (km, or hours).
+          nextInterval: Number.isFinite(call.nextIntervalDistance) ? toStoredMeter(call.nextIntervalDistance, machineRow.meter) : null,
+          nextSampleOdometer: Number.isFinite(call.nextSampleDue.distance) ? toStoredMeter(call.nextSampleDue.distance, machineRow.meter) : null,
           nextSampleOn: call.nextSampleDue.date ?? null,
           reasons: call.reasons,
         });

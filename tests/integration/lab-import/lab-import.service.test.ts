@@ -357,3 +357,22 @@ describe('recomputeFindings', () => {
     expect(await db.selectFrom('interval_calls').selectAll().where('sample_id', '=', last.id).execute()).toHaveLength(1);
   });
 });
+
+describe('units: the engine works in the machine\'s own meter, the database in km', () => {
+  test('a machine metered in miles gets its call in miles and stored in km', async () => {
+    const { crewId, userId } = await makeImportCrew(db);
+    // 3,000 mi maximum and 2,500 mi on this oil, stored as km (1 mi = 1.609344 km, exact, NIST SP 811).
+    const machine = await db.insertInto('machines').values({
+      crew_id: crewId, owner_user_id: userId, name: 'Mile bike', engine_layout: 'single', cooling: 'air', meter: 'mi',
+      recommended_grades: JSON.stringify([]), max_interval_distance: 3000 * 1.609344,
+    }).returning('id').executeTakeFirstOrThrow();
+    const sample = await makeSample(db, crewId, machine.id, userId, 'MI-1', { odometer: 10_000 * 1.609344, distanceOnOil: 2500 * 1.609344 });
+    await db.insertInto('readings').values({ sample_id: sample.id, measurand: 'Fe', value: 10, qualifier: null, lab_import_id: null }).execute();
+    await db.transaction().execute((trx) => recomputeFindings(trx, sample.id));
+    const call = await db.selectFrom('interval_calls').selectAll().where('sample_id', '=', sample.id).executeTakeFirstOrThrow();
+    // Building baseline: hold at the 2,500 mi it ran (a multiple of the 100 mi step), due at 12,500 mi.
+    expect(call.call).toBe('hold');
+    expect(call.next_interval).toBeCloseTo(2500 * 1.609344, 6);
+    expect(call.next_sample_odometer).toBeCloseTo(12_500 * 1.609344, 6);
+  });
+});
