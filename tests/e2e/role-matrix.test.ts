@@ -122,6 +122,12 @@ describe('answers behind the statuses', () => {
     expectNotFoundPage(await request(row, 'otherLead'));
   });
 
+  test('the crew switcher form from a signed-out browser goes to sign in and back to its page', async () => {
+    const row = ROLE_MATRIX.find((r) => r.route === '/api/crews/switch' && r.form)!;
+    const a = await request(row, 'anonymous');
+    expect([a.status, a.location]).toEqual([303, '/sign-in?next=%2Fmachines']);
+  });
+
   test.each(['/api/reviews/[sampleId]/notes', '/api/reviews/[sampleId]/call'])('%s: a signed-out form goes to sign in and back to the sample; JSON gets 401', async (route) => {
     const formRow = ROLE_MATRIX.find((r) => r.route === route && r.form)!;
     const sampleId = (await (formRow.path as (c: MatrixContext, v: Visitor) => Promise<string>)(ctx, 'anonymous')).split('/')[3]!;

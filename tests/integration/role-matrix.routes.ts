@@ -169,6 +169,8 @@ export const ROLE_MATRIX: MatrixRow[] = [
     expect: { ...all(400), anonymous: 401 } },
   { route: '/api/crews/switch', method: 'POST', path: '/api/crews/switch', freshSession: true, json: 'crewA',
     expect: { anonymous: 401, rider: 200, mechanic: 200, lead: 200, otherLead: 404 }, note: 'json "crewA" is replaced by { crewId: crew A }' },
+  { route: '/api/crews/switch', method: 'POST', path: '/api/crews/switch', form: { crewId: '', next: '/machines' }, freshSession: true,
+    expect: { ...all(400), anonymous: 303 }, note: 'the header’s switcher form: signed out goes to sign in' },
   { route: '/api/crews/[id]/invitations', method: 'POST', path: (ctx) => `/api/crews/${ctx.crewA.id}/invitations`, json: { email: 'matrix-json@crew-a.example', role: 'rider' },
     expect: { anonymous: 401, rider: 403, mechanic: 403, lead: 201, otherLead: 404 } },
   { route: '/api/crews/[id]/invitations', method: 'POST', path: (ctx) => `/api/crews/${ctx.crewA.id}/invitations`, json: { email: 'matrix-json@crew-a.example', role: 'rider', crewId: 'forged' },

@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
 import { getAuthDeps } from '../../../lib/auth/deps';
-import { requireApiUser } from '../../../lib/auth/guards';
+import { requireApiUser, signInRedirect } from '../../../lib/auth/guards';
 import { switchCrewSchema } from '../../../lib/crews/crews';
 import { switchCrew } from '../../../lib/crews/crews.service';
 import { formText, readForm, safeNextPath } from '../../../lib/http/form';
@@ -11,9 +11,10 @@ import { jsonFailure } from '../../../lib/http/responses';
 export const POST: APIRoute = async (context) => {
   const isForm = /^application\/x-www-form-urlencoded\b/i.test(context.request.headers.get('content-type') ?? '');
   if (isForm) {
-    if (!context.locals.user) return context.redirect('/sign-in', 303);
     const body = await readForm(context.request);
     if (!body.ok) return body.response;
+    // A browser whose session ended signs in and comes back to the page the switcher was on.
+    if (!context.locals.user) return signInRedirect(new URL(safeNextPath(formText(body.form, 'next')), context.url));
     const parsed = switchCrewSchema.safeParse({ crewId: formText(body.form, 'crewId') });
     if (!parsed.success) return new Response('Choose a crew.', { status: 400 });
     const result = await switchCrew(getAuthDeps().db, context.locals.session!.id, context.locals.user.id, parsed.data.crewId);
