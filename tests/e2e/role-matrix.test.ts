@@ -122,6 +122,15 @@ describe('answers behind the statuses', () => {
     expectNotFoundPage(await request(row, 'otherLead'));
   });
 
+  test('oil tools name a machine of the own crew only', async () => {
+    const row = ROLE_MATRIX.find((r) => r.route === '/tools' && typeof r.path === 'function')!;
+    const own = await request(row, 'lead');
+    const other = await request(row, 'otherLead');
+    expect([own.status, other.status]).toEqual([200, 200]);
+    expect(own.body).toContain('Matrix 450');
+    expect(other.body).not.toContain('Matrix 450');
+  });
+
   test('the crew switcher form from a signed-out browser goes to sign in and back to its page', async () => {
     const row = ROLE_MATRIX.find((r) => r.route === '/api/crews/switch' && r.form)!;
     const a = await request(row, 'anonymous');
