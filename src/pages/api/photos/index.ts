@@ -6,6 +6,7 @@ import { jsonError, jsonOk } from '../../../lib/http/json';
 import { actorFrom, refusalJson } from '../../../lib/machines/page-context';
 import { PHOTO_MAX_BYTES } from '../../../lib/photos/photos';
 import { uploadPhoto } from '../../../lib/photos/photos.service';
+import { PhotoStorageError } from '../../../lib/photos/photos.storage';
 
 /** Room for the multipart envelope around one photo. */
 const ENVELOPE_BYTES = 64 * 1024;
@@ -45,7 +46,17 @@ export const POST: APIRoute = async ({ request, locals }) => {
   }
   const file = form.get('file');
   if (!file || typeof file === 'string') return jsonError(400, 'invalid_input', 'Attach the photo in a field named "file".', { file: 'Choose a photo.' });
-  const r = await uploadPhoto(getDb(), actorFrom(g), new Uint8Array(await file.arrayBuffer()), file.name || 'The file', getConfig().UPLOAD_DIR);
+  let r: Awaited<ReturnType<typeof uploadPhoto>>;
+  try {
+    r = await uploadPhoto(getDb(), actorFrom(g), new Uint8Array(await file.arrayBuffer()), file.name || 'The file', getConfig().UPLOAD_DIR);
+  } catch (e) {
+    // The file is written before its row, so a failed write leaves neither; the person gets a sentence, the log the errno.
+    if (!(e instanceof PhotoStorageError)) throw e;
+    console.error(`[photos] upload not stored: ${e.message}`);
+    return e.reason === 'full'
+      ? jsonError(507, 'storage_full', 'The photo was not saved: the server has no room left for photos. Try again later; the crew lead can ask whoever runs the server to free space.', { file: 'Not saved: no room left for photos.' })
+      : jsonError(503, 'storage_unavailable', 'The photo was not saved: the server cannot store photos right now. Try again later.', { file: 'Not saved: photos cannot be stored right now.' }, { 'retry-after': '60' });
+  }
   if (!r.ok) return refusalJson(r);
   const p = r.value;
   return jsonOk({ photo: { id: p.id, url: `/api/photos/${p.id}`, contentType: p.content_type, byteSize: p.byte_size, width: p.width, height: p.height, sha256: p.sha256 } }, 201);
