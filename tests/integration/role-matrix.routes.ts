@@ -266,6 +266,7 @@ export const ROLE_MATRIX: MatrixRow[] = [
 
   // The not-found page itself (rendered for unknown addresses and for other crews' records).
   { route: '/404', method: 'GET', path: '/404', expect: all(404) },
+  { route: '/forbidden', method: 'GET', path: '/forbidden?reason=add-machine', expect: all(403), note: 'the 403 page pages rewrite to' },
 
   // Alerts and reminders (issue 8): preferences of one's own account; the unsubscribe page and one-click
   // endpoint work without a session (the signed token is the proof), so every visitor gets the same answer.
