@@ -7,7 +7,7 @@ import { readConfig } from '../src/lib/config';
 import { createDb } from '../src/lib/db/db';
 import { isDatabaseEmpty, seedDemo } from '../sample-data/seed';
 import { assertReachable, ensureEmbeddedDatabase, migrateToLatest } from './lib/database';
-import { buildIfNeeded, SERVER_ENTRY } from './lib/build';
+import { buildIfNeeded, SERVE_ARGS } from './lib/build';
 import { ROOT, httpOk, isPortOpen, startService, stopService, waitFor } from './lib/processes';
 
 const PID_FILE = path.join(ROOT, '.data/app.pid');
@@ -77,7 +77,7 @@ async function main(): Promise<void> {
     children.push(startService('mail', node, ['--import', 'tsx', 'scripts/mail-relay.ts'], env));
   }
   if (existsSync(path.join(ROOT, 'scripts/worker.ts'))) children.push(startService('worker', node, ['--import', 'tsx', 'scripts/worker.ts'], env));
-  const server = startService('app', node, [SERVER_ENTRY], env, true);
+  const server = startService('app', node, SERVE_ARGS, env, true);
   children.push(server);
   server.once('exit', (code) => { if (!stopping) fail(`the app server stopped unexpectedly (exit ${code})`); });
 

@@ -5,6 +5,8 @@ import { ROOT, run } from './processes';
 
 const INPUTS = ['src', 'public', 'astro.config.mjs', 'tailwind.config.cjs', 'package-lock.json', 'tsconfig.json'];
 export const SERVER_ENTRY = path.join(ROOT, 'dist/server/entry.mjs');
+/** Arguments to `node` that serve the built app (scripts/serve.ts wraps the entry with security headers). */
+export const SERVE_ARGS = ['--import', 'tsx', path.join(ROOT, 'scripts/serve.ts')];
 
 function newestMtime(p: string): number {
   const s = statSync(p);

@@ -14,7 +14,7 @@ import type { Browser, Page } from 'playwright-core';
 import { createDb } from '../../src/lib/db/db';
 import type { Database } from '../../src/lib/db/database';
 import { DEMO_ACCOUNTS, DEMO_SCHOOL_NAME } from '../../sample-data/seed-accounts';
-import { SERVER_ENTRY } from '../../scripts/lib/build';
+import { SERVE_ARGS } from '../../scripts/lib/build';
 import { freePort, httpOk, startService, stopService, waitFor } from '../../scripts/lib/processes';
 import { DESKTOP, baseUrl, launchBrowser, newContext } from './helpers/browser';
 import { sessionCookieFor, signInAs } from './helpers/sign-in';
@@ -99,11 +99,9 @@ describe('response headers on every kind of response', () => {
     expect(problems).toEqual([]);
   });
 
-  // KNOWN GAP (issue 9): files under dist/client (built CSS/JS, public/) are answered by the Node adapter's static
-  // handler before src/middleware.ts runs, so they carry none of these headers. Fixing it means serving the app in
-  // the adapter's middleware mode behind a small server that sets securityHeaders() on every response (or a proxy
-  // in front). test.fails keeps the gap visible: it starts failing, and must be turned into a plain test, once fixed.
-  test.fails('built assets and public files carry the same headers (known gap: static files skip the middleware)', async () => {
+  // Files under dist/client (built CSS/JS, public/) are answered by the Node adapter's static handler before
+  // src/middleware.ts runs; scripts/serve.ts puts the headers on them.
+  test('built assets and public files carry the same headers', async () => {
     const signInHtml = await (await fetch(`${baseUrl()}/sign-in`)).text();
     const asset = /(?:href|src)="(\/_astro\/[^"]+\.(?:css|js))"/.exec(signInHtml)?.[1];
     expect(asset, 'the sign-in page links a built asset').toBeTruthy();
@@ -188,7 +186,7 @@ describe('session cookie behind an https public address', () => {
     const port = await freePort();
     uploads = mkdtempSync(path.join(os.tmpdir(), 'sumpwise-security-'));
     const local = `http://127.0.0.1:${port}`;
-    server = startService('app-https', process.execPath, [SERVER_ENTRY], {
+    server = startService('app-https', process.execPath, SERVE_ARGS, {
       ...process.env, NODE_ENV: 'production', DATABASE_URL: inject('databaseUrl'), HOST: '127.0.0.1', PORT: String(port),
       PUBLIC_URL: 'https://sumpwise.example', SMTP_URL: 'smtp://127.0.0.1:9', UPLOAD_DIR: uploads, ASTRO_TELEMETRY_DISABLED: '1',
     }, true);

@@ -6,7 +6,7 @@ import type { ChildProcess } from 'node:child_process';
 import { createDb } from '../../../src/lib/db/db';
 import { seedDemo } from '../../../sample-data/seed';
 import { migrateToLatest, recreateEmbeddedDatabase } from '../../../scripts/lib/database';
-import { buildIfNeeded, SERVER_ENTRY } from '../../../scripts/lib/build';
+import { buildIfNeeded, SERVE_ARGS } from '../../../scripts/lib/build';
 import { ROOT, freePort, httpOk, startService, stopService, waitFor } from '../../../scripts/lib/processes';
 
 export interface RunningApp {
@@ -49,7 +49,7 @@ export async function startApp(dbName = 'sumpwise_e2e', options: { seed?: boolea
   const children: ChildProcess[] = [];
   if (existsSync(path.join(ROOT, 'scripts/mail-relay.ts'))) children.push(startService('mail', node, ['--import', 'tsx', 'scripts/mail-relay.ts'], env, true));
   if (existsSync(path.join(ROOT, 'scripts/worker.ts'))) children.push(startService('worker', node, ['--import', 'tsx', 'scripts/worker.ts'], env, true));
-  let server = startService('app', node, [SERVER_ENTRY], env, true);
+  let server = startService('app', node, SERVE_ARGS, env, true);
   await waitFor(() => httpOk(`${baseUrl}/api/health`), 30_000, 'the app server');
   return {
     baseUrl,
@@ -63,7 +63,7 @@ export async function startApp(dbName = 'sumpwise_e2e', options: { seed?: boolea
     async restartServer() {
       server.kill('SIGKILL');
       await new Promise((r) => server.once('exit', r));
-      server = startService('app', node, [SERVER_ENTRY], env, true);
+      server = startService('app', node, SERVE_ARGS, env, true);
       await waitFor(() => httpOk(`${baseUrl}/api/health`), 30_000, 'the app server');
     },
   };
