@@ -7,7 +7,7 @@ import path from 'node:path';
 import jsQR from 'jsqr';
 import { PNG } from 'pngjs';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { PHONE, SCREENSHOT_DIR, baseUrl, launchBrowser, newContext, screenshot } from './helpers/browser';
+import { PHONE, SCREENSHOT_DIR, baseUrl, launchBrowser, newContext, openMenuIfFolded, screenshot } from './helpers/browser';
 import { sessionCookieFor, signInAs } from './helpers/sign-in';
 
 const PASSWORD = 'a long enough password';
@@ -54,7 +54,9 @@ describe('rider journey on a phone', () => {
 
   test('adds a machine, with a bad grade refused beside its field first', async () => {
     await page.goto('/machines');
-    expect(await page.getByRole('link', { name: 'Machines' }).first().isVisible()).toBe(true);
+    await openMenuIfFolded(page);
+    expect(await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Machines' }).isVisible()).toBe(true);
+    await page.locator('header details > summary').click(); // fold it again
     await screenshot(page, 'rider-01-machines-empty');
     await page.getByRole('link', { name: 'Add a machine' }).first().click();
     await page.getByLabel('Name').fill('Juniper 450');
@@ -186,7 +188,8 @@ describe('rider journey on a phone', () => {
     expect(history).toMatch(/Drawn — .* by Juniper Rider/);
     expect(history).toMatch(/Shipped — .* by Juniper Rider · Posted, tracking VX-123/);
     await screenshot(page, 'rider-10-sample-shipped');
-    await page.getByRole('link', { name: 'Samples' }).first().click();
+    await openMenuIfFolded(page);
+    await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Samples' }).click();
     expect(await page.getByTestId('samples-shipped').textContent()).toContain('VX-123');
     await screenshot(page, 'rider-11-samples-list');
   });

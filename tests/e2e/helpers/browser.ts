@@ -46,3 +46,12 @@ declare module 'vitest' {
     smtpPort: number;
   }
 }
+
+/** Opens the folded phone menu when it is shown (below the sm breakpoint), so nav links can be clicked. */
+export async function openMenuIfFolded(page: Page): Promise<void> {
+  const summary = page.locator('header details > summary');
+  if (await summary.isVisible()) {
+    const open = await page.locator('header details').evaluate((d) => (d as HTMLDetailsElement).open);
+    if (!open) await summary.click();
+  }
+}
