@@ -12,6 +12,19 @@ const files = readdirSync(dir).filter((f) => f.endsWith('.bench.ts') && (only.le
 const rows: [string, string, string][] = [];
 let failures = 0;
 
+/** The last JSON object printed, on one line or pretty-printed over several (from a line starting with '{'). */
+function lastJsonObject(stdout: string): Record<string, unknown> | undefined {
+  const lines = stdout.trimEnd().split('\n');
+  for (let i = lines.length - 1; i >= 0; i--) {
+    if (!lines[i]!.startsWith('{')) continue;
+    try {
+      const value = JSON.parse(lines.slice(i).join('\n')) as unknown;
+      if (value && typeof value === 'object' && !Array.isArray(value)) return value as Record<string, unknown>;
+    } catch { /* not where the object starts: keep looking */ }
+  }
+  return undefined;
+}
+
 function flatten(prefix: string, value: unknown, out: [string, string][]): void {
   if (value !== null && typeof value === 'object' && !Array.isArray(value)) {
     for (const [k, v] of Object.entries(value)) flatten(prefix ? `${prefix}.${k}` : k, v, out);
@@ -26,8 +39,7 @@ for (const file of files) {
   const result = spawnSync(process.execPath, ['--expose-gc', '--import', 'tsx', path.join(dir, file)], {
     cwd: ROOT, encoding: 'utf8', env: { ...process.env, ASTRO_TELEMETRY_DISABLED: '1' }, maxBuffer: 64 << 20, timeout: 15 * 60_000,
   });
-  const lines = String(result.stdout).trim().split('\n').reverse();
-  const json = lines.map((l) => { try { return JSON.parse(l) as unknown; } catch { return undefined; } }).find((v) => v && typeof v === 'object');
+  const json = lastJsonObject(String(result.stdout));
   if (result.status !== 0 || !json) {
     failures++;
     rows.push([name, 'error', (String(result.stderr).trim().split('\n').pop() ?? `exit ${result.status}`).slice(0, 120)]);
