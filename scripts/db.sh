@@ -62,8 +62,9 @@ DATA="$BASE/data"
 SOCK="$BASE/run"
 LOG="$BASE/server.log"
 
-pg() { "${RUN[@]}" "$PGBIN/$1" "${@:2}"; }
-psql_admin() { "${RUN[@]}" "$PGBIN/psql" -X -q -v ON_ERROR_STOP=1 -h 127.0.0.1 -p "$PORT" -U "$DB_USER" -d postgres "$@"; }
+# From / so the server's user is never asked to enter a folder it cannot (a clone under a mode-700 home).
+pg() { (cd / && "${RUN[@]}" "$PGBIN/$1" "${@:2}"); }
+psql_admin() { (cd / && "${RUN[@]}" "$PGBIN/psql" -X -q -v ON_ERROR_STOP=1 -h 127.0.0.1 -p "$PORT" -U "$DB_USER" -d postgres "$@"); }
 
 ready() { "$PGBIN/pg_isready" -q -h 127.0.0.1 -p "$PORT" -d postgres -U "$DB_USER" >/dev/null 2>&1; }
 
@@ -183,6 +184,6 @@ case "${1:-}" in
     [ "$tables" = 0 ] || die "database $name is not empty ($tables tables): restore into a new name, e.g. scripts/db.sh restore $in ${name}_restored"
     "$PGBIN/pg_restore" -h 127.0.0.1 -p "$PORT" -U "$DB_USER" --no-owner --exit-on-error -d "$name" "$in"
     say "restored $in into $name" ;;
-  psql) shift; "${RUN[@]}" "$PGBIN/psql" -X -h 127.0.0.1 -p "$PORT" -U "$DB_USER" "$@" ;;
+  psql) shift; (cd / && "${RUN[@]}" "$PGBIN/psql" -X -h 127.0.0.1 -p "$PORT" -U "$DB_USER" "$@") ;;
   *) echo "usage: scripts/db.sh start|stop|status|url [db]|ensure-db NAME|drop-db NAME|reset|backup FILE [db]|restore FILE [db]|psql [args]" >&2; exit 2 ;;
 esac
