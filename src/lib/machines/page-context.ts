@@ -1,4 +1,10 @@
+import type { Kysely } from 'kysely';
 import type { CrewMembership, SessionUser } from '../auth/types';
+import { requireCrew } from '../auth/guards';
+import { getDb } from '../db';
+import type { Database } from '../db/database';
+import { forbiddenPage } from '../http/forbidden';
+import { canActorEdit, getMachine } from './machines.service';
 import { notFoundPage } from '../http/not-found';
 import type { Actor, Refusal } from './service-result';
 
@@ -26,4 +32,31 @@ export function refusalJson(r: Refusal): Response {
   return new Response(JSON.stringify({ error: { code: r.code, message: r.message, fields: r.fields } }), {
     status: r.status, headers: { 'content-type': 'application/json; charset=utf-8', 'cache-control': 'no-store' },
   });
+}
+
+/** What a machine page needs once the visitor may see it. */
+export interface MachinePageContext {
+  g: { user: SessionUser; crew: CrewMembership };
+  actor: Actor;
+  db: Kysely<Database>;
+  machine: Awaited<ReturnType<typeof getMachine>> extends infer R ? (R extends { ok: true; value: infer M } ? M : never) : never;
+}
+
+/**
+ * Loads the machine of a page's [id] for the signed-in member, or returns the page's answer instead: the
+ * sign-in redirect, the 404 page (no such machine in this crew), or with `edit` the 403 page for a member
+ * who may not change it.
+ */
+export async function loadMachinePage(
+  astro: { locals: App.Locals; url: URL; params: Record<string, string | undefined>; rewrite: (to: string) => Promise<Response> },
+  options: { edit: boolean },
+): Promise<Response | MachinePageContext> {
+  const g = requireCrew(astro.locals, astro.url);
+  if (g instanceof Response) return g;
+  const actor = actorFrom(g);
+  const db = getDb();
+  const found = await getMachine(db, actor, astro.params.id ?? '');
+  if (!found.ok) return refusalPage(found);
+  if (options.edit && !canActorEdit(actor, found.value)) return forbiddenPage(astro, 'edit-machine');
+  return { g, actor, db, machine: found.value };
 }

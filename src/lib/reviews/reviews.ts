@@ -14,7 +14,7 @@ export const reviewNoteSchema = z.object({
 const optionalPositive = (what: string) =>
   z.preprocess(
     (v) => (v === '' || v === null || v === undefined ? undefined : typeof v === 'string' ? Number(v) : v),
-    z.number({ error: `Enter the ${what} as a number.` }).finite().positive(`The ${what} must be above zero.`).max(10_000_000, `That ${what} is too large.`).optional(),
+    z.number({ error: `Enter the ${what} as a number.` }).positive(`The ${what} must be above zero.`).max(10_000_000, `That ${what} is too large.`).optional(),
   );
 
 /** Confirm the current call, or override it with a note (required) and, optionally, new figures. */
