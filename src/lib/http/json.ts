@@ -39,11 +39,19 @@ export function fieldErrorsFrom(error: z.ZodError): FieldErrors {
   return fields;
 }
 
-/** Reads a body as text but stops as soon as it passes maxBytes, so a huge upload is never buffered. */
-export async function readBodyText(request: Request, maxBytes: number): Promise<{ ok: true; text: string } | { ok: false }> {
+/**
+ * Reads a body up to `maxBytes`. Past it, the rest is read and dropped up to `drainLimit` (so the answer can
+ * name the real size and the client sees a response, not a reset), and never kept; past `drainLimit` the
+ * read stops at once.
+ */
+export async function readBodyBytes(
+  request: Request,
+  maxBytes: number,
+  drainLimit = maxBytes,
+): Promise<{ ok: true; bytes: Uint8Array } | { ok: false; size: number }> {
   const declared = Number(request.headers.get('content-length') ?? 'NaN');
-  if (Number.isFinite(declared) && declared > maxBytes) return { ok: false };
-  if (!request.body) return { ok: true, text: '' };
+  if (Number.isFinite(declared) && declared > drainLimit) return { ok: false, size: declared };
+  if (!request.body) return { ok: true, bytes: new Uint8Array(0) };
   const reader = request.body.getReader();
   const chunks: Uint8Array[] = [];
   let size = 0;
@@ -51,13 +59,20 @@ export async function readBodyText(request: Request, maxBytes: number): Promise<
     const { done, value } = await reader.read();
     if (done) break;
     size += value.byteLength;
-    if (size > maxBytes) {
+    if (size > drainLimit) {
       await reader.cancel().catch(() => {});
-      return { ok: false };
+      return { ok: false, size };
     }
-    chunks.push(value);
+    if (size <= maxBytes) chunks.push(value);
   }
-  return { ok: true, text: Buffer.concat(chunks).toString('utf8') };
+  if (size > maxBytes) return { ok: false, size };
+  return { ok: true, bytes: Buffer.concat(chunks) };
+}
+
+/** Reads a body as text but stops as soon as it passes maxBytes, so a huge upload is never buffered. */
+export async function readBodyText(request: Request, maxBytes: number): Promise<{ ok: true; text: string } | { ok: false }> {
+  const body = await readBodyBytes(request, maxBytes);
+  return body.ok ? { ok: true, text: Buffer.from(body.bytes).toString('utf8') } : { ok: false };
 }
 
 export type ParsedBody<T> = { ok: true; data: T } | { ok: false; response: Response };

@@ -7,7 +7,7 @@ import type { Kysely } from 'kysely';
 import { canImportLabReport } from '../auth/permissions';
 import type { CrewMembership, SessionUser } from '../auth/types';
 import type { Database } from '../db/database';
-import { jsonError, jsonOk } from '../http/json';
+import { jsonError, jsonOk, readBodyBytes } from '../http/json';
 import { notFoundPage } from '../http/not-found';
 import { MAX_LAB_FILE_BYTES, type LabCsvMappingTarget } from '../import/lab-csv';
 import { confirmInputSchema, MAPPING_TARGETS, profileInputSchema, rowDecisionSchema, type RowDecision } from './lab-import';
@@ -33,27 +33,6 @@ function redirect(location: string): Response {
   return new Response(null, { status: 303, headers: { location } });
 }
 
-/** Reads the whole body up to `maxBytes`; beyond it, drains (to a hard cap) without keeping the bytes. */
-async function readBodyBytes(request: Request, maxBytes: number): Promise<{ ok: true; bytes: Uint8Array } | { ok: false; size: number }> {
-  const declared = Number(request.headers.get('content-length') ?? 'NaN');
-  if (Number.isFinite(declared) && declared > DRAIN_LIMIT_BYTES) return { ok: false, size: declared };
-  if (!request.body) return { ok: true, bytes: new Uint8Array(0) };
-  const reader = request.body.getReader();
-  const chunks: Uint8Array[] = [];
-  let size = 0;
-  for (;;) {
-    const { done, value } = await reader.read();
-    if (done) break;
-    size += value.byteLength;
-    if (size > DRAIN_LIMIT_BYTES) {
-      await reader.cancel().catch(() => {});
-      return { ok: false, size };
-    }
-    if (size <= maxBytes) chunks.push(value);
-  }
-  if (size > maxBytes) return { ok: false, size };
-  return { ok: true, bytes: Buffer.concat(chunks) };
-}
 
 type Gate = { ok: true; user: SessionUser; crew: CrewMembership } | { ok: false; response: Response };
 
@@ -83,7 +62,7 @@ export async function handleUpload(db: Kysely<Database>, ctx: RouteContext): Pro
   if (!/^multipart\/form-data\b/i.test(type)) {
     return fail(415, 'unsupported_media_type', 'Send the lab file as multipart/form-data in the field "file".');
   }
-  const body = await readBodyBytes(ctx.request, MAX_LAB_FILE_BYTES + MULTIPART_OVERHEAD_BYTES);
+  const body = await readBodyBytes(ctx.request, MAX_LAB_FILE_BYTES + MULTIPART_OVERHEAD_BYTES, DRAIN_LIMIT_BYTES);
   if (!body.ok) {
     return fail(413, 'file_too_large', `The upload is ${(body.size / (1024 * 1024)).toFixed(1)} MiB; lab files up to 5 MiB are accepted. Split the report into smaller files.`);
   }
@@ -147,7 +126,7 @@ export async function handleConfirmJson(db: Kysely<Database>, ctx: RouteContext,
   if (!gate.ok) return gate.response;
   const type = ctx.request.headers.get('content-type') ?? '';
   if (!/^application\/json\b/i.test(type)) return jsonError(415, 'unsupported_media_type', 'Send the decisions as application/json.');
-  const body = await readBodyBytes(ctx.request, 1024 * 1024);
+  const body = await readBodyBytes(ctx.request, 1024 * 1024, DRAIN_LIMIT_BYTES);
   if (!body.ok) return jsonError(413, 'payload_too_large', 'The request body is larger than 1 MiB.');
   let raw: unknown;
   try {
