@@ -6,6 +6,10 @@ import { createMailTransport, type MailTransport } from '../../../src/lib/mail/t
 import { startJobQueue, stopJobQueue, type JobRegistration, type PgBoss } from '../../../src/lib/queue/job-queue';
 import { registerJobs } from '../../../src/lib/queue/jobs';
 import { countReceived, pause, queueTestMail, testMail, waitFor } from './mail-helpers';
+import { addMember, makeCrew, makeUser } from '../factories';
+import { makeAuthDeps } from '../auth/auth-test-deps';
+import { inviteMember } from '../../../src/lib/crews/crews.service';
+import { findMembership } from '../../../src/lib/crews/crews.repository';
 
 // The whole path as it runs in production: pg-boss on the real test database, the mail.flush job, a real
 // SMTP relay in-process on a free port. pg-boss gets its own schema so the dev queue is never touched.
@@ -118,5 +122,31 @@ describe('the worker (pg-boss mail.flush)', () => {
     } finally {
       await stopWorker(second);
     }
+  });
+
+  test('an invitation sent while the relay is stopped arrives exactly once after it starts again', async () => {
+    const { deps, pool } = makeAuthDeps(db);
+    const port = relay.port;
+    try {
+      const crew = await makeCrew(db, 'Outage crew');
+      const lead = await makeUser(db, { email: 'lead@example.test', displayName: 'Lead' });
+      await addMember(db, crew.id, lead.id, 'lead');
+      await relay.close();
+      const actor = { userId: lead.id, displayName: 'Lead', membership: await findMembership(db, crew.id, lead.id) };
+      const sent = await inviteMember(deps, actor, { email: 'mechanic@example.test', role: 'mechanic' }, { ip: '192.0.2.30' });
+      expect(sent.ok).toBe(true);
+      await waitFor(async () => ((await db.selectFrom('mail_outbox').select('attempts').executeTakeFirst())?.attempts ?? 0) >= 2, 15_000, 'failed attempts while the relay is down');
+      const arrivedWhileDown = await db.selectFrom('dev_mailbox').selectAll().where('envelope_to', 'like', '%mechanic@example.test%').execute();
+      expect(arrivedWhileDown).toHaveLength(0);
+    } finally {
+      relay = await startMailRelay({ db, port });
+      await pool.end();
+    }
+    const received = () => db.selectFrom('dev_mailbox').select(['subject']).where('envelope_to', 'like', '%mechanic@example.test%').execute();
+    await waitFor(async () => (await received()).length > 0, 10_000, 'the invitation after the relay returned');
+    await pause(1_500);
+    const mail = await received();
+    expect(mail).toHaveLength(1);
+    expect(mail[0]!.subject).toMatch(/Outage crew/);
   });
 });
