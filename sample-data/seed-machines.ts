@@ -1,7 +1,7 @@
 // Demo machines of the invented scenario: the trail school's four bikes and the solo rider's one, with about
 // two years of oil changes, a drain-card sample at each drain after the first, and wear parts with
-// measurements. Names, histories and figures are invented; wear-part figures are common practice, no
-// published source (the clutch case is the issue's own check value).
+// measurements. Names, histories, parts, ranges, limits and figures are all invented for the demo; the wear
+// parts only look like the trade's (common practice, no published source) and belong to no real model.
 import type { Kysely, Transaction } from 'kysely';
 import type { Database, RecommendedGrade } from '../src/lib/db/database';
 import { computeCheckSymbol, CODE_ALPHABET, normaliseBottleCode } from '../src/lib/samples/bottle-code';
@@ -68,22 +68,22 @@ function history(start: string, odometer: number, steps: [days: number, distance
 /** The demo's machines: school bikes first (owners assigned in turn), then the solo rider's. */
 export const DEMO_MACHINES: readonly DemoMachine[] = [
   {
-    key: 'marten', name: 'Marten', year: 2021, layout: 'single', cc: 449, cooling: 'liquid', capacityL: 1.1, meter: 'km',
+    key: 'marten', name: 'Marten', year: 2021, layout: 'single', cc: 450, cooling: 'liquid', capacityL: 1.1, meter: 'km',
     grades: [{ grade: '10W-50', minC: -10, maxC: 55 }, { grade: '5W-40', minC: -25, maxC: 20 }], maxInterval: 3000, maxIntervalDays: 365,
     notes: 'Lesson bike for the advanced group. Oil and filter every 1,500 km of hard trail use.', codes: 'issued',
     changes: history('2024-11-18', 8_420, [[62, 1_480], [55, 1_530], [48, 1_510], [41, 1_460], [44, 1_550], [52, 1_500], [60, 1_470], [58, 1_520], [66, 1_490], [54, 1_505], [49, 1_515], [45, 1_480]],
-      { grade: '10W-50', product: 'Ridgeline Synth 4T', filter: true }, { 6: { work: ['Valve clearances checked, all in spec'] }, 10: { work: ['Piston and rings inspected: light scuffing on the exhaust side noted'] } }),
+      { grade: '10W-50', product: 'Quillmoor Synth 4T', filter: true }, { 6: { work: ['Valve clearances checked, all in spec'] }, 10: { work: ['Piston and rings inspected: light scuffing on the exhaust side noted'] } }),
     wearParts: [{
       name: 'Front brake pads', pieces: 2, unit: 'mm', newMin: 4.5, newMax: 5.0, limit: 1.0, fittedAt: 14_500,
       readings: [{ on: '2025-09-20', odometer: 17_540, pieces: [3.9, 4.0] }, { on: '2026-03-25', odometer: 22_100, pieces: [3.1, 3.2] }, { on: '2026-10-05', odometer: 27_400, pieces: [2.5, 2.6] }],
     }],
   },
   {
-    key: 'heron', name: 'Heron', year: 2020, layout: 'single', cc: 693, cooling: 'liquid', capacityL: 1.7, meter: 'km',
+    key: 'heron', name: 'Heron', year: 2020, layout: 'single', cc: 690, cooling: 'liquid', capacityL: 1.7, meter: 'km',
     grades: [{ grade: '10W-50', minC: -10, maxC: 55 }, { grade: '10W-40', minC: -10, maxC: 35 }], maxInterval: 10_000, maxIntervalDays: 365,
     notes: 'Dual-sport for the valley tours. Air filter checked after every dusty week.', codes: 'kit',
     changes: history('2024-12-02', 21_300, [[75, 4_600], [70, 4_820], [64, 4_700], [88, 4_950], [95, 4_500], [71, 4_880], [66, 4_760], [80, 4_690]],
-      { grade: '10W-50', product: 'Ridgeline Synth 4T', filter: true },
+      { grade: '10W-50', product: 'Quillmoor Synth 4T', filter: true },
       { 3: { work: ['Air filter found dusty after the quarry week; cleaned and re-oiled'] }, 4: { work: ['Air filter replaced (new element)', 'Airbox seal checked'] }, 6: { topUpL: 0.2 } }),
     wearParts: [{
       name: 'Drive chain, 20-pitch length', pieces: 1, unit: 'mm', newMin: 317.5, newMax: 318.0, limit: 323.0, direction: 'max', fittedAt: 30_200,
@@ -91,11 +91,11 @@ export const DEMO_MACHINES: readonly DemoMachine[] = [
     }],
   },
   {
-    key: 'bruin', name: 'Old Bruin', year: 2017, layout: 'twin', cc: 1_197, cooling: 'liquid', capacityL: 4.0, meter: 'km',
+    key: 'bruin', name: 'Old Bruin', year: 2017, layout: 'twin', cc: 1_200, cooling: 'liquid', capacityL: 4.0, meter: 'km',
     grades: [{ grade: '10W-40', minC: -15, maxC: 40 }, { grade: '15W-50', minC: 0, maxC: 55 }], maxInterval: 10_000, maxIntervalDays: 730,
     notes: 'Luggage and sweep bike. Coolant topped up twice this year; water pump seal under watch.', codes: 'kit',
     changes: history('2024-12-10', 61_200, [[98, 6_100], [84, 6_350], [120, 5_900], [91, 6_200], [110, 6_050], [88, 6_400]],
-      { grade: '10W-40', product: 'Blackmere Twin Road 4T', filter: true },
+      { grade: '10W-40', product: 'Tarnwick Twin Road 4T', filter: true },
       { 4: { work: ['Coolant level low: topped up 0.3 L'] }, 5: { work: ['Weep mark at the water pump tell-tale hole; seal kit ordered'], topUpL: 0.3 } }),
     wearParts: [{
       name: 'Front brake disc thickness', pieces: 2, unit: 'mm', newMin: 4.9, newMax: 5.1, limit: 4.5, fittedAt: 52_000,
@@ -103,28 +103,27 @@ export const DEMO_MACHINES: readonly DemoMachine[] = [
     }],
   },
   {
-    key: 'sorrel', name: 'Sorrel', year: 2014, layout: 'single', cc: 644, cooling: 'air', capacityL: 2.4, meter: 'km',
-    grades: [{ grade: '15W-40', minC: -10, maxC: 40 }, { grade: '20W-50', minC: 5, maxC: 55 }], maxInterval: 5_000, maxIntervalDays: 365,
+    key: 'sorrel', name: 'Sorrel', year: 2014, layout: 'single', cc: 650, cooling: 'air', capacityL: 2.4, meter: 'km',
+    grades: [{ grade: '10W-40', minC: -15, maxC: 35 }, { grade: '15W-50', minC: 0, maxC: 50 }], maxInterval: 5_000, maxIntervalDays: 365,
     notes: 'Beginner bike; in winter it mostly does short runs to the practice field.', codes: 'issued',
     changes: history('2024-11-25', 33_800, [[70, 1_900], [80, 2_600], [60, 2_900], [72, 3_000], [88, 2_400], [70, 1_700], [66, 1_800], [78, 2_700], [60, 2_950]],
-      { grade: '15W-40', product: 'Fenwick Mineral 4T', filter: true },
-      { 2: { grade: '20W-50', product: 'Fenwick Mineral 4T HD' }, 3: { grade: '20W-50', product: 'Fenwick Mineral 4T HD' }, 6: { work: ['Choke cable adjusted (short winter runs)'] } }),
+      { grade: '10W-40', product: 'Saltrush Mineral 4T', filter: true },
+      { 2: { grade: '15W-50', product: 'Saltrush Mineral 4T Summer' }, 3: { grade: '15W-50', product: 'Saltrush Mineral 4T Summer' }, 6: { work: ['Choke cable adjusted (short winter runs)'] } }),
     wearParts: [{
-      name: 'Clutch friction plates', pieces: 7, unit: 'mm', newMin: 2.92, newMax: 3.08, limit: 2.6, fittedAt: 20_000,
-      readings: [{ on: '2025-08-01', odometer: 42_600, pieces: [2.86, 2.87, 2.86, 2.88, 2.85, 2.87, 2.86] }],
+      name: 'Rear brake shoe lining', pieces: 2, unit: 'mm', newMin: 4.0, newMax: 4.4, limit: 1.5, fittedAt: 24_300,
+      readings: [{ on: '2025-04-18', odometer: 37_900, pieces: [3.6, 3.5] }, { on: '2026-06-02', odometer: 51_900, pieces: [2.3, 2.4] }],
     }],
   },
   {
-    key: 'wren', name: 'Wren', year: 2016, layout: 'twin', cc: 898, cooling: 'liquid', capacityL: 3.4, meter: 'mi',
-    grades: [{ grade: '10W-40', minC: -20, maxC: 40 }], maxInterval: 6_000, maxIntervalDays: 365,
+    key: 'wren', name: 'Wren', year: 2016, layout: 'twin', cc: 870, cooling: 'liquid', capacityL: 3.4, meter: 'mi',
+    grades: [{ grade: '5W-40', minC: -25, maxC: 35 }, { grade: '15W-50', minC: -5, maxC: 50 }], maxInterval: 6_000, maxIntervalDays: 365,
     notes: 'Weekend tourer. Oil changed every spring and autumn.', codes: 'issued',
     changes: history('2024-12-06', 12_900, [[140, 2_100], [150, 2_000], [165, 1_980], [140, 2_120], [130, 2_000]],
-      { grade: '10W-40', product: 'Blackmere Twin Road 4T', filter: true }, { 2: { work: ['Clutch cover off: friction plates measured'] } }),
+      { grade: '5W-40', product: 'Larkspire Synthetic 4T', filter: true }, { 4: { work: ['Clutch springs measured with calipers during a clutch cable change'] } }),
     wearParts: [{
-      // The check case: new 0.115–0.121 in, limit 0.100 in, 0.110 in at about 17,000 mi
-      // (common practice for that engine, no published source).
-      name: 'Clutch friction plates', pieces: 8, unit: 'in', newMin: 0.115, newMax: 0.121, limit: 0.1, fittedAt: 0,
-      readings: [{ on: '2025-09-22', odometer: 17_000, pieces: [0.111, 0.11, 0.112, 0.111, 0.11, 0.111, 0.112, 0.111] }],
+      // Invented for the demo: springs that shorten as they tire, measured once at the clutch cable change.
+      name: 'Clutch spring free length', pieces: 5, unit: 'in', newMin: 1.690, newMax: 1.700, limit: 1.650, fittedAt: 4_800,
+      readings: [{ on: '2026-07-24', odometer: 21_100, pieces: [1.676, 1.679, 1.675, 1.678, 1.677] }],
     }],
   },
 ];

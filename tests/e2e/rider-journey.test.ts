@@ -83,7 +83,7 @@ describe('rider journey on a phone', () => {
     await page.getByLabel('Date').fill('2025-06-01');
     await page.getByLabel('Odometer (mi)').fill('14,000');
     await page.getByLabel('SAE grade').fill('10W-50');
-    await page.getByLabel('Oil product').fill('Ridgeline Synth 4T');
+    await page.getByLabel('Oil product').fill('Quillmoor Synth 4T');
     await page.getByLabel('Other work done').fill('Drain plug washer replaced');
     await page.locator('[data-testid=photo-uploader] input[type=file]').first().setInputFiles({ name: 'cover-bolts.png', mimeType: 'image/png', buffer: tinyPng() });
     await page.getByText('1 photo(s) ready').waitFor({ timeout: 15_000 });
@@ -134,7 +134,7 @@ describe('rider journey on a phone', () => {
     await page.getByTestId('drain-card-link').click();
     await page.waitForURL(/drain-card$/);
     expect(await page.getByLabel('SAE grade').inputValue()).toBe('10W-50');
-    expect(await page.getByLabel('Oil product').inputValue()).toBe('Ridgeline Synth 4T');
+    expect(await page.getByLabel('Oil product').inputValue()).toBe('Quillmoor Synth 4T');
     expect(await page.getByLabel('Odometer (mi)').inputValue()).toBe('14000');
     expect(await page.locator('.caution').first().textContent()).toContain('collection point');
     await page.getByRole('button', { name: 'Issue a Sumpwise code' }).click();
@@ -213,6 +213,8 @@ describe('rider journey on a phone', () => {
   });
 
   test('a wear part is measured and its forecast shown with its range and the caution', async () => {
+    // Clutch friction plates of 0.115–0.121 in new with a 0.100 in service limit: a typical figure of the
+    // trade (common practice, no published source), used as a check value here and never in the demo.
     await page.goto(`${machineUrl}/wear-parts/new`);
     await page.getByLabel('Part').fill('Clutch friction plates');
     await page.getByLabel('How many pieces').fill('8');

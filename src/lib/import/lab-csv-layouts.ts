@@ -102,7 +102,7 @@ function round(value: number, places: number): number {
 }
 
 const LAYOUTS: Readonly<Record<LabCsvLayout, LayoutSpec>> = {
-  // A wide comma file with element symbols and ISO dates.
+  // A wide comma file with element symbols, ISO dates and the flash point in °F.
   'wide-symbols': {
     delimiter: ',',
     newline: '\n',
@@ -121,7 +121,8 @@ const LAYOUTS: Readonly<Record<LabCsvLayout, LayoutSpec>> = {
       { header: 'Fuel %', cell: readingCell('FUEL', plain, 'ND') },
       { header: 'Water %', cell: readingCell('WATER', plain, 'ND') },
       { header: 'Glycol', cell: glycolCell('POS', 'NEG') },
-      { header: 'Flash °C', cell: readingCell('FLASH', plain, 'ND') },
+      // °F to one decimal: 9/5 °C + 32.
+      { header: 'Flash °F', cell: readingCell('FLASH', (c) => plain(round((c * 9) / 5 + 32, 1)), 'ND') },
       { header: 'Insol %', cell: readingCell('INSOL', plain, 'ND') },
     ],
   },
@@ -148,7 +149,7 @@ const LAYOUTS: Readonly<Record<LabCsvLayout, LayoutSpec>> = {
       { header: 'Insolubles %', cell: readingCell('INSOL', decimalComma, 'n.d.') },
     ],
   },
-  // A tab file with a title line, names with symbols, a units row, Saybolt seconds at 210 °F and °F flash point.
+  // A tab file with a title line, names with symbols, a units row and Saybolt seconds at 210 °F; no insolubles.
   'units-row-saybolt': {
     delimiter: '\t',
     newline: '\n',
@@ -180,9 +181,7 @@ const LAYOUTS: Readonly<Record<LabCsvLayout, LayoutSpec>> = {
       { header: 'Fuel', unit: '%', cell: readingCell('FUEL', plain, 'ND') },
       { header: 'Water', unit: '%', cell: readingCell('WATER', plain, 'ND') },
       { header: 'Glycol', cell: glycolCell('Yes', 'No') },
-      // °F to one decimal, as such labs print it: 9/5 °C + 32.
-      { header: 'Flash Point', unit: '°F', cell: readingCell('FLASH', (c) => plain(round((c * 9) / 5 + 32, 1)), 'ND') },
-      { header: 'Insolubles', unit: '%', cell: readingCell('INSOL', plain, 'ND') },
+      { header: 'Flash Point', unit: '°C', cell: readingCell('FLASH', plain, 'ND') },
     ],
   },
 };
