@@ -14,6 +14,8 @@ module.exports = {
           watch: '#8a5a00', 'watch-bg': '#fbefd2',
           act: '#a12a1c', 'act-bg': '#f8e0dc',
         },
+        // Safety cautions only: an indigo of its own, so a caution never reads as a watch level.
+        safety: { DEFAULT: '#463c8c', bg: '#eeecf8' },
         line: '#d4cec2',
       },
       fontFamily: {
