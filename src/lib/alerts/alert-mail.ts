@@ -6,6 +6,7 @@
  * nothing).
  */
 import type { AlertLine, Level, Meter, NotificationKind } from '../db/database';
+import { LEVEL_DISPLAY } from '../levels';
 import { escapeHtml, renderMailLayout } from '../mail/templates';
 import { formatMeter } from '../units/units';
 
@@ -32,8 +33,6 @@ export interface AlertFooterLinks {
   unsubscribeWhat: string;
   preferencesUrl: string;
 }
-
-export const LEVEL_WORDS: Record<Exclude<Level, 'steady'>, string> = { act: 'ACT', watch: 'Watch' };
 
 const SUBJECT_MAX = 200;
 
@@ -70,7 +69,7 @@ export function composeImportFindingsAlert(input: { crewName: string; fileName: 
     for (const s of m.samples) {
       const ordered = [...s.findings].sort((a, b) => (a.level === b.level ? 0 : a.level === 'act' ? -1 : 1));
       for (const f of ordered) {
-        lines.push({ text: `${LEVEL_WORDS[f.level]}${f.measurand ? ` · ${f.measurand}` : ''} (bottle ${s.bottleCode}, drawn ${s.drawnOn}): ${f.sentence}` });
+        lines.push({ text: `${LEVEL_DISPLAY[f.level].word}${f.measurand ? ` · ${f.measurand}` : ''} (bottle ${s.bottleCode}, drawn ${s.drawnOn}): ${f.sentence}` });
       }
       lines.push({ text: `Sample ${s.bottleCode}, readings and findings`, url: s.url });
     }

@@ -32,7 +32,7 @@ describe('import alerts', () => {
       expect(rows, to).toHaveLength(1);
       const row = rows[0]!;
       expect(row.subject).toMatch(/^Act: lab results for Ridge 450 \(Valley school\)$/);
-      expect(row.text_body).toMatch(/ACT · Al/);
+      expect(row.text_body).toMatch(/Act · Al/);
       expect(row.html_body).toMatch(/<a href="[^"]+\/machines\//);
       expect(row.headers['List-Unsubscribe-Post']).toBe('List-Unsubscribe=One-Click');
       // The token names this recipient, this crew and this kind.
@@ -114,8 +114,8 @@ describe('import alerts', () => {
     const received = await db.selectFrom('dev_mailbox').selectAll().orderBy('envelope_to').execute();
     expect(received.map((r) => r.envelope_to).sort()).toEqual([c.lead.email, c.mechanic.email, c.rider.email].sort());
     for (const r of received) {
-      expect(r.text_body).toContain('ACT · Al');
-      expect(r.html_body).toContain('ACT · Al');
+      expect(r.text_body).toContain('Act · Al');
+      expect(r.html_body).toContain('Act · Al');
       // Long header lines arrive folded (RFC 5322 §2.2.3); unfolded they are the header we set.
       const unfolded = r.raw.replace(/\r?\n[ \t]+/g, ' ');
       expect(unfolded).toMatch(/^List-Unsubscribe: <http[^>]+\/api\/unsubscribe\?token=[A-Za-z0-9_-]+\.[A-Za-z0-9_-]+>\r?$/m);
@@ -138,7 +138,7 @@ describe('import alerts', () => {
     const digests = await db.selectFrom('mail_outbox').selectAll().where('kind', '=', 'alert_digest').execute();
     expect(digests).toHaveLength(1);
     expect(digests[0]).toMatchObject({ to_address: c.mechanic.email, idempotency_key: `digest:${c.mechanic.id}:2030-01-02` });
-    expect(digests[0]!.text_body).toContain('ACT · Al');
+    expect(digests[0]!.text_body).toContain('Act · Al');
     expect(verifyUnsubscribeToken(tokenFromHeaders(digests[0]!.headers), loadAlertEnv().secret)).toEqual({ userId: c.mechanic.id, crewId: null, kind: 'digest' });
     // The job running again the same day (a retry after a crash, a second worker) sends nothing more.
     expect(await sendDailyDigests(db, { now })).toEqual({ queued: 0, deferred: 0 });

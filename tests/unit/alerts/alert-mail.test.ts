@@ -38,7 +38,7 @@ describe('composeImportFindingsAlert', () => {
     expect(importAlert.intro).toContain('1 at act and 2 at watch on 2 machines');
     expect(importAlert.intro).toMatch(/advice/);
     const texts = importAlert.lines.map((l) => l.text);
-    expect(texts.findIndex((t) => t.startsWith('ACT · Al'))).toBeLessThan(texts.findIndex((t) => t.startsWith('Watch · Si')));
+    expect(texts.findIndex((t) => t.startsWith('Act · Al'))).toBeLessThan(texts.findIndex((t) => t.startsWith('Watch · Si')));
     expect(importAlert.lines.filter((l) => l.url).map((l) => l.url)).toEqual([`${BASE}/machines/m1`, `${BASE}/samples/s4`, `${BASE}/machines/m2`, `${BASE}/samples/s9`]);
   });
 
@@ -73,8 +73,8 @@ describe('renderAlertMail', () => {
   });
 
   test('the level is a word, not a colour', () => {
-    expect(mail.text).toContain('ACT · Al');
-    expect(mail.html).toContain('ACT · Al');
+    expect(mail.text).toContain('Act · Al');
+    expect(mail.html).toContain('Act · Al');
   });
 });
 
@@ -116,7 +116,7 @@ describe('renderDigestMail', () => {
       entries: [
         { crewName: 'Valley school', title: 'Ridge 450: next sample due', lines: [{ text: 'Ridge 450', url: `${BASE}/machines/m1` }] },
         { crewName: 'Own bikes', title: 'Bottle SW-7: no results after 21 days', lines: [{ text: 'Ask the lab.' }] },
-        { crewName: 'Valley school', title: 'Lab results need a look', lines: [{ text: 'ACT · Al' }] },
+        { crewName: 'Valley school', title: 'Lab results need a look', lines: [{ text: 'Act · Al' }] },
       ],
     }, { ...links, unsubscribeWhat: 'the daily digest' });
     expect(mail.subject).toBe('Sumpwise digest 2026-04-12: 3 items');
