@@ -4,7 +4,7 @@
  */
 import { getMeasurand, MEASURAND_CODES, type MeasurandCode } from '../analysis/measurands';
 import type { Reading } from '../analysis/types';
-import { hasFigures, type NewOilReference, SOURCE_LABELS } from './new-oil';
+import { hasFigures, type NewOilReference } from './new-oil';
 import type { ProductInUse } from './new-oil.service';
 
 const UNITS: Partial<Record<MeasurandCode, string>> = { KV40: 'mm²/s', KV100: 'mm²/s', TBN: 'mg KOH/g', TAN: 'mg KOH/g', FLASH: '°C', FUEL: '%', WATER: '%', INSOL: '%', VI: '' };
@@ -23,7 +23,7 @@ export function describeReadings(readings: Partial<Record<MeasurandCode, Reading
 
 /** Where a reference stands, in words. */
 export function describeReferenceState(ref: NewOilReference): string {
-  if (ref.source === 'data-sheet') return `${SOURCE_LABELS['data-sheet']}, saved ${ref.updatedAt.toISOString().slice(0, 10)}`;
+  if (ref.source === 'data-sheet') return `Saved ${ref.updatedAt.toISOString().slice(0, 10)}`;
   if (!hasFigures(ref)) return `Bottle ${ref.bottleCode} is at the lab: its results are written here when the lab’s file is imported.`;
   return `Bottle ${ref.bottleCode}, results of ${ref.resultsOn ?? '—'}`;
 }

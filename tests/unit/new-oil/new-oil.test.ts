@@ -3,7 +3,7 @@ import {
   attachNewOil, buildNewOilLookup, chooseNewOilForAnalysis, newOilInputSchema, normaliseProductName, readingsFromDataSheet,
   type NewOilReference,
 } from '~/lib/new-oil/new-oil';
-import { buildReferenceList, describeReadings, formatFigure, FIRST_SAMPLES_SERVE, newReferenceHref, referenceFormValues } from '~/lib/new-oil/new-oil-view';
+import { buildReferenceList, describeReadings, describeReferenceState, formatFigure, FIRST_SAMPLES_SERVE, newReferenceHref, referenceFormValues } from '~/lib/new-oil/new-oil-view';
 import type { SamplePoint } from '~/lib/analysis/types';
 
 // Invented product names throughout (no real brands).
@@ -155,5 +155,15 @@ describe('new-oil screens', () => {
   test('form links and edit values', () => {
     expect(newReferenceHref('Dustline 15W-50', '15W-50', 'lab')).toBe('/oil-references/new?source=lab&product=Dustline+15W-50&grade=15W-50');
     expect(referenceFormValues(ref({ readings: { KV100: { value: 14.2 }, VI: { value: 150 } } }))).toEqual({ productName: 'Ridgeline 10W-40', saeGrade: '10W-40', note: '', bottleCode: '', KV100: '14.2' });
+  });
+});
+
+describe('describeReferenceState', () => {
+  test.each([
+    [ref({}), 'Saved 2026-11-30'],
+    [ref({ source: 'lab', bottleCode: 'NO-1' }), 'Bottle NO-1 is at the lab: its results are written here when the lab’s file is imported.'],
+    [ref({ source: 'lab', bottleCode: 'NO-1', resultsOn: '2026-11-20', readings: { KV100: { value: 14 } } }), 'Bottle NO-1, results of 2026-11-20'],
+  ])('%#', (r, text) => {
+    expect(describeReferenceState(r)).toBe(text);
   });
 });

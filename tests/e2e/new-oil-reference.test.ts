@@ -1,0 +1,135 @@
+// A mechanic records the new oil of an oil product from its data sheet (on a phone, from the machine page),
+// then imports the lab's file: the sample of that oil gets a viscosity finding against the recorded
+// figure, which the grade's SAE window alone would not have raised. Also the list page on a desktop.
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
+import type { Browser, BrowserContext, Page } from 'playwright-core';
+import { createDb } from '../../src/lib/db/db';
+import { hashPassword } from '../../src/lib/auth/password';
+import { normaliseBottleCode } from '../../src/lib/samples/bottle-code';
+import { DESKTOP, PHONE, launchBrowser, newContext, screenshot } from './helpers/browser';
+import { signInAs } from './helpers/sign-in';
+
+const stamp = Date.now().toString(36);
+const PASSWORD = 'a long enough password';
+const mechanicEmail = `oil-mechanic-${stamp}@fenwater.example`;
+// Invented product. A 10W-40 at 12.6 mm²/s is inside the SAE J300 window of 40 (12.5 to <16.3) but
+// 21 % below the 16.0 mm²/s typed from the data sheet: past the KV100 ±15 % fixed limit.
+const PRODUCT = `Fenwater Trail 10W-40 ${stamp}`;
+const BOTTLE = `FW-${stamp}`.toUpperCase();
+let machineId = '';
+let sampleId = '';
+
+async function prepareCrew(): Promise<void> {
+  const db = createDb(inject('databaseUrl'), { max: 1 });
+  try {
+    const hash = await hashPassword(PASSWORD);
+    const crew = await db.insertInto('crews').values({ name: `Fenwater crew ${stamp}` }).returning('id').executeTakeFirstOrThrow();
+    const users = { lead: `oil-lead-${stamp}`, mechanic: `oil-mechanic-${stamp}` };
+    await db.insertInto('users').values([
+      { id: users.lead, email: `oil-lead-${stamp}@fenwater.example`, display_name: 'Ada Fen', password_hash: hash, email_verified_at: new Date() },
+      { id: users.mechanic, email: mechanicEmail, display_name: 'Bram Fen', password_hash: hash, email_verified_at: new Date() },
+    ]).execute();
+    await db.insertInto('crew_members').values([
+      { crew_id: crew.id, user_id: users.lead, role: 'lead' }, { crew_id: crew.id, user_id: users.mechanic, role: 'mechanic' },
+    ]).execute();
+    const machine = await db.insertInto('machines').values({
+      crew_id: crew.id, owner_user_id: users.lead, name: 'Fen 690', engine_layout: 'single', displacement_cc: 690, cooling: 'liquid',
+      meter: 'km', recommended_grades: JSON.stringify([{ grade: '10W-40', minC: -10, maxC: 40 }]), max_interval_distance: 6000,
+    } as never).returning('id').executeTakeFirstOrThrow();
+    machineId = machine.id;
+    const change = await db.insertInto('oil_changes').values({
+      crew_id: crew.id, machine_id: machine.id, changed_on: '2026-09-01', odometer: 10_000, oil_product: PRODUCT, sae_grade: '10W-40',
+      volume_l: 1.6, created_by: users.lead,
+    } as never).returning('id').executeTakeFirstOrThrow();
+    const sample = await db.insertInto('samples').values({
+      crew_id: crew.id, machine_id: machine.id, oil_change_id: change.id, bottle_code: BOTTLE, bottle_code_norm: normaliseBottleCode(BOTTLE),
+      drawn_on: '2026-11-01', odometer: 13_000, distance_on_oil: 3000, sae_grade: '10W-40', oil_product: PRODUCT, client_key: null,
+      created_by: users.lead, state: 'shipped',
+    } as never).returning('id').executeTakeFirstOrThrow();
+    sampleId = sample.id;
+  } finally {
+    await db.destroy();
+  }
+}
+
+describe('new-oil reference in Chromium', () => {
+  let browser: Browser;
+  let context: BrowserContext;
+  let page: Page;
+  const errors: string[] = [];
+
+  beforeAll(async () => {
+    await prepareCrew();
+    browser = await launchBrowser();
+    context = await newContext(browser, PHONE);
+    page = await context.newPage();
+    page.on('pageerror', (e) => errors.push(e.message));
+    await signInAs(page, mechanicEmail, PASSWORD);
+  });
+  afterAll(async () => { await browser?.close(); });
+
+  test('the machine page says the first samples serve, and leads to the form prefilled with the product', async () => {
+    await page.goto(`/machines/${machineId}`);
+    const note = page.getByTestId('machine-new-oil');
+    await expect(note.textContent()).resolves.toContain('first samples of this oil serve as its reference');
+    await screenshot(page, 'new-oil-01-machine-phone');
+    await Promise.all([page.waitForURL(/\/oil-references\/new\?/), note.getByRole('link', { name: /Record the new oil of/ }).click()]);
+    expect(await page.getByLabel('Oil product').inputValue()).toBe(PRODUCT);
+    expect(await page.getByLabel('SAE grade').inputValue()).toBe('10W-40');
+  });
+
+  test('swapped viscosities are refused with a sentence beside the field; the corrected figures are saved', async () => {
+    await page.getByLabel('KV at 100 °C (mm²/s)').fill('110');
+    await page.getByLabel('KV at 40 °C (mm²/s)').fill('16');
+    await page.getByRole('button', { name: 'Save the reference' }).click();
+    await page.locator('#f-KV40-error').waitFor();
+    expect(await page.locator('#f-KV40-error').textContent()).toMatch(/must be higher than the one at 100 °C/);
+    await screenshot(page, 'new-oil-02-refused-phone');
+    await page.getByLabel('KV at 100 °C (mm²/s)').fill('16,0');
+    await page.getByLabel('KV at 40 °C (mm²/s)').fill('110');
+    await page.getByLabel('Zn · Zinc').fill('1100');
+    await Promise.all([page.waitForURL(/\/oil-references\/[0-9a-f-]{36}\?saved=1$/), page.getByRole('button', { name: 'Save the reference' }).click()]);
+    const figures = await page.getByTestId('new-oil-figures').textContent();
+    expect(figures).toContain('KV100 16 mm²/s');
+    expect(figures).toContain('Zn 1,100 ppm');
+    expect(figures).toMatch(/VI \d+/);
+    await screenshot(page, 'new-oil-03-saved-phone');
+    const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+    expect(overflow).toBeLessThanOrEqual(0);
+  });
+
+  test('the next import’s findings use the recorded new oil', async () => {
+    const dir = mkdtempSync(path.join(os.tmpdir(), 'sumpwise-new-oil-'));
+    const file = path.join(dir, `fen-lab-${stamp}.csv`);
+    writeFileSync(file, `Bottle,Sampled,Fe,Al,Si,KV100\n${BOTTLE},2026-11-01,22,4,9,12.6\n`);
+    await page.goto('/imports');
+    await page.getByTestId('lab-upload-dashboard').locator('.uppy-Dashboard').waitFor();
+    await page.locator('.uppy-Dashboard-input').first().setInputFiles(file);
+    await page.locator('.uppy-StatusBar-actionBtn--upload').click();
+    await page.waitForURL(/\/imports\/[0-9a-f-]{36}$/, { timeout: 20_000 });
+    await Promise.all([page.waitForURL(/done=1/), page.getByTestId('confirm-import').click()]);
+    await page.goto(`/samples/${sampleId}`);
+    const findings = page.getByTestId('finding-details');
+    await findings.waitFor();
+    const text = (await findings.textContent()) ?? '';
+    // |12.6 − 16.0| / 16.0 = 21.25 %: the finding names the figure of the oil as poured.
+    expect(text).toMatch(/same oil new \(16 mm²\/s\)/);
+    await screenshot(page, 'new-oil-04-finding-phone');
+    await page.setViewportSize(DESKTOP);
+    await screenshot(page, 'new-oil-05-finding-desktop');
+  });
+
+  test('the list shows the reference with its figures on a desktop', async () => {
+    await page.goto('/oil-references');
+    const list = page.getByTestId('new-oil-list');
+    await list.waitFor();
+    const item = list.locator('li', { hasText: PRODUCT }).first();
+    expect(await item.textContent()).toContain('KV100 16 mm²/s');
+    expect(await item.getByTestId('first-samples-serve').count()).toBe(0);
+    await screenshot(page, 'new-oil-06-list-desktop');
+    expect(errors).toEqual([]);
+  });
+});
