@@ -9,8 +9,8 @@ import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { createDb } from '../../src/lib/db/db';
 import { hashPassword } from '../../src/lib/auth/password';
 import { normaliseBottleCode } from '../../src/lib/samples/bottle-code';
-import { DESKTOP, PHONE, launchBrowser, newContext, screenshot } from './helpers/browser';
-import { signInAs } from './helpers/sign-in';
+import { DESKTOP, PHONE, baseUrl, launchBrowser, newContext, screenshot } from './helpers/browser';
+import { sessionCookieFor, signInAs } from './helpers/sign-in';
 
 const stamp = Date.now().toString(36);
 const PASSWORD = 'a long enough password';
@@ -122,11 +122,34 @@ describe('new-oil reference in Chromium', () => {
     await screenshot(page, 'new-oil-05-finding-desktop');
   });
 
+  test('the endpoints stand up to forged origins and crews, huge strings, 5 MB and chunked bodies', async () => {
+    const cookie = await sessionCookieFor(baseUrl(), mechanicEmail, PASSWORD);
+    const post = (body: BodyInit, headers: Record<string, string> = {}, extra: RequestInit = {}) => fetch(`${baseUrl()}/api/oil-references`, {
+      method: 'POST', headers: { cookie, origin: baseUrl(), 'content-type': 'application/json', ...headers }, body, ...extra,
+    });
+    const before = (await (await fetch(`${baseUrl()}/api/oil-references`, { headers: { cookie } })).json()) as { references: unknown[] };
+    const ok = { source: 'data-sheet', productName: `Forged ${stamp}`, KV100: 14 };
+    // Another site's origin: refused before anything is read (origin check).
+    expect((await post(JSON.stringify(ok), { origin: 'https://evil.example' })).status).toBe(403);
+    // A 100 KB product name and a 5 MB body: refused with 413 (the JSON cap is 16 KB).
+    expect((await post(JSON.stringify({ ...ok, productName: 'x'.repeat(100_000) }))).status).toBe(413);
+    expect((await post('{"a":"' + 'y'.repeat(5 * 1024 * 1024) + '"}')).status).toBe(413);
+    // A chunked body of the same 100 KB: no length header to trust, still 413.
+    const chunks = new ReadableStream({ start(c) { for (let i = 0; i < 10; i++) c.enqueue(new TextEncoder().encode('z'.repeat(10_000))); c.close(); } });
+    expect((await post(chunks as unknown as BodyInit, {}, { duplex: 'half' } as RequestInit)).status).toBe(413);
+    // A forged crew id is not accepted: the reference lands in the session's crew or nowhere.
+    const forged = await post(JSON.stringify({ ...ok, crewId: '00000000-0000-4000-8000-000000000000' }));
+    expect(forged.status).toBe(201);
+    const after = (await (await fetch(`${baseUrl()}/api/oil-references`, { headers: { cookie } })).json()) as { references: { productName: string }[] };
+    expect(after.references.length).toBe(before.references.length + 1);
+    expect(after.references.some((r) => r.productName === `Forged ${stamp}`)).toBe(true);
+  });
+
   test('the list shows the reference with its figures on a desktop', async () => {
     await page.goto('/oil-references');
     const list = page.getByTestId('new-oil-list');
     await list.waitFor();
-    const item = list.locator('li', { hasText: PRODUCT }).first();
+    const item = list.locator(`li[data-product="${PRODUCT.toLowerCase()}"]`);
     expect(await item.textContent()).toContain('KV100 16 mm²/s');
     expect(await item.getByTestId('first-samples-serve').count()).toBe(0);
     await screenshot(page, 'new-oil-06-list-desktop');

@@ -79,9 +79,12 @@ async function riderWearPart(ctx: MatrixContext): Promise<string> {
   return `/machines/${machineId}/wear-parts/${p.id}`;
 }
 
-/** A data-sheet new-oil reference of crew A, of a product of its own (each call a new one). */
-async function crewOilReference(ctx: MatrixContext): Promise<string> {
-  const name = `Matrix oil ${randomUUID().slice(0, 8)}`;
+/**
+ * A data-sheet new-oil reference of crew A, of a product of its own (each call a new one); with a name, the
+ * crew's earlier reference of that name goes first, so a request that saves under that name meets no clash.
+ */
+async function crewOilReference(ctx: MatrixContext, name = `Matrix oil ${randomUUID().slice(0, 8)}`): Promise<string> {
+  await ctx.db.deleteFrom('new_oil_references').where('crew_id', '=', ctx.crewA.id).where('product_key', '=', name.toLowerCase()).execute();
   const r = await ctx.db.insertInto('new_oil_references').values({
     crew_id: ctx.crewA.id, product_name: name, product_key: name.toLowerCase(), source: 'data-sheet', readings: JSON.stringify({ KV100: { value: 14 } }),
     bottle_code: null, bottle_code_norm: null, lab_import_id: null, results_on: null, created_by: ctx.crewA.leadId,
@@ -267,8 +270,8 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { route: '/api/oil-references', method: 'POST', path: '/api/oil-references', json: { source: 'data-sheet', productName: 'Matrix', KV100: 14, KV40: 9 },
     expect: { ...all(400), anonymous: 401 }, note: 'swapped viscosities' },
   { route: '/api/oil-references/[id]', method: 'GET', path: async (ctx) => `/api/oil-references/${await crewOilReference(ctx)}`, expect: memberApi },
-  { route: '/api/oil-references/[id]', method: 'PUT', path: async (ctx) => `/api/oil-references/${await crewOilReference(ctx)}`,
-    json: { productName: `Matrix put ${randomUUID().slice(0, 8)}`, KV100: 14.5 }, expect: memberApi },
+  { route: '/api/oil-references/[id]', method: 'PUT', path: async (ctx) => `/api/oil-references/${await crewOilReference(ctx, 'Matrix put target')}`,
+    json: { productName: 'Matrix put target', KV100: 14.5 }, expect: memberApi },
   { route: '/api/oil-references/[id]', method: 'DELETE', path: async (ctx) => `/api/oil-references/${await crewOilReference(ctx)}`, expect: memberApi },
 
   // Reading side (issue 7): overview, rules, oil tools, trends and the readings export.
