@@ -131,18 +131,22 @@ describe('new-oil reference in Chromium', () => {
     const ok = { source: 'data-sheet', productName: `Forged ${stamp}`, KV100: 14 };
     // Another site's origin: refused before anything is read (origin check).
     expect((await post(JSON.stringify(ok), { origin: 'https://evil.example' })).status).toBe(403);
-    // A 100 KB product name and a 5 MB body: refused with 413 (the JSON cap is 16 KB).
-    expect((await post(JSON.stringify({ ...ok, productName: 'x'.repeat(100_000) }))).status).toBe(413);
-    expect((await post('{"a":"' + 'y'.repeat(5 * 1024 * 1024) + '"}')).status).toBe(413);
-    // A chunked body of the same 100 KB: no length header to trust, still 413.
-    const chunks = new ReadableStream({ start(c) { for (let i = 0; i < 10; i++) c.enqueue(new TextEncoder().encode('z'.repeat(10_000))); c.close(); } });
-    expect((await post(chunks as unknown as BodyInit, {}, { duplex: 'half' } as RequestInit)).status).toBe(413);
     // A forged crew id is not accepted: the reference lands in the session's crew or nowhere.
     const forged = await post(JSON.stringify({ ...ok, crewId: '00000000-0000-4000-8000-000000000000' }));
     expect(forged.status).toBe(201);
     const after = (await (await fetch(`${baseUrl()}/api/oil-references`, { headers: { cookie } })).json()) as { references: { productName: string }[] };
     expect(after.references.length).toBe(before.references.length + 1);
     expect(after.references.some((r) => r.productName === `Forged ${stamp}`)).toBe(true);
+    // Oversized bodies last: a refused upload may leave its connection closed under the client's pool.
+    // A 100 KB product name: refused with 413 (the JSON cap is 16 KB).
+    expect((await post(JSON.stringify({ ...ok, productName: 'x'.repeat(100_000) }))).status).toBe(413);
+    // A chunked body of the same 100 KB: no length header to trust, still 413.
+    const chunks = new ReadableStream({ start(c) { for (let i = 0; i < 10; i++) c.enqueue(new TextEncoder().encode('z'.repeat(10_000))); c.close(); } });
+    expect((await post(chunks as unknown as BodyInit, {}, { duplex: 'half' } as RequestInit)).status).toBe(413);
+    // 5 MB is refused by its declared length before it is read; the server may answer 413 and close the
+    // connection while the client is still sending, which the client sees as a reset. Either way nothing is kept.
+    const huge = await post('{"a":"' + 'y'.repeat(5 * 1024 * 1024) + '"}').then((r) => r.status, () => 'closed while sending');
+    expect([413, 'closed while sending']).toContain(huge);
   });
 
   test('the list shows the reference with its figures on a desktop', async () => {
