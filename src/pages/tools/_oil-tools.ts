@@ -94,7 +94,7 @@ export function runGradeOf(params: URLSearchParams): ToolResult<GradeAnswer> {
   if (kv100 <= 0) return { state: 'error', fields: { kv100: 'A viscosity must be above zero.' } };
   const grades = saeGradesOf(kv100);
   const overlap = grades.length > 1
-    ? `The viscosity at 100 °C alone cannot tell these apart. SAE J300 separates them by the high-temperature high-shear viscosity (HTHS) at 150 °C: at least ${grades.map((g) => `${SAE_J300_MIN_HTHS[g]} mPa·s for SAE ${g}`).join(', ')}. The oil’s data sheet gives its HTHS.`
+    ? `The viscosity at 100 °C alone cannot tell these apart. SAE J300 separates them by the high-temperature high-shear viscosity (HTHS) at 150 °C: at least ${grades.map((g) => `${SAE_J300_MIN_HTHS[g]!.toFixed(1)} mPa·s for SAE ${g}`).join(', ')}. The oil’s data sheet gives its HTHS.`
     : null;
   const label = grades.length > 1 ? `${grades.slice(0, -1).join(', ')} or ${grades[grades.length - 1]}` : grades.join('');
   return { state: 'ok', value: { kv100, grades, label, overlap } };

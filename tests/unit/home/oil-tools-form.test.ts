@@ -84,7 +84,7 @@ describe('grade of a measured viscosity', () => {
     expect(r.state === 'ok' && r.value.grades).toEqual(['12', '16', '20']);
     expect(r.state === 'ok' && r.value.label).toBe('12, 16 or 20');
     // J300 minimum HTHS at 150 °C: 12 → 2.0, 16 → 2.3, 20 → 2.6 mPa·s (from memory of the table).
-    expect(r.state === 'ok' && r.value.overlap).toMatch(/HTHS.*2 mPa·s for SAE 12, 2\.3 mPa·s for SAE 16, 2\.6 mPa·s for SAE 20/);
+    expect(r.state === 'ok' && r.value.overlap).toMatch(/HTHS.*2\.0 mPa·s for SAE 12, 2\.3 mPa·s for SAE 16, 2\.6 mPa·s for SAE 20/);
   });
   test('zero is refused', () => {
     expect(runGradeOf(q({ tool: 'grade', kv100: '0' })).state).toBe('error');
