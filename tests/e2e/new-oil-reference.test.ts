@@ -157,6 +157,35 @@ describe('new-oil reference in Chromium', () => {
     expect(await item.textContent()).toContain('KV100 16 mm²/s');
     expect(await item.getByTestId('first-samples-serve').count()).toBe(0);
     await screenshot(page, 'new-oil-06-list-desktop');
+  });
+
+  test('a lab bottle of new oil is registered, shown apart in the import preview, and its results fill the reference', async () => {
+    const product = `Fenwater Road 15W-50 ${stamp}`;
+    const bottle = `NEW-${stamp}`.toUpperCase();
+    await page.goto(`/oil-references/new?source=lab&product=${encodeURIComponent(product)}`);
+    await page.getByLabel('Bottle code of the new-oil sample').fill(bottle);
+    await Promise.all([page.waitForURL(/\/oil-references\/[0-9a-f-]{36}\?saved=1$/), page.getByRole('button', { name: 'Register the bottle' }).click()]);
+    const referenceUrl = new URL(page.url()).pathname;
+    expect(await page.getByTestId('new-oil-figures').textContent()).toContain(`Bottle ${bottle} is at the lab`);
+    const dir = mkdtempSync(path.join(os.tmpdir(), 'sumpwise-new-oil-'));
+    const file = path.join(dir, `fen-new-oil-${stamp}.csv`);
+    writeFileSync(file, `Bottle,Sampled,Fe,Zn,Ca,B,KV100\n${bottle.toLowerCase()},2026-11-20,1,1180,2300,140,18.4\n`);
+    await page.goto('/imports');
+    await page.getByTestId('lab-upload-dashboard').locator('.uppy-Dashboard').waitFor();
+    await page.locator('.uppy-Dashboard-input').first().setInputFiles(file);
+    await page.locator('.uppy-StatusBar-actionBtn--upload').click();
+    await page.waitForURL(/\/imports\/[0-9a-f-]{36}$/, { timeout: 20_000 });
+    const rows = page.getByTestId('new-oil-rows');
+    expect(await rows.textContent()).toContain(product);
+    await screenshot(page, 'new-oil-07-preview-desktop');
+    await Promise.all([page.waitForURL(/done=1/), page.getByTestId('confirm-import').click()]);
+    expect(await page.getByTestId('new-oil-rows').textContent()).toContain('Written to the reference');
+    await page.goto(referenceUrl);
+    const figures = await page.getByTestId('new-oil-figures').textContent();
+    expect(figures).toContain(`Bottle ${bottle}, results of 2026-11-20`);
+    expect(figures).toContain('KV100 18.4 mm²/s');
+    await page.setViewportSize(PHONE);
+    await screenshot(page, 'new-oil-08-lab-reference-phone');
     expect(errors).toEqual([]);
   });
 });

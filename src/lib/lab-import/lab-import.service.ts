@@ -279,7 +279,7 @@ export async function previewLabImport(
       rows,
       newOilRows,
       machines,
-      counts: { rows: rows.length, ready, skipped, blocked, readings },
+      counts: { rows: rows.length + newOilRows.length, ready, skipped, blocked, readings },
       canConfirm: fileRow.import_id === null && blockingFileIssues.length === 0 && blocked === 0 && ready + newOilRows.length > 0,
     },
   };
