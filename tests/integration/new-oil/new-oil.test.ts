@@ -8,6 +8,7 @@ import type { Actor } from '../../../src/lib/machines/service-result';
 import { openTestDb, truncateAll } from '../test-database';
 import { addActor, makeActor } from '../rider-fixtures';
 import { makeMachine } from '../factories';
+import { registerDrainCard } from '../../../src/lib/samples/samples.service';
 import { bytesOf, makeSample } from '../lab-import/lab-import-fixtures';
 
 const db = openTestDb();
@@ -66,6 +67,16 @@ describe('recording new-oil references', () => {
     expect((await createNewOilReference(db, actor, { source: 'lab', productName: 'Ridgeline 10W-40', bottleCode: 'NO-1' })).ok).toBe(true);
     const twice = await createNewOilReference(db, actor, { source: 'lab', productName: 'Dustline 15W-50', bottleCode: 'no1' });
     expect(!twice.ok && twice.fields.bottleCode).toMatch(/already the new-oil bottle of “Ridgeline 10W-40”/);
+  });
+
+  test('a drain card cannot take the code of a registered bottle of new oil', async () => {
+    const lead = await makeActor(db, 'lead');
+    const machine = await makeMachine(db, lead.membership.crewId, lead.userId);
+    await createNewOilReference(db, lead, { source: 'lab', productName: 'Ridgeline 10W-40', bottleCode: 'NO-55' });
+    const r = await registerDrainCard(db, lead, machine.id, { bottleCode: 'no 55', codeSource: 'kit', drawnOn: '2025-07-01', odometer: '1500', saeGrade: '10W-40', drawMethod: 'midstream' });
+    expect(r.ok).toBe(false);
+    if (!r.ok) expect(r.fields.bottleCode).toMatch(/bottle of new oil registered for “Ridgeline 10W-40”/);
+    expect((await db.selectFrom('samples').select('id').execute()).length).toBe(0);
   });
 
   test('editing keeps the source, and another crew sees, edits or deletes nothing', async () => {
