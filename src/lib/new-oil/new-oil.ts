@@ -114,7 +114,7 @@ function figure(code: MeasurandCode) {
 
 const figuresShape = Object.fromEntries(DATA_SHEET_FIELDS.map((c) => [c, figure(c)])) as Record<MeasurandCode, ReturnType<typeof figure>>;
 
-const productName = text(120, 'oil product').pipe(z.string().min(1, 'Name the oil product as on the bottle, e.g. Ridgeline 10W-40 Semi-Synthetic.'));
+const productName = text(120, 'oil product').pipe(z.string().min(1, 'Name the oil product as on the bottle, e.g. Tarnwell 10W-40 Semi-Synthetic.'));
 const saeGradeText = text(20, 'SAE grade');
 const note = text(500, 'note');
 

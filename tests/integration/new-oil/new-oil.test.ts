@@ -16,7 +16,7 @@ afterAll(() => db.destroy());
 beforeEach(() => truncateAll(db));
 
 // Invented product; figures of a typical 10W-40 (SAE J300 window for 40: 12.5 to <16.3 mm²/s).
-const SHEET = { source: 'data-sheet', productName: 'Ridgeline 10W-40', saeGrade: '10w40', KV100: '16.0', KV40: '110', Zn: '1100', B: '150' };
+const SHEET = { source: 'data-sheet', productName: 'Tarnwell 10W-40', saeGrade: '10w40', KV100: '16.0', KV40: '110', Zn: '1100', B: '150' };
 
 async function counts() {
   const { rows } = await sql<{ refs: number; audit: number }>`select (select count(*)::int from new_oil_references) as refs,
@@ -29,7 +29,7 @@ describe('recording new-oil references', () => {
     const actor = await makeActor(db, role);
     const r = await createNewOilReference(db, actor, SHEET);
     if (!r.ok) throw new Error(JSON.stringify(r));
-    expect(r.value).toMatchObject({ productName: 'Ridgeline 10W-40', productKey: 'ridgeline 10w-40', source: 'data-sheet', saeGrade: '10W-40' });
+    expect(r.value).toMatchObject({ productName: 'Tarnwell 10W-40', productKey: 'tarnwell 10w-40', source: 'data-sheet', saeGrade: '10W-40' });
     expect(r.value.readings.KV100).toEqual({ value: 16 });
     expect(r.value.readings.VI?.value).toBeGreaterThan(100);
     expect(await counts()).toEqual({ refs: 1, audit: 1 });
@@ -51,31 +51,31 @@ describe('recording new-oil references', () => {
   test('one data sheet per product: the same name in other capitals and spacing is the same product', async () => {
     const actor = await makeActor(db);
     expect((await createNewOilReference(db, actor, SHEET)).ok).toBe(true);
-    const again = await createNewOilReference(db, actor, { ...SHEET, productName: '  ridgeline   10w-40 ' });
+    const again = await createNewOilReference(db, actor, { ...SHEET, productName: '  tarnwell   10w-40 ' });
     expect(again.ok).toBe(false);
     if (!again.ok) expect(again.fields.productName).toMatch(/already has data-sheet figures/);
     // A lab bottle of the same product is allowed beside the data sheet.
-    expect((await createNewOilReference(db, actor, { source: 'lab', productName: 'Ridgeline 10W-40', bottleCode: 'NO-1' })).ok).toBe(true);
+    expect((await createNewOilReference(db, actor, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'NO-1' })).ok).toBe(true);
   });
 
   test('a lab bottle cannot reuse a used-oil sample’s code or another bottle’s', async () => {
     const actor = await makeActor(db, 'lead');
     const machine = await makeMachine(db, actor.membership.crewId, actor.userId);
     await makeSample(db, actor.membership.crewId, machine.id, actor.userId, 'SW-9');
-    const clash = await createNewOilReference(db, actor, { source: 'lab', productName: 'Ridgeline 10W-40', bottleCode: 'sw 9' });
+    const clash = await createNewOilReference(db, actor, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'sw 9' });
     expect(!clash.ok && clash.fields.bottleCode).toMatch(/already a used-oil sample/);
-    expect((await createNewOilReference(db, actor, { source: 'lab', productName: 'Ridgeline 10W-40', bottleCode: 'NO-1' })).ok).toBe(true);
-    const twice = await createNewOilReference(db, actor, { source: 'lab', productName: 'Dustline 15W-50', bottleCode: 'no1' });
-    expect(!twice.ok && twice.fields.bottleCode).toMatch(/already the new-oil bottle of “Ridgeline 10W-40”/);
+    expect((await createNewOilReference(db, actor, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'NO-1' })).ok).toBe(true);
+    const twice = await createNewOilReference(db, actor, { source: 'lab', productName: 'Quarrow 15W-50', bottleCode: 'no1' });
+    expect(!twice.ok && twice.fields.bottleCode).toMatch(/already the new-oil bottle of “Tarnwell 10W-40”/);
   });
 
   test('a drain card cannot take the code of a registered bottle of new oil', async () => {
     const lead = await makeActor(db, 'lead');
     const machine = await makeMachine(db, lead.membership.crewId, lead.userId);
-    await createNewOilReference(db, lead, { source: 'lab', productName: 'Ridgeline 10W-40', bottleCode: 'NO-55' });
+    await createNewOilReference(db, lead, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'NO-55' });
     const r = await registerDrainCard(db, lead, machine.id, { bottleCode: 'no 55', codeSource: 'kit', drawnOn: '2025-07-01', odometer: '1500', saeGrade: '10W-40', drawMethod: 'midstream' });
     expect(r.ok).toBe(false);
-    if (!r.ok) expect(r.fields.bottleCode).toMatch(/bottle of new oil registered for “Ridgeline 10W-40”/);
+    if (!r.ok) expect(r.fields.bottleCode).toMatch(/bottle of new oil registered for “Tarnwell 10W-40”/);
     expect((await db.selectFrom('samples').select('id').execute()).length).toBe(0);
   });
 
@@ -99,14 +99,14 @@ describe('recording new-oil references', () => {
     const actor = await makeActor(db, 'lead');
     const m1 = await makeMachine(db, actor.membership.crewId, actor.userId, { name: 'A' } as never);
     const m2 = await makeMachine(db, actor.membership.crewId, actor.userId, { name: 'B' } as never);
-    for (const [m, product, on] of [[m1.id, 'Ridgeline 10W-40', '2026-05-01'], [m2.id, 'ridgeline  10w-40', '2026-06-01'], [m2.id, 'Dustline 15W-50', '2026-04-01']] as const) {
+    for (const [m, product, on] of [[m1.id, 'Tarnwell 10W-40', '2026-05-01'], [m2.id, 'tarnwell  10w-40', '2026-06-01'], [m2.id, 'Quarrow 15W-50', '2026-04-01']] as const) {
       await db.insertInto('oil_changes').values({ crew_id: actor.membership.crewId, machine_id: m, changed_on: on, odometer: 1000, oil_product: product, sae_grade: '10W-40', created_by: actor.userId } as never).execute();
     }
     await createNewOilReference(db, actor, SHEET);
     const products = await listProductsInUse(db, actor);
-    expect(products.map((p) => [p.productKey, p.machines, p.references.length])).toEqual([['ridgeline 10w-40', 2, 1], ['dustline 15w-50', 1, 0]]);
+    expect(products.map((p) => [p.productKey, p.machines, p.references.length])).toEqual([['tarnwell 10w-40', 2, 1], ['quarrow 15w-50', 1, 0]]);
     const oil = await describeMachineOil(db, actor, m2.id);
-    expect(oil?.productName).toBe('ridgeline  10w-40');
+    expect(oil?.productName).toBe('tarnwell  10w-40');
     expect(oil?.references).toHaveLength(1);
   });
 });
@@ -125,7 +125,7 @@ async function setupMachine() {
   const lead = await makeActor(db, 'lead');
   const machine = await makeMachine(db, lead.membership.crewId, lead.userId, { max_interval_distance: 3000 } as never);
   const sample = await makeSample(db, lead.membership.crewId, machine.id, lead.userId, 'SW-1');
-  await db.updateTable('samples').set({ oil_product: 'RIDGELINE 10w-40 ' }).where('id', '=', sample.id).execute();
+  await db.updateTable('samples').set({ oil_product: 'TARNWELL 10w-40 ' }).where('id', '=', sample.id).execute();
   return { lead, machine, sample };
 }
 
@@ -147,7 +147,7 @@ describe('the analysis reads the new-oil reference', () => {
     const rider = await addActor(db, lead, 'rider');
     expect((await createNewOilReference(db, rider, SHEET)).ok).toBe(true);
     const lookup = await loadNewOilLookup(db, lead.membership.crewId);
-    expect(lookup.get('ridgeline 10w-40')?.newOilKv100).toBe(16);
+    expect(lookup.get('tarnwell 10w-40')?.newOilKv100).toBe(16);
     const id = await importFile(lead, `${HEADER}\nSW-1,2026-02-01,20,4,12.6\n`, 'used.csv');
     const r = await confirmLabImport(db, { crewId: lead.membership.crewId, userId: lead.userId, labFileId: id, decisions: {} });
     if (!r.ok) throw new Error(r.message);
@@ -161,13 +161,13 @@ describe('the analysis reads the new-oil reference', () => {
   test('a lab bottle of new oil in the same file is written to its reference first, and the file’s samples are judged against it', async () => {
     const { lead, sample } = await setupMachine();
     const mechanic = await addActor(db, lead, 'mechanic');
-    const reg = await createNewOilReference(db, mechanic, { source: 'lab', productName: 'Ridgeline 10W-40', saeGrade: '10W-40', bottleCode: 'NEW-7' });
+    const reg = await createNewOilReference(db, mechanic, { source: 'lab', productName: 'Tarnwell 10W-40', saeGrade: '10W-40', bottleCode: 'NEW-7' });
     if (!reg.ok) throw new Error(JSON.stringify(reg));
     const id = await importFile(lead, `${HEADER}\nSW-1,2026-02-01,20,4,12.6\nnew 7,2026-01-20,1,0,16.2\n`, 'with-new.csv');
     const preview = await previewLabImport(db, { crewId: lead.membership.crewId, labFileId: id });
     if (!preview.ok) throw new Error(preview.message);
     expect(preview.value.rows.map((r) => r.bottle)).toEqual(['SW-1']);
-    expect(preview.value.newOilRows).toMatchObject([{ line: 3, referenceId: reg.value.id, productName: 'Ridgeline 10W-40', hasResults: false }]);
+    expect(preview.value.newOilRows).toMatchObject([{ line: 3, referenceId: reg.value.id, productName: 'Tarnwell 10W-40', hasResults: false }]);
     expect(preview.value.canConfirm).toBe(true);
 
     const r = await confirmLabImport(db, { crewId: lead.membership.crewId, userId: lead.userId, labFileId: id, decisions: {} });
@@ -187,8 +187,8 @@ describe('the analysis reads the new-oil reference', () => {
   test('a file with only a new-oil bottle can be confirmed; a bottle of another crew is not matched', async () => {
     const { lead } = await setupMachine();
     const other = await makeActor(db, 'lead', 'Other crew');
-    await createNewOilReference(db, other, { source: 'lab', productName: 'Ridgeline 10W-40', bottleCode: 'NEW-8' });
-    await createNewOilReference(db, lead, { source: 'lab', productName: 'Ridgeline 10W-40', bottleCode: 'NEW-9' });
+    await createNewOilReference(db, other, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'NEW-8' });
+    await createNewOilReference(db, lead, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'NEW-9' });
     const id = await importFile(lead, `${HEADER}\nNEW-9,2026-01-20,1,0,16.2\n`, 'only-new.csv');
     const r = await confirmLabImport(db, { crewId: lead.membership.crewId, userId: lead.userId, labFileId: id, decisions: {} });
     if (!r.ok) throw new Error(r.message);

@@ -10,18 +10,18 @@ import type { SamplePoint } from '~/lib/analysis/types';
 
 describe('normaliseProductName', () => {
   test.each([
-    ['Ridgeline 10W-40', 'ridgeline 10w-40'],
-    ['  Ridgeline   10W-40 ', 'ridgeline 10w-40'],
-    ['RIDGELINE\t10w-40', 'ridgeline 10w-40'],
-    ['Ridgeline\u00a010W-40', 'ridgeline 10w-40'], // a non-breaking space pasted from a data sheet
-    ['Ｒidgeline 10W-40', 'ridgeline 10w-40'], // a full-width letter folds by NFKC
-    ['Ridgeline 10W-50', 'ridgeline 10w-50'],
+    ['Tarnwell 10W-40', 'tarnwell 10w-40'],
+    ['  Tarnwell   10W-40 ', 'tarnwell 10w-40'],
+    ['TARNWELL\t10w-40', 'tarnwell 10w-40'],
+    ['Tarnwell\u00a010W-40', 'tarnwell 10w-40'], // a non-breaking space pasted from a data sheet
+    ['Ｒidgeline 10W-40', 'tarnwell 10w-40'], // a full-width letter folds by NFKC
+    ['Tarnwell 10W-50', 'tarnwell 10w-50'],
   ])('%j → %j', (input, key) => {
     expect(normaliseProductName(input)).toBe(key);
   });
 });
 
-const sheet = (o: Record<string, unknown>) => newOilInputSchema.safeParse({ source: 'data-sheet', productName: 'Ridgeline 10W-40', ...o });
+const sheet = (o: Record<string, unknown>) => newOilInputSchema.safeParse({ source: 'data-sheet', productName: 'Tarnwell 10W-40', ...o });
 const fieldsOf = (r: ReturnType<typeof sheet>) => (r.success ? {} : Object.fromEntries(r.error.issues.map((i) => [i.path.join('.'), i.message])));
 
 describe('data-sheet input', () => {
@@ -57,7 +57,7 @@ describe('data-sheet input', () => {
   });
 
   test('an unknown source is refused with a sentence', () => {
-    const r = newOilInputSchema.safeParse({ source: 'guess', productName: 'Ridgeline' });
+    const r = newOilInputSchema.safeParse({ source: 'guess', productName: 'Tarnwell' });
     expect(r.success).toBe(false);
     if (!r.success) expect(r.error.issues[0]!.message).toMatch(/data sheet or a lab sample/);
   });
@@ -70,12 +70,12 @@ describe('lab input', () => {
     { bottleCode: '---', ok: false },
     { bottleCode: 'X'.repeat(65), ok: false },
   ])('bottle code $bottleCode → ok $ok', ({ bottleCode, ok }) => {
-    expect(newOilInputSchema.safeParse({ source: 'lab', productName: 'Ridgeline 10W-40', bottleCode }).success).toBe(ok);
+    expect(newOilInputSchema.safeParse({ source: 'lab', productName: 'Tarnwell 10W-40', bottleCode }).success).toBe(ok);
   });
 });
 
 const ref = (o: Partial<NewOilReference>): NewOilReference => ({
-  id: 'r1', productName: 'Ridgeline 10W-40', productKey: 'ridgeline 10w-40', source: 'data-sheet', saeGrade: '10W-40', readings: {},
+  id: 'r1', productName: 'Tarnwell 10W-40', productKey: 'tarnwell 10w-40', source: 'data-sheet', saeGrade: '10W-40', readings: {},
   bottleCode: null, resultsOn: null, note: '', updatedAt: new Date('2026-11-30T10:00:00Z'), ...o,
 });
 
@@ -104,7 +104,7 @@ describe('chooseNewOilForAnalysis', () => {
 
 describe('attachNewOil', () => {
   const lookup = buildNewOilLookup([ref({ readings: { KV100: { value: 14.2 } } }), ref({ id: 'x', productKey: 'other oil', productName: 'Other oil', readings: { Zn: { value: 900 } } })]);
-  const point: SamplePoint = { id: 's', takenAt: '2026-11-01', odometer: 1000, distanceOnOil: 500, oilProduct: '  RIDGELINE  10w-40', readings: { KV100: { value: 9.1 } } };
+  const point: SamplePoint = { id: 's', takenAt: '2026-11-01', odometer: 1000, distanceOnOil: 500, oilProduct: '  TARNWELL  10w-40', readings: { KV100: { value: 9.1 } } };
 
   test('fills newOil and newOilKv100 for a sample of the product, matched by its normalised name', () => {
     const p = attachNewOil(point, lookup);
@@ -114,7 +114,7 @@ describe('attachNewOil', () => {
   });
 
   test.each([
-    { name: 'another product', oilProduct: 'Ridgeline 10W-50' },
+    { name: 'another product', oilProduct: 'Tarnwell 10W-50' },
     { name: 'no product on the oil change', oilProduct: undefined },
   ])('leaves a sample of $name as it was', ({ oilProduct }) => {
     const p = { ...point, oilProduct };
@@ -141,20 +141,20 @@ describe('new-oil screens', () => {
     const items = buildReferenceList(
       [ref({ readings: { KV100: { value: 14.2 } } })],
       [
-        { productKey: 'ridgeline 10w-40', productName: 'Ridgeline 10W-40', saeGrade: '10W-40', machines: 2, lastChangedOn: '2026-10-01', references: [] },
-        { productKey: 'dustline 15w-50', productName: 'Dustline 15W-50', saeGrade: '15W-50', machines: 1, lastChangedOn: '2026-09-01', references: [] },
+        { productKey: 'tarnwell 10w-40', productName: 'Tarnwell 10W-40', saeGrade: '10W-40', machines: 2, lastChangedOn: '2026-10-01', references: [] },
+        { productKey: 'quarrow 15w-50', productName: 'Quarrow 15W-50', saeGrade: '15W-50', machines: 1, lastChangedOn: '2026-09-01', references: [] },
       ],
     );
     expect(items.map((i) => [i.productName, i.machines, i.inUse, i.references.length])).toEqual([
-      ['Dustline 15W-50', 1, false, 0],
-      ['Ridgeline 10W-40', 2, true, 1],
+      ['Quarrow 15W-50', 1, false, 0],
+      ['Tarnwell 10W-40', 2, true, 1],
     ]);
     expect(FIRST_SAMPLES_SERVE).toMatch(/first samples of this oil serve/);
   });
 
   test('form links and edit values', () => {
-    expect(newReferenceHref('Dustline 15W-50', '15W-50', 'lab')).toBe('/oil-references/new?source=lab&product=Dustline+15W-50&grade=15W-50');
-    expect(referenceFormValues(ref({ readings: { KV100: { value: 14.2 }, VI: { value: 150 } } }))).toEqual({ productName: 'Ridgeline 10W-40', saeGrade: '10W-40', note: '', bottleCode: '', KV100: '14.2' });
+    expect(newReferenceHref('Quarrow 15W-50', '15W-50', 'lab')).toBe('/oil-references/new?source=lab&product=Quarrow+15W-50&grade=15W-50');
+    expect(referenceFormValues(ref({ readings: { KV100: { value: 14.2 }, VI: { value: 150 } } }))).toEqual({ productName: 'Tarnwell 10W-40', saeGrade: '10W-40', note: '', bottleCode: '', KV100: '14.2' });
   });
 });
 
