@@ -14,7 +14,7 @@ describe('normaliseProductName', () => {
     ['  Tarnwell   10W-40 ', 'tarnwell 10w-40'],
     ['TARNWELL\t10w-40', 'tarnwell 10w-40'],
     ['Tarnwell\u00a010W-40', 'tarnwell 10w-40'], // a non-breaking space pasted from a data sheet
-    ['Ｒidgeline 10W-40', 'tarnwell 10w-40'], // a full-width letter folds by NFKC
+    ['Ｔarnwell 10W-40', 'tarnwell 10w-40'], // a full-width letter folds by NFKC
     ['Tarnwell 10W-50', 'tarnwell 10w-50'],
   ])('%j → %j', (input, key) => {
     expect(normaliseProductName(input)).toBe(key);
