@@ -231,8 +231,9 @@ describe('rider journey on a phone', () => {
     await page.getByLabel('…or one value').fill('0.110');
     await Promise.all([page.waitForURL(/\?measured=1$/), page.getByRole('button', { name: 'Save measurement' }).click()]);
     const forecast = await page.getByTestId('wear-forecast').textContent();
-    // From 0.118 in (middle of new) at 0 to 0.110 in at 17,000 mi: the limit of 0.100 in near 38,250 mi.
-    expect(forecast).toContain('Service limit near 38,250 mi');
+    // From the expected thinnest of 8 new plates (0.115 + 0.006/9 in) at 0 to 0.110 in at 17,000 mi: the
+    // limit of 0.100 in near 47,000 mi.
+    expect(forecast).toContain('Service limit near 47,000 mi');
     expect(forecast).toContain('between 29,750 mi and 63,750 mi');
     expect(forecast).toMatch(/service manual and a mechanic decide/);
     await screenshot(page, 'rider-13-wear-part-forecast');

@@ -79,6 +79,19 @@ async function riderWearPart(ctx: MatrixContext): Promise<string> {
   return `/machines/${machineId}/wear-parts/${p.id}`;
 }
 
+/**
+ * A data-sheet new-oil reference of crew A, of a product of its own (each call a new one); with a name, the
+ * crew's earlier reference of that name goes first, so a request that saves under that name meets no clash.
+ */
+async function crewOilReference(ctx: MatrixContext, name = `Matrix oil ${randomUUID().slice(0, 8)}`): Promise<string> {
+  await ctx.db.deleteFrom('new_oil_references').where('crew_id', '=', ctx.crewA.id).where('product_key', '=', name.toLowerCase()).execute();
+  const r = await ctx.db.insertInto('new_oil_references').values({
+    crew_id: ctx.crewA.id, product_name: name, product_key: name.toLowerCase(), source: 'data-sheet', readings: JSON.stringify({ KV100: { value: 14 } }),
+    bottle_code: null, bottle_code_norm: null, lab_import_id: null, results_on: null, created_by: ctx.crewA.leadId,
+  }).returning('id').executeTakeFirstOrThrow();
+  return r.id;
+}
+
 /** A photo of crew A with its file in the e2e server's upload folder (tests/e2e/helpers/server.ts names it). */
 async function crewPhoto(ctx: MatrixContext): Promise<string> {
   const { mkdirSync, writeFileSync } = await import('node:fs');
@@ -241,6 +254,25 @@ export const ROLE_MATRIX: MatrixRow[] = [
     expect: { anonymous: 303, rider: 400, mechanic: 403, lead: 400, otherLead: 404 }, note: 'a measurement with no value' },
   { route: '/machines/[id]/history', method: 'GET', path: async (ctx) => `/machines/${await riderMachine(ctx)}/history`, expect: memberPage },
   { route: '/machines/[id]/history', method: 'GET', path: '/machines/not-a-machine/history', expect: { ...all(404), anonymous: 303 } },
+
+  // New-oil references: every member of the crew records and edits them; another crew's answers 404.
+  { route: '/oil-references', method: 'GET', path: '/oil-references', expect: signedInPage, note: 'each visitor sees their own crew' },
+  { route: '/oil-references/new', method: 'GET', path: '/oil-references/new?source=lab&product=Matrix', expect: signedInPage },
+  { route: '/oil-references/new', method: 'POST', path: '/oil-references/new', form: { source: 'data-sheet', productName: '' },
+    expect: { anonymous: 303, rider: 400, mechanic: 400, lead: 400, otherLead: 400 }, note: 'a reference with no product' },
+  { route: '/oil-references/[id]', method: 'GET', path: async (ctx) => `/oil-references/${await crewOilReference(ctx)}`, expect: memberPage },
+  { route: '/oil-references/[id]', method: 'GET', path: '/oil-references/not-a-reference', expect: { ...all(404), anonymous: 303 } },
+  { route: '/oil-references/[id]', method: 'POST', path: async (ctx) => `/oil-references/${await crewOilReference(ctx)}`, form: { productName: 'Matrix', KV100: '1' },
+    expect: { anonymous: 303, rider: 400, mechanic: 400, lead: 400, otherLead: 404 }, note: 'a KV100 below 2 mm²/s' },
+  { route: '/oil-references/[id]', method: 'POST', path: async (ctx) => `/oil-references/${await crewOilReference(ctx)}`, form: { action: 'delete' },
+    expect: { anonymous: 303, rider: 303, mechanic: 303, lead: 303, otherLead: 404 }, note: 'delete' },
+  { route: '/api/oil-references', method: 'GET', path: '/api/oil-references', expect: { ...all(200), anonymous: 401 } },
+  { route: '/api/oil-references', method: 'POST', path: '/api/oil-references', json: { source: 'data-sheet', productName: 'Matrix', KV100: 14, KV40: 9 },
+    expect: { ...all(400), anonymous: 401 }, note: 'swapped viscosities' },
+  { route: '/api/oil-references/[id]', method: 'GET', path: async (ctx) => `/api/oil-references/${await crewOilReference(ctx)}`, expect: memberApi },
+  { route: '/api/oil-references/[id]', method: 'PUT', path: async (ctx) => `/api/oil-references/${await crewOilReference(ctx, 'Matrix put target')}`,
+    json: { productName: 'Matrix put target', KV100: 14.5 }, expect: memberApi },
+  { route: '/api/oil-references/[id]', method: 'DELETE', path: async (ctx) => `/api/oil-references/${await crewOilReference(ctx)}`, expect: memberApi },
 
   // Reading side (issue 7): overview, rules, oil tools, trends and the readings export.
   { route: '/overview', method: 'GET', path: '/overview', expect: signedInPage, note: 'each visitor sees their own crew' },

@@ -17,7 +17,8 @@
  * - Wear rate: computeWearRate(ppm, distanceOnOil, unit, { topUpVolume, oilVolume }) → ppm per 1,000 mi/km or
  *   per 100 h, top-up corrected (an approximation).
  * - Oil tools: viscosityIndex(kv40, kv100), sayboltSeconds(kv, tempF), viscosityAt(kv40, kv100, tempC),
- *   saeGradeOf(kv100), findGradeWindow('10W-40'), isWithinGrade(kv100, grade).
+ *   saeGradeOf(kv100), saeGradesOf(kv100) (every overlapping grade), findGradeWindow('10W-40'),
+ *   isWithinGrade(kv100, grade), explainUnusualViscosityIndex(vi).
  * - Catalogue: MEASURANDS, getMeasurand(code), listMeasurandsOfGroup(group), plus ELEMENT_CODES,
  *   CONDITION_CODES, MEASURAND_CODES, isMeasurandCode.
  */

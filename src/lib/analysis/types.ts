@@ -30,6 +30,8 @@ export interface SamplePoint {
   oilProduct?: string | undefined;
   /** KV100 of the same oil new (mm²/s), from the data sheet or a new-oil sample, if known. */
   newOilKv100?: number | undefined;
+  /** The oil as poured: a new-oil reference from a lab sample or the data sheet, when one was recorded for this oil product. */
+  newOil?: { source: 'lab' | 'data-sheet'; readings: Partial<Record<MeasurandCode, Reading>> } | undefined;
   readings: Partial<Record<MeasurandCode, Reading>>;
 }
 

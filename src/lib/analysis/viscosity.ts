@@ -109,6 +109,13 @@ export function calculateViscosityIndexUnrounded(kv40: number, kv100: number): n
   if (!Number.isFinite(kv40) || kv40 <= 0) {
     throw new RangeError(`Kinematic viscosity at 40 °C must be a positive number (got ${kv40}).`);
   }
+  if (Number.isFinite(kv100) && kv40 <= kv100) {
+    // Every oil thins as it warms, so a KV40 at or below the KV100 is no real oil (most often the two
+    // figures were swapped); D2270's formulas would still return a number, a meaningless one.
+    throw new RangeError(
+      `The viscosity at 40 °C (${kv40} mm²/s) must be higher than the one at 100 °C (${kv100} mm²/s): oil thins as it warms. Check whether the two figures were swapped.`,
+    );
+  }
   const { l, h } = lookupD2270LH(kv100);
   if (kv40 >= h) {
     // Procedure A: VI = 100 (L − U) / (L − H); U ≥ H is exactly the case VI ≤ 100.
@@ -133,6 +140,19 @@ function roundHalfEven(x: number): number {
 /** Viscosity index from KV40 and KV100 (mm²/s), ASTM D2270, rounded to a whole number as reported. */
 export function viscosityIndex(kv40: number, kv100: number): number {
   return roundHalfEven(calculateViscosityIndexUnrounded(kv40, kv100));
+}
+
+/**
+ * Above this viscosity index a figure is more likely a typing or unit slip than an engine oil: fully
+ * synthetic multigrade engine oils sit around 130–200 and the highest-VI base stocks and polymer-thickened
+ * oils stay well under 400 (common practice, no published source).
+ */
+export const PLAUSIBLE_MAX_VISCOSITY_INDEX = 400;
+
+/** A warning sentence for a viscosity index too high for an engine oil, or null when it is plausible. */
+export function explainUnusualViscosityIndex(vi: number): string | null {
+  if (!(vi > PLAUSIBLE_MAX_VISCOSITY_INDEX)) return null;
+  return `A viscosity index of ${vi} is far above any engine oil (they rarely pass 200; none near ${PLAUSIBLE_MAX_VISCOSITY_INDEX}). Check both viscosities and their units (mm²/s, not SUS or mPa·s) before relying on it.`;
 }
 
 /**
@@ -212,6 +232,21 @@ export function saeGradeOf(kv100: number): SaeHighTempGrade | null {
     if (kv100 >= g.min && kv100 < g.max) return g.grade;
   }
   return null;
+}
+
+/**
+ * SAE J300 (2015 revision and later) minimum high-temperature high-shear viscosity at 150 °C (mPa·s) of the
+ * low grades whose KV100 windows overlap: 8 → 1.7, 12 → 2.0, 16 → 2.3, 20 → 2.6 (values from memory of
+ * J300's table). This is what tells those grades apart; a lab's KV100 alone cannot.
+ */
+export const SAE_J300_MIN_HTHS: Readonly<Partial<Record<SaeHighTempGrade, number>>> = { '8': 1.7, '12': 2.0, '16': 2.3, '20': 2.6 };
+
+/**
+ * Every SAE J300 high-temperature grade whose KV100 window [min, max) holds the value, thinnest first; empty
+ * outside 4.0–<26.1 mm²/s. More than one grade means the windows overlap there and only HTHS decides.
+ */
+export function saeGradesOf(kv100: number): SaeHighTempGrade[] {
+  return SAE_J300_GRADES.filter((g) => kv100 >= g.min && kv100 < g.max).map((g) => g.grade);
 }
 
 export interface GradeWindow {

@@ -1,17 +1,25 @@
 /**
  * Wear-part forecast: at what odometer will a part reach its service limit?
  *
- * A straight line of thickness against odometer is fitted by least squares through the part's readings
- * plus one assumed point: the middle of the manual's new range at the odometer the part was fitted.
- * The forecast is where that line meets the service limit. How sure it is comes with it:
- * - one reading: the line runs through two points, so no spread can be estimated; the range comes from
- *   the corners instead — the part could have started anywhere in the new range and the reading is only
- *   good to the measuring resolution (± resolution);
+ * A straight line of size against odometer is fitted by least squares through the part's readings plus one
+ * assumed point at the odometer the part was fitted: the size the recorded reading is expected to have had
+ * then. A reading of several pieces records the worst one (the thinnest plate, the longest chain run), and
+ * the expected worst of n pieces spread evenly over the new range [a, b] is a + (b − a)/(n + 1) (thinnest)
+ * or b − (b − a)/(n + 1) (longest), the expected extreme order statistic of a uniform distribution; one piece
+ * starts at the middle. Starting an 8-plate pack from the middle of its range would invent wear it never had.
+ * The forecast is where the line meets the service limit. How sure it is comes with it:
+ * - one reading: the range comes from the corners — the part could have started anywhere in the new range
+ *   and the reading is only good to the measuring resolution (± resolution);
  * - two or more readings: a 95 % prediction interval of the fit (Student's t with n − 2 degrees of
  *   freedom), read where its edges meet the limit. The spread used is never smaller than the new range's
  *   own spread (a uniform spread of width w has sd w/√12) nor half the resolution, so a lucky straight
  *   line of three points does not look certain. When the band widens faster than the part wears, no
  *   late edge exists and the forecast says so.
+ * Before any line is drawn the readings are checked for what a line would hide: every reading still inside
+ * the new range (no measurable wear: no odometer is given), the latest reading at or past the limit, an
+ * earlier reading past the limit with a later one back inside (most likely a replaced part), and a reading
+ * that moved away from the limit by more than the resolution (a replaced part or a measuring slip).
+ * Parts that grow towards a maximum (a chain's length over a count of links) work the same way mirrored.
  * All values in any one consistent pair of units (e.g. inches and miles); the caller converts.
  * This is arithmetic, not a verdict: the service manual and a mechanic decide when a part is replaced.
  */
@@ -32,12 +40,34 @@ export interface WearForecastInput {
   readings: readonly WearReading[];
   /** Smallest step the measuring tool reads (e.g. 0.001 in or 0.01 mm). */
   resolution: number;
+  /** Pieces measured per reading (the reading is the worst of them); 1 when absent. */
+  pieceCount?: number | undefined;
+}
+
+/** A later reading further from the limit than an earlier one by more than the resolution. */
+export interface WearReversal {
+  from: WearReading;
+  to: WearReading;
 }
 
 export type WearForecast =
   | { status: 'no-readings' }
-  | { status: 'past-limit'; odometer: number; value: number }
-  | { status: 'no-wear-trend'; readings: number; ratePer1000: number }
+  | {
+      status: 'past-limit';
+      /** The latest reading, at or past the limit. */
+      odometer: number;
+      value: number;
+      /** Odometer of the first reading at or past the limit (may be earlier than the latest). */
+      firstPastAt: number;
+    }
+  | {
+      /** An earlier reading was at or past the limit but the latest is not: most likely a replaced part. */
+      status: 'back-from-limit';
+      past: WearReading;
+      latest: WearReading;
+    }
+  | { status: 'no-measurable-wear'; readings: number; reversals: WearReversal[] }
+  | { status: 'no-wear-trend'; readings: number; ratePer1000: number; reversals: WearReversal[] }
   | {
       status: 'forecast';
       /** Odometer at which the fitted line meets the service limit. */
@@ -51,7 +81,17 @@ export type WearForecast =
       ratePer1000: number;
       /** The range's width relative to the distance still to go: narrow, moderate or wide. */
       sureness: 'narrow' | 'moderate' | 'wide';
+      /** The assumed size at the fitted odometer (the line's first point), for drawing the same line. */
+      start: WearReading;
+      reversals: WearReversal[];
     };
+
+/** The expected worst of `pieces` new pieces spread evenly over the new range (see the module comment). */
+export function expectedStartSize(newMin: number, newMax: number, direction: 'min' | 'max', pieces = 1): number {
+  const n = Math.max(1, Math.floor(pieces));
+  const step = (newMax - newMin) / (n + 1);
+  return direction === 'min' ? newMin + step : newMax - step;
+}
 
 /**
  * Two-sided 95 % Student's t critical values t(0.975; df), df = 1…30, from the table in the
@@ -84,11 +124,23 @@ export function forecastWearLimit(input: WearForecastInput): WearForecast {
   const sign = input.limitDirection === 'min' ? 1 : -1;
   const toGo = (v: number) => sign * (v - input.serviceLimit);
   const latest = readings[readings.length - 1]!;
-  if (toGo(latest.value) <= 0) return { status: 'past-limit', odometer: latest.odometer, value: latest.value };
+  const firstPast = readings.find((r) => toGo(r.value) <= 0);
+  if (toGo(latest.value) <= 0) {
+    return { status: 'past-limit', odometer: latest.odometer, value: latest.value, firstPastAt: firstPast!.odometer };
+  }
+  if (firstPast) return { status: 'back-from-limit', past: firstPast, latest };
 
-  const mid = (newMin + newMax) / 2;
+  const reversals = findReversals(readings, toGo, resolution);
+  // Inside the new range within the resolution: the worn edge of the range (newMin for a part that thins,
+  // newMax for one that grows) less one resolution step.
+  const newEdge = toGo(input.limitDirection === 'min' ? newMin : newMax);
+  if (readings.every((r) => toGo(r.value) >= newEdge - resolution)) {
+    return { status: 'no-measurable-wear', readings: readings.length, reversals };
+  }
+
+  const startValue = expectedStartSize(newMin, newMax, input.limitDirection, input.pieceCount);
   const xs = [fittedAt, ...readings.map((r) => r.odometer)];
-  const ys = [toGo(mid), ...readings.map((r) => toGo(r.value))];
+  const ys = [toGo(startValue), ...readings.map((r) => toGo(r.value))];
   const n = xs.length;
   const xbar = xs.reduce((s, x) => s + x, 0) / n;
   const ybar = ys.reduce((s, y) => s + y, 0) / n;
@@ -98,21 +150,28 @@ export function forecastWearLimit(input: WearForecastInput): WearForecast {
     sxx += (xs[i]! - xbar) ** 2;
     sxy += (xs[i]! - xbar) * (ys[i]! - ybar);
   }
-  if (sxx === 0) return { status: 'no-wear-trend', readings: readings.length, ratePer1000: 0 };
+  if (sxx === 0) return { status: 'no-wear-trend', readings: readings.length, ratePer1000: 0, reversals };
   const slope = sxy / sxx;
   const intercept = ybar - slope * xbar;
   const ratePer1000 = -slope * 1000;
-  if (slope >= 0) return { status: 'no-wear-trend', readings: readings.length, ratePer1000 };
+  if (slope >= 0) return { status: 'no-wear-trend', readings: readings.length, ratePer1000, reversals };
   const limitAt = -intercept / slope;
   const remaining = limitAt - latest.odometer;
 
   const finish = (low: number, high: number | null, method: 'resolution-corners' | 'prediction-interval') => {
+    // The latest reading is still short of the limit, so nothing of the range lies before it; with
+    // readings that go back and forth the fitted line can cross the limit earlier than that, and the
+    // headline then stays inside its own range rather than before the latest reading.
     const lowClamped = Math.max(low, latest.odometer);
-    const width = high === null ? Infinity : high - lowClamped;
-    const rel = remaining > 0 ? width / remaining : Infinity;
+    const highClamped = high === null ? null : Math.max(high, lowClamped);
+    const at = Math.min(Math.max(limitAt, lowClamped), highClamped ?? Infinity);
+    const width = highClamped === null ? Infinity : highClamped - lowClamped;
+    const toGoDistance = at - latest.odometer;
+    const rel = toGoDistance > 0 ? width / toGoDistance : Infinity;
     const sureness = rel > 1 ? 'wide' : rel > 0.4 ? 'moderate' : 'narrow';
     return {
-      status: 'forecast' as const, limitAt, low: lowClamped, high, method, readings: readings.length, ratePer1000, sureness,
+      status: 'forecast' as const, limitAt: at, low: lowClamped, high: highClamped, method, readings: readings.length, ratePer1000, sureness,
+      start: { odometer: fittedAt, value: startValue }, reversals,
     } satisfies WearForecast;
   };
 
@@ -157,6 +216,18 @@ export function forecastWearLimit(input: WearForecastInput): WearForecast {
     if (upperEdge(hi) <= 0) high = bisect(upperEdge, limitAt, hi);
   }
   return finish(low, high, 'prediction-interval');
+}
+
+/** Each step between consecutive readings that moved away from the limit by more than the resolution. */
+function findReversals(readings: readonly WearReading[], toGo: (v: number) => number, resolution: number): WearReversal[] {
+  const out: WearReversal[] = [];
+  for (let i = 1; i < readings.length; i++) {
+    const from = readings[i - 1]!;
+    const to = readings[i]!;
+    // A tiny tolerance keeps a step of exactly one resolution (in floating point) from counting.
+    if (toGo(to.value) - toGo(from.value) > resolution * (1 + 1e-9)) out.push({ from, to });
+  }
+  return out;
 }
 
 /** The x in [a, b] where f changes sign (f(a) > 0 ≥ f(b)), to a relative tolerance of 1e-10. */

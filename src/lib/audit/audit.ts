@@ -14,6 +14,8 @@ export const AUDIT_KINDS = [
   'invitation_sent',
   'invitation_revoked',
   'invitation_accepted',
+  'new_oil_reference_saved',
+  'new_oil_reference_deleted',
 ] as const;
 export type AuditKind = (typeof AUDIT_KINDS)[number];
 
@@ -54,4 +56,6 @@ export const AUDIT_LABELS: Record<AuditKind, string> = {
   invitation_sent: 'Invitation sent',
   invitation_revoked: 'Invitation withdrawn',
   invitation_accepted: 'Invitation accepted',
+  new_oil_reference_saved: 'New-oil reference saved',
+  new_oil_reference_deleted: 'New-oil reference deleted',
 };

@@ -32,6 +32,11 @@ export function canEditMachine(m: CrewMembership | null, machine: { ownerUserId:
   return m.role === 'rider' && machine.ownerUserId === userId;
 }
 
+/** Every member records the crew's new-oil references (the oil as poured, from a data sheet or a lab bottle). */
+export function canRecordNewOilReference(m: CrewMembership | null): m is CrewMembership {
+  return hasRole(m, ['lead', 'mechanic', 'rider']);
+}
+
 /** Leads and mechanics import lab reports. */
 export function canImportLabReport(m: CrewMembership | null): m is CrewMembership {
   return hasRole(m, ['lead', 'mechanic']);

@@ -442,3 +442,37 @@ export interface Database {
   alert_deliveries: AlertDeliveriesTable;
   alert_digest_items: AlertDigestItemsTable;
 }
+
+// ---- new-oil references (migration 2026_12_02_1400): appended as a merged declaration.
+
+/** A reading of the oil as poured, as stored in new_oil_references.readings. */
+export interface NewOilReadingJson {
+  value: number;
+  qualifier?: '<' | '>';
+}
+
+/** The oil as poured, per crew and oil product: from the data sheet or from a lab bottle of new oil. */
+export interface NewOilReferencesTable {
+  id: Generated<string>;
+  crew_id: string;
+  product_name: string;
+  /** product_name trimmed, lower-cased, runs of spaces made one: what samples are matched by. */
+  product_key: string;
+  source: 'lab' | 'data-sheet';
+  sae_grade: Generated<string>;
+  readings: Json<Record<string, NewOilReadingJson>>;
+  bottle_code: string | null;
+  bottle_code_norm: string | null;
+  lab_import_id: string | null;
+  results_on: DateText | null;
+  note: Generated<string>;
+  created_by: string | null;
+  created_at: Generated<Date>;
+  updated_at: Generated<Date>;
+}
+
+export interface Database {
+  new_oil_references: NewOilReferencesTable;
+}
+
+export type NewOilReferenceRow = Selectable<NewOilReferencesTable>;

@@ -43,3 +43,21 @@ export function convertSayboltToKinematic(sus: number, tempF: number): number | 
   }
   return (low + high) / 2;
 }
+
+/**
+ * The convention the import assumes for a Saybolt column, in words for the preview. Labs state SUS either
+ * measured at 210 °F or worked out from a KV100 by the D2161 equation at 210 °F; both come to the same
+ * number, so the import reads the figure as "SUS at 210 °F" and inverts D2161 at 210 °F — never at the
+ * equation's 100 °F reference, which would give a KV100 about 0.7 % off.
+ */
+export function describeSayboltConvention(columns: readonly { code?: string | undefined; conversion?: string | undefined }[]): string | null {
+  const converted = columns.some((c) => c.conversion === 'SUS210→KV100');
+  const kept = columns.some((c) => c.code === 'SUS210');
+  if (converted) {
+    return 'Saybolt seconds are taken as SUS at 210 °F and turned into the viscosity at 100 °C by inverting the ASTM D2161 equation at 210 °F; the seconds are also kept as the lab reported them.';
+  }
+  if (kept) {
+    return 'This file gives the viscosity at 100 °C directly, so that column is used; the Saybolt seconds (taken as SUS at 210 °F) are kept as reported and not converted.';
+  }
+  return null;
+}

@@ -33,6 +33,8 @@ import {
 import * as repo from './lab-import.repository';
 import { fromStoredMeter, toStoredMeter, type MeterUnit } from '../units/units';
 import { queueImportAlerts } from '../alerts/alerts.service';
+import { attachNewOil } from '../new-oil/new-oil';
+import { findNewOilBottles, findNewOilCodesWrittenBy, loadNewOilLookup, splitNewOilRows, writeNewOilResults } from '../new-oil/new-oil.service';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
@@ -190,6 +192,7 @@ export async function previewLabImport(
     repo.findMachinesForImport(db, input.crewId),
   ]);
   const byCode = new Map(samples.map((s) => [s.bottle_code_norm, s]));
+  const newOilBottles = await findNewOilBottles(db, input.crewId, norms.filter((n) => !byCode.has(n)));
   // An imported file is shown as it was written: which rows went in, which were skipped.
   const writtenCodes = fileRow.import_id ? await repo.findCodesWrittenBy(db, fileRow.import_id) : null;
   const machineIds = new Set(machines.map((m) => m.id));
@@ -208,7 +211,7 @@ export async function previewLabImport(
   }
 
   const firstLineOfCode = new Map<string, number>();
-  const rows: PreviewRow[] = parsed.rows.map((r, i) => {
+  const allRows: PreviewRow[] = parsed.rows.map((r, i) => {
     const norm = norms[i] ?? r.bottle.normalised;
     const issues = rowIssues.get(r.line) ?? [];
     const at = `Line ${r.line}, column "${bottleHeader}"`;
@@ -251,6 +254,7 @@ export async function previewLabImport(
     };
   });
 
+  const { rows, newOilRows } = splitNewOilRows(allRows, newOilBottles, fileRow.import_id ? await findNewOilCodesWrittenBy(db, fileRow.import_id) : null);
   const blockingFileIssues = fileIssues.filter((x) => x.severity === 'error');
   let ready = 0;
   let skipped = 0;
@@ -262,7 +266,7 @@ export async function previewLabImport(
       readings += Object.keys(row.readings).length;
     }
   }
-  const blocked = rows.length - ready - skipped;
+  const blocked = rows.length - ready - skipped + newOilRows.filter((r) => r.errors.length > 0).length;
   return {
     ok: true,
     value: {
@@ -273,9 +277,10 @@ export async function previewLabImport(
       profile,
       fileIssues,
       rows,
+      newOilRows,
       machines,
-      counts: { rows: rows.length, ready, skipped, blocked, readings },
-      canConfirm: fileRow.import_id === null && blockingFileIssues.length === 0 && blocked === 0 && ready > 0,
+      counts: { rows: rows.length + newOilRows.length, ready, skipped, blocked, readings },
+      canConfirm: fileRow.import_id === null && blockingFileIssues.length === 0 && blocked === 0 && ready + newOilRows.length > 0,
     },
   };
 }
@@ -391,6 +396,8 @@ export async function confirmLabImport(
         }
       }
       await repo.insertReadings(trx, columns, imported.id);
+      // Before any findings: a new-oil reference in the same file is what this file's samples are judged against.
+      const newOilReferencesWritten = await writeNewOilResults(trx, input.crewId, preview.newOilRows, imported.id, new Date().toISOString().slice(0, 10));
       await hooks.afterReadings?.(trx);
 
       const sampleIds = [...new Set([...sampleOf.values()].map((s) => s.sampleId))];
@@ -416,6 +423,7 @@ export async function confirmLabImport(
           samplesCreated: created,
           samplesReplaced: replacedIds.length,
           findingsWritten,
+          newOilReferencesWritten,
         },
       };
     });
@@ -436,6 +444,7 @@ function refuseUnready(preview: ImportPreview): LabImportFailure {
     const firstError = row.errors[0];
     fields[`row.${row.line}`] = row.decision?.action !== 'skip' && firstError ? firstError.message : row.needs;
   }
+  for (const row of preview.newOilRows) if (row.errors[0]) fields[`row.${row.line}`] = row.errors[0].message;
   const n = Object.keys(fields).length;
   if (n === 0) return refuse(422, 'nothing_to_import', 'Every row is skipped, so there is nothing to write.');
   return refuse(422, 'rows_need_attention', `Nothing was written: ${n} ${n === 1 ? 'problem needs' : 'problems need'} attention first.`, fields);
@@ -479,7 +488,7 @@ export async function recomputeMachineFindings(
 ): Promise<number> {
   const machineRow = await repo.findMachineProfile(trx, machineId);
   if (!machineRow) return 0;
-  const [samples, limitRows] = await Promise.all([repo.findSamplesWithReadings(trx, machineId), repo.findCrewLimits(trx, machineRow.crew_id)]);
+  const [samples, limitRows, newOil] = await Promise.all([repo.findSamplesWithReadings(trx, machineId), repo.findCrewLimits(trx, machineRow.crew_id), loadNewOilLookup(trx, machineRow.crew_id)]);
   // Readings this import just wrote are in memory already; only the machine's earlier ones are read back.
   const readingRows = await repo.findReadingsOfSamples(trx, samples.filter((s) => !known.has(s.id)).map((s) => s.id));
   const readingsBySample = new Map<string, SamplePoint['readings']>(known);
@@ -508,7 +517,7 @@ export async function recomputeMachineFindings(
   const calls: repo.IntervalCallInsert[] = [];
   const recomputed: string[] = [];
   samples.forEach((s, index) => {
-    const point = toSamplePoint(s, readingsBySample.get(s.id) ?? {}, machineRow.oil_capacity_l, machineRow.meter);
+    const point = attachNewOil(toSamplePoint(s, readingsBySample.get(s.id) ?? {}, machineRow.oil_capacity_l, machineRow.meter), newOil);
     if (index >= firstChanged) {
       const input = { machine, history, sample: point, limits };
       const analysis = analyseSample(input);

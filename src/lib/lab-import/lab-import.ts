@@ -81,6 +81,8 @@ export interface ImportPreview {
   /** Issues about the file as a whole (no row) or about a row that the reader dropped. */
   fileIssues: LabCsvIssue[];
   rows: PreviewRow[];
+  /** Rows whose bottle is a registered bottle of new oil: written into that new-oil reference. */
+  newOilRows: import('../new-oil/new-oil.service').NewOilImportRow[];
   machines: { id: string; name: string }[];
   counts: { rows: number; ready: number; skipped: number; blocked: number; readings: number };
   /** True when one confirm would write: no errors and every row decided. */
@@ -94,6 +96,8 @@ export interface ImportSummary {
   samplesCreated: number;
   samplesReplaced: number;
   findingsWritten: number;
+  /** New-oil references whose lab results this import wrote. */
+  newOilReferencesWritten: number;
 }
 
 export type LabImportFailure = {

@@ -8,6 +8,7 @@ import { findLatestOilChange, findOilChangesOfMachine } from '../oil-changes/oil
 import { parseSaeGrade } from '../oil-changes/sae-grade';
 import { formatMeter, toStoredMeter } from '../units/units';
 import { explainIssuedCode, generateIssuedCode, normaliseBottleCode } from './bottle-code';
+import { findNewOilBottles } from '../new-oil/new-oil.service';
 import { drainCardSchema, SAMPLE_STATES, shipSchema, toSample, type Sample } from './samples';
 import {
   countSamplesByState, findSampleByBottleCode, findSampleByClientKey, findSampleEvents, findSampleOfCrew, findSamplesOfCrew,
@@ -113,6 +114,12 @@ export async function registerDrainCard(db: Kysely<Database>, actor: Actor, mach
       if (taken) {
         return refuse(409, 'duplicate_bottle_code', 'That bottle code is already used.', {
           bottleCode: `Bottle code ${d.bottleCode} is already on a sample of ${taken.machine_name} drawn on ${taken.drawn_on}. Each bottle needs its own code.`,
+        });
+      }
+      const newOilBottle = (await findNewOilBottles(trx, crewId, [norm])).get(norm);
+      if (newOilBottle) {
+        return refuse(409, 'duplicate_bottle_code', 'That bottle code is already used.', {
+          bottleCode: `Bottle code ${d.bottleCode} is the bottle of new oil registered for “${newOilBottle.productName}”. Each bottle needs its own code.`,
         });
       }
       const row = await trx.insertInto('samples').values({

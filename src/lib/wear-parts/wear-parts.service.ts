@@ -64,7 +64,7 @@ export function forecastPart(part: WearPart, measurements: readonly WearMeasurem
     newMin: fromMillimetres(part.newMinMm, u), newMax: fromMillimetres(part.newMaxMm, u), serviceLimit: fromMillimetres(part.serviceLimitMm, u),
     limitDirection: part.limitDirection, fittedAt: fromStoredMeter(part.fittedOdometer, meter),
     readings: measurements.map((x) => ({ odometer: fromStoredMeter(x.odometer, meter), value: fromMillimetres(x.summaryMm, u) })),
-    resolution: fromMillimetres(MEASURING_RESOLUTION_MM[u], u),
+    resolution: fromMillimetres(MEASURING_RESOLUTION_MM[u], u), pieceCount: part.pieceCount,
   });
   return f;
 }

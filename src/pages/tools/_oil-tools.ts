@@ -2,7 +2,9 @@
  * The oil tools' form handling: reads GET parameters, runs the analysis engine's calculators and turns their
  * RangeErrors into messages beside the field. Pure: no database, no Astro.
  */
-import { findGradeWindow, saeGradeOf, sayboltSeconds, viscosityAt, viscosityIndex } from '../../lib/analysis';
+import {
+  explainUnusualViscosityIndex, findGradeWindow, SAE_J300_MIN_HTHS, saeGradesOf, sayboltSeconds, viscosityAt, viscosityIndex, type SaeHighTempGrade,
+} from '../../lib/analysis';
 import type { RecommendedGrade } from '../../lib/db/database';
 import { fromCelsius, toCelsius, type TemperatureUnit } from '../../lib/units/units';
 
@@ -34,12 +36,13 @@ function rangeError(e: unknown, field: string): ToolResult<never> {
 }
 
 /** Viscosity index (ASTM D2270) from KV40 and KV100 in mm²/s. */
-export function runViscosityIndex(params: URLSearchParams): ToolResult<{ vi: number }> {
+export function runViscosityIndex(params: URLSearchParams): ToolResult<{ vi: number; warning: string | null }> {
   if (params.get('tool') !== 'vi') return { state: 'idle' };
   const r = needNumbers(params, { kv40: 'the viscosity at 40 °C', kv100: 'the viscosity at 100 °C' });
   if ('fields' in r) return { state: 'error', fields: r.fields };
   try {
-    return { state: 'ok', value: { vi: viscosityIndex(r.values['kv40']!, r.values['kv100']!) } };
+    const vi = viscosityIndex(r.values['kv40']!, r.values['kv100']!);
+    return { state: 'ok', value: { vi, warning: explainUnusualViscosityIndex(vi) } };
   } catch (e) {
     return rangeError(e, r.values['kv100']! < 2 ? 'kv100' : 'kv40');
   }
@@ -72,14 +75,29 @@ export function runViscosityAt(params: URLSearchParams, unit: TemperatureUnit): 
   }
 }
 
-/** The SAE J300 high-temperature grade a KV100 falls in. */
-export function runGradeOf(params: URLSearchParams): ToolResult<{ grade: string | null; kv100: number }> {
+export interface GradeAnswer {
+  kv100: number;
+  /** Every J300 high-temperature grade whose window holds the KV100, thinnest first (empty: none). */
+  grades: SaeHighTempGrade[];
+  /** The grades as words: '40', or '12, 16 or 20'; empty when none fits. */
+  label: string;
+  /** When several grades fit: the sentence saying that the HTHS viscosity decides between them. */
+  overlap: string | null;
+}
+
+/** The SAE J300 high-temperature grades a KV100 falls in: all of them where the windows overlap. */
+export function runGradeOf(params: URLSearchParams): ToolResult<GradeAnswer> {
   if (params.get('tool') !== 'grade') return { state: 'idle' };
   const r = needNumbers(params, { kv100: 'the viscosity at 100 °C' });
   if ('fields' in r) return { state: 'error', fields: r.fields };
   const kv100 = r.values['kv100']!;
   if (kv100 <= 0) return { state: 'error', fields: { kv100: 'A viscosity must be above zero.' } };
-  return { state: 'ok', value: { grade: saeGradeOf(kv100), kv100 } };
+  const grades = saeGradesOf(kv100);
+  const overlap = grades.length > 1
+    ? `The viscosity at 100 °C alone cannot tell these apart. SAE J300 separates them by the high-temperature high-shear viscosity (HTHS) at 150 °C: at least ${grades.map((g) => `${SAE_J300_MIN_HTHS[g]!.toFixed(1)} mPa·s for SAE ${g}`).join(', ')}. The oil’s data sheet gives its HTHS.`
+    : null;
+  const label = grades.length > 1 ? `${grades.slice(0, -1).join(', ')} or ${grades[grades.length - 1]}` : grades.join('');
+  return { state: 'ok', value: { kv100, grades, label, overlap } };
 }
 
 export interface GradeSuitability {

@@ -24,7 +24,7 @@ async function setup() {
 }
 
 describe('wear parts', () => {
-  test('stored in mm; a measurement at 17,000 mi forecasts the limit at 38,250 mi with a wide range', async () => {
+  test('stored in mm; a measurement at 17,000 mi forecasts the limit at 47,000 mi with a wide range', async () => {
     const { rider, partId } = await setup();
     const r = await addWearMeasurement(db, rider, partId, { measuredOn: '2025-05-01', odometer: '17000', unit: 'in', pieces: '0.111 0.110 0.112 0.111 0.110 0.111 0.112 0.111' });
     if (!r.ok) throw new Error(JSON.stringify(r));
@@ -34,8 +34,24 @@ describe('wear parts', () => {
     expect(d.value.part.newMinMm).toBeCloseTo(2.921, 9);
     const f = d.value.forecast;
     if (f.status !== 'forecast') throw new Error(f.status);
-    expect(f.limitAt).toBeCloseTo(38_250, 3);
+    // From the expected thinnest of 8 new plates, 0.115 + 0.006/9 in, to 0.110 in at 17,000 mi: the limit of
+    // 0.100 in at 17,000 · 141/51 = 47,000 mi (hand arithmetic; see tests/unit/analysis/wear-forecast.test.ts).
+    expect(f.limitAt).toBeCloseTo(47_000, 3);
     expect(f.sureness).toBe('wide');
+  });
+
+  test('an unworn pack measured in mm on a km machine has no measurable wear and no forecast odometer', async () => {
+    const rider = await makeActor(db);
+    const m = await createMachine(db, rider, collectMachineForm(readFormObject(new URLSearchParams({ ...MACHINE_450, meter: 'km' }))), 'C');
+    if (!m.ok) throw new Error(JSON.stringify(m));
+    const part = await createWearPart(db, rider, m.value.id, { ...CLUTCH, unit: 'mm', newMin: '2.92', newMax: '3.08', serviceLimit: '2.60' });
+    if (!part.ok) throw new Error(JSON.stringify(part));
+    const r = await addWearMeasurement(db, rider, part.value.id, { measuredOn: '2025-05-01', odometer: '12000', unit: 'mm', pieces: '3.01 2.95 2.93 3.05 2.99 2.97 3.00 2.92' });
+    if (!r.ok) throw new Error(JSON.stringify(r));
+    const d = await getWearPartDetail(db, rider, part.value.id);
+    if (!d.ok) throw new Error('detail');
+    expect(d.value.meter).toBe('km');
+    expect(d.value.forecast.status).toBe('no-measurable-wear');
   });
 
   test.each([

@@ -1,7 +1,11 @@
 import { describe, expect, test } from 'vitest';
 import {
   D2270_TABLE,
+  PLAUSIBLE_MAX_VISCOSITY_INDEX,
   SAE_J300_GRADES,
+  SAE_J300_MIN_HTHS,
+  explainUnusualViscosityIndex,
+  saeGradesOf,
   calculateViscosityIndexUnrounded,
   findGradeWindow,
   isWithinGrade,
@@ -210,5 +214,63 @@ describe('SAE J300 grades', () => {
     { input: 'thick', window: null },
   ])('findGradeWindow($input)', ({ input, window }) => {
     expect(findGradeWindow(input)).toEqual(window);
+  });
+});
+
+describe('oil tools refuse impossible viscosity pairs and flag unlikely ones', () => {
+  test.each([
+    // Swapped figures of the D2270 procedure B example (KV40 22.83, KV100 5.05): no oil is thinner cold than hot.
+    { kv40: 5.05, kv100: 22.83 },
+    { kv40: 10, kv100: 10 },
+    { kv40: 9.99, kv100: 10 },
+  ])('KV40 $kv40 ≤ KV100 $kv100 is refused with a sentence naming both figures', ({ kv40, kv100 }) => {
+    expect(() => viscosityIndex(kv40, kv100)).toThrow(RangeError);
+    expect(() => viscosityIndex(kv40, kv100)).toThrow(/must be higher than the one at 100 °C.*swapped/);
+  });
+
+  test('the D2270 worked examples still pass through the new check', () => {
+    // ASTM D2270 worked examples (procedure A: 73.3/8.86 → 92; procedure B: 22.83/5.05 → 156).
+    expect(viscosityIndex(73.3, 8.86)).toBe(92);
+    expect(viscosityIndex(22.83, 5.05)).toBe(156);
+  });
+
+  test.each([
+    // PLAUSIBLE_MAX_VISCOSITY_INDEX = 400: common practice, no published source.
+    { vi: 156, warns: false },
+    { vi: 400, warns: false },
+    { vi: 401, warns: true },
+    { vi: 1928, warns: true },
+  ])('VI $vi warns: $warns', ({ vi, warns }) => {
+    const w = explainUnusualViscosityIndex(vi);
+    expect(w !== null).toBe(warns);
+    if (warns) expect(w).toContain(String(vi));
+  });
+
+  test('a KV40 barely above KV100 gives a VI above 400, which is then flagged', () => {
+    const vi = viscosityIndex(12, 10);
+    expect(vi).toBeGreaterThan(PLAUSIBLE_MAX_VISCOSITY_INDEX);
+    expect(explainUnusualViscosityIndex(vi)).toMatch(/Check both viscosities/);
+  });
+});
+
+describe('saeGradesOf lists every grade whose J300 window holds the KV100', () => {
+  test.each([
+    // SAE J300 (2015+) windows [min, max): 8 4.0–6.1, 12 5.0–7.1, 16 6.1–8.2, 20 6.9–9.3, 30 9.3–12.5, 40 12.5–16.3.
+    { kv100: 3.99, grades: [] },
+    { kv100: 4.5, grades: ['8'] },
+    { kv100: 5.5, grades: ['8', '12'] },
+    { kv100: 6.5, grades: ['12', '16'] },
+    { kv100: 7.0, grades: ['12', '16', '20'] },
+    { kv100: 7.1, grades: ['16', '20'] },
+    { kv100: 8.2, grades: ['20'] },
+    { kv100: 9.3, grades: ['30'] },
+    { kv100: 14.0, grades: ['40'] },
+    { kv100: 26.1, grades: [] },
+  ])('KV100 $kv100 → $grades', ({ kv100, grades }) => {
+    expect(saeGradesOf(kv100)).toEqual(grades);
+  });
+
+  test('every overlapping low grade has its J300 minimum HTHS (8 1.7, 12 2.0, 16 2.3, 20 2.6 mPa·s, from memory)', () => {
+    expect(SAE_J300_MIN_HTHS).toEqual({ '8': 1.7, '12': 2.0, '16': 2.3, '20': 2.6 });
   });
 });

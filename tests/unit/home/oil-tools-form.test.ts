@@ -14,11 +14,22 @@ describe('readNumber', () => {
 describe('viscosity index form', () => {
   test.each([
     // ASTM D2270 worked example (procedure A): KV40 73.3, KV100 8.86 → VI 92 (D2270 section 6 example, from memory).
-    [{ tool: 'vi', kv40: '73.3', kv100: '8.86' }, { state: 'ok', value: { vi: 92 } }],
+    [{ tool: 'vi', kv40: '73.3', kv100: '8.86' }, { state: 'ok', value: { vi: 92, warning: null } }],
     [{ tool: 'vi', kv40: '', kv100: '8.86' }, { state: 'error', fields: { kv40: 'Enter the viscosity at 40 °C.' } }],
     [{ tool: 'sus', kv40: '1', kv100: '1' }, { state: 'idle' }],
   ])('%j', (params, expected) => {
     expect(runViscosityIndex(q(params))).toEqual(expected);
+  });
+
+  test('swapped viscosities (KV40 ≤ KV100) are refused on the KV40 field and nothing is computed', () => {
+    const r = runViscosityIndex(q({ tool: 'vi', kv40: '8.86', kv100: '73.3' }));
+    expect(r).toEqual({ state: 'error', fields: { kv40: expect.stringMatching(/must be higher than the one at 100 °C/) } });
+  });
+
+  test('a VI above 400 is answered with a warning beside it', () => {
+    const r = runViscosityIndex(q({ tool: 'vi', kv40: '12', kv100: '10' }));
+    expect(r.state === 'ok' && r.value.vi).toBeGreaterThan(400);
+    expect(r.state === 'ok' && r.value.warning).toMatch(/far above any engine oil/);
   });
 
   test('below 2.0 mm²/s at 100 °C the RangeError lands on the KV100 field', () => {
@@ -66,7 +77,14 @@ describe('grade of a measured viscosity', () => {
     // SAE J300 KV100 windows: 40 is 12.5 to <16.3 mm²/s, 30 is 9.3 to <12.5.
     ['14.2', '40'], ['12.5', '40'], ['12.49', '30'], ['30', null],
   ])('%s mm²/s → %j', (kv100, grade) => {
-    expect(runGradeOf(q({ tool: 'grade', kv100 }))).toEqual({ state: 'ok', value: { grade, kv100: Number(kv100) } });
+    expect(runGradeOf(q({ tool: 'grade', kv100 }))).toEqual({ state: 'ok', value: { grades: grade ? [grade] : [], label: grade ?? '', overlap: null, kv100: Number(kv100) } });
+  });
+  test('7.0 mm²/s fits SAE 12, 16 and 20 (J300 windows overlap) and the answer says HTHS decides', () => {
+    const r = runGradeOf(q({ tool: 'grade', kv100: '7.0' }));
+    expect(r.state === 'ok' && r.value.grades).toEqual(['12', '16', '20']);
+    expect(r.state === 'ok' && r.value.label).toBe('12, 16 or 20');
+    // J300 minimum HTHS at 150 °C: 12 → 2.0, 16 → 2.3, 20 → 2.6 mPa·s (from memory of the table).
+    expect(r.state === 'ok' && r.value.overlap).toMatch(/HTHS.*2\.0 mPa·s for SAE 12, 2\.3 mPa·s for SAE 16, 2\.6 mPa·s for SAE 20/);
   });
   test('zero is refused', () => {
     expect(runGradeOf(q({ tool: 'grade', kv100: '0' })).state).toBe('error');

@@ -1,5 +1,6 @@
 import { describe, expect, test } from 'vitest';
-import { computeSayboltSeconds, convertSayboltToKinematic } from '~/lib/import/saybolt';
+import { computeSayboltSeconds, convertSayboltToKinematic, describeSayboltConvention } from '~/lib/import/saybolt';
+import { parseLabCsv } from '~/lib/import/lab-csv';
 
 /** ASTM D2161 equation restated independently of the module, so the tests check the module against it. */
 function d2161(nu: number, tempF: number): number {
@@ -38,5 +39,19 @@ describe('convertSayboltToKinematic inverts the D2161 equation', () => {
     { sus: Number.POSITIVE_INFINITY, why: 'infinite' },
   ])('refuses $sus: $why', ({ sus }) => {
     expect(convertSayboltToKinematic(sus, 100)).toBeNull();
+  });
+});
+
+describe('describeSayboltConvention says which Saybolt convention the import assumed', () => {
+  test('a file with SUS only: converted to KV100 at 210 °F', () => {
+    const { columns } = parseLabCsv('Bottle,Fe,SUS 210F\nA1,12,59.2\n');
+    expect(describeSayboltConvention(columns)).toMatch(/SUS at 210 °F.*inverting the ASTM D2161 equation at 210 °F/);
+  });
+  test('a file with both KV100 and SUS: KV100 used, SUS kept as reported', () => {
+    const { columns } = parseLabCsv('Bottle,Fe,KV100,SUS 210F\nA1,12,10,59.2\n');
+    expect(describeSayboltConvention(columns)).toMatch(/gives the viscosity at 100 °C directly.*not converted/);
+  });
+  test('no Saybolt column: nothing to say', () => {
+    expect(describeSayboltConvention(parseLabCsv('Bottle,Fe\nA1,12\n').columns)).toBeNull();
   });
 });
