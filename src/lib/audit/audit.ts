@@ -14,6 +14,9 @@ export const AUDIT_KINDS = [
   'invitation_sent',
   'invitation_revoked',
   'invitation_accepted',
+  'import_address_rotated',
+  'import_sender_added',
+  'import_sender_removed',
 ] as const;
 export type AuditKind = (typeof AUDIT_KINDS)[number];
 
@@ -54,4 +57,7 @@ export const AUDIT_LABELS: Record<AuditKind, string> = {
   invitation_sent: 'Invitation sent',
   invitation_revoked: 'Invitation withdrawn',
   invitation_accepted: 'Invitation accepted',
+  import_address_rotated: 'Import address replaced',
+  import_sender_added: 'Lab address added to the import list',
+  import_sender_removed: 'Lab address removed from the import list',
 };

@@ -61,7 +61,7 @@ export async function registerMailJobs(boss: PgBoss, options: MailJobOptions): P
   });
 
   const listener = options.listenConnectionString
-    ? listenForOutbox(options.listenConnectionString, () => void trigger(), log)
+    ? listenForChannel(options.listenConnectionString, MAIL_OUTBOX_CHANNEL, () => void trigger(), log)
     : undefined;
   const tick = setInterval(() => void trigger(), (options.tickSeconds ?? 15) * 1000);
   tick.unref();
@@ -79,8 +79,8 @@ export async function registerMailJobs(boss: PgBoss, options: MailJobOptions): P
   };
 }
 
-/** LISTENs on the outbox channel with its own connection, reconnecting after a lost connection. */
-function listenForOutbox(connectionString: string, onNotify: () => void, log: (line: string) => void) {
+/** LISTENs on a channel (the outbox's, the inbound mail's) with its own connection, reconnecting after a lost connection. */
+export function listenForChannel(connectionString: string, channel: string, onNotify: () => void, log: (line: string) => void) {
   let client: pg.Client | undefined;
   let closed = false;
   let retry: NodeJS.Timeout | undefined;
@@ -89,13 +89,13 @@ function listenForOutbox(connectionString: string, onNotify: () => void, log: (l
     const c = new pg.Client({ connectionString, application_name: 'sumpwise-mail-listener' });
     c.on('notification', onNotify);
     c.on('error', (error) => {
-      log(`[mail] outbox listener lost its connection: ${error.message}; the tick still delivers`);
+      log(`[queue] listener on ${channel} lost its connection: ${error.message}; the tick still runs`);
       void c.end().catch(() => {});
       scheduleReconnect();
     });
     try {
       await c.connect();
-      await c.query(`LISTEN ${MAIL_OUTBOX_CHANNEL}`);
+      await c.query(`LISTEN ${channel}`);
       if (closed) {
         await c.end();
         return;
@@ -104,7 +104,7 @@ function listenForOutbox(connectionString: string, onNotify: () => void, log: (l
       // Anything committed while we were not listening.
       onNotify();
     } catch (error) {
-      log(`[mail] outbox listener could not connect: ${errorMessage(error)}`);
+      log(`[queue] listener on ${channel} could not connect: ${errorMessage(error)}`);
       void c.end().catch(() => {});
       scheduleReconnect();
     }
