@@ -264,3 +264,24 @@ export function parseLocalMonthDate(cell: string): { year: number; month: number
   const year = yearText.length === 2 ? 2000 + Number(yearText) : Number(yearText);
   return { year, month, day: Number(dayText) };
 }
+
+/** Glycol (coolant) results in these languages, folded: positive → 1, negative → 0 (common usage). */
+const GLYCOL_WORDS: Readonly<Record<string, 0 | 1>> = Object.fromEntries(
+  (
+    [
+      ['positiv', 1], ['negativ', 0], ['nachgewiesen', 1], ['nicht nachgewiesen', 0], ['ja', 1], ['nein', 0],
+      ['positif', 1], ['negatif', 0], ['oui', 1], ['non', 0], ['detecte', 1], ['non detecte', 0],
+      ['positivo', 1], ['negativo', 0], ['si', 1], ['detectado', 1], ['no detectado', 0],
+      ['rilevato', 1], ['non rilevato', 0],
+      ['positief', 1], ['negatief', 0], ['nee', 0], ['aangetoond', 1], ['niet aangetoond', 0],
+      ['sim', 1], ['nao', 0], ['nao detectado', 0],
+      ['nej', 0], ['pavisad', 1], ['ej pavisad', 0], ['ej påvisad', 0],
+    ] as const
+  ).map(([word, value]) => [fold(word), value]),
+);
+
+/** A glycol cell in one of these languages ("negativ", "positif", "sì"), or null for the English reader to judge. */
+export function readLocalGlycolWord(cell: string): 0 | 1 | null {
+  if (cell.length > 40) return null;
+  return GLYCOL_WORDS[fold(cell.trim()).replace(/\s+/g, ' ')] ?? null;
+}

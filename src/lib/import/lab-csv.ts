@@ -20,7 +20,7 @@ import {
 } from './cell-values';
 import { isUnitCell, recogniseHeader, type ColumnKind, type LabUnit, type RecognisedHeader } from './column-recognition';
 import { isFormulaLikeCell } from './csv-cell';
-import { DAY_FIRST_LANGUAGES, detectHeaderLanguages, HEADER_LANGUAGES, parseLocalMonthDate } from './header-dictionary';
+import { DAY_FIRST_LANGUAGES, detectHeaderLanguages, HEADER_LANGUAGES, parseLocalMonthDate, readLocalGlycolWord } from './header-dictionary';
 import { detectLongFormat, pivotLongFormat, rewordPivotIssues, type PivotResult } from './long-format';
 import { findPageFurniture } from './page-furniture';
 import { convertSayboltToKinematic } from './saybolt';
@@ -391,7 +391,7 @@ function planColumns(
       index,
       header,
       code,
-      read: code === 'GLYCOL' ? parseGlycolCell : readNumber,
+      read: code === 'GLYCOL' ? readGlycolCell : readNumber,
       convert,
       alsoKv100,
       bounds: boundsFor(code),
@@ -766,6 +766,12 @@ function filledUnitsRow(cells: readonly string[]): boolean {
 function foldedMapping(options: ParseLabCsvOptions): Map<string, LabCsvMappingTarget> | null {
   const exact = options.mapping;
   return exact ? new Map(Object.entries(exact).map(([k, v]) => [normaliseMappingKey(k), v] as const)) : null;
+}
+
+/** A glycol cell, also with the words of the dictionary's languages ("negativ", "positif"). */
+function readGlycolCell(cell: string): ReadingParse {
+  const local = readLocalGlycolWord(cell);
+  return local === null ? parseGlycolCell(cell) : { status: 'ok', value: local };
 }
 
 /** A date cell, also with a month name in one of the dictionary's languages ("3. März 2026"). */
