@@ -166,7 +166,7 @@ export async function readXlsxLabFile(bytes: Uint8Array, options: { sheetNames?:
   }
   const sheets = workbook.worksheets;
   const names = sheets.map((s) => s.name);
-  if (sheets.length === 0) return refuse('empty-file', 'The spreadsheet has no sheets.');
+  if (sheets.length === 0) return refuse('empty-file', 'The spreadsheet has no sheets, so it holds no header and no readings.');
   const named = (options.sheetNames ?? []).map((n) => sheets.find((s) => s.name.trim().toLowerCase() === n.trim().toLowerCase())).find((s) => s !== undefined);
   let chosen: { sheet: ExcelJS.Worksheet; rows: string[][] } | null = null;
   if (named) chosen = { sheet: named, rows: readSheetCells(named) };

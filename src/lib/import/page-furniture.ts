@@ -104,11 +104,11 @@ export function findPageFurniture(input: FurnitureInput): FurnitureResult {
       code: 'lines-skipped',
       row: lines[0] ?? null,
       column: null,
-      message: `${one ? 'Line' : 'Lines'} ${listLines(lines)} ${one ? 'is' : 'are'} ${what} and ${one ? 'was' : 'were'} skipped, not read as ${one ? 'a bottle' : 'bottles'}.`,
+      message: `${one ? 'Line' : 'Lines'} ${listLines(lines)}: ${what}; skipped, not read as ${one ? 'a bottle' : 'bottles'}.`,
     });
   };
-  note(headers, 'the header row repeated (a page break)');
-  note(footers, 'a footer or note, not a row of readings');
+  note(headers, 'the header row again (a page break)');
+  note(footers, 'a footer or note, not readings');
   note(blanks, 'blank, between rows of readings');
   return { skip, notes };
 }
