@@ -483,7 +483,7 @@ export interface InboundMailsTable {
   reason: string | null;
   from_address: string | null;
   subject: string | null;
-  lab_file_ids: Generated<Json<string[]>>;
+  lab_file_ids: Json<string[]>;
   processed_at: TimestampNullable;
 }
 

@@ -109,7 +109,7 @@ export async function finishInboundMail(
       reason: row.reason?.slice(0, 4000) ?? null,
       from_address: row.fromAddress?.slice(0, 320) ?? null,
       subject: row.subject?.slice(0, 300) ?? null,
-      lab_file_ids: sql<string[]>`${JSON.stringify(row.labFileIds)}::jsonb`,
+      lab_file_ids: JSON.stringify(row.labFileIds),
       processed_at: sql`now()`,
     })
     .where('id', '=', id)
