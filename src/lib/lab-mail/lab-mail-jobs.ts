@@ -7,8 +7,8 @@ import type PgBoss from 'pg-boss';
 import type { Kysely } from 'kysely';
 import type { AlertEnv } from '../alerts/alerts';
 import type { Database } from '../db/database';
-import { listenForChannel } from '../mail/mail-jobs';
 import type { JobRegistration } from '../queue/job-queue';
+import { registerWakeableJob } from '../queue/wakeable-job';
 import { INBOUND_MAIL_CHANNEL } from './lab-mail.repository';
 import { processInboundMails, type ProcessHooks } from './lab-mail.service';
 
@@ -29,34 +29,16 @@ export async function registerLabMailJobs(boss: PgBoss, options: LabMailJobOptio
   const log = options.log ?? ((line: string) => console.log(line));
   // `short`: at most one run waits; a run processes every waiting message, so a burst needs one.
   await boss.createQueue(LAB_MAIL_QUEUE, { name: LAB_MAIL_QUEUE, policy: 'short', retryLimit: 3, retryDelay: 10, retryBackoff: true, expireInSeconds: 15 * 60 });
-  let stopped = false;
-  let workerId: string | undefined;
-  const trigger = async (): Promise<void> => {
-    if (stopped) return;
-    try {
-      await boss.send(LAB_MAIL_QUEUE, {});
-      if (workerId) boss.notifyWorker(workerId);
-    } catch (error) {
-      log(`[lab-mail] could not queue a run: ${error instanceof Error ? error.message : String(error)}`);
-    }
-  };
-  workerId = await boss.work(LAB_MAIL_QUEUE, { pollingIntervalSeconds: options.pollingIntervalSeconds ?? 2 }, async () => {
-    const report = await processInboundMails(options.db, { ...(options.env ? { env: options.env } : {}), ...(options.hooks ? { hooks: options.hooks } : {}), log });
-    // A full run means more may be waiting.
-    if (report.processed + report.setAside >= 50) void trigger();
-    return report;
-  });
-  const listener = options.listenConnectionString ? listenForChannel(options.listenConnectionString, INBOUND_MAIL_CHANNEL, () => void trigger(), log) : undefined;
-  const tick = setInterval(() => void trigger(), (options.tickSeconds ?? 15) * 1000);
-  tick.unref();
-  await trigger();
-  return {
+  return registerWakeableJob(boss, {
     name: LAB_MAIL_QUEUE,
-    async stop() {
-      stopped = true;
-      clearInterval(tick);
-      await listener?.close();
-      await boss.offWork(LAB_MAIL_QUEUE);
+    ...(options.listenConnectionString ? { listen: { connectionString: options.listenConnectionString, channel: INBOUND_MAIL_CHANNEL } } : {}),
+    tickSeconds: options.tickSeconds ?? 15,
+    pollingIntervalSeconds: options.pollingIntervalSeconds ?? 2,
+    log,
+    async run() {
+      const report = await processInboundMails(options.db, { ...(options.env ? { env: options.env } : {}), ...(options.hooks ? { hooks: options.hooks } : {}), log });
+      // A full run (50 messages) means more may be waiting.
+      return { result: report, moreWaiting: report.processed + report.setAside >= 50 };
     },
-  };
+  });
 }
