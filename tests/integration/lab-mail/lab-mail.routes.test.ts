@@ -150,6 +150,30 @@ describe('POST /api/inbound-mail (webhook)', () => {
     expect(await db.selectFrom('inbound_mails').selectAll().execute()).toEqual([]);
   });
 
+  test('a chunked body without a length is read only up to the limit, then refused (413)', async () => {
+    const { address } = await makeMailCrew(db);
+    let sent = 0;
+    const chunk = new Uint8Array(1024 * 1024).fill(0x61);
+    const stream = new ReadableStream<Uint8Array>({
+      pull(controller) {
+        // 40 MiB offered in 1 MiB chunks; the reader must stop long before the end.
+        if (sent >= 40) return controller.close();
+        sent += 1;
+        controller.enqueue(chunk);
+      },
+    });
+    const request = new Request('http://127.0.0.1/api/inbound-mail', {
+      method: 'POST',
+      headers: { 'content-type': 'message/rfc822', [WEBHOOK_HEADERS.timestamp]: String(NOW), [WEBHOOK_HEADERS.recipient]: address, [WEBHOOK_HEADERS.signature]: 'sha256=00' },
+      body: stream,
+      duplex: 'half',
+    } as RequestInit);
+    const res = await handleInboundWebhook(db, request, config, NOW);
+    expect(res.status).toBe(413);
+    expect(sent).toBeLessThan(40);
+    expect(await db.selectFrom('inbound_mails').selectAll().execute()).toEqual([]);
+  });
+
   test('without INBOUND_MAIL_SECRET the endpoint does not exist', async () => {
     const { address } = await makeMailCrew(db);
     const res = await handleInboundWebhook(db, await webhookRequest(Buffer.from('x'), address), { INBOUND_MAIL_DOMAIN: DOMAIN }, NOW);
