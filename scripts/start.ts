@@ -91,6 +91,7 @@ async function main(): Promise<void> {
   if (seededNow && localRelay) {
     const mailDb = createDb(databaseUrl, { max: 1 });
     try {
+      await waitFor(() => isPortOpen(smtp.hostname, Number(smtp.port || 25)), 30_000, 'the local mail relay');
       console.log(`[demo] ${await sendDemoLabMail(mailDb, { smtpUrl: config.SMTP_URL, domain: config.INBOUND_MAIL_DOMAIN })}`);
     } catch (error) {
       console.log(`[demo] the demo lab mail could not be sent: ${error instanceof Error ? error.message : String(error)}`);
