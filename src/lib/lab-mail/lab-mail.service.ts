@@ -195,7 +195,8 @@ async function processOne(trx: Transaction<Database>, row: LockedMail, env: Aler
       inboundMailId: row.id,
     });
     if (stored.ok) {
-      ids.push(stored.value.labFileId);
+      // The same attachment twice in one message is one lab file.
+      if (!ids.includes(stored.value.labFileId)) ids.push(stored.value.labFileId);
       if (stored.value.status === 'stored') fresh.push({ id: stored.value.labFileId, fileName });
     } else {
       problems.push(stored.message);
