@@ -134,9 +134,10 @@ export function readSheetCells(sheet: ExcelJS.Worksheet): string[][] {
   const width = sheet.columnCount;
   const rows: string[][] = [];
   for (let r = 1; r <= sheet.rowCount; r += 1) {
-    const row = sheet.getRow(r);
+    // `values` is the row's sparse array from index 1: no cell objects are made for empty cells.
+    const values = sheet.getRow(r).values as readonly CellValue[];
     const cells: string[] = [];
-    for (let c = 1; c <= width; c += 1) cells.push(formatSheetCell(row.getCell(c).value));
+    for (let c = 1; c <= width; c += 1) cells.push(formatSheetCell(values[c] ?? null));
     rows.push(cells);
   }
   while (rows.length > 0 && rows[rows.length - 1]?.every((c) => c.trim() === '')) rows.pop();
