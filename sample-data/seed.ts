@@ -6,6 +6,7 @@ import type { Database } from '../src/lib/db/database';
 import { DEMO_ACCOUNTS, seedAccounts } from './seed-accounts';
 import { seedMachines } from './seed-machines';
 import { seedLabReports } from './seed-labs';
+import { seedImportSenders } from './seed-lab-mail';
 
 /** True when the database holds no users yet (a fresh install). */
 export async function isDatabaseEmpty(db: Kysely<Database>): Promise<boolean> {
@@ -26,6 +27,8 @@ export async function seedDemo(db: Kysely<Database>): Promise<string> {
     // The school's mechanic imports the school's reports; the solo rider imports their own.
     const schoolLabs = await seedLabReports(trx, { crewIds: [accounts.schoolCrewId], userId: accounts.userIds.mechanic });
     const soloLabs = await seedLabReports(trx, { crewIds: [accounts.soloCrewId], userId: accounts.userIds.solo });
+    // The school's lab mails its reports; only its address is accepted at the school's import address.
+    await seedImportSenders(trx, { crewId: accounts.schoolCrewId, userId: accounts.userIds.lead });
     return [
       `${DEMO_ACCOUNTS.length} accounts in 2 crews`,
       `${Object.keys(machines.machineIds).length} machines`,

@@ -6,6 +6,7 @@ import type { ChildProcess } from 'node:child_process';
 import { readConfig } from '../src/lib/config';
 import { createDb } from '../src/lib/db/db';
 import { isDatabaseEmpty, seedDemo } from '../sample-data/seed';
+import { sendDemoLabMail } from '../sample-data/seed-lab-mail';
 import { assertReachable, ensureEmbeddedDatabase, migrateToLatest } from './lib/database';
 import { buildIfNeeded, SERVE_ARGS } from './lib/build';
 import { ROOT, httpOk, isPortOpen, startService, stopService, waitFor } from './lib/processes';
@@ -53,8 +54,12 @@ async function main(): Promise<void> {
   await assertReachable(databaseUrl);
   await migrateToLatest(databaseUrl, false);
   const db = createDb(databaseUrl, { max: 2 });
+  let seededNow = false;
   try {
-    if (await isDatabaseEmpty(db)) console.log(`[seed] demo data loaded: ${await seedDemo(db)}`);
+    if (await isDatabaseEmpty(db)) {
+      console.log(`[seed] demo data loaded: ${await seedDemo(db)}`);
+      seededNow = true;
+    }
   } finally {
     await db.destroy();
   }
@@ -82,6 +87,18 @@ async function main(): Promise<void> {
   server.once('exit', (code) => { if (!stopping) fail(`the app server stopped unexpectedly (exit ${code})`); });
 
   await waitFor(() => httpOk(`${url}/api/health`), 30_000, 'the app server');
+  // First start of the demo: the invented lab mails a report, so a preview link waits in the local mailbox.
+  if (seededNow && localRelay) {
+    const mailDb = createDb(databaseUrl, { max: 1 });
+    try {
+      await waitFor(() => isPortOpen(smtp.hostname, Number(smtp.port || 25)), 30_000, 'the local mail relay');
+      console.log(`[demo] ${await sendDemoLabMail(mailDb, { smtpUrl: config.SMTP_URL, domain: config.INBOUND_MAIL_DOMAIN })}`);
+    } catch (error) {
+      console.log(`[demo] the demo lab mail could not be sent: ${error instanceof Error ? error.message : String(error)}`);
+    } finally {
+      await mailDb.destroy();
+    }
+  }
   const seconds = ((performance.now() - started) / 1000).toFixed(1);
   console.log(`\nSumpwise is running at ${url}  (ready in ${seconds} s; Ctrl-C stops it)\n`);
 }

@@ -11,6 +11,13 @@ export const configSchema = z.object({
   PORT: z.coerce.number().int().min(1).max(65535).default(4321),
   SMTP_URL: z.string().default('smtp://127.0.0.1:2525'),
   MAIL_FROM: z.string().default('Sumpwise <no-reply@sumpwise.test>'),
+  // Import addresses are lab-<token>@INBOUND_MAIL_DOMAIN; the domain's MX (or the local relay) delivers to us.
+  INBOUND_MAIL_DOMAIN: z
+    .string()
+    .default('import.sumpwise.test')
+    .refine((v) => /^(?=.{1,253}$)([a-z0-9]([a-z0-9-]{0,61}[a-z0-9])?\.)+[a-z]{2,63}$/i.test(v), 'must be a domain name'),
+  // Shared secret of the inbound webhook (HMAC-SHA256 of each request); without it the webhook answers 404.
+  INBOUND_MAIL_SECRET: z.string().min(32).optional(),
   // The /dev/mailbox page (what the local fake relay received) answers 404 unless this is exactly '1'.
   DEV_MAILBOX: z.string().default('0').transform((v) => v === '1'),
   UPLOAD_DIR: z.string().default('.data/uploads'),

@@ -321,4 +321,11 @@ export const ROLE_MATRIX: MatrixRow[] = [
     expect: { anonymous: 401, rider: 403, mechanic: 415, lead: 415, otherLead: 415 }, note: 'a lab file must come as multipart' },
   { route: '/api/imports/[id]/confirm', method: 'POST', path: async (ctx) => `/api/imports/${await crewLabFile(ctx)}/confirm`, json: { decisions: {} },
     expect: { anonymous: 401, rider: 403, mechanic: 422, lead: 422, otherLead: 404 }, note: 'its only bottle is unknown, so nothing is written' },
+
+  // Lab reports by e-mail: the lead replaces the crew's import address (each lead acts on their own crew);
+  // the inbound webhook exists only when INBOUND_MAIL_SECRET is set, and is authenticated by its signature.
+  { route: '/api/import-address', method: 'POST', path: '/api/import-address', form: { action: 'rotate' },
+    expect: { anonymous: 401, rider: 403, mechanic: 403, lead: 200, otherLead: 200 }, note: "the session's crew, never one named in the form" },
+  { route: '/api/inbound-mail', method: 'POST', path: '/api/inbound-mail', json: { raw: 'not a message' }, expect: all(404),
+    note: 'no INBOUND_MAIL_SECRET in the test server; signed requests are tested in tests/integration/lab-mail' },
 ];

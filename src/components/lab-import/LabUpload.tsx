@@ -44,7 +44,7 @@ export default function LabUpload({ endpoint, maxBytes, fallbackId }: Props) {
         maxNumberOfFiles: 1,
         maxFileSize: maxBytes,
         // The server checks the content; these only steer the file picker.
-        allowedFileTypes: ['.csv', '.tsv', '.txt', 'text/csv', 'text/tab-separated-values', 'text/plain'],
+        allowedFileTypes: ['.csv', '.tsv', '.txt', '.xlsx', 'text/csv', 'text/tab-separated-values', 'text/plain', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet'],
       },
     }).use(XHRUpload, {
       endpoint,
@@ -91,7 +91,7 @@ export default function LabUpload({ endpoint, maxBytes, fallbackId }: Props) {
         height={320}
         proudlyDisplayPoweredByUppy={false}
         hideProgressDetails={false}
-        note="CSV, TSV or text export of the lab report, up to 5 MiB"
+        note="CSV, TSV, text or .xlsx export of the lab report, up to 5 MiB"
       />
       <p role="status" aria-live="polite" className="mt-2 text-sm font-semibold" data-testid="lab-upload-message">
         {message}

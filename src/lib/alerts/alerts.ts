@@ -4,6 +4,7 @@ import type { NotificationKind } from '../db/database';
 /** The `kind` each alert carries in the mail outbox (and the X-Sumpwise-Kind header). */
 export const MAIL_KIND: Record<NotificationKind | 'digest', string> = {
   import_findings: 'alert_import_findings',
+  lab_report_arrived: 'alert_lab_report_arrived',
   sample_due: 'reminder_sample_due',
   shipped_overdue: 'reminder_shipped_overdue',
   invitation_pending: 'reminder_invitation_pending',
@@ -15,6 +16,7 @@ export function describeUnsubscribeScope(kind: NotificationKind | 'digest', crew
   const of = crewName ? ` of ${crewName}` : '';
   switch (kind) {
     case 'import_findings': return `e-mails about findings from lab imports${of}`;
+    case 'lab_report_arrived': return `e-mails about lab reports that arrived by mail${of}`;
     case 'sample_due': return `next-sample-due reminders${of}`;
     case 'shipped_overdue': return `reminders about shipped bottles without results${of}`;
     case 'invitation_pending': return `reminders about invitations not accepted${of}`;

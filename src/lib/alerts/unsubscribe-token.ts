@@ -11,7 +11,7 @@ export type UnsubscribeScope =
   | { userId: string; crewId: null; kind: 'digest' };
 
 const VERSION = 'u1';
-const KINDS = new Set<string>(['import_findings', 'sample_due', 'shipped_overdue', 'invitation_pending', 'digest']);
+const KINDS = new Set<string>(['import_findings', 'lab_report_arrived', 'sample_due', 'shipped_overdue', 'invitation_pending', 'digest']);
 
 /** Signs a scope into a URL-safe token. */
 export function signUnsubscribeToken(scope: UnsubscribeScope, secret: string): string {

@@ -16,6 +16,9 @@ export const AUDIT_KINDS = [
   'invitation_accepted',
   'new_oil_reference_saved',
   'new_oil_reference_deleted',
+  'import_address_rotated',
+  'import_sender_added',
+  'import_sender_removed',
 ] as const;
 export type AuditKind = (typeof AUDIT_KINDS)[number];
 
@@ -58,4 +61,7 @@ export const AUDIT_LABELS: Record<AuditKind, string> = {
   invitation_accepted: 'Invitation accepted',
   new_oil_reference_saved: 'New-oil reference saved',
   new_oil_reference_deleted: 'New-oil reference deleted',
+  import_address_rotated: 'Import address replaced',
+  import_sender_added: 'Lab address added to the import list',
+  import_sender_removed: 'Lab address removed from the import list',
 };

@@ -51,3 +51,8 @@ export function canReviewSample(m: CrewMembership | null): m is CrewMembership {
 export function canEditLimits(m: CrewMembership | null): m is CrewMembership {
   return hasRole(m, ['lead']);
 }
+
+/** Leads replace the crew's import address and keep its list of lab addresses; mechanics see both. */
+export function canManageImportAddress(m: CrewMembership | null): m is CrewMembership {
+  return hasRole(m, ['lead']);
+}

@@ -174,8 +174,10 @@ export interface LabFilesTable {
   file_name: string;
   byte_size: number;
   content: Buffer;
-  uploaded_by: string;
+  /** Null for a file that arrived by mail (see inbound_mail_id). */
+  uploaded_by: string | null;
   uploaded_at: Generated<Date>;
+  inbound_mail_id: Generated<string | null>;
 }
 
 export interface LabProfilesTable {
@@ -184,6 +186,8 @@ export interface LabProfilesTable {
   name: string;
   header_signature: string;
   mapping: Json<Record<string, string>>;
+  /** The workbook sheet to read, for a profile saved from a spreadsheet. */
+  sheet_name: Generated<string | null>;
   created_by: string;
   created_at: Generated<Date>;
 }
@@ -395,7 +399,7 @@ export type DevMailboxRow = Selectable<DevMailboxTable>;
 
 // ---- alerts and reminders (migration 2026_12_02_0700): appended as a merged declaration, like the mail tables.
 
-export type NotificationKind = 'import_findings' | 'sample_due' | 'shipped_overdue' | 'invitation_pending';
+export type NotificationKind = 'import_findings' | 'sample_due' | 'shipped_overdue' | 'invitation_pending' | 'lab_report_arrived';
 export type NotificationDelivery = 'immediate' | 'digest' | 'off';
 
 /** How one user wants one kind of message from one crew; no row means the kind's default. */
@@ -476,3 +480,49 @@ export interface Database {
 }
 
 export type NewOilReferenceRow = Selectable<NewOilReferencesTable>;
+
+// ---- lab reports by e-mail (migration 2026_12_02_1600): appended as a merged declaration.
+
+/** A crew's import address: labs mail results to <token>@<INBOUND_MAIL_DOMAIN>. */
+export interface ImportAddressesTable {
+  crew_id: string;
+  token: string;
+  created_at: Generated<Date>;
+  rotated_at: TimestampNullable;
+  rotated_by: string | null;
+}
+
+/** The crew's allow-list of lab addresses; an empty list accepts any sender that knows the address. */
+export interface ImportAddressSendersTable {
+  crew_id: string;
+  address: string;
+  added_by: string | null;
+  added_at: Generated<Date>;
+}
+
+export type InboundMailStatus = 'received' | 'processed' | 'set_aside' | 'refused';
+
+/** One inbound message: stored raw on receipt, then processed by the worker. */
+export interface InboundMailsTable {
+  id: Generated<string>;
+  received_at: Generated<Date>;
+  via: 'smtp' | 'webhook';
+  envelope_from: string | null;
+  recipient: string;
+  crew_id: string | null;
+  raw: Buffer | null;
+  raw_sha256: string | null;
+  byte_size: number;
+  status: InboundMailStatus;
+  reason: string | null;
+  from_address: string | null;
+  subject: string | null;
+  lab_file_ids: Json<string[]>;
+  processed_at: TimestampNullable;
+}
+
+export interface Database {
+  import_addresses: ImportAddressesTable;
+  import_address_senders: ImportAddressSendersTable;
+  inbound_mails: InboundMailsTable;
+}

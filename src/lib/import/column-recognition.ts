@@ -4,6 +4,7 @@
  * this turns each into a measurand code and a unit, or says it is the bottle code or a date.
  */
 import type { MeasurandCode } from '../analysis/measurands';
+import { translateHeader } from './header-dictionary';
 
 export type ColumnKind = 'measurand' | 'bottle' | 'sampled' | 'reported' | 'unknown' | 'ignored';
 
@@ -173,7 +174,8 @@ function recogniseElement(tokens: readonly string[], unit: LabUnit | undefined):
 
 /** Read one header (and the cell under it in a units row, if the file has one) as a column meaning. */
 export function recogniseHeader(header: string, unitsCell = ''): RecognisedHeader {
-  const text = normaliseHeaderText(`${header} ${unitsCell}`);
+  // Headers in other languages are read through the one dictionary ("Eisen" → "iron").
+  const text = translateHeader(normaliseHeaderText(`${header} ${unitsCell}`)).text;
   const { unit, rest } = extractUnit(text);
   const tokens = tokensOf(rest);
   const rawTokens = tokensOf(text);

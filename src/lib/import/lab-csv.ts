@@ -20,6 +20,9 @@ import {
 } from './cell-values';
 import { isUnitCell, recogniseHeader, type ColumnKind, type LabUnit, type RecognisedHeader } from './column-recognition';
 import { isFormulaLikeCell } from './csv-cell';
+import { DAY_FIRST_LANGUAGES, detectHeaderLanguages, HEADER_LANGUAGES, parseLocalMonthDate, readLocalGlycolWord } from './header-dictionary';
+import { detectLongFormat, pivotLongFormat, rewordPivotIssues, type PivotResult } from './long-format';
+import { findPageFurniture } from './page-furniture';
 import { convertSayboltToKinematic } from './saybolt';
 
 export { decodeLabFile, MAX_LAB_FILE_BYTES } from './decode-lab-file';
@@ -80,7 +83,12 @@ export type LabCsvIssueCode =
   | 'ambiguous-date'
   | 'invalid-date'
   | 'no-readings'
-  | 'lines-skipped';
+  | 'lines-skipped'
+  | 'missing-test'
+  | 'missing-result'
+  | 'duplicate-test'
+  | 'mixed-units'
+  | 'unknown-unit';
 
 export interface LabCsvIssue {
   /** An error blocks the import; a warning is shown in the preview and does not. */
@@ -111,6 +119,8 @@ export interface LabCsvResult {
   /** Line of the header row, and of the units row under it if there is one. */
   headerLine: number | null;
   unitsLine: number | null;
+  /** 'long' when the file had one row per bottle and test and was pivoted to one row per bottle. */
+  layout?: 'wide' | 'long';
 }
 
 const PLAIN_POINT = /^\d+(?:\.\d+)?$/;
@@ -239,7 +249,7 @@ function detectDelimiter(lines: readonly string[]): ',' | ';' | '\t' {
 }
 
 /** Decide the decimal mark from the numbers themselves; see parseLabCsv's doc for the rule. */
-function detectDecimalMark(delimiter: ',' | ';' | '\t', data: readonly string[][], start: number): DecimalMark {
+function detectDecimalMark(delimiter: ',' | ';' | '\t', data: readonly string[][], start: number, preferComma = false): DecimalMark {
   if (delimiter === ',') return '.';
   let commaEvidence = false;
   let pointEvidence = false;
@@ -255,6 +265,8 @@ function detectDecimalMark(delimiter: ',' | ';' | '\t', data: readonly string[][
     }
   }
   if (delimiter === ';') return pointEvidence && !commaEvidence ? '.' : ',';
+  // Without evidence either way, a report in a decimal-comma language keeps its comma.
+  if (!commaEvidence && !pointEvidence) return preferComma ? ',' : '.';
   return commaEvidence && !pointEvidence ? ',' : '.';
 }
 
@@ -379,7 +391,7 @@ function planColumns(
       index,
       header,
       code,
-      read: code === 'GLYCOL' ? parseGlycolCell : readNumber,
+      read: code === 'GLYCOL' ? readGlycolCell : readNumber,
       convert,
       alsoKv100,
       bounds: boundsFor(code),
@@ -460,10 +472,10 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
   if (sepLine) body = `\n${body.slice(sepLine[0].length)}`;
   const delimiter = sepLine?.[1] === ',' || sepLine?.[1] === ';' || sepLine?.[1] === '\t' ? sepLine[1] : detectDelimiter(firstLines.slice(sepLine ? 1 : 0));
   const parsed = Papa.parse<string[]>(body, { delimiter, newline: '\n', skipEmptyLines: false });
-  const data = parsed.data;
+  let data = parsed.data;
 
   // 1-based line where each parsed row starts; a quoted field may span lines.
-  const lineOf = new Array<number>(data.length);
+  let lineOf = new Array<number>(data.length);
   const mayHaveQuotedNewlines = body.includes('"');
   let nextLine = 1;
   for (let r = 0; r < data.length; r += 1) {
@@ -512,7 +524,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     }
   }
   if (headerRow === -1) headerRow = fallbackRow;
-  const headerCells = data[headerRow] ?? [];
+  let headerCells = data[headerRow] ?? [];
   const headerLine = lineOf[headerRow] ?? 1;
   if (headerRow !== fallbackRow) {
     const firstSkipped = lineOf[fallbackRow] ?? 1;
@@ -531,15 +543,37 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
   let unitsLine: number | null = null;
   const candidate = data[firstDataRow];
   if (candidate && !isBlank(candidate)) {
-    const filled = candidate.map((c) => c.trim()).filter((c) => c !== '' && c !== '-' && c !== '—');
-    if (filled.length >= 1 && filled.every(isUnitCell)) {
+    if (filledUnitsRow(candidate)) {
       unitsCells = candidate;
       unitsLine = lineOf[firstDataRow] ?? null;
       firstDataRow += 1;
     }
   }
 
-  const decimalMark = detectDecimalMark(delimiter, data, firstDataRow);
+  // Footers, headers repeated at page breaks and blank separator lines are skipped with a note.
+  const furniture = findPageFurniture({ data, firstDataRow, headerCells, lineOf, isUnitsRow: (cells) => filledUnitsRow(cells) });
+  issues.push(...furniture.notes);
+  let skipRows: ReadonlySet<number> = furniture.skip;
+  const languages = detectHeaderLanguages(headerCells);
+  const dayFirstLanguage = languages.find((l) => DAY_FIRST_LANGUAGES.has(l));
+
+  // One row per bottle and test: pivoted to one row per bottle, then read like any wide file.
+  let pivot: PivotResult | null = null;
+  const long = detectLongFormat(headerCells, headerCells.map((h, i) => resolveHeader(h.trim(), unitsCells?.[i] ?? '', foldedMapping(options), options.mapping).kind));
+  if (long) {
+    pivot = pivotLongFormat({ plan: long, headerCells, data, firstDataRow, lineOf, headerLine, skip: new Set([...skipRows, ...brokenRows]), normaliseBottle: normaliseBottleCode });
+    issues.push(...pivot.issues);
+    data = pivot.grid;
+    lineOf = pivot.lines;
+    headerCells = pivot.grid[0] ?? [];
+    unitsCells = pivot.units;
+    firstDataRow = 1;
+    skipRows = new Set();
+    brokenRows.clear();
+  }
+  const issuesBeforeRows = issues.length;
+
+  const decimalMark = detectDecimalMark(delimiter, data, firstDataRow, dayFirstLanguage !== undefined);
   const { columns, measurands } = planColumns(headerCells, unitsCells, options, decimalMark, headerLine, issues);
   const bottleColumn = columns.find((c) => c.kind === 'bottle');
   const sampledColumn = columns.find((c) => c.kind === 'sampled');
@@ -556,7 +590,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       column: null,
       message: `Line ${headerLine} is a header row, but no rows of readings follow it. Export the report again with its results.`,
     });
-    return result([], columns, delimiter, decimalMark, headerLine, unitsLine);
+    return { ...result([], columns, delimiter, decimalMark, headerLine, unitsLine), layout: pivot ? 'long' : 'wide' };
   }
   if (!bottleColumn) {
     issues.push({
@@ -576,7 +610,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
 
   for (let r = firstDataRow; r < data.length; r += 1) {
     let cells = data[r];
-    if (!cells || isBlank(cells)) continue;
+    if (!cells || isBlank(cells) || skipRows.has(r)) continue;
     const line = lineOf[r] ?? r + 1;
     if (brokenRows.has(r)) continue;
     if (cells.length > width && cells.slice(width).every((c) => c.trim() === '')) cells = cells.slice(0, width);
@@ -624,7 +658,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       if (!dateColumn) continue;
       const field = dateColumn.kind === 'sampled' ? 'sampled' : 'reported';
       const raw = cells[dateColumn.index] ?? '';
-      const parsedDate = parseDateCell(raw);
+      const parsedDate = readDateCell(raw);
       if (parsedDate.kind === 'exact') row[field] = formatIsoDate(parsedDate.year, parsedDate.month, parsedDate.day);
       else if (parsedDate.kind === 'numeric') {
         const list = pendingDates.get(dateColumn.index) ?? [];
@@ -718,8 +752,34 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       message: `${where(headerLine, column.header)}: this column has no header but holds values. They are kept as text and not read as readings; a lab profile can map it.`,
     });
   }
-  settleDates(pendingDates, columns, options.dateOrder, issues);
-  return result(rows, columns, delimiter, decimalMark, headerLine, unitsLine);
+  settleDates(pendingDates, columns, options.dateOrder, issues, dayFirstLanguage);
+  if (pivot) rewordPivotIssues(issues, issuesBeforeRows, pivot, headerLine);
+  return { ...result(rows, columns, delimiter, decimalMark, headerLine, unitsLine), layout: pivot ? 'long' : 'wide' };
+}
+
+/** A units row: every filled cell is a unit ("ppm", "cSt", "SUS", "%"). */
+function filledUnitsRow(cells: readonly string[]): boolean {
+  const filled = cells.map((c) => c.trim()).filter((c) => c !== '' && c !== '-' && c !== '—');
+  return filled.length >= 1 && filled.every(isUnitCell);
+}
+
+function foldedMapping(options: ParseLabCsvOptions): Map<string, LabCsvMappingTarget> | null {
+  const exact = options.mapping;
+  return exact ? new Map(Object.entries(exact).map(([k, v]) => [normaliseMappingKey(k), v] as const)) : null;
+}
+
+/** A glycol cell, also with the words of the dictionary's languages ("negativ", "positif"). */
+function readGlycolCell(cell: string): ReadingParse {
+  const local = readLocalGlycolWord(cell);
+  return local === null ? parseGlycolCell(cell) : { status: 'ok', value: local };
+}
+
+/** A date cell, also with a month name in one of the dictionary's languages ("3. März 2026"). */
+function readDateCell(raw: string): DateCell {
+  const parsed = parseDateCell(raw);
+  if (parsed.kind !== 'problem' || parsed.problem !== 'invalid-date') return parsed;
+  const local = parseLocalMonthDate(raw);
+  return local && isRealDate(local.year, local.month, local.day) ? { kind: 'exact', ...local } : parsed;
 }
 
 /** Settle d/m/y versus m/d/y per column, by the rule in parseLabCsv's doc. */
@@ -728,6 +788,7 @@ function settleDates(
   columns: readonly LabCsvColumn[],
   profileOrder: DateOrder | undefined,
   issues: LabCsvIssue[],
+  dayFirstLanguage?: keyof typeof HEADER_LANGUAGES,
 ): void {
   for (const [index, list] of pending) {
     const header = columns[index]?.header ?? `column ${index + 1}`;
@@ -736,7 +797,9 @@ function settleDates(
       const evidence = evidenceOfDateOrder(cell);
       if (evidence) orders.add(evidence);
     }
-    const columnOrder: DateOrder | null = profileOrder ?? (orders.size === 1 ? [...orders][0] ?? null : null);
+    const languageOrder: DateOrder | null = orders.size === 0 && dayFirstLanguage !== undefined ? 'dmy' : null;
+    const columnOrder: DateOrder | null = profileOrder ?? (orders.size === 1 ? [...orders][0] ?? null : languageOrder);
+    let settledByLanguage = 0;
     for (const { row, field, cell, raw } of list) {
       const own = evidenceOfDateOrder(cell);
       const order = own ?? (cell.first === cell.second ? 'dmy' : columnOrder);
@@ -751,6 +814,7 @@ function settleDates(
         });
         continue;
       }
+      if (own === null && cell.first !== cell.second && profileOrder === undefined && languageOrder !== null) settledByLanguage += 1;
       const day = order === 'dmy' ? cell.first : cell.second;
       const month = order === 'dmy' ? cell.second : cell.first;
       if (!isRealDate(cell.year, month, day)) {
@@ -758,6 +822,15 @@ function settleDates(
         continue;
       }
       row[field] = formatIsoDate(cell.year, month, day);
+    }
+    if (settledByLanguage > 0 && dayFirstLanguage !== undefined) {
+      issues.push({
+        severity: 'warning',
+        code: 'ambiguous-date',
+        row: null,
+        column: header,
+        message: `Column "${header}": ${settledByLanguage === 1 ? 'a date such as' : `${settledByLanguage} dates such as`} 03/04/2026 ${settledByLanguage === 1 ? 'was' : 'were'} read day first, as ${HEADER_LANGUAGES[dayFirstLanguage]} reports write them. A lab profile can set the order.`,
+      });
     }
   }
 }

@@ -58,7 +58,7 @@ export function listLabFilesOfCrew(db: Db, crewId: string, limit = 20) {
 /** Store an upload; on a hash the crew already has, insert nothing and return null. */
 export async function insertLabFile(
   db: Db,
-  row: { crewId: string; sha256: string; fileName: string; content: Buffer; uploadedBy: string },
+  row: { crewId: string; sha256: string; fileName: string; content: Buffer; uploadedBy: string | null; inboundMailId?: string | null },
 ): Promise<{ id: string } | null> {
   const inserted = await db
     .insertInto('lab_files')
@@ -69,6 +69,7 @@ export async function insertLabFile(
       byte_size: row.content.byteLength,
       content: row.content,
       uploaded_by: row.uploadedBy,
+      inbound_mail_id: row.inboundMailId ?? null,
     })
     .onConflict((oc) => oc.columns(['crew_id', 'sha256']).doNothing())
     .returning('id')
@@ -80,7 +81,7 @@ export async function insertLabFile(
 export function findProfileBySignature(db: Db, crewId: string, signature: string) {
   return db
     .selectFrom('lab_profiles')
-    .select(['id', 'name', 'header_signature', 'mapping'])
+    .select(['id', 'name', 'header_signature', 'mapping', 'sheet_name'])
     .where('crew_id', '=', crewId)
     .where('header_signature', '=', signature)
     .executeTakeFirst();
@@ -89,7 +90,7 @@ export function findProfileBySignature(db: Db, crewId: string, signature: string
 /** Save (or rename and remap) the crew's profile for a header signature. */
 export function upsertProfile(
   db: Db,
-  row: { crewId: string; name: string; signature: string; mapping: Record<string, string>; createdBy: string },
+  row: { crewId: string; name: string; signature: string; mapping: Record<string, string>; sheetName?: string | null; createdBy: string },
 ) {
   return db
     .insertInto('lab_profiles')
@@ -98,13 +99,27 @@ export function upsertProfile(
       name: row.name,
       header_signature: row.signature,
       mapping: JSON.stringify(row.mapping),
+      sheet_name: row.sheetName ?? null,
       created_by: row.createdBy,
     })
     .onConflict((oc) =>
-      oc.columns(['crew_id', 'header_signature']).doUpdateSet({ name: row.name, mapping: JSON.stringify(row.mapping) }),
+      oc.columns(['crew_id', 'header_signature']).doUpdateSet({ name: row.name, mapping: JSON.stringify(row.mapping), sheet_name: row.sheetName ?? null }),
     )
     .returning(['id', 'name'])
     .executeTakeFirstOrThrow();
+}
+
+/** Sheet names the crew's lab profiles read workbooks on, most recent profile first. */
+export async function listProfileSheetNames(db: Db, crewId: string): Promise<string[]> {
+  const rows = await db
+    .selectFrom('lab_profiles')
+    .select('sheet_name')
+    .where('crew_id', '=', crewId)
+    .where('sheet_name', 'is not', null)
+    .orderBy('created_at', 'desc')
+    .limit(50)
+    .execute();
+  return rows.flatMap((r) => (r.sheet_name ? [r.sheet_name] : []));
 }
 
 /** The crew's samples whose normalised bottle code is in `codes`, with their machine and reading count. */

@@ -8,8 +8,8 @@ import { sql, type Kysely, type Transaction } from 'kysely';
 import { analyseSample, makeIntervalCall, type FixedLimits, type MachineProfile, type SamplePoint } from '../analysis';
 import { isMeasurandCode, type MeasurandCode } from '../analysis/measurands';
 import type { Database } from '../db/database';
+import { readLabFileBytes } from '../import/lab-xlsx';
 import {
-  decodeLabFile,
   MAX_LAB_FILE_BYTES,
   parseLabCsv,
   type LabCsvColumn,
@@ -62,18 +62,19 @@ export interface StoredLabFile {
 }
 
 /**
- * Keep an uploaded lab file (bytes, SHA-256, uploader, crew, time) after checking its size and content.
- * The same bytes again write nothing: an imported file is refused as already imported, a pending one is reused.
+ * Keep an uploaded lab file (bytes, SHA-256, uploader, crew, time) after checking its size and content
+ * (CSV, TSV, text or an .xlsx workbook, judged by content). A file that came by mail has no uploader but its
+ * message. The same bytes again write nothing: an imported file is refused as already imported, a pending one is reused.
  */
 export async function storeLabFile(
   db: Db,
-  input: { crewId: string; userId: string; fileName: string; bytes: Uint8Array },
+  input: { crewId: string; userId: string | null; fileName: string; bytes: Uint8Array; inboundMailId?: string },
 ): Promise<LabImportResult<StoredLabFile>> {
   if (input.bytes.byteLength > MAX_LAB_FILE_BYTES) {
     const mib = (input.bytes.byteLength / (1024 * 1024)).toFixed(1);
     return refuse(413, 'file_too_large', `"${cleanFileName(input.fileName)}" is ${mib} MiB; lab files up to 5 MiB are accepted. Split the report into smaller files.`);
   }
-  const decoded = decodeLabFile(input.bytes);
+  const decoded = await readLabFileBytes(input.bytes);
   if ('error' in decoded) {
     const status = decoded.error.code === 'empty-file' ? 400 : 415;
     return refuse(status, decoded.error.code.replace(/-/g, '_'), `"${cleanFileName(input.fileName)}": ${decoded.error.message}`);
@@ -87,6 +88,7 @@ export async function storeLabFile(
     fileName: cleanFileName(input.fileName),
     content: Buffer.from(input.bytes),
     uploadedBy: input.userId,
+    inboundMailId: input.inboundMailId ?? null,
   });
   if (inserted) return { ok: true, value: { labFileId: inserted.id, status: 'stored' } };
   // Two uploads of the same bytes at once: the other one won; answer as if it came first.
@@ -175,13 +177,15 @@ export async function previewLabImport(
   if (!fileRow) return refuse(404, 'not_found', 'No such lab file in this crew.');
   const content = await repo.findLabFileContent(db, input.crewId, input.labFileId);
   if (!content) return refuse(404, 'not_found', 'No such lab file in this crew.');
-  const decoded = decodeLabFile(new Uint8Array(content.buffer, content.byteOffset, content.byteLength));
+  // A workbook is read on the sheet a profile of the crew names, else on its first sheet with a lab header.
+  const sheetNames = await repo.listProfileSheetNames(db, input.crewId);
+  const decoded = await readLabFileBytes(new Uint8Array(content.buffer, content.byteOffset, content.byteLength), { sheetNames });
   if ('error' in decoded) return refuse(415, decoded.error.code.replace(/-/g, '_'), decoded.error.message);
 
   const signature = computeHeaderSignature(readHeaders(decoded.text));
   const profileRow = await repo.findProfileBySignature(db, input.crewId, signature);
   const profile: LabProfile | null = profileRow
-    ? { id: profileRow.id, name: profileRow.name, headerSignature: profileRow.header_signature, mapping: profileRow.mapping as Record<string, LabCsvMappingTarget> }
+    ? { id: profileRow.id, name: profileRow.name, headerSignature: profileRow.header_signature, mapping: profileRow.mapping as Record<string, LabCsvMappingTarget>, sheetName: profileRow.sheet_name }
     : null;
   const parsed = parseLabCsv(decoded.text, profile ? { mapping: profile.mapping } : {});
   const bottleHeader = parsed.columns.find((c) => c.kind === 'bottle')?.header ?? 'Bottle';
@@ -274,6 +278,7 @@ export async function previewLabImport(
       columns: parsed.columns,
       headers: parsed.columns.map((c) => c.header),
       headerSignature: signature,
+      sheet: decoded.sheet,
       profile,
       fileIssues,
       rows,
@@ -310,6 +315,7 @@ export async function saveLabProfile(
     name: input.name,
     signature: preview.value.headerSignature,
     mapping,
+    sheetName: preview.value.sheet,
     createdBy: input.userId,
   });
   return { ok: true, value: { profileId: saved.id, name: saved.name } };

@@ -17,6 +17,8 @@ export interface LabProfile {
   name: string;
   headerSignature: string;
   mapping: Record<string, LabCsvMappingTarget>;
+  /** For a workbook: the sheet this profile reads. */
+  sheetName?: string | null;
 }
 
 /** The stored upload, without its bytes. */
@@ -26,7 +28,8 @@ export interface LabFile {
   sha256: string;
   fileName: string;
   byteSize: number;
-  uploadedBy: string;
+  /** Null for a file that arrived by mail. */
+  uploadedBy: string | null;
   uploadedAt: Date;
   /** Set once the file has been confirmed and written. */
   importId: string | null;
@@ -76,6 +79,8 @@ export interface ImportPreview {
   columns: LabCsvColumn[];
   headers: string[];
   headerSignature: string;
+  /** The workbook sheet that was read, for a spreadsheet; null for a text file. */
+  sheet: string | null;
   /** The saved profile applied to this header, if any. */
   profile: LabProfile | null;
   /** Issues about the file as a whole (no row) or about a row that the reader dropped. */

@@ -1,8 +1,8 @@
-import pg from 'pg';
 import type PgBoss from 'pg-boss';
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
 import type { JobRegistration } from '../queue/job-queue';
+import { registerWakeableJob } from '../queue/wakeable-job';
 import type { BackoffPolicy } from './mail';
 import { MAIL_OUTBOX_CHANNEL } from './mail.repository';
 import { deliverDueMail } from './mail.service';
@@ -36,99 +36,21 @@ export async function registerMailJobs(boss: PgBoss, options: MailJobOptions): P
     name: MAIL_FLUSH_QUEUE, policy: 'short', retryLimit: 3, retryDelay: 5, retryBackoff: true, expireInSeconds: 15 * 60,
   });
 
-  let stopped = false;
-  let workerId: string | undefined;
-  const trigger = async (): Promise<void> => {
-    if (stopped) return;
-    try {
-      await boss.send(MAIL_FLUSH_QUEUE, {});
-      if (workerId) boss.notifyWorker(workerId);
-    } catch (error) {
-      log(`[mail] could not queue a flush: ${errorMessage(error)}`);
-    }
-  };
-
-  workerId = await boss.work(MAIL_FLUSH_QUEUE, { pollingIntervalSeconds: options.pollingIntervalSeconds ?? 2 }, async () => {
-    const report = await deliverDueMail(options.db, {
-      transport: options.transport, from: options.from, batchSize, ...(options.backoff ? { backoff: options.backoff } : {}),
-    });
-    if (report.sent + report.deferred + report.failed > 0) {
-      log(`[mail] flush: ${report.sent} sent, ${report.deferred} deferred, ${report.failed} failed`);
-    }
-    // A full batch means more may be waiting: queue the next flush now rather than at the next tick.
-    if (report.sent + report.deferred + report.failed >= batchSize) void trigger();
-    return report;
-  });
-
-  const listener = options.listenConnectionString
-    ? listenForOutbox(options.listenConnectionString, () => void trigger(), log)
-    : undefined;
-  const tick = setInterval(() => void trigger(), (options.tickSeconds ?? 15) * 1000);
-  tick.unref();
-  // Catch up on whatever was queued while no worker was running.
-  await trigger();
-
-  return {
+  return registerWakeableJob(boss, {
     name: MAIL_FLUSH_QUEUE,
-    async stop() {
-      stopped = true;
-      clearInterval(tick);
-      await listener?.close();
-      await boss.offWork(MAIL_FLUSH_QUEUE);
-    },
-  };
-}
-
-/** LISTENs on the outbox channel with its own connection, reconnecting after a lost connection. */
-function listenForOutbox(connectionString: string, onNotify: () => void, log: (line: string) => void) {
-  let client: pg.Client | undefined;
-  let closed = false;
-  let retry: NodeJS.Timeout | undefined;
-
-  const connect = async (): Promise<void> => {
-    const c = new pg.Client({ connectionString, application_name: 'sumpwise-mail-listener' });
-    c.on('notification', onNotify);
-    c.on('error', (error) => {
-      log(`[mail] outbox listener lost its connection: ${error.message}; the tick still delivers`);
-      void c.end().catch(() => {});
-      scheduleReconnect();
-    });
-    try {
-      await c.connect();
-      await c.query(`LISTEN ${MAIL_OUTBOX_CHANNEL}`);
-      if (closed) {
-        await c.end();
-        return;
+    ...(options.listenConnectionString ? { listen: { connectionString: options.listenConnectionString, channel: MAIL_OUTBOX_CHANNEL } } : {}),
+    tickSeconds: options.tickSeconds ?? 15,
+    pollingIntervalSeconds: options.pollingIntervalSeconds ?? 2,
+    log,
+    async run() {
+      const report = await deliverDueMail(options.db, {
+        transport: options.transport, from: options.from, batchSize, ...(options.backoff ? { backoff: options.backoff } : {}),
+      });
+      if (report.sent + report.deferred + report.failed > 0) {
+        log(`[mail] flush: ${report.sent} sent, ${report.deferred} deferred, ${report.failed} failed`);
       }
-      client = c;
-      // Anything committed while we were not listening.
-      onNotify();
-    } catch (error) {
-      log(`[mail] outbox listener could not connect: ${errorMessage(error)}`);
-      void c.end().catch(() => {});
-      scheduleReconnect();
-    }
-  };
-  const scheduleReconnect = () => {
-    client = undefined;
-    if (closed || retry) return;
-    retry = setTimeout(() => {
-      retry = undefined;
-      void connect();
-    }, 5_000);
-    retry.unref();
-  };
-  void connect();
-
-  return {
-    async close() {
-      closed = true;
-      if (retry) clearTimeout(retry);
-      await client?.end().catch(() => {});
+      // A full batch means more may be waiting: queue the next flush now rather than at the next tick.
+      return { result: report, moreWaiting: report.sent + report.deferred + report.failed >= batchSize };
     },
-  };
-}
-
-function errorMessage(error: unknown): string {
-  return error instanceof Error ? error.message : String(error);
+  });
 }

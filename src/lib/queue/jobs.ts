@@ -5,6 +5,7 @@ import type { Database } from '../db/database';
 import { registerMailJobs, type MailJobOptions } from '../mail/mail-jobs';
 import type { MailTransport } from '../mail/transport';
 import type { JobRegistration } from './job-queue';
+import type { LabMailJobOptions } from '../lab-mail/lab-mail-jobs';
 
 // Every job family the worker runs is registered here. Issue 8 (reminders, digests) adds its queues and
 // pg-boss schedules (`boss.schedule(name, cron)`) as further entries, each returning a JobRegistration.
@@ -16,6 +17,8 @@ export interface JobDependencies {
   log?: (line: string) => void;
   /** Overrides for the mail job (tests shorten its tick and backoff). */
   mail?: Partial<Pick<MailJobOptions, 'tickSeconds' | 'pollingIntervalSeconds' | 'batchSize' | 'backoff'>>;
+  /** Overrides for the inbound lab mail job (tests). */
+  labMail?: Partial<Pick<LabMailJobOptions, 'tickSeconds' | 'pollingIntervalSeconds' | 'env' | 'hooks'>>;
 }
 
 /** Registers every job family on a started pg-boss; stop them with stopJobQueue. */
@@ -32,5 +35,14 @@ export async function registerJobs(boss: PgBoss, deps: JobDependencies): Promise
     }),
   );
   registrations.push(await (await import('../alerts/alert-jobs')).registerAlertJobs(boss, { db: deps.db, ...(deps.log ? { log: deps.log } : {}) }));
+  // Lab reports that arrived by mail (stored raw by the relay or the webhook) become lab files here.
+  registrations.push(
+    await (await import('../lab-mail/lab-mail-jobs')).registerLabMailJobs(boss, {
+      db: deps.db,
+      listenConnectionString: deps.config.DATABASE_URL,
+      ...(deps.log ? { log: deps.log } : {}),
+      ...deps.labMail,
+    }),
+  );
   return registrations;
 }

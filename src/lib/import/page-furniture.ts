@@ -1,0 +1,114 @@
+/**
+ * Lines of a lab report that are page furniture, not bottles: footers ("Report generated …", "Page 2 of
+ * 3"), the header row repeated at the top of each printed page (with its units row), and blank separator
+ * lines. They are found before the rows are read, skipped, and each kind is named in one note.
+ */
+import type { LabCsvIssue } from './lab-csv';
+
+/** Words that open or fill a footer line, in English and the dictionary's languages (common usage). */
+const FOOTER_WORDS =
+  /\b(generated|printed|created|exported|end of report|page \d+|confidential|signed|approved|copyright|erstellt|gedruckt|seite \d+|vertraulich|généré|genere|imprimé|imprime|généré le|generado|impreso|página \d+|pagina \d+|generato|stampato|gegenereerd|afgedrukt|gerado|impresso|genererad|utskriven|sida \d+|fin du rapport|ende des berichts|fin del informe|fine del rapporto|einde rapport|fim do relatório|slut på rapporten)\b|©|\(c\)|https?:\/\/|www\./i;
+
+export interface FurnitureInput {
+  data: readonly (readonly string[])[];
+  firstDataRow: number;
+  headerCells: readonly string[];
+  lineOf: readonly number[];
+  isUnitsRow: (cells: readonly string[]) => boolean;
+}
+
+export interface FurnitureResult {
+  /** Indexes into `data` of the rows to leave out. */
+  skip: Set<number>;
+  notes: LabCsvIssue[];
+}
+
+function filled(cells: readonly string[]): string[] {
+  return cells.map((c) => c.trim()).filter((c) => c !== '');
+}
+
+function fold(text: string): string {
+  return text.normalize('NFKC').trim().toLowerCase().replace(/\s+/g, ' ');
+}
+
+/** True when a row says the header again: at least two thirds of the header's filled cells, in place. */
+export function isRepeatedHeader(cells: readonly string[], header: readonly string[]): boolean {
+  let same = 0;
+  let total = 0;
+  header.forEach((h, i) => {
+    if (h.trim() === '') return;
+    total += 1;
+    if (fold(cells[i] ?? '') === fold(h)) same += 1;
+  });
+  return total >= 2 && same * 3 >= total * 2;
+}
+
+/** True when a row is a footer line: one or two filled cells reading like a sentence or a page mark. */
+export function isFooterRow(cells: readonly string[], width: number): boolean {
+  const parts = filled(cells);
+  if (parts.length === 0 || parts.length > 2 || (parts.length === 2 && width <= 3)) return false;
+  const text = parts.join(', ');
+  if (text.length > 2000) return true;
+  if (FOOTER_WORDS.test(text)) return true;
+  // A lone cell of three or more words is a sentence, never a bottle code.
+  return parts.length === 1 && width > 2 && (text.match(/\p{L}{2,}/gu)?.length ?? 0) >= 3 && /\s/.test(text);
+}
+
+function listLines(lines: readonly number[]): string {
+  const shown = lines.slice(0, 8).join(', ');
+  return lines.length > 8 ? `${shown} and ${lines.length - 8} more` : shown;
+}
+
+/** Find the furniture rows after the header, and word one note per kind. */
+export function findPageFurniture(input: FurnitureInput): FurnitureResult {
+  const { data, firstDataRow, headerCells, lineOf } = input;
+  const skip = new Set<number>();
+  const footers: number[] = [];
+  const headers: number[] = [];
+  const blanks: number[] = [];
+  let lastFilled = -1;
+  for (let r = data.length - 1; r >= firstDataRow; r -= 1) {
+    if (filled(data[r] ?? []).length > 0) {
+      lastFilled = r;
+      break;
+    }
+  }
+  for (let r = firstDataRow; r <= lastFilled; r += 1) {
+    const cells = data[r] ?? [];
+    const line = lineOf[r] ?? r + 1;
+    if (filled(cells).length === 0) {
+      blanks.push(line);
+      continue;
+    }
+    if (isRepeatedHeader(cells, headerCells)) {
+      skip.add(r);
+      headers.push(line);
+      const next = data[r + 1];
+      if (next && filled(next).length > 0 && input.isUnitsRow(next)) {
+        skip.add(r + 1);
+        r += 1;
+      }
+      continue;
+    }
+    if (isFooterRow(cells, headerCells.length)) {
+      skip.add(r);
+      footers.push(line);
+    }
+  }
+  const notes: LabCsvIssue[] = [];
+  const note = (lines: number[], what: string): void => {
+    if (lines.length === 0) return;
+    const one = lines.length === 1;
+    notes.push({
+      severity: 'warning',
+      code: 'lines-skipped',
+      row: lines[0] ?? null,
+      column: null,
+      message: `${one ? 'Line' : 'Lines'} ${listLines(lines)}: ${what}; skipped, not read as ${one ? 'a bottle' : 'bottles'}.`,
+    });
+  };
+  note(headers, 'the header row again (a page break)');
+  note(footers, 'a footer or note, not readings');
+  note(blanks, 'blank, between rows of readings');
+  return { skip, notes };
+}
