@@ -48,8 +48,17 @@ try {
     home: '/', overview: '/overview', tools: '/tools', rules: '/rules', machine: `/machines/${machineId}`,
     history: `/machines/${machineId}/history`, sample: `/samples/${sampleId}`,
   };
+  // The garage pages are the rider's: measured as a lead of the same crew (mechanics cannot open them).
+  const garagePages: Record<string, string> = {
+    drainCard: `/machines/${machineId}/drain-card`, oilChange: `/machines/${machineId}/oil-change`, outbox: '/outbox',
+  };
   const result: Record<string, { status: number; files: number; islands: number; rawKB: number; gzipKB: number; react: boolean }> = {};
-  for (const [name, p] of Object.entries(pages)) {
+  for (const [name, p] of [...Object.entries(pages), ['promote', ''], ...Object.entries(garagePages)] as [string, string][]) {
+    if (name === 'promote') {
+      await app.db.updateTable('crew_members').set({ role: 'lead' })
+        .where('crew_id', '=', (await app.db.selectFrom('machines').select('crew_id').where('id', '=', machineId).executeTakeFirstOrThrow()).crew_id).execute();
+      continue;
+    }
     const res = await fetch(`${app.baseUrl}${p}`, { headers: { cookie }, redirect: 'manual' });
     const html = await res.text();
     const files = closure(entriesOf(html));
@@ -70,8 +79,11 @@ try {
     }
     result[name] = { status: res.status, files: files.size, islands: (html.match(/<astro-island/g) ?? []).length, rawKB: Math.round(raw / 102.4) / 10, gzipKB: Math.round(gz / 102.4) / 10, react };
   }
-  const noFramework = Object.entries(result).filter(([n]) => n !== 'machine' && n !== 'sample').every(([, r]) => !r.react);
-  console.log(JSON.stringify({ pages: result, targets: { machineUnderKB: TARGET_MACHINE_KB, machineMet: result['machine']!.gzipKB < TARGET_MACHINE_KB, staticPagesWithoutFramework: noFramework } }));
+  const noFramework = Object.entries(result).filter(([n]) => !['machine', 'sample', 'drainCard', 'oilChange', 'outbox'].includes(n)).every(([, r]) => !r.react);
+  // The service worker is fetched once per install, not per page; reported beside the pages.
+  const sw = (() => { try { return readFileSync(path.join(CLIENT, 'sw.js')); } catch { return null; } })();
+  const serviceWorker = sw ? { rawKB: Math.round(sw.length / 102.4) / 10, gzipKB: Math.round(gzipSync(sw, { level: 9 }).length / 102.4) / 10 } : null;
+  console.log(JSON.stringify({ pages: result, serviceWorker, targets: { machineUnderKB: TARGET_MACHINE_KB, machineMet: result['machine']!.gzipKB < TARGET_MACHINE_KB, staticPagesWithoutFramework: noFramework } }));
 } finally {
   await app.stop();
 }
