@@ -197,6 +197,7 @@ describe('rider journey on a phone', () => {
 
   test('a drain card sent without a connection is kept, then registered once when it returns', async () => {
     await page.goto(`${machineUrl}/drain-card`);
+    await page.locator('form[data-offline-form=ready]').waitFor();
     await page.getByLabel('Bottle code').fill(`KIT-${stamp}`);
     await page.getByLabel('Odometer (mi)').fill('17,100');
     await context.setOffline(true);

@@ -123,22 +123,29 @@ export default function OfflineForm({ kind, formId, machineId, machineName, part
     const session = document.body.dataset;
     const onSubmit = async (e: SubmitEvent) => {
       const submitter = e.submitter as HTMLButtonElement | null;
+      // Decided before any await: a submit event cannot be cancelled later.
+      e.preventDefault();
       if (submitter?.name === 'action' && submitter.value === 'issue') {
         const code = session['user'] && session['crew'] ? await takeReservedCode(session['user'], session['crew']) : null;
         if (code) {
-          e.preventDefault();
           (f.elements.namedItem('bottleCode') as HTMLInputElement).value = code.display;
           const issued = f.querySelector<HTMLInputElement>('input[name=codeSource][value=issued]');
           if (issued) issued.checked = true;
           setTagCode(code.display);
           setStatus(`Bottle code ${code.display} is yours: write it on the bottle, or show the tag below.`);
         } else if (!navigator.onLine) {
-          e.preventDefault();
           setStatus('No reserved bottle codes are left on this device. Use the lab kit’s code, or issue one when the network returns.');
+        } else {
+          // Online without a reserved code: the plain post issues one.
+          const action = document.createElement('input');
+          action.type = 'hidden';
+          action.name = 'action';
+          action.value = 'issue';
+          f.append(action);
+          f.submit();
         }
-        return; // online without a reserved code: the plain post issues one
+        return;
       }
-      e.preventDefault();
       if (!session['user'] || !session['crew']) {
         f.submit();
         return;
@@ -189,6 +196,7 @@ export default function OfflineForm({ kind, formId, machineId, machineName, part
     };
     const listener = (e: Event) => void onSubmit(e as SubmitEvent);
     f.addEventListener('submit', listener);
+    f.dataset['offlineForm'] = 'ready';
     return () => f.removeEventListener('submit', listener);
   }, [form, kind, machineId, machineName, partId, unit, queued]);
 

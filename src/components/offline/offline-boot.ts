@@ -36,7 +36,7 @@ const escapeHtml = (s: string) => s.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt
 
 // 1. A saved copy says so, with the time it was saved.
 if (savedCopy !== null) {
-  notice('saved-copy-notice', `<p class="font-semibold" data-testid="saved-copy">◷ You are ${escapeHtml(savedCopySentence(savedCopy))}</p>`, 'watch');
+  notice('saved-copy-notice', `<p class="font-semibold" data-testid="saved-copy"><span aria-hidden="true">◷</span> ${escapeHtml(savedCopySentence(savedCopy))}</p>`, 'watch');
 }
 
 // 2. A form the rider has typed into is never reloaded from under them.

@@ -27,5 +27,5 @@ export function markSavedCopy(html: string, savedAt: string): string {
 export function savedCopySentence(savedAt: string, locale?: string): string {
   const d = new Date(savedAt);
   const when = Number.isNaN(d.getTime()) ? 'an earlier visit' : d.toLocaleString(locale ?? 'en-GB', { dateStyle: 'medium', timeStyle: 'short' });
-  return `Offline: showing what was saved at ${when}. Changes you make are kept on this device and sent when the network returns.`;
+  return `You are offline: showing what was saved at ${when}. What you save now is kept on this device and sent when the network returns.`;
 }
