@@ -148,7 +148,7 @@ describe('the garage without signal', () => {
     const items = page.getByTestId('outbox-item');
     await items.nth(1).waitFor();
     expect(await items.count()).toBe(2);
-    expect(await page.getByTestId('outbox-list').textContent()).toMatch(/Drain card · Shed 690[\s\S]*Oil change · Shed 690[\s\S]*1 photo/);
+    expect(await page.getByTestId('outbox-list').textContent()).toMatch(/Drain card · Shed 690[\s\S]*Bottle [\s\S]*Oil change · Shed 690[\s\S]*5,200 km, 10W-40 · 1 photo/);
     expect(await items.evaluateAll((els) => els.map((e) => e.getAttribute('data-state')))).toEqual(['waiting', 'waiting']);
     await screenshot(page, 'offline-03-outbox-phone');
     await page.setViewportSize(DESKTOP);

@@ -68,7 +68,7 @@ export default function OutboxList({ kind, full = false }: Props) {
   if (items.length === 0 && !full && !status) return null;
   return (
     <section className={full ? 'mt-4' : 'mt-4 rounded-card border-2 border-line bg-paper-raised p-3'} aria-labelledby="outbox-heading" data-outbox-list data-testid="outbox-list">
-      <h2 id="outbox-heading" className={full ? 'text-xl' : 'text-lg'}>Waiting to send{items.length > 0 ? ` (${items.length})` : ''}</h2>
+      <h2 id="outbox-heading" className={full ? 'text-xl' : 'text-lg'}>{full ? 'On this device' : 'Waiting to send'}{items.length > 0 ? ` (${items.length})` : ''}</h2>
       {!online && <p className="mt-1 text-sm font-semibold" data-testid="outbox-offline">◷ No network: what you save stays on this device until it returns.</p>}
       <p className="mt-1 text-sm" role="status" aria-live="polite" data-testid="outbox-status">{status}</p>
       {items.length === 0 ? (

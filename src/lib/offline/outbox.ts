@@ -145,10 +145,11 @@ export const STATE_LOOK: Record<OutboxState, { word: string; shape: string; tone
   'not-member': { word: 'Cannot be sent', shape: '✕', tone: 'act' },
 };
 
-/** The label a queued write is listed under. */
+/** The label a queued write is listed under (after its kind and machine). */
 export function labelOf(kind: OutboxKind, fields: Record<string, string | string[]>, unit: string): string {
   const f = (name: string) => String(fields[name] ?? '').trim();
-  if (kind === 'drain-card') return `Drain card, bottle ${f('bottleCode') || '(no code)'}`;
-  if (kind === 'oil-change') return `Oil change on ${f('changedOn') || '(no date)'} at ${f('odometer') || '?'} ${unit}`;
-  return `Measurement on ${f('measuredOn') || '(no date)'} at ${f('odometer') || '?'} ${unit}`;
+  const at = `${f('odometer') || '?'}${unit ? ` ${unit}` : ''}`;
+  if (kind === 'drain-card') return `Bottle ${f('bottleCode') || '(no code)'}, ${at}`;
+  if (kind === 'oil-change') return `${f('changedOn') || '(no date)'} at ${at}${f('saeGrade') ? `, ${f('saeGrade')}` : ''}`;
+  return `${f('measuredOn') || '(no date)'} at ${at}`;
 }

@@ -24,8 +24,8 @@ export function markSavedCopy(html: string, savedAt: string): string {
 }
 
 /** The sentence a saved copy shows. */
-export function savedCopySentence(savedAt: string, locale?: string): string {
+export function savedCopySentence(savedAt: string, locale?: string, timeZone?: string): string {
   const d = new Date(savedAt);
-  const when = Number.isNaN(d.getTime()) ? 'an earlier visit' : d.toLocaleString(locale ?? 'en-GB', { dateStyle: 'medium', timeStyle: 'short' });
+  const when = Number.isNaN(d.getTime()) ? 'an earlier visit' : d.toLocaleString(locale ?? 'en-GB', { dateStyle: 'medium', timeStyle: 'short', timeZone });
   return `You are offline: showing what was saved at ${when}. What you save now is kept on this device and sent when the network returns.`;
 }
