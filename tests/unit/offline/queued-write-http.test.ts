@@ -6,10 +6,10 @@ import { OIL_CHANGE_UPLOAD_MAX_BYTES, readOilChangeUpload } from '~/lib/oil-chan
 const A = { crewId: 'crew-a', crewName: 'Valley School', role: 'rider' as const };
 const B = { crewId: 'crew-b', crewName: 'Own crew', role: 'lead' as const };
 
-function png(): Uint8Array {
+function png(): Uint8Array<ArrayBuffer> {
   const p = new PNG({ width: 8, height: 6 });
   p.data.fill(200);
-  return PNG.sync.write(p);
+  return new Uint8Array(PNG.sync.write(p));
 }
 
 describe('a queued write lands only in the crew it was written in', () => {
