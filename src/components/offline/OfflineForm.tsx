@@ -232,17 +232,22 @@ function OfflineTag({ code, formId, machineName, unit }: { code: string; formId:
     const url = new URL(`/samples/by-code/${encodeURIComponent(code.replace(/-/g, ''))}`, window.location.origin).toString();
     setQr(await QRCode.toString(url, { type: 'svg', errorCorrectionLevel: 'M', margin: 1 }));
   };
+  const printTag = () => {
+    document.body.classList.add('printing-tag');
+    window.addEventListener('afterprint', () => document.body.classList.remove('printing-tag'), { once: true });
+    window.print();
+  };
   return (
     <div className="mt-3">
       <button type="button" className="btn-secondary" onClick={() => void show()} aria-expanded={open}>Show bottle tag</button>
       {open && (
-        <div className="mt-2 flex gap-3 rounded-md border-2 border-ink bg-white p-3 text-black" data-testid="offline-tag">
+        <div className="mt-2 flex gap-3 rounded-md border-2 border-ink bg-white p-3 text-black" data-testid="offline-tag" data-print-tag>
           <div className="h-32 w-32 flex-none" aria-label={`QR code for bottle ${code}`} role="img" dangerouslySetInnerHTML={{ __html: qr }} />
           <div>
             <p className="font-mono text-2xl font-bold tracking-wider">{code}</p>
             <p>{machineName}</p>
             <p className="text-sm">Drawn {details['drawnOn'] ?? ''}{details['odometer'] ? ` at ${details['odometer']} ${unit}` : ''}{details['saeGrade'] ? ` · ${details['saeGrade']}` : ''}</p>
-            <button type="button" className="btn-quiet mt-1 print:hidden" onClick={() => window.print()}>Print</button>
+            <button type="button" className="btn-quiet mt-1 print:hidden" onClick={printTag}>Print</button>
           </div>
         </div>
       )}
