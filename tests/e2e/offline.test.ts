@@ -258,4 +258,34 @@ describe('the garage without signal', () => {
     await page.getByText('Nothing is waiting').waitFor();
     expect(errors).toEqual([]);
   });
+
+  test('a card queued under a session that has since ended is sent after signing in again', async () => {
+    const browser = await launchBrowser();
+    try {
+      const ctx = await browser.newContext({ viewport: PHONE, baseURL: baseUrl() });
+      const p = await ctx.newPage();
+      await signInAs(p, email, PASSWORD);
+      await p.goto(`/machines/${machineId}/drain-card`);
+      await formReady(p);
+      const code = `EXPIRED${stamp}`.toUpperCase();
+      await p.getByLabel('Bottle code').fill(code);
+      await p.getByLabel('Odometer (km)').fill('5,500');
+      await ctx.setOffline(true);
+      await p.getByRole('button', { name: 'Register sample' }).click();
+      await p.getByTestId('offline-form-status').getByText('Saved on this device').waitFor();
+      await ctx.clearCookies(); // the session ends while the phone is offline
+      await ctx.setOffline(false);
+      const item = p.getByTestId('outbox-item').first();
+      await expect.poll(() => item.getAttribute('data-state'), { timeout: 20_000 }).toBe('sign-in');
+      expect(await item.textContent()).toMatch(/Sign in to send[\s\S]*Your session has ended\. Sign in again with the same account and it will be sent\./);
+      expect(await db.selectFrom('samples').select('id').where('bottle_code_norm', '=', code).execute()).toHaveLength(0);
+      await signInAs(p, email, PASSWORD);
+      await p.goto('/outbox');
+      await p.getByText('Nothing is waiting').waitFor({ timeout: 20_000 });
+      expect(await db.selectFrom('samples').select('id').where('bottle_code_norm', '=', code).execute()).toHaveLength(1);
+      await ctx.close();
+    } finally {
+      await browser.close();
+    }
+  });
 });
