@@ -233,6 +233,17 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { route: '/api/samples', method: 'POST', path: '/api/samples',
     json: 'riderMachineSample', expect: { anonymous: 401, rider: 201, mechanic: 403, lead: 201, otherLead: 404 }, note: 'a drain card for crew A’s rider machine' },
   { route: '/api/samples/bottle-codes', method: 'POST', path: '/api/samples/bottle-codes', json: {}, expect: { anonymous: 401, rider: 201, mechanic: 403, lead: 201, otherLead: 201 } },
+  { route: '/api/samples/reserved-codes', method: 'POST', path: '/api/samples/reserved-codes', json: { deviceKey: 'matrix-device-01' },
+    expect: { anonymous: 401, rider: 200, mechanic: 403, lead: 200, otherLead: 200 }, note: 'each visitor reserves in their own crew' },
+  { route: '/api/wear-parts/[partId]/measurements', method: 'POST', path: async (ctx) => `/api/wear-parts/${(await riderWearPart(ctx)).split('/').at(-1)}/measurements`,
+    json: { measuredOn: '2025-01-01', odometer: 100, unit: 'mm', summary: 3 }, expect: ownerApi(201) },
+  { route: '/api/offline/pages', method: 'GET', path: '/api/offline/pages', expect: { ...all(200), anonymous: 401 } },
+  { route: '/samples/by-code/[code]', method: 'GET', path: async (ctx) => {
+    const id = await riderSample(ctx);
+    const s = await ctx.db.selectFrom('samples').select('bottle_code_norm').where('id', '=', id).executeTakeFirstOrThrow();
+    return `/samples/by-code/${s.bottle_code_norm}`;
+  }, expect: { anonymous: 303, rider: 303, mechanic: 303, lead: 303, otherLead: 404 }, note: 'a tag made offline opens the crew’s sample of that code' },
+  { route: '/outbox', method: 'GET', path: '/outbox', expect: all(200), note: 'the list lives on the device; the page shows nothing of the server' },
   { route: '/api/samples/[id]', method: 'GET', path: async (ctx) => `/api/samples/${await riderSample(ctx)}`, expect: memberApi },
   { route: '/api/samples/[id]/ship', method: 'POST', path: async (ctx) => `/api/samples/${await riderSample(ctx)}/ship`, json: { trackingNote: 'matrix' }, expect: ownerApi(200) },
   { route: '/api/photos', method: 'POST', path: '/api/photos', form: { file: 'not multipart' }, expect: { ...all(415), anonymous: 401 }, note: 'a photo must come as multipart' },

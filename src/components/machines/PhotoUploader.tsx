@@ -8,6 +8,8 @@ import XHRUpload from '@uppy/xhr-upload';
 import Dashboard from '@uppy/react/dashboard';
 import '@uppy/core/css/style.min.css';
 import '@uppy/dashboard/css/style.min.css';
+import type { OutboxPhoto } from '../../lib/offline/outbox';
+import { COLLECT_PHOTOS_EVENT, PHOTOS_KEPT_EVENT } from '../offline/offline-events';
 
 interface Props {
   /** id of the plain file input this island replaces. */
@@ -38,7 +40,22 @@ export default function PhotoUploader({ fallbackInputId, maxFileBytes }: Props) 
       if (id) setIds((prev) => (prev.includes(id) ? prev : [...prev, id]));
     };
     uppy.on('upload-success', onSuccess);
+    // Saving with no network: the form keeps the photos that did not reach the server as Blobs in its
+    // outbox, then this uploader lets go of them (so a reconnect does not upload them a second time).
+    const onCollect = (e: Event) => {
+      const into = (e as CustomEvent<OutboxPhoto[]>).detail;
+      for (const f of uppy.getFiles()) {
+        if (!f.progress.uploadComplete && f.data instanceof Blob) into.push({ name: f.name ?? 'photo', type: f.type ?? 'application/octet-stream', blob: f.data });
+      }
+    };
+    const onKept = () => {
+      for (const f of uppy.getFiles()) if (!f.progress.uploadComplete) uppy.removeFile(f.id);
+    };
+    window.addEventListener(COLLECT_PHOTOS_EVENT, onCollect);
+    window.addEventListener(PHOTOS_KEPT_EVENT, onKept);
     return () => {
+      window.removeEventListener(COLLECT_PHOTOS_EVENT, onCollect);
+      window.removeEventListener(PHOTOS_KEPT_EVENT, onKept);
       uppy.off('upload-success', onSuccess);
       uppy.destroy();
     };

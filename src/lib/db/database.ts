@@ -89,6 +89,8 @@ export interface OilChangesTable {
   notes: Generated<string>;
   created_by: string;
   created_at: Generated<Date>;
+  /** The device's key for an oil change sent from its offline queue (unique per crew); migration 2026_12_02_1700. */
+  client_key: Generated<string | null>;
 }
 
 export interface PhotosTable {
@@ -165,6 +167,17 @@ export interface WearMeasurementsTable {
   note: Generated<string>;
   created_by: string;
   created_at: Generated<Date>;
+  /** The device's key for a measurement sent from its offline queue (unique per part); migration 2026_12_02_1700. */
+  client_key: Generated<string | null>;
+}
+
+/** Sumpwise bottle codes reserved ahead of time for one device of one rider in one crew. */
+export interface BottleCodeReservationsTable {
+  code_norm: string;
+  crew_id: string;
+  user_id: string;
+  device_key: string;
+  reserved_at: Generated<Date>;
 }
 
 export interface LabFilesTable {
@@ -335,6 +348,7 @@ export interface Database {
   crew_invitations: CrewInvitationsTable;
   audit_events: AuditEventsTable;
   rate_limits: RateLimitsTable;
+  bottle_code_reservations: BottleCodeReservationsTable;
 }
 
 export type UserRow = Selectable<UsersTable>;

@@ -26,3 +26,8 @@ export function findLatestOilChange(db: Db, crewId: string, machineId: string): 
   return db.selectFrom('oil_changes').selectAll().where('crew_id', '=', crewId).where('machine_id', '=', machineId)
     .orderBy('changed_on', 'desc').orderBy('odometer', 'desc').orderBy('created_at', 'desc').limit(1).executeTakeFirst();
 }
+
+/** The oil change a device's key already created in this crew (a resend of a queued write), or undefined. */
+export function findOilChangeByClientKey(db: Db, crewId: string, clientKey: string): Promise<OilChangeRow | undefined> {
+  return db.selectFrom('oil_changes').selectAll().where('crew_id', '=', crewId).where('client_key', '=', clientKey).executeTakeFirst();
+}

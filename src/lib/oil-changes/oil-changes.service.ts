@@ -7,7 +7,7 @@ import { attachPhotos, findPhotosOfOilChanges, type PhotoRow } from '../photos/p
 import { storePreparedPhoto } from '../photos/photos.service';
 import { formatMeter, toStoredMeter } from '../units/units';
 import { computeDistances, explainAbsurdOdometer, oilChangeInputSchema, toOilChange, type OilChange } from './oil-changes';
-import { findLatestOilChange, findOilChangeAfter, findOilChangeBefore, findOilChangesOfMachine } from './oil-changes.repository';
+import { findLatestOilChange, findOilChangeAfter, findOilChangeBefore, findOilChangeByClientKey, findOilChangesOfMachine } from './oil-changes.repository';
 import { parseSaeGrade } from './sae-grade';
 
 /** A machine's oil changes, newest first, each with the distance since the one before and its photos. */
@@ -28,17 +28,20 @@ export async function getLatestOilChange(db: Kysely<Database>, actor: Actor, mac
 /**
  * Logs an oil change. The odometer (machine's own unit) may not go below the previous change's unless the
  * meter was replaced; photos already uploaded (photoIds) are attached, and photos from a plain form post
- * (newPhotos, already checked) are stored in the same transaction.
+ * (newPhotos, already checked) are stored in the same transaction. A resend with a known clientKey answers
+ * the first oil change (repeated: true) and writes nothing.
  */
 export async function createOilChange(
   db: Kysely<Database>, actor: Actor, machineId: string, input: unknown,
   options: { newPhotos?: PreparedPhoto[]; uploadDir?: string } = {},
-): Promise<ServiceResult<OilChange>> {
+): Promise<ServiceResult<OilChange & { repeated: boolean }>> {
   const m = await getMachine(db, actor, machineId);
   if (!m.ok) return m;
   const machine = m.value;
   if (!canActorEdit(actor, machine)) return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can log its oil changes.');
   const parsed = oilChangeInputSchema.safeParse(input);
+  const repeat = parsed.success && parsed.data.clientKey ? await findRepeat(db, actor, machineId, parsed.data.clientKey) : null;
+  if (repeat) return repeat;
   const fields: FieldErrors = parsed.success ? {} : refuseInvalid(parsed.error).fields;
   const grade = parseSaeGrade(String((input as Record<string, unknown> | null)?.['saeGrade'] ?? ''));
   if (!grade.ok) fields['saeGrade'] = grade.message;
@@ -68,6 +71,7 @@ export async function createOilChange(
       crew_id: crewId, machine_id: machineId, changed_on: d.changedOn, odometer, meter_replaced: d.meterReplaced,
       oil_product: d.oilProduct, sae_grade: grade.grade, volume_l: d.volumeL ?? null, filter_changed: d.filterChanged,
       top_up_l: d.topUpL ?? 0, other_work: JSON.stringify(d.otherWork), notes: d.notes, created_by: actor.userId,
+      client_key: d.clientKey ?? null,
     }).returningAll().executeTakeFirstOrThrow();
     const ids = [...new Set(d.photoIds)];
     const attached = await attachPhotos(trx, crewId, actor.userId, ids, row.id);
@@ -79,8 +83,13 @@ export async function createOilChange(
       if (!options.uploadDir) throw new Error('uploadDir is required to store photos.');
       await storePreparedPhoto(trx, actor, p, options.uploadDir, row.id);
     }
-    return succeed(toOilChange(row));
-  }).catch((e: unknown) => {
+    return succeed({ ...toOilChange(row), repeated: false });
+  }).catch(async (e: unknown) => {
+    // Two sends of one queued oil change racing: the unique key decides, and the loser answers the winner.
+    if ((e as { constraint?: string }).constraint === 'oil_changes_client_key_key' && d.clientKey) {
+      const again = await findRepeat(db, actor, machineId, d.clientKey);
+      if (again) return again;
+    }
     if (e instanceof PhotoAttachError) {
       return refuse(400, 'invalid_input', 'Some fields need attention.', { photos: 'A photo could not be attached; upload it again.' });
     }
@@ -89,3 +98,11 @@ export async function createOilChange(
 }
 
 class PhotoAttachError extends Error {}
+
+/** The oil change an earlier send with this key created, or a refusal when the key belongs to another machine. */
+async function findRepeat(db: Kysely<Database>, actor: Actor, machineId: string, clientKey: string) {
+  const again = await findOilChangeByClientKey(db, actor.membership.crewId, clientKey);
+  if (!again) return null;
+  if (again.machine_id !== machineId) return refuse(409, 'client_key_reused', 'This key belongs to an oil change of another machine.');
+  return succeed({ ...toOilChange(again), repeated: true });
+}

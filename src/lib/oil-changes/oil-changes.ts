@@ -2,6 +2,7 @@ import { z } from 'zod';
 import type { OilChangeRow } from '../db/database';
 import { checkbox, optionalNumber, pastDay, requiredNumber, text } from '../machines/form-values';
 import type { MeterUnit } from '../units/units';
+import { clientKeySchema } from '../offline/client-key';
 
 /** Highest believable meter readings in the stored unit: 2,000,000 km, 100,000 engine hours. */
 export const ODOMETER_CEILING: Record<'distance' | 'h', number> = { distance: 2_000_000, h: 100_000 };
@@ -65,6 +66,7 @@ export const oilChangeInputSchema = z.object({
   otherWork: otherWorkSchema,
   notes: text(2000, 'notes'),
   photoIds: z.preprocess((v) => (typeof v === 'string' ? [v] : v ?? []), z.array(uuid).max(20, 'Attach at most 20 photos.')),
+  clientKey: clientKeySchema,
 });
 export type OilChangeInput = z.infer<typeof oilChangeInputSchema>;
 

@@ -17,3 +17,8 @@ export function renderQrSvg(url: string): Promise<string> {
 export function renderQrPng(url: string, scale = 6): Promise<Buffer> {
   return QRCode.toBuffer(url, { type: 'png', errorCorrectionLevel: 'M', margin: 2, scale });
 }
+
+/** The address a tag printed before its sample existed opens (by bottle code; the crew's sample of that code). */
+export function buildBottleCodeUrl(publicUrl: string, code: string): string {
+  return new URL(`/samples/by-code/${encodeURIComponent(code)}`, publicUrl).toString();
+}

@@ -52,3 +52,24 @@ export function findSampleEvents(db: Db, sampleId: string) {
     .select(['sample_events.id', 'sample_events.state', 'sample_events.note', 'sample_events.at', 'users.display_name as actor_name'])
     .where('sample_events.sample_id', '=', sampleId).orderBy('sample_events.at').orderBy('sample_events.id').execute();
 }
+
+/**
+ * Reserves a code for a device unless it is already reserved anywhere (the primary key) or used on a sample
+ * of the crew; answers whether this call took it.
+ */
+export async function reserveBottleCode(db: Db, row: { crewId: string; userId: string; deviceKey: string; code: string }): Promise<boolean> {
+  if (await findSampleByBottleCode(db, row.crewId, row.code)) return false;
+  const inserted = await db.insertInto('bottle_code_reservations')
+    .values({ code_norm: row.code, crew_id: row.crewId, user_id: row.userId, device_key: row.deviceKey })
+    .onConflict((oc) => oc.column('code_norm').doNothing()).returning('code_norm').executeTakeFirst();
+  return inserted !== undefined;
+}
+
+/** Codes reserved for a device of a user in a crew that no sample of the crew uses yet, oldest first. */
+export async function findUnusedReservedCodes(db: Db, crewId: string, userId: string, deviceKey?: string): Promise<string[]> {
+  let q = db.selectFrom('bottle_code_reservations as r')
+    .leftJoin('samples as s', (j) => j.onRef('s.crew_id', '=', 'r.crew_id').onRef('s.bottle_code_norm', '=', 'r.code_norm'))
+    .select('r.code_norm').where('r.crew_id', '=', crewId).where('r.user_id', '=', userId).where('s.id', 'is', null);
+  if (deviceKey !== undefined) q = q.where('r.device_key', '=', deviceKey);
+  return (await q.orderBy('r.reserved_at').orderBy('r.code_norm').execute()).map((r) => r.code_norm);
+}

@@ -1,6 +1,6 @@
 import type { Kysely, Transaction } from 'kysely';
 import type { Database, SampleState } from '../db/database';
-import { canReadCrew } from '../auth/permissions';
+import { canCreateMachine, canReadCrew } from '../auth/permissions';
 import { canActorEdit, getMachine } from '../machines/machines.service';
 import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type FieldErrors, type ServiceResult } from '../machines/service-result';
 import { explainAbsurdOdometer, toOilChange, type OilChange } from '../oil-changes/oil-changes';
@@ -12,7 +12,7 @@ import { findNewOilBottles } from '../new-oil/new-oil.service';
 import { drainCardSchema, SAMPLE_STATES, shipSchema, toSample, type Sample } from './samples';
 import {
   countSamplesByState, findSampleByBottleCode, findSampleByClientKey, findSampleEvents, findSampleOfCrew, findSamplesOfCrew,
-  findSamplesOfMachine,
+  findSamplesOfMachine, findUnusedReservedCodes, reserveBottleCode,
 } from './samples.repository';
 
 type Db = Kysely<Database> | Transaction<Database>;
@@ -48,13 +48,40 @@ export function pickOilChangeOfSample(changesOldestFirst: readonly OilChange[], 
   return null;
 }
 
-/** A fresh Sumpwise bottle code not yet used in the crew (normal form). */
-export async function issueBottleCode(db: Db, crewId: string): Promise<string> {
+/**
+ * A fresh Sumpwise bottle code (normal form), reserved for the actor so it is never issued again, to this
+ * device or any other. The online "issue a code" button uses the device key 'online'.
+ */
+export async function issueBottleCode(db: Db, actor: Actor, deviceKey = 'online'): Promise<string> {
   for (let attempt = 0; attempt < 20; attempt++) {
     const code = generateIssuedCode();
-    if (!(await findSampleByBottleCode(db, crewId, code))) return code;
+    if (await reserveBottleCode(db, { crewId: actor.membership.crewId, userId: actor.userId, deviceKey, code })) return code;
   }
   throw new Error('Could not find an unused bottle code.');
+}
+
+/** Codes one device holds for use without a network. */
+export const RESERVED_BLOCK_SIZE = 10;
+/** Unused reserved codes one rider may hold in a crew over all devices (five phones' worth). */
+export const RESERVED_PER_RIDER = 5 * RESERVED_BLOCK_SIZE;
+
+/**
+ * Tops up a device's block of reserved bottle codes to RESERVED_BLOCK_SIZE and answers the whole block
+ * (codes already handed out and still unused come back, so a device that lost its copy gets them again).
+ */
+export async function reserveBottleCodes(db: Kysely<Database>, actor: Actor, deviceKey: string): Promise<ServiceResult<{ codes: string[] }>> {
+  if (!canCreateMachine(actor.membership)) return refuse(403, 'forbidden', 'Your role in this crew does not register samples.');
+  const { crewId } = actor.membership;
+  const held = await findUnusedReservedCodes(db, crewId, actor.userId, deviceKey);
+  const missing = RESERVED_BLOCK_SIZE - held.length;
+  if (missing > 0) {
+    const all = await findUnusedReservedCodes(db, crewId, actor.userId);
+    if (all.length + missing > RESERVED_PER_RIDER) {
+      return refuse(409, 'too_many_reserved', `You already hold ${all.length} unused bottle codes on other devices; use those first.`);
+    }
+    for (let i = 0; i < missing; i++) held.push(await issueBottleCode(db, actor, deviceKey));
+  }
+  return succeed({ codes: held });
 }
 
 export type DrainCardOutcome = { sample: Sample; repeated: boolean };
@@ -201,4 +228,12 @@ export async function listSamplesByState(db: Kysely<Database>, actor: Actor, sta
 /** A machine's samples, newest first. */
 export async function listSamplesOfMachine(db: Kysely<Database>, actor: Actor, machineId: string): Promise<Sample[]> {
   return (await findSamplesOfMachine(db, actor.membership.crewId, machineId)).map(toSample);
+}
+
+/** The id of the crew's sample holding a bottle code (any spelling of it), or null: what a tag issued offline opens. */
+export async function findSampleIdByBottleCode(db: Kysely<Database>, actor: Actor, code: string): Promise<string | null> {
+  if (!canReadCrew(actor.membership)) return null;
+  const norm = normaliseBottleCode(code);
+  if (!/^[A-Z0-9]{3,32}$/.test(norm)) return null;
+  return (await findSampleByBottleCode(db, actor.membership.crewId, norm))?.id ?? null;
 }

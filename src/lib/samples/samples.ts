@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import type { SampleRow, SampleState } from '../db/database';
 import { optionalNumber, pastDay, requiredNumber, text } from '../machines/form-values';
+import { clientKeySchema } from '../offline/client-key';
 
 export const SAMPLE_STATES: readonly SampleState[] = ['drawn', 'shipped', 'results_in', 'reviewed'];
 export const STATE_LABELS: Record<SampleState, string> = {
@@ -52,7 +53,7 @@ export const drainCardSchema = z.object({
   saeGrade: text(20, 'grade'),
   oilProduct: text(120, 'oil product'),
   drawMethod: z.enum(DRAW_METHODS, { error: 'Choose how the sample was drawn.' }).default('midstream'),
-  clientKey: z.preprocess((v) => (v === '' ? undefined : v), z.string().regex(/^[A-Za-z0-9_-]{8,64}$/, 'Not a valid card key.').optional()),
+  clientKey: clientKeySchema,
 });
 export type DrainCardInput = z.infer<typeof drainCardSchema>;
 

@@ -84,6 +84,9 @@ export async function addWearMeasurement(db: Kysely<Database>, actor: Actor, par
   const parsed = measurementInputSchema.safeParse(input);
   if (!parsed.success) return refuseInvalid(parsed.error);
   const d = parsed.data;
+  // A resend of a queued measurement (same device key) answers the first one and writes nothing.
+  const again = d.clientKey ? await findMeasurementByClientKey(db, partId, d.clientKey) : undefined;
+  if (again) return succeed(toWearMeasurement(again));
   const invalid = (field: string, message: string) => refuse(400, 'invalid_input', 'Some fields need attention.', { [field]: message });
   const valuesMm = (d.pieces.length ? d.pieces : d.summary !== undefined ? [d.summary] : []).map((v) => toMillimetres(v, d.unit));
   const field = d.pieces.length ? 'pieces' : 'summary';
@@ -104,7 +107,16 @@ export async function addWearMeasurement(db: Kysely<Database>, actor: Actor, par
   const summary = part.limitDirection === 'min' ? Math.min(...valuesMm) : Math.max(...valuesMm);
   const row = await db.insertInto('wear_measurements').values({
     wear_part_id: partId, measured_on: d.measuredOn, odometer, pieces_mm: JSON.stringify(d.pieces.length ? valuesMm : []),
-    summary_mm: summary, note: d.note, created_by: actor.userId,
-  }).returningAll().executeTakeFirstOrThrow();
-  return succeed(toWearMeasurement(row));
+    summary_mm: summary, note: d.note, created_by: actor.userId, client_key: d.clientKey ?? null,
+  }).onConflict((oc) => oc.columns(['wear_part_id', 'client_key']).where('client_key', 'is not', null).doNothing())
+    .returningAll().executeTakeFirst();
+  // No row: a racing send of the same measurement won; answer that one.
+  const written = row ?? (d.clientKey ? await findMeasurementByClientKey(db, partId, d.clientKey) : undefined);
+  if (!written) throw new Error('A measurement was neither written nor found by its key.');
+  return succeed(toWearMeasurement(written));
+}
+
+/** The measurement a device's key already created on this part, or undefined (the part is already checked to be the crew's). */
+function findMeasurementByClientKey(db: Kysely<Database>, partId: string, clientKey: string) {
+  return db.selectFrom('wear_measurements').selectAll().where('wear_part_id', '=', partId).where('client_key', '=', clientKey).executeTakeFirst();
 }

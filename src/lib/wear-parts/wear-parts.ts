@@ -2,6 +2,7 @@ import { z } from 'zod';
 import type { WearMeasurementRow, WearPartRow } from '../db/database';
 import { optionalNumber, pastDay, requiredNumber, text } from '../machines/form-values';
 import type { LengthUnit } from '../units/units';
+import { clientKeySchema } from '../offline/client-key';
 
 /**
  * The smallest step a workshop micrometer reads: 0.001 in or 0.01 mm (common practice, no published
@@ -81,4 +82,5 @@ export const measurementInputSchema = z.object({
   ),
   summary: optionalNumber('measurement'),
   note: text(500, 'note'),
+  clientKey: clientKeySchema,
 });

@@ -53,7 +53,7 @@ describe('drain cards', () => {
 
   test('a Sumpwise-issued code passes its check; a mistyped one is refused and writes nothing', async () => {
     const { rider, machineId } = await setup();
-    const code = await issueBottleCode(db, rider.membership.crewId);
+    const code = await issueBottleCode(db, rider);
     const ok = await registerDrainCard(db, rider, machineId, card({ bottleCode: `${code.slice(0, 3)}-${code.slice(3)}`, codeSource: 'issued' }));
     expect(ok.ok).toBe(true);
     const data = 'K7MQ4X';

@@ -4,6 +4,7 @@ import { requireApiCrew } from '../../../lib/auth/guards';
 import { getDb } from '../../../lib/db';
 import type { SampleState } from '../../../lib/db/database';
 import { jsonError, jsonOk, parseJsonBody } from '../../../lib/http/json';
+import { refuseQueuedWriteOfOtherCrew } from '../../../lib/http/queued-write';
 import { actorFrom, refusalJson } from '../../../lib/machines/page-context';
 import { SAMPLE_STATES } from '../../../lib/samples/samples';
 import { listSamplesByState, registerDrainCard } from '../../../lib/samples/samples.service';
@@ -23,6 +24,8 @@ const bodySchema = z.looseObject({ machineId: z.string().min(1, 'Say which machi
 export const POST: APIRoute = async ({ request, locals }) => {
   const g = requireApiCrew(locals);
   if (g instanceof Response) return g;
+  const otherCrew = refuseQueuedWriteOfOtherCrew(request, g.crew, locals.crews);
+  if (otherCrew) return otherCrew;
   const body = await parseJsonBody(request, bodySchema);
   if (!body.ok) return body.response;
   const { machineId, ...card } = body.data;

@@ -1,10 +1,14 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
 import { requireApiCrew } from '../../../../lib/auth/guards';
+import { getConfig } from '../../../../lib/config';
 import { getDb } from '../../../../lib/db';
-import { jsonOk, parseJsonBody } from '../../../../lib/http/json';
+import { jsonError, jsonOk, parseJsonBody } from '../../../../lib/http/json';
+import { refuseQueuedWriteOfOtherCrew } from '../../../../lib/http/queued-write';
 import { actorFrom, refusalJson } from '../../../../lib/machines/page-context';
+import { readOilChangeUpload } from '../../../../lib/oil-changes/oil-change-upload';
 import { createOilChange, listOilChanges } from '../../../../lib/oil-changes/oil-changes.service';
+import { PhotoStorageError } from '../../../../lib/photos/photos.storage';
 
 /** GET the machine's oil changes, newest first, with the distance since the previous one. */
 export const GET: APIRoute = async ({ params, locals }) => {
@@ -14,12 +18,36 @@ export const GET: APIRoute = async ({ params, locals }) => {
   return r.ok ? jsonOk({ oilChanges: r.value.map((c) => ({ ...c, photos: c.photos.map((p) => ({ id: p.id, url: `/api/photos/${p.id}` })) })) }) : refusalJson(r);
 };
 
-/** POST an oil change (JSON; photoIds from POST /api/photos). */
+/**
+ * POST an oil change: JSON (photoIds from POST /api/photos), or multipart/form-data with the photos in
+ * `photos` (a write queued offline: the oil change and its photos in one transaction). A resend with the
+ * same clientKey answers the first oil change with 200.
+ */
 export const POST: APIRoute = async ({ params, request, locals }) => {
   const g = requireApiCrew(locals);
   if (g instanceof Response) return g;
-  const body = await parseJsonBody(request, z.looseObject({}));
-  if (!body.ok) return body.response;
-  const r = await createOilChange(getDb(), actorFrom(g), params.id ?? '', body.data);
-  return r.ok ? jsonOk({ oilChange: r.value }, 201) : refusalJson(r);
+  const otherCrew = refuseQueuedWriteOfOtherCrew(request, g.crew, locals.crews);
+  if (otherCrew) return otherCrew;
+  let input: unknown;
+  let photos: Parameters<typeof createOilChange>[4] = {};
+  if (/^multipart\/form-data\b/i.test(request.headers.get('content-type') ?? '')) {
+    const upload = await readOilChangeUpload(request);
+    if (!upload.ok) return jsonError(upload.status, upload.status === 413 ? 'too_large' : 'invalid_input', upload.message, { photos: upload.message });
+    input = upload.input;
+    photos = { newPhotos: upload.photos, uploadDir: getConfig().UPLOAD_DIR };
+  } else {
+    const body = await parseJsonBody(request, z.looseObject({}));
+    if (!body.ok) return body.response;
+    input = body.data;
+  }
+  try {
+    const r = await createOilChange(getDb(), actorFrom(g), params.id ?? '', input, photos);
+    if (!r.ok) return refusalJson(r);
+    const { repeated, ...oilChange } = r.value;
+    return jsonOk({ oilChange, repeated }, repeated ? 200 : 201);
+  } catch (e) {
+    if (!(e instanceof PhotoStorageError)) throw e;
+    console.error(`[oil-change] photos not stored: ${e.message}`);
+    return jsonError(503, 'storage_unavailable', 'Nothing was saved: photos cannot be stored right now. It will be tried again.', {}, { 'retry-after': '60' });
+  }
 };

@@ -1,0 +1,78 @@
+import { describe, expect, test } from 'vitest';
+import { PNG } from 'pngjs';
+import { refuseQueuedWriteOfOtherCrew, QUEUED_CREW_HEADER } from '~/lib/http/queued-write';
+import { OIL_CHANGE_UPLOAD_MAX_BYTES, readOilChangeUpload } from '~/lib/oil-changes/oil-change-upload';
+
+const A = { crewId: 'crew-a', crewName: 'Valley School', role: 'rider' as const };
+const B = { crewId: 'crew-b', crewName: 'Own crew', role: 'lead' as const };
+
+function png(): Uint8Array<ArrayBuffer> {
+  const p = new PNG({ width: 8, height: 6 });
+  p.data.fill(200);
+  return new Uint8Array(PNG.sync.write(p));
+}
+
+describe('a queued write lands only in the crew it was written in', () => {
+  test.each([
+    ['no header (a plain request)', null, A, null],
+    ['the current crew', 'crew-a', A, null],
+    ['another crew of the rider', 'crew-b', A, 'other_crew'],
+    ['a crew the rider left (or a forged id)', 'crew-z', A, 'not_a_member'],
+    ['a 100 KB forged header', 'x'.repeat(100_000), A, 'not_a_member'],
+  ])('%s', async (_name, header, crew, code) => {
+    const req = new Request('http://local/api/samples', { method: 'POST', headers: header === null ? {} : { [QUEUED_CREW_HEADER]: header } });
+    const res = refuseQueuedWriteOfOtherCrew(req, crew, [A, B]);
+    if (code === null) expect(res).toBeNull();
+    else {
+      expect(res!.status).toBe(409);
+      const body = (await res!.json()) as { error: { code: string; message: string } };
+      expect(body.error.code).toBe(code);
+      expect(body.error.message.length).toBeGreaterThan(20);
+      expect(body.error.message).not.toContain('x'.repeat(50));
+    }
+  });
+});
+
+describe('an oil change posted with its photos', () => {
+  test('fields and checked photos are read', async () => {
+    const form = new FormData();
+    form.append('changedOn', '2026-12-01');
+    form.append('photoIds', 'a');
+    form.append('photoIds', 'b');
+    form.append('photos', new Blob([png()], { type: 'image/png' }), 'plug.png');
+    const r = await readOilChangeUpload(new Request('http://local/', { method: 'POST', body: form }));
+    if (!r.ok) throw new Error(r.message);
+    expect(r.input).toMatchObject({ changedOn: '2026-12-01', photoIds: ['a', 'b'] });
+    expect(r.photos).toHaveLength(1);
+    expect(r.photos[0]!.contentType).toBe('image/png');
+  });
+
+  test('a renamed text file is refused as not an image', async () => {
+    const form = new FormData();
+    form.append('photos', new Blob(['not a picture'], { type: 'image/png' }), 'fake.png');
+    const r = await readOilChangeUpload(new Request('http://local/', { method: 'POST', body: form }));
+    expect(r).toMatchObject({ ok: false, status: 415 });
+  });
+
+  test('a chunked body past the cap is cut off, not buffered whole', async () => {
+    let sent = 0;
+    const chunk = new Uint8Array(1024 * 1024);
+    const body = new ReadableStream<Uint8Array>({
+      pull(controller) {
+        sent += chunk.length;
+        if (sent > OIL_CHANGE_UPLOAD_MAX_BYTES + 8 * chunk.length) controller.close();
+        else controller.enqueue(chunk);
+      },
+    });
+    const r = await readOilChangeUpload(new Request('http://local/', { method: 'POST', body, headers: { 'content-type': 'multipart/form-data; boundary=x' }, duplex: 'half' } as RequestInit));
+    expect(r).toMatchObject({ ok: false, status: 413 });
+    expect(sent).toBeLessThan(OIL_CHANGE_UPLOAD_MAX_BYTES + 4 * chunk.length);
+  });
+
+  test('more than five photos are refused', async () => {
+    const form = new FormData();
+    for (let i = 0; i < 6; i++) form.append('photos', new Blob([png()], { type: 'image/png' }), `p${i}.png`);
+    const r = await readOilChangeUpload(new Request('http://local/', { method: 'POST', body: form }));
+    expect(r).toMatchObject({ ok: false, status: 400, message: 'Send at most 5 photos at once.' });
+  });
+});
