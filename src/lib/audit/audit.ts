@@ -1,4 +1,4 @@
-/** Security events kept in the audit log. */
+/** Security events, and changes to what the analysis trusts (a machine's baseline), kept in the audit log. */
 export const AUDIT_KINDS = [
   'sign_in',
   'sign_in_failed',
@@ -14,6 +14,8 @@ export const AUDIT_KINDS = [
   'invitation_sent',
   'invitation_revoked',
   'invitation_accepted',
+  'baseline_excluded',
+  'baseline_restored',
 ] as const;
 export type AuditKind = (typeof AUDIT_KINDS)[number];
 
@@ -54,4 +56,6 @@ export const AUDIT_LABELS: Record<AuditKind, string> = {
   invitation_sent: 'Invitation sent',
   invitation_revoked: 'Invitation withdrawn',
   invitation_accepted: 'Invitation accepted',
+  baseline_excluded: 'Sample taken out of the baseline',
+  baseline_restored: 'Sample put back in the baseline',
 };
