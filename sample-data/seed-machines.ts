@@ -118,8 +118,9 @@ export const DEMO_MACHINES: readonly DemoMachine[] = [
     key: 'wren', name: 'Wren', year: 2016, layout: 'twin', cc: 898, cooling: 'liquid', capacityL: 3.4, meter: 'mi',
     grades: [{ grade: '10W-40', minC: -20, maxC: 40 }], maxInterval: 6_000, maxIntervalDays: 365,
     notes: 'Weekend tourer. Oil changed every spring and autumn.', codes: 'issued',
-    changes: history('2024-12-06', 12_900, [[140, 2_100], [150, 2_000], [165, 1_980], [140, 2_120], [130, 2_000]],
-      { grade: '10W-40', product: 'Blackmere Twin Road 4T', filter: true }, { 2: { work: ['Clutch cover off: friction plates measured'] } }),
+    // Eight oil changes on one oil: enough in-control samples for a ready baseline and three steady ones after it.
+    changes: history('2023-04-10', 6_900, [[202, 2_000], [202, 2_000], [202, 2_000], [140, 2_100], [150, 2_000], [165, 1_980], [140, 2_120], [130, 2_000]],
+      { grade: '10W-40', product: 'Blackmere Twin Road 4T', filter: true }, { 5: { work: ['Clutch cover off: friction plates measured'] } }),
     wearParts: [{
       // The check case: new 0.115–0.121 in, limit 0.100 in, 0.110 in at about 17,000 mi
       // (common practice for that engine, no published source).

@@ -220,7 +220,10 @@ export function decideIntervalCall(input: {
     } else if (!confirmed) {
       reasons.push('All steady, but no sample has been drawn at the shortened interval yet to confirm it: hold.');
     } else if (lastStretch && lastStretch.nextIntervalDistance !== null && sample.distanceOnOil < 0.9 * lastStretch.nextIntervalDistance) {
-      reasons.push('All steady; the last stretch has not been ridden yet, so hold it until a sample at the longer interval confirms it.');
+      // The stretch stands, but it is not stretched again until a sample at the longer interval confirms it.
+      call = 'stretch';
+      next = Math.min(ceiling ?? Infinity, lastStretch.nextIntervalDistance);
+      reasons.push(`All steady: the stretch to about ${Math.round(next)} ${unit} stands. It stretches no further until a sample at that interval confirms it.`);
     } else if (stretched !== null && r !== null && stretched > r) {
       call = 'stretch';
       next = stretched;

@@ -84,8 +84,8 @@ export const CLIMBING_TREND = {
     'least minPoints). It needs more than lab scatter: the slope must stand out from the scatter around the line ' +
     '(one-sided t test at watchAlpha), the fitted rise across the window must be at least watchRiseFraction of the ' +
     'fitted start and more than twice the lab scatter at that level, and the newest reading must not have fallen. Act ' +
-    'when the level has doubled (actRiseFraction) and the slope test passes at actAlpha. A reading that already fired ' +
-    'the jump rule does not also fire this one.',
+    'when the level has doubled (actRiseFraction) and the slope test passes at actAlpha. One jump does not fire both ' +
+    'rules: when the reading already fired the jump rule, the earlier points must be climbing on their own.',
   source: "Sumpwise rule (common practice, no published source); slope by ordinary least squares (checked against NIST StRD Norris), Student's t test of the slope.",
   params: {
     window: 6,
@@ -270,7 +270,8 @@ export const INTERVAL_CALL = {
     'the same interval. Stretch by at most stretchFactor only on stretchSteadySamples steady samples in a row, each ' +
     'judged on a ready iron and aluminium band with viscosity, fuel (or flash point) and water reported, with TBN not ' +
     'below tbnMinFraction of new and TAN not up by tanMaxRise when reported, and never right after a shorten until a ' +
-    'sample at the shortened interval confirms it. Never beyond the manufacturer\'s longest interval; with none on ' +
+    'sample at the shortened interval confirms it; a stretch stands, but stretches no further, until a sample at the ' +
+    'longer interval confirms it. Never beyond the manufacturer\'s longest interval; with none on ' +
     'file, never beyond the longest interval this machine has run. "Next sample by" dates count from the later of the ' +
     'draw and the day the results arrived.',
   source: 'Sumpwise rule (common practice, no published source).',

@@ -245,7 +245,7 @@ export function findClimbingTrends(ctx: RuleContext): Finding[] {
   const findings: Finding[] = [];
   const jumped = new Set(ctx.earlier.filter((f) => f.ruleId === 'baseline-jump').map((f) => f.measurands[0]));
   for (const code of Object.keys(ctx.sample.readings) as MeasurandCode[]) {
-    if (!(p.groups as readonly string[]).includes(getMeasurand(code).group) || jumped.has(code)) continue;
+    if (!(p.groups as readonly string[]).includes(getMeasurand(code).group)) continue;
     if (code === 'B' && ctx.machine.cooling !== 'liquid') continue;
     const basis = findJudgeBasis(code, ctx.sample);
     const current = readJudgedValue(ctx.sample, code, basis, ctx.machine, true);
@@ -265,6 +265,16 @@ export function findClimbingTrends(ctx: RuleContext): Finding[] {
     const xLast = ctx.sample.odometer;
     if (!(xLast > xFirst)) continue;
     const fit = computeTrendFit(points);
+    // One jump must not fire both rules: when this reading already fired the jump rule, the climb has to be
+    // there without it (the earlier points rising on their own), else the jump alone made the slope.
+    if (jumped.has(code)) {
+      const before = points.slice(0, -1);
+      if (before.length < 3) continue;
+      const earlier = computeTrendFit(before);
+      const earlierStart = earlier.intercept + earlier.slope * before[0]![0];
+      const earlierRise = earlier.slope * (before[before.length - 1]![0] - before[0]![0]);
+      if (!(earlierRise >= p.watchRiseFraction * Math.max(earlierStart, 0)) || !(earlierRise > 0)) continue;
+    }
     const start = fit.intercept + fit.slope * xFirst;
     const rise = fit.slope * (xLast - xFirst);
     const df = points.length - 2;
