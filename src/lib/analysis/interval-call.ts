@@ -159,7 +159,8 @@ export function decideIntervalCall(input: {
   const r = regular.value;
   // A hold keeps the regular interval as it is (never rounded down); shorter intervals round down to `step`.
   const hold = r === null ? null : ceiling === null ? r : Math.min(ceiling, r);
-  const shortened = (factor: number) => (r === null ? null : Math.max(Math.min(step, r), roundDownTo(r * factor, step)));
+  const capped = (d: number) => (ceiling === null ? d : Math.min(ceiling, d));
+  const shortened = (factor: number) => (r === null ? null : capped(Math.max(Math.min(step, r), roundDownTo(r * factor, step))));
 
   let call: IntervalCall['call'];
   let next: number | null;
@@ -173,7 +174,7 @@ export function decideIntervalCall(input: {
   if (causes.length > 0 && otherActs.length === 0) {
     call = 'fix-first';
     next = hold;
-    dueAfter = r === null ? null : Math.max(Math.min(step, r), roundDownTo(r * p.resampleFraction, step));
+    dueAfter = r === null ? null : capped(Math.max(Math.min(step, r), roundDownTo(r * p.resampleFraction, step)));
     urgentDays = p.resampleDays;
     reasons.push(
       'The oil is telling you about a cause, not about its own life: fix the cause first, keep the interval as it is, and take another sample soon to check the fix.',
@@ -182,7 +183,7 @@ export function decideIntervalCall(input: {
   } else if (acts.length > 0) {
     call = 'shorten';
     next = shortened(p.actFactor);
-    dueAfter = r === null ? null : Math.max(Math.min(step, r), roundDownTo(r * p.resampleFraction, step));
+    dueAfter = r === null ? null : capped(Math.max(Math.min(step, r), roundDownTo(r * p.resampleFraction, step)));
     urgentDays = p.resampleDays;
     reasons.push(
       `${acts.length} act finding${acts.length > 1 ? 's' : ''}: shorten the interval to about ${Math.round(p.actFactor * 100)} % and take another sample soon to see whether it repeats.`,

@@ -81,12 +81,13 @@ export const CLIMBING_TREND = {
   description:
     'A wear metal or contaminant that keeps rising, on the same basis as its band (rates per distance for wear metals ' +
     'and silicon), fitted by least squares against the odometer over the last `window` samples (this one included, at ' +
-    'least minPoints). It needs more than lab scatter: the slope must stand out from the scatter around the line ' +
-    '(one-sided t test at watchAlpha), the fitted rise across the window must be at least watchRiseFraction of the ' +
-    'fitted start and more than twice the lab scatter at that level, and the newest reading must not have fallen. Act ' +
+    'least minPoints). It needs more than lab scatter: the slope must stand out from what the lab alone scatters at ' +
+    'the earlier level (σ = √(0.5² + (scatterRelative · level)²) ppm; one-sided z test of the slope at watchAlpha), the ' +
+    'fitted rise across the window must be at least watchRiseFraction of the earlier level (the mean of the points ' +
+    'before this one) and more than twice the lab scatter there, and the newest reading must not have fallen. Act ' +
     'when the level has doubled (actRiseFraction) and the slope test passes at actAlpha. One jump does not fire both ' +
     'rules: when the reading already fired the jump rule, the earlier points must be climbing on their own.',
-  source: "Sumpwise rule (common practice, no published source); slope by ordinary least squares (checked against NIST StRD Norris), Student's t test of the slope.",
+  source: 'Sumpwise rule (common practice, no published source); slope by ordinary least squares (checked against NIST StRD Norris), tested against the lab scatter the simulation assumes (15–20 %).',
   params: {
     window: 6,
     minPoints: 4,
@@ -94,6 +95,7 @@ export const CLIMBING_TREND = {
     actAlpha: 0.001,
     watchRiseFraction: 0.5,
     actRiseFraction: 1.0,
+    scatterRelative: 0.2,
     groups: ['wear', 'contaminant'],
   },
 } as const;

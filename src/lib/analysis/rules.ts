@@ -17,9 +17,11 @@ import {
   FLASH_POINT,
   FUEL_DILUTION,
   VISCOSITY_CHANGE,
+  LAB_SCATTER,
   isAdditiveSensitive,
   labScatterAt,
 } from './rule-definitions';
+import { probit } from 'simple-statistics';
 import { studentTQuantile } from './statistics';
 import type { Finding, FixedLimits, MachineProfile, SamplePoint } from './types';
 import { SAE_J300_GRADES, findGradeWindow } from './viscosity';
@@ -267,25 +269,42 @@ export function findClimbingTrends(ctx: RuleContext): Finding[] {
     const fit = computeTrendFit(points);
     // One jump must not fire both rules: when this reading already fired the jump rule, the climb has to be
     // there without it (the earlier points rising on their own), else the jump alone made the slope.
+    let jumpAlone = false;
     if (jumped.has(code)) {
       const before = points.slice(0, -1);
-      if (before.length < 3) continue;
-      const earlier = computeTrendFit(before);
-      const earlierStart = earlier.intercept + earlier.slope * before[0]![0];
-      const earlierRise = earlier.slope * (before[before.length - 1]![0] - before[0]![0]);
-      if (!(earlierRise >= p.watchRiseFraction * Math.max(earlierStart, 0)) || !(earlierRise > 0)) continue;
+      if (before.length < 3) jumpAlone = true;
+      else {
+        const earlier = computeTrendFit(before);
+        const earlierStart = earlier.intercept + earlier.slope * before[0]![0];
+        const earlierRise = earlier.slope * (before[before.length - 1]![0] - before[0]![0]);
+        jumpAlone = !(earlierRise > 0) || !(earlierRise >= p.watchRiseFraction * Math.max(earlierStart, 0));
+      }
     }
     const start = fit.intercept + fit.slope * xFirst;
     const rise = fit.slope * (xLast - xFirst);
-    const df = points.length - 2;
-    const stat = slopeStatistic(fit);
-    const base = Math.max(start, 0);
+    // The level before this reading (the mean of the earlier points): the rise and the scatter are judged
+    // against it, so a higher newest reading can only make a climb more likely, never less.
+    const base = Math.max(0, points.slice(0, -1).reduce((a, [, y]) => a + y, 0) / (points.length - 1));
     const per = findRateBasis(ctx.machine.distanceUnit);
-    // Twice the lab's scatter at the starting level, in the judged basis: less than that is noise.
-    const scatter = basis === 'rate' ? (labScatterAt((base * ctx.sample.distanceOnOil) / per) * per) / ctx.sample.distanceOnOil : labScatterAt(base);
-    if (stat <= studentTQuantile(1 - p.watchAlpha, df)) continue;
+    const inBasis = (ppmScatter: (ppm: number) => number) =>
+      basis === 'rate' ? (ppmScatter((base * ctx.sample.distanceOnOil) / per) * per) / ctx.sample.distanceOnOil : ppmScatter(base);
+    // The slope is tested against the lab's known scatter at the earlier level (not the scatter around this
+    // handful of points, which a single high reading inflates): z = slope · √Sxx / σ, one-sided.
+    const sigma = inBasis((ppm) => Math.hypot(LAB_SCATTER.absolutePpm, p.scatterRelative * ppm));
+    const xbar = points.reduce((a, [x]) => a + x, 0) / points.length;
+    const sxx = points.reduce((a, [x]) => a + (x - xbar) ** 2, 0);
+    const stat = sigma > 0 ? (fit.slope * Math.sqrt(sxx)) / sigma : fit.slope > 0 ? Infinity : 0;
+    // Twice the lab's scatter at the earlier level, in the judged basis: less than that is noise.
+    const scatter = inBasis(labScatterAt);
+    if (stat <= probit(1 - p.watchAlpha)) continue;
     if (rise < p.watchRiseFraction * base || rise <= 2 * scatter) continue;
-    const level = rise >= p.actRiseFraction * base && stat > studentTQuantile(1 - p.actAlpha, df) ? 'act' : 'watch';
+    const level = rise >= p.actRiseFraction * base && stat > probit(1 - p.actAlpha) ? 'act' : 'watch';
+    if (jumpAlone) {
+      // The jump finding speaks for it, at no lower a level than the slope alone would have earned.
+      const jump = ctx.earlier.find((f) => f.ruleId === 'baseline-jump' && f.measurands[0] === code);
+      if (jump && level === 'act') jump.level = 'act';
+      continue;
+    }
     const unit = basisWords(basis, ctx.machine);
     findings.push({
       ruleId: 'climbing-trend',
