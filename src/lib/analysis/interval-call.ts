@@ -46,8 +46,14 @@ export interface PreviousJudgement {
 }
 
 const DAY_MS = 86_400_000;
-/** Rules whose cause is not the oil: fix the cause, resample, interval unchanged. */
-const CAUSE_RULES = new Set(['coolant-markers', 'dirt']);
+/**
+ * Rules whose cause is not the oil (fix the cause, resample, interval unchanged), with the readings that cause
+ * explains: coolant brings its markers and water; dust brings silicon and the abrasive wear of aluminium and iron.
+ */
+const CAUSE_RULES = new Map<string, readonly MeasurandCode[]>([
+  ['coolant-markers', ['Na', 'K', 'B', 'GLYCOL', 'WATER']],
+  ['dirt', ['Si', 'Al', 'Fe']],
+]);
 
 function roundDownTo(value: number, step: number): number {
   return Math.floor(value / step) * step;
@@ -169,7 +175,7 @@ export function decideIntervalCall(input: {
 
   const acts = analysis.findings.filter((f) => f.level === 'act');
   const causes = analysis.findings.filter((f) => CAUSE_RULES.has(f.ruleId));
-  const causeCodes = new Set(causes.flatMap((f) => f.measurands));
+  const causeCodes = new Set(causes.flatMap((f) => [...f.measurands, ...(CAUSE_RULES.get(f.ruleId) ?? [])]));
   const otherActs = acts.filter((f) => !CAUSE_RULES.has(f.ruleId) && !f.measurands.every((c) => causeCodes.has(c)));
   if (causes.length > 0 && otherActs.length === 0) {
     call = 'fix-first';

@@ -190,7 +190,7 @@ export const BORON_AND_COOLANT = {
     'else the baseline or first samples of that oil product), so a borate oil is not read as coolant. Glycol present: ' +
     'act. Potassium alone at potassiumWatchPpm or more above the oil\'s own level: watch; with glycol or water at the ' +
     'water watch level: act. A marker is raised at its markerRisePpm above the oil\'s own level; two raised: watch; two ' +
-    'raised with one at twice its rise: act. Coolant in the oil is not the oil\'s fault: the call is fix-first. On air- ' +
+    'raised with one at twice its rise (or at the act edge of its band): act. Coolant in the oil is not the oil\'s fault: the call is fix-first. On air- ' +
     "and oil-cooled engines boron is never a coolant marker; a change from the oil's own level is an oil mix-up, " +
     'judged by the baseline band (watch at most).',
   source:
@@ -298,10 +298,10 @@ export const INTERVAL_CALL = {
 export const SIMULATED_RATES = {
   machines: 300,
   samplesPerMachine: 12,
-  stableAnyShortenPercent: 0,
-  stableAnyActPercent: 0,
-  ironDetectedPercent: 0,
-  aluminiumDetectedPercent: 0,
+  stableAnyShortenPercent: 1,
+  stableAnyActPercent: 1,
+  ironDetectedPercent: 98.3,
+  aluminiumDetectedPercent: 96,
 } as const;
 
 export type RuleDefinition =

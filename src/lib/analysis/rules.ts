@@ -93,10 +93,21 @@ function normaliseProduct(product: string | undefined): string {
   return (product ?? '').trim().toLowerCase().replace(/\s+/g, ' ');
 }
 
+// Each sample's product, normalised once: the baseline and trend rules compare it for every earlier sample.
+const PRODUCT_OF = new WeakMap<SamplePoint, string>();
+function productOf(s: SamplePoint): string {
+  let p = PRODUCT_OF.get(s);
+  if (p === undefined) {
+    p = normaliseProduct(s.oilProduct);
+    PRODUCT_OF.set(s, p);
+  }
+  return p;
+}
+
 /** True when two samples carry the same oil product (an unknown product matches anything). */
 export function isSameProduct(a: SamplePoint, b: SamplePoint): boolean {
-  const pa = normaliseProduct(a.oilProduct);
-  const pb = normaliseProduct(b.oilProduct);
+  const pa = productOf(a);
+  const pb = productOf(b);
   return !pa || !pb || pa === pb;
 }
 
@@ -132,6 +143,23 @@ export function readJudgedValue(
   return v === undefined ? undefined : toBasis(v, sample, basis, machine);
 }
 
+// Earlier samples' readings in a judged basis, computed once per sample: a replay reads each of them again for
+// every later sample's bands and trends. Keyed by sample, then measurand and basis (the machine never changes
+// within a replay; a different machine object starts a new entry).
+const JUDGED_OF = new WeakMap<SamplePoint, { machine: MachineProfile; values: Map<string, number | undefined> }>();
+function readEarlierValue(s: SamplePoint, code: MeasurandCode, basis: JudgeBasis, machine: MachineProfile): number | undefined {
+  let entry = JUDGED_OF.get(s);
+  if (!entry || entry.machine !== machine) {
+    entry = { machine, values: new Map() };
+    JUDGED_OF.set(s, entry);
+  }
+  const key = basis === 'rate' ? `r${code}` : code;
+  if (entry.values.has(key)) return entry.values.get(key);
+  const v = readJudgedValue(s, code, basis, machine, false);
+  entry.values.set(key, v);
+  return v;
+}
+
 /** True when an earlier sample may serve as a baseline for `code` of the sample being judged. */
 function isInControl(ctx: Pick<RuleContext, 'outOfBaseline' | 'sample'>, s: SamplePoint, code: MeasurandCode): boolean {
   if (s.baselineExcluded) return false;
@@ -164,7 +192,7 @@ export function buildBaselineBands(
     for (let i = ctx.history.length - 1; i >= 0 && values.length < p.window; i--) {
       const s = ctx.history[i]!;
       if (!isInControl(ctx, s, code)) continue;
-      const v = readJudgedValue(s, code, basis, ctx.machine, false);
+      const v = readEarlierValue(s, code, basis, ctx.machine);
       if (v === undefined || !Number.isFinite(v)) continue;
       values.unshift(v);
       ids.unshift(s.id);
@@ -256,7 +284,7 @@ export function findClimbingTrends(ctx: RuleContext): Finding[] {
     for (let i = ctx.history.length - 1; i >= 0 && points.length < p.window - 1; i--) {
       const s = ctx.history[i]!;
       if (!isTrendPoint(ctx, s, code) || !Number.isFinite(s.odometer)) continue;
-      const v = readJudgedValue(s, code, basis, ctx.machine, false);
+      const v = readEarlierValue(s, code, basis, ctx.machine);
       if (v !== undefined && Number.isFinite(v)) points.unshift([s.odometer, v]);
     }
     points.push([ctx.sample.odometer, current]);
@@ -266,11 +294,13 @@ export function findClimbingTrends(ctx: RuleContext): Finding[] {
     const xFirst = points[0]![0];
     const xLast = ctx.sample.odometer;
     if (!(xLast > xFirst)) continue;
-    const fit = computeTrendFit(points);
     // One jump must not fire both rules: when this reading already fired the jump rule, the climb has to be
-    // there without it (the earlier points rising on their own), else the jump alone made the slope.
+    // there without it (the earlier points rising on their own), else the jump alone made the slope. Then the
+    // slope is only read up to the band's edge (so a bigger jump can never read better than a smaller one),
+    // and speaks through the jump finding.
     let jumpAlone = false;
-    if (jumped.has(code)) {
+    const band = ctx.bands[code];
+    if (jumped.has(code) && band?.status === 'ready') {
       const before = points.slice(0, -1);
       if (before.length < 3) jumpAlone = true;
       else {
@@ -279,7 +309,9 @@ export function findClimbingTrends(ctx: RuleContext): Finding[] {
         const earlierRise = earlier.slope * (before[before.length - 1]![0] - before[0]![0]);
         jumpAlone = !(earlierRise > 0) || !(earlierRise >= p.watchRiseFraction * Math.max(earlierStart, 0));
       }
+      if (jumpAlone) points[points.length - 1] = [xLast, Math.min(current, band.watchAbove)];
     }
+    const fit = computeTrendFit(points);
     const start = fit.intercept + fit.slope * xFirst;
     const rise = fit.slope * (xLast - xFirst);
     // The level before this reading (the mean of the earlier points): the rise and the scatter are judged
@@ -554,7 +586,8 @@ export function findCoolantMarkers(ctx: RuleContext): Finding[] {
     if (code === 'K') kRise = rise;
     const step = p.markerRisePpm[code];
     if (rise >= step) raised.push(code);
-    if (rise >= 2 * step) high = true;
+    // Twice its rise, or at the act edge of the machine's own band: high.
+    if (rise >= 2 * step || (rise >= step && band?.status === 'ready' && v >= band.actFrom)) high = true;
   }
   const water = readFiringValue(ctx.sample, 'WATER');
   const wet = water !== undefined && water >= FIXED_LIMIT.params.watchFraction * ctx.limits.waterPercent;

@@ -64,14 +64,18 @@ export function studentTCdf(t: number, df: number): number {
   return t >= 0 ? 1 - tail : tail;
 }
 
-const QUANTILES = new Map<string, number>();
+const QUANTILES = new Map<number, Map<number, number>>();
 
 /** The t value below which a fraction `p` (0.5 < p < 1) of Student's t with `df` degrees of freedom lies. */
 export function studentTQuantile(p: number, df: number): number {
   if (!(p > 0.5 && p < 1)) throw new RangeError('Only upper quantiles (0.5 < p < 1) are needed here.');
   if (!(df >= 1)) throw new RangeError('A t quantile needs at least one degree of freedom.');
-  const key = `${p}:${df}`;
-  const known = QUANTILES.get(key);
+  let byDf = QUANTILES.get(p);
+  if (!byDf) {
+    byDf = new Map();
+    QUANTILES.set(p, byDf);
+  }
+  const known = byDf.get(df);
   if (known !== undefined) return known;
   let lo = 0;
   let hi = 1;
@@ -82,6 +86,6 @@ export function studentTQuantile(p: number, df: number): number {
     else hi = mid;
   }
   const q = (lo + hi) / 2;
-  QUANTILES.set(key, q);
+  byDf.set(df, q);
   return q;
 }
