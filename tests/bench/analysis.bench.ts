@@ -14,6 +14,8 @@ import {
   type MeasurandCode,
   type SamplePoint,
 } from '../../src/lib/analysis/index';
+// mulberry32, seeded, so every run measures the same invented history.
+import { makeRandom } from '../unit/analysis/simulated-machines';
 
 const SAMPLES = 500;
 const CODES: MeasurandCode[] = [
@@ -27,17 +29,6 @@ const TYPICAL: Record<string, number> = {
   KV40: 100, KV100: 14, VI: 145, SUS210: 75, FLASH: 220, FUEL: 0.6, WATER: 0.02, INSOL: 0.3,
 };
 
-// mulberry32: a small seeded generator so every run measures the same invented history.
-function makeRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function buildMachineHistory(): SamplePoint[] {
   const random = makeRandom(20240501);
