@@ -17,7 +17,8 @@ async function chartRows(page: Page, machineHref: string, code: string) {
   await page.goto(`${machineHref}?chart=${code}`);
   await page.locator('#wear-chart').scrollIntoViewIfNeeded();
   const table = page.locator(`[data-testid="wear-chart-table"] table[data-measurand="${code}"]`);
-  await table.waitFor({ state: 'visible', timeout: 15_000 });
+  // On a phone the tables sit folded under the chart: present, not shown.
+  await table.waitFor({ state: 'attached', timeout: 15_000 });
   return table.locator('tbody tr').evaluateAll((rows) =>
     rows.map((r) => ({
       href: r.querySelector('a')?.getAttribute('href') ?? '',
