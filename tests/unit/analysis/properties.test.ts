@@ -123,7 +123,7 @@ describe('properties (fast-check)', () => {
       ),
       { numRuns: 300 },
     );
-  });
+  }, 60_000);
 
   test("the interval call never exceeds the manufacturer's interval, in distance or in days", () => {
     fc.assert(
@@ -147,7 +147,7 @@ describe('properties (fast-check)', () => {
       }),
       { numRuns: 300 },
     );
-  });
+  }, 60_000);
 
   // Whole histories with varying intervals and slow labs, judged as production judges them.
   const historyArb = basesArb.chain((bases) =>
@@ -180,7 +180,7 @@ describe('properties (fast-check)', () => {
       }),
       { numRuns: 200 },
     );
-  });
+  }, 60_000);
 
   test('a hold never shortens the regular interval', () => {
     fc.assert(
@@ -192,7 +192,7 @@ describe('properties (fast-check)', () => {
       }),
       { numRuns: 200 },
     );
-  });
+  }, 60_000);
 
   test('"next sample by" is never before the results arrived (nor before the draw)', () => {
     fc.assert(
@@ -207,7 +207,7 @@ describe('properties (fast-check)', () => {
       }),
       { numRuns: 200 },
     );
-  });
+  }, 60_000);
 
   test('judgeHistory answers what replayHistory stores, sample by sample', () => {
     fc.assert(
@@ -221,5 +221,5 @@ describe('properties (fast-check)', () => {
       }),
       { numRuns: 50 },
     );
-  });
+  }, 60_000);
 });
