@@ -134,6 +134,11 @@ describe.each([
     await page.locator('#wear-chart').scrollIntoViewIfNeeded();
     await screenshot(page, `engine-${label}-chart-after-exclusion`);
     expect(await callOn(page, latest)).toBe('shorten');
+    // The sample page shows the band the rule used: four in-control samples of 20 ppm, act from about 43 ppm.
+    const feBand = await page.locator('[data-testid="readings-table"] tr[data-measurand="Fe"] [data-testid="reading-band"]').textContent();
+    expect(feBand).toMatch(/act from 4\d(\.\d+)?/);
+    expect(feBand).toMatch(/mean 20\b/);
+    expect(feBand).toContain('judged per distance');
     await screenshot(page, `engine-${label}-call-after-exclusion`);
     expect(errors).toEqual([]);
   });

@@ -120,3 +120,13 @@ export async function updateSampleBaseline(
     .where('id', '=', sampleId)
     .execute();
 }
+
+/** The baseline bands the rules used for a sample's readings (ready bands only), by measurand. */
+export async function listSampleBands(db: Db, sampleId: string) {
+  if (!isUuid(sampleId)) return [];
+  return db
+    .selectFrom('baseline_bands')
+    .select(['measurand', 'basis', 'n', 'mean', 'lower_edge', 'watch_above', 'act_from', 'to_reported'])
+    .where('sample_id', '=', sampleId)
+    .execute();
+}
