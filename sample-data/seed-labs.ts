@@ -7,7 +7,7 @@ import { findGradeWindow } from '../src/lib/analysis/viscosity';
 import type { Database } from '../src/lib/db/database';
 import type { LabReadings } from '../src/lib/import/lab-csv';
 import { formatLabCsv, LAB_CSV_LAYOUTS, LAB_NAMES, type LabCsvLayout, type LabReportRow } from '../src/lib/import/lab-csv-layouts';
-import { confirmLabImport, storeLabFile } from '../src/lib/lab-import/lab-import.service';
+import { confirmLabImport, recomputeMachineFindings, storeLabFile } from '../src/lib/lab-import/lab-import.service';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
@@ -175,6 +175,16 @@ export async function seedLabReports(db: Db, options: { crewIds: string[]; userI
       out.files += 1;
       out.samples += confirmed.value.samplesWritten;
       out.readings += confirmed.value.readingsWritten;
+      // The lab's results arrived about when it reported them (never later than today), not all on seed day:
+      // "next sample by" dates count from that day.
+      const arrived = slice.reduce((latest, r) => ((r.reported ?? r.drawnOn) > latest ? (r.reported ?? r.drawnOn) : latest), '');
+      const today = new Date().toISOString().slice(0, 10);
+      await db.updateTable('lab_imports').set({ confirmed_at: new Date(`${arrived < today ? arrived : today}T12:00:00Z`) }).where('id', '=', confirmed.value.importId).execute();
+    }
+    // Judge the crew's machines again now the arrival days are known (the same replay the import ran).
+    for (const machine of machines) {
+      await db.updateTable('machines').set({ judged_by: null }).where('id', '=', machine.id).execute();
+      await recomputeMachineFindings(db, machine.id, new Set());
     }
   }
   return out;

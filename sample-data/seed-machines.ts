@@ -118,8 +118,9 @@ export const DEMO_MACHINES: readonly DemoMachine[] = [
     key: 'wren', name: 'Wren', year: 2016, layout: 'twin', cc: 870, cooling: 'liquid', capacityL: 3.4, meter: 'mi',
     grades: [{ grade: '5W-40', minC: -25, maxC: 35 }, { grade: '15W-50', minC: -5, maxC: 50 }], maxInterval: 6_000, maxIntervalDays: 365,
     notes: 'Weekend tourer. Oil changed every spring and autumn.', codes: 'issued',
-    changes: history('2024-12-06', 12_900, [[140, 2_100], [150, 2_000], [165, 1_980], [140, 2_120], [130, 2_000]],
-      { grade: '5W-40', product: 'Larkspire Synthetic 4T', filter: true }, { 4: { work: ['Clutch springs measured with calipers during a clutch cable change'] } }),
+    // Eight oil changes on one oil: enough in-control samples for a ready baseline and three steady ones after it.
+    changes: history('2023-04-10', 6_900, [[202, 2_000], [202, 2_000], [202, 2_000], [140, 2_100], [150, 2_000], [165, 1_980], [140, 2_120], [130, 2_000]],
+      { grade: '5W-40', product: 'Larkspire Synthetic 4T', filter: true }, { 7: { work: ['Clutch springs measured with calipers during a clutch cable change'] } }),
     wearParts: [{
       // Invented for the demo: springs that shorten as they tire, measured once at the clutch cable change.
       name: 'Clutch spring free length', pieces: 5, unit: 'in', newMin: 1.690, newMax: 1.700, limit: 1.650, fittedAt: 4_800,

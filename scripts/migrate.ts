@@ -4,6 +4,7 @@ import { fileURLToPath } from 'node:url';
 import { createDb } from '../src/lib/db/db';
 import { assertMigrated, createMigrator } from '../src/lib/db/migrator';
 import { readConfig } from '../src/lib/config';
+import { recomputeStaleMachines } from '../src/lib/lab-import/lab-import.service';
 
 const folder = path.join(path.dirname(fileURLToPath(import.meta.url)), '..', 'migrations');
 const command = process.argv[2] ?? 'latest';
@@ -18,6 +19,8 @@ try {
   for (const r of result.results ?? []) console.log(`[migrate] ${r.direction} ${r.migrationName}: ${r.status}`);
   assertMigrated(result);
   if (!result.results?.length) console.log('[migrate] nothing to do');
+  // Stored findings and calls follow the engine: machines an older engine judged are judged again.
+  if (command === 'latest') await recomputeStaleMachines(db, console.log);
 } catch (error) {
   console.error(`[migrate] ${error instanceof Error ? error.message : String(error)}`);
   process.exitCode = 1;

@@ -4,6 +4,7 @@ import path from 'node:path';
 import pg from 'pg';
 import { createDb } from '../../src/lib/db/db';
 import { assertMigrated, createMigrator } from '../../src/lib/db/migrator';
+import { recomputeStaleMachines } from '../../src/lib/lab-import/lab-import.service';
 import { ROOT, capture, run } from './processes';
 
 /** Starts the project's own PostgreSQL and makes sure database `name` exists; returns its URL. */
@@ -46,6 +47,8 @@ export async function migrateToLatest(url: string, log = true): Promise<void> {
     const result = await createMigrator(db, path.join(ROOT, 'migrations')).migrateToLatest();
     if (log) for (const r of result.results ?? []) console.log(`[migrate] ${r.migrationName}: ${r.status}`);
     assertMigrated(result);
+    // Stored findings and calls follow the engine: machines an older engine judged are judged again.
+    await recomputeStaleMachines(db, log ? console.log : undefined);
   } finally {
     await db.destroy();
   }

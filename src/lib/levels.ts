@@ -1,4 +1,4 @@
-import type { Level } from './db/database';
+import type { IntervalCallKind, Level } from './db/database';
 
 /** How each level is shown: a word, a shape and a colour, so no level relies on colour alone. */
 export const LEVEL_DISPLAY: Record<Level, { word: string; shape: 'circle' | 'diamond' | 'octagon'; meaning: string }> = {
@@ -11,3 +11,14 @@ export const LEVEL_DISPLAY: Record<Level, { word: string; shape: 'circle' | 'dia
 export function levelRank(level: Level): number {
   return level === 'act' ? 2 : level === 'watch' ? 1 : 0;
 }
+
+/** The interval calls in the order screens list them. */
+export const CALL_KINDS: readonly IntervalCallKind[] = ['shorten', 'hold', 'stretch', 'fix-first'];
+
+/** How each interval call is named and explained, on every screen, mail and export. */
+export const CALL_DISPLAY: Record<IntervalCallKind, { word: string; meaning: string }> = {
+  shorten: { word: 'Shorten', meaning: 'Change the oil sooner than usual and take another sample soon.' },
+  hold: { word: 'Hold', meaning: 'Keep the usual oil change interval.' },
+  stretch: { word: 'Stretch', meaning: 'The oil can run a little longer next time, within the manufacturer’s longest interval.' },
+  'fix-first': { word: 'Fix first', meaning: 'The cause is not the oil: fix it, take another sample soon, interval unchanged.' },
+};

@@ -5,13 +5,17 @@
  */
 import { performance } from 'node:perf_hooks';
 import {
+  HISTORY_TAIL,
   analyseSample,
-  makeIntervalCall,
-  type Level,
+  decideIntervalCall,
+  replayHistory,
+  type PreviousJudgement,
   type MachineProfile,
   type MeasurandCode,
   type SamplePoint,
 } from '../../src/lib/analysis/index';
+// mulberry32, seeded, so every run measures the same invented history.
+import { makeRandom } from '../unit/analysis/simulated-machines';
 
 const SAMPLES = 500;
 const CODES: MeasurandCode[] = [
@@ -25,17 +29,6 @@ const TYPICAL: Record<string, number> = {
   KV40: 100, KV100: 14, VI: 145, SUS210: 75, FLASH: 220, FUEL: 0.6, WATER: 0.02, INSOL: 0.3,
 };
 
-// mulberry32: a small seeded generator so every run measures the same invented history.
-function makeRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function buildMachineHistory(): SamplePoint[] {
   const random = makeRandom(20240501);
@@ -74,25 +67,23 @@ const samples = buildMachineHistory();
 const history = samples.slice(0, -1);
 const sample = samples.at(-1)!;
 
+// The judgements of the earlier samples, as the replay carries them forward.
+const earlier = replayHistory({ machine, samples: history });
+const previous: PreviousJudgement[] = earlier.map((r, i) => ({
+  sampleId: r.sampleId, call: r.call.call, worst: r.analysis.worst, stretchReady: r.call.basis.stretchReady,
+  nextIntervalDistance: r.call.nextIntervalDistance, distanceOnOil: history[i]!.distanceOnOil,
+}));
+
+// One step of the replay: the newest sample's findings and call, given the judgements before it.
 function runLatest(): number {
   const analysis = analyseSample({ machine, history, sample });
-  const call = makeIntervalCall({ machine, history, sample, analysis });
+  const call = decideIntervalCall({ machine, history: history.slice(-HISTORY_TAIL), sample, analysis, previous: previous.slice(-HISTORY_TAIL) });
   return analysis.findings.length + call.reasons.length;
 }
 
-// Every sample analysed against the samples before it, as a wear chart flags each point; the levels already
-// found are passed on so the call does not analyse earlier samples again.
+// Every sample judged against the samples before it: what the lab import and the recompute run per machine.
 function runReplay(): number {
-  let findings = 0;
-  const worst: Level[] = [];
-  for (let i = 0; i < samples.length; i++) {
-    const h = samples.slice(0, i);
-    const analysis = analyseSample({ machine, history: h, sample: samples[i]! });
-    makeIntervalCall({ machine, history: h, sample: samples[i]!, analysis, previousWorst: worst });
-    worst.push(analysis.worst);
-    findings += analysis.findings.length;
-  }
-  return findings;
+  return replayHistory({ machine, samples }).reduce((n, r) => n + r.analysis.findings.length, 0);
 }
 
 for (let i = 0; i < 20; i++) runLatest();

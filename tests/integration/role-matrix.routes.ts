@@ -306,6 +306,11 @@ export const ROLE_MATRIX: MatrixRow[] = [
     json: { action: 'confirm' }, expect: { anonymous: 401, rider: 403, mechanic: 409, lead: 409, otherLead: 404 }, note: 'no results yet, so no call' },
   { route: '/api/reviews/[sampleId]/call', method: 'POST', path: async (ctx) => `/api/reviews/${await resultsSample(ctx)}/call`,
     form: { action: 'override', call: 'shorten', note: 'Matrix override' }, expect: { anonymous: 303, rider: 403, mechanic: 303, lead: 303, otherLead: 404 }, note: 'the sample page’s form' },
+  // Baseline choices: leads and mechanics take a sample out of its machine's baseline or put it back, with a reason.
+  { route: '/api/reviews/[sampleId]/baseline', method: 'POST', path: async (ctx) => `/api/reviews/${await resultsSample(ctx)}/baseline`,
+    json: { action: 'exclude', reason: 'Matrix: bottle drawn after a top-up' }, expect: { anonymous: 401, rider: 403, mechanic: 201, lead: 201, otherLead: 404 } },
+  { route: '/api/reviews/[sampleId]/baseline', method: 'POST', path: async (ctx) => `/api/reviews/${await resultsSample(ctx)}/baseline`,
+    form: { action: 'include', reason: 'Matrix: the draw was fine after all' }, expect: { anonymous: 303, rider: 403, mechanic: 303, lead: 303, otherLead: 404 }, note: 'the sample page’s form' },
 
   // The not-found page itself (rendered for unknown addresses and for other crews' records).
   { route: '/404', method: 'GET', path: '/404', expect: all(404) },

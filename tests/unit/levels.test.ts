@@ -1,5 +1,6 @@
 import { describe, expect, test } from 'vitest';
-import { LEVEL_DISPLAY, levelRank } from '../../src/lib/levels';
+import { CALL_DISPLAY, CALL_KINDS, LEVEL_DISPLAY, levelRank } from '../../src/lib/levels';
+import { CALLS } from '../../src/lib/analysis/interval-call';
 import { navFor } from '../../src/lib/navigation';
 
 describe('levels', () => {
@@ -15,6 +16,15 @@ describe('levels', () => {
     ['watch', 'act'],
   ] as const)('%s ranks below %s', (low, high) => {
     expect(levelRank(low)).toBeLessThan(levelRank(high));
+  });
+});
+
+describe('interval calls', () => {
+  test('every call the engine can make has its own word and meaning, fix-first included', () => {
+    expect([...CALL_KINDS]).toEqual([...CALLS]);
+    expect(CALL_KINDS).toContain('fix-first');
+    expect(new Set(CALL_KINDS.map((c) => CALL_DISPLAY[c].word)).size).toBe(CALL_KINDS.length);
+    expect(CALL_DISPLAY['fix-first'].meaning).toMatch(/interval unchanged/);
   });
 });
 

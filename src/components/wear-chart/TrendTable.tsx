@@ -37,12 +37,12 @@ export function TrendTable({ data }: { data: TrendResponse }) {
               <tr>
                 <th scope="col">Bottle</th><th scope="col">Date</th><th scope="col" className="num">Odometer</th>
                 <th scope="col" className="num">On oil</th><th scope="col">Grade</th><th scope="col" className="num">Value</th>
-                <th scope="col">Level</th><th scope="col">Baseline band</th><th scope="col">From baseline</th>
+                <th scope="col">Level</th><th scope="col">Baseline band</th><th scope="col">From baseline</th><th scope="col">In baseline</th>
               </tr>
             </thead>
             <tbody>
               {s.points.length === 0 && (
-                <tr><td colSpan={9}>No results for {s.name.toLowerCase()} yet.</td></tr>
+                <tr><td colSpan={10}>No results for {s.name.toLowerCase()} yet.</td></tr>
               )}
               {s.points.map((p) => (
                 <tr key={p.sampleId} data-level={p.level}>
@@ -55,6 +55,7 @@ export function TrendTable({ data }: { data: TrendResponse }) {
                   <td><LevelMark level={p.level} /></td>
                   <td>{formatBand(p)}</td>
                   <td>{formatFromBaseline(p)}</td>
+                  <td data-testid="in-baseline" data-in-baseline={String(p.inBaseline)}>{p.inBaseline ? 'Yes' : `No: ${p.baselineNote ?? 'kept out'}`}</td>
                 </tr>
               ))}
             </tbody>

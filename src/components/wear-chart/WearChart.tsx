@@ -198,6 +198,12 @@ function Legend({ data }: { data: TrendResponse }) {
           {l}
         </li>
       ))}
+      {data.series.some((s) => s.points.some((p) => !p.inBaseline)) && (
+        <li className="flex items-center gap-1">
+          <svg width="12" height="12" viewBox="0 0 20 20" aria-hidden="true"><circle cx="10" cy="10" r="6" fill="#ffffff" stroke="currentColor" strokeWidth="3" /></svg>
+          hollow: kept out of the baseline
+        </li>
+      )}
       {data.gradeChanges.length > 0 && <li>┆ a different oil grade poured</li>}
     </ul>
   );
@@ -221,8 +227,10 @@ function buildChart(data: TrendResponse): { data: { datasets: ChartDataset<'line
       pointStyle: spec.levels.map(pointStyleFor),
       pointRadius: spec.levels.map(pointRadiusFor),
       pointHoverRadius: spec.levels.map((l) => pointRadiusFor(l) + 2),
-      pointBackgroundColor: spec.levels.map((l) => LEVEL_COLOURS[l]),
+      // A sample kept out of the baseline is drawn hollow (its shape and border keep the level).
+      pointBackgroundColor: spec.levels.map((l, i) => (spec.excluded[i] ? '#ffffff' : LEVEL_COLOURS[l])),
       pointBorderColor: spec.levels.map((l) => (l === 'steady' ? spec.colour : LEVEL_COLOURS[l])),
+      pointBorderWidth: spec.excluded.map((x) => (x ? 3 : 1)),
     };
   });
   const lineIndexes = new Set(specs.flatMap((s, i) => (s.kind === 'line' ? [i] : [])));
@@ -256,6 +264,7 @@ function buildChart(data: TrendResponse): { data: { datasets: ChartDataset<'line
               `${s.name}: ${formatFigure(p.value)} ${s.unit}${s.basis === 'rate' ? ` (lab: ${formatReported(p)} ppm)` : p.qualifier ? ` (lab: ${formatReported(p)})` : ''} · ${p.level}`,
               `Odometer ${formatDistance(p.odometer, meter)} · on oil ${formatDistance(p.distanceOnOil, meter)} · ${p.grade ?? 'grade not recorded'}`,
               `Baseline ${formatBand(p)} · ${formatFromBaseline(p)}`,
+              ...(p.inBaseline ? [] : [`Kept out of the baseline: ${p.baselineNote ?? 'no reason given'}`]),
             ];
           },
         },

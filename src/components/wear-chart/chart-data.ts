@@ -17,6 +17,8 @@ export interface ChartDatasetSpec {
   data: XYPoint[];
   colour: string;
   levels: Level[];
+  /** True where the sample is kept out of the baseline (drawn hollow on the chart). */
+  excluded: boolean[];
 }
 
 /** The x of a point on the chosen axis. */
@@ -35,8 +37,8 @@ export function buildChartDatasets(data: TrendResponse, colours: readonly string
     const withBand = s.points.filter((p) => p.band !== null);
     const lower: XYPoint[] = withBand.map((p) => ({ x: xOf(p, data.x), y: p.band!.lower, point: p }));
     const upper: XYPoint[] = withBand.map((p) => ({ x: xOf(p, data.x), y: p.band!.upper, point: p }));
-    out.push({ kind: 'band-lower', code: s.code, label: `${s.code} baseline band (lower)`, data: lower, colour, levels: [] });
-    out.push({ kind: 'band-upper', code: s.code, label: `${s.code} baseline band`, data: upper, colour, levels: [] });
+    out.push({ kind: 'band-lower', code: s.code, label: `${s.code} baseline band (lower)`, data: lower, colour, levels: [], excluded: [] });
+    out.push({ kind: 'band-upper', code: s.code, label: `${s.code} baseline band`, data: upper, colour, levels: [], excluded: [] });
     out.push({
       kind: 'line',
       code: s.code,
@@ -44,6 +46,7 @@ export function buildChartDatasets(data: TrendResponse, colours: readonly string
       data: s.points.map((p) => ({ x: xOf(p, data.x), y: p.value, point: p })),
       colour,
       levels: s.points.map((p) => p.level),
+      excluded: s.points.map((p) => !p.inBaseline),
     });
   });
   return out;

@@ -12,19 +12,19 @@ export function formatReported(p: TrendPoint): string {
   return `${p.qualifier ?? ''}${formatFigure(p.reported)}`;
 }
 
-/** "+4.1 (2.3 spreads above)" or "building baseline". */
+/** "+4.1 (1.5 × the band's upper half-width above the mean)" or "baseline still building". */
 export function formatFromBaseline(p: TrendPoint): string {
   if (!p.fromBaseline || !p.band) return 'baseline still building';
   const d = p.fromBaseline.delta;
   const s = p.fromBaseline.spreads;
   const dir = d >= 0 ? 'above' : 'below';
-  return `${d >= 0 ? '+' : '−'}${formatFigure(Math.abs(d))} (${formatFigure(Math.abs(s))} sd ${dir} the mean)`;
+  return `${d >= 0 ? '+' : '−'}${formatFigure(Math.abs(d))} (${formatFigure(Math.abs(s))} × the band's half-width ${dir} the mean)`;
 }
 
-/** Baseline band as "lower–upper (mean m)". */
+/** Baseline band as the rule used it: "lower–upper (mean m, act from a, n samples)". */
 export function formatBand(p: TrendPoint): string {
   if (!p.band) return 'building';
-  return `${formatFigure(p.band.lower)}–${formatFigure(p.band.upper)} (mean ${formatFigure(p.band.mean)})`;
+  return `${formatFigure(p.band.lower)}–${formatFigure(p.band.upper)} (mean ${formatFigure(p.band.mean)}, act from ${formatFigure(p.band.actFrom)}, ${p.band.n} samples)`;
 }
 
 /** Whole distance with thousands separators, one decimal for hour meters. */

@@ -1,9 +1,8 @@
-/** analyseSample: every rule over one sample against the machine's own history. */
-import type { BaselineBand } from './baseline';
+/** analyseSample: every rule over one sample against the machine's own in-control history. */
 import { ELEMENT_CODES, getMeasurand, type MeasurandCode } from './measurands';
-import { ADDITIVE_MISMATCH, BASELINE_JUMP, CLIMBING_TREND, resolveFixedLimits } from './rule-definitions';
-import { FINDING_RULES, buildBaselineBands, readFiringValue, type RuleContext } from './rules';
-import type { AnalyseInput, Finding, Level } from './types';
+import { ADDITIVE_MISMATCH, BASELINE_JUMP, CLIMBING_TREND, CONDITION_TREND, FIXED_LIMIT, resolveFixedLimits } from './rule-definitions';
+import { FINDING_RULES, buildBaselineBands, formatFigure, readFiringValue, type MeasurandBand, type RuleContext } from './rules';
+import type { AnalyseInput, Finding, Level, SamplePoint } from './types';
 import { computeWearRate, type WearRate } from './wear-rate';
 
 export interface SampleAnalysis {
@@ -12,12 +11,14 @@ export interface SampleAnalysis {
   worst: Level;
   /** Level of every reading the sample carries: the worst finding naming it, else steady. */
   readingLevels: Partial<Record<MeasurandCode, Level>>;
-  /** 'building' while the machine has fewer accepted samples than the baseline needs. */
+  /** 'ready' when iron (or, without iron, every wear metal the sample carries) had a ready band. */
   baselineStatus: 'building' | 'ready';
-  /** Baseline bands (for the wear chart) of the wear metals and contaminants. */
-  bands: Partial<Record<MeasurandCode, BaselineBand>>;
+  /** The baseline bands the rules used (the wear chart draws these same bands). */
+  bands: Partial<Record<MeasurandCode, MeasurandBand>>;
   /** ppm per 1,000 mi/km (or per 100 h) of every wear metal, top-up corrected where volumes are known. */
   wearRates: Partial<Record<MeasurandCode, WearRate>>;
+  /** Plain remarks that are not findings (copper read as leaching, and the like). */
+  notes: string[];
   /** The usual cautions shown beside findings. */
   cautions: string[];
 }
@@ -35,22 +36,51 @@ export const ANALYSIS_CAUTIONS: readonly string[] = [
   'Hot oil burns: let the engine cool, wear gloves and eye protection, and take used oil to a collection point.',
 ];
 
-// The longest look-back any rule needs: the analysis never reads further back, so its cost does not grow
-// with the length of a machine's history.
-const TAIL = Math.max(BASELINE_JUMP.params.window, CLIMBING_TREND.params.window, ADDITIVE_MISMATCH.params.lookBack);
+// The longest look-back any rule needs, with room for samples kept out of the baseline: the analysis never
+// reads further back, so its cost does not grow with the length of a machine's history.
+export const HISTORY_TAIL = Math.max(3 * BASELINE_JUMP.params.window, CLIMBING_TREND.params.window, CONDITION_TREND.params.window, ADDITIVE_MISMATCH.params.lookBack);
 
-/** Findings, worst level, bands and wear rates for one sample against the machine's previous accepted samples. */
+const NO_EXCLUSIONS: ReadonlyMap<string, ReadonlySet<MeasurandCode>> = new Map();
+
+function oilStart(s: SamplePoint): number {
+  return s.odometer - s.distanceOnOil;
+}
+
+/**
+ * Copper that fell since the previous oil change, with lead and tin not raised, is leaching from coolers and
+ * new parts rather than wear (common practice, no published source).
+ */
+function isCopperLeaching(ctx: RuleContext, findings: readonly Finding[]): { from: number; to: number } | undefined {
+  const cu = readFiringValue(ctx.sample, 'Cu');
+  if (cu === undefined || !Number.isFinite(oilStart(ctx.sample))) return undefined;
+  const previous = [...ctx.history].reverse().find((s) => Number.isFinite(oilStart(s)) && oilStart(s) < oilStart(ctx.sample) - 1 && s.readings.Cu);
+  const before = previous ? readFiringValue(previous, 'Cu') : undefined;
+  if (before === undefined || !(cu < before)) return undefined;
+  const bearingsRaised = findings.some((f) => f.measurands.includes('Pb') || f.measurands.includes('Sn'));
+  const overlayNear = (['Pb', 'Sn'] as const).some((c) => {
+    const v = readFiringValue(ctx.sample, c);
+    return v !== undefined && v >= FIXED_LIMIT.params.watchFraction * ctx.limits[c];
+  });
+  return bearingsRaised || overlayNear ? undefined : { from: before, to: cu };
+}
+
+/** Findings, worst level, bands and wear rates for one sample against the machine's previous samples. */
 export function analyseSample(input: AnalyseInput): SampleAnalysis {
-  const history = input.history.length > TAIL ? input.history.slice(-TAIL) : input.history;
-  const ctx: RuleContext = {
-    machine: input.machine,
-    sample: input.sample,
-    history,
-    limits: resolveFixedLimits(input.limits),
-    bands: buildBaselineBands(history),
-  };
-  const findings: Finding[] = [];
-  for (const rule of FINDING_RULES) findings.push(...rule(ctx));
+  const history = input.history.length > HISTORY_TAIL ? input.history.slice(-HISTORY_TAIL) : input.history;
+  const base = { machine: input.machine, sample: input.sample, history, outOfBaseline: input.outOfBaseline ?? NO_EXCLUSIONS };
+  const ctx: RuleContext = { ...base, limits: resolveFixedLimits(input.limits), bands: buildBaselineBands(base), earlier: [] };
+  let findings: Finding[] = [];
+  for (const rule of FINDING_RULES) findings.push(...rule({ ...ctx, earlier: findings }));
+
+  const notes: string[] = [];
+  const leaching = isCopperLeaching(ctx, findings);
+  if (leaching && findings.some((f) => f.measurands[0] === 'Cu')) {
+    findings = findings.filter((f) => !(f.measurands[0] === 'Cu' && ['baseline-jump', 'climbing-trend', 'fixed-limit'].includes(f.ruleId)));
+    notes.push(
+      `Copper fell from ${formatFigure(leaching.from)} to ${formatFigure(leaching.to)} ppm since the last oil change, with lead and tin quiet: ` +
+        'that reads as copper leaching from the oil cooler or new parts (usual on a new or rebuilt engine), not wear.',
+    );
+  }
   findings.sort((a, b) => LEVEL_RANK[b.level] - LEVEL_RANK[a.level]);
 
   let worst: Level = 'steady';
@@ -70,13 +100,7 @@ export function analyseSample(input: AnalyseInput): SampleAnalysis {
     if (rate) wearRates[code] = rate;
   }
 
-  return {
-    findings,
-    worst,
-    readingLevels,
-    baselineStatus: input.history.length >= BASELINE_JUMP.params.minSamples ? 'ready' : 'building',
-    bands: ctx.bands,
-    wearRates,
-    cautions: [...ANALYSIS_CAUTIONS],
-  };
+  const wearBands = (['Fe', 'Al'] as const).map((c) => ctx.bands[c]).filter((b) => b !== undefined);
+  const ready = wearBands.length > 0 && wearBands.every((b) => b.status === 'ready');
+  return { findings, worst, readingLevels, baselineStatus: ready ? 'ready' : 'building', bands: ctx.bands, wearRates, notes, cautions: [...ANALYSIS_CAUTIONS] };
 }

@@ -1,12 +1,17 @@
 /**
- * A machine's own baseline for one measurand, after the statistical approach of ASTM D7720: alarm limits
- * are drawn from the distribution of that machine's previous accepted samples, not from a fleet table.
+ * A machine's own baseline for one measurand, after the statistical approach of ASTM D7720: alarm limits are
+ * drawn from that machine's previous in-control samples, not from a fleet table.
  *
- * The multiples are Sumpwise's choice (D7720 leaves them to the user): the baseline band runs up to
- * mean + 2 sd (watch above it) and act starts at mean + 3 sd. For normally distributed readings that is
- * about the 97.7th and 99.9th percentile of the machine's own history.
+ * Limits are prediction limits for one new reading (mean + t(n−1) · s · √(1 + 1/n)): with only a handful of
+ * earlier samples the standard deviation is itself uncertain, and Student's t with n − 1 degrees of freedom,
+ * not the normal distribution, says how often a new in-control reading lands above mean + k · s. The one-sided
+ * probabilities are the designed false-alarm rates per reading (watchAlpha, actAlpha in the rule definitions).
+ *
+ * The spread never falls below the lab's own scatter at that level (the floor): a band cannot claim to be
+ * narrower than the lab can measure, so a flat history of 4, 4, 4 does not turn a 6 into an alarm.
  */
 import { mean, sampleStandardDeviation, linearRegression, rSquared } from 'simple-statistics';
+import { studentTQuantile } from './statistics';
 
 export interface BaselineStats {
   n: number;
@@ -33,19 +38,18 @@ export function computeBaseline(values: readonly number[]): BaselineStats {
   return { n, mean: mean(finite), sd: n >= 2 ? sampleStandardDeviation(finite) : NaN, min, max };
 }
 
-/** Baseline settings, read from the rule definitions so the documentation page shows the same numbers. */
+/** Baseline settings, read from the rule definitions so the rules page shows the same numbers. */
 export interface BandSettings {
-  /** Fewer previous samples than this: "building baseline", only fixed limits apply. */
+  /** Fewer previous in-control samples than this: "building baseline", only fixed limits apply. */
   minSamples: number;
-  /** Only the most recent `window` previous samples count (a rolling baseline). */
+  /** Only the most recent `window` previous in-control samples count (a rolling baseline). */
   window: number;
-  /** Watch above mean + watchSd · spread. */
-  watchSd: number;
-  /** Act at or above mean + actSd · spread. */
-  actSd: number;
-  /** The spread is never taken below max(floorAbsolute, floorFraction · |mean|). */
-  floorAbsolute: number;
-  floorFraction: number;
+  /** One-sided probability that an in-control reading lands above the watch edge (designed false-alarm rate). */
+  watchAlpha: number;
+  /** The same for the act edge. */
+  actAlpha: number;
+  /** The lab's own scatter at a level (same units as the values): the least spread a band may use. */
+  floorAt: (level: number) => number;
 }
 
 export type BaselineBand =
@@ -55,28 +59,40 @@ export type BaselineBand =
       n: number;
       mean: number;
       sd: number;
-      /** The spread actually used: sd, or the floor when the history is flatter than the floor. */
+      /** The spread actually used: sd, or the lab-scatter floor when the history is flatter than the lab can measure. */
       spread: number;
       floored: boolean;
+      /** t(n−1) quantiles × √(1 + 1/n): the multiples of the spread the edges sit at. */
+      watchMultiple: number;
+      actMultiple: number;
+      /** Lower edge drawn on the chart (mean − watchMultiple · spread, never below 0). */
+      lower: number;
       /** Upper edge of the baseline band: above it is watch. */
       watchAbove: number;
       /** At or above this is act. */
       actFrom: number;
     };
 
+/** The multiple of the spread for a one-sided prediction limit at probability 1 − alpha with n earlier values. */
+export function predictionMultiple(alpha: number, n: number): number {
+  return studentTQuantile(1 - alpha, n - 1) * Math.sqrt(1 + 1 / n);
+}
+
 /**
- * The baseline band from previous readings (oldest first): the rolling window's mean and spread with a
- * floor, so a perfectly flat history cannot turn a 1 ppm change into an alarm.
+ * The baseline band from previous in-control readings (oldest first): the rolling window's mean and spread,
+ * with prediction-limit edges at the designed false-alarm rates.
  */
 export function computeBaselineBand(previous: readonly number[], settings: BandSettings): BaselineBand {
-  const recent = previous.slice(-settings.window).filter((v) => Number.isFinite(v));
-  if (recent.length < settings.minSamples) {
-    return { status: 'building', n: recent.length, needed: settings.minSamples };
+  const recent = previous.filter((v) => Number.isFinite(v)).slice(-settings.window);
+  if (recent.length < Math.max(2, settings.minSamples)) {
+    return { status: 'building', n: recent.length, needed: Math.max(2, settings.minSamples) };
   }
   const stats = computeBaseline(recent);
-  const floor = Math.max(settings.floorAbsolute, settings.floorFraction * Math.abs(stats.mean));
+  const floor = Math.max(0, settings.floorAt(Math.abs(stats.mean)));
   const sd = Number.isFinite(stats.sd) ? stats.sd : 0;
   const spread = Math.max(sd, floor);
+  const watchMultiple = predictionMultiple(settings.watchAlpha, stats.n);
+  const actMultiple = predictionMultiple(settings.actAlpha, stats.n);
   return {
     status: 'ready',
     n: stats.n,
@@ -84,8 +100,11 @@ export function computeBaselineBand(previous: readonly number[], settings: BandS
     sd,
     spread,
     floored: spread > sd,
-    watchAbove: stats.mean + settings.watchSd * spread,
-    actFrom: stats.mean + settings.actSd * spread,
+    watchMultiple,
+    actMultiple,
+    lower: Math.max(0, stats.mean - watchMultiple * spread),
+    watchAbove: stats.mean + watchMultiple * spread,
+    actFrom: stats.mean + actMultiple * spread,
   };
 }
 
@@ -95,6 +114,8 @@ export interface TrendFit {
   intercept: number;
   /** Coefficient of determination of the fit (1 for a perfect line; NaN for a flat line). */
   r2: number;
+  /** Standard error of the slope (NaN with two points); slope / slopeSe is the t statistic of the climb. */
+  slopeSe: number;
 }
 
 /** Least-squares straight line y = intercept + slope · x through the points (simple-statistics). */
@@ -103,5 +124,17 @@ export function computeTrendFit(points: readonly (readonly [x: number, y: number
   const pairs = points.map(([x, y]) => [x, y]);
   const { m, b } = linearRegression(pairs);
   const r2 = rSquared(pairs, (x: number) => m * x + b);
-  return { n: points.length, slope: m, intercept: b, r2 };
+  const n = points.length;
+  let slopeSe = NaN;
+  if (n > 2) {
+    const xbar = points.reduce((s, [x]) => s + x, 0) / n;
+    let sxx = 0;
+    let sse = 0;
+    for (const [x, y] of points) {
+      sxx += (x - xbar) ** 2;
+      sse += (y - (b + m * x)) ** 2;
+    }
+    slopeSe = sxx > 0 ? Math.sqrt(sse / (n - 2) / sxx) : NaN;
+  }
+  return { n, slope: m, intercept: b, r2, slopeSe };
 }

@@ -2,10 +2,12 @@
  * Sumpwise analysis engine: pure TypeScript, no database, no Astro, no fetch.
  *
  * API summary
+ * - judgeHistory({ machine, samples, limits? }) → per sample { sampleId, worst, call, nextIntervalDistance, findings }:
+ *   the replay production uses (replayHistory gives the full analysis and call of each sample).
  * - analyseSample({ machine, history, sample, limits? }) → { findings, worst, readingLevels, baselineStatus,
  *   bands, wearRates, cautions }. `history` holds the machine's previous accepted samples, oldest first;
  *   `limits` are a crew lead's overrides of DEFAULT_FIXED_LIMITS.
- * - makeIntervalCall({ machine, history, sample, limits?, analysis?, previousWorst? }) → { call: 'shorten'|'hold'|'stretch',
+ * - makeIntervalCall({ machine, history, sample, limits?, analysis?, previousWorst? }) → { call: 'shorten'|'hold'|'stretch'|'fix-first',
  *   nextIntervalDistance, nextSampleDue: { distance, date? }, reasons, basis }. Never beyond the
  *   manufacturer's longest interval (machine.maxIntervalDistance / maxIntervalDays).
  * - RULE_DEFINITIONS: id, title, description, source and thresholds of every rule, the same data the rule
@@ -31,3 +33,5 @@ export * from './rule-definitions';
 export * from './rules';
 export * from './analyse-sample';
 export * from './interval-call';
+export * from './judge-history';
+export * from './statistics';

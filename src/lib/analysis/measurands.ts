@@ -15,9 +15,12 @@ export const ELEMENT_CODES = [
   'Mo', 'Zn', 'P', 'Ca', 'Mg', 'Ba', 'S',
 ] as const;
 
-/** Oil-condition figures. KV40/KV100 in mm²/s (ASTM D445), VI (ASTM D2270), SUS210 (ASTM D2161). */
+/**
+ * Oil-condition figures. KV40/KV100 in mm²/s (ASTM D445), VI (ASTM D2270), SUS210 (ASTM D2161); oxidation and
+ * nitration by infrared, in absorbance per cm (ASTM E2412 trend analysis).
+ */
 export const CONDITION_CODES = [
-  'KV40', 'KV100', 'VI', 'SUS210', 'FLASH', 'FUEL', 'WATER', 'GLYCOL', 'INSOL', 'TBN', 'TAN',
+  'KV40', 'KV100', 'VI', 'SUS210', 'FLASH', 'FUEL', 'WATER', 'GLYCOL', 'INSOL', 'TBN', 'TAN', 'OXI', 'NIT',
 ] as const;
 
 export type ElementCode = (typeof ELEMENT_CODES)[number];
@@ -81,6 +84,8 @@ const CATALOGUE: Record<MeasurandCode, Omit<MeasurandInfo, 'code'>> = {
   INSOL: { name: 'Insolubles', unit: '%', group: 'condition', concern: 'up', pointsTo: 'Soot, oxidation products and dirt the oil can no longer hold in suspension.' },
   TBN: { name: 'Total base number', unit: 'mg KOH/g', group: 'condition', concern: 'down', pointsTo: 'Reserve of detergent left to neutralise acids; a low figure means the oil is spent.' },
   TAN: { name: 'Total acid number', unit: 'mg KOH/g', group: 'condition', concern: 'up', pointsTo: 'Acids from oxidation and combustion; a rising figure means the oil is ageing.' },
+  OXI: { name: 'Oxidation', unit: 'abs/cm', group: 'condition', concern: 'up', pointsTo: 'The oil ageing from heat and air; a rising figure means it is wearing out, often on long or hot intervals.' },
+  NIT: { name: 'Nitration', unit: 'abs/cm', group: 'condition', concern: 'up', pointsTo: 'Combustion gases reaching the oil past the rings; rises with blow-by, lean running or long idling.' },
 };
 
 /** The whole catalogue, in MEASURAND_CODES order. */

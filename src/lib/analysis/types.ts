@@ -32,6 +32,10 @@ export interface SamplePoint {
   newOilKv100?: number | undefined;
   /** The oil as poured: a new-oil reference from a lab sample or the data sheet, when one was recorded for this oil product. */
   newOil?: { source: 'lab' | 'data-sheet'; readings: Partial<Record<MeasurandCode, Reading>> } | undefined;
+  /** Taken out of the baseline by a lead or mechanic (or break-in oil), with their reason: judged, but never a baseline for later samples. */
+  baselineExcluded?: { reason: string; breakIn?: boolean | undefined } | undefined;
+  /** ISO date the lab's results arrived; "next sample by" dates count from the later of this and takenAt. */
+  resultsOn?: string | undefined;
   readings: Partial<Record<MeasurandCode, Reading>>;
 }
 
@@ -42,6 +46,8 @@ export interface MachineProfile {
   maxIntervalDistance?: number | undefined;
   /** Manufacturer's longest allowed oil change interval in days (the calendar limit). */
   maxIntervalDays?: number | undefined;
+  /** Engine, gearbox and wet clutch share one oil (most motorcycles); friction modifiers then matter. */
+  sharedOil?: boolean | undefined;
 }
 
 /** Fixed alarm limits a crew lead can change. Elements in ppm; the rest as named. */
@@ -72,7 +78,11 @@ export type RuleId =
   | 'fuel-dilution'
   | 'coolant-markers'
   | 'dirt'
-  | 'additive-mismatch';
+  | 'additive-mismatch'
+  | 'viscosity-change'
+  | 'condition-trend'
+  | 'flash-point'
+  | 'clutch-friction';
 
 export interface Finding {
   ruleId: RuleId;
@@ -91,4 +101,9 @@ export interface AnalyseInput {
   history: readonly SamplePoint[];
   sample: SamplePoint;
   limits?: Partial<FixedLimits> | undefined;
+  /**
+   * Measurands of earlier samples that stay out of the baseline because they were act on them (filled by the
+   * replay, judgeHistory); samples marked baselineExcluded stay out whatever this says.
+   */
+  outOfBaseline?: ReadonlyMap<string, ReadonlySet<MeasurandCode>> | undefined;
 }

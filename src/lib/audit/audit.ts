@@ -1,4 +1,4 @@
-/** Security events kept in the audit log. */
+/** Security events, and changes to what the analysis trusts (a machine's baseline), kept in the audit log. */
 export const AUDIT_KINDS = [
   'sign_in',
   'sign_in_failed',
@@ -19,6 +19,8 @@ export const AUDIT_KINDS = [
   'import_address_rotated',
   'import_sender_added',
   'import_sender_removed',
+  'baseline_excluded',
+  'baseline_restored',
 ] as const;
 export type AuditKind = (typeof AUDIT_KINDS)[number];
 
@@ -64,4 +66,6 @@ export const AUDIT_LABELS: Record<AuditKind, string> = {
   import_address_rotated: 'Import address replaced',
   import_sender_added: 'Lab address added to the import list',
   import_sender_removed: 'Lab address removed from the import list',
+  baseline_excluded: 'Sample taken out of the baseline',
+  baseline_restored: 'Sample put back in the baseline',
 };

@@ -12,7 +12,7 @@ export type Cooling = 'air' | 'oil' | 'liquid';
 export type Meter = 'mi' | 'km' | 'h';
 export type SampleState = 'drawn' | 'shipped' | 'results_in' | 'reviewed';
 export type Level = 'steady' | 'watch' | 'act';
-export type IntervalCallKind = 'shorten' | 'hold' | 'stretch';
+export type IntervalCallKind = 'shorten' | 'hold' | 'stretch' | 'fix-first';
 
 export interface UsersTable {
   id: string;
@@ -68,6 +68,8 @@ export interface MachinesTable {
   max_interval_distance: number | null;
   max_interval_days: number | null;
   notes: Generated<string>;
+  /** The analysis engine version that judged this machine's stored findings; null or older: recompute. */
+  judged_by: ColumnType<string | null, string | null | undefined, string | null>;
   archived_at: TimestampNullable;
   created_at: Generated<Date>;
   updated_at: Generated<Date>;
@@ -125,6 +127,12 @@ export interface SamplesTable {
   state: Generated<SampleState>;
   tracking_note: Generated<string>;
   in_baseline: Generated<boolean>;
+  /** Why a lead or mechanic took the sample out of the baseline (or put it back). */
+  baseline_note: Generated<string>;
+  /** The first oil of a new or rebuilt engine: judged, but never a baseline. */
+  break_in: Generated<boolean>;
+  baseline_changed_by: ColumnType<string | null, string | null | undefined, string | null>;
+  baseline_changed_at: TimestampNullable;
   client_key: string | null;
   created_by: string;
   created_at: Generated<Date>;
@@ -539,4 +547,22 @@ export interface Database {
   import_addresses: ImportAddressesTable;
   import_address_senders: ImportAddressSendersTable;
   inbound_mails: InboundMailsTable;
+}
+
+/** The baseline band a rule used for one measurand of one sample (only ready bands are stored). */
+export interface BaselineBandsTable {
+  sample_id: string;
+  measurand: string;
+  basis: 'rate' | 'ppm';
+  n: number;
+  mean: number;
+  lower_edge: number;
+  watch_above: number;
+  act_from: number;
+  /** Multiply a band figure by this for ppm as reported at that sample (1 on a ppm basis). */
+  to_reported: number;
+}
+
+export interface Database {
+  baseline_bands: BaselineBandsTable;
 }

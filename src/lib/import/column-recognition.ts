@@ -155,6 +155,9 @@ function recogniseCondition(tokens: readonly string[], unit: LabUnit | undefined
   if (any('glycol', 'coolant', 'antifreeze')) return { kind: 'measurand', code: 'GLYCOL' };
   if (any('flash', 'flashpoint')) return { kind: 'measurand', code: 'FLASH', unit: unit === '°F' ? '°F' : '°C' };
   if (any('insol', 'insolubles', 'insoluble')) return { kind: 'measurand', code: 'INSOL', unit: '%' };
+  // Infrared oxidation and nitration (absorbance per cm, ASTM E2412); the unit stays as the catalogue gives it.
+  if (any('oxidation', 'oxi')) return { kind: 'measurand', code: 'OXI' };
+  if (any('nitration', 'nitr', 'nit')) return { kind: 'measurand', code: 'NIT' };
   return null;
 }
 

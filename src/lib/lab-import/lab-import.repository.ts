@@ -1,6 +1,6 @@
 /** Every query of the lab import. Each function takes `db` or a transaction first. */
 import { sql, type Kysely, type Transaction } from 'kysely';
-import type { Database, Level, SampleState } from '../db/database';
+import type { Database, IntervalCallKind, Level, SampleState } from '../db/database';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
@@ -292,7 +292,7 @@ export function findMachineOfSample(db: Db, sampleId: string) {
 export function findMachineProfile(db: Db, machineId: string) {
   return db
     .selectFrom('machines')
-    .select(['id', 'crew_id', 'cooling', 'meter', 'oil_capacity_l', 'max_interval_distance', 'max_interval_days'])
+    .select(['id', 'crew_id', 'cooling', 'meter', 'oil_capacity_l', 'max_interval_distance', 'max_interval_days', 'shared_oil', 'judged_by'])
     .where('id', '=', machineId)
     .executeTakeFirst();
 }
@@ -311,8 +311,17 @@ export function findSamplesWithReadings(db: Db, machineId: string) {
       'samples.sae_grade',
       'samples.oil_product',
       'samples.in_baseline',
+      'samples.baseline_note',
+      'samples.break_in',
       'samples.created_at',
       'oil_changes.volume_l',
+      // The day the results arrived: "next sample by" counts from it when the lab took a while.
+      (eb) =>
+        eb.selectFrom('readings')
+          .innerJoin('lab_imports', 'lab_imports.id', 'readings.lab_import_id')
+          .select((e) => e.fn.max('lab_imports.confirmed_at').as('at'))
+          .whereRef('readings.sample_id', '=', 'samples.id')
+          .as('results_at'),
     ])
     .where('samples.machine_id', '=', machineId)
     .where((eb) => eb.exists(eb.selectFrom('readings').select('readings.sample_id').whereRef('readings.sample_id', '=', 'samples.id')))
@@ -365,7 +374,7 @@ export async function replaceFindings(db: Db, sampleIds: readonly string[], rows
 export interface IntervalCallInsert {
   sampleId: string;
   machineId: string;
-  call: 'shorten' | 'hold' | 'stretch';
+  call: IntervalCallKind;
   nextInterval: number | null;
   nextSampleOdometer: number | null;
   nextSampleOn: string | null;
@@ -391,4 +400,54 @@ export async function replaceEngineCalls(db: Db, sampleIds: readonly string[], r
                   ${sql.val(part.map((c) => c.nextSampleOdometer))}::float8[], ${sql.val(part.map((c) => c.nextSampleOn))}::text[],
                   ${sql.val(part.map((c) => JSON.stringify(c.reasons)))}::text[]) as x(s, m, c, ni, no, nd, r)`.execute(db);
   }
+}
+
+export interface BandInsert {
+  sampleId: string;
+  measurand: string;
+  basis: 'rate' | 'ppm';
+  n: number;
+  mean: number;
+  lower: number;
+  watchAbove: number;
+  actFrom: number;
+  toReported: number;
+}
+
+/** Replace the stored baseline bands of these samples (the bands the rules used). */
+export async function replaceBands(db: Db, sampleIds: readonly string[], rows: readonly BandInsert[]): Promise<void> {
+  if (sampleIds.length === 0) return;
+  await db.deleteFrom('baseline_bands').where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`).execute();
+  const CHUNK = 10_000;
+  for (let from = 0; from < rows.length; from += CHUNK) {
+    const part = rows.slice(from, from + CHUNK);
+    const col = <T,>(f: (b: BandInsert) => T) => sql.val(part.map(f));
+    await sql`
+      insert into baseline_bands (sample_id, measurand, basis, n, mean, lower_edge, watch_above, act_from, to_reported)
+      select * from unnest(${col((b) => b.sampleId)}::uuid[], ${col((b) => b.measurand)}::text[], ${col((b) => b.basis)}::text[],
+                           ${col((b) => b.n)}::int[], ${col((b) => b.mean)}::float8[], ${col((b) => b.lower)}::float8[],
+                           ${col((b) => b.watchAbove)}::float8[], ${col((b) => b.actFrom)}::float8[], ${col((b) => b.toReported)}::float8[])`.execute(db);
+  }
+}
+
+/** Records which engine version judged a machine's stored results. */
+export async function markMachineJudged(db: Db, machineId: string, version: string): Promise<void> {
+  await db.updateTable('machines').set({ judged_by: version }).where('id', '=', machineId).execute();
+}
+
+/** Machines whose stored results another engine version judged (or none), up to `limit`, after `afterId`. */
+export function listStaleMachines(db: Db, version: string, afterId: string | null, limit: number) {
+  let q = db
+    .selectFrom('machines')
+    .select('id')
+    .where((eb) => eb.or([eb('judged_by', 'is', null), eb('judged_by', '!=', version)]))
+    .orderBy('id')
+    .limit(limit);
+  if (afterId) q = q.where('id', '>', afterId);
+  return q.execute();
+}
+
+/** Locks one machine row for the rest of the transaction; undefined when it is gone. */
+export function lockMachine(db: Db, machineId: string) {
+  return db.selectFrom('machines').select(['id', 'judged_by']).where('id', '=', machineId).forUpdate().executeTakeFirst();
 }

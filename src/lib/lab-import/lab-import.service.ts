@@ -5,7 +5,7 @@
  */
 import { createHash } from 'node:crypto';
 import { sql, type Kysely, type Transaction } from 'kysely';
-import { analyseSample, makeIntervalCall, type FixedLimits, type MachineProfile, type SamplePoint } from '../analysis';
+import { ENGINE_VERSION, replayHistory, type FixedLimits, type MachineProfile, type SamplePoint } from '../analysis';
 import { isMeasurandCode, type MeasurandCode } from '../analysis/measurands';
 import type { Database } from '../db/database';
 import { readLabFileBytes } from '../import/lab-xlsx';
@@ -474,6 +474,10 @@ function toSamplePoint(s: SampleWithReadings, readings: SamplePoint['readings'],
     grade: s.sae_grade ?? undefined,
     oilProduct: s.oil_product || undefined,
     readings,
+    baselineExcluded: s.in_baseline
+      ? undefined
+      : { reason: s.baseline_note || (s.break_in ? 'Break-in oil.' : 'No oil change on file for this sample.'), breakIn: s.break_in },
+    resultsOn: s.results_at ? new Date(s.results_at).toISOString().slice(0, 10) : undefined,
   };
 }
 
@@ -482,9 +486,10 @@ const LIMIT_KEYS: Partial<Record<string, keyof FixedLimits>> = {
 };
 
 /**
- * Recompute findings and the engine's interval call for `changed` samples of one machine, each against the
- * machine's earlier accepted samples (in baseline, with readings), plus every later sample whose history
- * they are part of. `known` holds readings already in memory by sample id. Returns the number of findings stored.
+ * Judge a machine's samples again with replayHistory (the same replay judgeHistory runs) and store the findings,
+ * the engine's interval calls and the bands the rules used for `changed` samples and every later one (their
+ * history includes the changed ones). A machine last judged by another engine version is judged whole.
+ * `known` holds readings already in memory by sample id. Returns the number of findings stored.
  */
 export async function recomputeMachineFindings(
   trx: Db,
@@ -509,50 +514,79 @@ export async function recomputeMachineFindings(
     const key = LIMIT_KEYS[l.measurand];
     if (key && l.act_at !== null) limits[key] = l.act_at;
   }
+  const meter = machineRow.meter;
   const machine: MachineProfile = {
     cooling: machineRow.cooling,
-    distanceUnit: machineRow.meter,
-    maxIntervalDistance: machineRow.max_interval_distance === null ? undefined : fromStoredMeter(machineRow.max_interval_distance, machineRow.meter),
+    distanceUnit: meter,
+    maxIntervalDistance: machineRow.max_interval_distance === null ? undefined : fromStoredMeter(machineRow.max_interval_distance, meter),
     maxIntervalDays: machineRow.max_interval_days ?? undefined,
+    sharedOil: machineRow.shared_oil,
   };
 
-  const firstChanged = samples.findIndex((s) => changed.has(s.id));
-  if (firstChanged === -1) return 0;
-  const history: SamplePoint[] = [];
+  const stale = machineRow.judged_by !== ENGINE_VERSION;
+  const firstChanged = stale ? 0 : samples.findIndex((s) => changed.has(s.id));
+  if (firstChanged === -1 || samples.length === 0) {
+    if (stale) await repo.markMachineJudged(trx, machineId, ENGINE_VERSION);
+    return 0;
+  }
+  const points = samples.map((s) => attachNewOil(toSamplePoint(s, readingsBySample.get(s.id) ?? {}, machineRow.oil_capacity_l, meter), newOil));
+  const replayed = replayHistory({ machine, samples: points, limits });
   const findings: repo.FindingInsert[] = [];
   const calls: repo.IntervalCallInsert[] = [];
+  const bands: repo.BandInsert[] = [];
   const recomputed: string[] = [];
-  samples.forEach((s, index) => {
-    const point = attachNewOil(toSamplePoint(s, readingsBySample.get(s.id) ?? {}, machineRow.oil_capacity_l, machineRow.meter), newOil);
-    if (index >= firstChanged) {
-      const input = { machine, history, sample: point, limits };
-      const analysis = analyseSample(input);
-      recomputed.push(s.id);
-      for (const f of analysis.findings) {
-        findings.push({ sampleId: s.id, measurand: f.measurands[0] ?? null, level: f.level, ruleId: f.ruleId, numbers: f.numbers, sentence: f.sentence });
-      }
-      try {
-        const call = makeIntervalCall({ ...input, analysis });
-        calls.push({
-          sampleId: s.id,
-          machineId,
-          call: call.call,
-          // Back to the stored unit (km, or hours).
-          nextInterval: Number.isFinite(call.nextIntervalDistance) ? toStoredMeter(call.nextIntervalDistance, machineRow.meter) : null,
-          nextSampleOdometer: Number.isFinite(call.nextSampleDue.distance) ? toStoredMeter(call.nextSampleDue.distance, machineRow.meter) : null,
-          nextSampleOn: call.nextSampleDue.date ?? null,
-          reasons: call.reasons,
-        });
-      } catch (error) {
-        // No distance on this oil, no earlier one and no manufacturer interval: no call can be made yet.
-        if (!(error instanceof RangeError)) throw error;
-      }
+  for (const { sampleId, analysis, call } of replayed.slice(firstChanged)) {
+    recomputed.push(sampleId);
+    for (const f of analysis.findings) {
+      findings.push({ sampleId, measurand: f.measurands[0] ?? null, level: f.level, ruleId: f.ruleId, numbers: f.numbers, sentence: f.sentence });
     }
-    if (s.in_baseline) history.push(point);
-  });
+    for (const [measurand, band] of Object.entries(analysis.bands)) {
+      if (!band || band.status !== 'ready') continue;
+      bands.push({
+        sampleId, measurand, basis: band.basis, n: band.n, mean: band.mean, lower: band.lower,
+        watchAbove: band.watchAbove, actFrom: band.actFrom, toReported: band.toReported,
+      });
+    }
+    calls.push({
+      sampleId,
+      machineId,
+      call: call.call,
+      // Back to the stored unit (km, or hours).
+      nextInterval: call.nextIntervalDistance !== null && Number.isFinite(call.nextIntervalDistance) ? toStoredMeter(call.nextIntervalDistance, meter) : null,
+      nextSampleOdometer: call.nextSampleDue.distance !== null && Number.isFinite(call.nextSampleDue.distance) ? toStoredMeter(call.nextSampleDue.distance, meter) : null,
+      nextSampleOn: call.nextSampleDue.date ?? null,
+      reasons: call.reasons,
+    });
+  }
   await repo.replaceFindings(trx, recomputed, findings);
   await repo.replaceEngineCalls(trx, recomputed, calls);
+  await repo.replaceBands(trx, recomputed, bands);
+  if (stale) await repo.markMachineJudged(trx, machineId, ENGINE_VERSION);
   return findings.length;
+}
+
+/**
+ * Judge again every machine whose stored results an older engine version made: one transaction per machine
+ * (the machine row locked, so an import at the same moment waits), oldest version first. Returns the count.
+ */
+export async function recomputeStaleMachines(db: Kysely<Database>, log?: (line: string) => void): Promise<number> {
+  let after: string | null = null;
+  let done = 0;
+  for (;;) {
+    const batch = await repo.listStaleMachines(db, ENGINE_VERSION, after, 200);
+    if (batch.length === 0) break;
+    for (const { id } of batch) {
+      await db.transaction().execute(async (trx) => {
+        const locked = await repo.lockMachine(trx, id);
+        if (!locked || locked.judged_by === ENGINE_VERSION) return;
+        await recomputeMachineFindings(trx, id, new Set());
+      });
+      done++;
+    }
+    after = batch[batch.length - 1]!.id;
+  }
+  if (done > 0) log?.(`[recompute] ${done} machine${done === 1 ? '' : 's'} judged again with engine ${ENGINE_VERSION}`);
+  return done;
 }
 
 /** Recompute findings and the engine interval call of one sample (and the later samples of its machine). */

@@ -42,7 +42,7 @@ const ORDER: Record<OverviewQuery['sort'], string> = {
   name: 'lower(name)',
   'last-sample': 'drawn_on',
   level: 'coalesce(worst_rank, -1)',
-  call: "case call when 'shorten' then 0 when 'hold' then 1 when 'stretch' then 2 end",
+  call: "case call when 'fix-first' then 0 when 'shorten' then 1 when 'hold' then 2 when 'stretch' then 3 end",
   due: 'next_sample_on',
 };
 

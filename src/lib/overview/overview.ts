@@ -1,5 +1,6 @@
 /** Crew overview: the query a page address carries (sort, filters, page) and the row shape. Pure. */
 import type { IntervalCallKind, Level, Meter } from '../db/database';
+import { CALL_KINDS } from '../levels';
 
 export const OVERVIEW_SORTS = ['name', 'last-sample', 'level', 'call', 'due'] as const;
 export type OverviewSort = (typeof OVERVIEW_SORTS)[number];
@@ -45,7 +46,7 @@ export function parseOverviewQuery(params: URLSearchParams): { query: OverviewQu
   const sort = read('sort', OVERVIEW_SORTS) ?? DEFAULT_OVERVIEW_QUERY.sort;
   const dir = read('dir', ['asc', 'desc'] as const) ?? NATURAL_DIR[sort];
   const level = read('level', ['steady', 'watch', 'act', 'none'] as const) ?? null;
-  const call = read('call', ['shorten', 'hold', 'stretch'] as const) ?? null;
+  const call = read('call', CALL_KINDS) ?? null;
   const climbingRaw = params.get('climbing');
   const climbing = climbingRaw === '1' || climbingRaw === 'on' || climbingRaw === 'true';
   if (climbingRaw !== null && climbingRaw !== '' && !climbing && climbingRaw !== '0') ignored.push('climbing');

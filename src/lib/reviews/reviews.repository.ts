@@ -2,7 +2,7 @@
 import { sql, type Kysely, type Transaction } from 'kysely';
 import type { Database } from '../db/database';
 import { isUuid } from '../trends/trends.repository';
-import type { CallHistoryEntry, ReviewNote } from './reviews';
+import type { BaselineStatus, CallHistoryEntry, ReviewNote } from './reviews';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
@@ -92,4 +92,41 @@ export async function listReviewNotes(db: Db, crewId: string, sampleId: string):
 export async function insertReviewNote(db: Db, sampleId: string, authorUserId: string, body: string): Promise<string> {
   const r = await db.insertInto('review_notes').values({ sample_id: sampleId, author_user_id: authorUserId, body }).returning('id').executeTakeFirstOrThrow();
   return r.id;
+}
+
+/** Whether the crew's sample counts in its machine's baseline, with who changed that and why. */
+export async function findBaselineStatus(db: Db, crewId: string, sampleId: string): Promise<BaselineStatus | undefined> {
+  if (!isUuid(sampleId)) return undefined;
+  const row = await db
+    .selectFrom('samples')
+    .leftJoin('users', 'users.id', 'samples.baseline_changed_by')
+    .select(['samples.in_baseline', 'samples.baseline_note', 'samples.break_in', 'samples.baseline_changed_at', 'users.display_name'])
+    .where('samples.id', '=', sampleId)
+    .where('samples.crew_id', '=', crewId)
+    .executeTakeFirst();
+  if (!row) return undefined;
+  return { inBaseline: row.in_baseline, note: row.baseline_note, breakIn: row.break_in, changedByName: row.display_name, changedAt: row.baseline_changed_at };
+}
+
+/** Takes a sample out of its machine's baseline or puts it back, with the reason and who did it. */
+export async function updateSampleBaseline(
+  db: Db,
+  sampleId: string,
+  change: { inBaseline: boolean; note: string; breakIn: boolean; userId: string },
+): Promise<void> {
+  await db
+    .updateTable('samples')
+    .set({ in_baseline: change.inBaseline, baseline_note: change.note, break_in: change.breakIn, baseline_changed_by: change.userId, baseline_changed_at: sql`now()` })
+    .where('id', '=', sampleId)
+    .execute();
+}
+
+/** The baseline bands the rules used for a sample's readings (ready bands only), by measurand. */
+export async function listSampleBands(db: Db, sampleId: string) {
+  if (!isUuid(sampleId)) return [];
+  return db
+    .selectFrom('baseline_bands')
+    .select(['measurand', 'basis', 'n', 'mean', 'lower_edge', 'watch_above', 'act_from', 'to_reported'])
+    .where('sample_id', '=', sampleId)
+    .execute();
 }

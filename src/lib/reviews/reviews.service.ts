@@ -4,8 +4,10 @@ import { canReviewSample } from '../auth/permissions';
 import type { CrewMembership } from '../auth/types';
 import type { Database } from '../db/database';
 import { toStoredMeter } from '../units/units';
-import type { CallDecision, CallHistoryEntry, ReviewNote } from './reviews';
-import { findReviewSample, insertIntervalCall, insertReviewNote, listCallHistory, listReviewNotes, markSampleReviewed } from './reviews.repository';
+import type { BaselineChoice, CallDecision, CallHistoryEntry, ReviewNote } from './reviews';
+import { recordAuditEvent } from '../audit/audit.repository';
+import { recomputeFindings } from '../lab-import/lab-import.service';
+import { findBaselineStatus, findReviewSample, insertIntervalCall, updateSampleBaseline, insertReviewNote, listCallHistory, listReviewNotes, markSampleReviewed } from './reviews.repository';
 
 export type ReviewResult<T> =
   | { ok: true; value: T }
@@ -80,6 +82,43 @@ export async function decideIntervalCall(
     const entry = (await listCallHistory(trx, sampleId)).find((c) => c.id === id)!;
     return { ok: true, value: { id, entry } } as const;
   });
+}
+
+/**
+ * Takes a sample out of its machine's baseline (or puts it back) with the reviewer's reason, logs it in the crew's
+ * audit log, and judges that sample and every later one of the machine again, in one transaction.
+ */
+export async function changeSampleBaseline(
+  db: Kysely<Database>,
+  actor: Actor & { ip?: string | null },
+  sampleId: string,
+  choice: BaselineChoice,
+): Promise<ReviewResult<{ inBaseline: boolean; findingsWritten: number }>> {
+  if (!actor.membership) return NOT_FOUND;
+  const membership = actor.membership;
+  return db.transaction().execute(async (trx) => {
+    const sample = await findReviewSample(trx, membership.crewId, sampleId);
+    if (!sample) return NOT_FOUND;
+    if (!canReviewSample(membership)) {
+      return { ok: false, code: 'forbidden', message: 'Only a lead or a mechanic of the crew takes samples out of the baseline or puts them back.' } as const;
+    }
+    const inBaseline = choice.action === 'include';
+    await updateSampleBaseline(trx, sampleId, { inBaseline, note: choice.reason, breakIn: !inBaseline && choice.breakIn, userId: actor.userId });
+    await recordAuditEvent(trx, {
+      kind: inBaseline ? 'baseline_restored' : 'baseline_excluded',
+      crewId: membership.crewId,
+      actorUserId: actor.userId,
+      detail: { sampleId, bottleCode: sample.bottle_code, machine: sample.machine_name, reason: choice.reason, breakIn: !inBaseline && choice.breakIn },
+      ip: actor.ip ?? null,
+    });
+    const findingsWritten = await recomputeFindings(trx, sampleId);
+    return { ok: true, value: { inBaseline, findingsWritten } } as const;
+  });
+}
+
+/** Whether a sample of the crew counts in its machine's baseline (null for another crew's or an unknown sample). */
+export async function loadBaselineStatus(db: Kysely<Database>, crewId: string, sampleId: string) {
+  return (await findBaselineStatus(db, crewId, sampleId)) ?? null;
 }
 
 export type { ReviewNote };

@@ -22,7 +22,7 @@ export const callDecisionSchema = z.discriminatedUnion('action', [
   z.object({ action: z.literal('confirm'), note: noteText.optional().default('') }),
   z.object({
     action: z.literal('override'),
-    call: z.enum(['shorten', 'hold', 'stretch'], { error: 'Pick shorten, hold or stretch.' }),
+    call: z.enum(['shorten', 'hold', 'stretch', 'fix-first'], { error: 'Pick shorten, hold, stretch or fix first.' }),
     note: noteText.pipe(z.string().min(1, 'An override needs a note saying why.')),
     /** In the machine's meter unit (mi, km or h). */
     nextInterval: optionalPositive('next interval'),
@@ -56,4 +56,27 @@ export interface ReviewNote {
   authorName: string;
   authorRole: string | null;
   createdAt: Date;
+}
+
+/** Take a sample out of the baseline, or put it back, with the reason (shown on the sample and the wear chart). */
+export const baselineChoiceSchema = z.object({
+  action: z.enum(['exclude', 'include'], { error: 'Choose whether the sample leaves the baseline or goes back in.' }),
+  reason: z
+    .string({ error: 'Say why, in a few words.' })
+    .trim()
+    .min(3, 'Say why, in a few words.')
+    .max(500, 'Keep the reason under 500 characters.'),
+  /** The first oil of a new or rebuilt engine (a checkbox: "on" when ticked). */
+  breakIn: z.preprocess((v) => v === true || v === 'on' || v === 'true', z.boolean()).optional().default(false),
+});
+
+export type BaselineChoice = z.infer<typeof baselineChoiceSchema>;
+
+/** Whether a sample counts in its machine's baseline, and who said otherwise and why. */
+export interface BaselineStatus {
+  inBaseline: boolean;
+  note: string;
+  breakIn: boolean;
+  changedByName: string | null;
+  changedAt: Date | null;
 }

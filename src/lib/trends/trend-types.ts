@@ -20,9 +20,24 @@ export interface TrendSampleRow {
   topUpL: number;
   oilVolumeL: number | null;
   inBaseline: boolean;
+  /** Why the sample is out of the baseline (a lead's or mechanic's reason, or break-in), when it is. */
+  baselineNote: string | null;
   readings: Partial<Record<MeasurandCode, { value: number; qualifier: '<' | '>' | null }>>;
+  /** The bands the rules used when this sample was judged (ready bands only), as stored. */
+  bands: Partial<Record<MeasurandCode, StoredBand>>;
   /** Worst stored finding level per measurand of this sample. */
   levels: Partial<Record<MeasurandCode, Level>>;
+}
+
+/** A baseline band as the engine stored it: on its own basis (a rate or ppm), with the factor back to ppm. */
+export interface StoredBand {
+  basis: 'rate' | 'ppm';
+  n: number;
+  mean: number;
+  lower: number;
+  watchAbove: number;
+  actFrom: number;
+  toReported: number;
 }
 
 export interface TrendOilChangeRow {
@@ -45,10 +60,13 @@ export interface TrendPoint {
   reported: number;
   qualifier: '<' | '>' | null;
   level: Level;
-  /** The baseline band from this machine's previous accepted samples, or null while it is building. */
-  band: { lower: number; mean: number; upper: number } | null;
-  /** value − band mean, and that in spreads (standard deviations, floored), when a band exists. */
+  /** The band the rules used for this sample (from the previous in-control samples), or null while it is building. */
+  band: { lower: number; mean: number; upper: number; actFrom: number; n: number } | null;
+  /** value − band mean, and that as a share of the band's upper half-width (1 = at the watch edge), when a band exists. */
   fromBaseline: { delta: number; spreads: number } | null;
+  /** False when the sample is kept out of the baseline; `baselineNote` says why. */
+  inBaseline: boolean;
+  baselineNote: string | null;
 }
 
 export interface TrendSeries {

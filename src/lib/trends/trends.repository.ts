@@ -38,6 +38,8 @@ export async function listTrendSamples(
       'samples.sae_grade',
       'samples.top_up_l',
       'samples.in_baseline',
+      'samples.baseline_note',
+      'samples.break_in',
       'oil_changes.volume_l',
     ])
     .where('samples.machine_id', '=', machine.id)
@@ -47,7 +49,7 @@ export async function listTrendSamples(
     .execute();
   if (samples.length === 0) return [];
   const ids = samples.map((s) => s.id);
-  const [readings, findings] = await Promise.all([
+  const [readings, findings, bands] = await Promise.all([
     db
       .selectFrom('readings')
       .select(['sample_id', 'measurand', 'value', 'qualifier'])
@@ -57,6 +59,12 @@ export async function listTrendSamples(
     db
       .selectFrom('findings')
       .select(['sample_id', 'measurand', 'level'])
+      .where('sample_id', 'in', ids)
+      .where('measurand', 'in', [...measurands])
+      .execute(),
+    db
+      .selectFrom('baseline_bands')
+      .selectAll()
       .where('sample_id', 'in', ids)
       .where('measurand', 'in', [...measurands])
       .execute(),
@@ -73,13 +81,23 @@ export async function listTrendSamples(
       topUpL: Number(s.top_up_l),
       oilVolumeL: s.volume_l !== null ? Number(s.volume_l) : machine.oil_capacity_l !== null ? Number(machine.oil_capacity_l) : null,
       inBaseline: s.in_baseline,
+      baselineNote: s.in_baseline ? null : s.baseline_note || (s.break_in ? 'Break-in oil.' : 'Kept out of the baseline.'),
       readings: {},
+      bands: {},
       levels: {},
     });
   }
   for (const r of readings) {
     const row = byId.get(r.sample_id);
     if (row && isMeasurandCode(r.measurand)) row.readings[r.measurand] = { value: Number(r.value), qualifier: r.qualifier };
+  }
+  for (const b of bands) {
+    const row = byId.get(b.sample_id);
+    if (!row || !isMeasurandCode(b.measurand)) continue;
+    row.bands[b.measurand] = {
+      basis: b.basis, n: b.n, mean: Number(b.mean), lower: Number(b.lower_edge), watchAbove: Number(b.watch_above),
+      actFrom: Number(b.act_from), toReported: Number(b.to_reported),
+    };
   }
   for (const f of findings) {
     const row = byId.get(f.sample_id);

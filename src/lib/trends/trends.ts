@@ -3,9 +3,9 @@
  * samples into one series per measurand with its level, baseline band and distance from it at every point.
  */
 import { z } from 'zod';
-import { BASELINE_JUMP, computeBaselineBand, computeWearRate, getMeasurand, isMeasurandCode, type MeasurandCode } from '../analysis';
+import { computeWearRate, getMeasurand, isMeasurandCode, type MeasurandCode } from '../analysis';
 import { fromStoredMeter, type MeterUnit } from '../units/units';
-import type { GradeChangeMark, TrendBasis, TrendOilChangeRow, TrendPoint, TrendSampleRow, TrendSeries } from './trend-types';
+import type { GradeChangeMark, StoredBand, TrendBasis, TrendOilChangeRow, TrendPoint, TrendSampleRow, TrendSeries } from './trend-types';
 
 export * from './trend-types';
 
@@ -32,8 +32,6 @@ export const trendQuerySchema = z.object({
 
 export type TrendQuery = z.infer<typeof trendQuerySchema>;
 
-const BAND = BASELINE_JUMP.params;
-
 /** The rate unit for a meter: per 1,000 mi or km, per 100 h. */
 export function describeRateUnit(meter: MeterUnit): string {
   return meter === 'h' ? 'ppm per 100 h' : `ppm per 1,000 ${meter}`;
@@ -44,15 +42,23 @@ export function canShowAsRate(code: MeasurandCode): boolean {
   return getMeasurand(code).group !== 'condition';
 }
 
-/** Below detection counts as half the detection limit in a band, as the analysis engine's baselines do. */
-function bandValue(value: number, qualifier: '<' | '>' | null): number {
-  return qualifier === '<' ? value / 2 : value;
+/**
+ * A stored band in the chart's basis: the engine judged some measurands as rates and some in ppm; the factor
+ * between the two at this sample is the same one the engine used (distance on oil and the top-up correction).
+ */
+function bandInBasis(band: StoredBand, basis: TrendBasis, ppmToRate: number | null): { lower: number; mean: number; upper: number; actFrom: number } | null {
+  let k: number;
+  if (band.basis === basis) k = 1;
+  else if (band.basis === 'rate') k = band.toReported; // rate → reported ppm
+  else if (ppmToRate === null) return null;
+  else k = ppmToRate; // ppm → rate
+  return { lower: band.lower * k, mean: band.mean * k, upper: band.watchAbove * k, actFrom: band.actFrom * k };
 }
 
 /**
  * Shapes a machine's samples (oldest first) into chart series: the value in the chosen basis, the level from
- * the stored findings, and the baseline band of the previous accepted samples (the engine's window and
- * multiples), so the chart draws the band the rules used.
+ * the stored findings, and the band the rules used when the sample was judged (stored with the findings), so the
+ * chart, the sample page and the alerts show one band.
  */
 export function shapeTrendSeries(input: {
   meter: MeterUnit;
@@ -66,34 +72,19 @@ export function shapeTrendSeries(input: {
     const info = getMeasurand(code);
     const seriesBasis: TrendBasis = basis === 'rate' && canShowAsRate(code) ? 'rate' : 'ppm';
     const unit = seriesBasis === 'rate' ? describeRateUnit(meter) : info.unit;
-    const previous: number[] = [];
     const points: TrendPoint[] = [];
     for (const s of sorted) {
       const r = s.readings[code];
       if (!r || !Number.isFinite(r.value)) continue;
       const distanceOnOil = s.distanceOnOilStored === null ? null : fromStoredMeter(s.distanceOnOilStored, meter);
+      const topUp = { topUpVolume: s.topUpL, oilVolume: s.oilVolumeL ?? undefined };
+      const unitRate = distanceOnOil === null ? null : computeWearRate(1, distanceOnOil, meter, topUp);
       let value: number | null = r.value;
-      let forBand = bandValue(r.value, r.qualifier);
-      if (seriesBasis === 'rate') {
-        const topUp = { topUpVolume: s.topUpL, oilVolume: s.oilVolumeL ?? undefined };
-        const rate = distanceOnOil === null ? null : computeWearRate(r.value, distanceOnOil, meter, topUp);
-        const rateForBand = distanceOnOil === null ? null : computeWearRate(forBand, distanceOnOil, meter, topUp);
-        value = rate ? rate.rate : null;
-        forBand = rateForBand ? rateForBand.rate : NaN;
-      }
+      if (seriesBasis === 'rate') value = unitRate ? unitRate.rate * r.value : null;
       if (value === null) continue; // No distance on oil: a rate cannot be drawn for this sample.
-      const b = computeBaselineBand(previous, {
-        minSamples: BAND.minSamples,
-        window: BAND.window,
-        watchSd: BAND.watchSd,
-        actSd: BAND.actSd,
-        floorAbsolute: BAND.floorPpm,
-        floorFraction: BAND.floorFraction,
-      });
-      const band =
-        b.status === 'ready' ? { lower: Math.max(0, b.mean - BAND.watchSd * b.spread), mean: b.mean, upper: b.watchAbove } : null;
-      const fromBaseline =
-        b.status === 'ready' ? { delta: value - b.mean, spreads: b.spread > 0 ? (value - b.mean) / b.spread : 0 } : null;
+      const stored = s.bands[code];
+      const band = stored ? bandInBasis(stored, seriesBasis, unitRate ? unitRate.rate : null) : null;
+      const halfWidth = band ? band.upper - band.mean : 0;
       points.push({
         sampleId: s.id,
         bottleCode: s.bottleCode,
@@ -105,11 +96,11 @@ export function shapeTrendSeries(input: {
         reported: r.value,
         qualifier: r.qualifier,
         level: s.levels[code] ?? 'steady',
-        band,
-        fromBaseline,
+        band: band && stored ? { ...band, n: stored.n } : null,
+        fromBaseline: band ? { delta: value - band.mean, spreads: halfWidth > 0 ? (value - band.mean) / halfWidth : 0 } : null,
+        inBaseline: s.inBaseline,
+        baselineNote: s.inBaseline ? null : s.baselineNote,
       });
-      // Only accepted samples build the baseline of the ones after them.
-      if (s.inBaseline && Number.isFinite(forBand)) previous.push(forBand);
     }
     return { code, name: info.name, group: info.group, unit, basis: seriesBasis, points };
   });

@@ -6,7 +6,8 @@ import { addMember, makeCrew, makeMachine, makeUser } from '../factories';
 import { openTestDb, truncateAll } from '../test-database';
 import { makeSample } from './lab-import-fixtures';
 
-// The demo stories on factory-made machines and samples shaped like the machines seed's (six samples each).
+// The demo stories on factory-made machines and samples shaped like the machines seed's (eight samples each:
+// four to make a ready baseline, the story after it).
 const db: Kysely<Database> = openTestDb();
 afterAll(async () => { await db.destroy(); });
 
@@ -32,8 +33,8 @@ beforeAll(async () => {
     const { key, crewId, ...row } = m;
     const machine = await makeMachine(db, crewId, lead.id, { ...row, meter: 'km', max_interval_distance: 6000 } as never);
     ids[key] = machine.id;
-    for (let i = 0; i < 6; i++) {
-      await makeSample(db, crewId, machine.id, lead.id, `${key}-${i + 1}`, { drawnOn: `2025-${String(i * 2 + 1).padStart(2, '0')}-1${i}`, odometer: 3000 * (i + 1), distanceOnOil: 3000 });
+    for (let i = 0; i < 8; i++) {
+      await makeSample(db, crewId, machine.id, lead.id, `${key}-${i + 1}`, { drawnOn: `${2024 + Math.floor(i / 6)}-${String((i % 6) * 2 + 1).padStart(2, '0')}-1${i}`, odometer: 3000 * (i + 1), distanceOnOil: 3000 });
     }
   }
   seeded = await db.transaction().execute((trx) => seedLabReports(trx, { crewIds: [school.id, solo.id], userId: lead.id }));
@@ -55,7 +56,7 @@ async function findingsOf(sampleId: string) {
 
 describe('seedLabReports', () => {
   test('imports every sample but one through the three layouts, with the raw files kept', async () => {
-    expect(seeded.samples).toBe(29);
+    expect(seeded.samples).toBe(39);
     const files = await db.selectFrom('lab_files').select('file_name').execute();
     const names = files.map((f) => f.file_name).join(' ');
     for (const lab of ['hollow-creek-oil-lab', 'thistlefen-tribology-bench', 'cinderpass-fluid-works']) expect(names).toContain(lab);

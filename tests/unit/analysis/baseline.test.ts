@@ -51,8 +51,10 @@ describe('computeTrendFit against NIST StRD linear regression', () => {
   });
 });
 
-describe('computeBaselineBand', () => {
-  const settings = { minSamples: 3, window: 10, watchSd: 2, actSd: 3, floorAbsolute: 2, floorFraction: 0.1 };
+describe('computeBaselineBand (prediction limits for small n)', () => {
+  // Check values: t quantiles from the NIST/SEMATECH e-Handbook of Statistical Methods, table 1.3.6.7.2
+  // (upper critical values of Student's t): t(0.99; 3) = 4.541, t(0.999; 3) = 10.215.
+  const settings = { minSamples: 3, window: 10, watchAlpha: 0.01, actAlpha: 0.001, floorAt: (level: number) => Math.hypot(0.5, 0.12 * level) };
 
   test.each([
     { previous: [], n: 0 },
@@ -62,32 +64,40 @@ describe('computeBaselineBand', () => {
     expect(computeBaselineBand(previous, settings)).toEqual({ status: 'building', n, needed: 3 });
   });
 
-  test('watch above mean + 2 sd and act from mean + 3 sd (D7720 approach, Sumpwise multiples)', () => {
+  test('watch above mean + t(0.99; n−1) · s · √(1 + 1/n), act from the same with t(0.999; n−1)', () => {
     const band = computeBaselineBand([10, 20, 30, 20], settings);
     if (band.status !== 'ready') throw new Error('expected a ready band');
     const sd = Math.sqrt(200 / 3);
     expect(band.mean).toBe(20);
     expect(band.sd).toBeCloseTo(sd, 12);
     expect(band.floored).toBe(false);
-    expect(band.watchAbove).toBeCloseTo(20 + 2 * sd, 12);
-    expect(band.actFrom).toBeCloseTo(20 + 3 * sd, 12);
+    expect(band.watchMultiple).toBeCloseTo(4.541 * Math.sqrt(1.25), 3);
+    expect(band.watchAbove).toBeCloseTo(20 + 4.541 * Math.sqrt(1.25) * sd, 2);
+    expect(band.actFrom).toBeCloseTo(20 + 10.215 * Math.sqrt(1.25) * sd, 2);
+    expect(band.lower).toBe(0);
   });
 
-  test('a perfectly flat history gets the floor, so a 1 ppm change stays inside the band', () => {
+  test('the multiples shrink as the baseline grows (the estimate of s firms up)', () => {
+    const small = computeBaselineBand([10, 11, 9, 10], settings);
+    const large = computeBaselineBand([10, 11, 9, 10, 10, 11, 9, 10, 10, 11], settings);
+    if (small.status !== 'ready' || large.status !== 'ready') throw new Error('expected ready bands');
+    expect(large.watchMultiple).toBeLessThan(small.watchMultiple);
+    expect(large.actMultiple).toBeLessThan(small.actMultiple);
+  });
+
+  test('a perfectly flat history gets the lab-scatter floor, so a 1 ppm change stays inside the band', () => {
     const band = computeBaselineBand([4, 4, 4, 4], settings);
     if (band.status !== 'ready') throw new Error('expected a ready band');
     expect(band.sd).toBe(0);
-    expect(band.spread).toBe(2);
+    expect(band.spread).toBeCloseTo(Math.hypot(0.5, 0.48), 12);
     expect(band.floored).toBe(true);
-    expect(band.watchAbove).toBe(8);
     expect(5).toBeLessThan(band.watchAbove);
   });
 
-  test('the floor scales with the mean (10 % of 60 ppm is 6 ppm)', () => {
+  test('the floor scales with the level (12 % of 60 ppm, with the 0.5 ppm resolution term)', () => {
     const band = computeBaselineBand([60, 60, 60], settings);
     if (band.status !== 'ready') throw new Error('expected a ready band');
-    expect(band.spread).toBe(6);
-    expect(band.watchAbove).toBe(72);
+    expect(band.spread).toBeCloseTo(Math.hypot(0.5, 7.2), 12);
   });
 
   test('only the last `window` samples count', () => {
@@ -95,5 +105,14 @@ describe('computeBaselineBand', () => {
     if (band.status !== 'ready') throw new Error('expected a ready band');
     expect(band.mean).toBe(10);
     expect(band.n).toBe(3);
+  });
+});
+
+describe('computeTrendFit slope standard error', () => {
+  test('matches the textbook formula on a small set', () => {
+    // y = 1, 3, 2, 5 at x = 0..3: slope 1.1, intercept 1.1, SSE 2.7, Sxx 5 (worked by hand); se = √(SSE/(n−2)/Sxx).
+    const fit = computeTrendFit([[0, 1], [1, 3], [2, 2], [3, 5]]);
+    expect(fit.slope).toBeCloseTo(1.1, 12);
+    expect(fit.slopeSe).toBeCloseTo(Math.sqrt(2.7 / 2 / 5), 12);
   });
 });

@@ -2,7 +2,8 @@ import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';
 import { analyseSample } from '~/lib/analysis/analyse-sample';
 import { computeBaseline, computeBaselineBand } from '~/lib/analysis/baseline';
-import { makeIntervalCall } from '~/lib/analysis/interval-call';
+import { replayHistory } from '~/lib/analysis/interval-call';
+import { judgeHistory } from '~/lib/analysis/judge-history';
 import { MEASURANDS, type MeasurandCode } from '~/lib/analysis/measurands';
 import type { Level, MachineProfile, SamplePoint } from '~/lib/analysis/types';
 
@@ -94,7 +95,7 @@ describe('properties (fast-check)', () => {
       ),
       { numRuns: 1500 },
     );
-  });
+  }, 60_000);
 
   test('scaling a whole history scales the baseline', () => {
     fc.assert(
@@ -108,7 +109,7 @@ describe('properties (fast-check)', () => {
           const scale = 1e-9 * Math.max(1, ...values.map((v) => Math.abs(v * k)));
           expect(Math.abs(scaled.mean - b.mean * k)).toBeLessThanOrEqual(scale);
           expect(Math.abs(scaled.sd - b.sd * k)).toBeLessThanOrEqual(scale);
-          const settings = { minSamples: 3, window: 10, watchSd: 2, actSd: 3, floorAbsolute: 0, floorFraction: 0.1 };
+          const settings = { minSamples: 3, window: 10, watchAlpha: 0.01, actAlpha: 0.0005, floorAt: (level: number) => 0.1 * level };
           const band = computeBaselineBand(values, settings);
           const scaledBand = computeBaselineBand(values.map((v) => v * k), settings);
           if (band.status === 'ready' && scaledBand.status === 'ready') {
@@ -122,29 +123,103 @@ describe('properties (fast-check)', () => {
       ),
       { numRuns: 300 },
     );
-  });
+  }, 60_000);
 
   test("the interval call never exceeds the manufacturer's interval, in distance or in days", () => {
     fc.assert(
       fc.property(scenarioArb, (s) => {
         const history = s.historyReadings.map((r, i) => buildSample(i, r, s.interval, s.product));
         const sample = buildSample(history.length, s.current, s.interval, s.product);
-        const c = makeIntervalCall({ machine: s.machine, history, sample });
+        const last = replayHistory({ machine: s.machine, samples: [...history, sample] }).at(-1)!;
+        const c = last.call;
         const max = s.machine.maxIntervalDistance;
         if (max !== undefined) {
-          expect(c.nextIntervalDistance).toBeLessThanOrEqual(max);
-          expect(c.nextSampleDue.distance - sample.odometer).toBeLessThanOrEqual(max);
+          expect(c.nextIntervalDistance!).toBeLessThanOrEqual(max);
+          expect(c.nextSampleDue.distance! - sample.odometer).toBeLessThanOrEqual(max);
         }
         expect(c.nextIntervalDistance).toBeGreaterThan(0);
         if (s.machine.maxIntervalDays !== undefined && c.nextSampleDue.date) {
           const days = (Date.parse(c.nextSampleDue.date) - Date.parse(sample.takenAt)) / 86_400_000;
           expect(days).toBeLessThanOrEqual(s.machine.maxIntervalDays);
         }
-        const worst = analyseSample({ machine: s.machine, history, sample }).worst;
-        if (worst === 'act') expect(c.call).toBe('shorten');
-        if (c.call === 'stretch') expect(worst).toBe('steady');
+        if (last.analysis.worst === 'act') expect(['shorten', 'fix-first']).toContain(c.call);
+        if (c.call === 'stretch') expect(last.analysis.worst).toBe('steady');
       }),
       { numRuns: 300 },
     );
-  });
+  }, 60_000);
+
+  // Whole histories with varying intervals and slow labs, judged as production judges them.
+  const historyArb = basesArb.chain((bases) =>
+    fc.record({
+      machine: machineArb,
+      readings: fc.array(readingsAround(bases), { minLength: 1, maxLength: 14 }),
+      intervals: fc.array(fc.integer({ min: 10, max: 12000 }), { minLength: 14, maxLength: 14 }),
+      labDays: fc.array(fc.integer({ min: -5, max: 120 }), { minLength: 14, maxLength: 14 }),
+      product: fc.constantFrom('Valley Trail 10W-40', 'Ridge Synth 15W-50'),
+    }),
+  );
+  function buildHistory(h: { readings: SamplePoint['readings'][]; intervals: number[]; labDays: number[]; product: string }): SamplePoint[] {
+    let odometer = 0;
+    return h.readings.map((readings, i) => {
+      odometer += h.intervals[i]!;
+      const takenAt = new Date(Date.UTC(2022, 0, 1) + i * 45 * 86_400_000).toISOString().slice(0, 10);
+      const resultsOn = new Date(Date.parse(takenAt) + h.labDays[i]! * 86_400_000).toISOString().slice(0, 10);
+      return { ...buildSample(i, readings, h.intervals[i]!, h.product), odometer, takenAt, resultsOn };
+    });
+  }
+
+  test("a stretch never goes beyond the manufacturer's interval", () => {
+    fc.assert(
+      fc.property(historyArb, (h) => {
+        for (const r of replayHistory({ machine: h.machine, samples: buildHistory(h) })) {
+          if (r.call.call !== 'stretch') continue;
+          if (h.machine.maxIntervalDistance !== undefined) expect(r.call.nextIntervalDistance!).toBeLessThanOrEqual(h.machine.maxIntervalDistance);
+          expect(r.call.nextIntervalDistance!).toBeLessThanOrEqual(r.call.basis.ceiling!);
+        }
+      }),
+      { numRuns: 200 },
+    );
+  }, 60_000);
+
+  test('a hold never shortens the regular interval', () => {
+    fc.assert(
+      fc.property(historyArb, (h) => {
+        for (const r of replayHistory({ machine: h.machine, samples: buildHistory(h) })) {
+          if (r.call.call !== 'hold' || r.call.basis.regularInterval === null) continue;
+          expect(r.call.nextIntervalDistance!).toBeGreaterThanOrEqual(r.call.basis.regularInterval);
+        }
+      }),
+      { numRuns: 200 },
+    );
+  }, 60_000);
+
+  test('"next sample by" is never before the results arrived (nor before the draw)', () => {
+    fc.assert(
+      fc.property(historyArb, (h) => {
+        const samples = buildHistory(h);
+        replayHistory({ machine: h.machine, samples }).forEach((r, i) => {
+          const due = r.call.nextSampleDue.date;
+          if (!due) return;
+          expect(due >= samples[i]!.takenAt).toBe(true);
+          expect(due >= samples[i]!.resultsOn!).toBe(true);
+        });
+      }),
+      { numRuns: 200 },
+    );
+  }, 60_000);
+
+  test('judgeHistory answers what replayHistory stores, sample by sample', () => {
+    fc.assert(
+      fc.property(historyArb, (h) => {
+        const samples = buildHistory(h);
+        const judged = judgeHistory({ machine: h.machine, samples });
+        const replayed = replayHistory({ machine: h.machine, samples });
+        expect(judged.map((j) => [j.sampleId, j.call, j.worst, j.nextIntervalDistance, j.findings.length])).toEqual(
+          replayed.map((r) => [r.sampleId, r.call.call, r.analysis.worst, r.call.nextIntervalDistance, r.analysis.findings.length]),
+        );
+      }),
+      { numRuns: 50 },
+    );
+  }, 60_000);
 });

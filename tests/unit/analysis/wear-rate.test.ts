@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { computeWearRate, findRateBasis } from '~/lib/analysis/wear-rate';
+import { computeTopUpFactor, computeWearRate, findRateBasis } from '~/lib/analysis/wear-rate';
 
 describe('computeWearRate', () => {
   test.each([
@@ -15,11 +15,26 @@ describe('computeWearRate', () => {
     expect(findRateBasis(unit)).toBe(per);
   });
 
-  test('top-up correction: 0.5 l added to a 2 l fill scales ppm by 2.5 / 2 (documented approximation)', () => {
-    const r = computeWearRate(40, 4000, 'km', { topUpVolume: 0.5, oilVolume: 2 });
-    expect(r?.correctedPpm).toBeCloseTo(50, 12);
-    expect(r?.rate).toBeCloseTo(12.5, 12);
+  test('worked example of the mass-balance top-up correction', () => {
+    // A 3 L sump kept full with 0.6 L of top-up over the run, 30 ppm at the drain (worked by hand from the
+    // derivation in wear-rate.ts): T/V = 0.2, factor = 0.2 / (1 − e^−0.2) = 0.2 / 0.1812692 = 1.1033311,
+    // so the engine shed 33.10 ppm-of-sump of metal. The first-order form c · (1 + T/2V) gives 33.0; treating
+    // the lost oil as if it carried the final 30 ppm (c · (1 + T/V)) would say 36.0, twice the correction.
+    expect(computeTopUpFactor(0.6, 3)).toBeCloseTo(1.1033311, 7);
+    const r = computeWearRate(30, 3000, 'km', { topUpVolume: 0.6, oilVolume: 3 });
+    expect(r?.correctedPpm).toBeCloseTo(33.09993, 4);
+    expect(r?.rate).toBeCloseTo(11.03331, 4);
     expect(r?.topUpCorrected).toBe(true);
+    expect(r!.correctedPpm).toBeLessThan(30 * (1 + 0.6 / 3));
+    expect(Math.abs(r!.correctedPpm - 30 * (1 + 0.6 / 6))).toBeLessThan(0.11);
+  });
+
+  test.each([
+    { t: 0, v: 3, factor: 1 },
+    { t: 0.3, v: 0, factor: 1 },
+    { t: 1e-9, v: 3, factor: 1 },
+  ])('top-up factor with $t L on $v L is $factor (no correction without a top-up or a sump volume)', ({ t, v, factor }) => {
+    expect(computeTopUpFactor(t, v)).toBeCloseTo(factor, 9);
   });
 
   test('no correction without the fill volume, and no rate without distance', () => {

@@ -43,7 +43,7 @@ describe('recogniseHeader: oil condition', () => {
     ['TBN', 'TBN', 'mg KOH/g'], ['Base Number (mg KOH/g)', 'TBN', 'mg KOH/g'], ['TAN', 'TAN', 'mg KOH/g'],
     ['Acid number', 'TAN', 'mg KOH/g'], ['Fuel %', 'FUEL', '%'], ['Fuel dilution', 'FUEL', '%'],
     ['Water %', 'WATER', '%'], ['Water (ppm)', 'WATER', 'ppm'], ['H2O', 'WATER', '%'], ['Flash Point', 'FLASH', '°C'],
-    ['Flash Point (°F)', 'FLASH', '°F'], ['Insolubles %', 'INSOL', '%'], ['Pentane insolubles', 'INSOL', '%'],
+    ['Flash Point (°F)', 'FLASH', '°F'], ['Insolubles %', 'INSOL', '%'], ['Oxidation (abs/cm)', 'OXI', undefined], ['Nitration', 'NIT', undefined], ['Pentane insolubles', 'INSOL', '%'],
   ])('%j → %s in %s', (header, code, unit) => {
     expect(recogniseHeader(header)).toEqual({ kind: 'measurand', code, unit });
   });

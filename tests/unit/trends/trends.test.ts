@@ -3,13 +3,13 @@ import { describeRateUnit, findGradeChanges, shapeTrendSeries, trendQuerySchema,
 import { buildChartDatasets, buildGradeMarks } from '~/components/wear-chart/chart-data';
 import { KM_PER_MI } from '~/lib/units/units';
 
-// Invented demo figures throughout; the check values are worked by hand from the engine's band rule
-// (mean ± 2 × spread, spread = max(sd, 2 ppm, 10 % of the mean): BASELINE_JUMP in rule-definitions.ts).
+// Invented demo figures throughout. The chart draws the bands the engine stored when it judged each sample
+// (see replayHistory); these tests check the drawing of those stored bands in either basis.
 
 function sample(i: number, over: Partial<TrendSampleRow> = {}): TrendSampleRow {
   return {
     id: `s${i}`, bottleCode: `B${i}`, drawnOn: `2026-0${i}-01`, odometerStored: 1000 * i, distanceOnOilStored: 1000,
-    grade: '10W-40', topUpL: 0, oilVolumeL: 2, inBaseline: true, readings: {}, levels: {}, ...over,
+    grade: '10W-40', topUpL: 0, oilVolumeL: 2, inBaseline: true, baselineNote: null, readings: {}, levels: {}, bands: {}, ...over,
   };
 }
 
@@ -35,32 +35,47 @@ describe('trendQuerySchema', () => {
 });
 
 describe('shapeTrendSeries', () => {
-  const flat = [10, 10, 10, 16].map((v, i) => sample(i + 1, { readings: { Fe: { value: v, qualifier: null } } }));
+  // The engine's stored Fe band at sample 4: mean 10 per 1,000 km, watch above 14, act from 20, on a rate basis;
+  // 1,000 km on the oil and no top-up, so one rate unit is one ppm at that sample (toReported 1).
+  const stored = { basis: 'rate' as const, n: 3, mean: 10, lower: 6, watchAbove: 14, actFrom: 20, toReported: 1 };
+  const flat = [10, 10, 10, 16].map((v, i) =>
+    sample(i + 1, { readings: { Fe: { value: v, qualifier: null } }, bands: i === 3 ? { Fe: stored } : {} }));
 
   test.each([
-    // index, expected band (null while fewer than 3 previous samples), delta
+    // index, expected band (null while the engine stored none: building), delta
     [0, null, null],
-    [1, null, null],
     [2, null, null],
-    // previous 10,10,10: mean 10, sd 0, spread floored to 2 → band 6–14; 16 − 10 = +6 = 3 spreads.
-    [3, { lower: 6, mean: 10, upper: 14 }, { delta: 6, spreads: 3 }],
+    // 16 − 10 = +6, one and a half times the band's upper half-width (4).
+    [3, { lower: 6, mean: 10, upper: 14, actFrom: 20, n: 3 }, { delta: 6, spreads: 1.5 }],
   ])('point %i of a flat history carries band %j', (i, band, from) => {
     const [series] = shapeTrendSeries({ meter: 'km', samples: flat, measurands: ['Fe'], basis: 'ppm' });
     expect(series!.points[i]!.band).toEqual(band);
     expect(series!.points[i]!.fromBaseline).toEqual(from);
   });
 
-  test('samples outside the baseline do not build it', () => {
-    const rows = [sample(1, { readings: { Fe: { value: 10, qualifier: null } } }), sample(2, { inBaseline: false, readings: { Fe: { value: 90, qualifier: null } } }),
-      sample(3, { readings: { Fe: { value: 10, qualifier: null } } }), sample(4, { readings: { Fe: { value: 10, qualifier: null } } }), sample(5, { readings: { Fe: { value: 10, qualifier: null } } })];
+  test('a rate band is drawn in ppm with the factor the engine used, and a ppm band as a rate', () => {
+    const rows = [sample(1, { distanceOnOilStored: 2000, readings: { Fe: { value: 30, qualifier: null }, Na: { value: 8, qualifier: null } },
+      bands: { Fe: { ...stored, toReported: 2 }, Na: { basis: 'ppm', n: 4, mean: 5, lower: 2, watchAbove: 9, actFrom: 12, toReported: 1 } } })];
+    const [fePpm, naRate] = [
+      shapeTrendSeries({ meter: 'km', samples: rows, measurands: ['Fe'], basis: 'ppm' })[0]!,
+      shapeTrendSeries({ meter: 'km', samples: rows, measurands: ['Na'], basis: 'rate' })[0]!,
+    ];
+    expect(fePpm.points[0]!.band).toEqual({ lower: 12, mean: 20, upper: 28, actFrom: 40, n: 3 });
+    // 2,000 km on the oil: 1 ppm is 0.5 ppm per 1,000 km.
+    expect(naRate.points[0]!.band).toEqual({ lower: 1, mean: 2.5, upper: 4.5, actFrom: 6, n: 4 });
+  });
+
+  test('samples outside the baseline are marked, with the reason', () => {
+    const rows = [sample(1, { readings: { Fe: { value: 10, qualifier: null } } }), sample(2, { inBaseline: false, baselineNote: 'Bottle drawn after a top-up', readings: { Fe: { value: 90, qualifier: null } } })];
     const [series] = shapeTrendSeries({ meter: 'km', samples: rows, measurands: ['Fe'], basis: 'ppm' });
-    expect(series!.points[4]!.band).toEqual({ lower: 6, mean: 10, upper: 14 });
+    expect(series!.points.map((p) => [p.inBaseline, p.baselineNote])).toEqual([[true, null], [false, 'Bottle drawn after a top-up']]);
   });
 
   test.each([
-    // ppm 20 over 1,000 km → 20 per 1,000 km; 2 L fill with 0.5 L top-up → 20 × 2.5 / 2 = 25 (the engine's correction).
+    // ppm 20 over 1,000 km → 20 per 1,000 km; 2 L fill with 0.5 L top-up → the engine's mass-balance factor
+    // 0.25 / (1 − e^−0.25) = 1.1302 → 22.60 (see wear-rate.ts).
     ['km', 1000, 0, 20],
-    ['km', 1000, 0.5, 25],
+    ['km', 1000, 0.5, 20 * (0.25 / -Math.expm1(-0.25))],
     ['km', 500, 0, 40],
     // A mi machine stores km: 1,609.344 km on the oil is 1,000 mi → 20 per 1,000 mi (NIST SP 811 mile).
     ['mi', 1000 * KM_PER_MI, 0, 20],
@@ -101,7 +116,8 @@ describe('findGradeChanges', () => {
 });
 
 describe('buildChartDatasets', () => {
-  const rows = [10, 10, 10, 16].map((v, i) => sample(i + 1, { readings: { Fe: { value: v, qualifier: null }, Al: { value: 2, qualifier: null } }, levels: i === 3 ? { Fe: 'act' } : {} }));
+  const band = { basis: 'rate' as const, n: 3, mean: 10, lower: 6, watchAbove: 14, actFrom: 20, toReported: 1 };
+  const rows = [10, 10, 10, 16].map((v, i) => sample(i + 1, { readings: { Fe: { value: v, qualifier: null }, Al: { value: 2, qualifier: null } }, levels: i === 3 ? { Fe: 'act' } : {}, bands: i === 3 ? { Fe: band } : {} }));
   const series = shapeTrendSeries({ meter: 'km', samples: rows, measurands: ['Fe', 'Al'], basis: 'ppm' });
   const response = { machine: { id: 'm', name: 'M', meter: 'km' as const }, basis: 'ppm' as const, x: 'odometer' as const, series, notes: [],
     gradeChanges: [{ date: '2026-03-01', odometer: 3000, from: '10W-40', to: '15W-50' }] };
