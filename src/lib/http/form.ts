@@ -1,4 +1,4 @@
-import { readBodyText } from './json';
+import { readBodyBytes, readBodyText } from './json';
 
 /** Cap on an HTML form post (sign-in, invitations, settings); uploads have their own limits elsewhere. */
 export const DEFAULT_FORM_LIMIT_BYTES = 16 * 1024;
@@ -14,6 +14,25 @@ export async function readForm(request: Request, maxBytes = DEFAULT_FORM_LIMIT_B
   const body = await readBodyText(request, maxBytes);
   if (!body.ok) return { ok: false, response: new Response('The form is larger than this page accepts.', { status: 413 }) };
   return { ok: true, form: new URLSearchParams(body.text) };
+}
+
+export type ParsedMultipart = { ok: true; form: FormData } | { ok: false; reason: 'too-large'; size: number } | { ok: false; reason: 'invalid' };
+
+/**
+ * Reads a multipart/form-data body through the bounded reader, so a body without a length header (chunked)
+ * is cut off at `maxBytes` instead of buffered whole; then parses it.
+ */
+export async function readMultipartForm(request: Request, maxBytes: number): Promise<ParsedMultipart> {
+  const type = request.headers.get('content-type') ?? '';
+  if (!/^multipart\/form-data\b/i.test(type)) return { ok: false, reason: 'invalid' };
+  const body = await readBodyBytes(request, maxBytes);
+  if (!body.ok) return { ok: false, reason: 'too-large', size: body.size };
+  try {
+    const bytes = Buffer.from(body.bytes.buffer, body.bytes.byteOffset, body.bytes.byteLength);
+    return { ok: true, form: await new Request('http://local/', { method: 'POST', headers: { 'content-type': type }, body: bytes as unknown as BodyInit }).formData() };
+  } catch {
+    return { ok: false, reason: 'invalid' };
+  }
 }
 
 /** A form value as trimmed text ('' when absent). */

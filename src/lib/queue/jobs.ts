@@ -5,6 +5,7 @@ import type { Database } from '../db/database';
 import { registerMailJobs, type MailJobOptions } from '../mail/mail-jobs';
 import type { MailTransport } from '../mail/transport';
 import type { JobRegistration } from './job-queue';
+import { registerRateLimitJobs } from '../rate-limit/rate-limit-jobs';
 
 // Every job family the worker runs is registered here. Issue 8 (reminders, digests) adds its queues and
 // pg-boss schedules (`boss.schedule(name, cron)`) as further entries, each returning a JobRegistration.
@@ -32,5 +33,6 @@ export async function registerJobs(boss: PgBoss, deps: JobDependencies): Promise
     }),
   );
   registrations.push(await (await import('../alerts/alert-jobs')).registerAlertJobs(boss, { db: deps.db, ...(deps.log ? { log: deps.log } : {}) }));
+  registrations.push(await registerRateLimitJobs(boss, { db: deps.db, ...(deps.log ? { log: deps.log } : {}) }));
   return registrations;
 }
