@@ -19,6 +19,9 @@ import {
 import { CODE_ALPHABET, explainIssuedCode, hasValidCheckSymbol, ISSUED_DATA_LENGTH, normaliseBottleCode } from '../samples/bottle-code';
 import {
   computeHeaderSignature,
+  countLines,
+  MAX_LAB_FILE_LINES,
+  tooManyLinesMessage,
   type ConfirmHooks,
   type ImportPreview,
   type ImportSummary,
@@ -76,6 +79,8 @@ export async function storeLabFile(
     const status = decoded.error.code === 'empty-file' ? 400 : 415;
     return refuse(status, decoded.error.code.replace(/-/g, '_'), `"${cleanFileName(input.fileName)}": ${decoded.error.message}`);
   }
+  const lines = countLines(decoded.text);
+  if (lines > MAX_LAB_FILE_LINES) return refuse(413, 'too_many_lines', tooManyLinesMessage(cleanFileName(input.fileName), lines));
   const sha256 = computeFileHash(input.bytes);
   const existing = await repo.findLabFileByHash(db, input.crewId, sha256);
   if (existing) return answerExisting(existing);
@@ -175,6 +180,9 @@ export async function previewLabImport(
   if (!content) return refuse(404, 'not_found', 'No such lab file in this crew.');
   const decoded = decodeLabFile(new Uint8Array(content.buffer, content.byteOffset, content.byteLength));
   if ('error' in decoded) return refuse(415, decoded.error.code.replace(/-/g, '_'), decoded.error.message);
+  // Files stored before the cap existed are held to it too.
+  const lines = countLines(decoded.text);
+  if (lines > MAX_LAB_FILE_LINES) return refuse(413, 'too_many_lines', tooManyLinesMessage(fileRow.file_name, lines));
 
   const signature = computeHeaderSignature(readHeaders(decoded.text));
   const profileRow = await repo.findProfileBySignature(db, input.crewId, signature);
