@@ -55,7 +55,14 @@ describe('faults', () => {
     const body = await (await fetch(`${app.baseUrl}/api/health`)).json() as { status: string; database: { reachable: boolean; reason?: string } };
     expect(body.status).toBe('unavailable');
     expect(body.database.reachable).toBe(false);
-    expect(body.database.reason).toBeTruthy();
+    // The raw error (host, port, errno) stays in the server log.
+    expect(body.database.reason).toBeUndefined();
+    expect(JSON.stringify(body)).not.toMatch(/ECONN|127\.0\.0\.1|connect|terminat/i);
+    // Pages answer the friendly 503 page, not a 500.
+    const page = await fetch(`${app.baseUrl}/sign-in`);
+    expect(page.status).toBe(503);
+    expect(page.headers.get('retry-after')).toBe('30');
+    expect(await page.text()).toContain('cannot reach its database right now');
 
     await execFileAsync('bash', [dbSh, 'start']);
     const back = Date.now();
