@@ -16,6 +16,8 @@ import {
   type LabCsvIssue,
   type LabCsvMappingTarget,
 } from '../import/lab-csv';
+import { checkCrewQuota } from '../storage-quota/storage-quota';
+import { sumCrewStorageBytes } from '../storage-quota/storage-quota.repository';
 import { CODE_ALPHABET, explainIssuedCode, hasValidCheckSymbol, ISSUED_DATA_LENGTH, normaliseBottleCode } from '../samples/bottle-code';
 import {
   computeHeaderSignature,
@@ -68,7 +70,7 @@ export interface StoredLabFile {
  */
 export async function storeLabFile(
   db: Db,
-  input: { crewId: string; userId: string; fileName: string; bytes: Uint8Array },
+  input: { crewId: string; userId: string; fileName: string; bytes: Uint8Array; quotaBytes?: number },
 ): Promise<LabImportResult<StoredLabFile>> {
   if (input.bytes.byteLength > MAX_LAB_FILE_BYTES) {
     const mib = (input.bytes.byteLength / (1024 * 1024)).toFixed(1);
@@ -84,6 +86,8 @@ export async function storeLabFile(
   const sha256 = computeFileHash(input.bytes);
   const existing = await repo.findLabFileByHash(db, input.crewId, sha256);
   if (existing) return answerExisting(existing);
+  const overQuota = checkCrewQuota(await sumCrewStorageBytes(db, input.crewId), input.bytes.byteLength, input.quotaBytes);
+  if (overQuota) return refuse(413, 'quota_exceeded', overQuota);
   const inserted = await repo.insertLabFile(db, {
     crewId: input.crewId,
     sha256,
