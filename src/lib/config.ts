@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { isLoopbackHost, parseTrustProxy } from './http/client-address';
+import './db/embedded-password';
 
 /** Every setting Sumpwise reads from the environment, with its default for a local machine. */
 export const configSchema = z.object({
