@@ -11,8 +11,8 @@ import { hashPassword } from '../../src/lib/auth/password';
 import { DEMO_ACCOUNTS, DEMO_SCHOOL_NAME } from '../../sample-data/seed-accounts';
 import { SERVE_ARGS } from '../../scripts/lib/build';
 import { freePort, httpOk, startService, stopService, waitFor } from '../../scripts/lib/processes';
-import { baseUrl } from './helpers/browser';
-import { sessionCookieFor } from './helpers/sign-in';
+import { DESKTOP, PHONE, baseUrl, launchBrowser, newContext, screenshot } from './helpers/browser';
+import { sessionCookieFor, signInAs } from './helpers/sign-in';
 
 const lead = DEMO_ACCOUNTS.find((a) => a.key === 'lead')!;
 let db: Kysely<Database>;
@@ -168,6 +168,22 @@ describe('3. a 5 MB lab file', () => {
     expect(html).toContain(`${lines.length - 1 - 200} more rows that need a choice are not listed`);
     const attention = await fetch(`${baseUrl()}${body.previewUrl}?rows=attention`, { headers: { cookie: leadCookie } });
     expect(await attention.text()).toContain('aria-current="page">Only rows that need attention');
+    // What a lead sees, on a phone and on a desk: the counts, the notice about unlisted rows, the filter.
+    const browser = await launchBrowser();
+    try {
+      for (const [name, viewport] of [['phone', PHONE], ['desktop', DESKTOP]] as const) {
+        const context = await newContext(browser, viewport);
+        const page = await context.newPage();
+        await signInAs(page, lead.email, lead.password);
+        await page.goto(`${body.previewUrl}?rows=attention`);
+        await page.getByTestId('preview-hidden-attention').scrollIntoViewIfNeeded();
+        expect(await page.getByTestId('preview-hidden-attention').textContent()).toContain('more rows that need a choice are not listed');
+        await screenshot(page, `preview-5mb-${name}`);
+        await context.close();
+      }
+    } finally {
+      await browser.close();
+    }
   }, 60_000);
 
   test('5 MB of one-line rows (260,000 of them) is refused at upload with a sentence, quickly', async () => {
