@@ -62,6 +62,22 @@ DATA="$BASE/data"
 SOCK="$BASE/run"
 LOG="$BASE/server.log"
 
+# Password (scram-sha-256) authentication, even on loopback: any local user or process could otherwise sign in
+# as the database owner. One generated password per clone, kept in .data/pg-password (mode 600, owned by whoever
+# runs the project); clients read it from there (src/lib/db/embedded-password.ts sets PGPASSWORD), so a
+# DATABASE_URL without a password keeps working.
+SECRET="$ROOT/.data/pg-password"
+ensure_secret() {
+  mkdir -p "$ROOT/.data"
+  if [ ! -s "$SECRET" ]; then
+    (umask 077; head -c 32 /dev/urandom | base64 | tr -dc 'A-Za-z0-9' | head -c 32 > "$SECRET")
+  fi
+  chmod 600 "$SECRET"
+  PGPASSWORD=$(cat "$SECRET")
+  export PGPASSWORD
+}
+ensure_secret
+
 # From / so the server's user is never asked to enter a folder it cannot (a clone under a mode-700 home).
 pg() { (cd / && "${RUN[@]}" "$PGBIN/$1" "${@:2}"); }
 psql_admin() { (cd / && "${RUN[@]}" "$PGBIN/psql" -X -q -v ON_ERROR_STOP=1 -h 127.0.0.1 -p "$PORT" -U "$DB_USER" -d postgres "$@"); }
@@ -75,8 +91,14 @@ init_cluster() {
   if [ ! -s "$DATA/PG_VERSION" ]; then
     say "creating a new cluster in $DATA"
     rm -rf "$DATA"
-    pg initdb -D "$DATA" -U "$DB_USER" --auth=trust --encoding=UTF8 --locale=C.UTF-8 >/dev/null \
-      || pg initdb -D "$DATA" -U "$DB_USER" --auth=trust --encoding=UTF8 --locale=C >/dev/null
+    # initdb reads the password from a file the server's user can read; it is removed right after.
+    local pwfile="$BASE/initdb-password"
+    (umask 077; printf '%s\n' "$PGPASSWORD" > "$pwfile")
+    [ $AS_ROOT = 1 ] && chown postgres:postgres "$pwfile"
+    pg initdb -D "$DATA" -U "$DB_USER" --auth=scram-sha-256 --pwfile="$pwfile" --encoding=UTF8 --locale=C.UTF-8 >/dev/null \
+      || pg initdb -D "$DATA" -U "$DB_USER" --auth=scram-sha-256 --pwfile="$pwfile" --encoding=UTF8 --locale=C >/dev/null \
+      || { rm -f "$pwfile"; die "initdb failed in $DATA"; }
+    rm -f "$pwfile"
     # Loopback only, never a public interface.
     {
       echo "listen_addresses = '127.0.0.1'"
@@ -106,7 +128,7 @@ port_owner_is_other() {
 
 start() {
   init_cluster
-  if ready && ! port_owner_is_other; then say "already running on 127.0.0.1:$PORT"; return 0; fi
+  if ready && ! port_owner_is_other; then require_password; say "already running on 127.0.0.1:$PORT"; return 0; fi
   if port_owner_is_other; then
     die "port $PORT on 127.0.0.1 is taken by another PostgreSQL; set SUMPWISE_PG_PORT to a free port"
   fi
@@ -133,7 +155,18 @@ start() {
     || { tail -20 "$LOG" >&2 || true; die "the server did not start (log: $LOG)"; }
   for _ in $(seq 1 100); do ready && break; sleep 0.1; done
   ready || die "the server started but does not answer on 127.0.0.1:$PORT (log: $LOG)"
+  require_password
   say "running on 127.0.0.1:$PORT (data: $DATA)"
+}
+
+# A cluster made before passwords were required still trusts every local connection: give the owner the
+# clone's password while trust still lets us in, then switch pg_hba.conf to scram-sha-256 and reload.
+require_password() {
+  grep -qE '^[^#]*[[:space:]]trust[[:space:]]*$' "$DATA/pg_hba.conf" 2>/dev/null || return 0
+  say "switching this cluster from trust to password (scram-sha-256) authentication"
+  psql_admin -c "alter role $DB_USER password '$PGPASSWORD'" >/dev/null
+  (cd / && "${RUN[@]}" sed -i -E 's/^([^#]*[[:space:]])trust[[:space:]]*$/\1scram-sha-256/' "$DATA/pg_hba.conf")
+  pg pg_ctl -D "$DATA" reload >/dev/null
 }
 
 stop() {

@@ -1,31 +1,146 @@
-// Serves the built app: Astro's own handler (static files, then pages and endpoints) behind a plain HTTP
-// server that puts the security headers on every response, static files included (the adapter serves those
-// before the app's middleware runs). Usage: HOST=127.0.0.1 PORT=4321 node --import tsx scripts/serve.ts
+// Serves the built app. A small supervisor (the primary process) starts APP_PROCESSES app processes with
+// Node's cluster module, all answering on one port, and starts a new one whenever one dies, with a line in
+// the log; SIGTERM or SIGINT stops them in order (each finishes its open requests). Each app process runs
+// Astro's own handler behind a plain HTTP server that puts the security headers on every response (static
+// files included: the adapter serves those before the app's middleware runs) and decides which address a
+// request came from (TRUST_PROXY) before Astro sees any forwarded header.
+//
+// Usage: node --import tsx scripts/serve.ts               (what `npm start` and the e2e tests run)
+//        node --import tsx scripts/serve.ts --production  (`npm run serve`: the production start, never a dev mailbox)
+import cluster, { type Worker } from 'node:cluster';
+import { existsSync } from 'node:fs';
 import http from 'node:http';
 import path from 'node:path';
 import { pathToFileURL } from 'node:url';
+import { readConfig, type AppConfig } from '../src/lib/config';
+import { FORWARDED_HEADERS, resolveClientAddress } from '../src/lib/http/client-address';
 import { securityHeaders } from '../src/lib/http/security-headers';
 import { ROOT } from './lib/processes';
 
-process.env.ASTRO_NODE_AUTOSTART = 'disabled';
-const entry = pathToFileURL(path.join(ROOT, 'dist/server/entry.mjs')).href;
-const { handler } = (await import(entry)) as { handler: http.RequestListener };
+/** Exit code of an app process whose port is taken: restarting cannot help, so the supervisor stops. */
+const EXIT_PORT_IN_USE = 78;
+/** Most app processes one supervisor starts (common practice: about one per core; no published source). */
+const MAX_APP_PROCESSES = 64;
+/** Time an app process gets to finish open requests on stop before it is killed. */
+const STOP_GRACE_MS = 10_000;
 
-const host = process.env.HOST ?? '127.0.0.1';
-const port = Number(process.env.PORT ?? 4321);
-const headers = Object.entries(securityHeaders());
-
-const server = http.createServer((req, res) => {
-  // Set first: a page's own headers (written later by the app) take precedence over these defaults.
-  for (const [name, value] of headers) res.setHeader(name, value);
-  handler(req, res);
-});
-server.on('error', (error: NodeJS.ErrnoException) => {
-  console.error(error.code === 'EADDRINUSE' ? `port ${port} on ${host} is already in use` : `server error: ${error.message}`);
+function fail(message: string): never {
+  console.error(`[serve] ${message}`);
   process.exit(1);
-});
-server.listen(port, host, () => console.log(`listening on http://${host}:${port}`));
+}
 
-const stop = () => server.close(() => process.exit(0));
-process.on('SIGTERM', stop);
-process.on('SIGINT', stop);
+function readSettings(): { config: AppConfig; processes: number } {
+  const production = process.argv.includes('--production');
+  if (production && process.env.DEV_MAILBOX === '1') {
+    fail('the production start never serves the dev mailbox: unset DEV_MAILBOX (it is for `npm start` on a loopback address only).');
+  }
+  let config: AppConfig;
+  try {
+    config = readConfig(production ? { ...process.env, DEV_MAILBOX: '0' } : process.env);
+  } catch (error) {
+    fail(error instanceof Error ? error.message : String(error));
+  }
+  const raw = process.env.APP_PROCESSES ?? '1';
+  const processes = Number(raw);
+  if (!/^\d+$/.test(raw) || processes < 1 || processes > MAX_APP_PROCESSES) {
+    fail(`APP_PROCESSES must be a whole number from 1 to ${MAX_APP_PROCESSES}, not "${raw}".`);
+  }
+  return { config, processes };
+}
+
+async function runSupervisor(): Promise<void> {
+  const { config, processes } = readSettings();
+  if (!existsSync(path.join(ROOT, 'dist/server/entry.mjs'))) fail('the app is not built: run `npm run build` first.');
+  // The app processes read their settings from the environment; the production start pins the mailbox off.
+  if (process.argv.includes('--production')) process.env.DEV_MAILBOX = '0';
+  let stopping = false;
+  let quickDeaths = 0;
+  const startedAt = new Map<number, number>();
+
+  const fork = (): Worker => {
+    const worker = cluster.fork();
+    startedAt.set(worker.id, Date.now());
+    return worker;
+  };
+
+  cluster.on('exit', (worker, code, signal) => {
+    const lived = Date.now() - (startedAt.get(worker.id) ?? 0);
+    startedAt.delete(worker.id);
+    if (stopping) return;
+    if (code === EXIT_PORT_IN_USE) {
+      console.error(`[serve] port ${config.PORT} on ${config.HOST} is already in use; stopping.`);
+      stopping = true;
+      for (const w of Object.values(cluster.workers ?? {})) w?.kill('SIGTERM');
+      process.exitCode = 1;
+      return;
+    }
+    // A process that dies right after starting again and again waits longer each time (up to 10 s), so a
+    // crash at start-up does not spin the CPU; one that ran a while is replaced at once.
+    quickDeaths = lived < 5_000 ? quickDeaths + 1 : 0;
+    const delay = quickDeaths === 0 ? 0 : Math.min(10_000, 250 * 2 ** (quickDeaths - 1));
+    console.error(`[serve] app process ${worker.process.pid} died (${signal ?? `exit ${code}`}) after ${(lived / 1000).toFixed(1)} s; starting another${delay ? ` in ${delay} ms` : ''}`);
+    setTimeout(() => { if (!stopping) fork(); }, delay);
+  });
+
+  let listening = 0;
+  cluster.on('listening', () => {
+    listening += 1;
+    if (listening === processes) console.log(`listening on http://${config.HOST}:${config.PORT} (${processes} app process${processes === 1 ? '' : 'es'})`);
+  });
+
+  const stop = (signal: NodeJS.Signals) => {
+    if (stopping) return;
+    stopping = true;
+    const workers = Object.values(cluster.workers ?? {}).filter((w): w is Worker => w !== undefined);
+    console.log(`[serve] ${signal}: stopping ${workers.length} app process${workers.length === 1 ? '' : 'es'}`);
+    const killTimer = setTimeout(() => { for (const w of workers) w.process.kill('SIGKILL'); }, STOP_GRACE_MS);
+    killTimer.unref();
+    // disconnect(): the process stops accepting, finishes its open requests, then exits.
+    for (const w of workers) w.disconnect();
+    const check = setInterval(() => {
+      if (workers.every((w) => w.isDead())) {
+        clearInterval(check);
+        process.exit(0);
+      }
+    }, 50);
+  };
+  process.on('SIGTERM', () => stop('SIGTERM'));
+  process.on('SIGINT', () => stop('SIGINT'));
+
+  for (let i = 0; i < processes; i++) fork();
+}
+
+async function runAppProcess(): Promise<void> {
+  const { config } = readSettings();
+  process.env.ASTRO_NODE_AUTOSTART = 'disabled';
+  const entry = pathToFileURL(path.join(ROOT, 'dist/server/entry.mjs')).href;
+  const { handler } = (await import(entry)) as { handler: http.RequestListener };
+  const headers = Object.entries(securityHeaders());
+
+  const server = http.createServer((req, res) => {
+    // Astro takes the client address from the first X-Forwarded-For entry. Replace the header with the one
+    // address we trust, and drop the other forwarded headers when no proxy is trusted.
+    const address = resolveClientAddress(req.socket.remoteAddress, req.headers['x-forwarded-for'], config.TRUST_PROXY);
+    const strip = config.TRUST_PROXY > 0 ? ['x-forwarded-for', 'forwarded', 'x-real-ip'] : FORWARDED_HEADERS;
+    for (const name of strip) delete req.headers[name];
+    if (address) req.headers['x-forwarded-for'] = address;
+    // Set first: a page's own headers (written later by the app) take precedence over these defaults.
+    for (const [name, value] of headers) res.setHeader(name, value);
+    handler(req, res);
+  });
+  server.on('error', (error: NodeJS.ErrnoException) => {
+    if (error.code === 'EADDRINUSE') process.exit(EXIT_PORT_IN_USE);
+    console.error(`[serve] server error: ${error.message}`);
+    process.exit(1);
+  });
+  server.listen(config.PORT, config.HOST);
+
+  const stop = () => server.close(() => process.exit(0));
+  // Ctrl-C reaches every process of the terminal: each app process finishes its requests and exits.
+  process.on('SIGTERM', stop);
+  process.on('SIGINT', stop);
+  // The supervisor is gone (stopped in order, or killed): nothing routes requests here any more.
+  process.on('disconnect', () => process.exit(0));
+}
+
+await (cluster.isPrimary ? runSupervisor() : runAppProcess());

@@ -6,6 +6,7 @@ import { getLucia } from './lib/auth/lucia';
 import { loadSession } from './lib/auth/session';
 import { isForbiddenCrossSiteWrite } from './lib/http/origin-check';
 import { getConfig } from './lib/config';
+import { databaseUnavailableResponse, isDatabaseUnavailable, logDatabaseUnavailable } from './lib/http/unavailable';
 
 /** Writes that carry their own proof (a signed token) and are POSTed by mail providers' servers. */
 const ORIGIN_EXEMPT_PATHS = ['/api/unsubscribe'];
@@ -29,18 +30,32 @@ export const onRequest = defineMiddleware(async (context, next) => {
   if (isForbiddenCrossSiteWrite(context.request.method, context.url.pathname, context.request.headers, { allowedOrigins, exemptPaths: ORIGIN_EXEMPT_PATHS })) {
     return withSecurityHeaders(new Response('Cross-site POST form submissions are forbidden', { status: 403, headers: { 'content-type': 'text/plain' } }));
   }
-  const loaded = await loadSession(getDb(), getLucia(), context.cookies).catch((error: unknown) => {
-    // The health check must still answer while the database is down; every other route fails loudly.
-    if (context.url.pathname === '/api/health') return null;
-    throw error;
-  });
+  let loaded: Awaited<ReturnType<typeof loadSession>>;
+  try {
+    loaded = await loadSession(getDb(), getLucia(), context.cookies);
+  } catch (error) {
+    // The health check must still answer while the database is down; other routes get the friendly 503.
+    if (context.url.pathname === '/api/health') loaded = null;
+    else if (isDatabaseUnavailable(error)) {
+      logDatabaseUnavailable('request', error instanceof Error ? error.message : String(error));
+      return withSecurityHeaders(databaseUnavailableResponse(context.url.pathname));
+    } else throw error;
+  }
   if (loaded) {
     context.locals.user = loaded.user;
     context.locals.session = loaded.session;
     context.locals.crews = loaded.crews;
     context.locals.crew = loaded.crew;
   }
-  const response = withSecurityHeaders(await next());
+  let response: Response;
+  try {
+    response = withSecurityHeaders(await next());
+  } catch (error) {
+    // The database went away between the session and the page's own queries.
+    if (!isDatabaseUnavailable(error)) throw error;
+    logDatabaseUnavailable('request', error instanceof Error ? error.message : String(error));
+    return withSecurityHeaders(databaseUnavailableResponse(context.url.pathname));
+  }
   // Pages behind a session must not be kept by shared caches or the back button after sign-out.
   if (loaded && !response.headers.has('cache-control')) response.headers.set('cache-control', 'private, no-store');
   return response;

@@ -1,4 +1,6 @@
 import { z } from 'zod';
+import { isLoopbackHost, parseTrustProxy } from './http/client-address';
+import './db/embedded-password';
 
 /** Every setting Sumpwise reads from the environment, with its default for a local machine. */
 export const configSchema = z.object({
@@ -18,11 +20,29 @@ export const configSchema = z.object({
     .refine((v) => /^(?=.{1,253}$)([a-z0-9]([a-z0-9-]{0,61}[a-z0-9])?\.)+[a-z]{2,63}$/i.test(v), 'must be a domain name'),
   // Shared secret of the inbound webhook (HMAC-SHA256 of each request); without it the webhook answers 404.
   INBOUND_MAIL_SECRET: z.string().min(32).optional(),
-  // The /dev/mailbox page (what the local fake relay received) answers 404 unless this is exactly '1'.
+  // The /dev/mailbox page (what the local fake relay received) answers 404 unless this is exactly '1', and
+  // it may be '1' only on a loopback HOST: the page shows everyone's mail, reset links included.
   DEV_MAILBOX: z.string().default('0').transform((v) => v === '1'),
+  // How many proxies in front append to X-Forwarded-For; 0 (off): the socket address counts, forwarded headers are ignored.
+  TRUST_PROXY: z
+    .string()
+    .default('0')
+    .transform((v, ctx) => {
+      const n = parseTrustProxy(v);
+      if (n === null) ctx.addIssue({ code: 'custom', message: 'must be off, on, or the number of proxies in front (1-9)' });
+      return n ?? 0;
+    }),
   UPLOAD_DIR: z.string().default('.data/uploads'),
   APP_SECRET: z.string().min(32).optional(),
   NODE_ENV: z.enum(['development', 'production', 'test']).default('production'),
+}).superRefine((c, ctx) => {
+  if (c.DEV_MAILBOX && !isLoopbackHost(c.HOST)) {
+    ctx.addIssue({
+      code: 'custom',
+      path: ['DEV_MAILBOX'],
+      message: `is 1, but the mailbox shows everyone's mail, password-reset links included, so it is allowed only when HOST is a loopback address (127.0.0.1, ::1 or localhost), not ${c.HOST}; unset DEV_MAILBOX or listen on loopback`,
+    });
+  }
 });
 
 export type AppConfig = z.infer<typeof configSchema>;

@@ -44,6 +44,9 @@ function headerProblems(res: Response): string[] {
   if (!/(^|;)\s*frame-ancestors 'none'\s*(;|$)/.test(csp)) problems.push(`CSP without frame-ancestors 'none': "${csp}"`);
   if (!/(^|;)\s*default-src 'self'/.test(csp)) problems.push(`CSP without default-src 'self'`);
   if (!/(^|;)\s*object-src 'none'/.test(csp)) problems.push(`CSP without object-src 'none'`);
+  // Scripts by origin and hash only: an injected inline script never runs.
+  if (!/(^|;)\s*script-src 'self'/.test(csp)) problems.push(`CSP without script-src 'self'`);
+  if (/script-src[^;]*'unsafe-(inline|eval)'/.test(csp)) problems.push(`CSP allows unsafe scripts: "${csp}"`);
   if (res.headers.get('x-content-type-options') !== 'nosniff') problems.push(`x-content-type-options: ${res.headers.get('x-content-type-options')}`);
   const referrer = res.headers.get('referrer-policy') ?? '';
   if (!['same-origin', 'strict-origin-when-cross-origin', 'no-referrer', 'strict-origin'].includes(referrer)) problems.push(`referrer-policy: "${referrer}"`);
@@ -169,6 +172,17 @@ describe('the content security policy holds in Chromium', () => {
       document.head.append(s);
     });
     await control.waitForTimeout(500);
+    expect(seen.join('\n')).toMatch(/script-src/);
+    // An inline script slipped into the page (what an XSS would do) is blocked too, and does not run.
+    seen.length = 0;
+    const ran = await control.evaluate(async () => {
+      const s = document.createElement('script');
+      s.textContent = 'window.__injected = true';
+      document.body.append(s);
+      await new Promise((r) => setTimeout(r, 200));
+      return (window as unknown as { __injected?: boolean }).__injected === true;
+    });
+    expect(ran).toBe(false);
     expect(seen.join('\n')).toMatch(/script-src/);
     await context.close();
   }, 180_000);

@@ -257,12 +257,16 @@ export interface GradeWindow {
   max: number;
 }
 
+/** Longest grade text read; "SAE 10W-40" is 10 characters (common practice, no published source). */
+export const MAX_GRADE_TEXT = 40;
+
 /**
  * The KV100 window (mm²/s) of an SAE grade such as '10W-40', '10w40', 'SAE 20W-50', '30' or '10W';
  * null when it is not a J300 engine-oil grade. A multigrade takes its high-temperature grade's window.
  */
 export function findGradeWindow(grade: string): GradeWindow | null {
-  const m = /^\s*(?:SAE\s*)?(?:(\d{1,2})\s*W)?\s*-?\s*(\d{1,2})?\s*$/i.exec(grade);
+  // Capped, spaces dropped, then no two neighbouring quantifiers can match the same text: linear time.
+  const m = grade.length > MAX_GRADE_TEXT ? null : /^(?:SAE)?(?:(\d{1,2})W)?-?(\d{1,2})?$/i.exec(grade.replace(/\s+/g, ''));
   if (!m || (m[1] === undefined && m[2] === undefined)) return null;
   const winter = m[1] !== undefined ? `${Number(m[1])}W` : undefined;
   if (winter !== undefined && SAE_J300_WINTER_MIN_KV100[winter] === undefined) return null;

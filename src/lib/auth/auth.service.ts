@@ -111,21 +111,29 @@ function isUniqueViolation(error: unknown): boolean {
  * Checks e-mail and password and opens a fresh session (the old one, if any, ends: the id rotates).
  * Unknown address and wrong password give the same answer after the same Argon2 work.
  */
-export async function signIn(deps: AuthDeps, input: SignInInput, meta: RequestMeta & { previousSessionId?: string | null }): Promise<ServiceResult<{ userId: string; cookie: Cookie }>> {
+export async function signIn(deps: AuthDeps, input: SignInInput, meta: RequestMeta & { previousSessionId?: string | null; knownDevice?: boolean }): Promise<ServiceResult<{ userId: string; cookie: Cookie }>> {
   const ip = meta.ip ?? 'unknown';
   const pairKey = `${input.email}|${ip}`;
-  for (const verdict of [await deps.limits.check('signInAccountIp', pairKey), await deps.limits.check('signInIp', ip)]) {
-    if (!verdict.allowed) return rateLimited(verdict.retryAfterSeconds);
+  // Spend first, then check the password: parallel guesses each spend a point before any of them is judged.
+  const verdicts = [await deps.limits.consume('signInAccountIp', pairKey), await deps.limits.consume('signInIp', ip)];
+  // A browser the owner signed in from before is not held by the account-wide limit, so filling it from many
+  // addresses cannot lock the owner out; it still counts towards the limits of its own address.
+  if (!meta.knownDevice) verdicts.push(await deps.limits.consume('signInAccount', input.email));
+  const refused = verdicts.find((v) => !v.allowed);
+  if (refused) {
+    await recordAuditEvent(deps.db, { kind: 'sign_in_failed', ip: meta.ip, detail: { reason: 'rate_limited' } });
+    return fail(429, 'rate_limited', `Too many sign-in attempts. Try again in ${Math.ceil(refused.retryAfterSeconds / 60)} minute(s), or reset your password by e-mail.`, { retryAfterSeconds: refused.retryAfterSeconds });
   }
   const user = await findUserByEmail(deps.db, input.email);
   const matches = user ? await verifyPassword(user.password_hash, input.password) : await verifyAgainstDummy(input.password);
   if (!user || !matches) {
-    await deps.limits.consume('signInAccountIp', pairKey);
-    await deps.limits.consume('signInIp', ip);
     await recordAuditEvent(deps.db, { kind: 'sign_in_failed', subjectUserId: user?.id ?? null, ip: meta.ip, detail: { reason: user ? 'wrong_password' : 'unknown_email' } });
     return INVALID_CREDENTIALS();
   }
+  // The owner's own attempt: it clears this address's failures on the account and gives back what it spent.
   await deps.limits.reset('signInAccountIp', pairKey);
+  await deps.limits.refund('signInIp', ip);
+  if (!meta.knownDevice) await deps.limits.refund('signInAccount', input.email);
   if (meta.previousSessionId) await deps.lucia.invalidateSession(meta.previousSessionId);
   const crews = await findMembershipsForUser(deps.db, user.id);
   const session = await deps.lucia.createSession(user.id, { current_crew_id: crews[0]?.crewId ?? null });
@@ -142,6 +150,9 @@ export async function signOut(deps: AuthDeps, session: { id: string; userId: str
 
 /** Changes the password after checking the current one; every other session of the user ends. */
 export async function changePassword(deps: AuthDeps, userId: string, currentSessionId: string, input: ChangePasswordInput, meta: RequestMeta): Promise<ServiceResult<{ endedSessions: number }>> {
+  // A stolen session must not become a way to guess the current password without limit.
+  const limit = await deps.limits.consume('passwordChangeUser', userId);
+  if (!limit.allowed) return rateLimited(limit.retryAfterSeconds);
   const user = await findUserById(deps.db, userId);
   if (!user || !(await verifyPassword(user.password_hash, input.currentPassword))) {
     return fail(400, 'wrong_password', 'The current password is not right.', { fields: { currentPassword: 'That is not your current password.' } });
@@ -156,11 +167,14 @@ export async function changePassword(deps: AuthDeps, userId: string, currentSess
   return { ok: true, endedSessions };
 }
 
-/** Queues a fresh verification message (the previous link stops working). */
-export async function requestEmailVerification(deps: AuthDeps, userId: string): Promise<ServiceResult<{ token: string | null }>> {
+/** Queues a fresh verification message (the previous link stops working); limited per account and per address. */
+export async function requestEmailVerification(deps: AuthDeps, userId: string, meta: RequestMeta): Promise<ServiceResult<{ token: string | null }>> {
   const user = await findUserById(deps.db, userId);
   if (!user) return fail(404, 'not_found', 'No such account.');
   if (user.email_verified_at) return { ok: true, token: null };
+  for (const verdict of [await deps.limits.consume('verifyResendUser', userId), await deps.limits.consume('verifyResendIp', meta.ip ?? 'unknown')]) {
+    if (!verdict.allowed) return fail(429, 'rate_limited', `Several links are already on their way; look for them (and in the spam folder), or ask for another in ${Math.ceil(verdict.retryAfterSeconds / 60)} minute(s).`, { retryAfterSeconds: verdict.retryAfterSeconds });
+  }
   const token = await deps.db.transaction().execute((trx) => queueVerification(deps, trx, user));
   return { ok: true, token };
 }

@@ -3,7 +3,7 @@ import type { Database, Role } from '../db/database';
 import { recordAuditEvent } from '../audit/audit.repository';
 import { listCrewAuditEvents } from '../audit/audit.repository';
 import type { AuditEvent } from '../audit/audit';
-import { markEmailVerified } from '../auth/auth.repository';
+import { findUserById, markEmailVerified } from '../auth/auth.repository';
 import { canManageCrew } from '../auth/permissions';
 import { FORBIDDEN, NOT_FOUND, fail, type ServiceResult } from '../auth/result';
 import { TOKEN_LIFETIME_MS, generateToken, hashToken } from '../auth/tokens';
@@ -60,8 +60,19 @@ export async function inviteMember(
   if (!actor.membership) return NOT_FOUND();
   if (!canManageCrew(actor.membership)) return FORBIDDEN('Only a lead of this crew can invite people.');
   const crew = actor.membership;
-  const limit = await deps.limits.consume('inviteUser', actor.userId);
-  if (!limit.allowed) return fail(429, 'rate_limited', 'Too many invitations for now. Try again later.', { retryAfterSeconds: limit.retryAfterSeconds });
+  // An invitation carries text the inviter wrote (crew and display names) to someone else's inbox: only an
+  // address proven to be the inviter's may send it, so a throw-away account cannot send mail in our name.
+  const inviter = await findUserById(deps.db, actor.userId);
+  if (!inviter?.email_verified_at) {
+    return fail(403, 'email_not_verified', 'Confirm your e-mail address before inviting anyone: open the link we sent you, or ask for a new one on your account page.');
+  }
+  for (const [name, key] of [['inviteUser', actor.userId], ['inviteCrew', crew.crewId]] as const) {
+    const limit = await deps.limits.consume(name, key);
+    if (!limit.allowed) {
+      const which = name === 'inviteCrew' ? 'This crew has sent as many invitations as it may in one day' : 'You have sent as many invitations as you may in one hour';
+      return fail(429, 'rate_limited', `${which}. Try again in ${Math.ceil(limit.retryAfterSeconds / 60)} minute(s).`, { retryAfterSeconds: limit.retryAfterSeconds });
+    }
+  }
   const members = await listMembers(deps.db, crew.crewId);
   if (members.some((m) => m.email.toLowerCase() === input.email)) {
     return fail(409, 'already_member', 'That person is already in this crew.', { fields: { email: 'Already a member of this crew.' } });

@@ -1,6 +1,7 @@
 import { Kysely, PostgresDialect } from 'kysely';
 import pg from 'pg';
 import type { Database } from './database';
+import './embedded-password';
 
 // `date` columns stay 'YYYY-MM-DD' text: a calendar day has no time zone to shift it.
 pg.types.setTypeParser(1082, (value: string) => value);

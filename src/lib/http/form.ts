@@ -1,4 +1,4 @@
-import { readBodyText } from './json';
+import { readBodyBytes, readBodyText } from './json';
 
 /** Cap on an HTML form post (sign-in, invitations, settings); uploads have their own limits elsewhere. */
 export const DEFAULT_FORM_LIMIT_BYTES = 16 * 1024;
@@ -16,13 +16,54 @@ export async function readForm(request: Request, maxBytes = DEFAULT_FORM_LIMIT_B
   return { ok: true, form: new URLSearchParams(body.text) };
 }
 
+export type ParsedMultipart = { ok: true; form: FormData } | { ok: false; reason: 'too-large'; size: number } | { ok: false; reason: 'invalid' };
+
+/**
+ * Reads a multipart/form-data body through the bounded reader, so a body without a length header (chunked)
+ * is cut off at `maxBytes` instead of buffered whole; then parses it.
+ */
+export async function readMultipartForm(request: Request, maxBytes: number): Promise<ParsedMultipart> {
+  const type = request.headers.get('content-type') ?? '';
+  if (!/^multipart\/form-data\b/i.test(type)) return { ok: false, reason: 'invalid' };
+  const body = await readBodyBytes(request, maxBytes);
+  if (!body.ok) return { ok: false, reason: 'too-large', size: body.size };
+  try {
+    const bytes = Buffer.from(body.bytes.buffer, body.bytes.byteOffset, body.bytes.byteLength);
+    return { ok: true, form: await new Request('http://local/', { method: 'POST', headers: { 'content-type': type }, body: bytes as unknown as BodyInit }).formData() };
+  } catch {
+    return { ok: false, reason: 'invalid' };
+  }
+}
+
 /** A form value as trimmed text ('' when absent). */
 export function formText(form: URLSearchParams, name: string): string {
   return (form.get(name) ?? '').trim();
 }
 
-/** Only same-site paths are followed after sign-in, so ?next= cannot send a user elsewhere. */
+/** Longest next path kept; a real in-app path is far shorter (common practice, no published source). */
+const MAX_NEXT_PATH = 2048;
+// A base that can never be the app's own address, to see where a browser would take a relative path.
+const PROBE_ORIGIN = 'http://next-path.invalid';
+
+/**
+ * Only paths that resolve to this app's own origin are followed after sign-in, so ?next= cannot send a user
+ * elsewhere. The text is resolved with the WHATWG URL rules browsers use (which drop tabs and newlines and
+ * read a backslash as a slash), and any control character or backslash refuses it outright. The answer is
+ * the resolved path itself, so what the browser follows is exactly what was checked.
+ */
 export function safeNextPath(next: string | null | undefined, fallback = '/'): string {
-  if (!next || !next.startsWith('/') || next.startsWith('//') || next.startsWith('/\\')) return fallback;
-  return next;
+  if (!next || next.length > MAX_NEXT_PATH || !next.startsWith('/')) return fallback;
+  // C0 controls, DEL and backslashes have no place in a path this app links to.
+  if (/[\u0000-\u001f\u007f\\]/.test(next)) return fallback;
+  let resolved: URL;
+  try {
+    resolved = new URL(next, PROBE_ORIGIN);
+  } catch {
+    return fallback;
+  }
+  if (resolved.origin !== PROBE_ORIGIN) return fallback;
+  const path = `${resolved.pathname}${resolved.search}${resolved.hash}`;
+  // "/.//evil.example" resolves to the path "//evil.example", which a Location header reads as another host.
+  if (!path.startsWith('/') || path.startsWith('//')) return fallback;
+  return path;
 }

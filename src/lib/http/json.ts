@@ -40,14 +40,14 @@ export function fieldErrorsFrom(error: z.ZodError): FieldErrors {
 }
 
 /**
- * Reads a body up to `maxBytes`. Past it, the rest is read and dropped up to `drainLimit` (so the answer can
- * name the real size and the client sees a response, not a reset), and never kept; past `drainLimit` the
- * read stops at once.
+ * Reads a body up to `maxBytes`, whatever the transfer encoding (a chunked body has no length to trust). Past
+ * it, the rest is read and dropped up to `drainLimit` (so the answer can name the real size and the client
+ * sees the 413, not a reset), and never kept; past `drainLimit` the read stops at once and the connection ends.
  */
 export async function readBodyBytes(
   request: Request,
   maxBytes: number,
-  drainLimit = maxBytes,
+  drainLimit = Math.max(4 * maxBytes, 1024 * 1024),
 ): Promise<{ ok: true; bytes: Uint8Array } | { ok: false; size: number }> {
   const declared = Number(request.headers.get('content-length') ?? 'NaN');
   if (Number.isFinite(declared) && declared > drainLimit) return { ok: false, size: declared };

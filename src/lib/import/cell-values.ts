@@ -19,7 +19,11 @@ export type ReadingParse =
 const MISSING_MARKERS = new Set(['', '-', '--', '–', '—', 'n/a', 'na', 'n.a.', 'not tested', 'not run']);
 
 /** "Not detected" markers, optionally followed by the limit: "ND", "n.d.", "ND (<1)", "BDL 0.5". */
-const NOT_DETECTED = /^(?:nd|n\.d\.?|not detected|bdl|below detection(?: limit)?)(?:\s*\(?\s*<?\s*([^()<\s][^()]*?)\s*\)?)?$/;
+// Each quantified part is fenced by a literal or a class the next part cannot match, so matching is linear.
+const NOT_DETECTED = /^(?:nd|n\.d\.?|not detected|bdl|below detection(?: limit)?)(?:\s*(?:\(\s*)?(?:<\s*)?([^()<\s](?:[^()\s]|\s+[^()\s])*)\s*\)?)?$/;
+
+/** Longest cell read as a value; a lab's longest real cell ("below detection limit (<0.5)") is under 40. */
+export const MAX_CELL_TEXT = 64;
 
 const PLAIN_POINT = /^\d+(?:\.\d+)?$/;
 const PLAIN_COMMA = /^\d+(?:,\d+)?$/;
@@ -34,13 +38,13 @@ function parseUnsigned(s: string, mark: DecimalMark): number | CellProblem {
   if (mark === '.') {
     if (/^\d{1,3}(?:,\d{3})+(?:\.\d+)?$/.test(s)) return Number(s.replace(/,/g, ''));
     if (/^\d{1,3}(?: \d{3})+(?:\.\d+)?$/.test(s)) return Number(s.replace(/ /g, ''));
-    if (/^(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/.test(s)) return Number(s);
+    if (/^(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?$/.test(s)) return Number(s);
     if (/\d,\d/.test(s)) return 'unclear-number';
     return 'not-a-number';
   }
   if (/^\d{1,3}(?:\.\d{3})+(?:,\d+)?$/.test(s)) return Number(s.replace(/\./g, '').replace(',', '.'));
   if (/^\d{1,3}(?: \d{3})+(?:,\d+)?$/.test(s)) return Number(s.replace(/ /g, '').replace(',', '.'));
-  if (/^(?:\d+,?\d*|,\d+)(?:[eE][+-]?\d+)?$/.test(s)) return Number(s.replace(',', '.'));
+  if (/^(?:\d+(?:,\d*)?|,\d+)(?:[eE][+-]?\d+)?$/.test(s)) return Number(s.replace(',', '.'));
   if (/\d\.\d/.test(s)) return 'unclear-number';
   return 'not-a-number';
 }
@@ -51,6 +55,7 @@ export function parseReadingCell(cell: string, mark: DecimalMark): ReadingParse 
   if (mark === '.' ? PLAIN_POINT.test(cell) : PLAIN_COMMA.test(cell)) {
     return { status: 'ok', value: Number(mark === '.' ? cell : cell.replace(',', '.')) };
   }
+  if (cell.length > MAX_CELL_TEXT) return { status: 'problem', problem: 'not-a-number', detail: `${cell.slice(0, 24)}…` };
   const s = tidy(cell);
   const lower = s.toLowerCase();
   if (MISSING_MARKERS.has(lower)) return { status: 'missing' };
@@ -61,7 +66,7 @@ export function parseReadingCell(cell: string, mark: DecimalMark): ReadingParse 
     if (typeof limit === 'number') return { status: 'ok', value: limit, qualifier: '<', belowDetection: true };
     return { status: 'problem', problem: limit, detail: s };
   }
-  const qualified = /^(<=?|>=?|≤|≥)\s*(.*)$/.exec(s);
+  const qualified = /^(<=?|>=?|≤|≥)\s*([^]*)$/.exec(s);
   let qualifier: Qualifier | undefined;
   let body = s;
   if (qualified?.[1] !== undefined && qualified[2] !== undefined) {
@@ -90,6 +95,7 @@ const GLYCOL_NEGATIVE = new Set([
 
 /** Read a glycol (coolant) result: positive/negative/yes/no (and 1/0) → 1/0; blank is missing. */
 export function parseGlycolCell(cell: string): ReadingParse {
+  if (cell.length > MAX_CELL_TEXT) return { status: 'problem', problem: 'not-a-number', detail: `${cell.slice(0, 24)}…` };
   const s = tidy(cell).toLowerCase();
   if (GLYCOL_POSITIVE.has(s)) return { status: 'ok', value: 1 };
   if (GLYCOL_NEGATIVE.has(s)) return { status: 'ok', value: 0 };
@@ -133,6 +139,7 @@ export function formatIsoDate(year: number, month: number, day: number): string 
 
 /** Read a date cell: ISO (2026-04-03, time ignored), d/m/y or m/d/y with / . - (order settled per column), or "3 Apr 2026". */
 export function parseDateCell(cell: string): DateCell {
+  if (cell.length > MAX_CELL_TEXT) return { kind: 'problem', problem: 'invalid-date', detail: `${cell.slice(0, 24)}…` };
   const s = tidy(cell);
   if (MISSING_MARKERS.has(s.toLowerCase())) return { kind: 'missing' };
   const bad = (): DateCell => ({ kind: 'problem', problem: 'invalid-date', detail: s });

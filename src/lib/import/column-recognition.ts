@@ -41,7 +41,7 @@ const ELEMENT_NOISE = new Set(['icp', 'content', 'conc', 'concentration', 'total
 const UNIT_PATTERNS: ReadonlyArray<{ unit: LabUnit; pattern: RegExp }> = [
   { unit: 'mg KOH/g', pattern: /mg\s*koh\s*\/\s*g|mg\s*koh/g },
   { unit: 'ppm', pattern: /\bppm\b|\bmg\s*\/\s*kg\b|[μu]g\s*\/\s*g\b/g },
-  { unit: 'mm²/s', pattern: /mm\s*\^?\s*2\s*\/\s*s(ec)?\b|\bcst\b|\bcentistokes?\b/g },
+  { unit: 'mm²/s', pattern: /mm\s*(?:\^\s*)?2\s*\/\s*s(ec)?\b|\bcst\b|\bcentistokes?\b/g },
   { unit: 'SUS', pattern: /\bsus\b|\bssu\b|\bsaybolt(\s+universal)?(\s+seconds)?\b/g },
   { unit: '%', pattern: /%|\bpct\b|\bpercent\b/g },
   { unit: '°C', pattern: /°\s*c\b|\bdeg(rees)?\s*c\b/g },
@@ -49,7 +49,11 @@ const UNIT_PATTERNS: ReadonlyArray<{ unit: LabUnit; pattern: RegExp }> = [
 ];
 
 /** A temperature written beside a viscosity: "40C", "100 °C", "210°F", "40 deg C". */
-const TEMPERATURE = /(\d{2,3})\s*(?:°|deg(?:rees)?\.?)?\s*([cf])(?![a-z])/;
+// No two neighbouring quantifiers can match the same text, so a long run of spaces is read in linear time.
+const TEMPERATURE = /(\d{2,3})\s*(?:(?:°|deg(?:rees)?\.?)\s*)?([cf])(?![a-z])/;
+
+/** Longest header (with its units cell) read; real lab headers are under 60 characters. */
+export const MAX_HEADER_TEXT = 200;
 
 function normaliseHeaderText(text: string): string {
   return text.normalize('NFKC').toLowerCase().replace(/º/g, '°').replace(/_/g, ' ').trim();
@@ -72,6 +76,7 @@ function extractUnit(text: string): { unit?: LabUnit; rest: string } {
 
 /** True when a cell of a possible units row holds only a unit (and maybe a temperature), e.g. "ppm", "cSt @ 40 °C". */
 export function isUnitCell(cell: string): boolean {
+  if (cell.length > MAX_HEADER_TEXT) return false;
   const { unit, rest } = extractUnit(normaliseHeaderText(cell));
   if (unit === undefined) return false;
   // Whatever is left may be a temperature, "@" or "at", and punctuation, but no other words.
@@ -177,6 +182,7 @@ function recogniseElement(tokens: readonly string[], unit: LabUnit | undefined):
 
 /** Read one header (and the cell under it in a units row, if the file has one) as a column meaning. */
 export function recogniseHeader(header: string, unitsCell = ''): RecognisedHeader {
+  if (header.length + unitsCell.length > MAX_HEADER_TEXT) return { kind: 'unknown' };
   // Headers in other languages are read through the one dictionary ("Eisen" → "iron").
   const text = translateHeader(normaliseHeaderText(`${header} ${unitsCell}`)).text;
   const { unit, rest } = extractUnit(text);

@@ -16,9 +16,14 @@ import {
   type LabCsvIssue,
   type LabCsvMappingTarget,
 } from '../import/lab-csv';
+import { checkCrewQuota } from '../storage-quota/storage-quota';
+import { sumCrewStorageBytes } from '../storage-quota/storage-quota.repository';
 import { CODE_ALPHABET, explainIssuedCode, hasValidCheckSymbol, ISSUED_DATA_LENGTH, normaliseBottleCode } from '../samples/bottle-code';
 import {
   computeHeaderSignature,
+  countLines,
+  MAX_LAB_FILE_LINES,
+  tooManyLinesMessage,
   type ConfirmHooks,
   type ImportPreview,
   type ImportSummary,
@@ -68,7 +73,7 @@ export interface StoredLabFile {
  */
 export async function storeLabFile(
   db: Db,
-  input: { crewId: string; userId: string | null; fileName: string; bytes: Uint8Array; inboundMailId?: string },
+  input: { crewId: string; userId: string | null; fileName: string; bytes: Uint8Array; inboundMailId?: string; quotaBytes?: number },
 ): Promise<LabImportResult<StoredLabFile>> {
   if (input.bytes.byteLength > MAX_LAB_FILE_BYTES) {
     const mib = (input.bytes.byteLength / (1024 * 1024)).toFixed(1);
@@ -79,9 +84,13 @@ export async function storeLabFile(
     const status = decoded.error.code === 'empty-file' ? 400 : 415;
     return refuse(status, decoded.error.code.replace(/-/g, '_'), `"${cleanFileName(input.fileName)}": ${decoded.error.message}`);
   }
+  const lines = countLines(decoded.text);
+  if (lines > MAX_LAB_FILE_LINES) return refuse(413, 'too_many_lines', tooManyLinesMessage(cleanFileName(input.fileName), lines));
   const sha256 = computeFileHash(input.bytes);
   const existing = await repo.findLabFileByHash(db, input.crewId, sha256);
   if (existing) return answerExisting(existing);
+  const overQuota = checkCrewQuota(await sumCrewStorageBytes(db, input.crewId), input.bytes.byteLength, input.quotaBytes);
+  if (overQuota) return refuse(413, 'quota_exceeded', overQuota);
   const inserted = await repo.insertLabFile(db, {
     crewId: input.crewId,
     sha256,
@@ -181,6 +190,9 @@ export async function previewLabImport(
   const sheetNames = await repo.listProfileSheetNames(db, input.crewId);
   const decoded = await readLabFileBytes(new Uint8Array(content.buffer, content.byteOffset, content.byteLength), { sheetNames });
   if ('error' in decoded) return refuse(415, decoded.error.code.replace(/-/g, '_'), decoded.error.message);
+  // Files stored before the cap existed are held to it too.
+  const lines = countLines(decoded.text);
+  if (lines > MAX_LAB_FILE_LINES) return refuse(413, 'too_many_lines', tooManyLinesMessage(fileRow.file_name, lines));
 
   const signature = computeHeaderSignature(readHeaders(decoded.text));
   const profileRow = await repo.findProfileBySignature(db, input.crewId, signature);

@@ -190,3 +190,66 @@ const MEASURAND_LABELS: Partial<Record<MeasurandCode, string>> = {
 export function computeHeaderSignature(headers: readonly string[]): string {
   return headers.map((h) => h.normalize('NFKC').trim().toLowerCase().replace(/\s+/g, ' ')).join('|');
 }
+
+/**
+ * Most lines one lab file may hold. A lab's report covers a few to a few hundred bottles; 20,000 is twice
+ * the largest file in our benchmarks and bounds the work one upload can cause to a few seconds (common
+ * practice, no published source).
+ */
+export const MAX_LAB_FILE_LINES = 20_000;
+
+/** Lines in a decoded file (a last line without a newline counts), in one pass. */
+export function countLines(text: string): number {
+  if (text === '') return 0;
+  let lines = 0;
+  for (let i = text.indexOf('\n'); i !== -1; i = text.indexOf('\n', i + 1)) lines += 1;
+  return text.endsWith('\n') ? lines : lines + 1;
+}
+
+/** The sentence for a file over the line cap. */
+export function tooManyLinesMessage(fileName: string, lines: number): string {
+  return `"${fileName}" has ${lines.toLocaleString('en-GB')} lines; one lab file may hold at most ${MAX_LAB_FILE_LINES.toLocaleString('en-GB')}. Split the report into smaller files and upload each.`;
+}
+
+/** Rows the preview page lists at most; the rest are counted (common practice, no published source). */
+export const PREVIEW_ROW_LIMIT = 200;
+
+export type PreviewRowFilter = 'all' | 'attention';
+
+/** True when a row blocks the confirm: an error, or no decision yet. */
+export function blocksConfirm(r: PreviewRow): boolean {
+  return r.needs !== null || r.errors.length > 0;
+}
+
+/** True when a row deserves a look though it is decided: an unknown bottle, a warning or a skip. */
+export function deservesLook(r: PreviewRow): boolean {
+  return r.match.kind !== 'matched' || r.warnings.length > 0 || r.decision?.action === 'skip';
+}
+
+/**
+ * What the preview lists, in file order, in one pass: first the rows that block the confirm, then decided rows
+ * worth a look, then ready rows (left out by the 'attention' filter), `limit` in all. Once the listed rows are
+ * decided, the next blocking ones take their place.
+ */
+export function selectPreviewRows(rows: readonly PreviewRow[], filter: PreviewRowFilter, limit = PREVIEW_ROW_LIMIT): {
+  shown: PreviewRow[];
+  /** Rows that need attention (blocking or worth a look). */
+  attention: number;
+  /** Rows that block the confirm and are not listed. */
+  hiddenBlocking: number;
+  hiddenReady: number;
+} {
+  const blocking: PreviewRow[] = [];
+  const look: PreviewRow[] = [];
+  const ready: PreviewRow[] = [];
+  for (const r of rows) (blocksConfirm(r) ? blocking : deservesLook(r) ? look : ready).push(r);
+  const shownBlocking = blocking.slice(0, limit);
+  const shownLook = look.slice(0, limit - shownBlocking.length);
+  const shownReady = filter === 'attention' ? [] : ready.slice(0, limit - shownBlocking.length - shownLook.length);
+  return {
+    shown: [...shownBlocking, ...shownLook, ...shownReady].sort((a, b) => a.line - b.line),
+    attention: blocking.length + look.length,
+    hiddenBlocking: blocking.length - shownBlocking.length,
+    hiddenReady: ready.length - shownReady.length,
+  };
+}

@@ -10,13 +10,20 @@ export const SAE_WINTER_GRADES = [0, 5, 10, 15, 20, 25] as const;
 /** SAE J300 high-temperature grades. */
 export const SAE_HIGH_GRADES = [8, 12, 16, 20, 30, 40, 50, 60] as const;
 
+/** Longest grade text read; "SAE 10W-40" is 10 characters (common practice, no published source). */
+export const MAX_SAE_GRADE_TEXT = 40;
+
 export type SaeGradeResult = { ok: true; grade: string } | { ok: false; message: string };
 
 /** Parses a grade as typed ('10w40', 'SAE 10W-40', '30', '15W') into its J300 spelling, or says why not. */
 export function parseSaeGrade(input: string): SaeGradeResult {
-  const text = input.trim().toUpperCase().replace(/^SAE\s*/, '');
+  if (input.length > MAX_SAE_GRADE_TEXT) {
+    return { ok: false, message: `An SAE grade name is short, such as 10W-40; this entry has ${input.length} characters.` };
+  }
+  // Spaces go first, so the pattern has no two neighbouring quantifiers that match the same text (linear time).
+  const text = input.toUpperCase().replace(/\s+/g, '').replace(/^SAE/, '');
   if (text === '') return { ok: false, message: 'Enter the SAE grade printed on the oil, such as 10W-40.' };
-  const m = /^(?:(\d{1,2})\s*W)?\s*[-–\s]?\s*(\d{1,2})?$/.exec(text);
+  const m = /^(?:(\d{1,2})W)?[-–]?(\d{1,2})?$/.exec(text);
   if (!m || (m[1] === undefined && m[2] === undefined)) {
     return { ok: false, message: `“${input.trim()}” is not an SAE grade name; write it like 10W-40, 20W-50 or 30.` };
   }

@@ -6,6 +6,8 @@ import { refuse, refuseNotFound, succeed, type Actor, type ServiceResult } from 
 import { preparePhoto, type PreparedPhoto } from './photos';
 import { findPhotoOfCrews, insertPhoto, type PhotoRow } from './photos.repository';
 import { writePhotoFile } from './photos.storage';
+import { CREW_STORAGE_QUOTA_BYTES, checkCrewQuota } from '../storage-quota/storage-quota';
+import { sumCrewStorageBytes } from '../storage-quota/storage-quota.repository';
 
 /** Stores a checked photo (file by hash, then its row) in the actor's crew, optionally on an oil change. */
 export async function storePreparedPhoto(
@@ -20,7 +22,7 @@ export async function storePreparedPhoto(
 
 /** Checks and stores one uploaded photo, not yet attached to an oil change (the form attaches it on save). */
 export async function uploadPhoto(
-  db: Kysely<Database>, actor: Actor, bytes: Uint8Array, fileName: string, uploadDir: string,
+  db: Kysely<Database>, actor: Actor, bytes: Uint8Array, fileName: string, uploadDir: string, quotaBytes = CREW_STORAGE_QUOTA_BYTES,
 ): Promise<ServiceResult<PhotoRow>> {
   if (!canReadCrew(actor.membership) || actor.membership.role === 'mechanic') {
     return refuse(403, 'forbidden', 'Your role in this crew does not add photos.');
@@ -29,6 +31,8 @@ export async function uploadPhoto(
   if (!checked.ok) {
     return refuse(checked.code === 'too_large' ? 413 : checked.code === 'not_an_image' ? 415 : 400, checked.code, checked.message, { file: checked.message });
   }
+  const overQuota = checkCrewQuota(await sumCrewStorageBytes(db, actor.membership.crewId), checked.photo.byteSize, quotaBytes);
+  if (overQuota) return refuse(413, 'quota_exceeded', overQuota, { file: overQuota });
   return succeed(await storePreparedPhoto(db, actor, checked.photo, uploadDir));
 }
 

@@ -6,6 +6,7 @@ import { registerMailJobs, type MailJobOptions } from '../mail/mail-jobs';
 import type { MailTransport } from '../mail/transport';
 import type { JobRegistration } from './job-queue';
 import type { LabMailJobOptions } from '../lab-mail/lab-mail-jobs';
+import { registerRateLimitJobs } from '../rate-limit/rate-limit-jobs';
 
 // Every job family the worker runs is registered here. Issue 8 (reminders, digests) adds its queues and
 // pg-boss schedules (`boss.schedule(name, cron)`) as further entries, each returning a JobRegistration.
@@ -44,5 +45,6 @@ export async function registerJobs(boss: PgBoss, deps: JobDependencies): Promise
       ...deps.labMail,
     }),
   );
+  registrations.push(await registerRateLimitJobs(boss, { db: deps.db, ...(deps.log ? { log: deps.log } : {}) }));
   return registrations;
 }

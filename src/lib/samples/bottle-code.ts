@@ -18,9 +18,14 @@ const MODULUS = 29;
 /** Data symbols in an issued code; with the check symbol an issued code has 7. */
 export const ISSUED_DATA_LENGTH = 6;
 
+/** Longest bottle-code text read; lab kit codes are under 20 characters (common practice, no published source). */
+export const MAX_BOTTLE_CODE_TEXT = 64;
+
 /** Upper case, with spaces, dashes and other separators removed: the form codes are compared in. */
 export function normaliseBottleCode(code: string): string {
-  return code.toUpperCase().replace(/[\s\-_./·]+/g, '');
+  // Only the head of an absurdly long entry is read, so a pasted 100 KB string costs no more than a real code.
+  const head = code.length > MAX_BOTTLE_CODE_TEXT ? code.slice(0, MAX_BOTTLE_CODE_TEXT) : code;
+  return head.toUpperCase().replace(/[\s\-_./·]+/g, '');
 }
 
 function valuesOf(symbols: string): number[] | null {

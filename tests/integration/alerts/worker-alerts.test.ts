@@ -1,4 +1,5 @@
 import { afterAll, beforeAll, beforeEach, describe, expect, test } from 'vitest';
+import { RATE_LIMIT_PRUNE_QUEUE } from '../../../src/lib/rate-limit/rate-limit-jobs';
 import { ALERT_SCHEDULES, DIGEST_QUEUE, REMINDERS_QUEUE, registerAlertJobs } from '../../../src/lib/alerts/alert-jobs';
 import type { AlertEnv } from '../../../src/lib/alerts/alerts';
 import { registerMailJobs } from '../../../src/lib/mail/mail-jobs';
@@ -60,7 +61,8 @@ describe('alert jobs in the worker', () => {
       const regs = await registerJobs(other, { db, transport, config: { DATABASE_URL: TEST_DATABASE.url(), MAIL_FROM: 'Sumpwise <no-reply@sumpwise.test>' }, log: silent });
       try {
         expect(regs.map((r) => r.name)).toContain(`${REMINDERS_QUEUE}, ${DIGEST_QUEUE}`);
-        expect((await other.getSchedules()).map((s) => s.name).sort()).toEqual([DIGEST_QUEUE, REMINDERS_QUEUE].sort());
+        // Every scheduled family of the worker: the alerts, and the hourly prune of spent rate-limit counters.
+        expect((await other.getSchedules()).map((s) => s.name).sort()).toEqual([DIGEST_QUEUE, REMINDERS_QUEUE, RATE_LIMIT_PRUNE_QUEUE].sort());
       } finally {
         await stopJobQueue(other, regs, 5_000);
       }

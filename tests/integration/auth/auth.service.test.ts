@@ -156,7 +156,7 @@ describe('e-mail verification', () => {
     let token = r.verificationToken!;
     if (kind === 'expired') await db.updateTable('auth_tokens').set({ expires_at: new Date(Date.now() - 1000) }).where('user_id', '=', r.userId).execute();
     if (kind === 'unknown') token = 'no-such-token-at-all';
-    if (kind === 'superseded') await requestEmailVerification(deps, r.userId);
+    if (kind === 'superseded') await requestEmailVerification(deps, r.userId, { ip: '192.0.2.1' });
     expect(await verifyEmail(deps, token, meta)).toMatchObject({ ok: false, code });
   });
 });

@@ -86,6 +86,23 @@ describe('safeNextPath keeps redirects on this site', () => {
     ['//evil.example/', '/'],
     ['/\\evil.example', '/'],
     ['https://evil.example/', '/'],
+    // Browsers drop tabs and newlines and read \\ as / (WHATWG URL Standard, "basic URL parser").
+    ['/\t/evil.example', '/'],
+    ['/\n/evil.example', '/'],
+    ['/\r\n/evil.example', '/'],
+    ['\t//evil.example', '/'],
+    ['/\\/evil.example', '/'],
+    ['/.//evil.example', '/'],
+    ['/./\\evil.example', '/'],
+    ['/x/..//evil.example', '/'],
+    // Encoded forms stay one path segment on this site: the browser does not decode them before resolving.
+    ['/%09/evil.example', '/%09/evil.example'],
+    ['/%2F%2Fevil.example', '/%2F%2Fevil.example'],
+    ['/%5C%5Cevil.example', '/%5C%5Cevil.example'],
+    ['/\u0000/evil.example', '/'],
+    ['/machines/../crews', '/crews'],
+    ['/' + 'a'.repeat(5000), '/'],
+    ['', '/'],
     [null, '/'],
   ])('%j → %j', (next, expected) => {
     expect(safeNextPath(next)).toBe(expected);

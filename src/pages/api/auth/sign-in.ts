@@ -1,7 +1,7 @@
 import type { APIRoute } from 'astro';
 import { signInSchema } from '../../../lib/auth/auth';
 import { signIn } from '../../../lib/auth/auth.service';
-import { applySessionCookie, clientIp, getAuthDeps } from '../../../lib/auth/deps';
+import { applySessionCookie, clientIp, getAuthDeps, isKnownDeviceFor, rememberKnownDevice } from '../../../lib/auth/deps';
 import { jsonOk, parseJsonBody } from '../../../lib/http/json';
 import { jsonFailure } from '../../../lib/http/responses';
 
@@ -9,8 +9,9 @@ import { jsonFailure } from '../../../lib/http/responses';
 export const POST: APIRoute = async (context) => {
   const body = await parseJsonBody(context.request, signInSchema);
   if (!body.ok) return body.response;
-  const result = await signIn(getAuthDeps(), body.data, { ip: clientIp(context), previousSessionId: context.locals.session?.id ?? null });
+  const result = await signIn(getAuthDeps(), body.data, { ip: clientIp(context), previousSessionId: context.locals.session?.id ?? null, knownDevice: isKnownDeviceFor(context.cookies, body.data.email) });
   if (!result.ok) return jsonFailure(result);
   applySessionCookie(context.cookies, result.cookie);
+  rememberKnownDevice(context.cookies, body.data.email);
   return jsonOk({ userId: result.userId });
 };

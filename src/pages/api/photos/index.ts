@@ -3,6 +3,7 @@ import { requireApiCrew } from '../../../lib/auth/guards';
 import { getConfig } from '../../../lib/config';
 import { getDb } from '../../../lib/db';
 import { jsonError, jsonOk } from '../../../lib/http/json';
+import { readMultipartForm } from '../../../lib/http/form';
 import { actorFrom, refusalJson } from '../../../lib/machines/page-context';
 import { PHOTO_MAX_BYTES } from '../../../lib/photos/photos';
 import { uploadPhoto } from '../../../lib/photos/photos.service';
@@ -19,31 +20,10 @@ export const POST: APIRoute = async ({ request, locals }) => {
   if (!/^multipart\/form-data\b/i.test(request.headers.get('content-type') ?? '')) {
     return jsonError(415, 'unsupported_media_type', 'Send the photo as multipart/form-data in a field named "file".');
   }
-  const limit = PHOTO_MAX_BYTES + ENVELOPE_BYTES;
-  const declared = Number(request.headers.get('content-length') ?? 'NaN');
-  if (Number.isFinite(declared) && declared > limit) return tooLarge(declared);
   // Read with a cap, so an upload without a length header is cut off instead of buffered whole.
-  const chunks: Uint8Array[] = [];
-  let size = 0;
-  if (request.body) {
-    const reader = request.body.getReader();
-    for (;;) {
-      const { done, value } = await reader.read();
-      if (done) break;
-      size += value.byteLength;
-      if (size > limit) {
-        await reader.cancel().catch(() => {});
-        return tooLarge(size);
-      }
-      chunks.push(value);
-    }
-  }
-  let form: FormData;
-  try {
-    form = await new Request(request.url, { method: 'POST', headers: { 'content-type': request.headers.get('content-type')! }, body: Buffer.concat(chunks) }).formData();
-  } catch {
-    return jsonError(400, 'invalid_form', 'The upload could not be read as a form.');
-  }
+  const body = await readMultipartForm(request, PHOTO_MAX_BYTES + ENVELOPE_BYTES);
+  if (!body.ok) return body.reason === 'too-large' ? tooLarge(body.size) : jsonError(400, 'invalid_form', 'The upload could not be read as a form.');
+  const form = body.form;
   const file = form.get('file');
   if (!file || typeof file === 'string') return jsonError(400, 'invalid_input', 'Attach the photo in a field named "file".', { file: 'Choose a photo.' });
   let r: Awaited<ReturnType<typeof uploadPhoto>>;
