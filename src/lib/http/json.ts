@@ -47,7 +47,8 @@ export function fieldErrorsFrom(error: z.ZodError): FieldErrors {
 export async function readBodyBytes(
   request: Request,
   maxBytes: number,
-  drainLimit = Math.max(4 * maxBytes, 1024 * 1024),
+  // Room to drain: three times the limit, at least 1 MiB and at most 16 MiB past it (common practice, no published source).
+  drainLimit = maxBytes + Math.min(Math.max(3 * maxBytes, 1024 * 1024), 16 * 1024 * 1024),
 ): Promise<{ ok: true; bytes: Uint8Array } | { ok: false; size: number }> {
   const declared = Number(request.headers.get('content-length') ?? 'NaN');
   if (Number.isFinite(declared) && declared > drainLimit) return { ok: false, size: declared };
