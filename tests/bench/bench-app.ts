@@ -6,6 +6,8 @@ import type { Kysely } from 'kysely';
 import { createDb } from '../../src/lib/db/db';
 import type { Database } from '../../src/lib/db/database';
 import { startApp } from '../e2e/helpers/server';
+// mulberry32: the same invented history on every run.
+import { makeRandom } from '../unit/analysis/simulated-machines';
 
 export interface BenchApp {
   baseUrl: string;
@@ -22,18 +24,6 @@ export async function openBenchApp(dbName: string): Promise<BenchApp> {
   const app = await startApp(dbName, { seed: false });
   const db = createDb(app.databaseUrl, { max: 4 });
   return { baseUrl: app.baseUrl, db, async stop() { await db.destroy(); await app.stop(); } };
-}
-
-// mulberry32: the same invented history on every run.
-function makeRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
 }
 
 const TYPICAL: Record<string, number> = {
