@@ -116,7 +116,7 @@ describe('new-oil reference in Chromium', () => {
     await findings.waitFor();
     const text = (await findings.textContent()) ?? '';
     // |12.6 − 16.0| / 16.0 = 21.25 %: the finding names the figure of the oil as poured.
-    expect(text).toMatch(/same oil new \(16 mm²\/s\)/);
+    expect(text).toMatch(/oil as poured \(16 mm²\/s, from the new-oil reference\)/);
     await screenshot(page, 'new-oil-04-finding-phone');
     await page.setViewportSize(DESKTOP);
     await screenshot(page, 'new-oil-05-finding-desktop');

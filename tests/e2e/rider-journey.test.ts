@@ -205,6 +205,7 @@ describe('rider journey on a phone', () => {
     await page.getByTestId('offline-form-status').getByText('Saved on this device').waitFor();
     // The outbox (IndexedDB) lists it with its state, in words.
     const item = page.getByTestId('outbox-item');
+    await item.first().waitFor();
     expect(await item.count()).toBe(1);
     expect(await item.first().textContent()).toContain(`KIT-${stamp}`);
     expect(await item.first().getAttribute('data-state')).toBe('waiting');

@@ -7,7 +7,7 @@
  * cell gives its cached result (what the lab's spreadsheet last computed); formulas are never evaluated.
  */
 import { inflateRawSync } from 'node:zlib';
-import ExcelJS from 'exceljs';
+import type ExcelJS from 'exceljs';
 import { recogniseHeader } from './column-recognition';
 import { decodeLabFile, MAX_LAB_FILE_BYTES, type DecodeLabFileError } from './decode-lab-file';
 
@@ -158,7 +158,9 @@ export function hasRecognisableHeader(rows: readonly (readonly string[])[]): boo
 export async function readXlsxLabFile(bytes: Uint8Array, options: { sheetNames?: readonly string[] } = {}): Promise<ReadLabFileResult> {
   const problem = checkWorkbookArchive(bytes);
   if (problem) return refuse('not-csv-file', `This file starts like a spreadsheet, but ${problem}. Save the lab report again as .xlsx or CSV and upload that.`);
-  const workbook = new ExcelJS.Workbook();
+  // Loaded only when a workbook arrives: the reader is large, and a CSV upload should not wait for it.
+  const { default: ExcelRuntime } = await import('exceljs');
+  const workbook = new ExcelRuntime.Workbook();
   try {
     await workbook.xlsx.load(Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength) as unknown as ArrayBuffer);
   } catch (error) {
