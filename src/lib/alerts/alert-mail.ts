@@ -147,7 +147,7 @@ export function composeInvitationPendingAlert(input: { crewName: string; email: 
       {
         text: input.expired
           ? 'The link has expired. If they still want to join, send a new invitation from the crew page.'
-          : 'The mail may have gone to their spam folder. You can send a new invitation, or revoke this one, from the crew page.',
+          : 'The mail may have gone to their spam folder. You can send a new invitation, or withdraw this one, from the crew page.',
       },
     ],
     action: { label: 'Open the crew page', url: input.crewUrl },
