@@ -84,7 +84,10 @@ describe.each(SIZES)('the demo crew at %s size', (name, viewport) => {
     await expect(page.locator('h1').textContent()).resolves.toBe('Alert limits');
     const iron = page.locator('[data-limit=Fe]');
     await expect(iron.textContent()).resolves.toContain('Default 100 ppm');
-    await expect(iron.getByTestId('limit-source').textContent()).resolves.toContain('Petro-Canada Lubricants Handbook (2004)');
+    await expect(page.getByTestId('limit-group').filter({ has: iron }).getByTestId('limit-source').textContent()).resolves.toContain('Petro-Canada Lubricants Handbook (2004)');
+    // Every field has a default beside it, and every card a source.
+    expect(await page.locator('[data-limit]').count()).toBe(await page.locator('[data-limit] >> text=/Default [0-9.]+ (ppm|%)/').count());
+    expect(await page.getByTestId('limit-source').count()).toBe(await page.getByTestId('limit-group').count());
     expect(await page.locator('[data-limit=B]').count()).toBe(0);
     expect(await tooWide(page)).toEqual([]);
     await screenshot(page, `glance-limits-${name}`);
@@ -93,6 +96,7 @@ describe.each(SIZES)('the demo crew at %s size', (name, viewport) => {
     await page.getByRole('button', { name: 'Save the alert limits' }).click();
     await expect(page.getByTestId('form-error').textContent()).resolves.toContain('Nothing was saved');
     await expect(iron.locator('.field-error').textContent()).resolves.toContain('Numbers only');
+    await expect(page.getByLabel('Iron (ppm)').inputValue()).resolves.toBe('lots');
     await screenshot(page, `glance-limits-refused-${name}`);
 
     await page.getByLabel('Iron (ppm)').fill('90');
