@@ -126,6 +126,12 @@ describe('lab import in Chromium', () => {
     expect(await p.locator('#row-2-msg').textContent()).toContain('no sample of this crew has bottle code "SW-2107"');
     await p.getByLabel('What to do with line 2').selectOption('skip');
     await p.getByLabel('What to do with line 3').selectOption({ label: 'Create the sample on Wren 450' });
+    // Without JavaScript the confirm stays off, with its reason, until the choices are checked.
+    expect(await p.getByTestId('confirm-import').isDisabled()).toBe(true);
+    await expect(p.getByTestId('confirm-why').textContent()).resolves.toContain('Nothing can be written yet');
+    await p.getByRole('button', { name: 'Check my choices' }).click();
+    await p.waitForLoadState();
+    await expect(p.getByTestId('confirm-import').textContent()).resolves.toMatch(/Confirm import: 1 sample, \d+ readings?/);
     await Promise.all([p.waitForURL(/done=1/), p.getByTestId('confirm-import').click()]);
     await screenshot(p, 'lab-import-08-plain-done-phone');
     await plain.close();
