@@ -65,7 +65,7 @@ describe('rider journey on a phone', () => {
     await page.getByLabel('Oil capacity (L)').fill('1.2');
     await page.getByLabel('Grade 1').fill('10W-45');
     await page.getByLabel('From °F').first().fill('14');
-    await page.getByLabel('Longest change interval (odometer unit)').fill('3000');
+    await page.getByLabel('Longest change interval (meter unit)').fill('3000');
     await page.getByRole('button', { name: 'Add machine' }).click();
     await expect(page.locator('#f-grade_0-error').textContent()).resolves.toContain('45 is not an SAE high-temperature grade');
     await screenshot(page, 'rider-02-machine-form-error');
