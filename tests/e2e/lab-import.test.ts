@@ -1,7 +1,9 @@
 // Lab import end to end in Chromium: a report from sample-data/labs/ through the Uppy dashboard, the
 // preview checked, one column's mapping fixed and saved as a lab profile, the confirm, and the sample page
 // showing its readings and findings. Also the plain form without JavaScript and the "already imported" answer.
+import os from 'node:os';
 import path from 'node:path';
+import { mkdtempSync, writeFileSync } from 'node:fs';
 import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { createDb } from '../../src/lib/db/db';
@@ -109,6 +111,27 @@ describe('lab import in Chromium', () => {
     expect(errors).toEqual([]);
   });
 
+  test('with JavaScript the confirm stays off with its reason until every marked row has a choice', async () => {
+    const dir = mkdtempSync(path.join(os.tmpdir(), 'sumpwise-confirm-'));
+    const file = path.join(dir, `unknown-bottle-${Date.now().toString(36)}.csv`);
+    writeFileSync(file, `Bottle,Sampled,Fe,Al,Si\nZZ-${Date.now().toString(36).toUpperCase()},2026-11-01,22,4,9\n`);
+    await page.setViewportSize(DESKTOP);
+    await page.goto('/imports');
+    await page.getByTestId('lab-upload-dashboard').locator('.uppy-Dashboard').waitFor();
+    await page.locator('.uppy-Dashboard-input').first().setInputFiles(file);
+    await page.locator('.uppy-StatusBar-actionBtn--upload').click();
+    await page.waitForURL(/\/imports\/[0-9a-f-]{36}$/, { timeout: 20_000 });
+    const confirm = page.getByTestId('confirm-import');
+    expect(await confirm.isDisabled()).toBe(true);
+    expect(await confirm.textContent()).toBe('Confirm import');
+    await expect(page.getByTestId('confirm-why').textContent()).resolves.toContain('choose what to do with the 1 row marked above');
+    await page.getByLabel('What to do with line 2').selectOption({ label: 'Create the sample on Wren 450' });
+    await expect(confirm.isEnabled()).resolves.toBe(true);
+    expect(await confirm.textContent()).toBe('Confirm import with these choices');
+    expect(await page.getByTestId('confirm-why').isHidden()).toBe(true);
+    await screenshot(page, 'lab-import-09-confirm-after-choice-desktop');
+  });
+
   test('without JavaScript the plain form uploads, and the same file again is "already imported"', async () => {
     const plain = await browser.newContext({ viewport: PHONE, baseURL: baseUrl(), javaScriptEnabled: false });
     const p = await plain.newPage();
@@ -127,6 +150,12 @@ describe('lab import in Chromium', () => {
     expect(await p.locator('#row-2-msg').textContent()).toContain('no sample of this crew has bottle code "SW-2107"');
     await p.getByLabel('What to do with line 2').selectOption('skip');
     await p.getByLabel('What to do with line 3').selectOption({ label: 'Create the sample on Wren 450' });
+    // Without JavaScript the confirm stays off, with its reason, until the choices are checked.
+    expect(await p.getByTestId('confirm-import').isDisabled()).toBe(true);
+    await expect(p.getByTestId('confirm-why').textContent()).resolves.toContain('Nothing can be written yet');
+    await p.getByRole('button', { name: 'Check my choices' }).click();
+    await p.waitForLoadState();
+    await expect(p.getByTestId('confirm-import').textContent()).resolves.toMatch(/Confirm import: 1 sample, \d+ readings?/);
     await Promise.all([p.waitForURL(/done=1/), p.getByTestId('confirm-import').click()]);
     await screenshot(p, 'lab-import-08-plain-done-phone');
     await plain.close();

@@ -65,7 +65,7 @@ describe('rider journey on a phone', () => {
     await page.getByLabel('Oil capacity (L)').fill('1.2');
     await page.getByLabel('Grade 1').fill('10W-45');
     await page.getByLabel('From °F').first().fill('14');
-    await page.getByLabel('Longest change interval (odometer unit)').fill('3000');
+    await page.getByLabel('Longest change interval (meter unit)').fill('3000');
     await page.getByRole('button', { name: 'Add machine' }).click();
     await expect(page.locator('#f-grade_0-error').textContent()).resolves.toContain('45 is not an SAE high-temperature grade');
     await screenshot(page, 'rider-02-machine-form-error');
@@ -86,7 +86,7 @@ describe('rider journey on a phone', () => {
     await page.getByLabel('Oil product').fill('Quillmoor Synth 4T');
     await page.getByLabel('Other work done').fill('Drain plug washer replaced');
     await page.locator('[data-testid=photo-uploader] input[type=file]').first().setInputFiles({ name: 'cover-bolts.png', mimeType: 'image/png', buffer: tinyPng() });
-    await page.getByText('1 photo(s) ready').waitFor({ timeout: 15_000 });
+    await page.getByText('1 photo ready').waitFor({ timeout: 15_000 });
     await screenshot(page, 'rider-04-oil-change-form');
     await Promise.all([page.waitForURL(/\?logged=1$/), page.getByRole('button', { name: 'Save oil change' }).click()]);
     const img = page.locator('[data-testid=oil-changes] img').first();

@@ -168,6 +168,14 @@ export const ROLE_MATRIX: MatrixRow[] = [
     expect: { anonymous: 303, rider: 403, mechanic: 403, lead: 200, otherLead: 404 } },
   { route: '/crews/[id]', method: 'POST', path: (ctx) => `/crews/${ctx.crewA.id}`, form: { action: 'invite', email: 'x@crew-a.example', role: 'lead' },
     origin: 'https://attacker.example', expect: all(403), note: 'cross-site form post: Astro origin check' },
+  { route: '/crews/[id]/limits', method: 'GET', path: (ctx) => `/crews/${ctx.crewA.id}/limits`, expect: { anonymous: 303, rider: 403, mechanic: 403, lead: 200, otherLead: 404 } },
+  { route: '/crews/[id]/limits', method: 'GET', path: `/crews/${'0'.repeat(8)}-0000-4000-8000-${'0'.repeat(12)}/limits`, expect: { ...all(404), anonymous: 303 }, note: 'no such crew looks like another crew' },
+  { route: '/crews/[id]/limits', method: 'POST', path: (ctx) => `/crews/${ctx.crewA.id}/limits`, form: { Fe: '100' },
+    expect: { anonymous: 303, rider: 403, mechanic: 403, lead: 303, otherLead: 404 }, note: 'the default typed in: nothing changes, back to the page' },
+  { route: '/crews/[id]/limits', method: 'POST', path: (ctx) => `/crews/${ctx.crewA.id}/limits`, form: { Fe: 'lots' },
+    expect: { anonymous: 303, rider: 403, mechanic: 403, lead: 400, otherLead: 404 }, note: 'not a number: refused, nothing written' },
+  { route: '/crews/[id]/limits', method: 'POST', path: (ctx) => `/crews/${ctx.crewA.id}/limits`, form: { Fe: '90' },
+    origin: 'https://attacker.example', expect: all(403), note: 'cross-site form post: Astro origin check' },
 
   // JSON: accounts.
   { route: '/api/auth/me', method: 'GET', path: '/api/auth/me', expect: { ...all(200), anonymous: 401 } },

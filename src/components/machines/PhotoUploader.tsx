@@ -10,6 +10,7 @@ import '@uppy/core/css/style.min.css';
 import '@uppy/dashboard/css/style.min.css';
 import type { OutboxPhoto } from '../../lib/offline/outbox';
 import { COLLECT_PHOTOS_EVENT, PHOTOS_KEPT_EVENT } from '../offline/offline-events';
+import { formatCount } from '../../lib/words/words';
 
 interface Props {
   /** id of the plain file input this island replaces. */
@@ -74,7 +75,7 @@ export default function PhotoUploader({ fallbackInputId, maxFileBytes }: Props) 
         locale={{ strings: { dropPasteFiles: 'Drop photos here or %{browseFiles}', browseFiles: 'choose photos' } }}
       />
       {ids.map((id) => <input key={id} type="hidden" name="photoIds" value={id} />)}
-      <p className="mt-2 text-sm" aria-live="polite">{ids.length > 0 ? `${ids.length} photo(s) ready; they are attached when you save.` : ''}</p>
+      <p className="mt-2 text-sm" aria-live="polite">{ids.length > 0 ? `${formatCount(ids.length, 'photo')} ready; ${ids.length === 1 ? 'it is' : 'they are'} attached when you save.` : ''}</p>
     </div>
   );
 }

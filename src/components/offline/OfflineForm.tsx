@@ -10,6 +10,7 @@ import { COLLECT_PHOTOS_EVENT, PHOTOS_KEPT_EVENT } from './offline-events';
 import OutboxList from './OutboxList';
 import { getOutboxItem, putOutboxItem, removeOutboxItem } from './outbox-store';
 import { flushOutbox, requestBackgroundSync } from './outbox-sync';
+import { formatCount } from '../../lib/words/words';
 
 interface Props {
   kind: OutboxKind;
@@ -206,7 +207,7 @@ export default function OfflineForm({ kind, formId, machineId, machineName, part
         <div className="caution mt-3" data-testid="outbox-editing">
           <p className="font-semibold">Editing a {kind === 'drain-card' ? 'drain card' : kind === 'oil-change' ? 'oil change' : 'measurement'} that was not accepted.</p>
           {editing.message && <p>✕ {editing.message}</p>}
-          {editing.photos.length > 0 && <p>{editing.photos.length} photo(s) saved with it are kept.</p>}
+          {editing.photos.length > 0 && <p>{formatCount(editing.photos.length, 'photo')} saved with it {editing.photos.length === 1 ? 'is' : 'are'} kept.</p>}
         </div>
       )}
       <p className={status ? 'caution mt-3 font-semibold' : 'sr-only'} role="status" aria-live="polite" data-testid="offline-form-status">{status}</p>

@@ -4,6 +4,7 @@ import { useCallback, useEffect, useState } from 'react';
 import { STATE_LOOK, editUrlOf, type OutboxItem, type OutboxKind } from '../../lib/offline/outbox';
 import { listOutbox, onOutboxChange, removeOutboxItem } from './outbox-store';
 import { flushOutbox, type FlushReport } from './outbox-sync';
+import { formatCount } from '../../lib/words/words';
 
 interface Props {
   /** Only this kind of write (the drain card shows its cards); all kinds when absent. */
@@ -86,7 +87,7 @@ export default function OutboxList({ kind, full = false }: Props) {
                     <span aria-hidden="true">{look.shape}</span>{look.word}
                   </span>
                 </div>
-                <p className="text-sm">{item.label}{item.photos.length > 0 ? ` · ${item.photos.length} photo(s)` : ''}</p>
+                <p className="text-sm">{item.label}{item.photos.length > 0 ? ` · ${formatCount(item.photos.length, 'photo')}` : ''}</p>
                 <p className="text-xs text-ink-soft">Saved {formatTime(item.savedAt)} in {item.crewName}{item.attempts > 0 && item.lastTriedAt ? ` · tried ${item.attempts}×, last ${formatTime(item.lastTriedAt)}` : ''}</p>
                 {item.message && <p className={`mt-1 text-sm ${item.state === 'refused' || item.state === 'not-member' ? 'field-error' : ''}`} data-testid="outbox-message">{item.state === 'refused' ? '✕ ' : ''}{item.message}</p>}
                 {canEdit && (

@@ -9,6 +9,7 @@ import type { AlertLine, Level, Meter, NotificationKind } from '../db/database';
 import { LEVEL_DISPLAY } from '../levels';
 import { escapeHtml, renderMailLayout } from '../mail/templates';
 import { formatMeter } from '../units/units';
+import { formatCount } from '../words/words';
 
 /** One alert before rendering: what the digest keeps of it, and what an immediate mail shows. */
 export interface AlertContent {
@@ -78,7 +79,7 @@ export function composeImportFindingsAlert(input: { crewName: string; fileName: 
     kind: 'import_findings',
     subject: fitSubject(`${acts ? 'Act' : 'Watch'}: lab results for ${machineNames.join(', ')} (${input.crewName})`),
     title: acts ? 'Lab results need a look' : 'Lab results to keep an eye on',
-    intro: `A lab import in ${input.crewName} (${input.fileName}) brought ${counted} on ${machineNames.length === 1 ? machineNames[0] : `${machineNames.length} machines`}. Findings are advice: check them against the service manual, and where work could hurt someone, leave it to a licensed mechanic.`,
+    intro: `A lab import in ${input.crewName} (${input.fileName}) brought ${counted} on ${machineNames.length === 1 ? machineNames[0] : formatCount(machineNames.length, 'machine')}. Findings are advice: check them against the service manual, and where work could hurt someone, leave it to a licensed mechanic.`,
     lines,
     action: { label: 'Open the crew home', url: input.homeUrl },
   };
@@ -127,7 +128,7 @@ export function composeShippedOverdueAlert(input: {
   return {
     kind: 'shipped_overdue',
     subject: fitSubject(`No results yet: bottle ${input.bottleCode} of ${input.machineName} (${input.crewName})`),
-    title: `Bottle ${input.bottleCode}: no results after ${input.days} days`,
+    title: `Bottle ${input.bottleCode}: no results after ${formatCount(input.days, 'day')}`,
     intro: `The bottle from ${input.machineName} in ${input.crewName} was shipped on ${input.shippedOn} and no lab results have been imported since.`,
     lines: [
       { text: 'Ask the lab whether it arrived, or import their results if they came by another route. A note on the sample keeps the crew in the picture.' },
@@ -142,12 +143,12 @@ export function composeInvitationPendingAlert(input: { crewName: string; email: 
     kind: 'invitation_pending',
     subject: fitSubject(`Invitation to ${input.crewName} not accepted yet: ${input.email}`),
     title: 'An invitation is still waiting',
-    intro: `${input.email} was invited to ${input.crewName} on ${input.invitedOn} and has not accepted after ${input.days} days.`,
+    intro: `${input.email} was invited to ${input.crewName} on ${input.invitedOn} and has not accepted after ${formatCount(input.days, 'day')}.`,
     lines: [
       {
         text: input.expired
           ? 'The link has expired. If they still want to join, send a new invitation from the crew page.'
-          : 'The mail may have gone to their spam folder. You can send a new invitation, or revoke this one, from the crew page.',
+          : 'The mail may have gone to their spam folder. You can send a new invitation, or withdraw this one, from the crew page.',
       },
     ],
     action: { label: 'Open the crew page', url: input.crewUrl },

@@ -103,9 +103,9 @@ export const CLIMBING_TREND = {
 export const FIXED_LIMIT = {
   id: 'fixed-limit',
   kind: 'finding',
-  title: 'Fixed limit',
+  title: 'Alert limit',
   description:
-    'A reading at or above a fixed limit the crew lead can change: Fe, Cr, Cu, Sn, Al, Pb and Si in ppm, and water in %. ' +
+    'A reading at or above one of the crew\'s alert limits (fixed figures the crew lead can change): Fe, Cr, Cu, Sn, Al, Pb and Si in ppm, and water in %. ' +
     'At the limit: act. From watchFraction of the limit: watch, as an early warning. Boron has no fixed limit here: ' +
     "many motorcycle oils carry borate, so it is judged against the oil's own level.",
   source:

@@ -21,6 +21,7 @@ export const AUDIT_KINDS = [
   'import_sender_removed',
   'baseline_excluded',
   'baseline_restored',
+  'alert_limits_changed',
 ] as const;
 export type AuditKind = (typeof AUDIT_KINDS)[number];
 
@@ -68,4 +69,5 @@ export const AUDIT_LABELS: Record<AuditKind, string> = {
   import_sender_removed: 'Lab address removed from the import list',
   baseline_excluded: 'Sample taken out of the baseline',
   baseline_restored: 'Sample put back in the baseline',
+  alert_limits_changed: 'Alert limits changed',
 };

@@ -1,6 +1,7 @@
 /** Queries of the crew home page; every one scoped by crew. */
 import { sql, type Kysely } from 'kysely';
-import type { Database } from '../db/database';
+import type { Database, IntervalCallKind } from '../db/database';
+import type { CrewProgress, OpenFinding } from './home-cards';
 
 /** Samples of the crew in a state, with machine name, oldest first (limited). */
 export async function listSamplesInState(db: Kysely<Database>, crewId: string, state: 'drawn' | 'results_in', limit = 50) {
@@ -28,31 +29,53 @@ export async function listOverdueShipments(db: Kysely<Database>, crewId: string,
   return rows;
 }
 
-/** Act findings on each machine's latest sample with results: the ones still open. */
-export async function listOpenActFindings(db: Kysely<Database>, crewId: string, limit = 50) {
-  const { rows } = await sql<{ finding_id: string; sample_id: string; bottle_code: string; drawn_on: string; machine_id: string; machine_name: string; rule_id: string; measurand: string | null; sentence: string }>`
-    select f.id as finding_id, ls.id as sample_id, ls.bottle_code, ls.drawn_on::text as drawn_on, m.id as machine_id, m.name as machine_name,
-      f.rule_id, f.measurand, f.sentence
+/** Watch and act findings on each machine's latest sample with results: the ones still open. */
+export async function listOpenFindings(db: Kysely<Database>, crewId: string, limit = 500) {
+  const { rows } = await sql<OpenFinding>`
+    select ls.id as sample_id, ls.bottle_code, ls.drawn_on::text as drawn_on, m.id as machine_id, m.name as machine_name,
+      f.level, f.rule_id, f.measurand, f.sentence
     from machines m
     join lateral (
       select s.id, s.bottle_code, s.drawn_on from samples s
       where s.machine_id = m.id and s.state in ('results_in', 'reviewed') order by s.drawn_on desc, s.odometer desc limit 1
     ) ls on true
-    join findings f on f.sample_id = ls.id and f.level = 'act'
+    join findings f on f.sample_id = ls.id and f.level in ('watch', 'act')
     where m.crew_id = ${crewId} and m.archived_at is null
-    order by ls.drawn_on desc, m.name, f.rule_id limit ${limit}
+    order by ls.drawn_on desc, m.name, case f.level when 'act' then 0 else 1 end, f.rule_id limit ${limit}
   `.execute(db);
   return rows;
+}
+
+/** How far a crew has come: machines, machines with an oil change, drain cards, mechanics and open invitations. */
+export async function loadCrewProgress(db: Kysely<Database>, crewId: string): Promise<CrewProgress> {
+  const { rows } = await sql<{ machines: string; with_change: string; drain_cards: string; mechanics: string; first_machine: string | null; first_with_change: string | null }>`
+    select
+      (select count(*) from machines m where m.crew_id = ${crewId} and m.archived_at is null) as machines,
+      (select count(*) from machines m where m.crew_id = ${crewId} and m.archived_at is null
+         and exists (select 1 from oil_changes oc where oc.machine_id = m.id)) as with_change,
+      (select count(*) from samples s where s.crew_id = ${crewId}) as drain_cards,
+      (select count(*) from crew_members cm where cm.crew_id = ${crewId} and cm.role = 'mechanic')
+        + (select count(*) from crew_invitations ci where ci.crew_id = ${crewId} and ci.role = 'mechanic'
+             and ci.accepted_at is null and ci.revoked_at is null and ci.expires_at > now()) as mechanics,
+      (select m.id from machines m where m.crew_id = ${crewId} and m.archived_at is null order by m.created_at, m.id limit 1) as first_machine,
+      (select m.id from machines m where m.crew_id = ${crewId} and m.archived_at is null
+         and exists (select 1 from oil_changes oc where oc.machine_id = m.id) order by m.created_at, m.id limit 1) as first_with_change
+  `.execute(db);
+  const r = rows[0]!;
+  return {
+    machines: Number(r.machines), machinesWithOilChange: Number(r.with_change), drainCards: Number(r.drain_cards),
+    mechanicsOrInvites: Number(r.mechanics), firstMachineId: r.first_machine, firstMachineWithOilChangeId: r.first_with_change,
+  };
 }
 
 /** Each active machine of the crew with its latest interval call and manufacturer limits, for the due check. */
 export async function listMachinesForDue(db: Kysely<Database>, crewId: string) {
   const { rows } = await sql<{ id: string; name: string; meter: 'mi' | 'km' | 'h'; next_sample_on: string | null; next_sample_odometer: number | null;
-    last_change_on: string | null; last_change_odometer: number | null; max_interval_distance: number | null; max_interval_days: number | null }>`
-    select m.id, m.name, m.meter, ic.next_sample_on::text as next_sample_on, ic.next_sample_odometer,
+    call: IntervalCallKind | null; last_change_on: string | null; last_change_odometer: number | null; max_interval_distance: number | null; max_interval_days: number | null }>`
+    select m.id, m.name, m.meter, ic.call, ic.next_sample_on::text as next_sample_on, ic.next_sample_odometer,
       oc.changed_on::text as last_change_on, oc.odometer as last_change_odometer, m.max_interval_distance, m.max_interval_days
     from machines m
-    left join lateral (select ic2.next_sample_on, ic2.next_sample_odometer from interval_calls ic2 join samples s2 on s2.id = ic2.sample_id
+    left join lateral (select ic2.call, ic2.next_sample_on, ic2.next_sample_odometer from interval_calls ic2 join samples s2 on s2.id = ic2.sample_id
         where ic2.machine_id = m.id
         order by s2.drawn_on desc, s2.odometer desc, ic2.created_at desc, case ic2.source when 'engine' then 0 else 1 end desc, ic2.id desc limit 1) ic on true
     left join lateral (select changed_on, odometer from oil_changes where machine_id = m.id order by odometer desc, changed_on desc limit 1) oc on true

@@ -3,7 +3,9 @@ import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
 import { listOdometerHistory } from '../overview/overview.repository';
 import { estimateCurrentOdometer, findSampleDue, type DueStatus, type OdometerEstimate } from './odometer-estimate';
-import { listMachinesForDue, listOpenActFindings, listOverdueShipments, listSamplesInState } from './home.repository';
+import { listMachinesForDue, listOpenFindings, listOverdueShipments, listSamplesInState, loadCrewProgress } from './home.repository';
+import { groupFindingsByMachine } from './home-cards';
+import { describeOverdue } from '../words/words';
 
 /** Shipped samples without results after this many days surface on the home page (PRODUCT.md, issue 7). */
 export const SHIPPED_OVERDUE_DAYS = 21;
@@ -18,6 +20,8 @@ export interface DueMachine {
   target: 'call' | 'manufacturer';
   nextSampleOn: string | null;
   nextSampleOdometer: number | null;
+  /** "due 7 weeks ago" when the date target has passed. */
+  overdue: { days: number; words: string } | null;
 }
 
 function addDays(iso: string, days: number): string {
@@ -26,12 +30,13 @@ function addDays(iso: string, days: number): string {
 
 /** Everything on the crew home, for `today` (YYYY-MM-DD). */
 export async function loadCrewHome(db: Kysely<Database>, crewId: string, today: string) {
-  const [drawn, overdue, waiting, act, machines] = await Promise.all([
+  const [drawn, overdue, waiting, findings, machines, progress] = await Promise.all([
     listSamplesInState(db, crewId, 'drawn'),
     listOverdueShipments(db, crewId, addDays(today, -SHIPPED_OVERDUE_DAYS)),
     listSamplesInState(db, crewId, 'results_in'),
-    listOpenActFindings(db, crewId),
+    listOpenFindings(db, crewId),
     listMachinesForDue(db, crewId),
+    loadCrewProgress(db, crewId),
   ]);
   const histories = await listOdometerHistory(db, machines.map((m) => m.id));
   const due: DueMachine[] = [];
@@ -44,7 +49,11 @@ export async function loadCrewHome(db: Kysely<Database>, crewId: string, today: 
       ? m.next_sample_odometer === null ? null : Number(m.next_sample_odometer)
       : m.last_change_odometer !== null && m.max_interval_distance !== null ? Number(m.last_change_odometer) + Number(m.max_interval_distance) : null;
     const status = findSampleDue({ today, estimate, nextSampleOn, nextSampleOdometer });
-    if (status.due) due.push({ id: m.id, name: m.name, meter: m.meter, due: status, estimate, target: fromCall ? 'call' : 'manufacturer', nextSampleOn, nextSampleOdometer });
+    const late = nextSampleOn && status.reasons.includes('date') ? describeOverdue(nextSampleOn, today) : null;
+    if (status.due) due.push({ id: m.id, name: m.name, meter: m.meter, due: status, estimate, target: fromCall ? 'call' : 'manufacturer', nextSampleOn, nextSampleOdometer, overdue: late });
   }
-  return { drawn, overdue, waiting, act, due };
+  // The longest overdue first; machines due by the meter estimate alone follow, by name.
+  due.sort((a, b) => (b.overdue?.days ?? -1) - (a.overdue?.days ?? -1) || a.name.localeCompare(b.name));
+  const cards = groupFindingsByMachine(findings, new Map(machines.map((m) => [m.id, m.call])));
+  return { drawn, overdue, waiting, cards, due, progress };
 }

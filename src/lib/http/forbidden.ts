@@ -7,6 +7,7 @@ export const FORBIDDEN_REASONS = {
   'edit-machine':
     'Only the machine’s rider or a crew lead changes this machine, logs its oil changes, registers its samples and records its wear parts.',
   'import-lab-report': 'Only the crew’s lead or a mechanic imports lab reports.',
+  'edit-limits': 'Only a lead of this crew changes its alert limits.',
 } as const;
 
 export type ForbiddenReason = keyof typeof FORBIDDEN_REASONS;

@@ -494,7 +494,7 @@ function toSamplePoint(s: SampleWithReadings, readings: SamplePoint['readings'],
 }
 
 const LIMIT_KEYS: Partial<Record<string, keyof FixedLimits>> = {
-  Fe: 'Fe', Cr: 'Cr', Cu: 'Cu', Sn: 'Sn', Al: 'Al', Pb: 'Pb', B: 'B', Si: 'Si', FUEL: 'fuelPercent', WATER: 'waterPercent',
+  Fe: 'Fe', Cr: 'Cr', Cu: 'Cu', Sn: 'Sn', Al: 'Al', Pb: 'Pb', B: 'B', Si: 'Si', FUEL: 'fuelPercent', WATER: 'waterPercent', KV100: 'kv100ChangePercent',
 };
 
 /**

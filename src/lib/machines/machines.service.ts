@@ -7,6 +7,7 @@ import {
   countMachineRecords, deleteMachineRow, findMachineOfCrew, findMachinesOfCrew, insertMachine, updateMachineRow,
 } from './machines.repository';
 import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type ServiceResult } from './service-result';
+import { formatCount } from '../words/words';
 
 /** The crew's machines for a member (archived ones too when asked). */
 export async function listMachines(db: Kysely<Database>, actor: Actor, options: { includeArchived?: boolean } = {}): Promise<Machine[]> {
@@ -87,7 +88,7 @@ export async function deleteMachine(db: Kysely<Database>, actor: Actor, id: stri
   return db.transaction().execute(async (trx) => {
     const counts = await countMachineRecords(trx, id);
     if (counts.samples + counts.oilChanges > 0) {
-      return refuse(409, 'has_records', `This machine has ${counts.oilChanges} oil change(s) and ${counts.samples} sample(s); archive it instead so its history stays.`);
+      return refuse(409, 'has_records', `This machine has ${formatCount(counts.oilChanges, 'oil change')} and ${formatCount(counts.samples, 'sample')}; archive it instead so its history stays.`);
     }
     await deleteMachineRow(trx, actor.membership.crewId, id);
     return succeed({ deleted: true as const });

@@ -11,7 +11,7 @@
  * changes machine, so its call's machine is the sample's.
  */
 import { sql, type Kysely } from 'kysely';
-import type { Database, IntervalCallKind, Level, Meter } from '../db/database';
+import type { Database, IntervalCallKind, Level, Meter, Role } from '../db/database';
 import { isUuid } from '../trends/trends.repository';
 import { OVERVIEW_PAGE_SIZE, type OverviewPage, type OverviewQuery, type OverviewRow } from './overview';
 
@@ -30,6 +30,8 @@ interface RawRow {
   climbing: string[] | null;
   call: IntervalCallKind | null;
   call_source: string | null;
+  call_role: Role | null;
+  call_author: string | null;
   next_sample_on: string | null;
   next_sample_odometer: number | null;
   total: string;
@@ -63,7 +65,7 @@ export async function listOverviewPage(db: Kysely<Database>, crewId: string, que
         ls.id as sample_id, ls.bottle_code, ls.drawn_on::text as drawn_on, ls.state,
         case when ls.id is null then null else coalesce(f.worst_rank, 0) end as worst_rank, top.rule_id as top_rule, top.measurand as top_measurand, top.sentence as top_sentence,
         coalesce(cl.climbing, '{}') as climbing,
-        ic.call, ic.source as call_source, ic.next_sample_on::text as next_sample_on, ic.next_sample_odometer
+        ic.call, ic.source as call_source, ic.made_by_role as call_role, ic.made_by_name as call_author, ic.next_sample_on::text as next_sample_on, ic.next_sample_odometer
       from machines m
       left join lateral (
         select s.id, s.bottle_code, s.drawn_on, s.state from samples s
@@ -83,7 +85,10 @@ export async function listOverviewPage(db: Kysely<Database>, crewId: string, que
         where sample_id = ls.id and rule_id = 'climbing-trend' and measurand is not null
       ) cl on true
       left join lateral (
-        select ic2.call, ic2.source, ic2.next_sample_on, ic2.next_sample_odometer from samples s2 join interval_calls ic2 on ic2.sample_id = s2.id
+        select ic2.call, ic2.source, ic2.next_sample_on, ic2.next_sample_odometer,
+          (select cm.role from crew_members cm where cm.user_id = ic2.made_by and cm.crew_id = m.crew_id) as made_by_role,
+          (select u.display_name from users u where u.id = ic2.made_by) as made_by_name
+        from samples s2 join interval_calls ic2 on ic2.sample_id = s2.id
         where s2.machine_id = m.id
         order by s2.drawn_on desc, s2.odometer desc, ic2.created_at desc, case ic2.source when 'engine' then 0 else 1 end desc, ic2.id desc limit 1
       ) ic on true
@@ -135,7 +140,7 @@ function toOverviewRow(r: RawRow): OverviewRow {
     topFinding: r.top_rule ? { ruleId: r.top_rule, measurand: r.top_measurand, sentence: r.top_sentence ?? '' } : null,
     climbing: r.climbing ?? [],
     call: r.call
-      ? { kind: r.call, source: r.call_source ?? 'engine', nextSampleOn: r.next_sample_on, nextSampleOdometer: r.next_sample_odometer === null ? null : Number(r.next_sample_odometer) }
+      ? { kind: r.call, source: r.call_source ?? 'engine', authorRole: r.call_role, authorName: r.call_author, nextSampleOn: r.next_sample_on, nextSampleOdometer: r.next_sample_odometer === null ? null : Number(r.next_sample_odometer) }
       : null,
   };
 }
@@ -148,7 +153,7 @@ export async function findMachineOverview(db: Kysely<Database>, crewId: string, 
       (select max(case level when 'act' then 2 when 'watch' then 1 else 0 end) from findings where sample_id = ls.id) as worst_rank,
       top.rule_id as top_rule, top.measurand as top_measurand, top.sentence as top_sentence,
       (select array_agg(distinct measurand order by measurand) from findings where sample_id = ls.id and rule_id = 'climbing-trend' and measurand is not null) as climbing,
-      ic.call, ic.source as call_source, ic.next_sample_on::text as next_sample_on, ic.next_sample_odometer, '1' as total
+      ic.call, ic.source as call_source, ic.made_by_role as call_role, ic.made_by_name as call_author, ic.next_sample_on::text as next_sample_on, ic.next_sample_odometer, '1' as total
     from machines m
     left join lateral (
       select s.id, s.bottle_code, s.drawn_on, s.state from samples s
@@ -159,7 +164,10 @@ export async function findMachineOverview(db: Kysely<Database>, crewId: string, 
       order by case level when 'act' then 2 when 'watch' then 1 else 0 end desc, created_at, id limit 1
     ) top on true
     left join lateral (
-      select ic2.call, ic2.source, ic2.next_sample_on, ic2.next_sample_odometer from samples s2 join interval_calls ic2 on ic2.sample_id = s2.id
+      select ic2.call, ic2.source, ic2.next_sample_on, ic2.next_sample_odometer,
+          (select cm.role from crew_members cm where cm.user_id = ic2.made_by and cm.crew_id = m.crew_id) as made_by_role,
+          (select u.display_name from users u where u.id = ic2.made_by) as made_by_name
+        from samples s2 join interval_calls ic2 on ic2.sample_id = s2.id
         where s2.machine_id = m.id
         order by s2.drawn_on desc, s2.odometer desc, ic2.created_at desc, case ic2.source when 'engine' then 0 else 1 end desc, ic2.id desc limit 1
     ) ic on true

@@ -1,5 +1,5 @@
 /** Crew overview: the query a page address carries (sort, filters, page) and the row shape. Pure. */
-import type { IntervalCallKind, Level, Meter } from '../db/database';
+import type { IntervalCallKind, Level, Meter, Role } from '../db/database';
 import { CALL_KINDS } from '../levels';
 
 export const OVERVIEW_SORTS = ['name', 'last-sample', 'level', 'call', 'due'] as const;
@@ -91,7 +91,7 @@ export interface OverviewRow {
   /** The worst finding's rule and element, for a one-line reason. */
   topFinding: { ruleId: string; measurand: string | null; sentence: string } | null;
   climbing: string[];
-  call: { kind: IntervalCallKind; source: string; nextSampleOn: string | null; nextSampleOdometer: number | null } | null;
+  call: { kind: IntervalCallKind; source: string; authorRole: Role | null; authorName: string | null; nextSampleOn: string | null; nextSampleOdometer: number | null } | null;
 }
 
 export interface OverviewPage {

@@ -6,6 +6,7 @@ import { isUuid } from '../machines/machines.repository';
 import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type ServiceResult } from '../machines/service-result';
 import { explainAbsurdOdometer } from '../oil-changes/oil-changes';
 import { fromMillimetres, fromStoredMeter, toMillimetres, toStoredMeter, type MeterUnit } from '../units/units';
+import { formatCount } from '../words/words';
 import {
   MEASURING_RESOLUTION_MM, measurementInputSchema, toWearMeasurement, toWearPart, wearPartInputSchema, type WearMeasurement, type WearPart,
 } from './wear-parts';
@@ -91,7 +92,7 @@ export async function addWearMeasurement(db: Kysely<Database>, actor: Actor, par
   const valuesMm = (d.pieces.length ? d.pieces : d.summary !== undefined ? [d.summary] : []).map((v) => toMillimetres(v, d.unit));
   const field = d.pieces.length ? 'pieces' : 'summary';
   if (valuesMm.length === 0) return invalid('summary', 'Enter the measurement of each piece, or one value.');
-  if (d.pieces.length > part.pieceCount) return invalid('pieces', `This part has ${part.pieceCount} piece(s); ${d.pieces.length} values were given.`);
+  if (d.pieces.length > part.pieceCount) return invalid('pieces', `This part has ${formatCount(part.pieceCount, 'piece')}; ${formatCount(d.pieces.length, 'value')} ${d.pieces.length === 1 ? 'was' : 'were'} given.`);
   const slack = MEASURING_RESOLUTION_MM[d.unit];
   const top = part.limitDirection === 'min' ? part.newMaxMm + slack : Infinity;
   for (const v of valuesMm) {

@@ -95,13 +95,20 @@ describe('loadMachineSummary and the crew home', () => {
     await expect(loadMachineSummary(db, otherCrewId, ids['Birch']!, '2026-03-01')).resolves.toBeNull();
   });
 
-  test('home: act findings of the latest samples, waiting results, shipped overdue after 21 days, and due machines', async () => {
+  test('home: one card per machine with open findings, waiting results, shipped overdue after 21 days, and due machines', async () => {
     const home = await loadCrewHome(db, crewId, '2026-04-30');
-    expect(home.act.map((f) => [f.machine_name, f.rule_id])).toEqual([['Cedar', 'coolant-markers']]);
+    expect(home.cards.filter((c) => c.worst === 'act').map((c) => [c.machineName, c.main.rule_id])).toEqual([['Cedar', 'coolant-markers']]);
+    expect(new Set(home.cards.map((c) => c.machineId)).size).toBe(home.cards.length);
     expect(home.waiting.map((s) => s.machine_name).sort()).toEqual(['Alder', 'Alder', 'Birch', 'Cedar']);
     // Cedar's bottle was drawn (and so at the latest shipped) on 2026-04-01: 29 days by 2026-04-30.
     expect(home.overdue.map((s) => s.machine_name)).toEqual(['Cedar']);
     expect((await loadCrewHome(db, crewId, '2026-04-15')).overdue).toEqual([]);
     expect(home.due.map((m) => m.name).sort()).toEqual(['Birch', 'Cedar']);
+    // Overdue by date sorts first and says by how much.
+    const late = home.due.filter((m) => m.overdue);
+    expect(late.length).toBeGreaterThan(0);
+    expect(home.due.slice(0, late.length)).toEqual(late);
+    for (const m of late) expect(m.overdue!.words).toMatch(/^due (today|\d+ (day|days|week|weeks|month|months) ago)$/);
+    expect(home.progress.machines).toBeGreaterThan(0);
   });
 });

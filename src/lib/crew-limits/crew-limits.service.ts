@@ -1,0 +1,63 @@
+/** Saving a crew's alert limits: one transaction that writes them, records the change and judges every machine again. */
+import type { Kysely } from 'kysely';
+import type { Database } from '../db/database';
+import { canEditLimits } from '../auth/permissions';
+import type { CrewMembership } from '../auth/types';
+import { recordAuditEvent } from '../audit/audit.repository';
+import { recomputeMachineFindings } from '../lab-import/lab-import.service';
+import { LIMIT_FIELDS, type LimitValues } from './crew-limits';
+import { listCrewLimits, listCrewMachineSamples, lockCrewLimits, writeCrewLimit } from './crew-limits.repository';
+
+export type SaveLimitsResult =
+  | { ok: true; changed: number; machinesJudged: number }
+  | { ok: false; status: 403 | 404; message: string };
+
+/** The change in words for the crew's log ("Iron: 100 → 80 ppm; Water: 0.05 → default"). */
+export function describeChanges(changes: readonly { measurand: string; from: number | null; to: number | null }[]): string {
+  return changes.map((c) => {
+    const f = LIMIT_FIELDS.find((x) => x.measurand === c.measurand)!;
+    const word = (v: number | null) => (v === null ? `default ${f.defaultValue}` : String(v));
+    return `${f.label}: ${word(c.from)} → ${word(c.to)} ${f.unit}`;
+  }).join('; ');
+}
+
+/** The crew's limits as stored (for the form). */
+export async function loadCrewLimits(db: Kysely<Database>, membership: CrewMembership) {
+  return listCrewLimits(db, membership.crewId);
+}
+
+/**
+ * A lead saves the crew's alert limits. Unchanged values write nothing; when anything changed, the change is in
+ * the audit log and every machine of the crew is judged again with the new limits, all in one transaction, so the
+ * stored findings and interval calls never disagree with the limits on this page.
+ */
+export async function saveCrewLimits(
+  db: Kysely<Database>, actor: { userId: string; membership: CrewMembership | null }, values: LimitValues, meta: { ip: string | null },
+): Promise<SaveLimitsResult> {
+  if (!actor.membership) return { ok: false, status: 404, message: 'No such crew.' };
+  if (!canEditLimits(actor.membership)) return { ok: false, status: 403, message: 'Only a lead of this crew changes its alert limits.' };
+  const crewId = actor.membership.crewId;
+  return db.transaction().execute(async (trx) => {
+    const before = new Map((await lockCrewLimits(trx, crewId)).map((r) => [r.measurand, r.act_at]));
+    const changes: { measurand: string; from: number | null; to: number | null }[] = [];
+    for (const f of LIMIT_FIELDS) {
+      const next = values[f.measurand] ?? null;
+      // Typing the default is the same as leaving the box empty: no row, so a later change of default applies.
+      const to = next !== null && next === f.defaultValue ? null : next;
+      const from = before.get(f.measurand) ?? null;
+      if (from === to) continue;
+      await writeCrewLimit(trx, crewId, f.measurand, to, actor.userId);
+      changes.push({ measurand: f.measurand, from, to });
+    }
+    if (changes.length === 0) return { ok: true as const, changed: 0, machinesJudged: 0 };
+    await recordAuditEvent(trx, { kind: 'alert_limits_changed', crewId, actorUserId: actor.userId, ip: meta.ip, detail: { limits: describeChanges(changes) } });
+    const machines = await listCrewMachineSamples(trx, crewId);
+    let judged = 0;
+    for (const [machineId, sampleIds] of machines) {
+      if (sampleIds.length === 0) continue;
+      await recomputeMachineFindings(trx, machineId, new Set(sampleIds));
+      judged += 1;
+    }
+    return { ok: true as const, changed: changes.length, machinesJudged: judged };
+  });
+}
