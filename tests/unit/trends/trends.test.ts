@@ -60,9 +60,10 @@ describe('shapeTrendSeries', () => {
       shapeTrendSeries({ meter: 'km', samples: rows, measurands: ['Fe'], basis: 'ppm' })[0]!,
       shapeTrendSeries({ meter: 'km', samples: rows, measurands: ['Na'], basis: 'rate' })[0]!,
     ];
-    expect(fePpm.points[0]!.band).toEqual({ lower: 12, mean: 20, upper: 28, actFrom: 40, n: 3 });
+    expect(fePpm.points[0]!.band).toEqual({ lower: 12, mean: 20, upper: 28, actFrom: 40, n: 3, source: 'own', sourceLabel: null });
     // 2,000 km on the oil: 1 ppm is 0.5 ppm per 1,000 km.
-    expect(naRate.points[0]!.band).toEqual({ lower: 1, mean: 2.5, upper: 4.5, actFrom: 6, n: 4 });
+    // A crew reference band keeps its source and label for the chart's key.
+    expect(naRate.points[0]!.band).toEqual({ lower: 1, mean: 2.5, upper: 4.5, actFrom: 6, n: 4, source: 'crew', sourceLabel: "from the crew's other 450 cc liquid-cooled singles" });
   });
 
   test('samples outside the baseline are marked, with the reason', () => {
