@@ -76,7 +76,8 @@ describe.each([
     expect(href).toMatch(/^\/machines\/[0-9a-f-]{36}$/);
     await page.goto(`${href}?chart=Fe`);
     const key = page.getByTestId('crew-reference-legend');
-    await key.waitFor({ state: 'visible', timeout: 15_000 });
+    // The island hydrates and fetches the series first; the shared test machine can be slow to serve it.
+    await key.waitFor({ state: 'visible', timeout: 45_000 });
     await expect(key.textContent()).resolves.toContain(LABEL);
     await page.locator('#wear-chart').scrollIntoViewIfNeeded();
     await screenshot(page, `crew-reference-${label}-chart`);

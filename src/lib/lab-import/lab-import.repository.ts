@@ -297,24 +297,19 @@ export function findMachineProfile(db: Db, machineId: string) {
     .executeTakeFirst();
 }
 
+/** What the engine needs of a stored sample (with a left join of its oil change). */
+const SAMPLE_POINT_COLUMNS = [
+  'samples.id', 'samples.drawn_on', 'samples.odometer', 'samples.distance_on_oil', 'samples.top_up_l', 'samples.sae_grade',
+  'samples.oil_product', 'samples.in_baseline', 'samples.baseline_note', 'samples.break_in', 'samples.created_at', 'oil_changes.volume_l',
+] as const;
+
 /** Every sample of a machine that has readings, oldest first, with its oil change's oil volume. */
 export function findSamplesWithReadings(db: Db, machineId: string) {
   return db
     .selectFrom('samples')
     .leftJoin('oil_changes', 'oil_changes.id', 'samples.oil_change_id')
     .select([
-      'samples.id',
-      'samples.drawn_on',
-      'samples.odometer',
-      'samples.distance_on_oil',
-      'samples.top_up_l',
-      'samples.sae_grade',
-      'samples.oil_product',
-      'samples.in_baseline',
-      'samples.baseline_note',
-      'samples.break_in',
-      'samples.created_at',
-      'oil_changes.volume_l',
+      ...SAMPLE_POINT_COLUMNS,
       // The day the results arrived: "next sample by" counts from it when the lab took a while.
       (eb) =>
         eb.selectFrom('readings')
@@ -371,19 +366,8 @@ export async function findReferenceSamples(db: Db, crewId: string, machineIds: r
     .innerJoin('machines', 'machines.id', 'samples.machine_id')
     .leftJoin('oil_changes', 'oil_changes.id', 'samples.oil_change_id')
     .select([
-      'samples.id',
+      ...SAMPLE_POINT_COLUMNS,
       'samples.machine_id',
-      'samples.drawn_on',
-      'samples.odometer',
-      'samples.distance_on_oil',
-      'samples.top_up_l',
-      'samples.sae_grade',
-      'samples.oil_product',
-      'samples.in_baseline',
-      'samples.baseline_note',
-      'samples.break_in',
-      'samples.created_at',
-      'oil_changes.volume_l',
       'machines.oil_capacity_l',
       sql<Date | null>`null::timestamptz`.as('results_at'),
       sql<[string, number, string | null][]>`(select coalesce(json_agg(json_build_array(r.measurand, r.value, r.qualifier)), '[]'::json) from readings r where r.sample_id = samples.id)`.as('readings'),
