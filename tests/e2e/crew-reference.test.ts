@@ -75,9 +75,10 @@ describe.each([
     const href = await page.locator(`tr[data-machine="${NEW_MACHINE}"] th a`).getAttribute('href');
     expect(href).toMatch(/^\/machines\/[0-9a-f-]{36}$/);
     await page.goto(`${href}?chart=Fe`);
+    // The chart island hydrates when it comes into view (below the fold on a phone), then fetches its series.
+    await page.locator('#wear-chart').scrollIntoViewIfNeeded();
     const key = page.getByTestId('crew-reference-legend');
-    // The island hydrates and fetches the series first; the shared test machine can be slow to serve it.
-    await key.waitFor({ state: 'visible', timeout: 45_000 });
+    await key.waitFor({ state: 'visible', timeout: 30_000 });
     await expect(key.textContent()).resolves.toContain(LABEL);
     await page.locator('#wear-chart').scrollIntoViewIfNeeded();
     await screenshot(page, `crew-reference-${label}-chart`);
