@@ -178,6 +178,12 @@ export default function WearChart({ machineId, initial }: Props) {
   );
 }
 
+/** The label of a crew reference band on the chart, when any point was judged against one. */
+function crewLabel(data: TrendResponse): string | undefined {
+  for (const s of data.series) for (const p of s.points) if (p.band?.source === 'crew' && p.band.sourceLabel) return p.band.sourceLabel;
+  return undefined;
+}
+
 function Legend({ data }: { data: TrendResponse }) {
   return (
     <ul className="flex flex-wrap gap-x-4 gap-y-1 text-sm" aria-label="Chart key">
@@ -188,6 +194,12 @@ function Legend({ data }: { data: TrendResponse }) {
         </li>
       ))}
       <li className="flex items-center gap-2"><span aria-hidden="true" className="inline-block h-3 w-6 bg-steel-100" />Baseline band</li>
+      {crewLabel(data) && (
+        <li className="flex items-center gap-2" data-testid="crew-reference-legend">
+          <span aria-hidden="true" className="inline-block h-3 w-6 border border-dashed border-steel-700 bg-steel-100" />
+          Early band: crew reference {crewLabel(data)}
+        </li>
+      )}
       {(['steady', 'watch', 'act'] as const).map((l) => (
         <li key={l} className="flex items-center gap-1">
           <svg width="12" height="12" viewBox="0 0 20 20" aria-hidden="true" fill={LEVEL_COLOURS[l]}>

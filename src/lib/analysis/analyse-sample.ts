@@ -11,8 +11,10 @@ export interface SampleAnalysis {
   worst: Level;
   /** Level of every reading the sample carries: the worst finding naming it, else steady. */
   readingLevels: Partial<Record<MeasurandCode, Level>>;
-  /** 'ready' when iron (or, without iron, every wear metal the sample carries) had a ready band. */
+  /** 'ready' when iron and aluminium (those the sample carries) had ready bands of this machine's own. */
   baselineStatus: 'building' | 'ready';
+  /** Set when any band came from the crew's other machines of the same engine (the own baseline still building). */
+  crewReference?: { label: string; machines: number } | undefined;
   /** The baseline bands the rules used (the wear chart draws these same bands). */
   bands: Partial<Record<MeasurandCode, MeasurandBand>>;
   /** ppm per 1,000 mi/km (or per 100 h) of every wear metal, top-up corrected where volumes are known. */
@@ -101,6 +103,12 @@ export function analyseSample(input: AnalyseInput): SampleAnalysis {
   }
 
   const wearBands = (['Fe', 'Al'] as const).map((c) => ctx.bands[c]).filter((b) => b !== undefined);
-  const ready = wearBands.length > 0 && wearBands.every((b) => b.status === 'ready');
-  return { findings, worst, readingLevels, baselineStatus: ready ? 'ready' : 'building', bands: ctx.bands, wearRates, notes, cautions: [...ANALYSIS_CAUTIONS] };
+  // Only the machine's own bands make a ready baseline: a crew reference judges findings but never earns a stretch.
+  const ready = wearBands.length > 0 && wearBands.every((b) => b.status === 'ready' && b.source === 'own');
+  const crewBands = Object.values(ctx.bands).filter((b) => b.source === 'crew' && b.crew);
+  const crewReference = crewBands.length > 0 ? { label: crewBands[0]!.crew!.label, machines: Math.max(...crewBands.map((b) => b.crew!.machines)) } : undefined;
+  return {
+    findings, worst, readingLevels, baselineStatus: ready ? 'ready' : 'building', ...(crewReference ? { crewReference } : {}),
+    bands: ctx.bands, wearRates, notes, cautions: [...ANALYSIS_CAUTIONS],
+  };
 }

@@ -31,6 +31,7 @@ export * from './baseline';
 export * from './wear-rate';
 export * from './rule-definitions';
 export * from './rules';
+export * from './crew-reference';
 export * from './analyse-sample';
 export * from './interval-call';
 export * from './judge-history';

@@ -119,7 +119,13 @@ function estimatePace(history: readonly SamplePoint[], sample: SamplePoint): num
 function findStretchBlocks(sample: SamplePoint, history: readonly SamplePoint[], analysis: SampleAnalysis): string[] {
   const p = INTERVAL_CALL.params;
   const blocks: string[] = [];
-  if (analysis.baselineStatus !== 'ready') blocks.push('the iron and aluminium baselines are still building');
+  if (analysis.baselineStatus !== 'ready') {
+    blocks.push(
+      analysis.crewReference
+        ? `this machine's own iron and aluminium baselines are still building, and a band ${analysis.crewReference.label} never earns a stretch`
+        : 'the iron and aluminium baselines are still building',
+    );
+  }
   const has = (code: MeasurandCode) => sample.readings[code] !== undefined;
   if (!has('KV100') && !has('KV40')) blocks.push('the lab gave no viscosity');
   if (!has('FUEL') && !has('FLASH')) blocks.push('the lab gave no fuel figure or flash point');
@@ -260,6 +266,10 @@ export function decideIntervalCall(input: {
     reasons.push(`No completed oil change on file yet, so the interval taken as regular is ${regular.source === 'manufacturer' ? "the manufacturer's longest" : 'the longest this machine has run'} (${Math.round(r)} ${unit}).`);
   }
   if (r === null) reasons.push('No distance on this oil, no earlier one and no manufacturer interval: the interval cannot be set yet.');
+  if (analysis.crewReference) {
+    const { label, machines } = analysis.crewReference;
+    reasons.push(`While this machine's own baseline builds, its readings were judged against a crew reference band ${label} (${machines} machines).`);
+  }
   for (const note of analysis.notes) reasons.push(note);
 
   // Dates count from the later of the draw and the day the results arrived, so they are never in the past.

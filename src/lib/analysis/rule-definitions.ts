@@ -59,7 +59,7 @@ export const BASELINE_JUMP = {
     'act from mean + t(0.9995; n−1) · s · √(1 + 1/n) and at least actMinRatio times the mean. s is never taken below the ' +
     "lab's own scatter at that level (√(0.5² + (0.12 · mean)²) ppm). Designed false-alarm rate for one in-control " +
     'reading: 1 % watch, 0.05 % act. With fewer than minSamples in-control samples the band is still building and only ' +
-    'fixed limits apply.',
+    'fixed limits apply, or the crew reference (below) when the crew runs enough machines of the same engine.',
   source:
     "ASTM D7720 statistical approach (limits from the machine's own in-control history); prediction limits with " +
     "Student's t (any statistics text; quantiles checked against the NIST/SEMATECH e-Handbook table 1.3.6.7.2). The " +
@@ -71,6 +71,36 @@ export const BASELINE_JUMP = {
     actAlpha: 0.0005,
     actMinRatio: 1.5,
     groups: ['wear', 'contaminant'],
+  },
+} as const;
+
+export const CREW_REFERENCE = {
+  id: 'crew-reference',
+  kind: 'note',
+  title: 'Crew reference while a baseline builds',
+  description:
+    "While a machine has fewer than BASELINE_JUMP's minSamples in-control samples of its own, its baseline bands come " +
+    "from the crew's other machines with the same engine: the same layout, displacement within " +
+    'displacementTolerance (5 %), the same cooling and the same shared-sump setting, on the same kind of meter. Only ' +
+    "their in-control samples count (the same exclusions as a machine's own band: act readings, break-in oil, samples " +
+    'taken out, and a different oil product for the additive-sensitive elements), drawn no later than the sample ' +
+    'being judged and at a similar oil age (distance on oil within oilAgeFraction either way of this sample). The band ' +
+    "is built with the same rules as the machine's own: wear metals and silicon as rates per distance, the last " +
+    '`window` values, the same prediction-limit multiples and lab-scatter floor. It needs at least minMachines other ' +
+    'machines in the band; with fewer there is no crew reference and only fixed limits apply. The band is labelled ' +
+    "\"from the crew's other <engine> machines\" on the wear chart, the sample page and in the call's reasons, and it " +
+    "never leaves the crew. A stretch is never earned on a crew reference: only the machine's own ready iron and " +
+    'aluminium baselines can count towards one. Once the machine\'s own band is ready it takes over. When an import ' +
+    'changes a machine, the crew\'s other machines of that engine still on a crew reference (at most ' +
+    'rejudgeUpToSamples samples) are judged again in the same transaction.',
+  source:
+    "Sumpwise rule (common practice, no published source): pooling sister engines' history is a usual way to start " +
+    'a condition-monitoring baseline; the tolerances and counts are Sumpwise choices.',
+  params: {
+    minMachines: 3,
+    displacementTolerance: 0.05,
+    oilAgeFraction: 0.5,
+    rejudgeUpToSamples: 8,
   },
 } as const;
 
@@ -270,7 +300,7 @@ export const INTERVAL_CALL = {
     'regular interval, at most resampleDays), the interval unchanged. Any other act finding: shorten to actFactor of ' +
     'the regular interval and resample soon. A climbing trend at watch or other watch findings: hold, next sample at ' +
     'the same interval. Stretch by at most stretchFactor only on stretchSteadySamples steady samples in a row, each ' +
-    'judged on a ready iron and aluminium band with viscosity, fuel (or flash point) and water reported, with TBN not ' +
+    'judged on this machine\'s own ready iron and aluminium band (never on a crew reference) with viscosity, fuel (or flash point) and water reported, with TBN not ' +
     'below tbnMinFraction of new and TAN not up by tanMaxRise when reported, and never right after a shorten until a ' +
     'sample at the shortened interval confirms it; a stretch stands, but stretches no further, until a sample at the ' +
     'longer interval confirms it. Never beyond the manufacturer\'s longest interval; with none on ' +
@@ -302,6 +332,9 @@ export const SIMULATED_RATES = {
   stableAnyActPercent: 1,
   ironDetectedPercent: 98.3,
   aluminiumDetectedPercent: 96,
+  /** A new stable machine judged on a crew reference of four stable machines of its engine (300 crews), any shorten and any act over twelve samples. */
+  crewNewAnyShortenPercent: 1.7,
+  crewNewAnyActPercent: 1.7,
 } as const;
 
 export type RuleDefinition =
@@ -318,6 +351,7 @@ export type RuleDefinition =
   | typeof ADDITIVE_MISMATCH
   | typeof CLUTCH_FRICTION
   | typeof COPPER_LEACHING
+  | typeof CREW_REFERENCE
   | typeof INTERVAL_CALL;
 
 /** Every rule in the order the rules page shows them; the interval call comes last. */
@@ -335,6 +369,7 @@ export const RULE_DEFINITIONS: readonly RuleDefinition[] = [
   ADDITIVE_MISMATCH,
   CLUTCH_FRICTION,
   COPPER_LEACHING,
+  CREW_REFERENCE,
   INTERVAL_CALL,
 ];
 

@@ -12,6 +12,7 @@ import {
   CLIMBING_TREND,
   CLUTCH_FRICTION,
   CONDITION_TREND,
+  CREW_REFERENCE,
   DIRT,
   FIXED_LIMIT,
   FLASH_POINT,
@@ -37,6 +38,10 @@ export type MeasurandBand = BaselineBand & {
   sampleIds: string[];
   /** Multiply a band figure by this to get ppm as reported at this sample (1 on a ppm basis). */
   toReported: number;
+  /** Whose samples: this machine's own, or the crew's other machines of the same engine while its own builds. */
+  source: 'own' | 'crew';
+  /** For a crew band: its label ("from the crew's other …") and how many other machines it pooled. */
+  crew?: { label: string; machines: number } | undefined;
 };
 
 export interface RuleContext {
@@ -198,22 +203,65 @@ export function buildBaselineBands(
       ids.unshift(s.id);
       distances.push(s.distanceOnOil);
     }
-    const meanDistance = distances.reduce((a, b) => a + b, 0) / Math.max(1, distances.length);
-    // The lab scatters in ppm; on a rate basis its scatter scales by per / distance like the readings do.
-    const floorAt =
-      basis === 'ppm' || !(meanDistance > 0)
-        ? labScatterAt
-        : (level: number) => (labScatterAt((level * meanDistance) / per) * per) / meanDistance;
-    const band = computeBaselineBand(values, {
-      minSamples: p.minSamples,
-      window: p.window,
-      watchAlpha: p.watchAlpha,
-      actAlpha: p.actAlpha,
-      floorAt,
-    });
-    bands[code] = { ...band, basis, sampleIds: ids, toReported: basisToReported(ctx.sample, basis, ctx.machine) };
+    const settings = { minSamples: p.minSamples, window: p.window, watchAlpha: p.watchAlpha, actAlpha: p.actAlpha };
+    const toReported = basisToReported(ctx.sample, basis, ctx.machine);
+    const band = computeBaselineBand(values, { ...settings, floorAt: rateFloor(basis, distances, per) });
+    const crew = band.status === 'building' ? buildCrewBand(ctx, code, basis, settings, toReported) : undefined;
+    bands[code] = crew ?? { ...band, basis, sampleIds: ids, toReported, source: 'own' };
   }
   return bands;
+}
+
+/** The lab scatters in ppm; on a rate basis its scatter scales by per / distance like the readings do. */
+function rateFloor(basis: JudgeBasis, distances: readonly number[], per: number): (level: number) => number {
+  const meanDistance = distances.reduce((a, b) => a + b, 0) / Math.max(1, distances.length);
+  return basis === 'ppm' || !(meanDistance > 0) ? labScatterAt : (level: number) => (labScatterAt((level * meanDistance) / per) * per) / meanDistance;
+}
+
+/**
+ * The crew reference band of one measurand: the same band rules over the in-control samples of the crew's other
+ * machines with this engine, drawn no later than this sample and at a similar oil age. Undefined without a crew
+ * reference, or when fewer than CREW_REFERENCE.params.minMachines machines give a value.
+ */
+function buildCrewBand(
+  ctx: Pick<RuleContext, 'machine' | 'sample'>,
+  code: MeasurandCode,
+  basis: JudgeBasis,
+  settings: { minSamples: number; window: number; watchAlpha: number; actAlpha: number },
+  toReported: number,
+): MeasurandBand | undefined {
+  const reference = ctx.machine.crewReference;
+  if (!reference || reference.samples.length === 0) return undefined;
+  const q = CREW_REFERENCE.params;
+  const drawn = Date.parse(ctx.sample.takenAt);
+  const age = ctx.sample.distanceOnOil;
+  const values: number[] = [];
+  const ids: string[] = [];
+  const distances: number[] = [];
+  const machines = new Set<string>();
+  for (let i = reference.samples.length - 1; i >= 0 && values.length < settings.window; i--) {
+    const s = reference.samples[i]!;
+    if (s.baselineExcluded || s.outOfBaseline?.has(code)) continue;
+    if (isAdditiveSensitive(code) && !isSameProduct(s, ctx.sample)) continue;
+    // Never a sample drawn after this one: a replay judges each sample as it was when its results arrived.
+    if (Number.isFinite(drawn) && !(Date.parse(s.takenAt) <= drawn)) continue;
+    if (Number.isFinite(age) && age > 0 && !(Math.abs(s.distanceOnOil - age) <= q.oilAgeFraction * age)) continue;
+    const v = readEarlierValue(s, code, basis, ctx.machine);
+    if (v === undefined || !Number.isFinite(v)) continue;
+    values.unshift(v);
+    ids.unshift(s.id);
+    distances.push(s.distanceOnOil);
+    machines.add(s.machineId);
+  }
+  if (machines.size < q.minMachines) return undefined;
+  const band = computeBaselineBand(values, { ...settings, floorAt: rateFloor(basis, distances, findRateBasis(ctx.machine.distanceUnit)) });
+  if (band.status !== 'ready') return undefined;
+  return { ...band, basis, sampleIds: ids, toReported, source: 'crew', crew: { label: reference.label, machines: machines.size } };
+}
+
+/** "this machine's baseline band", or the crew reference band with its label. */
+export function bandWords(band: Pick<MeasurandBand, 'source' | 'crew'>): string {
+  return band.source === 'crew' && band.crew ? `the crew reference band (${band.crew.label})` : "this machine's baseline band";
 }
 
 function basisWords(basis: JudgeBasis, machine: MachineProfile): string {
@@ -254,9 +302,10 @@ export function findBaselineJumps(ctx: RuleContext): Finding[] {
         actFrom: band.actFrom,
         n: band.n,
         perDistance: band.basis === 'rate' ? findRateBasis(ctx.machine.distanceUnit) : 0,
+        ...(band.source === 'crew' && band.crew ? { crewMachines: band.crew.machines } : {}),
       },
       sentence:
-        `${asRate}${level === 'act' ? 'well ' : ''}above this machine's baseline band ` +
+        `${asRate}${level === 'act' ? 'well ' : ''}above ${bandWords(band)} ` +
         `(usually ${formatFigure(band.mean)}, band up to ${formatFigure(band.watchAbove)}${unit}). ${pointsTo(code, ctx.machine)}`,
     });
   }

@@ -48,6 +48,25 @@ export interface MachineProfile {
   maxIntervalDays?: number | undefined;
   /** Engine, gearbox and wet clutch share one oil (most motorcycles); friction modifiers then matter. */
   sharedOil?: boolean | undefined;
+  /**
+   * The crew's other machines with the same engine (see crew-reference.ts), used only while this machine's own
+   * band is still building. Absent: no crew reference.
+   */
+  crewReference?: CrewReference | undefined;
+}
+
+/** A sample of another machine of the crew, already in this machine's distance unit. */
+export interface CrewReferenceSample extends SamplePoint {
+  machineId: string;
+  /** Measurands that were act on this sample when its own machine was judged: never part of a reference band. */
+  outOfBaseline?: ReadonlySet<MeasurandCode> | undefined;
+}
+
+export interface CrewReference {
+  /** "from the crew's other 450 cc liquid-cooled singles". */
+  label: string;
+  /** The crew's other machines of this engine, their samples oldest first (by takenAt). */
+  samples: readonly CrewReferenceSample[];
 }
 
 /** Fixed alarm limits a crew lead can change. Elements in ppm; the rest as named. */

@@ -561,6 +561,12 @@ export interface BaselineBandsTable {
   act_from: number;
   /** Multiply a band figure by this for ppm as reported at that sample (1 on a ppm basis). */
   to_reported: number;
+  /** 'crew': the crew's other machines of the same engine, while the machine's own baseline builds. */
+  source: ColumnType<'own' | 'crew', 'own' | 'crew' | undefined, 'own' | 'crew'>;
+  /** "from the crew's other 450 cc liquid-cooled singles" on a crew band; null on an own band. */
+  source_label: ColumnType<string | null, string | null | undefined, string | null>;
+  /** How many other machines a crew band pooled; null on an own band. */
+  source_machines: ColumnType<number | null, number | null | undefined, number | null>;
 }
 
 export interface Database {

@@ -292,10 +292,16 @@ export function findMachineOfSample(db: Db, sampleId: string) {
 export function findMachineProfile(db: Db, machineId: string) {
   return db
     .selectFrom('machines')
-    .select(['id', 'crew_id', 'cooling', 'meter', 'oil_capacity_l', 'max_interval_distance', 'max_interval_days', 'shared_oil', 'judged_by'])
+    .select(['id', 'crew_id', 'cooling', 'meter', 'oil_capacity_l', 'max_interval_distance', 'max_interval_days', 'shared_oil', 'judged_by', 'engine_layout', 'displacement_cc'])
     .where('id', '=', machineId)
     .executeTakeFirst();
 }
+
+/** What the engine needs of a stored sample (with a left join of its oil change). */
+const SAMPLE_POINT_COLUMNS = [
+  'samples.id', 'samples.drawn_on', 'samples.odometer', 'samples.distance_on_oil', 'samples.top_up_l', 'samples.sae_grade',
+  'samples.oil_product', 'samples.in_baseline', 'samples.baseline_note', 'samples.break_in', 'samples.created_at', 'oil_changes.volume_l',
+] as const;
 
 /** Every sample of a machine that has readings, oldest first, with its oil change's oil volume. */
 export function findSamplesWithReadings(db: Db, machineId: string) {
@@ -303,18 +309,7 @@ export function findSamplesWithReadings(db: Db, machineId: string) {
     .selectFrom('samples')
     .leftJoin('oil_changes', 'oil_changes.id', 'samples.oil_change_id')
     .select([
-      'samples.id',
-      'samples.drawn_on',
-      'samples.odometer',
-      'samples.distance_on_oil',
-      'samples.top_up_l',
-      'samples.sae_grade',
-      'samples.oil_product',
-      'samples.in_baseline',
-      'samples.baseline_note',
-      'samples.break_in',
-      'samples.created_at',
-      'oil_changes.volume_l',
+      ...SAMPLE_POINT_COLUMNS,
       // The day the results arrived: "next sample by" counts from it when the lab took a while.
       (eb) =>
         eb.selectFrom('readings')
@@ -329,6 +324,65 @@ export function findSamplesWithReadings(db: Db, machineId: string) {
     .orderBy('samples.odometer')
     .orderBy('samples.created_at')
     .execute();
+}
+
+/**
+ * The crew's other machines (not archived) with this layout, cooling and sump setting, with how many samples with
+ * readings each has; displacement and meter are compared by isSameEngine. Never another crew's machines.
+ */
+export function findEngineCandidates(db: Db, crewId: string, machineId: string, engine: { layout: string; cooling: string; sharedOil: boolean }) {
+  return db
+    .selectFrom('machines')
+    .select(['machines.id', 'machines.engine_layout', 'machines.displacement_cc', 'machines.cooling', 'machines.shared_oil', 'machines.meter'])
+    .select((eb) =>
+      eb.selectFrom('samples')
+        .select((e) => e.fn.countAll<string>().as('n'))
+        .whereRef('samples.machine_id', '=', 'machines.id')
+        .where((e) => e.exists(e.selectFrom('readings').select('readings.sample_id').whereRef('readings.sample_id', '=', 'samples.id')))
+        .as('samples_with_readings'),
+    )
+    .where('machines.crew_id', '=', crewId)
+    .where('machines.id', '!=', machineId)
+    .where('machines.archived_at', 'is', null)
+    .where('machines.engine_layout', '=', engine.layout as 'single')
+    .where('machines.cooling', '=', engine.cooling as 'air')
+    .where('machines.shared_oil', '=', engine.sharedOil)
+    .orderBy('machines.id')
+    .execute();
+}
+
+/** The most recent samples a crew reference may read (a bound on one query, far above what a band uses). */
+export const REFERENCE_SAMPLE_CAP = 2000;
+
+/**
+ * Samples with readings of these machines of the crew, oldest first, each with its readings and the measurands an
+ * act finding named (those stay out of any band): one query for all machines. Crew-scoped twice (the sample and
+ * its machine), so a machine id of another crew brings nothing.
+ */
+export async function findReferenceSamples(db: Db, crewId: string, machineIds: readonly string[]) {
+  if (machineIds.length === 0) return [];
+  const rows = await db
+    .selectFrom('samples')
+    .innerJoin('machines', 'machines.id', 'samples.machine_id')
+    .leftJoin('oil_changes', 'oil_changes.id', 'samples.oil_change_id')
+    .select([
+      ...SAMPLE_POINT_COLUMNS,
+      'samples.machine_id',
+      'machines.oil_capacity_l',
+      sql<Date | null>`null::timestamptz`.as('results_at'),
+      sql<[string, number, string | null][]>`(select coalesce(json_agg(json_build_array(r.measurand, r.value, r.qualifier)), '[]'::json) from readings r where r.sample_id = samples.id)`.as('readings'),
+      sql<string[]>`(select coalesce(array_agg(distinct f.measurand), '{}') from findings f where f.sample_id = samples.id and f.level = 'act' and f.measurand is not null)`.as('acted'),
+    ])
+    .where('samples.crew_id', '=', crewId)
+    .where('machines.crew_id', '=', crewId)
+    .where('samples.machine_id', '=', sql<string>`any(${sql.val(machineIds)}::uuid[])`)
+    .where((eb) => eb.exists(eb.selectFrom('readings').select('readings.sample_id').whereRef('readings.sample_id', '=', 'samples.id')))
+    .orderBy('samples.drawn_on', 'desc')
+    .orderBy('samples.odometer', 'desc')
+    .orderBy('samples.created_at', 'desc')
+    .limit(REFERENCE_SAMPLE_CAP)
+    .execute();
+  return rows.reverse();
 }
 
 /** The readings of a set of samples. */
@@ -404,6 +458,9 @@ export async function replaceEngineCalls(db: Db, sampleIds: readonly string[], r
 
 export interface BandInsert {
   sampleId: string;
+  source: 'own' | 'crew';
+  sourceLabel: string | null;
+  sourceMachines: number | null;
   measurand: string;
   basis: 'rate' | 'ppm';
   n: number;
@@ -423,10 +480,11 @@ export async function replaceBands(db: Db, sampleIds: readonly string[], rows: r
     const part = rows.slice(from, from + CHUNK);
     const col = <T,>(f: (b: BandInsert) => T) => sql.val(part.map(f));
     await sql`
-      insert into baseline_bands (sample_id, measurand, basis, n, mean, lower_edge, watch_above, act_from, to_reported)
+      insert into baseline_bands (sample_id, measurand, basis, n, mean, lower_edge, watch_above, act_from, to_reported, source, source_label, source_machines)
       select * from unnest(${col((b) => b.sampleId)}::uuid[], ${col((b) => b.measurand)}::text[], ${col((b) => b.basis)}::text[],
                            ${col((b) => b.n)}::int[], ${col((b) => b.mean)}::float8[], ${col((b) => b.lower)}::float8[],
-                           ${col((b) => b.watchAbove)}::float8[], ${col((b) => b.actFrom)}::float8[], ${col((b) => b.toReported)}::float8[])`.execute(db);
+                           ${col((b) => b.watchAbove)}::float8[], ${col((b) => b.actFrom)}::float8[], ${col((b) => b.toReported)}::float8[],
+                           ${col((b) => b.source)}::text[], ${col((b) => b.sourceLabel)}::text[], ${col((b) => b.sourceMachines)}::int[])`.execute(db);
   }
 }
 

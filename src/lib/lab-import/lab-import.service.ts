@@ -5,7 +5,10 @@
  */
 import { createHash } from 'node:crypto';
 import { sql, type Kysely, type Transaction } from 'kysely';
-import { ENGINE_VERSION, replayHistory, type FixedLimits, type MachineProfile, type SamplePoint } from '../analysis';
+import {
+  CREW_REFERENCE, ENGINE_VERSION, crewReferenceLabel, isSameEngine, replayHistory,
+  type CrewReference, type CrewReferenceSample, type FixedLimits, type MachineProfile, type SamplePoint,
+} from '../analysis';
 import { isMeasurandCode, type MeasurandCode } from '../analysis/measurands';
 import type { Database } from '../db/database';
 import { readLabFileBytes } from '../import/lab-xlsx';
@@ -429,6 +432,8 @@ export async function confirmLabImport(
       }
       let findingsWritten = 0;
       for (const [machineId, changed] of byMachine) findingsWritten += await recomputeMachineFindings(trx, machineId, changed, known);
+      // Their crew references changed with these samples: judge the young machines of the same engines again.
+      await rejudgeEnginePeers(trx, new Set(byMachine.keys()));
       // Issue 8: alert mails are queued in this transaction, so a rolled-back import sends nothing and a retry nothing twice.
       await queueImportAlerts(trx, imported.id);
 
@@ -474,7 +479,7 @@ type SampleWithReadings = Awaited<ReturnType<typeof repo.findSamplesWithReadings
  * A stored sample as the analysis engine sees it. The engine works in the machine's own meter unit (its
  * sentences and rounding steps say mi, km or h), so stored kilometres are converted here and back below.
  */
-function toSamplePoint(s: SampleWithReadings, readings: SamplePoint['readings'], oilCapacity: number | null, meter: MeterUnit): SamplePoint {
+function toSamplePoint(s: Omit<SampleWithReadings, 'created_at'>, readings: SamplePoint['readings'], oilCapacity: number | null, meter: MeterUnit): SamplePoint {
   return {
     id: s.id,
     takenAt: s.drawn_on,
@@ -493,6 +498,66 @@ function toSamplePoint(s: SampleWithReadings, readings: SamplePoint['readings'],
   };
 }
 
+type MachineProfileRow = NonNullable<Awaited<ReturnType<typeof repo.findMachineProfile>>>;
+
+/** The same-engine machines of the crew (crew-scoped, archived ones left out), as isSameEngine decides. */
+async function findSameEngineMachines(trx: Db, machine: MachineProfileRow) {
+  const engine = { layout: machine.engine_layout, displacementCc: machine.displacement_cc === null ? null : Number(machine.displacement_cc), cooling: machine.cooling, sharedOil: machine.shared_oil, distanceUnit: machine.meter };
+  if (engine.displacementCc === null) return { engine, peers: [] };
+  const candidates = await repo.findEngineCandidates(trx, machine.crew_id, machine.id, { layout: engine.layout, cooling: engine.cooling, sharedOil: engine.sharedOil });
+  const peers = candidates.filter((c) =>
+    isSameEngine(engine, { layout: c.engine_layout, displacementCc: c.displacement_cc === null ? null : Number(c.displacement_cc), cooling: c.cooling, sharedOil: c.shared_oil, distanceUnit: c.meter }),
+  );
+  return { engine, peers };
+}
+
+/**
+ * The crew reference of a machine: the in-control samples of the crew's other machines with the same engine, in
+ * this machine's distance unit, read in one query. Undefined with fewer than CREW_REFERENCE.params.minMachines such
+ * machines (the engine also counts the machines that really give a value to each band).
+ */
+async function loadCrewReference(trx: Db, machine: MachineProfileRow): Promise<CrewReference | undefined> {
+  const { engine, peers } = await findSameEngineMachines(trx, machine);
+  const withSamples = peers.filter((p) => Number(p.samples_with_readings ?? 0) > 0);
+  if (withSamples.length < CREW_REFERENCE.params.minMachines) return undefined;
+  const rows = await repo.findReferenceSamples(trx, machine.crew_id, withSamples.map((p) => p.id));
+  const samples: CrewReferenceSample[] = [];
+  for (const row of rows) {
+    const readings: SamplePoint['readings'] = {};
+    for (const [measurand, value, qualifier] of row.readings) {
+      if (!isMeasurandCode(measurand)) continue;
+      readings[measurand] = qualifier === '<' || qualifier === '>' ? { value: Number(value), qualifier } : { value: Number(value) };
+    }
+    const acted = new Set(row.acted.filter(isMeasurandCode));
+    samples.push({ ...toSamplePoint(row, readings, row.oil_capacity_l, machine.meter), machineId: row.machine_id, outOfBaseline: acted });
+  }
+  return { label: crewReferenceLabel(engine), samples };
+}
+
+/**
+ * A machine's samples change its same-engine peers' crew references. The peers still young enough to lean on one
+ * (at most CREW_REFERENCE.params.rejudgeUpToSamples samples with readings) are judged again whole, in the caller's
+ * transaction; older peers keep the judgements they got when their results arrived. Not recursive: a peer judged
+ * again does not set off its own peers. Returns how many machines were judged again.
+ */
+export async function rejudgeEnginePeers(trx: Db, machineIds: ReadonlySet<string>): Promise<number> {
+  const done = new Set(machineIds);
+  let count = 0;
+  for (const machineId of machineIds) {
+    const machine = await repo.findMachineProfile(trx, machineId);
+    if (!machine) continue;
+    const { peers } = await findSameEngineMachines(trx, machine);
+    for (const peer of peers) {
+      const n = Number(peer.samples_with_readings ?? 0);
+      if (done.has(peer.id) || n === 0 || n > CREW_REFERENCE.params.rejudgeUpToSamples) continue;
+      done.add(peer.id);
+      await recomputeMachineFindings(trx, peer.id, null);
+      count++;
+    }
+  }
+  return count;
+}
+
 const LIMIT_KEYS: Partial<Record<string, keyof FixedLimits>> = {
   Fe: 'Fe', Cr: 'Cr', Cu: 'Cu', Sn: 'Sn', Al: 'Al', Pb: 'Pb', B: 'B', Si: 'Si', FUEL: 'fuelPercent', WATER: 'waterPercent', KV100: 'kv100ChangePercent',
 };
@@ -500,13 +565,14 @@ const LIMIT_KEYS: Partial<Record<string, keyof FixedLimits>> = {
 /**
  * Judge a machine's samples again with replayHistory (the same replay judgeHistory runs) and store the findings,
  * the engine's interval calls and the bands the rules used for `changed` samples and every later one (their
- * history includes the changed ones). A machine last judged by another engine version is judged whole.
+ * history includes the changed ones); `changed` null judges every sample. A machine last judged by another engine
+ * version is judged whole. While its own baseline builds, bands come from the crew reference (loadCrewReference).
  * `known` holds readings already in memory by sample id. Returns the number of findings stored.
  */
 export async function recomputeMachineFindings(
   trx: Db,
   machineId: string,
-  changed: ReadonlySet<string>,
+  changed: ReadonlySet<string> | null,
   known: ReadonlyMap<string, SamplePoint['readings']> = new Map(),
 ): Promise<number> {
   const machineRow = await repo.findMachineProfile(trx, machineId);
@@ -536,12 +602,13 @@ export async function recomputeMachineFindings(
   };
 
   const stale = machineRow.judged_by !== ENGINE_VERSION;
-  const firstChanged = stale ? 0 : samples.findIndex((s) => changed.has(s.id));
+  const firstChanged = stale || changed === null ? 0 : samples.findIndex((s) => changed.has(s.id));
   if (firstChanged === -1 || samples.length === 0) {
     if (stale) await repo.markMachineJudged(trx, machineId, ENGINE_VERSION);
     return 0;
   }
   const points = samples.map((s) => attachNewOil(toSamplePoint(s, readingsBySample.get(s.id) ?? {}, machineRow.oil_capacity_l, meter), newOil));
+  machine.crewReference = await loadCrewReference(trx, machineRow);
   const replayed = replayHistory({ machine, samples: points, limits });
   const findings: repo.FindingInsert[] = [];
   const calls: repo.IntervalCallInsert[] = [];
@@ -555,7 +622,7 @@ export async function recomputeMachineFindings(
     for (const [measurand, band] of Object.entries(analysis.bands)) {
       if (!band || band.status !== 'ready') continue;
       bands.push({
-        sampleId, measurand, basis: band.basis, n: band.n, mean: band.mean, lower: band.lower,
+        sampleId, measurand, basis: band.basis, source: band.source, sourceLabel: band.crew?.label ?? null, sourceMachines: band.crew?.machines ?? null, n: band.n, mean: band.mean, lower: band.lower,
         watchAbove: band.watchAbove, actFrom: band.actFrom, toReported: band.toReported,
       });
     }
@@ -605,5 +672,7 @@ export async function recomputeStaleMachines(db: Kysely<Database>, log?: (line: 
 export async function recomputeFindings(trx: Db, sampleId: string): Promise<number> {
   const machine = await repo.findMachineOfSample(trx, sampleId);
   if (!machine) return 0;
-  return recomputeMachineFindings(trx, machine.id, new Set([sampleId]));
+  const written = await recomputeMachineFindings(trx, machine.id, new Set([sampleId]));
+  await rejudgeEnginePeers(trx, new Set([machine.id]));
+  return written;
 }

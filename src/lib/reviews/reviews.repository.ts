@@ -126,7 +126,7 @@ export async function listSampleBands(db: Db, sampleId: string) {
   if (!isUuid(sampleId)) return [];
   return db
     .selectFrom('baseline_bands')
-    .select(['measurand', 'basis', 'n', 'mean', 'lower_edge', 'watch_above', 'act_from', 'to_reported'])
+    .select(['measurand', 'basis', 'n', 'mean', 'lower_edge', 'watch_above', 'act_from', 'to_reported', 'source', 'source_label', 'source_machines'])
     .where('sample_id', '=', sampleId)
     .execute();
 }

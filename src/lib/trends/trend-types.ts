@@ -38,6 +38,9 @@ export interface StoredBand {
   watchAbove: number;
   actFrom: number;
   toReported: number;
+  /** 'crew' while the machine's own baseline builds: the crew's other machines of the same engine, with its label. */
+  source: 'own' | 'crew';
+  sourceLabel: string | null;
 }
 
 export interface TrendOilChangeRow {
@@ -61,7 +64,7 @@ export interface TrendPoint {
   qualifier: '<' | '>' | null;
   level: Level;
   /** The band the rules used for this sample (from the previous in-control samples), or null while it is building. */
-  band: { lower: number; mean: number; upper: number; actFrom: number; n: number } | null;
+  band: { lower: number; mean: number; upper: number; actFrom: number; n: number; source: 'own' | 'crew'; sourceLabel: string | null } | null;
   /** value − band mean, and that as a share of the band's upper half-width (1 = at the watch edge), when a band exists. */
   fromBaseline: { delta: number; spreads: number } | null;
   /** False when the sample is kept out of the baseline; `baselineNote` says why. */

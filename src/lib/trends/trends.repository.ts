@@ -96,7 +96,7 @@ export async function listTrendSamples(
     if (!row || !isMeasurandCode(b.measurand)) continue;
     row.bands[b.measurand] = {
       basis: b.basis, n: b.n, mean: Number(b.mean), lower: Number(b.lower_edge), watchAbove: Number(b.watch_above),
-      actFrom: Number(b.act_from), toReported: Number(b.to_reported),
+      actFrom: Number(b.act_from), toReported: Number(b.to_reported), source: b.source, sourceLabel: b.source_label,
     };
   }
   for (const f of findings) {

@@ -96,7 +96,7 @@ export function shapeTrendSeries(input: {
         reported: r.value,
         qualifier: r.qualifier,
         level: s.levels[code] ?? 'steady',
-        band: band && stored ? { ...band, n: stored.n } : null,
+        band: band && stored ? { ...band, n: stored.n, source: stored.source, sourceLabel: stored.sourceLabel } : null,
         fromBaseline: band ? { delta: value - band.mean, spreads: halfWidth > 0 ? (value - band.mean) / halfWidth : 0 } : null,
         inBaseline: s.inBaseline,
         baselineNote: s.inBaseline ? null : s.baselineNote,

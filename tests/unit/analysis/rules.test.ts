@@ -25,7 +25,7 @@ describe('RULE_DEFINITIONS', () => {
     expect(new Set(ids).size).toBe(ids.length);
     expect(ids).toEqual([
       'baseline-jump', 'climbing-trend', 'fixed-limit', 'viscosity-grade', 'viscosity-change', 'fuel-dilution', 'flash-point',
-      'condition-trend', 'coolant-markers', 'dirt', 'additive-mismatch', 'clutch-friction', 'copper-leaching', 'interval-call',
+      'condition-trend', 'coolant-markers', 'dirt', 'additive-mismatch', 'clutch-friction', 'copper-leaching', 'crew-reference', 'interval-call',
     ]);
     // Prediction limits designed for 1 % (watch) and 0.05 % (act) false alarms per in-control reading.
     expect(BASELINE_JUMP.params).toMatchObject({ watchAlpha: 0.01, actAlpha: 0.0005, minSamples: 4 });

@@ -21,7 +21,7 @@
  *   water "<0.05" %, flash point 215 ± 5 °C, TBN 6–8 and TAN 1.5–2.5 mg KOH/g, each with its own scatter.
  * - Wearing machines: from sample 8 (1-based) on, the iron rate doubles, or the aluminium rate triples.
  */
-import type { MachineProfile, SamplePoint } from '~/lib/analysis/types';
+import type { CrewReferenceSample, MachineProfile, SamplePoint } from '~/lib/analysis/types';
 import type { MeasurandCode } from '~/lib/analysis/measurands';
 
 export type Scenario = 'stable' | 'iron-x2' | 'aluminium-x3';
@@ -58,11 +58,13 @@ function makeNormal(random: () => number): () => number {
 
 const DAY_MS = 86_400_000;
 export const SAMPLES_PER_MACHINE = 12;
+/** How far one machine's wear rates sit from its engine's, either way, in the crew simulation. */
+export const ENGINE_SPREAD = 0.25;
 /** The 1-based sample from which a wearing machine wears faster. */
 export const CHANGE_FROM_SAMPLE = 8;
 
 /** One simulated machine of a scenario, from its own seed. */
-export function simulateMachine(seed: number, scenario: Scenario): SimulatedMachine {
+export function simulateMachine(seed: number, scenario: Scenario, options: { oilSeed?: number; engineSeed?: number } = {}): SimulatedMachine {
   const random = makeRandom(seed);
   const normal = makeNormal(random);
   const between = (a: number, b: number) => a + (b - a) * random();
@@ -78,6 +80,23 @@ export function simulateMachine(seed: number, scenario: Scenario): SimulatedMach
     Si: 3, Na: between(2, 6), K: 0, B: between(2, 60), Mo: between(0, 80), Zn: between(900, 1200), P: between(800, 1000),
     Ca: between(1800, 2600), Mg: between(10, 30),
   };
+  // Machines of one crew pouring one product share its additive pack: drawn from the oil's own seed, after the
+  // machine's own draws so a machine without it is the same machine as before.
+  if (options.oilSeed !== undefined) {
+    const oilRandom = makeRandom(options.oilSeed);
+    const pick = (a: number, b: number) => a + (b - a) * oilRandom();
+    Object.assign(own, { Na: pick(2, 6), B: pick(2, 60), Mo: pick(0, 80), Zn: pick(900, 1200), P: pick(800, 1000), Ca: pick(1800, 2600), Mg: pick(10, 30) });
+  }
+  // Machines of one engine wear alike: the engine's rates are drawn once from its seed over the same ranges, and
+  // each machine sits within ±ENGINE_SPREAD of them (riding and care; the size is from memory, no published source).
+  if (options.engineSeed !== undefined) {
+    const engineRandom = makeRandom(options.engineSeed);
+    const pick = (a: number, b: number) => a + (b - a) * engineRandom();
+    const engine: Partial<Record<MeasurandCode, number>> = {
+      Fe: pick(3, 8), Al: pick(0.5, 1.5), Cr: pick(0.1, 0.4), Cu: pick(0.5, 2), Pb: pick(0.2, 0.8), Sn: pick(0, 0.2), Ni: pick(0, 0.2), Si: pick(0.5, 1.5),
+    };
+    for (const code of Object.keys(engine) as MeasurandCode[]) rates[code] = engine[code]! * (1 + ENGINE_SPREAD * (2 * random() - 1));
+  }
   const shear = between(0.03, 0.06);
   const fuel = between(0.3, 0.9);
   const tbn = between(6, 8);
@@ -166,4 +185,64 @@ export function runSimulation(
     ironDetectedPercent: pct(iron),
     aluminiumDetectedPercent: pct(aluminium),
   };
+}
+
+export interface CrewSimulationFigures {
+  crews: number;
+  /** Other machines of the same engine in each crew. */
+  peers: number;
+  /** New stable machines judged on a crew reference of stable peers: with any shorten, with any act, in %. */
+  newAnyShortenPercent: number;
+  newAnyActPercent: number;
+  /** Samples of the new machines judged with at least one crew reference band, in % (shows the reference was used). */
+  crewJudgedSamplesPercent: number;
+}
+
+const SHIFT_DAYS = 1000;
+
+/**
+ * A crew of `peers` stable machines of one engine (cooling set alike, one oil product with one additive pack) and
+ * one new stable machine that joins after
+ * them: its samples start SHIFT_DAYS later, so the peers' histories (about 2.4 years at the simulated pace) are
+ * there to build a reference. Peers are judged on their own first; their act readings stay out of the reference,
+ * as production keeps them out.
+ */
+export function simulateCrew(seed: number, peers: number, replay: typeof import('~/lib/analysis/interval-call').replayHistory) {
+  const cooling = makeRandom(seed)() < 0.5 ? ('air' as const) : ('liquid' as const);
+  const reference: CrewReferenceSample[] = [];
+  for (let p = 0; p < peers; p++) {
+    const peer = simulateMachine(seed * 16 + p, 'stable', { oilSeed: seed, engineSeed: seed + 1 });
+    const machine = { ...peer.machine, cooling };
+    const judged = replay({ machine, samples: peer.samples });
+    peer.samples.forEach((s, i) => {
+      const acted = Object.entries(judged[i]!.analysis.readingLevels).filter(([, l]) => l === 'act').map(([c]) => c as MeasurandCode);
+      reference.push({ ...s, id: `${s.id}-peer${p}`, machineId: `peer${p}`, outOfBaseline: new Set(acted) });
+    });
+  }
+  reference.sort((a, b) => a.takenAt.localeCompare(b.takenAt));
+  const fresh = simulateMachine(seed * 16 + 15, 'stable', { oilSeed: seed, engineSeed: seed + 1 });
+  const later = (iso: string) => new Date(Date.parse(iso) + SHIFT_DAYS * DAY_MS).toISOString().slice(0, 10);
+  const samples = fresh.samples.map((s) => ({ ...s, takenAt: later(s.takenAt), resultsOn: s.resultsOn ? later(s.resultsOn) : undefined }));
+  const machine: MachineProfile = { ...fresh.machine, cooling, crewReference: { label: "from the crew's other simulated engines", samples: reference } };
+  return { machine, samples };
+}
+
+/** Runs `crews` simulated crews and counts the new machine's false alarms on a crew reference. */
+export function runCrewSimulation(replay: typeof import('~/lib/analysis/interval-call').replayHistory, crews = 300, peers = 4, seed = 20261203): CrewSimulationFigures {
+  let shorten = 0;
+  let act = 0;
+  let crewJudged = 0;
+  let judged = 0;
+  for (let k = 0; k < crews; k++) {
+    const crew = simulateCrew(seed + k, peers, replay);
+    const replayed = replay(crew);
+    if (replayed.some((r) => r.call.call === 'shorten')) shorten++;
+    if (replayed.some((r) => r.analysis.findings.some((f) => f.level === 'act'))) act++;
+    for (const r of replayed) {
+      judged++;
+      if (r.analysis.crewReference) crewJudged++;
+    }
+  }
+  const pct = (n: number, of: number) => Math.round((1000 * n) / of) / 10;
+  return { crews, peers, newAnyShortenPercent: pct(shorten, crews), newAnyActPercent: pct(act, crews), crewJudgedSamplesPercent: pct(crewJudged, judged) };
 }

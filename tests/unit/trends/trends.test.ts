@@ -37,7 +37,7 @@ describe('trendQuerySchema', () => {
 describe('shapeTrendSeries', () => {
   // The engine's stored Fe band at sample 4: mean 10 per 1,000 km, watch above 14, act from 20, on a rate basis;
   // 1,000 km on the oil and no top-up, so one rate unit is one ppm at that sample (toReported 1).
-  const stored = { basis: 'rate' as const, n: 3, mean: 10, lower: 6, watchAbove: 14, actFrom: 20, toReported: 1 };
+  const stored = { basis: 'rate' as const, n: 3, mean: 10, lower: 6, watchAbove: 14, actFrom: 20, toReported: 1, source: 'own' as const, sourceLabel: null };
   const flat = [10, 10, 10, 16].map((v, i) =>
     sample(i + 1, { readings: { Fe: { value: v, qualifier: null } }, bands: i === 3 ? { Fe: stored } : {} }));
 
@@ -46,7 +46,7 @@ describe('shapeTrendSeries', () => {
     [0, null, null],
     [2, null, null],
     // 16 − 10 = +6, one and a half times the band's upper half-width (4).
-    [3, { lower: 6, mean: 10, upper: 14, actFrom: 20, n: 3 }, { delta: 6, spreads: 1.5 }],
+    [3, { lower: 6, mean: 10, upper: 14, actFrom: 20, n: 3, source: 'own', sourceLabel: null }, { delta: 6, spreads: 1.5 }],
   ])('point %i of a flat history carries band %j', (i, band, from) => {
     const [series] = shapeTrendSeries({ meter: 'km', samples: flat, measurands: ['Fe'], basis: 'ppm' });
     expect(series!.points[i]!.band).toEqual(band);
@@ -55,14 +55,15 @@ describe('shapeTrendSeries', () => {
 
   test('a rate band is drawn in ppm with the factor the engine used, and a ppm band as a rate', () => {
     const rows = [sample(1, { distanceOnOilStored: 2000, readings: { Fe: { value: 30, qualifier: null }, Na: { value: 8, qualifier: null } },
-      bands: { Fe: { ...stored, toReported: 2 }, Na: { basis: 'ppm', n: 4, mean: 5, lower: 2, watchAbove: 9, actFrom: 12, toReported: 1 } } })];
+      bands: { Fe: { ...stored, toReported: 2 }, Na: { basis: 'ppm', n: 4, mean: 5, lower: 2, watchAbove: 9, actFrom: 12, toReported: 1, source: 'crew', sourceLabel: "from the crew's other 450 cc liquid-cooled singles" } } })];
     const [fePpm, naRate] = [
       shapeTrendSeries({ meter: 'km', samples: rows, measurands: ['Fe'], basis: 'ppm' })[0]!,
       shapeTrendSeries({ meter: 'km', samples: rows, measurands: ['Na'], basis: 'rate' })[0]!,
     ];
-    expect(fePpm.points[0]!.band).toEqual({ lower: 12, mean: 20, upper: 28, actFrom: 40, n: 3 });
+    expect(fePpm.points[0]!.band).toEqual({ lower: 12, mean: 20, upper: 28, actFrom: 40, n: 3, source: 'own', sourceLabel: null });
     // 2,000 km on the oil: 1 ppm is 0.5 ppm per 1,000 km.
-    expect(naRate.points[0]!.band).toEqual({ lower: 1, mean: 2.5, upper: 4.5, actFrom: 6, n: 4 });
+    // A crew reference band keeps its source and label for the chart's key.
+    expect(naRate.points[0]!.band).toEqual({ lower: 1, mean: 2.5, upper: 4.5, actFrom: 6, n: 4, source: 'crew', sourceLabel: "from the crew's other 450 cc liquid-cooled singles" });
   });
 
   test('samples outside the baseline are marked, with the reason', () => {
@@ -116,7 +117,7 @@ describe('findGradeChanges', () => {
 });
 
 describe('buildChartDatasets', () => {
-  const band = { basis: 'rate' as const, n: 3, mean: 10, lower: 6, watchAbove: 14, actFrom: 20, toReported: 1 };
+  const band = { basis: 'rate' as const, n: 3, mean: 10, lower: 6, watchAbove: 14, actFrom: 20, toReported: 1, source: 'own' as const, sourceLabel: null };
   const rows = [10, 10, 10, 16].map((v, i) => sample(i + 1, { readings: { Fe: { value: v, qualifier: null }, Al: { value: 2, qualifier: null } }, levels: i === 3 ? { Fe: 'act' } : {}, bands: i === 3 ? { Fe: band } : {} }));
   const series = shapeTrendSeries({ meter: 'km', samples: rows, measurands: ['Fe', 'Al'], basis: 'ppm' });
   const response = { machine: { id: 'm', name: 'M', meter: 'km' as const }, basis: 'ppm' as const, x: 'odometer' as const, series, notes: [],
