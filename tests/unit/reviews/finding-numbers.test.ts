@@ -8,6 +8,7 @@ import {
   roundFigure,
   type FindingNumbersInput,
 } from '~/lib/reviews/finding-numbers';
+import { glossaryFor } from '~/lib/reviews/glossary';
 
 // Invented demo figures throughout, with the parameter names each rule in src/lib/analysis/rules.ts stores.
 const KM = { distanceUnit: 'km', distanceOnOil: 3000 } as const;
@@ -102,5 +103,17 @@ describe('figures', () => {
     expect(listFindingMeasurands(FIXTURES.dirt)).toEqual(['Si', 'Al']);
     expect(listFindingMeasurands({ ruleId: 'coolant-markers', measurand: 'GLYCOL', numbers: { glycol: 1 } })).toEqual(['GLYCOL']);
     expect(listFindingMeasurands({ ruleId: 'x', measurand: null, numbers: {} })).toEqual([]);
+  });
+});
+
+describe('glossaryFor', () => {
+  test.each([
+    [['Fe', 'Al'], false, []],
+    [['Fe', 'KV100'], false, ['KV40 / KV100']],
+    [['VI', 'TAN', 'KV40', 'OXI'], true, ['KV40 / KV100', 'VI', 'TBN / TAN', 'abs/cm', '<']],
+  ] as const)('%j (below detection: %s) explains %j', (codes, below, terms) => {
+    const entries = glossaryFor(codes, below);
+    expect(entries.map((e) => e.term)).toEqual(terms);
+    for (const e of entries) expect(`${e.long} ${e.plain}`).not.toMatch(/[a-z][A-Z]/);
   });
 });
