@@ -109,7 +109,8 @@ const DESCRIBE: Record<RuleId, Describe> = {
     const per = findRateBasis(ctx.distanceUnit);
     const lines: string[] = [];
     if (start !== undefined && value !== undefined) {
-      lines.push(`The line through the last ${points !== undefined ? roundFigure(points) : 'few'} samples starts at ${inBasis(code, start, rate, ctx)}; this one ${roundFigure(value)}.`);
+      // A steep line fitted through low early readings can start below zero; no reading can.
+      lines.push(`The line through the last ${points !== undefined ? roundFigure(points) : 'few'} samples starts at ${start < 0 ? 'about ' : ''}${inBasis(code, Math.max(0, start), rate, ctx)}; this one ${roundFigure(value)}.`);
     }
     if (rise !== undefined) {
       lines.push(
@@ -172,7 +173,7 @@ const DESCRIBE: Record<RuleId, Describe> = {
     const points = num(n, 'points');
     if (value === undefined || start === undefined) return [];
     return [
-      `The line through the last ${points !== undefined ? roundFigure(points) : 'few'} samples starts at ${formatMeasurandFigure(code, start)}; this one ${formatMeasurandFigure(code, value)}` +
+      `The line through the last ${points !== undefined ? roundFigure(points) : 'few'} samples starts at ${start < 0 ? 'about ' : ''}${formatMeasurandFigure(code, Math.max(0, start))}; this one ${formatMeasurandFigure(code, value)}` +
         (change !== undefined ? `, a change of about ${formatMeasurandFigure(code, change)}.` : '.'),
     ];
   },

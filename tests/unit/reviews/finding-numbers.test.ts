@@ -75,6 +75,9 @@ describe('describeFindingNumbers', () => {
     expect(describeFindingNumbers(FIXTURES['climbing-trend'], { distanceUnit: 'h', distanceOnOil: 40 })[0]).toContain('ppm per 100 h');
     expect(describeFindingNumbers({ ...FIXTURES['climbing-trend'], measurand: 'K' }, KM)[0]).toContain('starts at 4.1 ppm;');
     expect(describeFindingNumbers(FIXTURES['climbing-trend'], { distanceUnit: 'km', distanceOnOil: null })[0]).toContain('starts at 4.1 ppm;');
+    // A line fitted through low early readings may start below zero: no reading can.
+    const steep = { ...FIXTURES['climbing-trend'], measurand: 'Na', numbers: { ...FIXTURES['climbing-trend'].numbers, fittedStart: -12.3 } };
+    expect(describeFindingNumbers(steep, KM)[0]).toBe('The line through the last 5 samples starts at about 0 ppm; this one 9.6.');
   });
 
   test('glycol speaks alone; an unknown rule falls back to measurand names only', () => {
