@@ -37,15 +37,13 @@ type State = { status: 'loading' } | { status: 'error'; message: string } | { st
 
 const DEFAULT_CODES = ['Fe', 'Al', 'Si'];
 
-function readInitial(initial: string[] | undefined): string[] {
-  if (typeof window !== 'undefined') {
-    const fromUrl = new URLSearchParams(window.location.search).get('chart');
-    if (fromUrl) {
-      const codes = fromUrl.split(',').filter((c) => MEASURANDS.some((m) => m.code === c));
-      if (codes.length > 0) return codes.slice(0, 8);
-    }
-  }
-  return initial && initial.length > 0 ? initial : DEFAULT_CODES;
+/** Elements named by ?chart=Al,Si in the page address, if any (read after hydration, never on the server). */
+function readUrlCodes(): string[] | null {
+  if (typeof window === 'undefined') return null;
+  const fromUrl = new URLSearchParams(window.location.search).get('chart');
+  if (!fromUrl) return null;
+  const codes = fromUrl.split(',').filter((c) => MEASURANDS.some((m) => m.code === c));
+  return codes.length > 0 ? codes.slice(0, 8) : null;
 }
 
 /** Dashed vertical lines where an oil change poured a different grade. */
@@ -77,7 +75,12 @@ function gradeMarksPlugin(marks: { x: number; label: string }[]): Plugin<'line'>
 
 /** The wear chart of one machine. */
 export default function WearChart({ machineId, initial }: Props) {
-  const [codes, setCodes] = useState<string[]>(() => readInitial(initial));
+  // The server and the first client render agree on the page's own start; the address wins right after.
+  const [codes, setCodes] = useState<string[]>(() => (initial && initial.length > 0 ? initial : DEFAULT_CODES));
+  useEffect(() => {
+    const fromUrl = readUrlCodes();
+    if (fromUrl) setCodes(fromUrl);
+  }, []);
   const [basis, setBasis] = useState<TrendBasis>('ppm');
   const [axis, setAxis] = useState<TrendAxis>('odometer');
   const [state, setState] = useState<State>({ status: 'loading' });
@@ -130,7 +133,7 @@ export default function WearChart({ machineId, initial }: Props) {
         ))}
       </div>
       <details className="rounded-card border border-line" data-testid="element-picker">
-        <summary className="flex min-h-tap cursor-pointer items-center px-3 font-semibold">
+        <summary className="min-h-tap cursor-pointer px-3 py-3 font-semibold">
           Pick elements ({codes.length} of at most 8)
         </summary>
         <div className="grid gap-2 p-2 sm:grid-cols-2 lg:grid-cols-4">
