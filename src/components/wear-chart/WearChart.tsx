@@ -193,7 +193,12 @@ export default function WearChart({ machineId, initial }: Props) {
       {ready && chart && !empty && (
         <>
           <figure className="relative h-72 w-full md:h-96" aria-label="Wear chart; the same data is in the table below">
-            <Line data={chart.data} options={chart.options} plugins={[gradeMarksPlugin(buildGradeMarks(ready))]} />
+            <Line
+              data={chart.data}
+              options={chart.options}
+              plugins={[gradeMarksPlugin(buildGradeMarks(ready))]}
+              aria-label={`Wear chart of ${ready.series.map((x) => x.name).join(', ')}; the same readings are in the tables below`}
+            />
           </figure>
           <Legend data={ready} />
           {ready.notes.map((n) => (
