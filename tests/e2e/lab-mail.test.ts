@@ -73,6 +73,8 @@ describe('a lab report by mail', () => {
     await page.goto(`/samples/${sample.id}`);
     const table = page.getByTestId('readings-table');
     await expect(table.isVisible()).resolves.toBe(true);
+    // Readings sit in groups; those without a flagged reading are folded: open them all to read every row.
+    await table.locator('details').evaluateAll((ds) => ds.forEach((d) => { (d as HTMLDetailsElement).open = true; }));
     const text = await table.innerText();
     // Figures from the invented lab's workbook: fuel 7.1 %, iron 22 ppm.
     expect(text).toMatch(/Fuel[^\n]*7\.1/i);
