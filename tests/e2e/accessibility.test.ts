@@ -3,7 +3,7 @@
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { DEMO_ACCOUNTS } from '../../sample-data/seed-accounts';
-import { PHONE, baseUrl, launchBrowser, newContext } from './helpers/browser';
+import { PHONE, baseUrl, launchBrowser } from './helpers/browser';
 import { seriousViolations, type AxeViolation } from './helpers/axe';
 import { signInAs } from './helpers/sign-in';
 
@@ -51,6 +51,11 @@ async function crawl(page: Page, start: string): Promise<{ pages: string[]; prob
   return { pages, problems };
 }
 
+/** A phone context that lets axe-core's injected script run: the app's CSP rightly refuses inline scripts. */
+function axeContext(browser: Browser): Promise<BrowserContext> {
+  return browser.newContext({ viewport: PHONE, baseURL: baseUrl(), deviceScaleFactor: 1, bypassCSP: true });
+}
+
 describe('accessibility (axe-core, WCAG 2.1 A/AA, serious and critical)', () => {
   let browser: Browser;
   let context: BrowserContext;
@@ -58,7 +63,7 @@ describe('accessibility (axe-core, WCAG 2.1 A/AA, serious and critical)', () => 
   afterAll(async () => { await browser?.close(); });
 
   test('every page a signed-out visitor can reach', async () => {
-    context = await newContext(browser, PHONE);
+    context = await axeContext(browser);
     const page = await context.newPage();
     const { pages, problems } = await crawl(page, '/');
     for (const p of ['/sign-in', '/sign-up']) expect(pages).toContain(p);
@@ -68,7 +73,7 @@ describe('accessibility (axe-core, WCAG 2.1 A/AA, serious and critical)', () => 
 
   test.each(['lead', 'mechanic', 'riderA'] as const)('every page the demo %s can reach', async (key) => {
     const account = DEMO_ACCOUNTS.find((a) => a.key === key)!;
-    context = await newContext(browser, PHONE);
+    context = await axeContext(browser);
     const page = await context.newPage();
     await signInAs(page, account.email, account.password);
     const { pages, problems } = await crawl(page, '/');

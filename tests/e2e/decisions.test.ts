@@ -86,6 +86,8 @@ describe('decisions: a mechanic overrides a call and a rider sees it', () => {
 
     // 4. Back on the sample: override the call with a note (a note is required).
     await page.goto(sampleUrl);
+    // The override form is folded under its heading until asked for.
+    await page.locator('[data-testid="override-details"] summary').click();
     const form = page.getByTestId('override-form');
     await form.locator(`input[name="call"][value="${newCall}"]`).check();
     const note = `Checked the air filter on ${machineName} (${name}); resample in 500 km.`;

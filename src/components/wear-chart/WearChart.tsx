@@ -37,15 +37,13 @@ type State = { status: 'loading' } | { status: 'error'; message: string } | { st
 
 const DEFAULT_CODES = ['Fe', 'Al', 'Si'];
 
-function readInitial(initial: string[] | undefined): string[] {
-  if (typeof window !== 'undefined') {
-    const fromUrl = new URLSearchParams(window.location.search).get('chart');
-    if (fromUrl) {
-      const codes = fromUrl.split(',').filter((c) => MEASURANDS.some((m) => m.code === c));
-      if (codes.length > 0) return codes.slice(0, 8);
-    }
-  }
-  return initial && initial.length > 0 ? initial : DEFAULT_CODES;
+/** Elements named by ?chart=Al,Si in the page address, if any (read after hydration, never on the server). */
+function readUrlCodes(): string[] | null {
+  if (typeof window === 'undefined') return null;
+  const fromUrl = new URLSearchParams(window.location.search).get('chart');
+  if (!fromUrl) return null;
+  const codes = fromUrl.split(',').filter((c) => MEASURANDS.some((m) => m.code === c));
+  return codes.length > 0 ? codes.slice(0, 8) : null;
 }
 
 /** Dashed vertical lines where an oil change poured a different grade. */
@@ -77,7 +75,12 @@ function gradeMarksPlugin(marks: { x: number; label: string }[]): Plugin<'line'>
 
 /** The wear chart of one machine. */
 export default function WearChart({ machineId, initial }: Props) {
-  const [codes, setCodes] = useState<string[]>(() => readInitial(initial));
+  // The server and the first client render agree on the page's own start; the address wins right after.
+  const [codes, setCodes] = useState<string[]>(() => (initial && initial.length > 0 ? initial : DEFAULT_CODES));
+  useEffect(() => {
+    const fromUrl = readUrlCodes();
+    if (fromUrl) setCodes(fromUrl);
+  }, []);
   const [basis, setBasis] = useState<TrendBasis>('ppm');
   const [axis, setAxis] = useState<TrendAxis>('odometer');
   const [state, setState] = useState<State>({ status: 'loading' });
@@ -110,10 +113,30 @@ export default function WearChart({ machineId, initial }: Props) {
   const chart = useMemo(() => (ready ? buildChart(ready) : null), [ready]);
   const empty = ready !== null && ready.series.every((s) => s.points.length === 0);
 
-  return (
-    <div className="space-y-4" data-testid="wear-chart">
-      <form className="grid gap-3 md:grid-cols-[1fr_auto]" onSubmit={(e) => e.preventDefault()} aria-label="Wear chart settings">
-        <div className="grid gap-2 sm:grid-cols-2 lg:grid-cols-4">
+  const named = (code: string) => MEASURANDS.find((m) => m.code === code)?.name ?? code;
+
+  const settings = (
+    <form className="space-y-3" onSubmit={(e) => e.preventDefault()} aria-label="Wear chart settings" data-testid="wear-chart-settings">
+      <div className="flex flex-wrap items-center gap-2" aria-label="Elements drawn" role="group">
+        <span className="text-sm font-semibold">Drawn:</span>
+        {codes.map((code) => (
+          <button
+            key={code}
+            type="button"
+            onClick={() => toggle(code)}
+            className="inline-flex min-h-tap items-center gap-1 rounded-full border-2 border-steel-500 bg-steel-50 px-3 text-sm"
+            aria-label={`Stop drawing ${named(code)}`}
+            data-code={code}
+          >
+            {named(code)} <span aria-hidden="true">×</span>
+          </button>
+        ))}
+      </div>
+      <details className="rounded-card border border-line" data-testid="element-picker">
+        <summary className="min-h-tap cursor-pointer px-3 py-3 font-semibold">
+          Pick elements ({codes.length} of at most 8)
+        </summary>
+        <div className="grid gap-2 p-2 sm:grid-cols-2 lg:grid-cols-4">
           {PICKER_GROUPS.map((g) => (
             <fieldset key={g.group} className="rounded-card border border-line p-2">
               <legend className="px-1 text-sm font-semibold">{g.label}</legend>
@@ -128,28 +151,33 @@ export default function WearChart({ machineId, initial }: Props) {
             </fieldset>
           ))}
         </div>
-        <div className="flex flex-wrap gap-3 md:flex-col">
-          <fieldset className="rounded-card border border-line p-2">
-            <legend className="px-1 text-sm font-semibold">Values</legend>
-            {(['ppm', 'rate'] as const).map((b) => (
-              <label key={b} className="flex min-h-tap items-center gap-2 px-1">
-                <input type="radio" name="basis" value={b} checked={basis === b} onChange={() => setBasis(b)} className="h-5 w-5" />
-                {b === 'ppm' ? 'Raw ppm' : meter === 'h' ? 'Per 100 h of oil use' : `Per 1,000 ${meter ?? 'mi/km'} of oil use`}
-              </label>
-            ))}
-          </fieldset>
-          <fieldset className="rounded-card border border-line p-2">
-            <legend className="px-1 text-sm font-semibold">Across</legend>
-            {(['odometer', 'date'] as const).map((a) => (
-              <label key={a} className="flex min-h-tap items-center gap-2 px-1">
-                <input type="radio" name="axis" value={a} checked={axis === a} onChange={() => setAxis(a)} className="h-5 w-5" />
-                {a === 'odometer' ? 'Odometer' : 'Date'}
-              </label>
-            ))}
-          </fieldset>
-        </div>
-      </form>
+      </details>
+      <div className="flex flex-wrap gap-3">
+        <fieldset className="flex flex-wrap items-center gap-x-2 rounded-card border border-line px-2">
+          <legend className="px-1 text-sm font-semibold">Values</legend>
+          {(['ppm', 'rate'] as const).map((b) => (
+            <label key={b} className="flex min-h-tap items-center gap-2 px-1">
+              <input type="radio" name="basis" value={b} checked={basis === b} onChange={() => setBasis(b)} className="h-5 w-5" />
+              {b === 'ppm' ? 'Raw ppm' : meter === 'h' ? 'Per 100 h of oil use' : `Per 1,000 ${meter ?? 'mi/km'} of oil use`}
+            </label>
+          ))}
+        </fieldset>
+        <fieldset className="flex flex-wrap items-center gap-x-2 rounded-card border border-line px-2">
+          <legend className="px-1 text-sm font-semibold">Across</legend>
+          {(['odometer', 'date'] as const).map((a) => (
+            <label key={a} className="flex min-h-tap items-center gap-2 px-1">
+              <input type="radio" name="axis" value={a} checked={axis === a} onChange={() => setAxis(a)} className="h-5 w-5" />
+              {a === 'odometer' ? (meter === 'h' ? 'Hour meter' : 'Odometer') : 'Date'}
+            </label>
+          ))}
+        </fieldset>
+      </div>
+    </form>
+  );
 
+  // The chart first and the picker under it: on a phone the first screen shows the story, not checkboxes.
+  return (
+    <div className="space-y-4" data-testid="wear-chart">
       <div aria-live="polite" className="min-h-[1.5rem]">
         {codes.length === 0 && <p>Pick at least one element to draw.</p>}
         {codes.length > 0 && state.status === 'loading' && <p data-testid="wear-chart-loading">Loading the wear chart…</p>}
@@ -165,15 +193,21 @@ export default function WearChart({ machineId, initial }: Props) {
       {ready && chart && !empty && (
         <>
           <figure className="relative h-72 w-full md:h-96" aria-label="Wear chart; the same data is in the table below">
-            <Line data={chart.data} options={chart.options} plugins={[gradeMarksPlugin(buildGradeMarks(ready))]} />
+            <Line
+              data={chart.data}
+              options={chart.options}
+              plugins={[gradeMarksPlugin(buildGradeMarks(ready))]}
+              aria-label={`Wear chart of ${ready.series.map((x) => x.name).join(', ')}; the same readings are in the tables below`}
+            />
           </figure>
           <Legend data={ready} />
           {ready.notes.map((n) => (
             <p key={n} className="text-sm text-ink-soft">{n}</p>
           ))}
-          <TrendTable data={ready} />
         </>
       )}
+      {settings}
+      {ready && chart && !empty && <TrendTable data={ready} />}
     </div>
   );
 }

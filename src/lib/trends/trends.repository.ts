@@ -108,6 +108,28 @@ export async function listTrendSamples(
   return [...byId.values()];
 }
 
+/** The stored findings of the machine's latest sample with results (none when it has no results yet). */
+export async function listLatestSampleFindings(
+  db: Kysely<Database>,
+  crewId: string,
+  machineId: string,
+): Promise<{ measurand: string | null; level: Level; ruleId: string; numbers: Record<string, unknown> }[]> {
+  if (!isUuid(machineId)) return [];
+  const latest = await db
+    .selectFrom('samples')
+    .select('id')
+    .where('machine_id', '=', machineId)
+    .where('crew_id', '=', crewId)
+    .where('state', 'in', ['results_in', 'reviewed'])
+    .orderBy('drawn_on', 'desc')
+    .orderBy('odometer', 'desc')
+    .limit(1)
+    .executeTakeFirst();
+  if (!latest) return [];
+  const rows = await db.selectFrom('findings').select(['measurand', 'level', 'rule_id', 'numbers']).where('sample_id', '=', latest.id).execute();
+  return rows.map((r) => ({ measurand: r.measurand, level: r.level, ruleId: r.rule_id, numbers: r.numbers ?? {} }));
+}
+
 /** The machine's oil changes with the grade poured, for grade-change marks. */
 export async function listTrendOilChanges(db: Kysely<Database>, machineId: string): Promise<TrendOilChangeRow[]> {
   const rows = await db

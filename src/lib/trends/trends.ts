@@ -3,7 +3,9 @@
  * samples into one series per measurand with its level, baseline band and distance from it at every point.
  */
 import { z } from 'zod';
-import { computeWearRate, getMeasurand, isMeasurandCode, type MeasurandCode } from '../analysis';
+import { computeWearRate, getMeasurand, isMeasurandCode, type Level, type MeasurandCode } from '../analysis';
+import { levelRank } from '../levels';
+import { listFindingMeasurands } from '../reviews/finding-numbers';
 import { fromStoredMeter, type MeterUnit } from '../units/units';
 import type { GradeChangeMark, StoredBand, TrendBasis, TrendOilChangeRow, TrendPoint, TrendSampleRow, TrendSeries } from './trend-types';
 
@@ -11,6 +13,29 @@ export * from './trend-types';
 
 /** Most measurands one chart shows at once; more lines than this stop being readable. */
 export const MAX_TREND_MEASURANDS = 8;
+
+/** Most elements the chart opens on: enough for a coolant story (Na, K, B) and dirt (Si, Al) together. */
+export const CHART_START_MAX = 5;
+
+/**
+ * The elements the wear chart opens on: those the latest results flagged (climbing included, since a climb
+ * is a finding), act before watch, each finding's main element first, then the others it names. Empty when
+ * nothing is flagged, and the chart keeps its usual start.
+ */
+export function pickChartStart(
+  findings: readonly { measurand: string | null; level: Level; ruleId: string; numbers: Record<string, unknown> }[],
+): MeasurandCode[] {
+  const ordered = findings
+    .map((f, i) => ({ f, i }))
+    .sort((a, b) => levelRank(b.f.level) - levelRank(a.f.level) || a.i - b.i);
+  const codes: MeasurandCode[] = [];
+  for (const { f } of ordered) {
+    for (const code of listFindingMeasurands(f)) {
+      if (!codes.includes(code)) codes.push(code);
+    }
+  }
+  return codes.slice(0, CHART_START_MAX);
+}
 
 /** Query of the trend endpoint: ?measurands=Fe,Al&basis=ppm|rate&x=odometer|date. */
 export const trendQuerySchema = z.object({

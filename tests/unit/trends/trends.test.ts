@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { describeRateUnit, findGradeChanges, shapeTrendSeries, trendQuerySchema, type TrendSampleRow } from '~/lib/trends/trends';
+import { describeRateUnit, findGradeChanges, pickChartStart, shapeTrendSeries, trendQuerySchema, type TrendSampleRow } from '~/lib/trends/trends';
 import { buildChartDatasets, buildGradeMarks } from '~/components/wear-chart/chart-data';
 import { KM_PER_MI } from '~/lib/units/units';
 
@@ -142,5 +142,23 @@ describe('buildChartDatasets', () => {
     const byDate = buildChartDatasets({ ...response, x: 'date' }, ['#000']);
     expect(byDate[2]!.data[0]!.x).toBe(Date.UTC(2026, 0, 1));
     expect(buildGradeMarks(response)).toEqual([{ x: 3000, label: '10W-40 → 15W-50' }]);
+  });
+});
+
+describe('pickChartStart', () => {
+  // Invented findings with the parameter names the rules store.
+  const coolant = { measurand: 'Na', level: 'act', ruleId: 'coolant-markers', numbers: { Na: 40, NaOwn: 6, K: 20, KOwn: 1, B: 90, BOwn: 60, raised: 3 } } as const;
+  const climbAl = { measurand: 'Al', level: 'watch', ruleId: 'climbing-trend', numbers: { value: 9, rise: 4 } } as const;
+  const dirt = { measurand: 'Si', level: 'watch', ruleId: 'dirt', numbers: { Si: 38, Al: 15, siRise: 24, alRise: 8, ratio: 3 } } as const;
+  const fuel = { measurand: 'FUEL', level: 'act', ruleId: 'fuel-dilution', numbers: { value: 5.2, watchAbove: 2, limit: 5 } } as const;
+  test.each([
+    ['nothing flagged: the usual start', [], []],
+    ['the coolant story', [coolant], ['Na', 'K', 'B']],
+    ['act before watch, whatever the order stored', [climbAl, coolant], ['Na', 'K', 'B', 'Al']],
+    ['each element once, at most five', [fuel, climbAl, dirt, coolant], ['FUEL', 'Na', 'K', 'B', 'Al']],
+    ['dirt names both elements', [dirt], ['Si', 'Al']],
+    ['a finding without a measurand adds nothing', [{ measurand: null, level: 'watch', ruleId: 'x', numbers: {} }], []],
+  ] as const)('%s', (_name, findings, codes) => {
+    expect(pickChartStart(findings)).toEqual(codes);
   });
 });
