@@ -9,6 +9,8 @@ import { formatMeter, toStoredMeter } from '../units/units';
 import { computeDistances, explainAbsurdOdometer, oilChangeInputSchema, toOilChange, type OilChange } from './oil-changes';
 import { findLatestOilChange, findOilChangeAfter, findOilChangeBefore, findOilChangeByClientKey, findOilChangesOfMachine } from './oil-changes.repository';
 import { parseSaeGrade } from './sae-grade';
+import { checkCrewQuota } from '../storage-quota/storage-quota';
+import { sumCrewStorageBytes } from '../storage-quota/storage-quota.repository';
 
 /** A machine's oil changes, newest first, each with the distance since the one before and its photos. */
 export async function listOilChanges(db: Kysely<Database>, actor: Actor, machineId: string): Promise<ServiceResult<(OilChange & { photos: PhotoRow[] })[]>> {
@@ -33,7 +35,7 @@ export async function getLatestOilChange(db: Kysely<Database>, actor: Actor, mac
  */
 export async function createOilChange(
   db: Kysely<Database>, actor: Actor, machineId: string, input: unknown,
-  options: { newPhotos?: PreparedPhoto[]; uploadDir?: string } = {},
+  options: { newPhotos?: PreparedPhoto[]; uploadDir?: string; quotaBytes?: number } = {},
 ): Promise<ServiceResult<OilChange & { repeated: boolean }>> {
   const m = await getMachine(db, actor, machineId);
   if (!m.ok) return m;
@@ -51,6 +53,10 @@ export async function createOilChange(
   const odometer = toStoredMeter(d.odometer, machine.meter);
   const absurd = explainAbsurdOdometer(odometer, machine.meter);
   if (absurd) return refuse(400, 'invalid_input', 'Some fields need attention.', { odometer: absurd });
+  // Photos posted with the form count against the crew's storage quota like those sent by the uploader.
+  const newBytes = (options.newPhotos ?? []).reduce((sum, p) => sum + p.byteSize, 0);
+  const overQuota = newBytes > 0 ? checkCrewQuota(await sumCrewStorageBytes(db, crewId), newBytes, options.quotaBytes) : null;
+  if (overQuota) return refuse(413, 'quota_exceeded', overQuota, { photos: overQuota });
 
   return db.transaction().execute(async (trx) => {
     if (!d.meterReplaced) {

@@ -78,4 +78,17 @@ describe('photos', () => {
     expect(oc.ok).toBe(true);
     expect((await countRiderRows(db)).photos).toBe(1);
   });
+
+  test('photos from a plain form post that would pass the crew quota are refused with a sentence, and no oil change is written', async () => {
+    const rider = await makeActor(db);
+    const m = await createMachine(db, rider, collectMachineForm(readFormObject(new URLSearchParams(MACHINE_450))), 'C');
+    if (!m.ok) throw new Error('setup');
+    const prepared = preparePhoto(pngBytes(5, 5), 'x.png');
+    if (!prepared.ok) throw new Error('prepare');
+    const quotaBytes = prepared.photo.byteSize - 1;
+    const oc = await createOilChange(db, rider, m.value.id, { changedOn: '2025-01-01', odometer: '100', saeGrade: '10W-40' }, { newPhotos: [prepared.photo], uploadDir: dir, quotaBytes });
+    expect(oc).toMatchObject({ ok: false, status: 413, code: 'quota_exceeded' });
+    expect(oc.ok ? '' : oc.fields?.photos).toMatch(/for photos and lab files, so this file was not kept/);
+    expect(await countRiderRows(db)).toMatchObject({ photos: 0, oil_changes: 0 });
+  });
 });
