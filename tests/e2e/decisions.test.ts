@@ -54,14 +54,14 @@ describe('decisions: a mechanic overrides a call and a rider sees it', () => {
     const mech = await signedIn(browser, 'mechanic', viewport);
     const { page } = mech;
 
-    // 1. Home: the open act findings, each a link to its sample.
+    // 1. Home: one card per machine with open findings, the act ones linking to their sample.
     await page.goto('/');
-    const act = page.getByTestId('home-act');
+    const act = page.locator('[data-testid="home-machine-card"][data-level="act"]').first();
     await expect(act.isVisible()).resolves.toBe(true);
     await screenshot(page, `decisions-home-${name}`);
-    const firstFinding = act.locator('a').first();
-    const findingText = (await firstFinding.textContent())!.trim();
-    const machineName = findingText.split(':')[0]!.trim();
+    const machineName = (await act.getAttribute('data-machine'))!.trim();
+    expect(machineName.length).toBeGreaterThan(0);
+    const firstFinding = act.locator('a[href^="/samples/"]').first();
     await Promise.all([page.waitForURL(/\/samples\/[0-9a-f-]{36}/), firstFinding.click()]);
     const sampleUrl = new URL(page.url()).pathname;
 
