@@ -1,6 +1,7 @@
 /** Every query of the lab import. Each function takes `db` or a transaction first. */
 import { sql, type Kysely, type Transaction } from 'kysely';
 import type { Database, IntervalCallKind, Level, SampleState } from '../db/database';
+import type { StoredBand } from '../trends/trend-types';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
@@ -456,19 +457,11 @@ export async function replaceEngineCalls(db: Db, sampleIds: readonly string[], r
   }
 }
 
-export interface BandInsert {
+/** A band as written: the stored band (the one the chart and sample page read back) of one sample and measurand. */
+export interface BandInsert extends StoredBand {
   sampleId: string;
-  source: 'own' | 'crew';
-  sourceLabel: string | null;
-  sourceMachines: number | null;
   measurand: string;
-  basis: 'rate' | 'ppm';
-  n: number;
-  mean: number;
-  lower: number;
-  watchAbove: number;
-  actFrom: number;
-  toReported: number;
+  sourceMachines: number | null;
 }
 
 /** Replace the stored baseline bands of these samples (the bands the rules used). */
