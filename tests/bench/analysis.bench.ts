@@ -13,7 +13,7 @@ import {
   type MachineProfile,
   type MeasurandCode,
   type SamplePoint,
-} from '../../src/lib/analysis/index';
+} from '~/lib/analysis/index';
 // mulberry32, seeded, so every run measures the same invented history.
 import { makeRandom } from '../unit/analysis/simulated-machines';
 

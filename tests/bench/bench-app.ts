@@ -3,8 +3,8 @@
 // machine with a long invented history.
 import { randomBytes, randomUUID } from 'node:crypto';
 import type { Kysely } from 'kysely';
-import { createDb } from '../../src/lib/db/db';
-import type { Database } from '../../src/lib/db/database';
+import { createDb } from '~/lib/db/db';
+import type { Database } from '~/lib/db/database';
 import { startApp } from '../e2e/helpers/server';
 // mulberry32: the same invented history on every run.
 import { makeRandom } from '../unit/analysis/simulated-machines';

@@ -6,8 +6,8 @@
 import os from 'node:os';
 import { performance } from 'node:perf_hooks';
 import Papa from 'papaparse';
-import { ELEMENT_CODES } from '../../src/lib/analysis/measurands';
-import { parseLabCsv } from '../../src/lib/import/lab-csv';
+import { ELEMENT_CODES } from '~/lib/analysis/measurands';
+import { parseLabCsv } from '~/lib/lab-csv/lab-csv';
 
 const ROWS = 10_000;
 const RUNS = 7;

@@ -6,9 +6,9 @@
 import os from 'node:os';
 import { performance } from 'node:perf_hooks';
 import ExcelJS from 'exceljs';
-import { ELEMENT_CODES } from '../../src/lib/analysis/measurands';
-import { parseLabCsv } from '../../src/lib/import/lab-csv';
-import { readLabFileBytes } from '../../src/lib/import/lab-xlsx';
+import { ELEMENT_CODES } from '~/lib/analysis/measurands';
+import { parseLabCsv } from '~/lib/lab-csv/lab-csv';
+import { readLabFileBytes } from '~/lib/lab-csv/lab-xlsx';
 
 const ROWS = 2_000;
 const RUNS = 5;

@@ -8,11 +8,11 @@
 import { performance } from 'node:perf_hooks';
 import { sql } from 'kysely';
 import Papa from 'papaparse';
-import { ELEMENT_CODES } from '../../src/lib/analysis/measurands';
-import { createDb } from '../../src/lib/db/db';
-import { parseLabCsv } from '../../src/lib/import/lab-csv';
-import { confirmLabImport, previewLabImport, storeLabFile } from '../../src/lib/lab-import/lab-import.service';
-import { normaliseBottleCode } from '../../src/lib/samples/bottle-code';
+import { ELEMENT_CODES } from '~/lib/analysis/measurands';
+import { createDb } from '~/lib/db/db';
+import { parseLabCsv } from '~/lib/lab-csv/lab-csv';
+import { confirmLabImport, previewLabImport, storeLabFile } from '~/lib/lab-import/lab-import.service';
+import { normaliseBottleCode } from '~/lib/samples/bottle-code';
 import { dropEmbeddedDatabase, ensureEmbeddedDatabase, migrateToLatest } from '../../scripts/lib/database';
 
 const ROWS = 10_000;

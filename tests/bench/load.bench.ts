@@ -8,8 +8,8 @@
  */
 import { createRequire } from 'node:module';
 import { sql } from 'kysely';
-import { hashPassword } from '../../src/lib/auth/password';
-import { createDb } from '../../src/lib/db/db';
+import { hashPassword } from '~/lib/auth/password';
+import { createDb } from '~/lib/db/db';
 import { startApp } from '../e2e/helpers/server';
 import { quantile } from './bench-app';
 

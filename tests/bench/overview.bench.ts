@@ -8,9 +8,9 @@
 import { randomBytes } from 'node:crypto';
 import { performance } from 'node:perf_hooks';
 import { sql } from 'kysely';
-import { createDb } from '../../src/lib/db/db';
-import { DEFAULT_OVERVIEW_QUERY, type OverviewQuery } from '../../src/lib/overview/overview';
-import { loadOverview } from '../../src/lib/overview/overview.service';
+import { createDb } from '~/lib/db/db';
+import { DEFAULT_OVERVIEW_QUERY, type OverviewQuery } from '~/lib/overview/overview';
+import { loadOverview } from '~/lib/overview/overview.service';
 import { startApp } from '../e2e/helpers/server';
 import { quantile } from './bench-app';
 

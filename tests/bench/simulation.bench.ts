@@ -5,7 +5,7 @@
  * `npm run bench` shows them beside the timings. Run: node --import tsx tests/bench/simulation.bench.ts
  */
 import { performance } from 'node:perf_hooks';
-import { judgeHistory, SIMULATED_RATES } from '../../src/lib/analysis/index';
+import { judgeHistory, SIMULATED_RATES } from '~/lib/analysis/index';
 import { runSimulation } from '../unit/analysis/simulated-machines';
 
 const t0 = performance.now();

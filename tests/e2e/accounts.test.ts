@@ -2,9 +2,9 @@
 import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
 import type { Browser } from 'playwright-core';
 import type { Kysely } from 'kysely';
-import { createDb } from '../../src/lib/db/db';
-import type { Database } from '../../src/lib/db/database';
-import { generateToken, hashToken } from '../../src/lib/auth/tokens';
+import { createDb } from '~/lib/db/db';
+import type { Database } from '~/lib/db/database';
+import { generateToken, hashToken } from '~/lib/auth/tokens';
 import { makeMachine } from '../integration/factories';
 import { DESKTOP, baseUrl, launchBrowser, newContext, screenshot } from './helpers/browser';
 import { waitForMail } from './helpers/mailbox';

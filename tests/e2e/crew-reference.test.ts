@@ -4,9 +4,9 @@
 import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { DEMO_ACCOUNTS } from '../../sample-data/seed-accounts';
-import { createDb } from '../../src/lib/db/db';
-import { recomputeMachineFindings } from '../../src/lib/lab-import/lab-import.service';
-import { normaliseBottleCode } from '../../src/lib/samples/bottle-code';
+import { createDb } from '~/lib/db/db';
+import { recomputeMachineFindings } from '~/lib/lab-import/lab-import.service';
+import { normaliseBottleCode } from '~/lib/samples/bottle-code';
 import { DESKTOP, PHONE, launchBrowser, newContext, screenshot } from './helpers/browser';
 import { signInAs } from './helpers/sign-in';
 

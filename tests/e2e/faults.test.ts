@@ -9,8 +9,8 @@ import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { freePort } from '../../scripts/lib/processes';
 import { startApp, type RunningApp } from './helpers/server';
 import { sessionCookieFor } from './helpers/sign-in';
-import { createDb } from '../../src/lib/db/db';
-import { hashPassword } from '../../src/lib/auth/password';
+import { createDb } from '~/lib/db/db';
+import { hashPassword } from '~/lib/auth/password';
 
 const dbSh = path.resolve(new URL('../../scripts/db.sh', import.meta.url).pathname);
 const execFileAsync = promisify(execFile);

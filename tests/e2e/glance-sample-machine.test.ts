@@ -5,7 +5,7 @@
 import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { DEMO_ACCOUNTS } from '../../sample-data/seed-accounts';
-import { createDb } from '../../src/lib/db/db';
+import { createDb } from '~/lib/db/db';
 import { DESKTOP, PHONE, launchBrowser, newContext, screenshot } from './helpers/browser';
 import { signInAs } from './helpers/sign-in';
 

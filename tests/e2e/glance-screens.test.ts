@@ -3,8 +3,8 @@
 import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import type { Kysely } from 'kysely';
-import { createDb } from '../../src/lib/db/db';
-import type { Database } from '../../src/lib/db/database';
+import { createDb } from '~/lib/db/db';
+import type { Database } from '~/lib/db/database';
 import { DESKTOP, PHONE, launchBrowser, newContext, screenshot } from './helpers/browser';
 import { waitForMail } from './helpers/mailbox';
 import { signInAs } from './helpers/sign-in';

@@ -3,7 +3,7 @@
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { inject } from 'vitest';
-import { createDb } from '../../src/lib/db/db';
+import { createDb } from '~/lib/db/db';
 import { DEMO_ACCOUNTS } from '../../sample-data/seed-accounts';
 import { PHONE, launchBrowser, newContext, screenshot } from './helpers/browser';
 import { signInAs } from './helpers/sign-in';

@@ -6,8 +6,8 @@ import path from 'node:path';
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { createDb } from '../../src/lib/db/db';
-import { normaliseBottleCode } from '../../src/lib/samples/bottle-code';
+import { createDb } from '~/lib/db/db';
+import { normaliseBottleCode } from '~/lib/samples/bottle-code';
 import { DESKTOP, PHONE, baseUrl, launchBrowser, newContext, screenshot } from './helpers/browser';
 import { signInAs } from './helpers/sign-in';
 

@@ -5,7 +5,7 @@
 import nodemailer from 'nodemailer';
 import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
 import type { Browser } from 'playwright-core';
-import { createDb } from '../../src/lib/db/db';
+import { createDb } from '~/lib/db/db';
 import { DEMO_ACCOUNTS } from '../../sample-data/seed-accounts';
 import { buildDemoLabMail, DEMO_MAIL_LAB } from '../../sample-data/seed-lab-mail';
 import { DESKTOP, PHONE, launchBrowser, newContext, screenshot } from './helpers/browser';

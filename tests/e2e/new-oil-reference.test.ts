@@ -6,9 +6,9 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { createDb } from '../../src/lib/db/db';
-import { hashPassword } from '../../src/lib/auth/password';
-import { normaliseBottleCode } from '../../src/lib/samples/bottle-code';
+import { createDb } from '~/lib/db/db';
+import { hashPassword } from '~/lib/auth/password';
+import { normaliseBottleCode } from '~/lib/samples/bottle-code';
 import { DESKTOP, PHONE, baseUrl, launchBrowser, newContext, screenshot } from './helpers/browser';
 import { sessionCookieFor, signInAs } from './helpers/sign-in';
 

@@ -10,8 +10,8 @@ import path from 'node:path';
 import { inject } from 'vitest';
 import { PNG } from 'pngjs';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
-import { createDb } from '../../src/lib/db/db';
-import { hasValidCheckSymbol, normaliseBottleCode } from '../../src/lib/samples/bottle-code';
+import { createDb } from '~/lib/db/db';
+import { hasValidCheckSymbol, normaliseBottleCode } from '~/lib/samples/bottle-code';
 import { DESKTOP, PHONE, baseUrl, launchBrowser, screenshot } from './helpers/browser';
 import { sessionCookieFor, signInAs } from './helpers/sign-in';
 

@@ -2,8 +2,8 @@
 // to a maximum (km and mm), and brake pads past their limit (a firm "do not ride"), at both screen sizes.
 import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { createDb } from '../../src/lib/db/db';
-import { hashPassword } from '../../src/lib/auth/password';
+import { createDb } from '~/lib/db/db';
+import { hashPassword } from '~/lib/auth/password';
 import { DESKTOP, PHONE, launchBrowser, newContext, screenshot } from './helpers/browser';
 import { signInAs } from './helpers/sign-in';
 

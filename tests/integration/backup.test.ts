@@ -5,8 +5,8 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { sql, type Kysely } from 'kysely';
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
-import { createDb } from '../../src/lib/db/db';
-import type { Database } from '../../src/lib/db/database';
+import { createDb } from '~/lib/db/db';
+import type { Database } from '~/lib/db/database';
 import { addMember, makeCrew, makeMachine, makeUser } from './factories';
 import { TEST_DATABASE, openTestDb, truncateAll } from './test-database';
 

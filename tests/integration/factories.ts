@@ -1,6 +1,6 @@
 import { randomUUID } from 'node:crypto';
 import type { Kysely } from 'kysely';
-import type { Database, Role } from '../../src/lib/db/database';
+import type { Database, Role } from '~/lib/db/database';
 
 // Small builders for integration tests: rows straight into the real tables, with sensible defaults.
 

@@ -1,8 +1,8 @@
 import { execFileSync } from 'node:child_process';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { createDb } from '../../src/lib/db/db';
-import { assertMigrated, createMigrator } from '../../src/lib/db/migrator';
+import { createDb } from '~/lib/db/db';
+import { assertMigrated, createMigrator } from '~/lib/db/migrator';
 import { TEST_DATABASE } from './test-database';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');

@@ -3,8 +3,8 @@ import { fileURLToPath } from 'node:url';
 import { readdirSync } from 'node:fs';
 import { sql } from 'kysely';
 import { afterAll, describe, expect, test } from 'vitest';
-import { createDb } from '../../src/lib/db/db';
-import { assertMigrated, createMigrator } from '../../src/lib/db/migrator';
+import { createDb } from '~/lib/db/db';
+import { assertMigrated, createMigrator } from '~/lib/db/migrator';
 import { TEST_DATABASE } from './test-database';
 import { execFileSync } from 'node:child_process';
 

@@ -8,8 +8,8 @@
 // sign-in page for anonymous visitors; JSON endpoints answer 401. A record of another crew answers 404.
 import { randomUUID } from 'node:crypto';
 import { sql, type Kysely } from 'kysely';
-import type { Database } from '../../src/lib/db/database';
-import { generateToken, hashToken } from '../../src/lib/auth/tokens';
+import type { Database } from '~/lib/db/database';
+import { generateToken, hashToken } from '~/lib/auth/tokens';
 import { makeMachine } from './factories';
 
 export type Visitor = 'anonymous' | 'rider' | 'mechanic' | 'lead' | 'otherLead';

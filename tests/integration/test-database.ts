@@ -1,6 +1,6 @@
 import { sql, type Kysely } from 'kysely';
-import { createDb } from '../../src/lib/db/db';
-import type { Database } from '../../src/lib/db/database';
+import { createDb } from '~/lib/db/db';
+import type { Database } from '~/lib/db/database';
 
 /** The integration tests' own database on the project's server: never the demo data. */
 export const TEST_DATABASE = {

@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { isSecureOrigin, readConfig } from '../../src/lib/config';
+import { isSecureOrigin, readConfig } from '~/lib/config';
 
 describe('readConfig', () => {
   test('defaults serve a local machine', () => {

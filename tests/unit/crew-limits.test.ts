@@ -1,6 +1,6 @@
 import { describe, expect, test } from 'vitest';
-import { LIMIT_FIELDS, MAX_INPUT_LENGTH, formValuesFrom, parseLimitsForm } from '../../src/lib/crew-limits/crew-limits';
-import { DEFAULT_FIXED_LIMITS, FIXED_LIMIT, FUEL_DILUTION, VISCOSITY_CHANGE } from '../../src/lib/analysis/rule-definitions';
+import { LIMIT_FIELDS, MAX_INPUT_LENGTH, formValuesFrom, parseLimitsForm } from '~/lib/crew-limits/crew-limits';
+import { DEFAULT_FIXED_LIMITS, FIXED_LIMIT, FUEL_DILUTION, VISCOSITY_CHANGE } from '~/lib/analysis/rule-definitions';
 
 const form = (entries: Record<string, string>) => new URLSearchParams(entries);
 

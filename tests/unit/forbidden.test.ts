@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { explainForbidden, FORBIDDEN_REASONS } from '../../src/lib/http/forbidden';
+import { explainForbidden, FORBIDDEN_REASONS } from '~/lib/http/forbidden';
 
 describe('explainForbidden', () => {
   test.each(Object.entries(FORBIDDEN_REASONS))('%s has its own explanation', (reason, text) => {

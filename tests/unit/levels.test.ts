@@ -1,7 +1,7 @@
 import { describe, expect, test } from 'vitest';
-import { CALL_DISPLAY, CALL_KINDS, LEVEL_DISPLAY, levelRank } from '../../src/lib/levels';
-import { CALLS } from '../../src/lib/analysis/interval-call';
-import { navFor } from '../../src/lib/navigation';
+import { CALL_DISPLAY, CALL_KINDS, LEVEL_DISPLAY, levelRank } from '~/lib/levels';
+import { CALLS } from '~/lib/analysis/interval-call';
+import { navFor } from '~/lib/navigation';
 
 describe('levels', () => {
   test('each level has its own word and its own shape, so colour is never the only cue', () => {

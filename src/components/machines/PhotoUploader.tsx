@@ -8,9 +8,9 @@ import XHRUpload from '@uppy/xhr-upload';
 import Dashboard from '@uppy/react/dashboard';
 import '@uppy/core/css/style.min.css';
 import '@uppy/dashboard/css/style.min.css';
-import type { OutboxPhoto } from '../../lib/offline/outbox';
+import type { OutboxPhoto } from '~/lib/offline/outbox';
 import { COLLECT_PHOTOS_EVENT, PHOTOS_KEPT_EVENT } from '../offline/offline-events';
-import { formatCount } from '../../lib/words/words';
+import { formatCount } from '~/lib/words/words';
 
 interface Props {
   /** id of the plain file input this island replaces. */

@@ -4,13 +4,13 @@
 // fields as before. On the drain card it also issues a bottle code from this device's reserved block and
 // shows the bottle tag (with its QR code) without a network. Without JavaScript the form posts as plain HTML.
 import { useCallback, useEffect, useRef, useState } from 'react';
-import { labelOf, type OutboxItem, type OutboxKind, type OutboxPhoto } from '../../lib/offline/outbox';
+import { labelOf, type OutboxItem, type OutboxKind, type OutboxPhoto } from '~/lib/offline/outbox';
 import { takeReservedCode } from './device';
 import { COLLECT_PHOTOS_EVENT, PHOTOS_KEPT_EVENT } from './offline-events';
 import OutboxList from './OutboxList';
 import { getOutboxItem, putOutboxItem, removeOutboxItem } from './outbox-store';
 import { flushOutbox, requestBackgroundSync } from './outbox-sync';
-import { formatCount } from '../../lib/words/words';
+import { formatCount } from '~/lib/words/words';
 
 interface Props {
   kind: OutboxKind;

@@ -1,10 +1,10 @@
 // The "waiting to send" list: every write kept on this device, with its state in word, shape and colour,
 // the server's sentence when it was not accepted, and what the rider can do (send now, edit, discard).
 import { useCallback, useEffect, useState } from 'react';
-import { STATE_LOOK, editUrlOf, type OutboxItem, type OutboxKind } from '../../lib/offline/outbox';
+import { STATE_LOOK, editUrlOf, type OutboxItem, type OutboxKind } from '~/lib/offline/outbox';
 import { listOutbox, onOutboxChange, removeOutboxItem } from './outbox-store';
 import { flushOutbox, type FlushReport } from './outbox-sync';
-import { formatCount } from '../../lib/words/words';
+import { formatCount } from '~/lib/words/words';
 
 interface Props {
   /** Only this kind of write (the drain card shows its cards); all kinds when absent. */

@@ -3,8 +3,8 @@
 // version without swapping code under an open form, says when a page is a saved copy, keeps the signed-in
 // crew's garage pages and a block of bottle codes on the device, and sends what waits in the outbox.
 import { registerSW } from 'virtual:pwa-register';
-import { PAGE_CACHE, SAVED_AT_HEADER, SAVED_COPY_ATTRIBUTE, savedCopySentence } from '../../lib/offline/page-cache';
-import { labelOf, type OutboxItem } from '../../lib/offline/outbox';
+import { PAGE_CACHE, SAVED_AT_HEADER, SAVED_COPY_ATTRIBUTE, savedCopySentence } from '~/lib/offline/page-cache';
+import { labelOf, type OutboxItem } from '~/lib/offline/outbox';
 import { readCodeBlock, refreshCodeBlock } from './device';
 import { listOutbox, onOutboxChange, putOutboxItem } from './outbox-store';
 import { flushOutbox } from './outbox-sync';

@@ -18,8 +18,8 @@ import {
   type TooltipItem,
 } from 'chart.js';
 import { Line } from 'react-chartjs-2';
-import { MEASURANDS } from '../../lib/analysis/measurands';
-import { PICKER_GROUPS, type TrendAxis, type TrendBasis, type TrendResponse } from '../../lib/trends/trend-types';
+import { MEASURANDS } from '~/lib/analysis/measurands';
+import { PICKER_GROUPS, type TrendAxis, type TrendBasis, type TrendResponse } from '~/lib/trends/trend-types';
 import { buildChartDatasets, buildGradeMarks, type XYPoint } from './chart-data';
 import { LEVEL_COLOURS, SERIES_COLOURS, pointRadiusFor, pointStyleFor, withAlpha } from './chart-styles';
 import { formatBand, formatDistance, formatFigure, formatFromBaseline, formatReported, xToDate } from './format';

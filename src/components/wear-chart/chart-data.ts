@@ -1,6 +1,6 @@
 /** Shapes the trend endpoint's answer into Chart.js datasets: band lower, band upper (filled), then the line. */
-import type { Level } from '../../lib/db/database';
-import type { TrendAxis, TrendPoint, TrendResponse } from '../../lib/trends/trend-types';
+import type { Level } from '~/lib/db/database';
+import type { TrendAxis, TrendPoint, TrendResponse } from '~/lib/trends/trend-types';
 import { dateToX } from './format';
 
 export interface XYPoint {

@@ -1,5 +1,5 @@
 /** Number and label formatting shared by the wear chart and its table. */
-import type { TrendPoint } from '../../lib/trends/trend-types';
+import type { TrendPoint } from '~/lib/trends/trend-types';
 
 /** A figure to sensible precision: whole from 100, one decimal from 10, two below. */
 export function formatFigure(v: number): string {

@@ -2,7 +2,7 @@
  * CSV export of readings: one row per reading, with the sample's context. Text cells that a spreadsheet would
  * run as a formula are neutralised (OWASP CSV Injection) with the lab import's neutraliseCsvCell. Pure.
  */
-import { neutraliseCsvCell } from '../import/csv-cell';
+import { neutraliseCsvCell } from '../lab-csv/csv-cell';
 import { fromStoredMeter, roundTo, type MeterUnit } from '../units/units';
 
 export interface ExportReading {

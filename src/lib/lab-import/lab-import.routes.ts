@@ -9,7 +9,7 @@ import type { CrewMembership, SessionUser } from '../auth/types';
 import type { Database } from '../db/database';
 import { jsonError, jsonOk, readBodyBytes } from '../http/json';
 import { notFoundPage } from '../http/not-found';
-import { MAX_LAB_FILE_BYTES, type LabCsvMappingTarget } from '../import/lab-csv';
+import { MAX_LAB_FILE_BYTES, type LabCsvMappingTarget } from '../lab-csv/lab-csv';
 import { confirmInputSchema, MAPPING_TARGETS, profileInputSchema, rowDecisionSchema, type RowDecision } from './lab-import';
 import { confirmLabImport, saveLabProfile, storeLabFile } from './lab-import.service';
 

@@ -11,14 +11,14 @@ import {
 } from '../analysis';
 import { isMeasurandCode, type MeasurandCode } from '../analysis/measurands';
 import type { Database } from '../db/database';
-import { readLabFileBytes } from '../import/lab-xlsx';
+import { readLabFileBytes } from '../lab-csv/lab-xlsx';
 import {
   MAX_LAB_FILE_BYTES,
   parseLabCsv,
   type LabCsvColumn,
   type LabCsvIssue,
   type LabCsvMappingTarget,
-} from '../import/lab-csv';
+} from '../lab-csv/lab-csv';
 import { checkCrewQuota } from '../storage-quota/storage-quota';
 import { sumCrewStorageBytes } from '../storage-quota/storage-quota.repository';
 import { CODE_ALPHABET, explainIssuedCode, hasValidCheckSymbol, ISSUED_DATA_LENGTH, normaliseBottleCode } from '../samples/bottle-code';

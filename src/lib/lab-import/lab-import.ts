@@ -4,7 +4,7 @@
  */
 import { z } from 'zod';
 import { MEASURAND_CODES, type MeasurandCode } from '../analysis/measurands';
-import type { LabCsvColumn, LabCsvIssue, LabCsvMappingTarget, LabReadings } from '../import/lab-csv';
+import type { LabCsvColumn, LabCsvIssue, LabCsvMappingTarget, LabReadings } from '../lab-csv/lab-csv';
 
 /** What a column can be mapped to in a lab profile. */
 export const MAPPING_TARGETS: readonly LabCsvMappingTarget[] = ['bottle', 'sampled', 'reported', 'ignore', ...MEASURAND_CODES];

@@ -10,7 +10,7 @@ import { isUuid } from '../machines/machines.repository';
 import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type ServiceResult } from '../machines/service-result';
 import { parseSaeGrade } from '../oil-changes/sae-grade';
 import { normaliseBottleCode } from '../samples/bottle-code';
-import type { LabReadings } from '../import/lab-csv';
+import type { LabReadings } from '../lab-csv/lab-csv';
 import type { PreviewRow } from '../lab-import/lab-import';
 import {
   buildNewOilLookup, newOilInputSchema, normaliseProductName, readingsFromDataSheet, toNewOilReference,

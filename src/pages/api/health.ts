@@ -1,8 +1,8 @@
 import type { APIRoute } from 'astro';
-import { getDb } from '../../lib/db';
-import { checkHealth } from '../../lib/health/health.service';
-import { logDatabaseUnavailable } from '../../lib/http/unavailable';
-import { APP_VERSION } from '../../lib/version';
+import { getDb } from '~/lib/db';
+import { checkHealth } from '~/lib/health/health.service';
+import { logDatabaseUnavailable } from '~/lib/http/unavailable';
+import { APP_VERSION } from '~/lib/version';
 
 /** App version and database reachability; 503 "unavailable" when the database is down (the reason is logged). */
 export const GET: APIRoute = async () => {

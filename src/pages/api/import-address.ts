@@ -1,8 +1,8 @@
 import type { APIRoute } from 'astro';
-import { clientIp } from '../../lib/auth/deps';
-import { getConfig } from '../../lib/config';
-import { getDb } from '../../lib/db';
-import { handleImportAddressPost } from '../../lib/lab-mail/lab-mail.routes';
+import { clientIp } from '~/lib/auth/deps';
+import { getConfig } from '~/lib/config';
+import { getDb } from '~/lib/db';
+import { handleImportAddressPost } from '~/lib/lab-mail/lab-mail.routes';
 
 /** POST (form) action=rotate | add-sender | remove-sender (+ sender): the crew's import address card. */
 export const POST: APIRoute = (context) =>

@@ -1,8 +1,8 @@
 import type { APIRoute } from 'astro';
-import { getDb } from '../../lib/db';
-import { loadAlertEnv } from '../../lib/alerts/alerts.service';
-import { applyUnsubscribe } from '../../lib/alerts/unsubscribe.service';
-import { readBodyText, jsonError, jsonOk } from '../../lib/http/json';
+import { getDb } from '~/lib/db';
+import { loadAlertEnv } from '~/lib/alerts/alerts.service';
+import { applyUnsubscribe } from '~/lib/alerts/unsubscribe.service';
+import { readBodyText, jsonError, jsonOk } from '~/lib/http/json';
 
 // RFC 8058 one-click unsubscribe: the mail's List-Unsubscribe header points here and the mail client POSTs
 // "List-Unsubscribe=One-Click". The token in the address is the proof; no session, no cookies. A GET (a

@@ -4,9 +4,9 @@
  */
 import {
   explainUnusualViscosityIndex, findGradeWindow, SAE_J300_MIN_HTHS, saeGradesOf, sayboltSeconds, viscosityAt, viscosityIndex, type SaeHighTempGrade,
-} from '../../lib/analysis';
-import type { RecommendedGrade } from '../../lib/db/database';
-import { fromCelsius, toCelsius, type TemperatureUnit } from '../../lib/units/units';
+} from '~/lib/analysis';
+import type { RecommendedGrade } from '~/lib/db/database';
+import { fromCelsius, toCelsius, type TemperatureUnit } from '~/lib/units/units';
 
 export type ToolResult<T> = { state: 'idle' } | { state: 'ok'; value: T } | { state: 'error'; fields: Record<string, string>; message?: string };
 

@@ -1,6 +1,6 @@
 // Reading what the local relay received (dev_mailbox), for tests that follow links from e-mails.
 import { sql, type Kysely } from 'kysely';
-import type { Database } from '../../../src/lib/db/database';
+import type { Database } from '~/lib/db/database';
 
 /** Waits until a message to `to` whose subject matches arrives; returns its mailbox id and text. */
 export async function waitForMail(db: Kysely<Database>, to: string, subject: RegExp, timeoutMs = 45_000): Promise<{ id: number; text: string }> {

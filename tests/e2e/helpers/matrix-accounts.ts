@@ -1,8 +1,8 @@
 // Users for the role matrix and other permission tests: crew A with a lead, a mechanic and a rider, and
 // crew B with its own lead. Created straight in the e2e database, once per run.
 import type { Kysely } from 'kysely';
-import type { Database, Role } from '../../../src/lib/db/database';
-import { hashPassword } from '../../../src/lib/auth/password';
+import type { Database, Role } from '~/lib/db/database';
+import { hashPassword } from '~/lib/auth/password';
 
 export const MATRIX_PASSWORD = 'matrix-password-for-tests';
 

@@ -3,7 +3,7 @@
 import { existsSync, mkdirSync, rmSync } from 'node:fs';
 import path from 'node:path';
 import type { ChildProcess } from 'node:child_process';
-import { createDb } from '../../../src/lib/db/db';
+import { createDb } from '~/lib/db/db';
 import { seedDemo } from '../../../sample-data/seed';
 import { migrateToLatest, recreateEmbeddedDatabase } from '../../../scripts/lib/database';
 import { buildIfNeeded, SERVE_ARGS } from '../../../scripts/lib/build';

@@ -1,8 +1,8 @@
 // Builders for the alert tests: a crew of lead, mechanic, two riders (one owns the machine) and another
 // crew's lead; invented names and addresses.
 import type { Kysely } from 'kysely';
-import type { Database, Role } from '../../../src/lib/db/database';
-import { confirmLabImport, storeLabFile } from '../../../src/lib/lab-import/lab-import.service';
+import type { Database, Role } from '~/lib/db/database';
+import { confirmLabImport, storeLabFile } from '~/lib/lab-import/lab-import.service';
 import { addMember, makeCrew, makeMachine, makeUser } from '../factories';
 import { bytesOf } from '../lab-import/lab-import-fixtures';
 

@@ -1,11 +1,11 @@
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
-import { loadAlertEnv, sendDailyDigests } from '../../../src/lib/alerts/alerts.service';
-import { verifyUnsubscribeToken } from '../../../src/lib/alerts/unsubscribe-token';
-import { confirmLabImport, storeLabFile } from '../../../src/lib/lab-import/lab-import.service';
-import { deliverDueMail } from '../../../src/lib/mail/mail.service';
-import { startMailRelay } from '../../../src/lib/mail/relay';
-import { createMailTransport } from '../../../src/lib/mail/transport';
-import { saveUserPreferences } from '../../../src/lib/notification-preferences/notification-preferences.service';
+import { loadAlertEnv, sendDailyDigests } from '~/lib/alerts/alerts.service';
+import { verifyUnsubscribeToken } from '~/lib/alerts/unsubscribe-token';
+import { confirmLabImport, storeLabFile } from '~/lib/lab-import/lab-import.service';
+import { deliverDueMail } from '~/lib/mail/mail.service';
+import { startMailRelay } from '~/lib/mail/relay';
+import { createMailTransport } from '~/lib/mail/transport';
+import { saveUserPreferences } from '~/lib/notification-preferences/notification-preferences.service';
 import { bytesOf, makeSample } from '../lab-import/lab-import-fixtures';
 import { openTestDb, truncateAll } from '../test-database';
 import { importCsv, makeAlertCrew, outboxByRecipient, tokenFromHeaders } from './alert-fixtures';

@@ -1,9 +1,9 @@
 import type { Kysely } from 'kysely';
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
-import type { AlertEnv } from '../../../src/lib/alerts/alerts';
-import { applyUnsubscribe } from '../../../src/lib/alerts/unsubscribe.service';
-import type { Database } from '../../../src/lib/db/database';
-import { runReminders } from '../../../src/lib/reminders/reminders.service';
+import type { AlertEnv } from '~/lib/alerts/alerts';
+import { applyUnsubscribe } from '~/lib/alerts/unsubscribe.service';
+import type { Database } from '~/lib/db/database';
+import { runReminders } from '~/lib/reminders/reminders.service';
 import { addMember, makeMachine } from '../factories';
 import { makeSample } from '../lab-import/lab-import-fixtures';
 import { openTestDb, truncateAll } from '../test-database';

@@ -6,11 +6,11 @@ import type pg from 'pg';
 import { openTestDb, truncateAll } from '../test-database';
 import { addMember, makeCrew, makeUser } from '../factories';
 import { makeAuthDeps, outboxFor } from './auth-test-deps';
-import { changePassword, requestEmailVerification, signIn, signUp, type AuthDeps } from '../../../src/lib/auth/auth.service';
-import { inviteMember, type Actor } from '../../../src/lib/crews/crews.service';
-import { findMembership } from '../../../src/lib/crews/crews.repository';
-import { LIMIT_RULES, createRateLimits } from '../../../src/lib/rate-limit/rate-limits';
-import { deleteExpiredRateLimits } from '../../../src/lib/rate-limit/rate-limits.repository';
+import { changePassword, requestEmailVerification, signIn, signUp, type AuthDeps } from '~/lib/auth/auth.service';
+import { inviteMember, type Actor } from '~/lib/crews/crews.service';
+import { findMembership } from '~/lib/crews/crews.repository';
+import { LIMIT_RULES, createRateLimits } from '~/lib/rate-limit/rate-limits';
+import { deleteExpiredRateLimits } from '~/lib/rate-limit/rate-limits.repository';
 
 const db = openTestDb();
 let deps: AuthDeps;

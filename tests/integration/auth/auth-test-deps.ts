@@ -1,9 +1,9 @@
 import pg from 'pg';
 import { sql, type Kysely } from 'kysely';
-import type { Database } from '../../../src/lib/db/database';
-import type { AuthDeps } from '../../../src/lib/auth/auth.service';
-import { createLucia } from '../../../src/lib/auth/lucia';
-import { createRateLimits } from '../../../src/lib/rate-limit/rate-limits';
+import type { Database } from '~/lib/db/database';
+import type { AuthDeps } from '~/lib/auth/auth.service';
+import { createLucia } from '~/lib/auth/lucia';
+import { createRateLimits } from '~/lib/rate-limit/rate-limits';
 import { TEST_DATABASE } from '../test-database';
 
 /** Account-service dependencies on the test database, with the production rate-limit rules. */

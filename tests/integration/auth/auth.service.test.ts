@@ -6,9 +6,9 @@ import { makeAuthDeps, firstLink, outboxFor } from './auth-test-deps';
 import {
   changePassword, requestEmailVerification, requestPasswordReset, resetPassword, signIn, signOut, signUp, verifyEmail,
   type AuthDeps,
-} from '../../../src/lib/auth/auth.service';
-import { hashToken } from '../../../src/lib/auth/tokens';
-import { findMembershipsForUser } from '../../../src/lib/crews/crews.repository';
+} from '~/lib/auth/auth.service';
+import { hashToken } from '~/lib/auth/tokens';
+import { findMembershipsForUser } from '~/lib/crews/crews.repository';
 
 const db = openTestDb();
 let deps: AuthDeps;

@@ -1,16 +1,16 @@
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import type pg from 'pg';
-import type { Role } from '../../../src/lib/db/database';
+import type { Role } from '~/lib/db/database';
 import { openTestDb, truncateAll } from '../test-database';
 import { addMember, makeCrew, makeUser } from '../factories';
 import { firstLink, makeAuthDeps, outboxFor } from './auth-test-deps';
-import { signIn, signUp, type AuthDeps } from '../../../src/lib/auth/auth.service';
+import { signIn, signUp, type AuthDeps } from '~/lib/auth/auth.service';
 import {
   acceptInvitation, changeMemberRole, createCrew, describeInvitation, inviteMember, loadCrewOverview, removeMember, switchCrew,
   withdrawInvitation, type Actor,
-} from '../../../src/lib/crews/crews.service';
-import { findMembership, findMembershipsForUser } from '../../../src/lib/crews/crews.repository';
-import { listCrewAuditEvents } from '../../../src/lib/audit/audit.repository';
+} from '~/lib/crews/crews.service';
+import { findMembership, findMembershipsForUser } from '~/lib/crews/crews.repository';
+import { listCrewAuditEvents } from '~/lib/audit/audit.repository';
 
 const db = openTestDb();
 let deps: AuthDeps;

@@ -2,8 +2,8 @@ import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { openTestDb, truncateAll } from '../test-database';
 import { addMember, makeUser } from '../factories';
 import { makeImportCrew, makeSample } from '../lab-import/lab-import-fixtures';
-import { saveCrewLimits } from '../../../src/lib/crew-limits/crew-limits.service';
-import type { LimitValues } from '../../../src/lib/crew-limits/crew-limits';
+import { saveCrewLimits } from '~/lib/crew-limits/crew-limits.service';
+import type { LimitValues } from '~/lib/crew-limits/crew-limits';
 
 const db = openTestDb();
 afterAll(() => db.destroy());

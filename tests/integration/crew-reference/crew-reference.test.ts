@@ -3,9 +3,9 @@
 // Invented figures throughout.
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import type { Kysely } from 'kysely';
-import type { Database } from '../../../src/lib/db/database';
-import { findReferenceSamples } from '../../../src/lib/lab-import/lab-import.repository';
-import { recomputeFindings, recomputeMachineFindings } from '../../../src/lib/lab-import/lab-import.service';
+import type { Database } from '~/lib/db/database';
+import { findReferenceSamples } from '~/lib/lab-import/lab-import.repository';
+import { recomputeFindings, recomputeMachineFindings } from '~/lib/lab-import/lab-import.service';
 import { openTestDb, truncateAll } from '../test-database';
 import { addSamples, makeCrewWithRoles } from '../trends/decision-fixtures';
 

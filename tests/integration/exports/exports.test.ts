@@ -1,7 +1,7 @@
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { openTestDb, truncateAll } from '../test-database';
-import { listExportReadings } from '../../../src/lib/exports/exports.repository';
-import { buildReadingsCsv } from '../../../src/lib/exports/readings-csv';
+import { listExportReadings } from '~/lib/exports/exports.repository';
+import { buildReadingsCsv } from '~/lib/exports/readings-csv';
 import { addSamples, makeCrewWithRoles } from '../trends/decision-fixtures';
 
 const db = openTestDb();

@@ -1,7 +1,7 @@
 // Builders for the lab import tests: a crew with a lead, machines and drain-card samples, straight into the tables.
 import { sql, type Kysely } from 'kysely';
-import type { Database } from '../../../src/lib/db/database';
-import { normaliseBottleCode } from '../../../src/lib/samples/bottle-code';
+import type { Database } from '~/lib/db/database';
+import { normaliseBottleCode } from '~/lib/samples/bottle-code';
 import { addMember, makeCrew, makeMachine, makeUser } from '../factories';
 
 export async function makeImportCrew(db: Kysely<Database>, name = 'Valley school') {

@@ -1,8 +1,8 @@
 // The request-side helpers of the lab import: pure, so they run without the database despite living here.
 import { describe, expect, test } from 'vitest';
-import { computeHeaderSignature, rowDecisionSchema } from '../../../src/lib/lab-import/lab-import';
-import { readColumnFields, readDecisionFields, wantsHtml } from '../../../src/lib/lab-import/lab-import.routes';
-import { cleanFileName } from '../../../src/lib/lab-import/lab-import.service';
+import { computeHeaderSignature, rowDecisionSchema } from '~/lib/lab-import/lab-import';
+import { readColumnFields, readDecisionFields, wantsHtml } from '~/lib/lab-import/lab-import.routes';
+import { cleanFileName } from '~/lib/lab-import/lab-import.service';
 
 const MACHINE = '0b6c7f4e-2f43-4a8e-9d2e-7a1c5e9f3b21';
 

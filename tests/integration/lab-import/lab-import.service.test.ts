@@ -3,16 +3,16 @@ import path from 'node:path';
 import { Kysely, PostgresDialect } from 'kysely';
 import pg from 'pg';
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
-import type { Database } from '../../../src/lib/db/database';
-import { MAX_LAB_FILE_BYTES } from '../../../src/lib/import/lab-csv';
+import type { Database } from '~/lib/db/database';
+import { MAX_LAB_FILE_BYTES } from '~/lib/lab-csv/lab-csv';
 import {
   confirmLabImport,
   previewLabImport,
   recomputeFindings,
   saveLabProfile,
   storeLabFile,
-} from '../../../src/lib/lab-import/lab-import.service';
-import { computeCheckSymbol } from '../../../src/lib/samples/bottle-code';
+} from '~/lib/lab-import/lab-import.service';
+import { computeCheckSymbol } from '~/lib/samples/bottle-code';
 import { openTestDb, TEST_DATABASE, truncateAll } from '../test-database';
 import { bytesOf, countImportRows, makeImportCrew, makeSample } from './lab-import-fixtures';
 

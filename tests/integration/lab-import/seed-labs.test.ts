@@ -1,7 +1,7 @@
 import type { Kysely } from 'kysely';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { seedLabReports, type SeededLabReports } from '../../../sample-data/seed-labs';
-import type { Database } from '../../../src/lib/db/database';
+import type { Database } from '~/lib/db/database';
 import { addMember, makeCrew, makeMachine, makeUser } from '../factories';
 import { openTestDb, truncateAll } from '../test-database';
 import { makeSample } from './lab-import-fixtures';

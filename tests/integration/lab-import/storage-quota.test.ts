@@ -1,8 +1,8 @@
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { openTestDb, truncateAll } from '../test-database';
 import { addMember, makeCrew, makeUser } from '../factories';
-import { storeLabFile } from '../../../src/lib/lab-import/lab-import.service';
-import { sumCrewStorageBytes } from '../../../src/lib/storage-quota/storage-quota.repository';
+import { storeLabFile } from '~/lib/lab-import/lab-import.service';
+import { sumCrewStorageBytes } from '~/lib/storage-quota/storage-quota.repository';
 
 const db = openTestDb();
 afterAll(async () => { await db.destroy(); });

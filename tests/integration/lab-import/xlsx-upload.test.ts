@@ -2,9 +2,9 @@
 // previewed on the sheet with the lab header (or the sheet a saved profile names), confirmed like a CSV.
 import ExcelJS from 'exceljs';
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
-import type { CrewMembership, SessionUser } from '../../../src/lib/auth/types';
-import { handleUpload } from '../../../src/lib/lab-import/lab-import.routes';
-import { confirmLabImport, previewLabImport, saveLabProfile } from '../../../src/lib/lab-import/lab-import.service';
+import type { CrewMembership, SessionUser } from '~/lib/auth/types';
+import { handleUpload } from '~/lib/lab-import/lab-import.routes';
+import { confirmLabImport, previewLabImport, saveLabProfile } from '~/lib/lab-import/lab-import.service';
 import { openTestDb, truncateAll } from '../test-database';
 import { makeImportCrew, makeSample } from './lab-import-fixtures';
 

@@ -1,8 +1,8 @@
 // A worker that dies the hard way (SIGKILL, no cleanup) in the middle of processing inbound lab mail: after
 // the attachments were stored inside the message's transaction, before it commits. Run by
 // lab-mail-crash.test.ts as a child process: node --import tsx crash-worker.ts <database url>
-import { createDb } from '../../../src/lib/db/db';
-import { processInboundMails } from '../../../src/lib/lab-mail/lab-mail.service';
+import { createDb } from '~/lib/db/db';
+import { processInboundMails } from '~/lib/lab-mail/lab-mail.service';
 import { env } from './lab-mail-fixtures';
 
 const url = process.argv[2];

@@ -3,9 +3,9 @@
 import ExcelJS from 'exceljs';
 import type { Kysely } from 'kysely';
 import MailComposer from 'nodemailer/lib/mail-composer';
-import type { AlertEnv } from '../../../src/lib/alerts/alerts';
-import type { Database } from '../../../src/lib/db/database';
-import { getImportAddress } from '../../../src/lib/lab-mail/lab-mail.service';
+import type { AlertEnv } from '~/lib/alerts/alerts';
+import type { Database } from '~/lib/db/database';
+import { getImportAddress } from '~/lib/lab-mail/lab-mail.service';
 import { addMember, makeCrew, makeUser } from '../factories';
 
 export const DOMAIN = 'import.sumpwise.test';

@@ -1,11 +1,11 @@
 // The import address card's endpoint and the inbound webhook, called with plain Requests against the real
 // database: who may do what, forged and oversized input, and the webhook's signature.
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
-import type { CrewMembership, SessionUser } from '../../../src/lib/auth/types';
-import type { Role } from '../../../src/lib/db/database';
-import { signInboundWebhook, WEBHOOK_HEADERS } from '../../../src/lib/lab-mail/lab-mail';
-import { handleImportAddressPost, handleInboundWebhook } from '../../../src/lib/lab-mail/lab-mail.routes';
-import { getImportAddress } from '../../../src/lib/lab-mail/lab-mail.service';
+import type { CrewMembership, SessionUser } from '~/lib/auth/types';
+import type { Role } from '~/lib/db/database';
+import { signInboundWebhook, WEBHOOK_HEADERS } from '~/lib/lab-mail/lab-mail';
+import { handleImportAddressPost, handleInboundWebhook } from '~/lib/lab-mail/lab-mail.routes';
+import { getImportAddress } from '~/lib/lab-mail/lab-mail.service';
 import { openTestDb, truncateAll } from '../test-database';
 import { composeMail, DOMAIN, LAB_CSV, makeMailCrew } from './lab-mail-fixtures';
 

@@ -2,9 +2,9 @@
 // pending lab files (or a logged reason) out. Nothing is written to samples: only a confirm does that.
 import nodemailer from 'nodemailer';
 import { afterAll, beforeAll, beforeEach, describe, expect, test } from 'vitest';
-import { startMailRelay, type RunningMailRelay } from '../../../src/lib/mail/relay';
-import { changeSender, processInboundMails } from '../../../src/lib/lab-mail/lab-mail.service';
-import { MAX_INBOUND_MAIL_BYTES } from '../../../src/lib/lab-mail/lab-mail';
+import { startMailRelay, type RunningMailRelay } from '~/lib/mail/relay';
+import { changeSender, processInboundMails } from '~/lib/lab-mail/lab-mail.service';
+import { MAX_INBOUND_MAIL_BYTES } from '~/lib/lab-mail/lab-mail';
 import { openTestDb, truncateAll } from '../test-database';
 import { composeMail, countLabFiles, DOMAIN, env, LAB_CSV, LAB_SENDER, makeLabWorkbook, makeMailCrew } from './lab-mail-fixtures';
 

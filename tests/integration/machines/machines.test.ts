@@ -1,12 +1,12 @@
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { openTestDb, truncateAll } from '../test-database';
 import { addActor, countRiderRows, makeActor, MACHINE_450 } from '../rider-fixtures';
-import { collectMachineForm } from '../../../src/lib/machines/machines';
-import { readFormObject } from '../../../src/lib/machines/service-result';
+import { collectMachineForm } from '~/lib/machines/machines';
+import { readFormObject } from '~/lib/machines/service-result';
 import {
   createMachine, deleteMachine, getMachine, listMachines, setMachineArchived, updateMachine,
-} from '../../../src/lib/machines/machines.service';
-import { createOilChange, listOilChanges } from '../../../src/lib/oil-changes/oil-changes.service';
+} from '~/lib/machines/machines.service';
+import { createOilChange, listOilChanges } from '~/lib/oil-changes/oil-changes.service';
 
 const db = openTestDb();
 afterAll(() => db.destroy());

@@ -1,7 +1,7 @@
 import type { Kysely } from 'kysely';
-import type { Database } from '../../../src/lib/db/database';
-import { queueMail } from '../../../src/lib/mail/mail.service';
-import { renderMailLayout } from '../../../src/lib/mail/templates';
+import type { Database } from '~/lib/db/database';
+import { queueMail } from '~/lib/mail/mail.service';
+import { renderMailLayout } from '~/lib/mail/templates';
 
 /** Polls until `check` returns true, or fails after timeoutMs. */
 export async function waitFor(check: () => Promise<boolean>, timeoutMs = 10_000, what = 'condition'): Promise<void> {

@@ -2,10 +2,10 @@ import { afterAll, beforeAll, beforeEach, describe, expect, test } from 'vitest'
 import { SMTPServer } from 'smtp-server';
 import type { AddressInfo } from 'node:net';
 import { openTestDb, truncateAll } from '../test-database';
-import { deriveMessageId } from '../../../src/lib/mail/mail';
-import { deliverDueMail, queueMail } from '../../../src/lib/mail/mail.service';
-import { startMailRelay, type RunningMailRelay } from '../../../src/lib/mail/relay';
-import { createMailTransport, type MailTransport } from '../../../src/lib/mail/transport';
+import { deriveMessageId } from '~/lib/mail/mail';
+import { deliverDueMail, queueMail } from '~/lib/mail/mail.service';
+import { startMailRelay, type RunningMailRelay } from '~/lib/mail/relay';
+import { createMailTransport, type MailTransport } from '~/lib/mail/transport';
 import { countReceived, pause, queueTestMail, testMail } from './mail-helpers';
 
 // The outbox and its delivery, driven directly (no pg-boss): the guarantees live here.

@@ -1,15 +1,15 @@
 import { afterAll, beforeAll, beforeEach, describe, expect, test } from 'vitest';
 import { openTestDb, TEST_DATABASE, truncateAll } from '../test-database';
-import { queueMail } from '../../../src/lib/mail/mail.service';
-import { startMailRelay, type RunningMailRelay } from '../../../src/lib/mail/relay';
-import { createMailTransport, type MailTransport } from '../../../src/lib/mail/transport';
-import { startJobQueue, stopJobQueue, type JobRegistration, type PgBoss } from '../../../src/lib/queue/job-queue';
-import { registerJobs } from '../../../src/lib/queue/jobs';
+import { queueMail } from '~/lib/mail/mail.service';
+import { startMailRelay, type RunningMailRelay } from '~/lib/mail/relay';
+import { createMailTransport, type MailTransport } from '~/lib/mail/transport';
+import { startJobQueue, stopJobQueue, type JobRegistration, type PgBoss } from '~/lib/queue/job-queue';
+import { registerJobs } from '~/lib/queue/jobs';
 import { countReceived, pause, queueTestMail, testMail, waitFor } from './mail-helpers';
 import { addMember, makeCrew, makeUser } from '../factories';
 import { makeAuthDeps } from '../auth/auth-test-deps';
-import { inviteMember } from '../../../src/lib/crews/crews.service';
-import { findMembership } from '../../../src/lib/crews/crews.repository';
+import { inviteMember } from '~/lib/crews/crews.service';
+import { findMembership } from '~/lib/crews/crews.repository';
 
 // The whole path as it runs in production: pg-boss on the real test database, the mail.flush job, a real
 // SMTP relay in-process on a free port. pg-boss gets its own schema so the dev queue is never touched.

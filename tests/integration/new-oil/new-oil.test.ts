@@ -1,14 +1,14 @@
 import { sql } from 'kysely';
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
-import { confirmLabImport, previewLabImport, storeLabFile } from '../../../src/lib/lab-import/lab-import.service';
+import { confirmLabImport, previewLabImport, storeLabFile } from '~/lib/lab-import/lab-import.service';
 import {
   createNewOilReference, deleteNewOilReference, describeMachineOil, listNewOilReferences, listProductsInUse, loadNewOilLookup, updateNewOilReference,
-} from '../../../src/lib/new-oil/new-oil.service';
-import type { Actor } from '../../../src/lib/machines/service-result';
+} from '~/lib/new-oil/new-oil.service';
+import type { Actor } from '~/lib/machines/service-result';
 import { openTestDb, truncateAll } from '../test-database';
 import { addActor, makeActor } from '../rider-fixtures';
 import { makeMachine } from '../factories';
-import { registerDrainCard } from '../../../src/lib/samples/samples.service';
+import { registerDrainCard } from '~/lib/samples/samples.service';
 import { bytesOf, makeSample } from '../lab-import/lab-import-fixtures';
 
 const db = openTestDb();

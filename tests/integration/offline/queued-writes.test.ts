@@ -4,16 +4,16 @@
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { openTestDb, truncateAll } from '../test-database';
 import { addActor, makeActor, MACHINE_450 } from '../rider-fixtures';
-import { collectMachineForm } from '../../../src/lib/machines/machines';
-import { readFormObject, type Actor } from '../../../src/lib/machines/service-result';
-import { createMachine } from '../../../src/lib/machines/machines.service';
-import { createOilChange } from '../../../src/lib/oil-changes/oil-changes.service';
-import { hasValidCheckSymbol } from '../../../src/lib/samples/bottle-code';
+import { collectMachineForm } from '~/lib/machines/machines';
+import { readFormObject, type Actor } from '~/lib/machines/service-result';
+import { createMachine } from '~/lib/machines/machines.service';
+import { createOilChange } from '~/lib/oil-changes/oil-changes.service';
+import { hasValidCheckSymbol } from '~/lib/samples/bottle-code';
 import {
   findSampleIdByBottleCode, issueBottleCode, registerDrainCard, reserveBottleCodes, RESERVED_BLOCK_SIZE, RESERVED_PER_RIDER,
-} from '../../../src/lib/samples/samples.service';
-import { addWearMeasurement, createWearPart } from '../../../src/lib/wear-parts/wear-parts.service';
-import { listPagesToKeep } from '../../../src/lib/offline/offline.service';
+} from '~/lib/samples/samples.service';
+import { addWearMeasurement, createWearPart } from '~/lib/wear-parts/wear-parts.service';
+import { listPagesToKeep } from '~/lib/offline/offline.service';
 
 const db = openTestDb();
 afterAll(() => db.destroy());

@@ -3,8 +3,8 @@ import { sql } from 'kysely';
 import { openTestDb, truncateAll } from '../test-database';
 import { addMember, makeCrew, makeMachine, makeUser } from '../factories';
 import { makeSample } from '../lab-import/lab-import-fixtures';
-import { loadCrewProgress } from '../../../src/lib/home/home.repository';
-import { firstSteps } from '../../../src/lib/home/home-cards';
+import { loadCrewProgress } from '~/lib/home/home.repository';
+import { firstSteps } from '~/lib/home/home-cards';
 
 const db = openTestDb();
 afterAll(() => db.destroy());

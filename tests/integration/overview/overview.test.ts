@@ -1,8 +1,8 @@
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { openTestDb, truncateAll } from '../test-database';
-import { DEFAULT_OVERVIEW_QUERY, OVERVIEW_PAGE_SIZE, type OverviewQuery } from '../../../src/lib/overview/overview';
-import { loadMachineSummary, loadOverview } from '../../../src/lib/overview/overview.service';
-import { loadCrewHome } from '../../../src/lib/home/home.service';
+import { DEFAULT_OVERVIEW_QUERY, OVERVIEW_PAGE_SIZE, type OverviewQuery } from '~/lib/overview/overview';
+import { loadMachineSummary, loadOverview } from '~/lib/overview/overview.service';
+import { loadCrewHome } from '~/lib/home/home.service';
 import { addSamples, makeCrewWithRoles } from '../trends/decision-fixtures';
 
 const db = openTestDb();

@@ -1,10 +1,10 @@
 import { sql } from 'kysely';
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
-import { ENGINE_VERSION } from '../../../src/lib/analysis';
-import { recomputeMachineFindings, recomputeStaleMachines } from '../../../src/lib/lab-import/lab-import.service';
-import { baselineChoiceSchema } from '../../../src/lib/reviews/reviews';
-import { changeSampleBaseline, loadBaselineStatus } from '../../../src/lib/reviews/reviews.service';
-import { listTrendSamples } from '../../../src/lib/trends/trends.repository';
+import { ENGINE_VERSION } from '~/lib/analysis';
+import { recomputeMachineFindings, recomputeStaleMachines } from '~/lib/lab-import/lab-import.service';
+import { baselineChoiceSchema } from '~/lib/reviews/reviews';
+import { changeSampleBaseline, loadBaselineStatus } from '~/lib/reviews/reviews.service';
+import { listTrendSamples } from '~/lib/trends/trends.repository';
 import { openTestDb, truncateAll } from '../test-database';
 import { addSamples, makeCrewWithRoles } from '../trends/decision-fixtures';
 

@@ -1,7 +1,7 @@
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { openTestDb, truncateAll } from '../test-database';
-import { addReviewNote, decideIntervalCall, loadSampleReview } from '../../../src/lib/reviews/reviews.service';
-import { callDecisionSchema } from '../../../src/lib/reviews/reviews';
+import { addReviewNote, decideIntervalCall, loadSampleReview } from '~/lib/reviews/reviews.service';
+import { callDecisionSchema } from '~/lib/reviews/reviews';
 import { addSamples, makeCrewWithRoles } from '../trends/decision-fixtures';
 
 const db = openTestDb();

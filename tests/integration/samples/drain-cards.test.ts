@@ -1,14 +1,14 @@
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { openTestDb, truncateAll } from '../test-database';
 import { addActor, countRiderRows, makeActor, MACHINE_450 } from '../rider-fixtures';
-import { collectMachineForm } from '../../../src/lib/machines/machines';
-import { readFormObject, type Actor } from '../../../src/lib/machines/service-result';
-import { createMachine } from '../../../src/lib/machines/machines.service';
-import { createOilChange } from '../../../src/lib/oil-changes/oil-changes.service';
-import { computeCheckSymbol } from '../../../src/lib/samples/bottle-code';
+import { collectMachineForm } from '~/lib/machines/machines';
+import { readFormObject, type Actor } from '~/lib/machines/service-result';
+import { createMachine } from '~/lib/machines/machines.service';
+import { createOilChange } from '~/lib/oil-changes/oil-changes.service';
+import { computeCheckSymbol } from '~/lib/samples/bottle-code';
 import {
   getSampleDetail, issueBottleCode, listSamplesByState, markSampleShipped, prefillDrainCard, recordSampleState, registerDrainCard,
-} from '../../../src/lib/samples/samples.service';
+} from '~/lib/samples/samples.service';
 
 const db = openTestDb();
 afterAll(() => db.destroy());

@@ -1,7 +1,7 @@
 // Builders for the decision tests: a machine's samples with readings, findings and calls straight into the
 // real tables (invented figures).
 import type { Kysely } from 'kysely';
-import type { Database, Level } from '../../../src/lib/db/database';
+import type { Database, Level } from '~/lib/db/database';
 import { addMember, makeCrew, makeMachine, makeUser } from '../factories';
 
 export interface SampleSpec {

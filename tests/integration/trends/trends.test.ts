@@ -1,8 +1,8 @@
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { openTestDb, truncateAll } from '../test-database';
-import { loadMachineTrends } from '../../../src/lib/trends/trends.service';
+import { loadMachineTrends } from '~/lib/trends/trends.service';
 import { addSamples, makeCrewWithRoles } from './decision-fixtures';
-import { recomputeMachineFindings } from '../../../src/lib/lab-import/lab-import.service';
+import { recomputeMachineFindings } from '~/lib/lab-import/lab-import.service';
 
 const db = openTestDb();
 afterAll(() => db.destroy());

@@ -1,10 +1,10 @@
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { openTestDb, truncateAll } from '../test-database';
 import { countRiderRows, makeActor, MACHINE_450 } from '../rider-fixtures';
-import { collectMachineForm } from '../../../src/lib/machines/machines';
-import { readFormObject } from '../../../src/lib/machines/service-result';
-import { createMachine } from '../../../src/lib/machines/machines.service';
-import { addWearMeasurement, createWearPart, getWearPartDetail } from '../../../src/lib/wear-parts/wear-parts.service';
+import { collectMachineForm } from '~/lib/machines/machines';
+import { readFormObject } from '~/lib/machines/service-result';
+import { createMachine } from '~/lib/machines/machines.service';
+import { addWearMeasurement, createWearPart, getWearPartDetail } from '~/lib/wear-parts/wear-parts.service';
 
 const db = openTestDb();
 afterAll(() => db.destroy());

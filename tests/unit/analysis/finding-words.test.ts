@@ -1,7 +1,7 @@
 import { describe, expect, test } from 'vitest';
-import { capitalise, describeFindingReason } from '../../../src/lib/analysis/finding-words';
-import { RULE_DEFINITIONS } from '../../../src/lib/analysis/rule-definitions';
-import type { RuleId } from '../../../src/lib/analysis/types';
+import { capitalise, describeFindingReason } from '~/lib/analysis/finding-words';
+import { RULE_DEFINITIONS } from '~/lib/analysis/rule-definitions';
+import type { RuleId } from '~/lib/analysis/types';
 
 // Every RuleId of types.ts; the `satisfies` makes a new rule a compile error here until it has a row.
 const EVERY_RULE = {

@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { firstSteps, groupFindingsByMachine, type CrewProgress, type OpenFinding } from '../../../src/lib/home/home-cards';
+import { firstSteps, groupFindingsByMachine, type CrewProgress, type OpenFinding } from '~/lib/home/home-cards';
 
 const f = (machine: string, level: 'watch' | 'act', rule: string, measurand: string | null, drawnOn = '2026-11-01'): OpenFinding => ({
   sample_id: `s-${machine}`, bottle_code: `B-${machine}`, drawn_on: drawnOn, machine_id: `m-${machine}`, machine_name: machine,

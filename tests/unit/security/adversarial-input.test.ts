@@ -6,9 +6,9 @@
 import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';
 import { findGradeWindow } from '~/lib/analysis/viscosity';
-import { parseDateCell, parseGlycolCell, parseReadingCell } from '~/lib/import/cell-values';
-import { isUnitCell, recogniseHeader } from '~/lib/import/column-recognition';
-import { parseLabCsv } from '~/lib/import/lab-csv';
+import { parseDateCell, parseGlycolCell, parseReadingCell } from '~/lib/lab-csv/cell-values';
+import { isUnitCell, recogniseHeader } from '~/lib/lab-csv/column-recognition';
+import { parseLabCsv } from '~/lib/lab-csv/lab-csv';
 import { parseSaeGrade } from '~/lib/oil-changes/sae-grade';
 import { explainIssuedCode, normaliseBottleCode } from '~/lib/samples/bottle-code';
 import { safeNextPath } from '~/lib/http/form';

@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { describeCallAuthor, describeOverdue, formatCount, meterLabel, pluralise } from '../../../src/lib/words/words';
+import { describeCallAuthor, describeOverdue, formatCount, meterLabel, pluralise } from '~/lib/words/words';
 
 describe('formatCount', () => {
   test.each([

@@ -1,6 +1,6 @@
 import type { APIRoute } from 'astro';
-import { requireApiUser } from '../../../lib/auth/guards';
-import { jsonOk } from '../../../lib/http/json';
+import { requireApiUser } from '~/lib/auth/guards';
+import { jsonOk } from '~/lib/http/json';
 
 /** The signed-in user, their current crew and all their crews. */
 export const GET: APIRoute = ({ locals }) => {

@@ -1,9 +1,9 @@
 import type { APIRoute } from 'astro';
-import { signInSchema } from '../../../lib/auth/auth';
-import { signIn } from '../../../lib/auth/auth.service';
-import { applySessionCookie, clientIp, getAuthDeps, isKnownDeviceFor, rememberKnownDevice } from '../../../lib/auth/deps';
-import { jsonOk, parseJsonBody } from '../../../lib/http/json';
-import { jsonFailure } from '../../../lib/http/responses';
+import { signInSchema } from '~/lib/auth/auth';
+import { signIn } from '~/lib/auth/auth.service';
+import { applySessionCookie, clientIp, getAuthDeps, isKnownDeviceFor, rememberKnownDevice } from '~/lib/auth/deps';
+import { jsonOk, parseJsonBody } from '~/lib/http/json';
+import { jsonFailure } from '~/lib/http/responses';
 
 /** Signs in with { email, password }; sets the session cookie. */
 export const POST: APIRoute = async (context) => {

@@ -1,7 +1,7 @@
 import type { APIRoute } from 'astro';
-import { signOut } from '../../../lib/auth/auth.service';
-import { applySessionCookie, clientIp, getAuthDeps } from '../../../lib/auth/deps';
-import { requireApiUser } from '../../../lib/auth/guards';
+import { signOut } from '~/lib/auth/auth.service';
+import { applySessionCookie, clientIp, getAuthDeps } from '~/lib/auth/deps';
+import { requireApiUser } from '~/lib/auth/guards';
 
 /** Ends the current session; 204. */
 export const POST: APIRoute = async (context) => {

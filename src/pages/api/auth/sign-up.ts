@@ -1,9 +1,9 @@
 import type { APIRoute } from 'astro';
-import { signUpSchema } from '../../../lib/auth/auth';
-import { signUp } from '../../../lib/auth/auth.service';
-import { applySessionCookie, clientIp, getAuthDeps } from '../../../lib/auth/deps';
-import { jsonOk, parseJsonBody } from '../../../lib/http/json';
-import { jsonFailure } from '../../../lib/http/responses';
+import { signUpSchema } from '~/lib/auth/auth';
+import { signUp } from '~/lib/auth/auth.service';
+import { applySessionCookie, clientIp, getAuthDeps } from '~/lib/auth/deps';
+import { jsonOk, parseJsonBody } from '~/lib/http/json';
+import { jsonFailure } from '~/lib/http/responses';
 
 /** Creates an account from { email, password, displayName?, invitation? }; 201 with the session cookie. */
 export const POST: APIRoute = async (context) => {

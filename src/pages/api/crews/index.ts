@@ -1,9 +1,9 @@
 import type { APIRoute } from 'astro';
-import { clientIp, getAuthDeps } from '../../../lib/auth/deps';
-import { requireApiUser } from '../../../lib/auth/guards';
-import { createCrewSchema } from '../../../lib/crews/crews';
-import { createCrew } from '../../../lib/crews/crews.service';
-import { jsonOk, parseJsonBody } from '../../../lib/http/json';
+import { clientIp, getAuthDeps } from '~/lib/auth/deps';
+import { requireApiUser } from '~/lib/auth/guards';
+import { createCrewSchema } from '~/lib/crews/crews';
+import { createCrew } from '~/lib/crews/crews.service';
+import { jsonOk, parseJsonBody } from '~/lib/http/json';
 
 /** The crews the user belongs to. */
 export const GET: APIRoute = ({ locals }) => {

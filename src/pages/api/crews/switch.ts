@@ -1,11 +1,11 @@
 import type { APIRoute } from 'astro';
-import { getAuthDeps } from '../../../lib/auth/deps';
-import { requireApiUser, signInRedirect } from '../../../lib/auth/guards';
-import { switchCrewSchema } from '../../../lib/crews/crews';
-import { switchCrew } from '../../../lib/crews/crews.service';
-import { formText, readForm, safeNextPath } from '../../../lib/http/form';
-import { jsonError, jsonOk, parseJsonBody } from '../../../lib/http/json';
-import { jsonFailure } from '../../../lib/http/responses';
+import { getAuthDeps } from '~/lib/auth/deps';
+import { requireApiUser, signInRedirect } from '~/lib/auth/guards';
+import { switchCrewSchema } from '~/lib/crews/crews';
+import { switchCrew } from '~/lib/crews/crews.service';
+import { formText, readForm, safeNextPath } from '~/lib/http/form';
+import { jsonError, jsonOk, parseJsonBody } from '~/lib/http/json';
+import { jsonFailure } from '~/lib/http/responses';
 
 /** Switches the session's crew: a plain form (crewId, next) redirects back; JSON { crewId } answers JSON. */
 export const POST: APIRoute = async (context) => {

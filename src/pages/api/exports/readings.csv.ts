@@ -1,10 +1,10 @@
 import type { APIRoute } from 'astro';
-import { getDb } from '../../../lib/db';
-import { canReadCrew } from '../../../lib/auth/permissions';
-import { jsonError } from '../../../lib/http/json';
-import { buildExportFileName, buildReadingsCsv } from '../../../lib/exports/readings-csv';
-import { listExportReadings } from '../../../lib/exports/exports.repository';
-import { findCrewMachine } from '../../../lib/trends/trends.repository';
+import { getDb } from '~/lib/db';
+import { canReadCrew } from '~/lib/auth/permissions';
+import { jsonError } from '~/lib/http/json';
+import { buildExportFileName, buildReadingsCsv } from '~/lib/exports/readings-csv';
+import { listExportReadings } from '~/lib/exports/exports.repository';
+import { findCrewMachine } from '~/lib/trends/trends.repository';
 
 /** GET /api/exports/readings.csv[?machine=<id>] — every reading of the crew, or of one machine, as CSV. */
 export const GET: APIRoute = async ({ url, locals }) => {

@@ -1,10 +1,10 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
-import { requireApiCrew } from '../../../lib/auth/guards';
-import { getDb } from '../../../lib/db';
-import { jsonOk, parseJsonBody } from '../../../lib/http/json';
-import { actorFrom, refusalJson } from '../../../lib/machines/page-context';
-import { deleteNewOilReference, getNewOilReference, updateNewOilReference } from '../../../lib/new-oil/new-oil.service';
+import { requireApiCrew } from '~/lib/auth/guards';
+import { getDb } from '~/lib/db';
+import { jsonOk, parseJsonBody } from '~/lib/http/json';
+import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { deleteNewOilReference, getNewOilReference, updateNewOilReference } from '~/lib/new-oil/new-oil.service';
 
 /** GET one new-oil reference of the crew. */
 export const GET: APIRoute = async ({ params, locals }) => {

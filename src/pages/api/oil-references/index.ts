@@ -1,10 +1,10 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
-import { requireApiCrew } from '../../../lib/auth/guards';
-import { getDb } from '../../../lib/db';
-import { jsonOk, parseJsonBody } from '../../../lib/http/json';
-import { actorFrom, refusalJson } from '../../../lib/machines/page-context';
-import { createNewOilReference, listNewOilReferences } from '../../../lib/new-oil/new-oil.service';
+import { requireApiCrew } from '~/lib/auth/guards';
+import { getDb } from '~/lib/db';
+import { jsonOk, parseJsonBody } from '~/lib/http/json';
+import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { createNewOilReference, listNewOilReferences } from '~/lib/new-oil/new-oil.service';
 
 /** GET the crew's new-oil references. */
 export const GET: APIRoute = async ({ locals }) => {

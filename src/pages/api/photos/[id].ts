@@ -1,11 +1,11 @@
 import type { APIRoute } from 'astro';
 import { readFile } from 'node:fs/promises';
-import { requireApiUser } from '../../../lib/auth/guards';
-import { getConfig } from '../../../lib/config';
-import { getDb } from '../../../lib/db';
-import { refusalJson } from '../../../lib/machines/page-context';
-import { getPhotoForMember } from '../../../lib/photos/photos.service';
-import { photoPath } from '../../../lib/photos/photos.storage';
+import { requireApiUser } from '~/lib/auth/guards';
+import { getConfig } from '~/lib/config';
+import { getDb } from '~/lib/db';
+import { refusalJson } from '~/lib/machines/page-context';
+import { getPhotoForMember } from '~/lib/photos/photos.service';
+import { photoPath } from '~/lib/photos/photos.storage';
 
 /** GET a photo: members of its crew only; content-addressed, so cached privately for a year. */
 export const GET: APIRoute = async ({ params, request, locals }) => {

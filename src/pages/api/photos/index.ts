@@ -1,13 +1,13 @@
 import type { APIRoute } from 'astro';
-import { requireApiCrew } from '../../../lib/auth/guards';
-import { getConfig } from '../../../lib/config';
-import { getDb } from '../../../lib/db';
-import { jsonError, jsonOk } from '../../../lib/http/json';
-import { readMultipartForm } from '../../../lib/http/form';
-import { actorFrom, refusalJson } from '../../../lib/machines/page-context';
-import { PHOTO_MAX_BYTES } from '../../../lib/photos/photos';
-import { uploadPhoto } from '../../../lib/photos/photos.service';
-import { PhotoStorageError } from '../../../lib/photos/photos.storage';
+import { requireApiCrew } from '~/lib/auth/guards';
+import { getConfig } from '~/lib/config';
+import { getDb } from '~/lib/db';
+import { jsonError, jsonOk } from '~/lib/http/json';
+import { readMultipartForm } from '~/lib/http/form';
+import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { PHOTO_MAX_BYTES } from '~/lib/photos/photos';
+import { uploadPhoto } from '~/lib/photos/photos.service';
+import { PhotoStorageError } from '~/lib/photos/photos.storage';
 
 /** Room for the multipart envelope around one photo. */
 const ENVELOPE_BYTES = 64 * 1024;

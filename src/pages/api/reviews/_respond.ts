@@ -1,8 +1,8 @@
 /** Shared answers of the review endpoints: JSON for scripts and the island, 303 redirects for plain HTML forms. */
-import { signInRedirect } from '../../../lib/auth/guards';
-import { readForm } from '../../../lib/http/form';
-import { rewriteToNotFoundPage } from '../../../lib/http/not-found';
-import { fieldErrorsFrom, jsonError, jsonOk, parseJsonBody } from '../../../lib/http/json';
+import { signInRedirect } from '~/lib/auth/guards';
+import { readForm } from '~/lib/http/form';
+import { rewriteToNotFoundPage } from '~/lib/http/not-found';
+import { fieldErrorsFrom, jsonError, jsonOk, parseJsonBody } from '~/lib/http/json';
 import type { APIContext } from 'astro';
 import type { z } from 'zod';
 

@@ -1,13 +1,13 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
-import { requireApiCrew } from '../../../lib/auth/guards';
-import { getDb } from '../../../lib/db';
-import type { SampleState } from '../../../lib/db/database';
-import { jsonError, jsonOk, parseJsonBody } from '../../../lib/http/json';
-import { refuseQueuedWriteOfOtherCrew } from '../../../lib/http/queued-write';
-import { actorFrom, refusalJson } from '../../../lib/machines/page-context';
-import { SAMPLE_STATES } from '../../../lib/samples/samples';
-import { listSamplesByState, registerDrainCard } from '../../../lib/samples/samples.service';
+import { requireApiCrew } from '~/lib/auth/guards';
+import { getDb } from '~/lib/db';
+import type { SampleState } from '~/lib/db/database';
+import { jsonError, jsonOk, parseJsonBody } from '~/lib/http/json';
+import { refuseQueuedWriteOfOtherCrew } from '~/lib/http/queued-write';
+import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { SAMPLE_STATES } from '~/lib/samples/samples';
+import { listSamplesByState, registerDrainCard } from '~/lib/samples/samples.service';
 
 /** GET ?state=drawn|shipped|results_in|reviewed: the crew's samples and the count in each state. */
 export const GET: APIRoute = async ({ locals, url }) => {

@@ -1,11 +1,11 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
-import { requireApiCrew } from '../../../lib/auth/guards';
-import { getDb } from '../../../lib/db';
-import { jsonOk, parseJsonBody } from '../../../lib/http/json';
-import { actorFrom, refusalJson } from '../../../lib/machines/page-context';
-import { formatIssuedCode } from '../../../lib/samples/bottle-code';
-import { reserveBottleCodes } from '../../../lib/samples/samples.service';
+import { requireApiCrew } from '~/lib/auth/guards';
+import { getDb } from '~/lib/db';
+import { jsonOk, parseJsonBody } from '~/lib/http/json';
+import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { formatIssuedCode } from '~/lib/samples/bottle-code';
+import { reserveBottleCodes } from '~/lib/samples/samples.service';
 
 const bodySchema = z.object({ deviceKey: z.string().regex(/^[A-Za-z0-9_-]{8,64}$/, 'Not a valid device key.') });
 

@@ -1,9 +1,9 @@
 import type { APIRoute } from 'astro';
-import { getDb } from '../../../lib/db';
-import { canReadCrew } from '../../../lib/auth/permissions';
-import { fieldErrorsFrom, jsonError, jsonOk } from '../../../lib/http/json';
-import { trendQuerySchema } from '../../../lib/trends/trends';
-import { loadMachineTrends } from '../../../lib/trends/trends.service';
+import { getDb } from '~/lib/db';
+import { canReadCrew } from '~/lib/auth/permissions';
+import { fieldErrorsFrom, jsonError, jsonOk } from '~/lib/http/json';
+import { trendQuerySchema } from '~/lib/trends/trends';
+import { loadMachineTrends } from '~/lib/trends/trends.service';
 
 /** GET /api/trends/[machineId]?measurands=Fe,Al&basis=ppm|rate&x=odometer|date — the wear chart's data. */
 export const GET: APIRoute = async ({ params, url, locals }) => {

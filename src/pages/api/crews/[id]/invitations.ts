@@ -1,10 +1,10 @@
 import type { APIRoute } from 'astro';
-import { clientIp, getAuthDeps } from '../../../../lib/auth/deps';
-import { requireApiUser } from '../../../../lib/auth/guards';
-import { inviteSchema } from '../../../../lib/crews/crews';
-import { findCrewForUser, inviteMember } from '../../../../lib/crews/crews.service';
-import { jsonError, jsonOk, parseJsonBody } from '../../../../lib/http/json';
-import { jsonFailure } from '../../../../lib/http/responses';
+import { clientIp, getAuthDeps } from '~/lib/auth/deps';
+import { requireApiUser } from '~/lib/auth/guards';
+import { inviteSchema } from '~/lib/crews/crews';
+import { findCrewForUser, inviteMember } from '~/lib/crews/crews.service';
+import { jsonError, jsonOk, parseJsonBody } from '~/lib/http/json';
+import { jsonFailure } from '~/lib/http/responses';
 
 /** A lead invites { email, role } to the crew; 201 with the invitation id (the link goes only by e-mail). */
 export const POST: APIRoute = async (context) => {

@@ -1,14 +1,14 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
-import { requireApiCrew } from '../../../../lib/auth/guards';
-import { getConfig } from '../../../../lib/config';
-import { getDb } from '../../../../lib/db';
-import { jsonError, jsonOk, parseJsonBody } from '../../../../lib/http/json';
-import { refuseQueuedWriteOfOtherCrew } from '../../../../lib/http/queued-write';
-import { actorFrom, refusalJson } from '../../../../lib/machines/page-context';
-import { readOilChangeUpload } from '../../../../lib/oil-changes/oil-change-upload';
-import { createOilChange, listOilChanges } from '../../../../lib/oil-changes/oil-changes.service';
-import { PhotoStorageError } from '../../../../lib/photos/photos.storage';
+import { requireApiCrew } from '~/lib/auth/guards';
+import { getConfig } from '~/lib/config';
+import { getDb } from '~/lib/db';
+import { jsonError, jsonOk, parseJsonBody } from '~/lib/http/json';
+import { refuseQueuedWriteOfOtherCrew } from '~/lib/http/queued-write';
+import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { readOilChangeUpload } from '~/lib/oil-changes/oil-change-upload';
+import { createOilChange, listOilChanges } from '~/lib/oil-changes/oil-changes.service';
+import { PhotoStorageError } from '~/lib/photos/photos.storage';
 
 /** GET the machine's oil changes, newest first, with the distance since the previous one. */
 export const GET: APIRoute = async ({ params, locals }) => {

@@ -1,8 +1,8 @@
 import type { APIRoute } from 'astro';
-import { clientIp } from '../../../../lib/auth/deps';
-import { getDb } from '../../../../lib/db';
-import { baselineChoiceSchema } from '../../../../lib/reviews/reviews';
-import { changeSampleBaseline } from '../../../../lib/reviews/reviews.service';
+import { clientIp } from '~/lib/auth/deps';
+import { getDb } from '~/lib/db';
+import { baselineChoiceSchema } from '~/lib/reviews/reviews';
+import { changeSampleBaseline } from '~/lib/reviews/reviews.service';
 import { STATUS, failure, readReviewBody, refuseSignedOut, success } from '../_respond';
 
 /** POST /api/reviews/[sampleId]/baseline — take a sample out of its machine's baseline, or put it back, with a reason. */

@@ -1,7 +1,7 @@
 import type { APIRoute } from 'astro';
-import { getDb } from '../../../../lib/db';
-import { callDecisionSchema } from '../../../../lib/reviews/reviews';
-import { decideIntervalCall } from '../../../../lib/reviews/reviews.service';
+import { getDb } from '~/lib/db';
+import { callDecisionSchema } from '~/lib/reviews/reviews';
+import { decideIntervalCall } from '~/lib/reviews/reviews.service';
 import { STATUS, failure, readReviewBody, refuseSignedOut, success } from '../_respond';
 
 /** POST /api/reviews/[sampleId]/call — confirm the interval call, or override it with a note. */

@@ -1,7 +1,7 @@
 import type { APIRoute } from 'astro';
-import { getDb } from '../../../../lib/db';
-import { reviewNoteSchema } from '../../../../lib/reviews/reviews';
-import { addReviewNote } from '../../../../lib/reviews/reviews.service';
+import { getDb } from '~/lib/db';
+import { reviewNoteSchema } from '~/lib/reviews/reviews';
+import { addReviewNote } from '~/lib/reviews/reviews.service';
 import { STATUS, failure, readReviewBody, refuseSignedOut, success } from '../_respond';
 
 /** POST /api/reviews/[sampleId]/notes — a mechanic's or lead's note (JSON, or a plain form that comes back to the page). */

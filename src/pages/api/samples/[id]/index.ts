@@ -1,9 +1,9 @@
 import type { APIRoute } from 'astro';
-import { requireApiCrew } from '../../../../lib/auth/guards';
-import { getDb } from '../../../../lib/db';
-import { jsonOk } from '../../../../lib/http/json';
-import { actorFrom, refusalJson } from '../../../../lib/machines/page-context';
-import { getSampleDetail } from '../../../../lib/samples/samples.service';
+import { requireApiCrew } from '~/lib/auth/guards';
+import { getDb } from '~/lib/db';
+import { jsonOk } from '~/lib/http/json';
+import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { getSampleDetail } from '~/lib/samples/samples.service';
 
 /** GET one sample of the crew with its state history. */
 export const GET: APIRoute = async ({ params, locals }) => {

@@ -1,10 +1,10 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
-import { requireApiCrew } from '../../../../lib/auth/guards';
-import { getDb } from '../../../../lib/db';
-import { jsonOk, parseJsonBody } from '../../../../lib/http/json';
-import { actorFrom, refusalJson } from '../../../../lib/machines/page-context';
-import { markSampleShipped } from '../../../../lib/samples/samples.service';
+import { requireApiCrew } from '~/lib/auth/guards';
+import { getDb } from '~/lib/db';
+import { jsonOk, parseJsonBody } from '~/lib/http/json';
+import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { markSampleShipped } from '~/lib/samples/samples.service';
 
 /** POST { trackingNote? }: marks a drawn sample shipped. */
 export const POST: APIRoute = async ({ params, request, locals }) => {

@@ -1,11 +1,11 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
-import { requireApiCrew } from '../../../../lib/auth/guards';
-import { getDb } from '../../../../lib/db';
-import { jsonOk, parseJsonBody } from '../../../../lib/http/json';
-import { refuseQueuedWriteOfOtherCrew } from '../../../../lib/http/queued-write';
-import { actorFrom, refusalJson } from '../../../../lib/machines/page-context';
-import { addWearMeasurement } from '../../../../lib/wear-parts/wear-parts.service';
+import { requireApiCrew } from '~/lib/auth/guards';
+import { getDb } from '~/lib/db';
+import { jsonOk, parseJsonBody } from '~/lib/http/json';
+import { refuseQueuedWriteOfOtherCrew } from '~/lib/http/queued-write';
+import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { addWearMeasurement } from '~/lib/wear-parts/wear-parts.service';
 
 /** POST a wear-part measurement (JSON, the fields of the measurement form). A resend with the same clientKey writes nothing new. */
 export const POST: APIRoute = async ({ params, request, locals }) => {

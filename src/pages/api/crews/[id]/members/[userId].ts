@@ -1,10 +1,10 @@
 import type { APIRoute } from 'astro';
-import { clientIp, getAuthDeps } from '../../../../../lib/auth/deps';
-import { requireApiUser } from '../../../../../lib/auth/guards';
-import { changeRoleSchema } from '../../../../../lib/crews/crews';
-import { changeMemberRole, findCrewForUser, removeMember } from '../../../../../lib/crews/crews.service';
-import { jsonError, parseJsonBody } from '../../../../../lib/http/json';
-import { jsonFailure } from '../../../../../lib/http/responses';
+import { clientIp, getAuthDeps } from '~/lib/auth/deps';
+import { requireApiUser } from '~/lib/auth/guards';
+import { changeRoleSchema } from '~/lib/crews/crews';
+import { changeMemberRole, findCrewForUser, removeMember } from '~/lib/crews/crews.service';
+import { jsonError, parseJsonBody } from '~/lib/http/json';
+import { jsonFailure } from '~/lib/http/responses';
 
 async function actorFor(context: Parameters<APIRoute>[0]) {
   const user = requireApiUser(context.locals);

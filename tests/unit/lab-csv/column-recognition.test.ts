@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { isUnitCell, recogniseHeader } from '~/lib/import/column-recognition';
+import { isUnitCell, recogniseHeader } from '~/lib/lab-csv/column-recognition';
 import { ELEMENT_CODES } from '~/lib/analysis/measurands';
 
 // Element names and symbols: the ASTM D5185 element set (PRODUCT.md's measurand list).

@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, test } from 'vitest';
-import { decodeLabFile, MAX_LAB_FILE_BYTES, parseLabCsv, type LabCsvResult } from '~/lib/import/lab-csv';
+import { decodeLabFile, MAX_LAB_FILE_BYTES, parseLabCsv, type LabCsvResult } from '~/lib/lab-csv/lab-csv';
 
 const FIXTURES = fileURLToPath(new URL('../../fixtures/lab-csv/', import.meta.url));
 

@@ -1,7 +1,7 @@
 import { describe, expect, test } from 'vitest';
-import { recogniseHeader } from '~/lib/import/column-recognition';
-import { detectHeaderLanguages, HEADER_LANGUAGES, HEADER_TERMS, parseLocalMonthDate, translateHeader, type HeaderLanguage } from '~/lib/import/header-dictionary';
-import { parseLabCsv } from '~/lib/import/lab-csv';
+import { recogniseHeader } from '~/lib/lab-csv/column-recognition';
+import { detectHeaderLanguages, HEADER_LANGUAGES, HEADER_TERMS, parseLocalMonthDate, translateHeader, type HeaderLanguage } from '~/lib/lab-csv/header-dictionary';
+import { parseLabCsv } from '~/lib/lab-csv/lab-csv';
 
 // One small report per language, as a lab there might write it (invented layouts; decimal commas and
 // day-first dates where the language uses them). Each must read to the same bottles and readings.

@@ -3,8 +3,8 @@ import { fileURLToPath } from 'node:url';
 import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';
 import { ELEMENT_CODES, type MeasurandCode } from '~/lib/analysis/measurands';
-import { decodeLabFile, parseLabCsv, type LabReadings } from '~/lib/import/lab-csv';
-import { formatLabCsv, LAB_CSV_LAYOUTS, type LabCsvLayout, type LabReportRow } from '~/lib/import/lab-csv-layouts';
+import { decodeLabFile, parseLabCsv, type LabReadings } from '~/lib/lab-csv/lab-csv';
+import { formatLabCsv, LAB_CSV_LAYOUTS, type LabCsvLayout, type LabReportRow } from '~/lib/lab-csv/lab-csv-layouts';
 
 const SAMPLE_LABS = fileURLToPath(new URL('../../../sample-data/labs/', import.meta.url));
 

@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { isFormulaLikeCell, neutraliseCsvCell } from '~/lib/import/csv-cell';
+import { isFormulaLikeCell, neutraliseCsvCell } from '~/lib/lab-csv/csv-cell';
 
 // Formula-start characters from OWASP "CSV Injection": = + - @ tab carriage return.
 describe('neutraliseCsvCell', () => {

@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { parseLabCsv, type LabCsvResult } from '~/lib/import/lab-csv';
+import { parseLabCsv, type LabCsvResult } from '~/lib/lab-csv/lab-csv';
 
 const errors = (r: LabCsvResult) => r.errors.filter((e) => e.severity === 'error');
 

@@ -1,6 +1,6 @@
 import { describe, expect, test } from 'vitest';
-import { parseLabCsv } from '~/lib/import/lab-csv';
-import { isFooterRow, isRepeatedHeader } from '~/lib/import/page-furniture';
+import { parseLabCsv } from '~/lib/lab-csv/lab-csv';
+import { isFooterRow, isRepeatedHeader } from '~/lib/lab-csv/page-furniture';
 
 describe('footers, repeated headers and blank separators', () => {
   // A report printed over two pages: header and units row again on page 2, blank lines, a page mark and a footer.

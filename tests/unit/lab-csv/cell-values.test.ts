@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { parseDateCell, parseGlycolCell, parseReadingCell } from '~/lib/import/cell-values';
+import { parseDateCell, parseGlycolCell, parseReadingCell } from '~/lib/lab-csv/cell-values';
 
 describe('parseReadingCell', () => {
   test.each([

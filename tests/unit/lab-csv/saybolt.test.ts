@@ -1,6 +1,6 @@
 import { describe, expect, test } from 'vitest';
-import { computeSayboltSeconds, convertSayboltToKinematic, describeSayboltConvention } from '~/lib/import/saybolt';
-import { parseLabCsv } from '~/lib/import/lab-csv';
+import { computeSayboltSeconds, convertSayboltToKinematic, describeSayboltConvention } from '~/lib/lab-csv/saybolt';
+import { parseLabCsv } from '~/lib/lab-csv/lab-csv';
 
 /** ASTM D2161 equation restated independently of the module, so the tests check the module against it. */
 function d2161(nu: number, tempF: number): number {

@@ -1,8 +1,8 @@
 import { deflateRawSync } from 'node:zlib';
 import ExcelJS from 'exceljs';
 import { describe, expect, test } from 'vitest';
-import { parseLabCsv } from '~/lib/import/lab-csv';
-import { checkWorkbookArchive, formatSheetCell, formatSheetNumber, readLabFileBytes } from '~/lib/import/lab-xlsx';
+import { parseLabCsv } from '~/lib/lab-csv/lab-csv';
+import { checkWorkbookArchive, formatSheetCell, formatSheetNumber, readLabFileBytes } from '~/lib/lab-csv/lab-xlsx';
 
 type Rows = ExcelJS.CellValue[][];
 
