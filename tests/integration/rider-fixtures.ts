@@ -1,6 +1,6 @@
 import type { Kysely } from 'kysely';
 import type { Database, Role } from '~/lib/db/database';
-import type { Actor } from '~/lib/machines/service-result';
+import type { Actor } from '~/lib/http/result';
 import { addMember, makeCrew, makeUser } from './factories';
 
 /** A crew with one member of the given role, as the services' Actor. */

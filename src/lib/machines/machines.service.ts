@@ -6,7 +6,7 @@ import { machineInputSchema, parseGradeRows, toMachine, type Machine } from './m
 import {
   countMachineRecords, deleteMachineRow, findMachineOfCrew, findMachinesOfCrew, insertMachine, updateMachineRow,
 } from './machines.repository';
-import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type ServiceResult } from './service-result';
+import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type ServiceResult } from '~/lib/http/result';
 import { formatCount } from '../words/words';
 
 /** The crew's machines for a member (archived ones too when asked). */

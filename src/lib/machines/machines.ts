@@ -2,7 +2,7 @@ import { z } from 'zod';
 import type { MachineRow, RecommendedGrade } from '../db/database';
 import { parseSaeGrade } from '../oil-changes/sae-grade';
 import { fromCelsius, fromStoredMeter, toCelsius, type MeterUnit, type TemperatureUnit } from '../units/units';
-import { checkbox, optionalNumber, text } from './form-values';
+import { checkbox, optionalNumber, text } from '~/lib/http/form-values';
 
 export const ENGINE_LAYOUTS = ['single', 'twin', 'triple', 'four', 'other'] as const;
 export const COOLINGS = ['air', 'oil', 'liquid'] as const;

@@ -7,7 +7,7 @@ import { recordAuditEvent } from '../audit/audit.repository';
 import { canRecordNewOilReference } from '../auth/permissions';
 import type { Database, NewOilReadingJson } from '../db/database';
 import { isUuid } from '../machines/machines.repository';
-import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type ServiceResult } from '../machines/service-result';
+import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type ServiceResult } from '~/lib/http/result';
 import { parseSaeGrade } from '../oil-changes/sae-grade';
 import { normaliseBottleCode } from '../samples/bottle-code';
 import type { LabReadings } from '../lab-csv/lab-csv';

@@ -8,7 +8,7 @@ import { getMeasurand, isMeasurandCode, type MeasurandCode } from '../analysis/m
 import type { Reading, SamplePoint } from '../analysis/types';
 import { viscosityIndex } from '../analysis/viscosity';
 import type { NewOilReferenceRow } from '../db/database';
-import { text } from '../machines/form-values';
+import { text } from '~/lib/http/form-values';
 import { normaliseBottleCode } from '../samples/bottle-code';
 
 export type NewOilSource = 'lab' | 'data-sheet';

@@ -1,5 +1,5 @@
 import { readBodyBytes } from '../http/json';
-import { readFormObject } from '../machines/service-result';
+import { readFormObject } from '~/lib/http/result';
 import { PHOTO_MAX_BYTES, preparePhoto, type PreparedPhoto } from '../photos/photos';
 
 /** One multipart oil change carries at most this many photos (the uploader sends them one by one instead). */

@@ -1,7 +1,7 @@
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
 import { canActorEdit, getMachine } from '../machines/machines.service';
-import { refuse, refuseInvalid, succeed, type Actor, type FieldErrors, type ServiceResult } from '../machines/service-result';
+import { refuse, refuseInvalid, succeed, type Actor, type FieldErrors, type ServiceResult } from '~/lib/http/result';
 import type { PreparedPhoto } from '../photos/photos';
 import { attachPhotos, findPhotosOfOilChanges, type PhotoRow } from '../photos/photos.repository';
 import { storePreparedPhoto } from '../photos/photos.service';

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import type { OilChangeRow } from '../db/database';
-import { checkbox, optionalNumber, pastDay, requiredNumber, text } from '../machines/form-values';
+import { checkbox, optionalNumber, pastDay, requiredNumber, text } from '~/lib/http/form-values';
 import type { MeterUnit } from '../units/units';
 import { clientKeySchema } from '../offline/client-key';
 

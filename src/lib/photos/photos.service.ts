@@ -2,7 +2,7 @@ import type { Kysely, Transaction } from 'kysely';
 import type { Database } from '../db/database';
 import { canReadCrew } from '../auth/permissions';
 import type { CrewMembership } from '../auth/types';
-import { refuse, refuseNotFound, succeed, type Actor, type ServiceResult } from '../machines/service-result';
+import { refuse, refuseNotFound, succeed, type Actor, type ServiceResult } from '~/lib/http/result';
 import { preparePhoto, type PreparedPhoto } from './photos';
 import { findPhotoOfCrews, insertPhoto, type PhotoRow } from './photos.repository';
 import { writePhotoFile } from './photos.storage';

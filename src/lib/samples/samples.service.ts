@@ -2,7 +2,7 @@ import type { Kysely, Transaction } from 'kysely';
 import type { Database, SampleState } from '../db/database';
 import { canCreateMachine, canReadCrew } from '../auth/permissions';
 import { canActorEdit, getMachine } from '../machines/machines.service';
-import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type FieldErrors, type ServiceResult } from '../machines/service-result';
+import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type FieldErrors, type ServiceResult } from '~/lib/http/result';
 import { explainAbsurdOdometer, toOilChange, type OilChange } from '../oil-changes/oil-changes';
 import { findLatestOilChange, findOilChangesOfMachine } from '../oil-changes/oil-changes.repository';
 import { parseSaeGrade } from '../oil-changes/sae-grade';

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import type { SampleRow, SampleState } from '../db/database';
-import { optionalNumber, pastDay, requiredNumber, text } from '../machines/form-values';
+import { optionalNumber, pastDay, requiredNumber, text } from '~/lib/http/form-values';
 import { clientKeySchema } from '../offline/client-key';
 
 export const SAMPLE_STATES: readonly SampleState[] = ['drawn', 'shipped', 'results_in', 'reviewed'];

@@ -3,7 +3,7 @@ import type { Database } from '../db/database';
 import { forecastWearLimit, type WearForecast } from '../analysis/wear-forecast';
 import { canActorEdit, getMachine } from '../machines/machines.service';
 import { isUuid } from '../machines/machines.repository';
-import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type ServiceResult } from '../machines/service-result';
+import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type ServiceResult } from '~/lib/http/result';
 import { explainAbsurdOdometer } from '../oil-changes/oil-changes';
 import { fromMillimetres, fromStoredMeter, toMillimetres, toStoredMeter, type MeterUnit } from '../units/units';
 import { formatCount } from '../words/words';

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import type { WearMeasurementRow, WearPartRow } from '../db/database';
-import { optionalNumber, pastDay, requiredNumber, text } from '../machines/form-values';
+import { optionalNumber, pastDay, requiredNumber, text } from '~/lib/http/form-values';
 import type { LengthUnit } from '../units/units';
 import { clientKeySchema } from '../offline/client-key';
 

@@ -5,7 +5,7 @@ import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { openTestDb, truncateAll } from '../test-database';
 import { addActor, makeActor, MACHINE_450 } from '../rider-fixtures';
 import { collectMachineForm } from '~/lib/machines/machines';
-import { readFormObject, type Actor } from '~/lib/machines/service-result';
+import { readFormObject, type Actor } from '~/lib/http/result';
 import { createMachine } from '~/lib/machines/machines.service';
 import { createOilChange } from '~/lib/oil-changes/oil-changes.service';
 import { hasValidCheckSymbol } from '~/lib/samples/bottle-code';

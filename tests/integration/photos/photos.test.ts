@@ -6,7 +6,7 @@ import { PNG } from 'pngjs';
 import { openTestDb, truncateAll } from '../test-database';
 import { countRiderRows, makeActor, MACHINE_450 } from '../rider-fixtures';
 import { collectMachineForm } from '~/lib/machines/machines';
-import { readFormObject } from '~/lib/machines/service-result';
+import { readFormObject } from '~/lib/http/result';
 import { createMachine } from '~/lib/machines/machines.service';
 import { createOilChange, listOilChanges } from '~/lib/oil-changes/oil-changes.service';
 import { preparePhoto } from '~/lib/photos/photos';

@@ -2,7 +2,7 @@ import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { openTestDb, truncateAll } from '../test-database';
 import { countRiderRows, makeActor, MACHINE_450 } from '../rider-fixtures';
 import { collectMachineForm } from '~/lib/machines/machines';
-import { readFormObject } from '~/lib/machines/service-result';
+import { readFormObject } from '~/lib/http/result';
 import { createMachine } from '~/lib/machines/machines.service';
 import { addWearMeasurement, createWearPart, getWearPartDetail } from '~/lib/wear-parts/wear-parts.service';
 

@@ -4,7 +4,7 @@ import { requireApiCrew } from '~/lib/auth/guards';
 import { getDb } from '~/lib/db';
 import { jsonOk, parseJsonBody } from '~/lib/http/json';
 import { createMachine, listMachines } from '~/lib/machines/machines.service';
-import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { actorFrom, refusalJson } from '~/lib/http/page-context';
 
 /** GET the crew's machines (?archived=1 to include archived ones). */
 export const GET: APIRoute = async ({ locals, url }) => {

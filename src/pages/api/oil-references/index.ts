@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { requireApiCrew } from '~/lib/auth/guards';
 import { getDb } from '~/lib/db';
 import { jsonOk, parseJsonBody } from '~/lib/http/json';
-import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { actorFrom, refusalJson } from '~/lib/http/page-context';
 import { createNewOilReference, listNewOilReferences } from '~/lib/new-oil/new-oil.service';
 
 /** GET the crew's new-oil references. */

@@ -3,7 +3,7 @@ import { readFile } from 'node:fs/promises';
 import { requireApiUser } from '~/lib/auth/guards';
 import { getConfig } from '~/lib/config';
 import { getDb } from '~/lib/db';
-import { refusalJson } from '~/lib/machines/page-context';
+import { refusalJson } from '~/lib/http/page-context';
 import { getPhotoForMember } from '~/lib/photos/photos.service';
 import { photoPath } from '~/lib/photos/photos.storage';
 

@@ -4,7 +4,7 @@ import { getConfig } from '~/lib/config';
 import { getDb } from '~/lib/db';
 import { jsonError, jsonOk } from '~/lib/http/json';
 import { readMultipartForm } from '~/lib/http/form';
-import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { actorFrom, refusalJson } from '~/lib/http/page-context';
 import { PHOTO_MAX_BYTES } from '~/lib/photos/photos';
 import { uploadPhoto } from '~/lib/photos/photos.service';
 import { PhotoStorageError } from '~/lib/photos/photos.storage';

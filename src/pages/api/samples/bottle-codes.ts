@@ -5,7 +5,7 @@ import { getDb } from '~/lib/db';
 import { jsonError, jsonOk } from '~/lib/http/json';
 import { formatIssuedCode } from '~/lib/samples/bottle-code';
 import { issueBottleCode } from '~/lib/samples/samples.service';
-import { actorFrom } from '~/lib/machines/page-context';
+import { actorFrom } from '~/lib/http/page-context';
 
 /** POST: a fresh Sumpwise bottle code, unused in the crew (with its check character). */
 export const POST: APIRoute = async ({ locals }) => {

@@ -5,7 +5,7 @@ import { getDb } from '~/lib/db';
 import type { SampleState } from '~/lib/db/database';
 import { jsonError, jsonOk, parseJsonBody } from '~/lib/http/json';
 import { refuseQueuedWriteOfOtherCrew } from '~/lib/http/queued-write';
-import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { actorFrom, refusalJson } from '~/lib/http/page-context';
 import { SAMPLE_STATES } from '~/lib/samples/samples';
 import { listSamplesByState, registerDrainCard } from '~/lib/samples/samples.service';
 

@@ -4,7 +4,7 @@ import { requireApiCrew } from '~/lib/auth/guards';
 import { getDb } from '~/lib/db';
 import { jsonOk, parseJsonBody } from '~/lib/http/json';
 import { deleteMachine, getMachine, setMachineArchived, updateMachine } from '~/lib/machines/machines.service';
-import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { actorFrom, refusalJson } from '~/lib/http/page-context';
 
 /** GET one machine of the crew (another crew's id answers 404). */
 export const GET: APIRoute = async ({ params, locals }) => {

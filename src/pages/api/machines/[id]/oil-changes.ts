@@ -5,7 +5,7 @@ import { getConfig } from '~/lib/config';
 import { getDb } from '~/lib/db';
 import { jsonError, jsonOk, parseJsonBody } from '~/lib/http/json';
 import { refuseQueuedWriteOfOtherCrew } from '~/lib/http/queued-write';
-import { actorFrom, refusalJson } from '~/lib/machines/page-context';
+import { actorFrom, refusalJson } from '~/lib/http/page-context';
 import { readOilChangeUpload } from '~/lib/oil-changes/oil-change-upload';
 import { createOilChange, listOilChanges } from '~/lib/oil-changes/oil-changes.service';
 import { PhotoStorageError } from '~/lib/photos/photos.storage';

@@ -3,10 +3,10 @@ import type { CrewMembership, SessionUser } from '../auth/types';
 import { requireCrew } from '../auth/guards';
 import { getDb } from '../db';
 import type { Database } from '../db/database';
-import { forbiddenPage } from '../http/forbidden';
-import { canActorEdit, getMachine } from './machines.service';
-import { notFoundPage } from '../http/not-found';
-import type { Actor, Refusal } from './service-result';
+import { forbiddenPage } from './forbidden';
+import { canActorEdit, getMachine } from '~/lib/machines/machines.service';
+import { notFoundPage } from './not-found';
+import type { Actor, Refusal } from './result';
 
 /** The services' actor for a signed-in user working in a crew. */
 export function actorFrom(g: { user: SessionUser; crew: CrewMembership }): Actor {
