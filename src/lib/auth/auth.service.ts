@@ -14,7 +14,7 @@ import type { ChangePasswordInput, SignInInput, SignUpInput, UnitsInput } from '
 import { composePasswordResetEmail, composeVerificationEmail } from './emails';
 import type { AppLucia } from './lucia';
 import { hashPassword, verifyAgainstDummy, verifyPassword } from './password';
-import { fail, type ServiceResult } from './result';
+import { refuse, succeed, type Refusal, type Result } from '../http/result';
 import { TOKEN_LIFETIME_MS, generateToken, hashToken } from './tokens';
 
 /** What the account services need; routes build it once (see deps.ts), tests build it on the test database. */
@@ -31,9 +31,9 @@ export interface RequestMeta {
   ip: string | null;
 }
 
-const INVALID_CREDENTIALS = () => fail(401, 'invalid_credentials', 'That e-mail address and password do not match an account.');
+const INVALID_CREDENTIALS = () => refuse(401, 'invalid_credentials', 'That e-mail address and password do not match an account.');
 const rateLimited = (retryAfterSeconds: number) =>
-  fail(429, 'rate_limited', `Too many attempts. Try again in ${Math.ceil(retryAfterSeconds / 60)} minute(s).`, { retryAfterSeconds });
+  refuse(429, 'rate_limited', `Too many attempts. Try again in ${Math.ceil(retryAfterSeconds / 60)} minute(s).`, {}, { retryAfterSeconds });
 
 function link(deps: AuthDeps, path: string): string {
   return new URL(path, deps.publicUrl).toString();
@@ -56,18 +56,16 @@ async function queueVerification(deps: AuthDeps, db: Parameters<typeof queueMail
  * Creates an account with its own crew (the user leads it), queues the verification message and opens a
  * session. With an invitation token for the same address the user also joins that crew and starts there.
  */
-export async function signUp(deps: AuthDeps, input: SignUpInput, meta: RequestMeta): Promise<ServiceResult<{ userId: string; crewId: string; cookie: Cookie; verificationToken: string | null }>> {
+export async function signUp(deps: AuthDeps, input: SignUpInput, meta: RequestMeta): Promise<Result<{ userId: string; crewId: string; cookie: Cookie; verificationToken: string | null }>> {
   const limit = await deps.limits.consume('signUpIp', meta.ip ?? 'unknown');
   if (!limit.allowed) return rateLimited(limit.retryAfterSeconds);
   if (await findUserByEmail(deps.db, input.email)) {
-    return fail(409, 'email_taken', 'An account with this address already exists.', {
-      fields: { email: 'An account with this address already exists. Sign in, or reset the password.' },
-    });
+    return refuse(409, 'email_taken', 'An account with this address already exists.', { email: 'An account with this address already exists. Sign in, or reset the password.' });
   }
   const passwordHash = await hashPassword(input.password);
   const userId = generateIdFromEntropySize(10);
   const displayName = input.displayName?.trim() || input.email.split('@')[0]!.slice(0, 80);
-  let outcome: ServiceResult<{ crewId: string; verificationToken: string | null }>;
+  let outcome: Result<{ crewId: string; verificationToken: string | null }>;
   try {
     outcome = await deps.db.transaction().execute(async (trx) => {
       await insertUser(trx, { id: userId, email: input.email, displayName, passwordHash, verified: false });
@@ -81,24 +79,24 @@ export async function signUp(deps: AuthDeps, input: SignUpInput, meta: RequestMe
         const joined = await acceptInvitationInTransaction(trx, input.invitation, { id: userId, email: input.email }, meta);
         // Throwing rolls the whole sign-up back: no half-made account for a bad invitation.
         if (!joined.ok) throw new SignUpAborted(joined);
-        crewId = joined.crewId;
+        crewId = joined.value.crewId;
       } else {
         verificationToken = await queueVerification(deps, trx, { id: userId, email: input.email, display_name: displayName });
       }
-      return { ok: true as const, crewId, verificationToken };
+      return succeed({ crewId, verificationToken });
     });
   } catch (error) {
     if (error instanceof SignUpAborted) outcome = error.failure;
-    else if (isUniqueViolation(error)) outcome = fail(409, 'email_taken', 'An account with this address already exists.', { fields: { email: 'An account with this address already exists.' } });
+    else if (isUniqueViolation(error)) outcome = refuse(409, 'email_taken', 'An account with this address already exists.', { email: 'An account with this address already exists.' });
     else throw error;
   }
   if (!outcome.ok) return outcome;
-  const session = await deps.lucia.createSession(userId, { current_crew_id: outcome.crewId });
-  return { ok: true, userId, crewId: outcome.crewId, cookie: deps.lucia.createSessionCookie(session.id), verificationToken: outcome.verificationToken };
+  const session = await deps.lucia.createSession(userId, { current_crew_id: outcome.value.crewId });
+  return succeed({ userId, crewId: outcome.value.crewId, cookie: deps.lucia.createSessionCookie(session.id), verificationToken: outcome.value.verificationToken });
 }
 
 class SignUpAborted extends Error {
-  constructor(readonly failure: Extract<ServiceResult, { ok: false }>) {
+  constructor(readonly failure: Refusal) {
     super(failure.code);
   }
 }
@@ -111,7 +109,7 @@ function isUniqueViolation(error: unknown): boolean {
  * Checks e-mail and password and opens a fresh session (the old one, if any, ends: the id rotates).
  * Unknown address and wrong password give the same answer after the same Argon2 work.
  */
-export async function signIn(deps: AuthDeps, input: SignInInput, meta: RequestMeta & { previousSessionId?: string | null; knownDevice?: boolean }): Promise<ServiceResult<{ userId: string; cookie: Cookie }>> {
+export async function signIn(deps: AuthDeps, input: SignInInput, meta: RequestMeta & { previousSessionId?: string | null; knownDevice?: boolean }): Promise<Result<{ userId: string; cookie: Cookie }>> {
   const ip = meta.ip ?? 'unknown';
   const pairKey = `${input.email}|${ip}`;
   // Spend first, then check the password: parallel guesses each spend a point before any of them is judged.
@@ -122,7 +120,7 @@ export async function signIn(deps: AuthDeps, input: SignInInput, meta: RequestMe
   const refused = verdicts.find((v) => !v.allowed);
   if (refused) {
     await recordAuditEvent(deps.db, { kind: 'sign_in_failed', ip: meta.ip, detail: { reason: 'rate_limited' } });
-    return fail(429, 'rate_limited', `Too many sign-in attempts. Try again in ${Math.ceil(refused.retryAfterSeconds / 60)} minute(s), or reset your password by e-mail.`, { retryAfterSeconds: refused.retryAfterSeconds });
+    return refuse(429, 'rate_limited', `Too many sign-in attempts. Try again in ${Math.ceil(refused.retryAfterSeconds / 60)} minute(s), or reset your password by e-mail.`, {}, { retryAfterSeconds: refused.retryAfterSeconds });
   }
   const user = await findUserByEmail(deps.db, input.email);
   const matches = user ? await verifyPassword(user.password_hash, input.password) : await verifyAgainstDummy(input.password);
@@ -138,7 +136,7 @@ export async function signIn(deps: AuthDeps, input: SignInInput, meta: RequestMe
   const crews = await findMembershipsForUser(deps.db, user.id);
   const session = await deps.lucia.createSession(user.id, { current_crew_id: crews[0]?.crewId ?? null });
   await recordAuditEvent(deps.db, { kind: 'sign_in', actorUserId: user.id, subjectUserId: user.id, ip: meta.ip });
-  return { ok: true, userId: user.id, cookie: deps.lucia.createSessionCookie(session.id) };
+  return succeed({ userId: user.id, cookie: deps.lucia.createSessionCookie(session.id) });
 }
 
 /** Ends one session and returns the blank cookie that clears it in the browser. */
@@ -149,13 +147,13 @@ export async function signOut(deps: AuthDeps, session: { id: string; userId: str
 }
 
 /** Changes the password after checking the current one; every other session of the user ends. */
-export async function changePassword(deps: AuthDeps, userId: string, currentSessionId: string, input: ChangePasswordInput, meta: RequestMeta): Promise<ServiceResult<{ endedSessions: number }>> {
+export async function changePassword(deps: AuthDeps, userId: string, currentSessionId: string, input: ChangePasswordInput, meta: RequestMeta): Promise<Result<{ endedSessions: number }>> {
   // A stolen session must not become a way to guess the current password without limit.
   const limit = await deps.limits.consume('passwordChangeUser', userId);
   if (!limit.allowed) return rateLimited(limit.retryAfterSeconds);
   const user = await findUserById(deps.db, userId);
   if (!user || !(await verifyPassword(user.password_hash, input.currentPassword))) {
-    return fail(400, 'wrong_password', 'The current password is not right.', { fields: { currentPassword: 'That is not your current password.' } });
+    return refuse(400, 'wrong_password', 'The current password is not right.', { currentPassword: 'That is not your current password.' });
   }
   const passwordHash = await hashPassword(input.newPassword);
   const endedSessions = await deps.db.transaction().execute(async (trx) => {
@@ -164,19 +162,19 @@ export async function changePassword(deps: AuthDeps, userId: string, currentSess
     await recordAuditEvent(trx, { kind: 'password_changed', actorUserId: userId, subjectUserId: userId, ip: meta.ip, detail: { endedSessions: ended } });
     return ended;
   });
-  return { ok: true, endedSessions };
+  return succeed({ endedSessions });
 }
 
 /** Queues a fresh verification message (the previous link stops working); limited per account and per address. */
-export async function requestEmailVerification(deps: AuthDeps, userId: string, meta: RequestMeta): Promise<ServiceResult<{ token: string | null }>> {
+export async function requestEmailVerification(deps: AuthDeps, userId: string, meta: RequestMeta): Promise<Result<{ token: string | null }>> {
   const user = await findUserById(deps.db, userId);
-  if (!user) return fail(404, 'not_found', 'No such account.');
-  if (user.email_verified_at) return { ok: true, token: null };
+  if (!user) return refuse(404, 'not_found', 'No such account.');
+  if (user.email_verified_at) return succeed({ token: null });
   for (const verdict of [await deps.limits.consume('verifyResendUser', userId), await deps.limits.consume('verifyResendIp', meta.ip ?? 'unknown')]) {
-    if (!verdict.allowed) return fail(429, 'rate_limited', `Several links are already on their way; look for them (and in the spam folder), or ask for another in ${Math.ceil(verdict.retryAfterSeconds / 60)} minute(s).`, { retryAfterSeconds: verdict.retryAfterSeconds });
+    if (!verdict.allowed) return refuse(429, 'rate_limited', `Several links are already on their way; look for them (and in the spam folder), or ask for another in ${Math.ceil(verdict.retryAfterSeconds / 60)} minute(s).`, {}, { retryAfterSeconds: verdict.retryAfterSeconds });
   }
   const token = await deps.db.transaction().execute((trx) => queueVerification(deps, trx, user));
-  return { ok: true, token };
+  return succeed({ token });
 }
 
 type TokenState = 'valid' | 'invalid' | 'expired' | 'used';
@@ -188,14 +186,14 @@ function tokenState(row: { expires_at: Date; used_at: Date | null } | undefined,
   return 'valid';
 }
 
-const TOKEN_FAILURES: Record<Exclude<TokenState, 'valid'>, () => Extract<ServiceResult, { ok: false }>> = {
-  invalid: () => fail(400, 'invalid_token', 'This link is not valid. Ask for a new one.'),
-  expired: () => fail(400, 'expired_token', 'This link has expired. Ask for a new one.'),
-  used: () => fail(400, 'used_token', 'This link has already been used. Ask for a new one if you still need it.'),
+const TOKEN_FAILURES: Record<Exclude<TokenState, 'valid'>, () => Refusal> = {
+  invalid: () => refuse(400, 'invalid_token', 'This link is not valid. Ask for a new one.'),
+  expired: () => refuse(400, 'expired_token', 'This link has expired. Ask for a new one.'),
+  used: () => refuse(400, 'used_token', 'This link has already been used. Ask for a new one if you still need it.'),
 };
 
 /** Spends a verification token and marks the address verified. */
-export async function verifyEmail(deps: AuthDeps, token: string, meta: RequestMeta): Promise<ServiceResult<{ userId: string }>> {
+export async function verifyEmail(deps: AuthDeps, token: string, meta: RequestMeta): Promise<Result<{ userId: string }>> {
   return deps.db.transaction().execute(async (trx) => {
     const row = await lockAuthToken(trx, hashToken(token), 'verify_email');
     const state = tokenState(row);
@@ -206,7 +204,7 @@ export async function verifyEmail(deps: AuthDeps, token: string, meta: RequestMe
     await markAuthTokenUsed(trx, row.id);
     await markEmailVerified(trx, row.user_id);
     await recordAuditEvent(trx, { kind: 'email_verified', actorUserId: row.user_id, subjectUserId: row.user_id, ip: meta.ip });
-    return { ok: true as const, userId: row.user_id };
+    return succeed({ userId: row.user_id });
   });
 }
 
@@ -214,12 +212,12 @@ export async function verifyEmail(deps: AuthDeps, token: string, meta: RequestMe
  * Queues a reset link when the address has an account. The answer is the same either way, so the form
  * cannot be used to find out who has an account.
  */
-export async function requestPasswordReset(deps: AuthDeps, email: string, meta: RequestMeta): Promise<ServiceResult<{ token: string | null }>> {
+export async function requestPasswordReset(deps: AuthDeps, email: string, meta: RequestMeta): Promise<Result<{ token: string | null }>> {
   for (const verdict of [await deps.limits.consume('resetIp', meta.ip ?? 'unknown'), await deps.limits.consume('resetEmail', email)]) {
     if (!verdict.allowed) return rateLimited(verdict.retryAfterSeconds);
   }
   const user = await findUserByEmail(deps.db, email);
-  if (!user) return { ok: true, token: null };
+  if (!user) return succeed({ token: null });
   const token = generateToken();
   await deps.db.transaction().execute(async (trx) => {
     const tokenId = await insertAuthToken(trx, {
@@ -231,7 +229,7 @@ export async function requestPasswordReset(deps: AuthDeps, email: string, meta: 
     });
     await queueMail(trx, { to: user.email, ...mail, idempotencyKey: `reset_password:${tokenId}`, kind: 'reset_password' });
   });
-  return { ok: true, token };
+  return succeed({ token });
 }
 
 /** Whether a reset link can still be used (the page shows the form only then). */
@@ -240,7 +238,7 @@ export async function checkResetToken(deps: Pick<AuthDeps, 'db'>, token: string)
 }
 
 /** Spends a reset token, sets the new password and ends every session of the account. */
-export async function resetPassword(deps: AuthDeps, input: { token: string; password: string }, meta: RequestMeta): Promise<ServiceResult<{ userId: string }>> {
+export async function resetPassword(deps: AuthDeps, input: { token: string; password: string }, meta: RequestMeta): Promise<Result<{ userId: string }>> {
   const passwordHash = await hashPassword(input.password);
   return deps.db.transaction().execute(async (trx) => {
     const row = await lockAuthToken(trx, hashToken(input.token), 'reset_password');
@@ -252,7 +250,7 @@ export async function resetPassword(deps: AuthDeps, input: { token: string; pass
     await markEmailVerified(trx, row.user_id);
     await deleteOtherSessions(trx, row.user_id, null);
     await recordAuditEvent(trx, { kind: 'password_reset', subjectUserId: row.user_id, ip: meta.ip });
-    return { ok: true as const, userId: row.user_id };
+    return succeed({ userId: row.user_id });
   });
 }
 

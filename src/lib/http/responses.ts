@@ -7,7 +7,3 @@ export function refusalJson(r: Refusal): Response {
   return jsonError(r.status, r.code, r.message, r.fields, headers);
 }
 
-/** @deprecated Until auth and crews return {@link Refusal}; use {@link refusalJson}. */
-export function jsonFailure(f: { status: number; code: string; message: string; fields?: Record<string, string>; retryAfterSeconds?: number }): Response {
-  return refusalJson({ ...f, status: f.status as Refusal['status'], ok: false, fields: f.fields ?? {} });
-}

@@ -8,7 +8,7 @@ import { fieldErrorsFrom, type FieldErrors } from './json';
 export type { FieldErrors } from './json';
 
 /** Every status a service refuses with; a route answers it as is. */
-export type RefusalStatus = 400 | 401 | 403 | 404 | 409 | 413 | 415 | 422 | 429 | 503;
+export type RefusalStatus = 400 | 401 | 403 | 404 | 409 | 410 | 413 | 415 | 422 | 429 | 503;
 
 export interface Refusal {
   ok: false;

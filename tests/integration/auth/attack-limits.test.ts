@@ -7,7 +7,7 @@ import { openTestDb, truncateAll } from '../test-database';
 import { addMember, makeCrew, makeUser } from '../factories';
 import { makeAuthDeps, outboxFor } from './auth-test-deps';
 import { changePassword, requestEmailVerification, signIn, signUp, type AuthDeps } from '~/lib/auth/auth.service';
-import { inviteMember, type Actor } from '~/lib/crews/crews.service';
+import { inviteMember, type CrewActor } from '~/lib/crews/crews.service';
 import { findMembership } from '~/lib/crews/crews.repository';
 import { LIMIT_RULES, createRateLimits } from '~/lib/rate-limit/rate-limits';
 import { deleteExpiredRateLimits } from '~/lib/rate-limit/rate-limits.repository';
@@ -26,7 +26,7 @@ const PASSWORD = 'correct horse battery staple';
 async function account(email = 'owner@example.test') {
   const r = await signUp(deps, { email, password: PASSWORD, displayName: 'Owner' }, { ip: '192.0.2.1' });
   if (!r.ok) throw new Error(r.code);
-  return r;
+  return r.value;
 }
 
 describe('sign-in limits', () => {
@@ -129,7 +129,7 @@ describe('invitations', () => {
     const user = await makeUser(db, { email: `lead-${verified}@example.test` });
     if (!verified) await db.updateTable('users').set({ email_verified_at: null }).where('id', '=', user.id).execute();
     await addMember(db, crew.id, user.id, 'lead');
-    const actor: Actor = { userId: user.id, displayName: 'Lead', membership: await findMembership(db, crew.id, user.id) };
+    const actor: CrewActor = { userId: user.id, displayName: 'Lead', membership: await findMembership(db, crew.id, user.id) };
     return { crew, actor };
   }
 

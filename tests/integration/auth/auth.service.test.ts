@@ -23,7 +23,7 @@ const PASSWORD = 'correct horse battery';
 async function register(email = 'ada@example.test', password = PASSWORD) {
   const r = await signUp(deps, { email, password, displayName: 'Ada' }, meta);
   if (!r.ok) throw new Error(r.code);
-  return r;
+  return r.value;
 }
 
 const sessionCount = async (userId: string) =>
@@ -64,16 +64,16 @@ describe('sign-in', () => {
     const first = await signIn(deps, { email: 'ada@example.test', password: PASSWORD }, { ...meta, previousSessionId: r.cookie.value });
     expect(first.ok).toBe(true);
     if (!first.ok) return;
-    expect(first.cookie.value).not.toBe(r.cookie.value);
+    expect(first.value.cookie.value).not.toBe(r.cookie.value);
     expect((await deps.lucia.validateSession(r.cookie.value)).session).toBeNull();
-    expect((await deps.lucia.validateSession(first.cookie.value)).session?.currentCrewId).toBe(r.crewId);
+    expect((await deps.lucia.validateSession(first.value.cookie.value)).session?.currentCrewId).toBe(r.crewId);
   });
 
   test('wrong password and unknown address give exactly the same answer', async () => {
     await register();
     const wrong = await signIn(deps, { email: 'ada@example.test', password: 'not the password' }, meta);
     const unknown = await signIn(deps, { email: 'nobody@example.test', password: 'not the password' }, meta);
-    expect(wrong).toEqual({ ok: false, status: 401, code: 'invalid_credentials', message: expect.any(String) });
+    expect(wrong).toEqual({ ok: false, status: 401, code: 'invalid_credentials', message: expect.any(String), fields: {} });
     expect(unknown).toEqual(wrong);
   });
 
@@ -130,9 +130,9 @@ describe('password change', () => {
     expect(await changePassword(deps, r.userId, r.cookie.value, { currentPassword: 'not it at all', newPassword: 'a new long password' }, meta))
       .toMatchObject({ ok: false, code: 'wrong_password', fields: { currentPassword: expect.any(String) } });
     expect(await changePassword(deps, r.userId, r.cookie.value, { currentPassword: PASSWORD, newPassword: 'a new long password' }, meta))
-      .toEqual({ ok: true, endedSessions: 1 });
+      .toEqual({ ok: true, value: { endedSessions: 1 } });
     expect((await deps.lucia.validateSession(r.cookie.value)).session).not.toBeNull();
-    expect((await deps.lucia.validateSession(other.cookie.value)).session).toBeNull();
+    expect((await deps.lucia.validateSession(other.value.cookie.value)).session).toBeNull();
     expect((await signIn(deps, { email: 'ada@example.test', password: PASSWORD }, { ip: '203.0.113.9' })).ok).toBe(false);
     expect((await signIn(deps, { email: 'ada@example.test', password: 'a new long password' }, { ip: '203.0.113.9' })).ok).toBe(true);
   });
@@ -141,7 +141,7 @@ describe('password change', () => {
 describe('e-mail verification', () => {
   test('a valid link verifies once; the same link again is refused as used', async () => {
     const r = await register();
-    expect(await verifyEmail(deps, r.verificationToken!, meta)).toEqual({ ok: true, userId: r.userId });
+    expect(await verifyEmail(deps, r.verificationToken!, meta)).toEqual({ ok: true, value: { userId: r.userId } });
     const user = await db.selectFrom('users').select('email_verified_at').where('id', '=', r.userId).executeTakeFirstOrThrow();
     expect(user.email_verified_at).toBeInstanceOf(Date);
     expect(await verifyEmail(deps, r.verificationToken!, meta)).toMatchObject({ ok: false, code: 'used_token' });
@@ -163,28 +163,28 @@ describe('e-mail verification', () => {
 
 describe('password reset', () => {
   test('an unknown address gets the same answer and no mail', async () => {
-    expect(await requestPasswordReset(deps, 'nobody@example.test', meta)).toEqual({ ok: true, token: null });
+    expect(await requestPasswordReset(deps, 'nobody@example.test', meta)).toEqual({ ok: true, value: { token: null } });
     expect(await outboxFor(db, 'nobody@example.test')).toEqual([]);
   });
 
   test('the link sets a new password once, verifies the address and ends every session', async () => {
     const r = await register();
     const req = await requestPasswordReset(deps, 'ada@example.test', meta);
-    if (!req.ok || !req.token) throw new Error('no reset token');
+    if (!req.ok || !req.value.token) throw new Error('no reset token');
     const mail = (await outboxFor(db, 'ada@example.test')).find((m) => m.kind === 'reset_password');
-    expect(firstLink(mail!.text_body)).toBe(`http://127.0.0.1:4321/reset-password?token=${req.token}`);
-    expect(await resetPassword(deps, { token: req.token, password: 'brand new password' }, meta)).toEqual({ ok: true, userId: r.userId });
+    expect(firstLink(mail!.text_body)).toBe(`http://127.0.0.1:4321/reset-password?token=${req.value.token}`);
+    expect(await resetPassword(deps, { token: req.value.token, password: 'brand new password' }, meta)).toEqual({ ok: true, value: { userId: r.userId } });
     expect(await sessionCount(r.userId)).toBe(0);
     expect((await signIn(deps, { email: 'ada@example.test', password: 'brand new password' }, meta)).ok).toBe(true);
-    expect(await resetPassword(deps, { token: req.token, password: 'another new password' }, meta)).toMatchObject({ ok: false, code: 'used_token' });
+    expect(await resetPassword(deps, { token: req.value.token, password: 'another new password' }, meta)).toMatchObject({ ok: false, code: 'used_token' });
   });
 
   test('an expired reset link is refused and changes nothing', async () => {
     await register();
     const req = await requestPasswordReset(deps, 'ada@example.test', meta);
-    if (!req.ok || !req.token) throw new Error('no reset token');
+    if (!req.ok || !req.value.token) throw new Error('no reset token');
     await db.updateTable('auth_tokens').set({ expires_at: new Date(Date.now() - 1) }).where('purpose', '=', 'reset_password').execute();
-    expect(await resetPassword(deps, { token: req.token, password: 'brand new password' }, meta)).toMatchObject({ ok: false, code: 'expired_token' });
+    expect(await resetPassword(deps, { token: req.value.token, password: 'brand new password' }, meta)).toMatchObject({ ok: false, code: 'expired_token' });
     expect((await signIn(deps, { email: 'ada@example.test', password: PASSWORD }, meta)).ok).toBe(true);
   });
 

@@ -7,7 +7,7 @@ import { firstLink, makeAuthDeps, outboxFor } from './auth-test-deps';
 import { signIn, signUp, type AuthDeps } from '~/lib/auth/auth.service';
 import {
   acceptInvitation, changeMemberRole, createCrew, describeInvitation, inviteMember, loadCrewOverview, removeMember, switchCrew,
-  withdrawInvitation, type Actor,
+  withdrawInvitation, type CrewActor,
 } from '~/lib/crews/crews.service';
 import { findMembership, findMembershipsForUser } from '~/lib/crews/crews.repository';
 import { listCrewAuditEvents } from '~/lib/audit/audit.repository';
@@ -28,7 +28,7 @@ async function school() {
     people[role] = await makeUser(db, { email: `${role}@example.test`, displayName: role });
     await addMember(db, crew.id, people[role].id, role);
   }
-  const actor = async (role: Role): Promise<Actor> => ({ userId: people[role].id, displayName: role, membership: await findMembership(db, crew.id, people[role].id) });
+  const actor = async (role: Role): Promise<CrewActor> => ({ userId: people[role].id, displayName: role, membership: await findMembership(db, crew.id, people[role].id) });
   return { crew, people, actor };
 }
 
@@ -44,7 +44,7 @@ describe('invitations', () => {
   test('a lead of another crew gets not-found, not forbidden', async () => {
     const s = await school();
     const outsider = await makeUser(db);
-    const actor: Actor = { userId: outsider.id, displayName: 'x', membership: await findMembership(db, s.crew.id, outsider.id) };
+    const actor: CrewActor = { userId: outsider.id, displayName: 'x', membership: await findMembership(db, s.crew.id, outsider.id) };
     expect(await inviteMember(deps, actor, { email: 'new@example.test', role: 'rider' }, meta)).toMatchObject({ ok: false, status: 404 });
   });
 
@@ -54,14 +54,14 @@ describe('invitations', () => {
     if (!inv.ok) throw new Error(inv.code);
     const [mail] = await outboxFor(db, 'wren@example.test');
     expect(mail?.kind).toBe('crew_invitation');
-    expect(firstLink(mail!.text_body)).toBe(`http://127.0.0.1:4321/invitations/${inv.token}`);
-    expect(await describeInvitation(db, inv.token)).toMatchObject({ crewName: 'Larchwood test crew', role: 'mechanic', state: 'open' });
+    expect(firstLink(mail!.text_body)).toBe(`http://127.0.0.1:4321/invitations/${inv.value.token}`);
+    expect(await describeInvitation(db, inv.value.token)).toMatchObject({ crewName: 'Larchwood test crew', role: 'mechanic', state: 'open' });
 
     const wren = await makeUser(db, { email: 'wren@example.test' });
-    expect(await acceptInvitation(db, inv.token, wren, null, meta)).toEqual({ ok: true, crewId: s.crew.id, role: 'mechanic' });
+    expect(await acceptInvitation(db, inv.value.token, wren, null, meta)).toEqual({ ok: true, value: { crewId: s.crew.id, role: 'mechanic' } });
     expect((await findMembership(db, s.crew.id, wren.id))?.role).toBe('mechanic');
-    expect(await acceptInvitation(db, inv.token, wren, null, meta)).toMatchObject({ ok: false, code: 'used_invitation' });
-    expect((await describeInvitation(db, inv.token))?.state).toBe('used');
+    expect(await acceptInvitation(db, inv.value.token, wren, null, meta)).toMatchObject({ ok: false, code: 'used_invitation' });
+    expect((await describeInvitation(db, inv.value.token))?.state).toBe('used');
   });
 
   test('an invitation for another address is refused and joins nobody', async () => {
@@ -69,7 +69,7 @@ describe('invitations', () => {
     const inv = await inviteMember(deps, await s.actor('lead'), { email: 'wren@example.test', role: 'lead' }, meta);
     if (!inv.ok) throw new Error(inv.code);
     const other = await makeUser(db, { email: 'someone-else@example.test' });
-    expect(await acceptInvitation(db, inv.token, other, null, meta)).toMatchObject({ ok: false, status: 403, code: 'wrong_address' });
+    expect(await acceptInvitation(db, inv.value.token, other, null, meta)).toMatchObject({ ok: false, status: 403, code: 'wrong_address' });
     expect(await findMembership(db, s.crew.id, other.id)).toBeNull();
   });
 
@@ -79,21 +79,21 @@ describe('invitations', () => {
     const a = await inviteMember(deps, lead, { email: 'a@example.test', role: 'rider' }, meta);
     const b = await inviteMember(deps, lead, { email: 'b@example.test', role: 'rider' }, meta);
     if (!a.ok || !b.ok) throw new Error('invite failed');
-    await db.updateTable('crew_invitations').set({ expires_at: new Date(Date.now() - 1) }).where('id', '=', a.invitationId).execute();
-    expect(await withdrawInvitation(db, lead, b.invitationId, meta)).toEqual({ ok: true });
-    expect(await acceptInvitation(db, a.token, await makeUser(db, { email: 'a@example.test' }), null, meta)).toMatchObject({ code: 'expired_invitation' });
-    expect(await acceptInvitation(db, b.token, await makeUser(db, { email: 'b@example.test' }), null, meta)).toMatchObject({ code: 'invalid_invitation' });
+    await db.updateTable('crew_invitations').set({ expires_at: new Date(Date.now() - 1) }).where('id', '=', a.value.invitationId).execute();
+    expect(await withdrawInvitation(db, lead, b.value.invitationId, meta)).toEqual({ ok: true });
+    expect(await acceptInvitation(db, a.value.token, await makeUser(db, { email: 'a@example.test' }), null, meta)).toMatchObject({ code: 'expired_invitation' });
+    expect(await acceptInvitation(db, b.value.token, await makeUser(db, { email: 'b@example.test' }), null, meta)).toMatchObject({ code: 'invalid_invitation' });
   });
 
   test('a new person signs up through the invitation: own crew plus the invited crew, address verified, working in the invited crew', async () => {
     const s = await school();
     const inv = await inviteMember(deps, await s.actor('lead'), { email: 'finch@example.test', role: 'rider' }, meta);
     if (!inv.ok) throw new Error(inv.code);
-    const r = await signUp(deps, { email: 'finch@example.test', password: 'a long enough password', invitation: inv.token }, meta);
+    const r = await signUp(deps, { email: 'finch@example.test', password: 'a long enough password', invitation: inv.value.token }, meta);
     if (!r.ok) throw new Error(r.code);
-    expect(r.crewId).toBe(s.crew.id);
-    expect((await findMembershipsForUser(db, r.userId)).map((m) => m.role).sort()).toEqual(['lead', 'rider']);
-    const user = await db.selectFrom('users').select('email_verified_at').where('id', '=', r.userId).executeTakeFirstOrThrow();
+    expect(r.value.crewId).toBe(s.crew.id);
+    expect((await findMembershipsForUser(db, r.value.userId)).map((m) => m.role).sort()).toEqual(['lead', 'rider']);
+    const user = await db.selectFrom('users').select('email_verified_at').where('id', '=', r.value.userId).executeTakeFirstOrThrow();
     expect(user.email_verified_at).not.toBeNull();
   });
 
@@ -101,7 +101,7 @@ describe('invitations', () => {
     const s = await school();
     const inv = await inviteMember(deps, await s.actor('lead'), { email: 'finch@example.test', role: 'rider' }, meta);
     if (!inv.ok) throw new Error(inv.code);
-    const r = await signUp(deps, { email: 'intruder@example.test', password: 'a long enough password', invitation: inv.token }, meta);
+    const r = await signUp(deps, { email: 'intruder@example.test', password: 'a long enough password', invitation: inv.value.token }, meta);
     expect(r).toMatchObject({ ok: false, code: 'wrong_address' });
     expect(await db.selectFrom('users').select('id').where('email', '=', 'intruder@example.test').executeTakeFirst()).toBeUndefined();
   });
@@ -137,10 +137,10 @@ describe('roles and membership', () => {
     const s = await school();
     const r = await signUp(deps, { email: 'solo@example.test', password: 'a long enough password' }, meta);
     if (!r.ok) throw new Error(r.code);
-    expect(await switchCrew(db, r.cookie.value, r.userId, s.crew.id)).toMatchObject({ ok: false, status: 404 });
-    const extra = await createCrew(db, r.userId, 'Second garage', meta);
-    expect(await switchCrew(db, r.cookie.value, r.userId, extra.crewId)).toMatchObject({ ok: true, crew: { role: 'lead' } });
-    expect((await deps.lucia.validateSession(r.cookie.value)).session?.currentCrewId).toBe(extra.crewId);
+    expect(await switchCrew(db, r.value.cookie.value, r.value.userId, s.crew.id)).toMatchObject({ ok: false, status: 404 });
+    const extra = await createCrew(db, r.value.userId, 'Second garage', meta);
+    expect(await switchCrew(db, r.value.cookie.value, r.value.userId, extra.crewId)).toMatchObject({ ok: true, value: { crew: { role: 'lead' } } });
+    expect((await deps.lucia.validateSession(r.value.cookie.value)).session?.currentCrewId).toBe(extra.crewId);
   });
 });
 
@@ -149,9 +149,9 @@ describe('audit log', () => {
     const s = await school();
     const inv = await inviteMember(deps, await s.actor('lead'), { email: 'wren@example.test', role: 'rider' }, meta);
     if (!inv.ok) throw new Error(inv.code);
-    const wren = await signUp(deps, { email: 'wren@example.test', password: 'a long enough password', invitation: inv.token }, meta);
+    const wren = await signUp(deps, { email: 'wren@example.test', password: 'a long enough password', invitation: inv.value.token }, meta);
     if (!wren.ok) throw new Error(wren.code);
-    await changeMemberRole(db, await s.actor('lead'), wren.userId, 'mechanic', meta);
+    await changeMemberRole(db, await s.actor('lead'), wren.value.userId, 'mechanic', meta);
     await signIn(deps, { email: 'wren@example.test', password: 'a long enough password' }, meta);
     await signUp(deps, { email: 'outsider@example.test', password: 'a long enough password' }, meta);
     await signIn(deps, { email: 'outsider@example.test', password: 'a long enough password' }, meta);

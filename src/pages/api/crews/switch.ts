@@ -3,14 +3,13 @@ import { getAuthDeps } from '~/lib/auth/deps';
 import { requireApiUser, signInRedirect } from '~/lib/auth/guards';
 import { switchCrewSchema } from '~/lib/crews/crews';
 import { switchCrew } from '~/lib/crews/crews.service';
-import { formText, readForm, safeNextPath } from '~/lib/http/form';
-import { jsonError, jsonOk, parseJsonBody } from '~/lib/http/json';
-import { jsonFailure } from '~/lib/http/responses';
+import { formText, readForm, safeNextPath, wantsPage } from '~/lib/http/form';
+import { jsonOk, parseJsonBody } from '~/lib/http/json';
+import { refusalJson } from '~/lib/http/responses';
 
 /** Switches the session's crew: a plain form (crewId, next) redirects back; JSON { crewId } answers JSON. */
 export const POST: APIRoute = async (context) => {
-  const isForm = /^application\/x-www-form-urlencoded\b/i.test(context.request.headers.get('content-type') ?? '');
-  if (isForm) {
+  if (wantsPage(context.request, { bareForm: 'page' })) {
     const body = await readForm(context.request);
     if (!body.ok) return body.response;
     // A browser whose session ended signs in and comes back to the page the switcher was on.
@@ -26,6 +25,6 @@ export const POST: APIRoute = async (context) => {
   const body = await parseJsonBody(context.request, switchCrewSchema);
   if (!body.ok) return body.response;
   const result = await switchCrew(getAuthDeps().db, context.locals.session!.id, user.id, body.data.crewId);
-  if (!result.ok) return jsonFailure(result);
-  return result.crew ? jsonOk({ crew: result.crew }) : jsonError(404, 'not_found', 'No such crew.');
+  if (!result.ok) return refusalJson(result);
+  return jsonOk({ crew: result.value.crew });
 };
