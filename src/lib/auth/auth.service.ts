@@ -1,4 +1,3 @@
-import { generateIdFromEntropySize, type Cookie } from 'lucia';
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
 import { recordAuditEvent } from '../audit/audit.repository';
@@ -12,7 +11,7 @@ import {
 } from './auth.repository';
 import type { ChangePasswordInput, SignInInput, SignUpInput, UnitsInput } from './auth';
 import { composePasswordResetEmail, composeVerificationEmail } from './emails';
-import type { AppLucia } from './lucia';
+import { newUserId, type AppLucia, type SessionCookie } from './session';
 import { hashPassword, verifyAgainstDummy, verifyPassword } from './password';
 import { refuse, succeed, type Refusal, type Result } from '../http/result';
 import { TOKEN_LIFETIME_MS, generateToken, hashToken } from './tokens';
@@ -56,14 +55,14 @@ async function queueVerification(deps: AuthDeps, db: Parameters<typeof queueMail
  * Creates an account with its own crew (the user leads it), queues the verification message and opens a
  * session. With an invitation token for the same address the user also joins that crew and starts there.
  */
-export async function signUp(deps: AuthDeps, input: SignUpInput, meta: RequestMeta): Promise<Result<{ userId: string; crewId: string; cookie: Cookie; verificationToken: string | null }>> {
+export async function signUp(deps: AuthDeps, input: SignUpInput, meta: RequestMeta): Promise<Result<{ userId: string; crewId: string; cookie: SessionCookie; verificationToken: string | null }>> {
   const limit = await deps.limits.consume('signUpIp', meta.ip ?? 'unknown');
   if (!limit.allowed) return rateLimited(limit.retryAfterSeconds);
   if (await findUserByEmail(deps.db, input.email)) {
     return refuse(409, 'email_taken', 'An account with this address already exists.', { email: 'An account with this address already exists. Sign in, or reset the password.' });
   }
   const passwordHash = await hashPassword(input.password);
-  const userId = generateIdFromEntropySize(10);
+  const userId = newUserId();
   const displayName = input.displayName?.trim() || input.email.split('@')[0]!.slice(0, 80);
   let outcome: Result<{ crewId: string; verificationToken: string | null }>;
   try {
@@ -109,7 +108,7 @@ function isUniqueViolation(error: unknown): boolean {
  * Checks e-mail and password and opens a fresh session (the old one, if any, ends: the id rotates).
  * Unknown address and wrong password give the same answer after the same Argon2 work.
  */
-export async function signIn(deps: AuthDeps, input: SignInInput, meta: RequestMeta & { previousSessionId?: string | null; knownDevice?: boolean }): Promise<Result<{ userId: string; cookie: Cookie }>> {
+export async function signIn(deps: AuthDeps, input: SignInInput, meta: RequestMeta & { previousSessionId?: string | null; knownDevice?: boolean }): Promise<Result<{ userId: string; cookie: SessionCookie }>> {
   const ip = meta.ip ?? 'unknown';
   const pairKey = `${input.email}|${ip}`;
   // Spend first, then check the password: parallel guesses each spend a point before any of them is judged.
@@ -140,7 +139,7 @@ export async function signIn(deps: AuthDeps, input: SignInInput, meta: RequestMe
 }
 
 /** Ends one session and returns the blank cookie that clears it in the browser. */
-export async function signOut(deps: AuthDeps, session: { id: string; userId: string }, meta: RequestMeta): Promise<Cookie> {
+export async function signOut(deps: AuthDeps, session: { id: string; userId: string }, meta: RequestMeta): Promise<SessionCookie> {
   await deps.lucia.invalidateSession(session.id);
   await recordAuditEvent(deps.db, { kind: 'sign_out', actorUserId: session.userId, subjectUserId: session.userId, ip: meta.ip });
   return deps.lucia.createBlankSessionCookie();

@@ -1,19 +1,18 @@
 import type { AstroCookies } from 'astro';
-import type { Cookie } from 'lucia';
 import { getConfig, isSecureOrigin } from '../config';
 import { readAppSecret } from '../alerts/secret';
 import { KNOWN_DEVICE_COOKIE, KNOWN_DEVICE_MAX_AGE_SECONDS, isKnownDevice, markKnownDevice } from './known-device';
 import { normaliseIp } from '../http/client-address';
-import { getDb } from '../db';
 import { createRateLimits, type RateLimits } from '../rate-limit/rate-limits';
 import type { AuthDeps } from './auth.service';
-import { getAuthPool, getLucia } from './lucia';
+import { getDb, getPool } from '../db';
+import { getLucia, type SessionCookie } from './session';
 
 let limits: RateLimits | undefined;
 
 /** The account services' dependencies for routes (tests build their own on the test database). */
 export function getAuthDeps(): AuthDeps {
-  limits ??= createRateLimits(getAuthPool());
+  limits ??= createRateLimits(getPool());
   return { db: getDb(), lucia: getLucia(), limits, publicUrl: getConfig().PUBLIC_URL };
 }
 
@@ -30,7 +29,7 @@ export function rememberKnownDevice(cookies: AstroCookies, email: string): void 
 }
 
 /** Writes a Lucia cookie (a session, or the blank one that clears it) onto the response. */
-export function applySessionCookie(cookies: AstroCookies, cookie: Cookie): void {
+export function applySessionCookie(cookies: AstroCookies, cookie: SessionCookie): void {
   cookies.set(cookie.name, cookie.value, cookie.attributes);
 }
 

@@ -1,9 +1,78 @@
+// The one door to Lucia (v3, deprecated upstream): only this file imports `lucia` or `@lucia-auth/*`, so
+// replacing it later touches nothing else. The rest of the app holds an `AppLucia` from here and calls the
+// functions below; tests/unit/auth/lucia-boundary.test.ts fails when another file imports it.
 import type { AstroCookies } from 'astro';
 import type { Kysely } from 'kysely';
-import type { Database } from '../db/database';
+import { Lucia, generateIdFromEntropySize, type Cookie } from 'lucia';
+import { NodePostgresAdapter } from '@lucia-auth/adapter-postgresql';
+import type pg from 'pg';
+import { getConfig, isSecureOrigin } from '../config';
 import { findMembershipsForUser } from '../crews/crews.repository';
-import type { AppLucia } from './lucia';
+import { getPool } from '../db';
+import type { Database } from '../db/database';
 import type { CrewMembership, SessionInfo, SessionUser } from './types';
+
+/** The session cookie's name. */
+export const SESSION_COOKIE = 'sumpwise_session';
+
+/** A cookie to set on the response: a session's, or the blank one that clears it. */
+export type SessionCookie = Cookie;
+
+interface DatabaseUserAttributes {
+  email: string;
+  display_name: string;
+  email_verified_at: Date | null;
+  distance_unit: 'mi' | 'km';
+  length_unit: 'in' | 'mm';
+  temperature_unit: 'F' | 'C';
+}
+
+interface DatabaseSessionAttributes {
+  current_crew_id: string | null;
+}
+
+/** A Lucia instance over the users and sessions tables on `pool`; `secure` follows the public URL's scheme. */
+export function createLucia(pool: pg.Pool, options: { secure: boolean }) {
+  return new Lucia(new NodePostgresAdapter(pool, { user: 'users', session: 'sessions' }), {
+    sessionCookie: {
+      name: SESSION_COOKIE,
+      // Lucia sets HttpOnly and Path=/ itself; SameSite=Lax keeps the cookie off cross-site POSTs.
+      attributes: { secure: options.secure, sameSite: 'lax' },
+    },
+    getUserAttributes: (a): Omit<SessionUser, 'id'> => ({
+      email: a.email,
+      displayName: a.display_name,
+      emailVerified: a.email_verified_at !== null,
+      distanceUnit: a.distance_unit,
+      lengthUnit: a.length_unit,
+      temperatureUnit: a.temperature_unit,
+    }),
+    getSessionAttributes: (a) => ({ currentCrewId: a.current_crew_id }),
+  });
+}
+
+export type AppLucia = ReturnType<typeof createLucia>;
+
+declare module 'lucia' {
+  interface Register {
+    Lucia: AppLucia;
+    DatabaseUserAttributes: DatabaseUserAttributes;
+    DatabaseSessionAttributes: DatabaseSessionAttributes;
+  }
+}
+
+let lucia: AppLucia | undefined;
+
+/** The app's Lucia instance, on the process's one pool (the same connections Kysely uses). */
+export function getLucia(): AppLucia {
+  lucia ??= createLucia(getPool(), { secure: isSecureOrigin(getConfig()) });
+  return lucia;
+}
+
+/** A new user id: 16 random characters, as Lucia's guide recommends for ids. */
+export function newUserId(): string {
+  return generateIdFromEntropySize(10);
+}
 
 export interface LoadedSession {
   user: SessionUser;

@@ -2,7 +2,7 @@ import pg from 'pg';
 import { sql, type Kysely } from 'kysely';
 import type { Database } from '~/lib/db/database';
 import type { AuthDeps } from '~/lib/auth/auth.service';
-import { createLucia } from '~/lib/auth/lucia';
+import { createLucia } from '~/lib/auth/session';
 import { createRateLimits } from '~/lib/rate-limit/rate-limits';
 import { TEST_DATABASE } from '../test-database';
 
