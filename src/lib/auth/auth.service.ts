@@ -1,5 +1,6 @@
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
+import { uniqueViolation } from '../db/errors';
 import { recordAuditEvent } from '../audit/audit.repository';
 import { queueMail } from '../mail/mail.service';
 import type { RateLimits } from '../rate-limit/rate-limits';
@@ -86,7 +87,8 @@ export async function signUp(deps: AuthDeps, input: SignUpInput, meta: RequestMe
     });
   } catch (error) {
     if (error instanceof SignUpAborted) outcome = error.failure;
-    else if (isUniqueViolation(error)) outcome = refuse(409, 'email_taken', 'An account with this address already exists.', { email: 'An account with this address already exists.' });
+    // Two sign-ups for one address racing: the unique index on lower(email) decides.
+    else if (uniqueViolation(error, 'users_email_lower_key')) outcome = refuse(409, 'email_taken', 'An account with this address already exists.', { email: 'An account with this address already exists.' });
     else throw error;
   }
   if (!outcome.ok) return outcome;
@@ -98,10 +100,6 @@ class SignUpAborted extends Error {
   constructor(readonly failure: Refusal) {
     super(failure.code);
   }
-}
-
-function isUniqueViolation(error: unknown): boolean {
-  return typeof error === 'object' && error !== null && (error as { code?: string }).code === '23505';
 }
 
 /**
