@@ -1,6 +1,6 @@
 import type { Kysely } from 'kysely';
 import type { Database, Role } from '~/lib/db/database';
-import type { Actor } from '~/lib/http/result';
+import type { Actor } from '~/lib/auth/types';
 import { addMember, makeCrew, makeUser } from './factories';
 
 /** A crew with one member of the given role, as the services' Actor. */

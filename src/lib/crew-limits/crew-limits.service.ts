@@ -2,15 +2,18 @@
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
 import { canEditLimits } from '../auth/permissions';
-import type { CrewMembership } from '../auth/types';
+import type { Actor, CrewMembership } from '../auth/types';
+import { refuse, refuseForbidden, succeed, type Result } from '../http/result';
 import { recordAuditEvent } from '../audit/audit.repository';
 import { recomputeMachineFindings } from '../lab-import/lab-import.service';
 import { LIMIT_FIELDS, type LimitValues } from './crew-limits';
 import { listCrewLimits, listCrewMachineSamples, lockCrewLimits, writeCrewLimit } from './crew-limits.repository';
 
-export type SaveLimitsResult =
-  | { ok: true; changed: number; machinesJudged: number }
-  | { ok: false; status: 403 | 404; message: string };
+/** How many limits changed, and how many machines were judged again because of them. */
+export interface SavedLimits {
+  changed: number;
+  machinesJudged: number;
+}
 
 /** The change in words for the crew's log ("Iron: 100 → 80 ppm; Water: 0.05 → default"). */
 export function describeChanges(changes: readonly { measurand: string; from: number | null; to: number | null }[]): string {
@@ -32,10 +35,10 @@ export async function loadCrewLimits(db: Kysely<Database>, membership: CrewMembe
  * stored findings and interval calls never disagree with the limits on this page.
  */
 export async function saveCrewLimits(
-  db: Kysely<Database>, actor: { userId: string; membership: CrewMembership | null }, values: LimitValues, meta: { ip: string | null },
-): Promise<SaveLimitsResult> {
-  if (!actor.membership) return { ok: false, status: 404, message: 'No such crew.' };
-  if (!canEditLimits(actor.membership)) return { ok: false, status: 403, message: 'Only a lead of this crew changes its alert limits.' };
+  db: Kysely<Database>, actor: Actor<CrewMembership | null>, values: LimitValues, meta: { ip: string | null },
+): Promise<Result<SavedLimits>> {
+  if (!actor.membership) return refuse(404, 'not_found', 'No such crew.');
+  if (!canEditLimits(actor.membership)) return refuseForbidden('Only a lead of this crew changes its alert limits.');
   const crewId = actor.membership.crewId;
   return db.transaction().execute(async (trx) => {
     const before = new Map((await lockCrewLimits(trx, crewId)).map((r) => [r.measurand, r.act_at]));
@@ -49,7 +52,7 @@ export async function saveCrewLimits(
       await writeCrewLimit(trx, crewId, f.measurand, to, actor.userId);
       changes.push({ measurand: f.measurand, from, to });
     }
-    if (changes.length === 0) return { ok: true as const, changed: 0, machinesJudged: 0 };
+    if (changes.length === 0) return succeed({ changed: 0, machinesJudged: 0 });
     await recordAuditEvent(trx, { kind: 'alert_limits_changed', crewId, actorUserId: actor.userId, ip: meta.ip, detail: { limits: describeChanges(changes) } });
     const machines = await listCrewMachineSamples(trx, crewId);
     let judged = 0;
@@ -58,6 +61,6 @@ export async function saveCrewLimits(
       await recomputeMachineFindings(trx, machineId, new Set(sampleIds));
       judged += 1;
     }
-    return { ok: true as const, changed: changes.length, machinesJudged: judged };
+    return succeed({ changed: changes.length, machinesJudged: judged });
   });
 }

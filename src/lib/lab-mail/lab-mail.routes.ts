@@ -9,6 +9,7 @@ import type { AppConfig } from '../config';
 import type { Database } from '../db/database';
 import { readForm, wantsPage } from '../http/form';
 import { fieldErrorsFrom, jsonError, jsonOk, readBodyBytes } from '../http/json';
+import { refusalJson } from '../http/responses';
 import { checkInboundWebhook, importAddressFormSchema, MAX_INBOUND_MAIL_BYTES, WEBHOOK_HEADERS } from './lab-mail';
 import { changeSender, receiveInboundMail, rotateImportAddress } from './lab-mail.service';
 
@@ -44,8 +45,8 @@ export async function handleImportAddressPost(db: Kysely<Database>, ctx: Address
     input.action === 'rotate'
       ? await rotateImportAddress(db, { crewId: crew.crewId, userId: user.id, ip: ctx.ip, domain: ctx.config.INBOUND_MAIL_DOMAIN })
       : await changeSender(db, { crewId: crew.crewId, userId: user.id, ip: ctx.ip, sender: input.sender, add: input.action === 'add-sender' });
-  if (!result.ok) return html ? back(`address_error=${encodeURIComponent(result.message)}`) : jsonError(result.status, 'invalid_input', result.message, result.fields ?? {});
-  return html ? back(`address_done=${encodeURIComponent(result.message)}`) : jsonOk({ message: result.message });
+  if (!result.ok) return html ? back(`address_error=${encodeURIComponent(result.message)}`) : refusalJson(result);
+  return html ? back(`address_done=${encodeURIComponent(result.value.message)}`) : jsonOk({ message: result.value.message });
 }
 
 /**

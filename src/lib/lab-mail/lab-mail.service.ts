@@ -24,6 +24,7 @@ import type { AlertEnv } from '../alerts/alerts';
 import { listCrewRecipients } from '../alerts/alerts.repository';
 import { recordAuditEvent } from '../audit/audit.repository';
 import type { Database } from '../db/database';
+import { refuse, succeed, type Result } from '../http/result';
 import { storeLabFile } from '../lab-import/lab-import.service';
 import { composeLabReportArrived } from './lab-mail-notice';
 import {
@@ -51,9 +52,8 @@ export async function getImportAddress(db: Db, crewId: string, domain: string): 
   return { address: formatImportAddress(row.token, domain), rotatedAt: row.rotated_at, senders: await repo.listSenders(db, crewId) };
 }
 
-export type ImportAddressChange =
-  | { ok: true; message: string }
-  | { ok: false; status: 400 | 409; message: string; fields?: Record<string, string> };
+/** A change to the import address answers with a sentence for the lead. */
+export type ImportAddressChange = Result<{ message: string }>;
 
 /** Replace the crew's token (the old address stops working at once), in the audit log. */
 export async function rotateImportAddress(db: Kysely<Database>, input: { crewId: string; userId: string; ip: string | null; domain: string }): Promise<ImportAddressChange> {
@@ -61,7 +61,7 @@ export async function rotateImportAddress(db: Kysely<Database>, input: { crewId:
     await getImportAddress(trx, input.crewId, input.domain);
     await repo.replaceImportToken(trx, input.crewId, generateImportToken(), input.userId);
     await recordAuditEvent(trx, { kind: 'import_address_rotated', crewId: input.crewId, actorUserId: input.userId, ip: input.ip });
-    return { ok: true, message: 'The import address was replaced. Give the new one to your labs; mail to the old one is now refused.' };
+    return succeed({ message: 'The import address was replaced. Give the new one to your labs; mail to the old one is now refused.' });
   });
 }
 
@@ -74,11 +74,11 @@ export async function changeSender(
     const changed = input.add ? await repo.insertSender(trx, input.crewId, input.sender, input.userId) : await repo.deleteSender(trx, input.crewId, input.sender);
     if (!changed) {
       return input.add
-        ? { ok: false as const, status: 409 as const, message: `${input.sender} is already on the list.`, fields: { sender: 'already on the list' } }
-        : { ok: false as const, status: 400 as const, message: `${input.sender} is not on the list.`, fields: { sender: 'not on the list' } };
+        ? refuse(409, 'invalid_input', `${input.sender} is already on the list.`, { sender: 'already on the list' })
+        : refuse(400, 'invalid_input', `${input.sender} is not on the list.`, { sender: 'not on the list' });
     }
     await recordAuditEvent(trx, { kind: input.add ? 'import_sender_added' : 'import_sender_removed', crewId: input.crewId, actorUserId: input.userId, ip: input.ip, detail: { sender: input.sender } });
-    return { ok: true as const, message: input.add ? `Mail from ${input.sender} is now imported.` : `${input.sender} was removed from the list.` };
+    return succeed({ message: input.add ? `Mail from ${input.sender} is now imported.` : `${input.sender} was removed from the list.` });
   });
 }
 

@@ -6,8 +6,9 @@ import type { Kysely, Transaction } from 'kysely';
 import { recordAuditEvent } from '../audit/audit.repository';
 import { canRecordNewOilReference } from '../auth/permissions';
 import type { Database, NewOilReadingJson } from '../db/database';
-import { isUuid } from '../machines/machines.repository';
-import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type ServiceResult } from '~/lib/http/result';
+import { isUuid } from '../ids';
+import type { Actor } from '~/lib/auth/types';
+import { refuse, refuseInvalid, refuseNotFound, succeed, type Result } from '~/lib/http/result';
 import { parseSaeGrade } from '../oil-changes/sae-grade';
 import { normaliseBottleCode } from '../samples/bottle-code';
 import type { LabReadings } from '../lab-csv/lab-csv';
@@ -29,7 +30,7 @@ export async function listNewOilReferences(db: Db, actor: Actor): Promise<NewOil
 }
 
 /** One reference of the crew. */
-export async function getNewOilReference(db: Db, actor: Actor, id: string): Promise<ServiceResult<NewOilReference>> {
+export async function getNewOilReference(db: Db, actor: Actor, id: string): Promise<Result<NewOilReference>> {
   if (!isUuid(id)) return refuseNotFound('new-oil reference');
   const row = await repo.findReferenceOfCrew(db, actor.membership.crewId, id);
   return row ? succeed(toNewOilReference(row)) : refuseNotFound('new-oil reference');
@@ -71,7 +72,7 @@ export async function describeMachineOil(db: Db, actor: Actor, machineId: string
   return { productName: latest.oil_product.trim(), saeGrade: latest.sae_grade, references: refs.map(toNewOilReference) };
 }
 
-async function validate(db: Db, actor: Actor, input: unknown, exceptId: string | null): Promise<ServiceResult<repo.ReferenceValues>> {
+async function validate(db: Db, actor: Actor, input: unknown, exceptId: string | null): Promise<Result<repo.ReferenceValues>> {
   const parsed = newOilInputSchema.safeParse(input);
   if (!parsed.success) return refuseInvalid(parsed.error);
   const d = parsed.data;
@@ -108,7 +109,7 @@ async function validate(db: Db, actor: Actor, input: unknown, exceptId: string |
 }
 
 /** Records a new-oil reference of an oil product for the actor's crew. */
-export async function createNewOilReference(db: Kysely<Database>, actor: Actor, input: unknown): Promise<ServiceResult<NewOilReference>> {
+export async function createNewOilReference(db: Kysely<Database>, actor: Actor, input: unknown): Promise<Result<NewOilReference>> {
   if (!canRecordNewOilReference(actor.membership)) return refuse(403, 'forbidden', FORBIDDEN);
   return db.transaction().execute(async (trx) => {
     const v = await validate(trx, actor, input, null);
@@ -123,7 +124,7 @@ export async function createNewOilReference(db: Kysely<Database>, actor: Actor, 
  * Changes a reference. Its source stays what it was. A lab reference whose bottle code changes loses its
  * results: they belonged to the old bottle, and the new bottle's come with the next import.
  */
-export async function updateNewOilReference(db: Kysely<Database>, actor: Actor, id: string, input: unknown): Promise<ServiceResult<NewOilReference>> {
+export async function updateNewOilReference(db: Kysely<Database>, actor: Actor, id: string, input: unknown): Promise<Result<NewOilReference>> {
   if (!canRecordNewOilReference(actor.membership)) return refuse(403, 'forbidden', FORBIDDEN);
   const found = await getNewOilReference(db, actor, id);
   if (!found.ok) return found;
@@ -140,7 +141,7 @@ export async function updateNewOilReference(db: Kysely<Database>, actor: Actor, 
 }
 
 /** Deletes a reference of the crew. */
-export async function deleteNewOilReference(db: Kysely<Database>, actor: Actor, id: string): Promise<ServiceResult<{ id: string }>> {
+export async function deleteNewOilReference(db: Kysely<Database>, actor: Actor, id: string): Promise<Result<{ id: string }>> {
   if (!canRecordNewOilReference(actor.membership)) return refuse(403, 'forbidden', FORBIDDEN);
   const found = await getNewOilReference(db, actor, id);
   if (!found.ok) return found;

@@ -1,7 +1,7 @@
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
 import { canActorEdit, listMachines } from '../machines/machines.service';
-import type { Actor } from '~/lib/http/result';
+import type { Actor } from '~/lib/auth/types';
 
 /**
  * The pages a device keeps for working without a network after one visit: home, the machine list, the

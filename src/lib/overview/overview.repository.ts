@@ -12,7 +12,7 @@
  */
 import { sql, type Kysely } from 'kysely';
 import type { Database, IntervalCallKind, Level, Meter, Role } from '../db/database';
-import { isUuid } from '../trends/trends.repository';
+import { isUuid } from '../ids';
 import { OVERVIEW_PAGE_SIZE, type OverviewPage, type OverviewQuery, type OverviewRow } from './overview';
 
 interface RawRow {

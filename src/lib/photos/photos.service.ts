@@ -2,7 +2,8 @@ import type { Kysely, Transaction } from 'kysely';
 import type { Database } from '../db/database';
 import { canReadCrew } from '../auth/permissions';
 import type { CrewMembership } from '../auth/types';
-import { refuse, refuseNotFound, succeed, type Actor, type ServiceResult } from '~/lib/http/result';
+import type { Actor } from '~/lib/auth/types';
+import { refuse, refuseNotFound, succeed, type Result } from '~/lib/http/result';
 import { preparePhoto, type PreparedPhoto } from './photos';
 import { findPhotoOfCrews, insertPhoto, type PhotoRow } from './photos.repository';
 import { writePhotoFile } from './photos.storage';
@@ -23,7 +24,7 @@ export async function storePreparedPhoto(
 /** Checks and stores one uploaded photo, not yet attached to an oil change (the form attaches it on save). */
 export async function uploadPhoto(
   db: Kysely<Database>, actor: Actor, bytes: Uint8Array, fileName: string, uploadDir: string, quotaBytes = CREW_STORAGE_QUOTA_BYTES,
-): Promise<ServiceResult<PhotoRow>> {
+): Promise<Result<PhotoRow>> {
   if (!canReadCrew(actor.membership) || actor.membership.role === 'mechanic') {
     return refuse(403, 'forbidden', 'Your role in this crew does not add photos.');
   }
@@ -37,7 +38,7 @@ export async function uploadPhoto(
 }
 
 /** A photo for a member of its crew; any other asker gets "not found". */
-export async function getPhotoForMember(db: Kysely<Database>, memberships: readonly CrewMembership[], id: string): Promise<ServiceResult<PhotoRow>> {
+export async function getPhotoForMember(db: Kysely<Database>, memberships: readonly CrewMembership[], id: string): Promise<Result<PhotoRow>> {
   const crews = memberships.filter((m) => canReadCrew(m)).map((m) => m.crewId);
   const row = await findPhotoOfCrews(db, crews, id);
   return row ? succeed(row) : refuseNotFound('photo');

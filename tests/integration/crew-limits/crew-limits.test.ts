@@ -38,7 +38,7 @@ describe('saveCrewLimits', () => {
   test('a lead lowers the iron limit: stored, audited, and the sample is judged again in the same save', async () => {
     expect(await fixedLimitFindings()).toEqual([]);
     const r = await saveCrewLimits(db, lead(), { Fe: 50 } as LimitValues, meta);
-    expect(r).toEqual({ ok: true, changed: 1, machinesJudged: 1 });
+    expect(r).toEqual({ ok: true, value: { changed: 1, machinesJudged: 1 } });
     expect(await limitRows()).toEqual([{ measurand: 'Fe', act_at: 50, updated_by: leadId }]);
     expect(await fixedLimitFindings()).toEqual([{ measurand: 'Fe', level: 'act' }]);
     const audit = await auditRows();
@@ -50,14 +50,14 @@ describe('saveCrewLimits', () => {
   test('clearing the box goes back to the default: the row is removed and the finding goes with it', async () => {
     await saveCrewLimits(db, lead(), { Fe: 50 } as LimitValues, meta);
     const r = await saveCrewLimits(db, lead(), { Fe: null } as LimitValues, meta);
-    expect(r).toEqual({ ok: true, changed: 1, machinesJudged: 1 });
+    expect(r).toEqual({ ok: true, value: { changed: 1, machinesJudged: 1 } });
     expect(await limitRows()).toEqual([]);
     expect(await fixedLimitFindings()).toEqual([]);
     expect(await auditRows()).toHaveLength(2);
   });
 
   test('typing the default or saving the same figures changes nothing and records nothing', async () => {
-    expect(await saveCrewLimits(db, lead(), { Fe: 100, Si: 20 } as LimitValues, meta)).toEqual({ ok: true, changed: 0, machinesJudged: 0 });
+    expect(await saveCrewLimits(db, lead(), { Fe: 100, Si: 20 } as LimitValues, meta)).toEqual({ ok: true, value: { changed: 0, machinesJudged: 0 } });
     expect(await limitRows()).toEqual([]);
     expect(await auditRows()).toEqual([]);
   });
@@ -75,7 +75,7 @@ describe('saveCrewLimits', () => {
 
   test('the KV100 change limit is stored under KV100 and read by the recompute', async () => {
     const r = await saveCrewLimits(db, lead(), { KV100: 10 } as LimitValues, meta);
-    expect(r).toMatchObject({ ok: true, changed: 1 });
+    expect(r).toMatchObject({ ok: true, value: { changed: 1 } });
     expect(await limitRows()).toEqual([{ measurand: 'KV100', act_at: 10, updated_by: leadId }]);
   });
 });

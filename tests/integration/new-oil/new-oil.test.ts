@@ -4,7 +4,7 @@ import { confirmLabImport, previewLabImport, storeLabFile } from '~/lib/lab-impo
 import {
   createNewOilReference, deleteNewOilReference, describeMachineOil, listNewOilReferences, listProductsInUse, loadNewOilLookup, updateNewOilReference,
 } from '~/lib/new-oil/new-oil.service';
-import type { Actor } from '~/lib/http/result';
+import type { Actor } from '~/lib/auth/types';
 import { openTestDb, truncateAll } from '../test-database';
 import { addActor, makeActor } from '../rider-fixtures';
 import { makeMachine } from '../factories';
