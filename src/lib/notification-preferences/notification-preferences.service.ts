@@ -1,6 +1,7 @@
 /** Reading and saving a user's alert preferences, per crew and kind of message. */
 import type { Kysely, Transaction } from 'kysely';
 import type { Database, NotificationDelivery, NotificationKind, Role } from '../db/database';
+import { refuseNotFound, succeed, type Result } from '../http/result';
 import { DEFAULT_DELIVERY, NOTIFICATION_KINDS, type PreferenceChoice } from './notification-preferences';
 import { findDeliveries, listUserCrews, listUserPreferences, upsertPreference } from './notification-preferences.repository';
 
@@ -31,15 +32,14 @@ export async function resolveDeliveries(db: Db, crewId: string, kind: Notificati
 
 /**
  * Saves the user's choices in one transaction; a choice for a crew the user is not a member of is refused
- * (a forged form must not create rows for other crews). Returns the refused crew ids.
+ * (a forged form must not create rows for other crews) and, like any other crew's record, answers not found.
  */
-export async function saveUserPreferences(db: Kysely<Database>, userId: string, choices: readonly PreferenceChoice[]): Promise<{ refused: string[] }> {
+export async function saveUserPreferences(db: Kysely<Database>, userId: string, choices: readonly PreferenceChoice[]): Promise<Result<void>> {
   return db.transaction().execute(async (trx) => {
     const crews = new Set((await listUserCrews(trx, userId)).map((c) => c.crew_id));
-    const refused = [...new Set(choices.filter((c) => !crews.has(c.crewId)).map((c) => c.crewId))];
-    if (refused.length > 0) return { refused };
+    if (choices.some((c) => !crews.has(c.crewId))) return refuseNotFound();
     for (const c of choices) await upsertPreference(trx, { userId, crewId: c.crewId, kind: c.kind, delivery: c.delivery });
-    return { refused };
+    return succeed(undefined);
   });
 }
 
