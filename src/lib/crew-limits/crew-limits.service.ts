@@ -4,7 +4,7 @@ import type { Database } from '../db/database';
 import { canEditLimits } from '../auth/permissions';
 import type { CrewMembership } from '../auth/types';
 import { recordAuditEvent } from '../audit/audit.repository';
-import { recomputeMachineFindings } from '../lab-import/lab-import.service';
+import { recomputeMachineFindings } from '../findings/findings.service';
 import { LIMIT_FIELDS, type LimitValues } from './crew-limits';
 import { listCrewLimits, listCrewMachineSamples, lockCrewLimits, writeCrewLimit } from './crew-limits.repository';
 

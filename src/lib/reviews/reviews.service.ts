@@ -6,7 +6,7 @@ import type { Database } from '../db/database';
 import { toStoredMeter } from '../units/units';
 import type { BaselineChoice, CallDecision, CallHistoryEntry, ReviewNote } from './reviews';
 import { recordAuditEvent } from '../audit/audit.repository';
-import { recomputeFindings } from '../lab-import/lab-import.service';
+import { recomputeFindings } from '../findings/findings.service';
 import { findBaselineStatus, findReviewSample, insertIntervalCall, updateSampleBaseline, insertReviewNote, listCallHistory, listReviewNotes, markSampleReviewed } from './reviews.repository';
 
 export type ReviewResult<T> =
