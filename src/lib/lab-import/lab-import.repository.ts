@@ -1,6 +1,6 @@
 /** Every query of the lab import. Each function takes `db` or a transaction first. */
 import { sql, type Kysely, type Transaction } from 'kysely';
-import type { Database, SampleState } from '../db/database';
+import type { Database } from '../db/database';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
@@ -260,13 +260,4 @@ export async function insertReadings(db: Db, rows: ReadingColumns, importId: str
                   ${sql.val(rows.values.slice(from, to))}::float8[], ${sql.val(rows.qualifiers.slice(from, to))}::text[]) as t(s, m, v, q)`.execute(db);
   }
   return n;
-}
-
-/** Move samples to a state, with one sample_events row each. */
-export async function updateSampleStates(db: Db, sampleIds: readonly string[], state: SampleState, note: string, actorUserId: string): Promise<void> {
-  if (sampleIds.length === 0) return;
-  await db.updateTable('samples').set({ state }).where('id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`).execute();
-  await sql`
-    insert into sample_events (sample_id, state, note, actor_user_id)
-    select s, ${state}, ${note}, ${actorUserId} from unnest(${sql.val(sampleIds)}::uuid[]) as t(s)`.execute(db);
 }

@@ -38,6 +38,7 @@ import {
 import * as repo from './lab-import.repository';
 import { queueImportAlerts } from '../alerts/alerts.service';
 import { recomputeChangedSamples } from '../findings/findings.service';
+import { recordSampleStates } from '../samples/sample-lifecycle';
 import { findNewOilBottles, findNewOilCodesWrittenBy, splitNewOilRows, writeNewOilResults } from '../new-oil/new-oil.service';
 
 type Db = Kysely<Database> | Transaction<Database>;
@@ -418,7 +419,7 @@ export async function confirmLabImport(
       await hooks.afterReadings?.(trx);
 
       const sampleIds = [...new Set([...sampleOf.values()].map((s) => s.sampleId))];
-      await repo.updateSampleStates(trx, sampleIds, 'results_in', `Lab results imported from "${preview.file.fileName}".`, input.userId);
+      await recordSampleStates(trx, sampleIds, 'results_in', input.userId, `Lab results imported from "${preview.file.fileName}".`);
 
       // Findings of every changed sample's machine, then of the young same-engine peers (one shared path with reviews).
       const findingsWritten = await recomputeChangedSamples(trx, sampleOf.values(), known);

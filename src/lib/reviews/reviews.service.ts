@@ -7,7 +7,8 @@ import { toStoredMeter } from '../units/units';
 import type { BaselineChoice, CallDecision, CallHistoryEntry, ReviewNote } from './reviews';
 import { recordAuditEvent } from '../audit/audit.repository';
 import { recomputeFindings } from '../findings/findings.service';
-import { findBaselineStatus, findReviewSample, insertIntervalCall, updateSampleBaseline, insertReviewNote, listCallHistory, listReviewNotes, markSampleReviewed } from './reviews.repository';
+import { findBaselineStatus, findReviewSample, insertIntervalCall, updateSampleBaseline, insertReviewNote, listCallHistory, listReviewNotes } from './reviews.repository';
+import { recordSampleState } from '../samples/sample-lifecycle';
 
 export type ReviewResult<T> =
   | { ok: true; value: T }
@@ -78,7 +79,8 @@ export async function decideIntervalCall(
         reasons: [decision.note], note: decision.note, madeBy: actor.userId,
       });
     }
-    await markSampleReviewed(trx, sampleId, actor.userId, decision.action === 'confirm' ? 'Interval call confirmed.' : 'Interval call overridden.');
+    // A second decision on a reviewed sample keeps it reviewed, with no second event.
+    await recordSampleState(trx, sampleId, 'reviewed', actor.userId, decision.action === 'confirm' ? 'Interval call confirmed.' : 'Interval call overridden.');
     const entry = (await listCallHistory(trx, sampleId)).find((c) => c.id === id)!;
     return { ok: true, value: { id, entry } } as const;
   });

@@ -9,7 +9,8 @@ import { parseSaeGrade } from '../oil-changes/sae-grade';
 import { formatMeter, toStoredMeter } from '../units/units';
 import { explainIssuedCode, generateIssuedCode, normaliseBottleCode } from './bottle-code';
 import { findNewOilBottles } from '../new-oil/new-oil.service';
-import { drainCardSchema, SAMPLE_STATES, shipSchema, toSample, type Sample } from './samples';
+import { drainCardSchema, shipSchema, toSample, type Sample } from './samples';
+import { recordSampleDrawn, recordSampleState } from './sample-lifecycle';
 import {
   countSamplesByState, findSampleByBottleCode, findSampleByClientKey, findSampleEvents, findSampleOfCrew, findSamplesOfCrew,
   findSamplesOfMachine, findUnusedReservedCodes, reserveBottleCode,
@@ -156,7 +157,7 @@ export async function registerDrainCard(db: Kysely<Database>, actor: Actor, mach
         oil_product: d.oilProduct || change?.oilProduct || '', draw_method: d.drawMethod, client_key: d.clientKey ?? null,
         created_by: actor.userId,
       }).returningAll().executeTakeFirstOrThrow();
-      await trx.insertInto('sample_events').values({ sample_id: row.id, state: 'drawn', actor_user_id: actor.userId }).execute();
+      await recordSampleDrawn(trx, row.id, actor.userId);
       return succeed({ sample: toSample(row), repeated: false });
     });
   } catch (e) {
@@ -172,19 +173,6 @@ export async function registerDrainCard(db: Kysely<Database>, actor: Actor, mach
     }
     throw e;
   }
-}
-
-/**
- * Moves a sample forward to a later state and records when and by whom (the lab import calls this with
- * 'results_in', a review with 'reviewed'). Moving backwards or to the same state is refused.
- */
-export async function recordSampleState(trx: Db, sampleId: string, state: SampleState, actorUserId: string | null, note = ''): Promise<boolean> {
-  const row = await trx.selectFrom('samples').select(['state']).where('id', '=', sampleId).forUpdate().executeTakeFirst();
-  if (!row || SAMPLE_STATES.indexOf(state) <= SAMPLE_STATES.indexOf(row.state)) return false;
-  const patch = state === 'shipped' ? { state, tracking_note: note } : { state };
-  await trx.updateTable('samples').set(patch).where('id', '=', sampleId).execute();
-  await trx.insertInto('sample_events').values({ sample_id: sampleId, state, note, actor_user_id: actorUserId }).execute();
-  return true;
 }
 
 /** Marks a drawn sample shipped, with an optional tracking note. */
