@@ -37,6 +37,11 @@ export function findLabFileOfCrew(db: Db, crewId: string, id: string) {
     .executeTakeFirst();
 }
 
+/** Locks a crew's lab file row for the rest of the transaction: one confirm of a file at a time. */
+export async function lockLabFile(db: Db, crewId: string, id: string): Promise<void> {
+  await db.selectFrom('lab_files').select('id').where('id', '=', id).where('crew_id', '=', crewId).forUpdate().execute();
+}
+
 /** The raw bytes of a crew's lab file. */
 export async function findLabFileContent(db: Db, crewId: string, id: string): Promise<Buffer | undefined> {
   const row = await db.selectFrom('lab_files').select('content').where('crew_id', '=', crewId).where('id', '=', id).executeTakeFirst();

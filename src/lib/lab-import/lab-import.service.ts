@@ -4,7 +4,7 @@
  * engine's interval call, or nothing at all.
  */
 import { createHash } from 'node:crypto';
-import { sql, type Kysely, type Transaction } from 'kysely';
+import type { Kysely, Transaction } from 'kysely';
 import type { SamplePoint } from '../analysis';
 import type { MeasurandCode } from '../analysis/measurands';
 import type { Database } from '../db/database';
@@ -351,7 +351,7 @@ export async function confirmLabImport(
     return await inTransaction(async (trx) => {
       if (UUID.test(input.labFileId)) {
         // One confirm at a time per file: a second one waits here and then sees the first one's import.
-        await sql`select id from lab_files where id = ${input.labFileId}::uuid and crew_id = ${input.crewId}::uuid for update`.execute(trx);
+        await repo.lockLabFile(trx, input.crewId, input.labFileId);
       }
       const previewed = await previewLabImport(trx, input);
       if (!previewed.ok) return previewed;

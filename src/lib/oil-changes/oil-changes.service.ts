@@ -7,7 +7,7 @@ import { attachPhotos, findPhotosOfOilChanges, type PhotoRow } from '../photos/p
 import { storePreparedPhoto } from '../photos/photos.service';
 import { formatMeter, toStoredMeter } from '../units/units';
 import { computeDistances, explainAbsurdOdometer, oilChangeInputSchema, toOilChange, type OilChange } from './oil-changes';
-import { findLatestOilChange, findOilChangeAfter, findOilChangeBefore, findOilChangeByClientKey, findOilChangesOfMachine } from './oil-changes.repository';
+import { findLatestOilChange, findOilChangeAfter, findOilChangeBefore, findOilChangeByClientKey, findOilChangesOfMachine, insertOilChange } from './oil-changes.repository';
 import { parseSaeGrade } from './sae-grade';
 import { checkCrewQuota } from '../storage-quota/storage-quota';
 import { sumCrewStorageBytes } from '../storage-quota/storage-quota.repository';
@@ -73,12 +73,12 @@ export async function createOilChange(
         });
       }
     }
-    const row = await trx.insertInto('oil_changes').values({
+    const row = await insertOilChange(trx, {
       crew_id: crewId, machine_id: machineId, changed_on: d.changedOn, odometer, meter_replaced: d.meterReplaced,
       oil_product: d.oilProduct, sae_grade: grade.grade, volume_l: d.volumeL ?? null, filter_changed: d.filterChanged,
       top_up_l: d.topUpL ?? 0, other_work: JSON.stringify(d.otherWork), notes: d.notes, created_by: actor.userId,
       client_key: d.clientKey ?? null,
-    }).returningAll().executeTakeFirstOrThrow();
+    });
     const ids = [...new Set(d.photoIds)];
     const attached = await attachPhotos(trx, crewId, actor.userId, ids, row.id);
     if (attached !== ids.length) {

@@ -1,5 +1,5 @@
-import { sql, type Kysely, type Transaction } from 'kysely';
-import type { Database, SampleRow, SampleState } from '../db/database';
+import { sql, type Insertable, type Kysely, type Transaction } from 'kysely';
+import type { Database, SampleRow, SamplesTable, SampleState } from '../db/database';
 import { isUuid } from '../machines/machines.repository';
 
 type Db = Kysely<Database> | Transaction<Database>;
@@ -95,4 +95,9 @@ export async function insertSampleEvents(db: Db, sampleIds: readonly string[], s
   await sql`
     insert into sample_events (sample_id, state, note, actor_user_id)
     select s, ${state}, ${note}, ${actorUserId} from unnest(${sql.val(sampleIds)}::uuid[]) as t(s)`.execute(db);
+}
+
+/** Writes a sample (its first state is the column default, 'drawn') and answers the stored row. */
+export function insertSample(db: Db, row: Insertable<SamplesTable>): Promise<SampleRow> {
+  return db.insertInto('samples').values(row).returningAll().executeTakeFirstOrThrow();
 }

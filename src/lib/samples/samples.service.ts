@@ -4,7 +4,7 @@ import { canCreateMachine, canReadCrew } from '../auth/permissions';
 import { canActorEdit, getMachine } from '../machines/machines.service';
 import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type FieldErrors, type ServiceResult } from '~/lib/http/result';
 import { explainAbsurdOdometer, toOilChange, type OilChange } from '../oil-changes/oil-changes';
-import { findLatestOilChange, findOilChangesOfMachine } from '../oil-changes/oil-changes.repository';
+import { findLatestOilChange, findOilChangeOfCrew, findOilChangesOfMachine } from '../oil-changes/oil-changes.repository';
 import { parseSaeGrade } from '../oil-changes/sae-grade';
 import { formatMeter, toStoredMeter } from '../units/units';
 import { explainIssuedCode, generateIssuedCode, normaliseBottleCode } from './bottle-code';
@@ -13,7 +13,7 @@ import { drainCardSchema, shipSchema, toSample, type Sample } from './samples';
 import { recordSampleDrawn, recordSampleState } from './sample-lifecycle';
 import {
   countSamplesByState, findSampleByBottleCode, findSampleByClientKey, findSampleEvents, findSampleOfCrew, findSamplesOfCrew,
-  findSamplesOfMachine, findUnusedReservedCodes, reserveBottleCode,
+  findSamplesOfMachine, findUnusedReservedCodes, insertSample, reserveBottleCode,
 } from './samples.repository';
 
 type Db = Kysely<Database> | Transaction<Database>;
@@ -150,13 +150,13 @@ export async function registerDrainCard(db: Kysely<Database>, actor: Actor, mach
           bottleCode: `Bottle code ${d.bottleCode} is the bottle of new oil registered for “${newOilBottle.productName}”. Each bottle needs its own code.`,
         });
       }
-      const row = await trx.insertInto('samples').values({
+      const row = await insertSample(trx, {
         crew_id: crewId, machine_id: machineId, oil_change_id: change?.id ?? null, bottle_code: d.bottleCode.toUpperCase(),
         bottle_code_norm: norm, issued_code: d.codeSource === 'issued', drawn_on: d.drawnOn, odometer, distance_on_oil: distanceOnOil,
         top_up_l: d.topUpL ?? 0, sae_grade: grade && grade.ok ? grade.grade : change?.saeGrade ?? null,
         oil_product: d.oilProduct || change?.oilProduct || '', draw_method: d.drawMethod, client_key: d.clientKey ?? null,
         created_by: actor.userId,
-      }).returningAll().executeTakeFirstOrThrow();
+      });
       await recordSampleDrawn(trx, row.id, actor.userId);
       return succeed({ sample: toSample(row), repeated: false });
     });
@@ -200,9 +200,7 @@ export async function getSampleDetail(db: Kysely<Database>, actor: Actor, sample
   if (!row) return refuseNotFound('sample');
   const [machine, events] = await Promise.all([getMachine(db, actor, row.machine_id), findSampleEvents(db, row.id)]);
   if (!machine.ok) return machine;
-  const oilChange = row.oil_change_id
-    ? await db.selectFrom('oil_changes').selectAll().where('id', '=', row.oil_change_id).executeTakeFirst()
-    : undefined;
+  const oilChange = row.oil_change_id ? await findOilChangeOfCrew(db, row.crew_id, row.oil_change_id) : undefined;
   return succeed({ sample: toSample(row), machine: machine.value, events, oilChange: oilChange ? toOilChange(oilChange) : null });
 }
 
