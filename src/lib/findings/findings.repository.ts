@@ -6,6 +6,7 @@
 import { sql, type Kysely, type Transaction } from 'kysely';
 import type { Database, IntervalCallKind, Level } from '../db/database';
 import type { StoredBand } from '../trends/trend-types';
+import type { FindingsSample, StoredFinding, StoredReading, StoredSampleBand } from './findings-view';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
@@ -247,4 +248,35 @@ export function listStaleMachines(db: Db, version: string, afterId: string | nul
 /** Locks one machine row for the rest of the transaction; undefined when it is gone. */
 export function lockMachine(db: Db, machineId: string) {
   return db.selectFrom('machines').select(['id', 'judged_by']).where('id', '=', machineId).forUpdate().executeTakeFirst();
+}
+
+/** A sample of the crew with its machine's distance unit, for its findings view; undefined for another crew's. */
+export async function findFindingsSample(db: Db, crewId: string, sampleId: string): Promise<FindingsSample | undefined> {
+  const row = await db.selectFrom('samples').innerJoin('machines', 'machines.id', 'samples.machine_id')
+    .select(['samples.id', 'samples.state', 'samples.distance_on_oil', 'machines.meter'])
+    .where('samples.id', '=', sampleId).where('samples.crew_id', '=', crewId).executeTakeFirst();
+  return row && { id: row.id, state: row.state, distanceOnOil: row.distance_on_oil === null ? null : Number(row.distance_on_oil), meter: row.meter };
+}
+
+/** The readings of one sample. */
+export async function findReadingsOfSample(db: Db, sampleId: string): Promise<StoredReading[]> {
+  const rows = await db.selectFrom('readings').select(['measurand', 'value', 'qualifier']).where('sample_id', '=', sampleId).execute();
+  return rows.map((r) => ({ measurand: r.measurand, value: Number(r.value), qualifier: r.qualifier }));
+}
+
+/** The stored findings of one sample. */
+export async function findFindingsOfSample(db: Db, sampleId: string): Promise<StoredFinding[]> {
+  const rows = await db.selectFrom('findings').select(['id', 'measurand', 'level', 'rule_id', 'numbers', 'sentence']).where('sample_id', '=', sampleId).execute();
+  return rows.map((r) => ({ id: r.id, measurand: r.measurand, level: r.level, ruleId: r.rule_id, numbers: r.numbers ?? {}, sentence: r.sentence }));
+}
+
+/** The bands the rules used for one sample's readings (ready bands only). */
+export async function findBandsOfSample(db: Db, sampleId: string): Promise<StoredSampleBand[]> {
+  const rows = await db.selectFrom('baseline_bands')
+    .select(['measurand', 'basis', 'n', 'mean', 'watch_above', 'act_from', 'to_reported', 'source', 'source_label', 'source_machines'])
+    .where('sample_id', '=', sampleId).execute();
+  return rows.map((b) => ({
+    measurand: b.measurand, basis: b.basis, n: b.n, mean: Number(b.mean), watchAbove: Number(b.watch_above), actFrom: Number(b.act_from),
+    toReported: Number(b.to_reported), source: b.source, sourceLabel: b.source_label, sourceMachines: b.source_machines,
+  }));
 }

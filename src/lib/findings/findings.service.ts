@@ -14,6 +14,10 @@ import type { Database } from '../db/database';
 import { fromStoredMeter, toStoredMeter, type MeterUnit } from '../units/units';
 import { attachNewOil } from '../new-oil/new-oil';
 import { loadNewOilLookup } from '../new-oil/new-oil.service';
+import { canReadCrew } from '../auth/permissions';
+import type { CrewMembership } from '../auth/types';
+import { isUuid } from '../machines/machines.repository';
+import { buildFindingsView, type FindingsView } from './findings-view';
 import * as repo from './findings.repository';
 
 type Db = Kysely<Database> | Transaction<Database>;
@@ -247,4 +251,15 @@ export async function recomputeFindings(trx: Db, sampleId: string): Promise<numb
   const machine = await repo.findMachineOfSample(trx, sampleId);
   if (!machine) return 0;
   return recomputeChangedSamples(trx, [{ sampleId, machineId: machine.id }]);
+}
+
+/** How a sample's findings were made, for a member of its crew; null for another crew's or an unknown sample. */
+export async function loadFindingsView(db: Kysely<Database>, crew: CrewMembership | null, sampleId: string): Promise<FindingsView | null> {
+  if (!canReadCrew(crew) || !isUuid(sampleId)) return null;
+  const sample = await repo.findFindingsSample(db, crew.crewId, sampleId);
+  if (!sample) return null;
+  const [readings, findings, bands] = await Promise.all([
+    repo.findReadingsOfSample(db, sampleId), repo.findFindingsOfSample(db, sampleId), repo.findBandsOfSample(db, sampleId),
+  ]);
+  return buildFindingsView({ sample, readings, findings, bands });
 }
