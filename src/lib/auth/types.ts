@@ -23,3 +23,14 @@ export interface CrewMembership {
   crewName: string;
   role: Role;
 }
+
+/**
+ * Who is acting: the signed-in user and their membership of the crew in question. Most services act inside
+ * the session's crew (`Actor`); those that answer a non-member themselves take `Actor<CrewMembership | null>`.
+ */
+export interface Actor<Membership extends CrewMembership | null = CrewMembership> {
+  userId: string;
+  /** Shown to others where the action names who did it (an invitation's sender). */
+  displayName?: string;
+  membership: Membership;
+}

@@ -3,6 +3,20 @@ import { readBodyBytes, readBodyText } from './json';
 /** Cap on an HTML form post (sign-in, invitations, settings); uploads have their own limits elsewhere. */
 export const DEFAULT_FORM_LIMIT_BYTES = 16 * 1024;
 
+/**
+ * True when the caller is a browser's form that wants a page back (a redirect, an inline error), false for a
+ * script or an island that wants JSON. The Accept header decides when it names text/html or application/json
+ * (a browser's navigation always sends text/html). When it names neither (a wildcard from curl or fetch),
+ * `bareForm: 'page'` lets an endpoint whose plain HTML forms post urlencoded or multipart bodies treat such a
+ * body as a form; by default the silent caller is a script and gets JSON.
+ */
+export function wantsPage(request: Request, options: { bareForm?: 'page' | 'json' } = {}): boolean {
+  const accept = request.headers.get('accept') ?? '';
+  if (/application\/json/i.test(accept)) return false;
+  if (/text\/html/i.test(accept)) return true;
+  return options.bareForm === 'page' && /^(application\/x-www-form-urlencoded|multipart\/form-data)\b/i.test(request.headers.get('content-type') ?? '');
+}
+
 export type ParsedForm = { ok: true; form: URLSearchParams } | { ok: false; response: Response };
 
 /** Reads an urlencoded form body with a size cap: 413 when it is larger, 415 when it is not a plain form. */

@@ -6,11 +6,12 @@ import type { Database } from '../db/database';
 import { forbiddenPage } from './forbidden';
 import { canActorEdit, getMachine } from '~/lib/machines/machines.service';
 import { notFoundPage } from './not-found';
-import type { Actor, Refusal } from './result';
+import type { Actor } from '../auth/types';
+import type { Refusal } from './result';
 
 /** The services' actor for a signed-in user working in a crew. */
 export function actorFrom(g: { user: SessionUser; crew: CrewMembership }): Actor {
-  return { userId: g.user.id, membership: g.crew };
+  return { userId: g.user.id, displayName: g.user.displayName, membership: g.crew };
 }
 
 /** A page's answer to a refusal that has no field to show it beside: 404 renders src/pages/404.astro, 403 says why. */
@@ -27,12 +28,7 @@ export function echoValues(form: URLSearchParams | FormData): Record<string, str
   return out;
 }
 
-/** An endpoint's answer to a refusal, in the shared { error: { code, message, fields } } shape. */
-export function refusalJson(r: Refusal): Response {
-  return new Response(JSON.stringify({ error: { code: r.code, message: r.message, fields: r.fields } }), {
-    status: r.status, headers: { 'content-type': 'application/json; charset=utf-8', 'cache-control': 'no-store' },
-  });
-}
+export { refusalJson } from './responses';
 
 /** What a machine page needs once the visitor may see it. */
 export interface MachinePageContext {

@@ -1,8 +1,13 @@
-import type { ServiceFailure } from '../auth/result';
 import { jsonError } from './json';
+import type { Refusal } from './result';
 
-/** A service refusal as a JSON error in the shared shape (with Retry-After when rate limited). */
-export function jsonFailure(f: ServiceFailure): Response {
-  const headers: Record<string, string> = f.retryAfterSeconds ? { 'retry-after': String(f.retryAfterSeconds) } : {};
-  return jsonError(f.status, f.code, f.message, f.fields ?? {}, headers);
+/** A service refusal as a JSON error in the shared { error: { code, message, fields } } shape (with Retry-After when rate limited). */
+export function refusalJson(r: Refusal): Response {
+  const headers: Record<string, string> = r.retryAfterSeconds ? { 'retry-after': String(r.retryAfterSeconds) } : {};
+  return jsonError(r.status, r.code, r.message, r.fields, headers);
+}
+
+/** @deprecated Until auth and crews return {@link Refusal}; use {@link refusalJson}. */
+export function jsonFailure(f: { status: number; code: string; message: string; fields?: Record<string, string>; retryAfterSeconds?: number }): Response {
+  return refusalJson({ ...f, status: f.status as Refusal['status'], ok: false, fields: f.fields ?? {} });
 }

@@ -7,6 +7,7 @@ import type { Kysely } from 'kysely';
 import { canImportLabReport } from '../auth/permissions';
 import type { CrewMembership, SessionUser } from '../auth/types';
 import type { Database } from '../db/database';
+import { wantsPage } from '../http/form';
 import { jsonError, jsonOk, readBodyBytes } from '../http/json';
 import { notFoundPage } from '../http/not-found';
 import { MAX_LAB_FILE_BYTES, type LabCsvMappingTarget } from '../lab-csv/lab-csv';
@@ -22,12 +23,6 @@ export interface RouteContext {
 const MULTIPART_OVERHEAD_BYTES = 64 * 1024;
 /** A body past this is not read any further; up to it, it is drained so the browser gets the answer. */
 const DRAIN_LIMIT_BYTES = 64 * 1024 * 1024;
-
-/** True when the caller is a browser form (wants a page back), not a script or the Uppy island. */
-export function wantsHtml(request: Request): boolean {
-  const accept = request.headers.get('accept') ?? '';
-  return accept.includes('text/html') && !/application\/json/.test(accept);
-}
 
 function redirect(location: string): Response {
   return new Response(null, { status: 303, headers: { location } });
@@ -52,7 +47,7 @@ const FORGED_KEYS = ['crewId', 'crew_id', 'crew', 'userId', 'user_id'];
 
 /** POST /api/imports: a multipart upload with one file in field "file". */
 export async function handleUpload(db: Kysely<Database>, ctx: RouteContext): Promise<Response> {
-  const html = wantsHtml(ctx.request);
+  const html = wantsPage(ctx.request);
   const gate = checkImporter(ctx, html, '/imports');
   if (!gate.ok) return gate.response;
   const fail = (status: number, code: string, message: string, extra = ''): Response =>

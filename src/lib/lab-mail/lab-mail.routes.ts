@@ -7,9 +7,8 @@ import { canImportLabReport, canManageImportAddress } from '../auth/permissions'
 import type { CrewMembership, SessionUser } from '../auth/types';
 import type { AppConfig } from '../config';
 import type { Database } from '../db/database';
-import { readForm } from '../http/form';
+import { readForm, wantsPage } from '../http/form';
 import { fieldErrorsFrom, jsonError, jsonOk, readBodyBytes } from '../http/json';
-import { wantsHtml } from '../lab-import/lab-import.routes';
 import { checkInboundWebhook, importAddressFormSchema, MAX_INBOUND_MAIL_BYTES, WEBHOOK_HEADERS } from './lab-mail';
 import { changeSender, receiveInboundMail, rotateImportAddress } from './lab-mail.service';
 
@@ -26,7 +25,7 @@ function back(query: string): Response {
 
 /** POST /api/import-address: rotate the address, or add or remove a lab address of the allow-list (leads). */
 export async function handleImportAddressPost(db: Kysely<Database>, ctx: AddressRouteContext): Promise<Response> {
-  const html = wantsHtml(ctx.request);
+  const html = wantsPage(ctx.request);
   const { user, crew } = ctx.locals;
   if (!user || !crew) return html ? new Response(null, { status: 303, headers: { location: '/sign-in?next=%2Fimports' } }) : jsonError(401, 'unauthorised', 'Sign in to manage the import address.');
   if (!canManageImportAddress(crew)) {

@@ -1,5 +1,6 @@
 import type { Kysely, Transaction } from 'kysely';
 import type { Database, MachineRow, NewMachineRow, MachineRowUpdate } from '../db/database';
+import { isUuid } from '~/lib/ids';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
@@ -43,7 +44,5 @@ export async function deleteMachineRow(db: Db, crewId: string, id: string): Prom
   return Number(r.numDeletedRows) > 0;
 }
 
-/** True for the canonical text form of a UUID; anything else cannot be a row id (and would make PostgreSQL throw). */
-export function isUuid(id: string): boolean {
-  return /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(id);
-}
+/** @deprecated Import `isUuid` from `~/lib/ids`; re-exported while other features still import it from here. */
+export { isUuid } from '~/lib/ids';

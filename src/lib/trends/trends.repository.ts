@@ -4,6 +4,7 @@ import { isMeasurandCode, type MeasurandCode } from '../analysis';
 import type { Database, Level, MachineRow } from '../db/database';
 import { levelRank } from '../levels';
 import type { TrendOilChangeRow, TrendSampleRow } from './trends';
+import { isUuid } from '~/lib/ids';
 
 /** A machine of the crew, or undefined (another crew's machine is "not found", never forbidden). */
 export async function findCrewMachine(
@@ -141,9 +142,5 @@ export async function listTrendOilChanges(db: Kysely<Database>, machineId: strin
   return rows.map((r) => ({ changedOn: r.changed_on, odometerStored: Number(r.odometer), grade: r.sae_grade }));
 }
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-
-/** True for a UUID; anything else cannot name a row and answers 404 without a query error. */
-export function isUuid(value: string): boolean {
-  return UUID.test(value);
-}
+/** @deprecated Import `isUuid` from `~/lib/ids`; re-exported while other features still import it from here. */
+export { isUuid } from '~/lib/ids';

@@ -1,7 +1,8 @@
 // The request-side helpers of the lab import: pure, so they run without the database despite living here.
 import { describe, expect, test } from 'vitest';
 import { computeHeaderSignature, rowDecisionSchema } from '~/lib/lab-import/lab-import';
-import { readColumnFields, readDecisionFields, wantsHtml } from '~/lib/lab-import/lab-import.routes';
+import { wantsPage } from '~/lib/http/form';
+import { readColumnFields, readDecisionFields } from '~/lib/lab-import/lab-import.routes';
 import { cleanFileName } from '~/lib/lab-import/lab-import.service';
 
 const MACHINE = '0b6c7f4e-2f43-4a8e-9d2e-7a1c5e9f3b21';
@@ -48,7 +49,7 @@ describe('form fields', () => {
   });
 });
 
-describe('cleanFileName and wantsHtml', () => {
+describe('cleanFileName and wantsPage', () => {
   test.each([
     ['../../etc/passwd', 'passwd'],
     ['C:\\Users\\lab\\report.csv', 'report.csv'],
@@ -65,6 +66,6 @@ describe('cleanFileName and wantsHtml', () => {
     ['text/html, application/json', false],
     ['*/*', false],
   ])('Accept %j wants a page: %s', (accept, html) => {
-    expect(wantsHtml(new Request('http://local/', { headers: { accept } }))).toBe(html);
+    expect(wantsPage(new Request('http://local/', { headers: { accept } }))).toBe(html);
   });
 });

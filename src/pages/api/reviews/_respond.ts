@@ -1,22 +1,17 @@
 /** Shared answers of the review endpoints: JSON for scripts and the island, 303 redirects for plain HTML forms. */
 import { signInRedirect } from '~/lib/auth/guards';
-import { readForm } from '~/lib/http/form';
+import { readForm, wantsPage } from '~/lib/http/form';
 import { rewriteToNotFoundPage } from '~/lib/http/not-found';
 import { fieldErrorsFrom, jsonError, jsonOk, parseJsonBody } from '~/lib/http/json';
 import type { APIContext } from 'astro';
 import type { z } from 'zod';
-
-/** True for a plain HTML form post (urlencoded or multipart), which a browser follows to a page. */
-export function isFormPost(request: Request): boolean {
-  return /^(application\/x-www-form-urlencoded|multipart\/form-data)\b/i.test(request.headers.get('content-type') ?? '');
-}
 
 /**
  * The answer to a signed-out visitor: a browser's form post goes to sign in and comes back to the sample
  * page (the endpoint itself has no page to return to); a JSON call gets 401 JSON.
  */
 export function refuseSignedOut(request: Request, back: string, message: string): Response {
-  if (isFormPost(request)) return signInRedirect(new URL(back, 'http://local'));
+  if (wantsPage(request, { bareForm: 'page' })) return signInRedirect(new URL(back, 'http://local'));
   return jsonError(401, 'unauthenticated', message);
 }
 
