@@ -16,7 +16,7 @@ import { attachNewOil } from '../new-oil/new-oil';
 import { loadNewOilLookup } from '../new-oil/new-oil.service';
 import { canReadCrew } from '../auth/permissions';
 import type { CrewMembership } from '../auth/types';
-import { isUuid } from '../machines/machines.repository';
+import { isUuid } from '../ids';
 import { buildFindingsView, type FindingsView } from './findings-view';
 import * as repo from './findings.repository';
 

@@ -28,24 +28,19 @@ import {
   type ImportPreview,
   type ImportSummary,
   type LabFile,
-  type LabImportFailure,
-  type LabImportResult,
   type LabProfile,
   type PreviewRow,
   type RowDecision,
   type RowMatch,
 } from './lab-import';
 import * as repo from './lab-import.repository';
+import { refuse, succeed, type Refusal, type Result } from '../http/result';
 import { queueImportAlerts } from '../alerts/alerts.service';
 import { recomputeChangedSamples } from '../findings/findings.service';
 import { recordSampleStates } from '../samples/sample-lifecycle';
 import { findNewOilBottles, findNewOilCodesWrittenBy, splitNewOilRows, writeNewOilResults } from '../new-oil/new-oil.service';
 
 type Db = Kysely<Database> | Transaction<Database>;
-
-function refuse(status: LabImportFailure['status'], code: string, message: string, fields?: Record<string, string>): LabImportFailure {
-  return fields ? { ok: false, status, code, message, fields } : { ok: false, status, code, message };
-}
 
 /** A file name safe to show and store: the last path segment, printable, at most 200 characters. */
 export function cleanFileName(name: string): string {
@@ -74,7 +69,7 @@ export interface StoredLabFile {
 export async function storeLabFile(
   db: Db,
   input: { crewId: string; userId: string | null; fileName: string; bytes: Uint8Array; inboundMailId?: string; quotaBytes?: number },
-): Promise<LabImportResult<StoredLabFile>> {
+): Promise<Result<StoredLabFile>> {
   if (input.bytes.byteLength > MAX_LAB_FILE_BYTES) {
     const mib = (input.bytes.byteLength / (1024 * 1024)).toFixed(1);
     return refuse(413, 'file_too_large', `"${cleanFileName(input.fileName)}" is ${mib} MiB; lab files up to 5 MiB are accepted. Split the report into smaller files.`);
@@ -99,22 +94,19 @@ export async function storeLabFile(
     uploadedBy: input.userId,
     inboundMailId: input.inboundMailId ?? null,
   });
-  if (inserted) return { ok: true, value: { labFileId: inserted.id, status: 'stored' } };
+  if (inserted) return succeed({ labFileId: inserted.id, status: 'stored' });
   // Two uploads of the same bytes at once: the other one won; answer as if it came first.
   const winner = await repo.findLabFileByHash(db, input.crewId, sha256);
   if (!winner) return refuse(409, 'upload_conflict', 'The same file was uploaded twice at once; try again.');
   return answerExisting(winner);
 }
 
-function answerExisting(file: { id: string; file_name: string; import_id: string | null; confirmed_at: Date | null }): LabImportResult<StoredLabFile> {
+function answerExisting(file: { id: string; file_name: string; import_id: string | null; confirmed_at: Date | null }): Result<StoredLabFile> {
   if (file.import_id) {
     const on = file.confirmed_at ? ` on ${file.confirmed_at.toISOString().slice(0, 10)}` : '';
-    return {
-      ...refuse(409, 'already_imported', `This file was already imported${on} (as "${file.file_name}"); nothing new was written.`),
-      fields: { labFileId: file.id },
-    };
+    return refuse(409, 'already_imported', `This file was already imported${on} (as "${file.file_name}"); nothing new was written.`, { labFileId: file.id });
   }
-  return { ok: true, value: { labFileId: file.id, status: 'already-uploaded' } };
+  return succeed({ labFileId: file.id, status: 'already-uploaded' });
 }
 
 function toLabFile(row: NonNullable<Awaited<ReturnType<typeof repo.findLabFileOfCrew>>>): LabFile {
@@ -180,7 +172,7 @@ function describeDecision(match: RowMatch, decision: RowDecision | null, errors:
 export async function previewLabImport(
   db: Db,
   input: { crewId: string; labFileId: string; decisions?: Record<string, RowDecision> },
-): Promise<LabImportResult<ImportPreview>> {
+): Promise<Result<ImportPreview>> {
   if (!UUID.test(input.labFileId)) return refuse(404, 'not_found', 'No such lab file in this crew.');
   const fileRow = await repo.findLabFileOfCrew(db, input.crewId, input.labFileId);
   if (!fileRow) return refuse(404, 'not_found', 'No such lab file in this crew.');
@@ -306,7 +298,7 @@ export async function previewLabImport(
 export async function saveLabProfile(
   db: Db,
   input: { crewId: string; userId: string; labFileId: string; name: string; targets: Record<number, LabCsvMappingTarget> },
-): Promise<LabImportResult<{ profileId: string; name: string }>> {
+): Promise<Result<{ profileId: string; name: string }>> {
   const preview = await previewLabImport(db, { crewId: input.crewId, labFileId: input.labFileId });
   if (!preview.ok) return preview;
   const mapping: Record<string, LabCsvMappingTarget> = {};
@@ -330,7 +322,7 @@ export async function saveLabProfile(
     sheetName: preview.value.sheet,
     createdBy: input.userId,
   });
-  return { ok: true, value: { profileId: saved.id, name: saved.name } };
+  return succeed({ profileId: saved.id, name: saved.name });
 }
 
 /**
@@ -343,7 +335,7 @@ export async function confirmLabImport(
   db: Db,
   input: { crewId: string; userId: string; labFileId: string; decisions: Record<string, RowDecision> },
   hooks: ConfirmHooks = {},
-): Promise<LabImportResult<ImportSummary>> {
+): Promise<Result<ImportSummary>> {
   // Inside a caller's transaction (the demo seed) the import joins it; otherwise it is its own transaction.
   const inTransaction = <T>(work: (trx: Transaction<Database>) => Promise<T>): Promise<T> =>
     db.isTransaction ? work(db as Transaction<Database>) : db.transaction().execute(work);
@@ -448,7 +440,7 @@ export async function confirmLabImport(
   }
 }
 
-function refuseUnready(preview: ImportPreview): LabImportFailure {
+function refuseUnready(preview: ImportPreview): Refusal {
   const fields: Record<string, string> = {};
   for (const issue of preview.fileIssues) if (issue.severity === 'error') fields[issue.row === null ? 'file' : `line.${issue.row}`] ??= issue.message;
   for (const row of preview.rows) {

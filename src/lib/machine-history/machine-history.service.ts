@@ -1,7 +1,7 @@
 /** Reads everything a machine's printable history shows, for a machine the actor's crew may read. */
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
-import type { Actor } from '../http/result';
+import type { Actor } from '../auth/types';
 import type { Machine } from '../machines/machines';
 import { toOilChange } from '../oil-changes/oil-changes';
 import { findOilChangesOfMachine } from '../oil-changes/oil-changes.repository';

@@ -1,7 +1,7 @@
 /** Every query of wear parts and their measurements. Each function takes `db` or a transaction first; reads are crew-scoped. */
 import { sql, type Insertable, type Kysely, type Transaction } from 'kysely';
 import type { Database, WearMeasurementRow, WearMeasurementsTable, WearPartRow, WearPartsTable } from '../db/database';
-import { isUuid } from '../machines/machines.repository';
+import { isUuid } from '../ids';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
