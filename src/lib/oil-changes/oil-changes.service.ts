@@ -1,7 +1,8 @@
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
 import { canActorEdit, getMachine } from '../machines/machines.service';
-import { refuse, refuseInvalid, succeed, type Actor, type FieldErrors, type ServiceResult } from '~/lib/http/result';
+import { refuse, refuseInvalid, succeed, type FieldErrors, type Result } from '~/lib/http/result';
+import type { Actor } from '~/lib/auth/types';
 import type { PreparedPhoto } from '../photos/photos';
 import { attachPhotos, findPhotosOfOilChanges, type PhotoRow } from '../photos/photos.repository';
 import { storePreparedPhoto } from '../photos/photos.service';
@@ -13,7 +14,7 @@ import { checkCrewQuota } from '../storage-quota/storage-quota';
 import { sumCrewStorageBytes } from '../storage-quota/storage-quota.repository';
 
 /** A machine's oil changes, newest first, each with the distance since the one before and its photos. */
-export async function listOilChanges(db: Kysely<Database>, actor: Actor, machineId: string): Promise<ServiceResult<(OilChange & { photos: PhotoRow[] })[]>> {
+export async function listOilChanges(db: Kysely<Database>, actor: Actor, machineId: string): Promise<Result<(OilChange & { photos: PhotoRow[] })[]>> {
   const m = await getMachine(db, actor, machineId);
   if (!m.ok) return m;
   const rows = await findOilChangesOfMachine(db, actor.membership.crewId, machineId);
@@ -36,7 +37,7 @@ export async function getLatestOilChange(db: Kysely<Database>, actor: Actor, mac
 export async function createOilChange(
   db: Kysely<Database>, actor: Actor, machineId: string, input: unknown,
   options: { newPhotos?: PreparedPhoto[]; uploadDir?: string; quotaBytes?: number } = {},
-): Promise<ServiceResult<OilChange & { repeated: boolean }>> {
+): Promise<Result<OilChange & { repeated: boolean }>> {
   const m = await getMachine(db, actor, machineId);
   if (!m.ok) return m;
   const machine = m.value;

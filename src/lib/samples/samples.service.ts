@@ -2,7 +2,8 @@ import type { Kysely, Transaction } from 'kysely';
 import type { Database, SampleState } from '../db/database';
 import { canCreateMachine, canReadCrew } from '../auth/permissions';
 import { canActorEdit, getMachine } from '../machines/machines.service';
-import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type FieldErrors, type ServiceResult } from '~/lib/http/result';
+import { refuse, refuseInvalid, refuseNotFound, succeed, type FieldErrors, type Result } from '~/lib/http/result';
+import type { Actor } from '~/lib/auth/types';
 import { explainAbsurdOdometer, toOilChange, type OilChange } from '../oil-changes/oil-changes';
 import { findLatestOilChange, findOilChangeOfCrew, findOilChangesOfMachine } from '../oil-changes/oil-changes.repository';
 import { parseSaeGrade } from '../oil-changes/sae-grade';
@@ -70,7 +71,7 @@ export const RESERVED_PER_RIDER = 5 * RESERVED_BLOCK_SIZE;
  * Tops up a device's block of reserved bottle codes to RESERVED_BLOCK_SIZE and answers the whole block
  * (codes already handed out and still unused come back, so a device that lost its copy gets them again).
  */
-export async function reserveBottleCodes(db: Kysely<Database>, actor: Actor, deviceKey: string): Promise<ServiceResult<{ codes: string[] }>> {
+export async function reserveBottleCodes(db: Kysely<Database>, actor: Actor, deviceKey: string): Promise<Result<{ codes: string[] }>> {
   if (!canCreateMachine(actor.membership)) return refuse(403, 'forbidden', 'Your role in this crew does not register samples.');
   const { crewId } = actor.membership;
   const held = await findUnusedReservedCodes(db, crewId, actor.userId, deviceKey);
@@ -92,7 +93,7 @@ export type DrainCardOutcome = { sample: Sample; repeated: boolean };
  * the crew, and the odometer against the oil change; computes the distance on oil; records the 'drawn'
  * state. A card sent twice with the same client key answers the first sample and writes nothing new.
  */
-export async function registerDrainCard(db: Kysely<Database>, actor: Actor, machineId: string, input: unknown): Promise<ServiceResult<DrainCardOutcome>> {
+export async function registerDrainCard(db: Kysely<Database>, actor: Actor, machineId: string, input: unknown): Promise<Result<DrainCardOutcome>> {
   const m = await getMachine(db, actor, machineId);
   if (!m.ok) return m;
   const machine = m.value;
@@ -176,7 +177,7 @@ export async function registerDrainCard(db: Kysely<Database>, actor: Actor, mach
 }
 
 /** Marks a drawn sample shipped, with an optional tracking note. */
-export async function markSampleShipped(db: Kysely<Database>, actor: Actor, sampleId: string, input: unknown): Promise<ServiceResult<Sample>> {
+export async function markSampleShipped(db: Kysely<Database>, actor: Actor, sampleId: string, input: unknown): Promise<Result<Sample>> {
   const found = await getSampleDetail(db, actor, sampleId);
   if (!found.ok) return found;
   const m = await getMachine(db, actor, found.value.sample.machineId);

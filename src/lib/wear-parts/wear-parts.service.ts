@@ -3,7 +3,8 @@ import type { Database } from '../db/database';
 import { forecastWearLimit, type WearForecast } from '../analysis/wear-forecast';
 import { canActorEdit, getMachine } from '../machines/machines.service';
 import type { Machine } from '../machines/machines';
-import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type ServiceResult } from '~/lib/http/result';
+import { refuse, refuseInvalid, refuseNotFound, succeed, type Result } from '~/lib/http/result';
+import type { Actor } from '~/lib/auth/types';
 import { explainAbsurdOdometer } from '../oil-changes/oil-changes';
 import { fromMillimetres, fromStoredMeter, toMillimetres, toStoredMeter, type MeterUnit } from '../units/units';
 import { formatCount } from '../words/words';
@@ -34,7 +35,7 @@ export async function listWearPartDetails(db: Kysely<Database>, actor: Actor, ma
 }
 
 /** Adds a wear part to a machine, from figures in the manual's unit. */
-export async function createWearPart(db: Kysely<Database>, actor: Actor, machineId: string, input: unknown): Promise<ServiceResult<WearPart>> {
+export async function createWearPart(db: Kysely<Database>, actor: Actor, machineId: string, input: unknown): Promise<Result<WearPart>> {
   const m = await getMachine(db, actor, machineId);
   if (!m.ok) return m;
   if (!canActorEdit(actor, m.value)) return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can add wear parts.');
@@ -63,7 +64,7 @@ export interface WearPartDetail {
 }
 
 /** A wear part of the crew with its measurements and forecast. */
-export async function getWearPartDetail(db: Kysely<Database>, actor: Actor, partId: string): Promise<ServiceResult<WearPartDetail>> {
+export async function getWearPartDetail(db: Kysely<Database>, actor: Actor, partId: string): Promise<Result<WearPartDetail>> {
   const row = await findWearPartOfCrew(db, actor.membership.crewId, partId);
   if (!row) return refuseNotFound('wear part');
   const m = await getMachine(db, actor, row.machine_id);
@@ -90,7 +91,7 @@ export function forecastPart(part: WearPart, measurements: readonly WearMeasurem
  * range (plus the tool's resolution); the summary of several pieces is the worst one, since the service
  * limit applies to every piece.
  */
-export async function addWearMeasurement(db: Kysely<Database>, actor: Actor, partId: string, input: unknown): Promise<ServiceResult<WearMeasurement>> {
+export async function addWearMeasurement(db: Kysely<Database>, actor: Actor, partId: string, input: unknown): Promise<Result<WearMeasurement>> {
   const detail = await getWearPartDetail(db, actor, partId);
   if (!detail.ok) return detail;
   const { part, meter } = detail.value;
