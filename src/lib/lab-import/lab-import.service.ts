@@ -35,6 +35,7 @@ import {
 } from './lab-import';
 import * as repo from './lab-import.repository';
 import { refuse, succeed, type Refusal, type Result } from '../http/result';
+import { isUuid } from '../ids';
 import { queueImportAlerts } from '../alerts/alerts.service';
 import { recomputeChangedSamples } from '../findings/findings.service';
 import { recordSampleStates } from '../samples/sample-lifecycle';
@@ -129,8 +130,6 @@ export async function listLabFiles(db: Db, crewId: string) {
   return rows.map((r) => ({ ...toLabFile(r), samplesWritten: r.samples_written, readingsWritten: r.readings_written }));
 }
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-
 /** The headers of a file's header row, read from its first lines only (a profile is looked up before the full read). */
 function readHeaders(text: string): string[] {
   let end = 0;
@@ -173,7 +172,7 @@ export async function previewLabImport(
   db: Db,
   input: { crewId: string; labFileId: string; decisions?: Record<string, RowDecision> },
 ): Promise<Result<ImportPreview>> {
-  if (!UUID.test(input.labFileId)) return refuse(404, 'not_found', 'No such lab file in this crew.');
+  if (!isUuid(input.labFileId)) return refuse(404, 'not_found', 'No such lab file in this crew.');
   const fileRow = await repo.findLabFileOfCrew(db, input.crewId, input.labFileId);
   if (!fileRow) return refuse(404, 'not_found', 'No such lab file in this crew.');
   const content = await repo.findLabFileContent(db, input.crewId, input.labFileId);
@@ -341,7 +340,7 @@ export async function confirmLabImport(
     db.isTransaction ? work(db as Transaction<Database>) : db.transaction().execute(work);
   try {
     return await inTransaction(async (trx) => {
-      if (UUID.test(input.labFileId)) {
+      if (isUuid(input.labFileId)) {
         // One confirm at a time per file: a second one waits here and then sees the first one's import.
         await repo.lockLabFile(trx, input.crewId, input.labFileId);
       }

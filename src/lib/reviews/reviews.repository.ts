@@ -1,7 +1,7 @@
 /** Queries of review notes and interval calls; every read is scoped by the crew. */
 import { sql, type Kysely, type Transaction } from 'kysely';
 import type { Database } from '../db/database';
-import { isUuid } from '../trends/trends.repository';
+import { isUuid } from '../ids';
 import type { BaselineStatus, CallHistoryEntry, ReviewNote } from './reviews';
 
 type Db = Kysely<Database> | Transaction<Database>;

@@ -1,6 +1,6 @@
 import { sql, type Insertable, type Kysely, type Transaction } from 'kysely';
 import type { Database, SampleRow, SamplesTable, SampleState } from '../db/database';
-import { isUuid } from '../machines/machines.repository';
+import { isUuid } from '../ids';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
