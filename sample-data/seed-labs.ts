@@ -7,7 +7,8 @@ import { findGradeWindow } from '../src/lib/analysis/viscosity';
 import type { Database } from '../src/lib/db/database';
 import type { LabReadings } from '../src/lib/lab-csv/lab-csv';
 import { formatLabCsv, LAB_CSV_LAYOUTS, LAB_NAMES, type LabCsvLayout, type LabReportRow } from '../src/lib/lab-csv/lab-csv-layouts';
-import { confirmLabImport, recomputeMachineFindings, storeLabFile } from '../src/lib/lab-import/lab-import.service';
+import { confirmLabImport, storeLabFile } from '../src/lib/lab-import/lab-import.service';
+import { recomputeMachineFindings } from '../src/lib/findings/findings.service';
 
 type Db = Kysely<Database> | Transaction<Database>;
 

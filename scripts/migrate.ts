@@ -4,7 +4,7 @@ import { fileURLToPath } from 'node:url';
 import { createDb } from '../src/lib/db/db';
 import { assertMigrated, createMigrator } from '../src/lib/db/migrator';
 import { readConfig } from '../src/lib/config';
-import { recomputeStaleMachines } from '../src/lib/lab-import/lab-import.service';
+import { recomputeStaleMachines } from '../src/lib/findings/findings.service';
 
 const folder = path.join(path.dirname(fileURLToPath(import.meta.url)), '..', 'migrations');
 const command = process.argv[2] ?? 'latest';

@@ -4,7 +4,7 @@ import path from 'node:path';
 import pg from 'pg';
 import { createDb } from '../../src/lib/db/db';
 import { assertMigrated, createMigrator } from '../../src/lib/db/migrator';
-import { recomputeStaleMachines } from '../../src/lib/lab-import/lab-import.service';
+import { recomputeStaleMachines } from '../../src/lib/findings/findings.service';
 import { ROOT, capture, run } from './processes';
 
 /** Starts the project's own PostgreSQL and makes sure database `name` exists; returns its URL. */

@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { DEMO_ACCOUNTS } from '../../sample-data/seed-accounts';
 import { createDb } from '~/lib/db/db';
-import { recomputeMachineFindings } from '~/lib/lab-import/lab-import.service';
+import { recomputeMachineFindings } from '~/lib/findings/findings.service';
 import { normaliseBottleCode } from '~/lib/samples/bottle-code';
 import { DESKTOP, PHONE, launchBrowser, newContext, screenshot } from './helpers/browser';
 import { signInAs } from './helpers/sign-in';

@@ -3,6 +3,7 @@ import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
 import { turnOffDigest, turnOffKind } from '../notification-preferences/notification-preferences.service';
 import { findCrewName } from './alerts.repository';
+import { isCrewMember, userExists } from './unsubscribe.repository';
 import { describeUnsubscribeScope } from './alerts';
 import { verifyUnsubscribeToken, type UnsubscribeScope } from './unsubscribe-token';
 
@@ -12,8 +13,7 @@ export type UnsubscribeLookup = { ok: true; scope: UnsubscribeScope; what: strin
 export async function describeUnsubscribeToken(db: Kysely<Database>, token: string, secret: string): Promise<UnsubscribeLookup> {
   const scope = verifyUnsubscribeToken(token, secret);
   if (!scope) return { ok: false };
-  const user = await db.selectFrom('users').select('id').where('id', '=', scope.userId).executeTakeFirst();
-  if (!user) return { ok: false };
+  if (!(await userExists(db, scope.userId))) return { ok: false };
   if (scope.crewId === null) return { ok: true, scope, what: describeUnsubscribeScope('digest', null) };
   const crewName = await findCrewName(db, scope.crewId);
   if (crewName === null) return { ok: false };
@@ -34,8 +34,7 @@ export async function applyUnsubscribe(db: Kysely<Database>, token: string, secr
       await turnOffDigest(trx, scope.userId);
       return;
     }
-    const member = await trx.selectFrom('crew_members').select('user_id').where('crew_id', '=', scope.crewId).where('user_id', '=', scope.userId).executeTakeFirst();
-    if (member) await turnOffKind(trx, scope.userId, scope.crewId, scope.kind);
+    if (await isCrewMember(trx, scope.crewId, scope.userId)) await turnOffKind(trx, scope.userId, scope.crewId, scope.kind);
   });
   return found;
 }

@@ -5,7 +5,7 @@ import { canEditLimits } from '../auth/permissions';
 import type { Actor, CrewMembership } from '../auth/types';
 import { refuse, refuseForbidden, succeed, type Result } from '../http/result';
 import { recordAuditEvent } from '../audit/audit.repository';
-import { recomputeMachineFindings } from '../lab-import/lab-import.service';
+import { recomputeMachineFindings } from '../findings/findings.service';
 import { LIMIT_FIELDS, type LimitValues } from './crew-limits';
 import { listCrewLimits, listCrewMachineSamples, lockCrewLimits, writeCrewLimit } from './crew-limits.repository';
 

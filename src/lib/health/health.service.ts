@@ -1,4 +1,5 @@
-import { sql, type Kysely } from 'kysely';
+import type { Kysely } from 'kysely';
+import { pingDatabase } from './health.repository';
 
 /** What /api/health tells anyone who asks: no error text, which could name hosts, users or versions. */
 export interface HealthReport {
@@ -16,7 +17,7 @@ export async function checkHealth(db: Kysely<any>, version: string, onFailure: (
   let timer: NodeJS.Timeout | undefined;
   try {
     await Promise.race([
-      sql`select 1`.execute(db),
+      pingDatabase(db),
       new Promise((_, reject) => { timer = setTimeout(() => reject(new Error(`no answer within ${timeoutMs} ms`)), timeoutMs); }),
     ]);
     return { status: 'ok', version, database: { reachable: true, latencyMs: Math.round((performance.now() - started) * 10) / 10 } };

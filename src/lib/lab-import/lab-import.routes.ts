@@ -9,6 +9,7 @@ import type { CrewMembership, SessionUser } from '../auth/types';
 import type { Database } from '../db/database';
 import { wantsPage } from '../http/form';
 import { jsonError, jsonOk, readBodyBytes } from '../http/json';
+import { refuse, succeed, type Result } from '../http/result';
 import { notFoundPage } from '../http/not-found';
 import { MAX_LAB_FILE_BYTES, type LabCsvMappingTarget } from '../lab-csv/lab-csv';
 import { confirmInputSchema, MAPPING_TARGETS, profileInputSchema, rowDecisionSchema, type RowDecision } from './lab-import';
@@ -83,7 +84,7 @@ export async function handleUpload(db: Kysely<Database>, ctx: RouteContext): Pro
   });
   if (!stored.ok) {
     const fileId = stored.fields?.labFileId;
-    if (!html) return jsonError(stored.status, stored.code, stored.message, stored.fields ?? {});
+    if (!html) return jsonError(stored.status, stored.code, stored.message, stored.fields);
     return fail(stored.status, stored.code, stored.message, fileId ? `&file=${encodeURIComponent(fileId)}` : '');
   }
   const previewUrl = `/imports/${stored.value.labFileId}`;
@@ -139,40 +140,52 @@ export async function handleConfirmJson(db: Kysely<Database>, ctx: RouteContext,
     return jsonError(400, 'invalid_input', 'Some fields need attention.', fields);
   }
   const result = await confirmLabImport(db, { crewId: gate.crew.crewId, userId: gate.user.id, labFileId, decisions: parsed.data.decisions });
-  if (!result.ok) return jsonError(result.status, result.code, result.message, result.fields ?? {});
+  if (!result.ok) return jsonError(result.status, result.code, result.message, result.fields);
   return jsonOk(result.value, 201);
 }
 
-export type PagePostResult =
-  | { kind: 'response'; response: Response }
-  | { kind: 'render'; decisions: Record<string, RowDecision>; message: string; fields: Record<string, string>; profileName?: string };
+/**
+ * The outcome of a preview page post. `result` is ok with the answer to send (a redirect, the not-found page),
+ * ok with null to show the page again (a "check"), or a refusal (status 422) whose message and fields go beside
+ * the rows. `decisions` and `profileName` are what was posted, to show the form as it was sent.
+ */
+export interface PreviewPost {
+  result: Result<Response | null>;
+  decisions: Record<string, RowDecision>;
+  profileName?: string;
+}
+
+/** A refusal the page shows beside its rows: always 422, the status the page answers a post that wrote nothing with. */
+const refusePost = (code: string, message: string, fields: Record<string, string> = {}) => refuse(422, code, message, fields);
 
 /**
  * The preview page's own form posts (works without JavaScript): "check" re-reads the decisions, "confirm"
  * writes, "save-profile" stores the column mapping. The crew is the session's; a crew field is refused.
  */
-export async function handlePreviewPost(db: Kysely<Database>, ctx: RouteContext, labFileId: string, form: URLSearchParams): Promise<PagePostResult> {
+export async function handlePreviewPost(db: Kysely<Database>, ctx: RouteContext, labFileId: string, form: URLSearchParams): Promise<PreviewPost> {
   const gate = checkImporter(ctx, true, `/imports/${labFileId}`);
-  if (!gate.ok) return { kind: 'response', response: gate.response };
+  if (!gate.ok) return { result: succeed(gate.response), decisions: {} };
   const forged = FORGED_KEYS.find((k) => form.has(k));
-  if (forged) return { kind: 'render', decisions: {}, message: 'The crew comes from your session and cannot be chosen in the form; nothing was written.', fields: {} };
+  if (forged) return { result: refusePost('crew_from_session', 'The crew comes from your session and cannot be chosen in the form; nothing was written.'), decisions: {} };
   const action = form.get('action') ?? 'check';
   if (action === 'save-profile') {
-    const input = profileInputSchema.safeParse({ name: form.get('profileName') ?? '', mapping: {} });
-    if (!input.success) return { kind: 'render', decisions: {}, message: 'The lab profile needs attention.', fields: { profileName: input.error.issues[0]?.message ?? 'Give the lab profile a name' }, profileName: form.get('profileName') ?? '' };
+    const profileName = form.get('profileName') ?? '';
+    const input = profileInputSchema.safeParse({ name: profileName, mapping: {} });
+    if (!input.success) {
+      return { result: refusePost('invalid_input', 'The lab profile needs attention.', { profileName: input.error.issues[0]?.message ?? 'Give the lab profile a name' }), decisions: {}, profileName };
+    }
     const saved = await saveLabProfile(db, { crewId: gate.crew.crewId, userId: gate.user.id, labFileId, name: input.data.name, targets: readColumnFields(form) });
     if (!saved.ok) {
-      if (saved.status === 404) return { kind: 'response', response: notFoundPage() };
-      return { kind: 'render', decisions: {}, message: saved.message, fields: saved.fields ?? {}, profileName: input.data.name };
+      if (saved.status === 404) return { result: succeed(notFoundPage()), decisions: {} };
+      return { result: refusePost(saved.code, saved.message, saved.fields), decisions: {}, profileName: input.data.name };
     }
-    return { kind: 'response', response: redirect(`/imports/${labFileId}?profile=saved`) };
+    return { result: succeed(redirect(`/imports/${labFileId}?profile=saved`)), decisions: {} };
   }
   const { decisions, fields } = readDecisionFields(form);
-  if (action !== 'confirm' || Object.keys(fields).length > 0) {
-    return { kind: 'render', decisions, message: Object.keys(fields).length > 0 ? 'Some rows need attention.' : '', fields };
-  }
+  if (Object.keys(fields).length > 0) return { result: refusePost('invalid_input', 'Some rows need attention.', fields), decisions };
+  if (action !== 'confirm') return { result: succeed(null), decisions };
   const result = await confirmLabImport(db, { crewId: gate.crew.crewId, userId: gate.user.id, labFileId, decisions });
-  if (result.ok) return { kind: 'response', response: redirect(`/imports/${labFileId}?done=1`) };
-  if (result.status === 404) return { kind: 'response', response: notFoundPage() };
-  return { kind: 'render', decisions, message: result.message, fields: result.fields ?? {} };
+  if (result.ok) return { result: succeed(redirect(`/imports/${labFileId}?done=1`)), decisions };
+  if (result.status === 404) return { result: succeed(notFoundPage()), decisions };
+  return { result: refusePost(result.code, result.message, result.fields), decisions };
 }

@@ -4,12 +4,9 @@
  * engine's interval call, or nothing at all.
  */
 import { createHash } from 'node:crypto';
-import { sql, type Kysely, type Transaction } from 'kysely';
-import {
-  CREW_REFERENCE, ENGINE_VERSION, crewReferenceLabel, isSameEngine, replayHistory,
-  type CrewReference, type CrewReferenceSample, type FixedLimits, type MachineProfile, type SamplePoint,
-} from '../analysis';
-import { isMeasurandCode, type MeasurandCode } from '../analysis/measurands';
+import type { Kysely, Transaction } from 'kysely';
+import type { SamplePoint } from '../analysis';
+import type { MeasurandCode } from '../analysis/measurands';
 import type { Database } from '../db/database';
 import { readLabFileBytes } from '../lab-csv/lab-xlsx';
 import {
@@ -31,24 +28,20 @@ import {
   type ImportPreview,
   type ImportSummary,
   type LabFile,
-  type LabImportFailure,
-  type LabImportResult,
   type LabProfile,
   type PreviewRow,
   type RowDecision,
   type RowMatch,
 } from './lab-import';
 import * as repo from './lab-import.repository';
-import { fromStoredMeter, toStoredMeter, type MeterUnit } from '../units/units';
+import { refuse, succeed, type Refusal, type Result } from '../http/result';
+import { isUuid } from '../ids';
 import { queueImportAlerts } from '../alerts/alerts.service';
-import { attachNewOil } from '../new-oil/new-oil';
-import { findNewOilBottles, findNewOilCodesWrittenBy, loadNewOilLookup, splitNewOilRows, writeNewOilResults } from '../new-oil/new-oil.service';
+import { recomputeChangedSamples } from '../findings/findings.service';
+import { recordSampleStates } from '../samples/sample-lifecycle';
+import { findNewOilBottles, findNewOilCodesWrittenBy, splitNewOilRows, writeNewOilResults } from '../new-oil/new-oil.service';
 
 type Db = Kysely<Database> | Transaction<Database>;
-
-function refuse(status: LabImportFailure['status'], code: string, message: string, fields?: Record<string, string>): LabImportFailure {
-  return fields ? { ok: false, status, code, message, fields } : { ok: false, status, code, message };
-}
 
 /** A file name safe to show and store: the last path segment, printable, at most 200 characters. */
 export function cleanFileName(name: string): string {
@@ -77,7 +70,7 @@ export interface StoredLabFile {
 export async function storeLabFile(
   db: Db,
   input: { crewId: string; userId: string | null; fileName: string; bytes: Uint8Array; inboundMailId?: string; quotaBytes?: number },
-): Promise<LabImportResult<StoredLabFile>> {
+): Promise<Result<StoredLabFile>> {
   if (input.bytes.byteLength > MAX_LAB_FILE_BYTES) {
     const mib = (input.bytes.byteLength / (1024 * 1024)).toFixed(1);
     return refuse(413, 'file_too_large', `"${cleanFileName(input.fileName)}" is ${mib} MiB; lab files up to 5 MiB are accepted. Split the report into smaller files.`);
@@ -102,22 +95,19 @@ export async function storeLabFile(
     uploadedBy: input.userId,
     inboundMailId: input.inboundMailId ?? null,
   });
-  if (inserted) return { ok: true, value: { labFileId: inserted.id, status: 'stored' } };
+  if (inserted) return succeed({ labFileId: inserted.id, status: 'stored' });
   // Two uploads of the same bytes at once: the other one won; answer as if it came first.
   const winner = await repo.findLabFileByHash(db, input.crewId, sha256);
   if (!winner) return refuse(409, 'upload_conflict', 'The same file was uploaded twice at once; try again.');
   return answerExisting(winner);
 }
 
-function answerExisting(file: { id: string; file_name: string; import_id: string | null; confirmed_at: Date | null }): LabImportResult<StoredLabFile> {
+function answerExisting(file: { id: string; file_name: string; import_id: string | null; confirmed_at: Date | null }): Result<StoredLabFile> {
   if (file.import_id) {
     const on = file.confirmed_at ? ` on ${file.confirmed_at.toISOString().slice(0, 10)}` : '';
-    return {
-      ...refuse(409, 'already_imported', `This file was already imported${on} (as "${file.file_name}"); nothing new was written.`),
-      fields: { labFileId: file.id },
-    };
+    return refuse(409, 'already_imported', `This file was already imported${on} (as "${file.file_name}"); nothing new was written.`, { labFileId: file.id });
   }
-  return { ok: true, value: { labFileId: file.id, status: 'already-uploaded' } };
+  return succeed({ labFileId: file.id, status: 'already-uploaded' });
 }
 
 function toLabFile(row: NonNullable<Awaited<ReturnType<typeof repo.findLabFileOfCrew>>>): LabFile {
@@ -139,8 +129,6 @@ export async function listLabFiles(db: Db, crewId: string) {
   const rows = await repo.listLabFilesOfCrew(db, crewId);
   return rows.map((r) => ({ ...toLabFile(r), samplesWritten: r.samples_written, readingsWritten: r.readings_written }));
 }
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 /** The headers of a file's header row, read from its first lines only (a profile is looked up before the full read). */
 function readHeaders(text: string): string[] {
@@ -183,8 +171,8 @@ function describeDecision(match: RowMatch, decision: RowDecision | null, errors:
 export async function previewLabImport(
   db: Db,
   input: { crewId: string; labFileId: string; decisions?: Record<string, RowDecision> },
-): Promise<LabImportResult<ImportPreview>> {
-  if (!UUID.test(input.labFileId)) return refuse(404, 'not_found', 'No such lab file in this crew.');
+): Promise<Result<ImportPreview>> {
+  if (!isUuid(input.labFileId)) return refuse(404, 'not_found', 'No such lab file in this crew.');
   const fileRow = await repo.findLabFileOfCrew(db, input.crewId, input.labFileId);
   if (!fileRow) return refuse(404, 'not_found', 'No such lab file in this crew.');
   const content = await repo.findLabFileContent(db, input.crewId, input.labFileId);
@@ -309,7 +297,7 @@ export async function previewLabImport(
 export async function saveLabProfile(
   db: Db,
   input: { crewId: string; userId: string; labFileId: string; name: string; targets: Record<number, LabCsvMappingTarget> },
-): Promise<LabImportResult<{ profileId: string; name: string }>> {
+): Promise<Result<{ profileId: string; name: string }>> {
   const preview = await previewLabImport(db, { crewId: input.crewId, labFileId: input.labFileId });
   if (!preview.ok) return preview;
   const mapping: Record<string, LabCsvMappingTarget> = {};
@@ -333,7 +321,7 @@ export async function saveLabProfile(
     sheetName: preview.value.sheet,
     createdBy: input.userId,
   });
-  return { ok: true, value: { profileId: saved.id, name: saved.name } };
+  return succeed({ profileId: saved.id, name: saved.name });
 }
 
 /**
@@ -346,15 +334,15 @@ export async function confirmLabImport(
   db: Db,
   input: { crewId: string; userId: string; labFileId: string; decisions: Record<string, RowDecision> },
   hooks: ConfirmHooks = {},
-): Promise<LabImportResult<ImportSummary>> {
+): Promise<Result<ImportSummary>> {
   // Inside a caller's transaction (the demo seed) the import joins it; otherwise it is its own transaction.
   const inTransaction = <T>(work: (trx: Transaction<Database>) => Promise<T>): Promise<T> =>
     db.isTransaction ? work(db as Transaction<Database>) : db.transaction().execute(work);
   try {
     return await inTransaction(async (trx) => {
-      if (UUID.test(input.labFileId)) {
+      if (isUuid(input.labFileId)) {
         // One confirm at a time per file: a second one waits here and then sees the first one's import.
-        await sql`select id from lab_files where id = ${input.labFileId}::uuid and crew_id = ${input.crewId}::uuid for update`.execute(trx);
+        await repo.lockLabFile(trx, input.crewId, input.labFileId);
       }
       const previewed = await previewLabImport(trx, input);
       if (!previewed.ok) return previewed;
@@ -422,19 +410,11 @@ export async function confirmLabImport(
       await hooks.afterReadings?.(trx);
 
       const sampleIds = [...new Set([...sampleOf.values()].map((s) => s.sampleId))];
-      await repo.updateSampleStates(trx, sampleIds, 'results_in', `Lab results imported from "${preview.file.fileName}".`, input.userId);
+      await recordSampleStates(trx, sampleIds, 'results_in', input.userId, `Lab results imported from "${preview.file.fileName}".`);
 
-      const byMachine = new Map<string, Set<string>>();
-      for (const { sampleId, machineId } of sampleOf.values()) {
-        const set = byMachine.get(machineId) ?? new Set<string>();
-        set.add(sampleId);
-        byMachine.set(machineId, set);
-      }
-      let findingsWritten = 0;
-      for (const [machineId, changed] of byMachine) findingsWritten += await recomputeMachineFindings(trx, machineId, changed, known);
-      // Their crew references changed with these samples: judge the young machines of the same engines again.
-      await rejudgeEnginePeers(trx, new Set(byMachine.keys()));
-      // Issue 8: alert mails are queued in this transaction, so a rolled-back import sends nothing and a retry nothing twice.
+      // Findings of every changed sample's machine, then of the young same-engine peers (one shared path with reviews).
+      const findingsWritten = await recomputeChangedSamples(trx, sampleOf.values(), known);
+      // Alert mails are queued in this transaction, so a rolled-back import sends nothing and a retry nothing twice.
       await queueImportAlerts(trx, imported.id);
 
       return {
@@ -452,14 +432,14 @@ export async function confirmLabImport(
     });
   } catch (error) {
     // The unique lab_file_id of lab_imports: a confirm that raced another one for the same file.
-    if (error instanceof Error && /lab_imports_lab_file_id_key/.test(error.message)) {
+    if ((error as { constraint?: string } | null)?.constraint === 'lab_imports_lab_file_id_key') {
       return refuse(409, 'already_imported', 'This file was already imported; nothing new was written.');
     }
     throw error;
   }
 }
 
-function refuseUnready(preview: ImportPreview): LabImportFailure {
+function refuseUnready(preview: ImportPreview): Refusal {
   const fields: Record<string, string> = {};
   for (const issue of preview.fileIssues) if (issue.severity === 'error') fields[issue.row === null ? 'file' : `line.${issue.row}`] ??= issue.message;
   for (const row of preview.rows) {
@@ -471,208 +451,4 @@ function refuseUnready(preview: ImportPreview): LabImportFailure {
   const n = Object.keys(fields).length;
   if (n === 0) return refuse(422, 'nothing_to_import', 'Every row is skipped, so there is nothing to write.');
   return refuse(422, 'rows_need_attention', `Nothing was written: ${n} ${n === 1 ? 'problem needs' : 'problems need'} attention first.`, fields);
-}
-
-type SampleWithReadings = Awaited<ReturnType<typeof repo.findSamplesWithReadings>>[number];
-
-/**
- * A stored sample as the analysis engine sees it. The engine works in the machine's own meter unit (its
- * sentences and rounding steps say mi, km or h), so stored kilometres are converted here and back below.
- */
-function toSamplePoint(s: Omit<SampleWithReadings, 'created_at'>, readings: SamplePoint['readings'], oilCapacity: number | null, meter: MeterUnit): SamplePoint {
-  return {
-    id: s.id,
-    takenAt: s.drawn_on,
-    odometer: fromStoredMeter(s.odometer, meter),
-    // Unknown distance stays NaN: the engine skips wear rates and intervals it cannot compute.
-    distanceOnOil: s.distance_on_oil === null ? Number.NaN : fromStoredMeter(s.distance_on_oil, meter),
-    topUpVolume: s.top_up_l,
-    oilVolume: s.volume_l ?? oilCapacity ?? undefined,
-    grade: s.sae_grade ?? undefined,
-    oilProduct: s.oil_product || undefined,
-    readings,
-    baselineExcluded: s.in_baseline
-      ? undefined
-      : { reason: s.baseline_note || (s.break_in ? 'Break-in oil.' : 'No oil change on file for this sample.'), breakIn: s.break_in },
-    resultsOn: s.results_at ? new Date(s.results_at).toISOString().slice(0, 10) : undefined,
-  };
-}
-
-type MachineProfileRow = NonNullable<Awaited<ReturnType<typeof repo.findMachineProfile>>>;
-
-/** The same-engine machines of the crew (crew-scoped, archived ones left out), as isSameEngine decides. */
-async function findSameEngineMachines(trx: Db, machine: MachineProfileRow) {
-  const engine = { layout: machine.engine_layout, displacementCc: machine.displacement_cc === null ? null : Number(machine.displacement_cc), cooling: machine.cooling, sharedOil: machine.shared_oil, distanceUnit: machine.meter };
-  if (engine.displacementCc === null) return { engine, peers: [] };
-  const candidates = await repo.findEngineCandidates(trx, machine.crew_id, machine.id, { layout: engine.layout, cooling: engine.cooling, sharedOil: engine.sharedOil });
-  const peers = candidates.filter((c) =>
-    isSameEngine(engine, { layout: c.engine_layout, displacementCc: c.displacement_cc === null ? null : Number(c.displacement_cc), cooling: c.cooling, sharedOil: c.shared_oil, distanceUnit: c.meter }),
-  );
-  return { engine, peers };
-}
-
-/**
- * The crew reference of a machine: the in-control samples of the crew's other machines with the same engine, in
- * this machine's distance unit, read in one query. Undefined with fewer than CREW_REFERENCE.params.minMachines such
- * machines (the engine also counts the machines that really give a value to each band).
- */
-async function loadCrewReference(trx: Db, machine: MachineProfileRow): Promise<CrewReference | undefined> {
-  const { engine, peers } = await findSameEngineMachines(trx, machine);
-  const withSamples = peers.filter((p) => Number(p.samples_with_readings ?? 0) > 0);
-  if (withSamples.length < CREW_REFERENCE.params.minMachines) return undefined;
-  const rows = await repo.findReferenceSamples(trx, machine.crew_id, withSamples.map((p) => p.id));
-  const samples: CrewReferenceSample[] = [];
-  for (const row of rows) {
-    const readings: SamplePoint['readings'] = {};
-    for (const [measurand, value, qualifier] of row.readings) {
-      if (!isMeasurandCode(measurand)) continue;
-      readings[measurand] = qualifier === '<' || qualifier === '>' ? { value: Number(value), qualifier } : { value: Number(value) };
-    }
-    const acted = new Set(row.acted.filter(isMeasurandCode));
-    samples.push({ ...toSamplePoint(row, readings, row.oil_capacity_l, machine.meter), machineId: row.machine_id, outOfBaseline: acted });
-  }
-  return { label: crewReferenceLabel(engine), samples };
-}
-
-/**
- * A machine's samples change its same-engine peers' crew references. The peers still young enough to lean on one
- * (at most CREW_REFERENCE.params.rejudgeUpToSamples samples with readings) are judged again whole, in the caller's
- * transaction; older peers keep the judgements they got when their results arrived. Not recursive: a peer judged
- * again does not set off its own peers. Returns how many machines were judged again.
- */
-export async function rejudgeEnginePeers(trx: Db, machineIds: ReadonlySet<string>): Promise<number> {
-  const done = new Set(machineIds);
-  let count = 0;
-  for (const machineId of machineIds) {
-    const machine = await repo.findMachineProfile(trx, machineId);
-    if (!machine) continue;
-    const { peers } = await findSameEngineMachines(trx, machine);
-    for (const peer of peers) {
-      const n = Number(peer.samples_with_readings ?? 0);
-      if (done.has(peer.id) || n === 0 || n > CREW_REFERENCE.params.rejudgeUpToSamples) continue;
-      done.add(peer.id);
-      await recomputeMachineFindings(trx, peer.id, null);
-      count++;
-    }
-  }
-  return count;
-}
-
-const LIMIT_KEYS: Partial<Record<string, keyof FixedLimits>> = {
-  Fe: 'Fe', Cr: 'Cr', Cu: 'Cu', Sn: 'Sn', Al: 'Al', Pb: 'Pb', B: 'B', Si: 'Si', FUEL: 'fuelPercent', WATER: 'waterPercent', KV100: 'kv100ChangePercent',
-};
-
-/**
- * Judge a machine's samples again with replayHistory (the same replay judgeHistory runs) and store the findings,
- * the engine's interval calls and the bands the rules used for `changed` samples and every later one (their
- * history includes the changed ones); `changed` null judges every sample. A machine last judged by another engine
- * version is judged whole. While its own baseline builds, bands come from the crew reference (loadCrewReference).
- * `known` holds readings already in memory by sample id. Returns the number of findings stored.
- */
-export async function recomputeMachineFindings(
-  trx: Db,
-  machineId: string,
-  changed: ReadonlySet<string> | null,
-  known: ReadonlyMap<string, SamplePoint['readings']> = new Map(),
-): Promise<number> {
-  const machineRow = await repo.findMachineProfile(trx, machineId);
-  if (!machineRow) return 0;
-  const [samples, limitRows, newOil] = await Promise.all([repo.findSamplesWithReadings(trx, machineId), repo.findCrewLimits(trx, machineRow.crew_id), loadNewOilLookup(trx, machineRow.crew_id)]);
-  // Readings this import just wrote are in memory already; only the machine's earlier ones are read back.
-  const readingRows = await repo.findReadingsOfSamples(trx, samples.filter((s) => !known.has(s.id)).map((s) => s.id));
-  const readingsBySample = new Map<string, SamplePoint['readings']>(known);
-  for (const r of readingRows) {
-    if (!isMeasurandCode(r.measurand)) continue;
-    const map = readingsBySample.get(r.sample_id) ?? {};
-    map[r.measurand as MeasurandCode] = r.qualifier === '<' || r.qualifier === '>' ? { value: r.value, qualifier: r.qualifier } : { value: r.value };
-    readingsBySample.set(r.sample_id, map);
-  }
-  const limits: Partial<FixedLimits> = {};
-  for (const l of limitRows) {
-    const key = LIMIT_KEYS[l.measurand];
-    if (key && l.act_at !== null) limits[key] = l.act_at;
-  }
-  const meter = machineRow.meter;
-  const machine: MachineProfile = {
-    cooling: machineRow.cooling,
-    distanceUnit: meter,
-    maxIntervalDistance: machineRow.max_interval_distance === null ? undefined : fromStoredMeter(machineRow.max_interval_distance, meter),
-    maxIntervalDays: machineRow.max_interval_days ?? undefined,
-    sharedOil: machineRow.shared_oil,
-  };
-
-  const stale = machineRow.judged_by !== ENGINE_VERSION;
-  const firstChanged = stale || changed === null ? 0 : samples.findIndex((s) => changed.has(s.id));
-  if (firstChanged === -1 || samples.length === 0) {
-    if (stale) await repo.markMachineJudged(trx, machineId, ENGINE_VERSION);
-    return 0;
-  }
-  const points = samples.map((s) => attachNewOil(toSamplePoint(s, readingsBySample.get(s.id) ?? {}, machineRow.oil_capacity_l, meter), newOil));
-  machine.crewReference = await loadCrewReference(trx, machineRow);
-  const replayed = replayHistory({ machine, samples: points, limits });
-  const findings: repo.FindingInsert[] = [];
-  const calls: repo.IntervalCallInsert[] = [];
-  const bands: repo.BandInsert[] = [];
-  const recomputed: string[] = [];
-  for (const { sampleId, analysis, call } of replayed.slice(firstChanged)) {
-    recomputed.push(sampleId);
-    for (const f of analysis.findings) {
-      findings.push({ sampleId, measurand: f.measurands[0] ?? null, level: f.level, ruleId: f.ruleId, numbers: f.numbers, sentence: f.sentence });
-    }
-    for (const [measurand, band] of Object.entries(analysis.bands)) {
-      if (!band || band.status !== 'ready') continue;
-      bands.push({
-        sampleId, measurand, basis: band.basis, source: band.source, sourceLabel: band.crew?.label ?? null, sourceMachines: band.crew?.machines ?? null, n: band.n, mean: band.mean, lower: band.lower,
-        watchAbove: band.watchAbove, actFrom: band.actFrom, toReported: band.toReported,
-      });
-    }
-    calls.push({
-      sampleId,
-      machineId,
-      call: call.call,
-      // Back to the stored unit (km, or hours).
-      nextInterval: call.nextIntervalDistance !== null && Number.isFinite(call.nextIntervalDistance) ? toStoredMeter(call.nextIntervalDistance, meter) : null,
-      nextSampleOdometer: call.nextSampleDue.distance !== null && Number.isFinite(call.nextSampleDue.distance) ? toStoredMeter(call.nextSampleDue.distance, meter) : null,
-      nextSampleOn: call.nextSampleDue.date ?? null,
-      reasons: call.reasons,
-    });
-  }
-  await repo.replaceFindings(trx, recomputed, findings);
-  await repo.replaceEngineCalls(trx, recomputed, calls);
-  await repo.replaceBands(trx, recomputed, bands);
-  if (stale) await repo.markMachineJudged(trx, machineId, ENGINE_VERSION);
-  return findings.length;
-}
-
-/**
- * Judge again every machine whose stored results an older engine version made: one transaction per machine
- * (the machine row locked, so an import at the same moment waits), oldest version first. Returns the count.
- */
-export async function recomputeStaleMachines(db: Kysely<Database>, log?: (line: string) => void): Promise<number> {
-  let after: string | null = null;
-  let done = 0;
-  for (;;) {
-    const batch = await repo.listStaleMachines(db, ENGINE_VERSION, after, 200);
-    if (batch.length === 0) break;
-    for (const { id } of batch) {
-      await db.transaction().execute(async (trx) => {
-        const locked = await repo.lockMachine(trx, id);
-        if (!locked || locked.judged_by === ENGINE_VERSION) return;
-        await recomputeMachineFindings(trx, id, new Set());
-      });
-      done++;
-    }
-    after = batch[batch.length - 1]!.id;
-  }
-  if (done > 0) log?.(`[recompute] ${done} machine${done === 1 ? '' : 's'} judged again with engine ${ENGINE_VERSION}`);
-  return done;
-}
-
-/** Recompute findings and the engine interval call of one sample (and the later samples of its machine). */
-export async function recomputeFindings(trx: Db, sampleId: string): Promise<number> {
-  const machine = await repo.findMachineOfSample(trx, sampleId);
-  if (!machine) return 0;
-  const written = await recomputeMachineFindings(trx, machine.id, new Set([sampleId]));
-  await rejudgeEnginePeers(trx, new Set([machine.id]));
-  return written;
 }

@@ -105,16 +105,6 @@ export interface ImportSummary {
   newOilReferencesWritten: number;
 }
 
-export type LabImportFailure = {
-  ok: false;
-  status: 400 | 404 | 409 | 413 | 415 | 422;
-  code: string;
-  message: string;
-  fields?: Record<string, string>;
-};
-
-export type LabImportResult<T> = { ok: true; value: T } | LabImportFailure;
-
 /** Hooks for fault tests: each runs inside the confirm transaction, and a throw rolls everything back. */
 export interface ConfirmHooks {
   afterReadings?: (trx: unknown) => Promise<void> | void;

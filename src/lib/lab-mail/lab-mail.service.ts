@@ -21,7 +21,7 @@ import type { Kysely, Transaction } from 'kysely';
 import { simpleParser, type ParsedMail } from 'mailparser';
 import { deliverAlerts, loadAlertEnv, type AlertForRecipient } from '../alerts/alerts.service';
 import type { AlertEnv } from '../alerts/alerts';
-import { listCrewRecipients } from '../alerts/alerts.repository';
+import { findCrewName, listCrewRecipients } from '../alerts/alerts.repository';
 import { recordAuditEvent } from '../audit/audit.repository';
 import type { Database } from '../db/database';
 import { refuse, succeed, type Result } from '../http/result';
@@ -211,8 +211,7 @@ async function processOne(trx: Transaction<Database>, row: LockedMail, env: Aler
 
 /** One notice per mechanic and lead, by their preferences, with a link to each waiting preview. */
 async function noticeMechanics(trx: Transaction<Database>, env: AlertEnv, crewId: string, inboundId: string, files: readonly { id: string; fileName: string }[], from: string | null): Promise<void> {
-  const crew = await trx.selectFrom('crews').select('name').where('id', '=', crewId).executeTakeFirst();
-  const crewName = crew?.name ?? 'your crew';
+  const crewName = (await findCrewName(trx, crewId)) ?? 'your crew';
   const recipients = await listCrewRecipients(trx, crewId, ['mechanic', 'lead']);
   const content = composeLabReportArrived({
     crewName,

@@ -1,5 +1,5 @@
-import type { Kysely, Transaction } from 'kysely';
-import type { Database, OilChangeRow } from '../db/database';
+import type { Insertable, Kysely, Transaction } from 'kysely';
+import type { Database, OilChangeRow, OilChangesTable } from '../db/database';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
@@ -30,4 +30,14 @@ export function findLatestOilChange(db: Db, crewId: string, machineId: string): 
 /** The oil change a device's key already created in this crew (a resend of a queued write), or undefined. */
 export function findOilChangeByClientKey(db: Db, crewId: string, clientKey: string): Promise<OilChangeRow | undefined> {
   return db.selectFrom('oil_changes').selectAll().where('crew_id', '=', crewId).where('client_key', '=', clientKey).executeTakeFirst();
+}
+
+/** One oil change of the crew by id, or undefined. */
+export function findOilChangeOfCrew(db: Db, crewId: string, id: string): Promise<OilChangeRow | undefined> {
+  return db.selectFrom('oil_changes').selectAll().where('crew_id', '=', crewId).where('id', '=', id).executeTakeFirst();
+}
+
+/** Writes an oil change and answers the stored row. */
+export function insertOilChange(db: Db, row: Insertable<OilChangesTable>): Promise<OilChangeRow> {
+  return db.insertInto('oil_changes').values(row).returningAll().executeTakeFirstOrThrow();
 }

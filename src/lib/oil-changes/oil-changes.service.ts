@@ -1,19 +1,20 @@
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
 import { canActorEdit, getMachine } from '../machines/machines.service';
-import { refuse, refuseInvalid, succeed, type Actor, type FieldErrors, type ServiceResult } from '~/lib/http/result';
+import { refuse, refuseInvalid, succeed, type FieldErrors, type Result } from '~/lib/http/result';
+import type { Actor } from '~/lib/auth/types';
 import type { PreparedPhoto } from '../photos/photos';
 import { attachPhotos, findPhotosOfOilChanges, type PhotoRow } from '../photos/photos.repository';
 import { storePreparedPhoto } from '../photos/photos.service';
 import { formatMeter, toStoredMeter } from '../units/units';
 import { computeDistances, explainAbsurdOdometer, oilChangeInputSchema, toOilChange, type OilChange } from './oil-changes';
-import { findLatestOilChange, findOilChangeAfter, findOilChangeBefore, findOilChangeByClientKey, findOilChangesOfMachine } from './oil-changes.repository';
+import { findLatestOilChange, findOilChangeAfter, findOilChangeBefore, findOilChangeByClientKey, findOilChangesOfMachine, insertOilChange } from './oil-changes.repository';
 import { parseSaeGrade } from './sae-grade';
 import { checkCrewQuota } from '../storage-quota/storage-quota';
 import { sumCrewStorageBytes } from '../storage-quota/storage-quota.repository';
 
 /** A machine's oil changes, newest first, each with the distance since the one before and its photos. */
-export async function listOilChanges(db: Kysely<Database>, actor: Actor, machineId: string): Promise<ServiceResult<(OilChange & { photos: PhotoRow[] })[]>> {
+export async function listOilChanges(db: Kysely<Database>, actor: Actor, machineId: string): Promise<Result<(OilChange & { photos: PhotoRow[] })[]>> {
   const m = await getMachine(db, actor, machineId);
   if (!m.ok) return m;
   const rows = await findOilChangesOfMachine(db, actor.membership.crewId, machineId);
@@ -36,7 +37,7 @@ export async function getLatestOilChange(db: Kysely<Database>, actor: Actor, mac
 export async function createOilChange(
   db: Kysely<Database>, actor: Actor, machineId: string, input: unknown,
   options: { newPhotos?: PreparedPhoto[]; uploadDir?: string; quotaBytes?: number } = {},
-): Promise<ServiceResult<OilChange & { repeated: boolean }>> {
+): Promise<Result<OilChange & { repeated: boolean }>> {
   const m = await getMachine(db, actor, machineId);
   if (!m.ok) return m;
   const machine = m.value;
@@ -73,12 +74,12 @@ export async function createOilChange(
         });
       }
     }
-    const row = await trx.insertInto('oil_changes').values({
+    const row = await insertOilChange(trx, {
       crew_id: crewId, machine_id: machineId, changed_on: d.changedOn, odometer, meter_replaced: d.meterReplaced,
       oil_product: d.oilProduct, sae_grade: grade.grade, volume_l: d.volumeL ?? null, filter_changed: d.filterChanged,
       top_up_l: d.topUpL ?? 0, other_work: JSON.stringify(d.otherWork), notes: d.notes, created_by: actor.userId,
       client_key: d.clientKey ?? null,
-    }).returningAll().executeTakeFirstOrThrow();
+    });
     const ids = [...new Set(d.photoIds)];
     const attached = await attachPhotos(trx, crewId, actor.userId, ids, row.id);
     if (attached !== ids.length) {

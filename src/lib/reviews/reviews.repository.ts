@@ -1,7 +1,7 @@
 /** Queries of review notes and interval calls; every read is scoped by the crew. */
 import { sql, type Kysely, type Transaction } from 'kysely';
 import type { Database } from '../db/database';
-import { isUuid } from '../trends/trends.repository';
+import { isUuid } from '../ids';
 import type { BaselineStatus, CallHistoryEntry, ReviewNote } from './reviews';
 
 type Db = Kysely<Database> | Transaction<Database>;
@@ -64,14 +64,6 @@ export async function insertIntervalCall(
     .returning('id')
     .executeTakeFirstOrThrow();
   return r.id;
-}
-
-/** Moves a sample with results to reviewed, recording who did it (no change for other states). */
-export async function markSampleReviewed(db: Db, sampleId: string, actorUserId: string, note: string): Promise<boolean> {
-  const updated = await db.updateTable('samples').set({ state: 'reviewed' }).where('id', '=', sampleId).where('state', '=', 'results_in').executeTakeFirst();
-  if (Number(updated.numUpdatedRows) === 0) return false;
-  await db.insertInto('sample_events').values({ sample_id: sampleId, state: 'reviewed', note, actor_user_id: actorUserId }).execute();
-  return true;
 }
 
 /** Review notes of a sample, oldest first, with the author's name and role in the sample's crew. */

@@ -1,24 +1,20 @@
 /** Review rules: who may write, confirm keeps the current call, override needs a note; each decision is one transaction. */
 import type { Kysely } from 'kysely';
 import { canReviewSample } from '../auth/permissions';
-import type { CrewMembership } from '../auth/types';
+import type { Actor as AuthActor, CrewMembership } from '../auth/types';
+import { refuse, succeed, type Result } from '../http/result';
 import type { Database } from '../db/database';
 import { toStoredMeter } from '../units/units';
 import type { BaselineChoice, CallDecision, CallHistoryEntry, ReviewNote } from './reviews';
 import { recordAuditEvent } from '../audit/audit.repository';
-import { recomputeFindings } from '../lab-import/lab-import.service';
-import { findBaselineStatus, findReviewSample, insertIntervalCall, updateSampleBaseline, insertReviewNote, listCallHistory, listReviewNotes, markSampleReviewed } from './reviews.repository';
+import { recomputeFindings } from '../findings/findings.service';
+import { findBaselineStatus, findReviewSample, insertIntervalCall, updateSampleBaseline, insertReviewNote, listCallHistory, listReviewNotes } from './reviews.repository';
+import { recordSampleState } from '../samples/sample-lifecycle';
 
-export type ReviewResult<T> =
-  | { ok: true; value: T }
-  | { ok: false; code: 'not_found' | 'forbidden' | 'no_call' | 'no_results'; message: string };
+/** A member of the crew in question, or a signed-in user with no crew (who gets not found). */
+type Actor = AuthActor<CrewMembership | null>;
 
-interface Actor {
-  userId: string;
-  membership: CrewMembership | null;
-}
-
-const NOT_FOUND = { ok: false, code: 'not_found', message: 'No such sample in this crew.' } as const;
+const notFound = () => refuse(404, 'not_found', 'No such sample in this crew.');
 
 /** Everything the review panel shows: the call history (newest first) and the notes (oldest first). */
 export async function loadSampleReview(db: Kysely<Database>, crewId: string, sampleId: string) {
@@ -29,13 +25,13 @@ export async function loadSampleReview(db: Kysely<Database>, crewId: string, sam
 }
 
 /** Adds a mechanic's or lead's note to a sample. */
-export async function addReviewNote(db: Kysely<Database>, actor: Actor, sampleId: string, body: string): Promise<ReviewResult<{ id: string }>> {
-  if (!actor.membership) return NOT_FOUND;
+export async function addReviewNote(db: Kysely<Database>, actor: Actor, sampleId: string, body: string): Promise<Result<{ id: string }>> {
+  if (!actor.membership) return notFound();
   const sample = await findReviewSample(db, actor.membership.crewId, sampleId);
-  if (!sample) return NOT_FOUND;
-  if (!canReviewSample(actor.membership)) return { ok: false, code: 'forbidden', message: 'Only a lead or a mechanic of the crew writes review notes.' };
+  if (!sample) return notFound();
+  if (!canReviewSample(actor.membership)) return refuse(403, 'forbidden', 'Only a lead or a mechanic of the crew writes review notes.');
   const id = await insertReviewNote(db, sampleId, actor.userId, body);
-  return { ok: true, value: { id } };
+  return succeed({ id });
 }
 
 /**
@@ -47,22 +43,22 @@ export async function decideIntervalCall(
   actor: Actor,
   sampleId: string,
   decision: CallDecision,
-): Promise<ReviewResult<{ id: string; entry: CallHistoryEntry }>> {
-  if (!actor.membership) return NOT_FOUND;
+): Promise<Result<{ id: string; entry: CallHistoryEntry }>> {
+  if (!actor.membership) return notFound();
   const crewId = actor.membership.crewId;
   const membership = actor.membership;
-  return db.transaction().execute(async (trx) => {
+  return db.transaction().execute(async (trx): Promise<Result<{ id: string; entry: CallHistoryEntry }>> => {
     const sample = await findReviewSample(trx, crewId, sampleId);
-    if (!sample) return NOT_FOUND;
-    if (!canReviewSample(membership)) return { ok: false, code: 'forbidden', message: 'Only a lead or a mechanic of the crew confirms or overrides a call.' } as const;
+    if (!sample) return notFound();
+    if (!canReviewSample(membership)) return refuse(403, 'forbidden', 'Only a lead or a mechanic of the crew confirms or overrides a call.');
     if (sample.state === 'drawn' || sample.state === 'shipped') {
-      return { ok: false, code: 'no_results', message: 'This sample has no results yet, so there is no call to decide.' } as const;
+      return refuse(409, 'no_results', 'This sample has no results yet, so there is no call to decide.');
     }
     const history = await listCallHistory(trx, sampleId);
     const current = history[0];
     let id: string;
     if (decision.action === 'confirm') {
-      if (!current) return { ok: false, code: 'no_call', message: 'There is no interval call to confirm yet; override it with your own call instead.' } as const;
+      if (!current) return refuse(409, 'no_call', 'There is no interval call to confirm yet; override it with your own call instead.');
       id = await insertIntervalCall(trx, {
         sampleId, machineId: sample.machine_id, call: current.call, source: 'confirmed', nextInterval: current.nextInterval,
         nextSampleOdometer: current.nextSampleOdometer, nextSampleOn: current.nextSampleOn, reasons: current.reasons,
@@ -78,9 +74,10 @@ export async function decideIntervalCall(
         reasons: [decision.note], note: decision.note, madeBy: actor.userId,
       });
     }
-    await markSampleReviewed(trx, sampleId, actor.userId, decision.action === 'confirm' ? 'Interval call confirmed.' : 'Interval call overridden.');
+    // A second decision on a reviewed sample keeps it reviewed, with no second event.
+    await recordSampleState(trx, sampleId, 'reviewed', actor.userId, decision.action === 'confirm' ? 'Interval call confirmed.' : 'Interval call overridden.');
     const entry = (await listCallHistory(trx, sampleId)).find((c) => c.id === id)!;
-    return { ok: true, value: { id, entry } } as const;
+    return succeed({ id, entry });
   });
 }
 
@@ -93,14 +90,14 @@ export async function changeSampleBaseline(
   actor: Actor & { ip?: string | null },
   sampleId: string,
   choice: BaselineChoice,
-): Promise<ReviewResult<{ inBaseline: boolean; findingsWritten: number }>> {
-  if (!actor.membership) return NOT_FOUND;
+): Promise<Result<{ inBaseline: boolean; findingsWritten: number }>> {
+  if (!actor.membership) return notFound();
   const membership = actor.membership;
-  return db.transaction().execute(async (trx) => {
+  return db.transaction().execute(async (trx): Promise<Result<{ inBaseline: boolean; findingsWritten: number }>> => {
     const sample = await findReviewSample(trx, membership.crewId, sampleId);
-    if (!sample) return NOT_FOUND;
+    if (!sample) return notFound();
     if (!canReviewSample(membership)) {
-      return { ok: false, code: 'forbidden', message: 'Only a lead or a mechanic of the crew takes samples out of the baseline or puts them back.' } as const;
+      return refuse(403, 'forbidden', 'Only a lead or a mechanic of the crew takes samples out of the baseline or puts them back.');
     }
     const inBaseline = choice.action === 'include';
     await updateSampleBaseline(trx, sampleId, { inBaseline, note: choice.reason, breakIn: !inBaseline && choice.breakIn, userId: actor.userId });
@@ -112,7 +109,7 @@ export async function changeSampleBaseline(
       ip: actor.ip ?? null,
     });
     const findingsWritten = await recomputeFindings(trx, sampleId);
-    return { ok: true, value: { inBaseline, findingsWritten } } as const;
+    return succeed({ inBaseline, findingsWritten });
   });
 }
 

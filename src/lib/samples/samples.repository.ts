@@ -1,6 +1,6 @@
-import type { Kysely, Transaction } from 'kysely';
-import type { Database, SampleRow, SampleState } from '../db/database';
-import { isUuid } from '../machines/machines.repository';
+import { sql, type Insertable, type Kysely, type Transaction } from 'kysely';
+import type { Database, SampleRow, SamplesTable, SampleState } from '../db/database';
+import { isUuid } from '../ids';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
@@ -72,4 +72,32 @@ export async function findUnusedReservedCodes(db: Db, crewId: string, userId: st
     .select('r.code_norm').where('r.crew_id', '=', crewId).where('r.user_id', '=', userId).where('s.id', 'is', null);
   if (deviceKey !== undefined) q = q.where('r.device_key', '=', deviceKey);
   return (await q.orderBy('r.reserved_at').orderBy('r.code_norm').execute()).map((r) => r.code_norm);
+}
+
+/** The states of these samples, their rows locked for the rest of the transaction (in id order, so two callers never deadlock). */
+export function lockSampleStates(db: Db, sampleIds: readonly string[]): Promise<{ id: string; state: SampleState }[]> {
+  if (sampleIds.length === 0) return Promise.resolve([]);
+  return db.selectFrom('samples').select(['id', 'state']).where('id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`)
+    .orderBy('id').forUpdate().execute();
+}
+
+/** Writes a state on these samples, and the tracking note when one is given. */
+export async function setSampleState(db: Db, sampleIds: readonly string[], state: SampleState, trackingNote?: string): Promise<void> {
+  if (sampleIds.length === 0) return;
+  const patch = trackingNote === undefined ? { state } : { state, tracking_note: trackingNote };
+  await db.updateTable('samples').set(patch).where('id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`).execute();
+}
+
+/** One sample event per sample: the state it reached, why, and who moved it. */
+export async function insertSampleEvents(db: Db, sampleIds: readonly string[], state: SampleState, note: string, actorUserId: string | null): Promise<void> {
+  if (sampleIds.length === 0) return;
+  // One array parameter, whatever the number of samples a lab file holds.
+  await sql`
+    insert into sample_events (sample_id, state, note, actor_user_id)
+    select s, ${state}, ${note}, ${actorUserId} from unnest(${sql.val(sampleIds)}::uuid[]) as t(s)`.execute(db);
+}
+
+/** Writes a sample (its first state is the column default, 'drawn') and answers the stored row. */
+export function insertSample(db: Db, row: Insertable<SamplesTable>): Promise<SampleRow> {
+  return db.insertInto('samples').values(row).returningAll().executeTakeFirstOrThrow();
 }

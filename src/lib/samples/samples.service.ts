@@ -2,17 +2,19 @@ import type { Kysely, Transaction } from 'kysely';
 import type { Database, SampleState } from '../db/database';
 import { canCreateMachine, canReadCrew } from '../auth/permissions';
 import { canActorEdit, getMachine } from '../machines/machines.service';
-import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type FieldErrors, type ServiceResult } from '~/lib/http/result';
+import { refuse, refuseInvalid, refuseNotFound, succeed, type FieldErrors, type Result } from '~/lib/http/result';
+import type { Actor } from '~/lib/auth/types';
 import { explainAbsurdOdometer, toOilChange, type OilChange } from '../oil-changes/oil-changes';
-import { findLatestOilChange, findOilChangesOfMachine } from '../oil-changes/oil-changes.repository';
+import { findLatestOilChange, findOilChangeOfCrew, findOilChangesOfMachine } from '../oil-changes/oil-changes.repository';
 import { parseSaeGrade } from '../oil-changes/sae-grade';
 import { formatMeter, toStoredMeter } from '../units/units';
 import { explainIssuedCode, generateIssuedCode, normaliseBottleCode } from './bottle-code';
 import { findNewOilBottles } from '../new-oil/new-oil.service';
-import { drainCardSchema, SAMPLE_STATES, shipSchema, toSample, type Sample } from './samples';
+import { drainCardSchema, shipSchema, toSample, type Sample } from './samples';
+import { recordSampleDrawn, recordSampleState } from './sample-lifecycle';
 import {
   countSamplesByState, findSampleByBottleCode, findSampleByClientKey, findSampleEvents, findSampleOfCrew, findSamplesOfCrew,
-  findSamplesOfMachine, findUnusedReservedCodes, reserveBottleCode,
+  findSamplesOfMachine, findUnusedReservedCodes, insertSample, reserveBottleCode,
 } from './samples.repository';
 
 type Db = Kysely<Database> | Transaction<Database>;
@@ -69,7 +71,7 @@ export const RESERVED_PER_RIDER = 5 * RESERVED_BLOCK_SIZE;
  * Tops up a device's block of reserved bottle codes to RESERVED_BLOCK_SIZE and answers the whole block
  * (codes already handed out and still unused come back, so a device that lost its copy gets them again).
  */
-export async function reserveBottleCodes(db: Kysely<Database>, actor: Actor, deviceKey: string): Promise<ServiceResult<{ codes: string[] }>> {
+export async function reserveBottleCodes(db: Kysely<Database>, actor: Actor, deviceKey: string): Promise<Result<{ codes: string[] }>> {
   if (!canCreateMachine(actor.membership)) return refuse(403, 'forbidden', 'Your role in this crew does not register samples.');
   const { crewId } = actor.membership;
   const held = await findUnusedReservedCodes(db, crewId, actor.userId, deviceKey);
@@ -91,7 +93,7 @@ export type DrainCardOutcome = { sample: Sample; repeated: boolean };
  * the crew, and the odometer against the oil change; computes the distance on oil; records the 'drawn'
  * state. A card sent twice with the same client key answers the first sample and writes nothing new.
  */
-export async function registerDrainCard(db: Kysely<Database>, actor: Actor, machineId: string, input: unknown): Promise<ServiceResult<DrainCardOutcome>> {
+export async function registerDrainCard(db: Kysely<Database>, actor: Actor, machineId: string, input: unknown): Promise<Result<DrainCardOutcome>> {
   const m = await getMachine(db, actor, machineId);
   if (!m.ok) return m;
   const machine = m.value;
@@ -149,14 +151,14 @@ export async function registerDrainCard(db: Kysely<Database>, actor: Actor, mach
           bottleCode: `Bottle code ${d.bottleCode} is the bottle of new oil registered for “${newOilBottle.productName}”. Each bottle needs its own code.`,
         });
       }
-      const row = await trx.insertInto('samples').values({
+      const row = await insertSample(trx, {
         crew_id: crewId, machine_id: machineId, oil_change_id: change?.id ?? null, bottle_code: d.bottleCode.toUpperCase(),
         bottle_code_norm: norm, issued_code: d.codeSource === 'issued', drawn_on: d.drawnOn, odometer, distance_on_oil: distanceOnOil,
         top_up_l: d.topUpL ?? 0, sae_grade: grade && grade.ok ? grade.grade : change?.saeGrade ?? null,
         oil_product: d.oilProduct || change?.oilProduct || '', draw_method: d.drawMethod, client_key: d.clientKey ?? null,
         created_by: actor.userId,
-      }).returningAll().executeTakeFirstOrThrow();
-      await trx.insertInto('sample_events').values({ sample_id: row.id, state: 'drawn', actor_user_id: actor.userId }).execute();
+      });
+      await recordSampleDrawn(trx, row.id, actor.userId);
       return succeed({ sample: toSample(row), repeated: false });
     });
   } catch (e) {
@@ -174,21 +176,8 @@ export async function registerDrainCard(db: Kysely<Database>, actor: Actor, mach
   }
 }
 
-/**
- * Moves a sample forward to a later state and records when and by whom (the lab import calls this with
- * 'results_in', a review with 'reviewed'). Moving backwards or to the same state is refused.
- */
-export async function recordSampleState(trx: Db, sampleId: string, state: SampleState, actorUserId: string | null, note = ''): Promise<boolean> {
-  const row = await trx.selectFrom('samples').select(['state']).where('id', '=', sampleId).forUpdate().executeTakeFirst();
-  if (!row || SAMPLE_STATES.indexOf(state) <= SAMPLE_STATES.indexOf(row.state)) return false;
-  const patch = state === 'shipped' ? { state, tracking_note: note } : { state };
-  await trx.updateTable('samples').set(patch).where('id', '=', sampleId).execute();
-  await trx.insertInto('sample_events').values({ sample_id: sampleId, state, note, actor_user_id: actorUserId }).execute();
-  return true;
-}
-
 /** Marks a drawn sample shipped, with an optional tracking note. */
-export async function markSampleShipped(db: Kysely<Database>, actor: Actor, sampleId: string, input: unknown): Promise<ServiceResult<Sample>> {
+export async function markSampleShipped(db: Kysely<Database>, actor: Actor, sampleId: string, input: unknown): Promise<Result<Sample>> {
   const found = await getSampleDetail(db, actor, sampleId);
   if (!found.ok) return found;
   const m = await getMachine(db, actor, found.value.sample.machineId);
@@ -212,9 +201,7 @@ export async function getSampleDetail(db: Kysely<Database>, actor: Actor, sample
   if (!row) return refuseNotFound('sample');
   const [machine, events] = await Promise.all([getMachine(db, actor, row.machine_id), findSampleEvents(db, row.id)]);
   if (!machine.ok) return machine;
-  const oilChange = row.oil_change_id
-    ? await db.selectFrom('oil_changes').selectAll().where('id', '=', row.oil_change_id).executeTakeFirst()
-    : undefined;
+  const oilChange = row.oil_change_id ? await findOilChangeOfCrew(db, row.crew_id, row.oil_change_id) : undefined;
   return succeed({ sample: toSample(row), machine: machine.value, events, oilChange: oilChange ? toOilChange(oilChange) : null });
 }
 

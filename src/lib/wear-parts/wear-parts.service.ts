@@ -2,23 +2,40 @@ import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
 import { forecastWearLimit, type WearForecast } from '../analysis/wear-forecast';
 import { canActorEdit, getMachine } from '../machines/machines.service';
-import { isUuid } from '../machines/machines.repository';
-import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type ServiceResult } from '~/lib/http/result';
+import type { Machine } from '../machines/machines';
+import { refuse, refuseInvalid, refuseNotFound, succeed, type Result } from '~/lib/http/result';
+import type { Actor } from '~/lib/auth/types';
 import { explainAbsurdOdometer } from '../oil-changes/oil-changes';
 import { fromMillimetres, fromStoredMeter, toMillimetres, toStoredMeter, type MeterUnit } from '../units/units';
 import { formatCount } from '../words/words';
 import {
   MEASURING_RESOLUTION_MM, measurementInputSchema, toWearMeasurement, toWearPart, wearPartInputSchema, type WearMeasurement, type WearPart,
 } from './wear-parts';
+import {
+  findMeasurementByClientKey, findMeasurementsOfParts, findWearPartOfCrew, findWearPartsOfMachine, insertMeasurement, insertWearPart,
+} from './wear-parts.repository';
 
-/** A machine's wear parts. */
-export async function listWearParts(db: Kysely<Database>, actor: Actor, machineId: string): Promise<WearPart[]> {
-  const rows = await db.selectFrom('wear_parts').selectAll().where('crew_id', '=', actor.membership.crewId).where('machine_id', '=', machineId).orderBy('name').execute();
-  return rows.map(toWearPart);
+/**
+ * A machine's wear parts with their measurements and forecasts, for the machine page: two queries whatever the
+ * number of parts. The machine is one the caller already loaded for this actor's crew.
+ */
+export async function listWearPartDetails(db: Kysely<Database>, actor: Actor, machine: Machine): Promise<WearPartDetail[]> {
+  const parts = (await findWearPartsOfMachine(db, actor.membership.crewId, machine.id)).map(toWearPart);
+  const rows = await findMeasurementsOfParts(db, parts.map((p) => p.id));
+  const byPart = new Map<string, WearMeasurement[]>();
+  for (const r of rows) {
+    const list = byPart.get(r.wear_part_id) ?? [];
+    list.push(toWearMeasurement(r));
+    byPart.set(r.wear_part_id, list);
+  }
+  return parts.map((part) => {
+    const measurements = byPart.get(part.id) ?? [];
+    return { part, meter: machine.meter, machineName: machine.name, measurements, forecast: forecastPart(part, measurements, machine.meter) };
+  });
 }
 
 /** Adds a wear part to a machine, from figures in the manual's unit. */
-export async function createWearPart(db: Kysely<Database>, actor: Actor, machineId: string, input: unknown): Promise<ServiceResult<WearPart>> {
+export async function createWearPart(db: Kysely<Database>, actor: Actor, machineId: string, input: unknown): Promise<Result<WearPart>> {
   const m = await getMachine(db, actor, machineId);
   if (!m.ok) return m;
   if (!canActorEdit(actor, m.value)) return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can add wear parts.');
@@ -28,12 +45,12 @@ export async function createWearPart(db: Kysely<Database>, actor: Actor, machine
   const fitted = toStoredMeter(d.fittedOdometer ?? 0, m.value.meter);
   const absurd = explainAbsurdOdometer(fitted, m.value.meter);
   if (absurd) return refuse(400, 'invalid_input', 'Some fields need attention.', { fittedOdometer: absurd });
-  const row = await db.insertInto('wear_parts').values({
+  const row = await insertWearPart(db, {
     crew_id: actor.membership.crewId, machine_id: machineId, name: d.name, piece_count: d.pieceCount ?? 1,
     new_min_mm: toMillimetres(d.newMin, d.unit), new_max_mm: toMillimetres(d.newMax, d.unit),
     service_limit_mm: toMillimetres(d.serviceLimit, d.unit), limit_direction: d.limitDirection, fitted_odometer: fitted,
     manual_unit: d.unit, notes: d.notes,
-  }).returningAll().executeTakeFirstOrThrow();
+  });
   return succeed(toWearPart(row));
 }
 
@@ -47,13 +64,12 @@ export interface WearPartDetail {
 }
 
 /** A wear part of the crew with its measurements and forecast. */
-export async function getWearPartDetail(db: Kysely<Database>, actor: Actor, partId: string): Promise<ServiceResult<WearPartDetail>> {
-  if (!isUuid(partId)) return refuseNotFound('wear part');
-  const row = await db.selectFrom('wear_parts').selectAll().where('crew_id', '=', actor.membership.crewId).where('id', '=', partId).executeTakeFirst();
+export async function getWearPartDetail(db: Kysely<Database>, actor: Actor, partId: string): Promise<Result<WearPartDetail>> {
+  const row = await findWearPartOfCrew(db, actor.membership.crewId, partId);
   if (!row) return refuseNotFound('wear part');
   const m = await getMachine(db, actor, row.machine_id);
   if (!m.ok) return m;
-  const measurements = (await db.selectFrom('wear_measurements').selectAll().where('wear_part_id', '=', partId).orderBy('odometer').orderBy('measured_on').execute()).map(toWearMeasurement);
+  const measurements = (await findMeasurementsOfParts(db, [partId])).map(toWearMeasurement);
   const part = toWearPart(row);
   return succeed({ part, meter: m.value.meter, machineName: m.value.name, measurements, forecast: forecastPart(part, measurements, m.value.meter) });
 }
@@ -75,7 +91,7 @@ export function forecastPart(part: WearPart, measurements: readonly WearMeasurem
  * range (plus the tool's resolution); the summary of several pieces is the worst one, since the service
  * limit applies to every piece.
  */
-export async function addWearMeasurement(db: Kysely<Database>, actor: Actor, partId: string, input: unknown): Promise<ServiceResult<WearMeasurement>> {
+export async function addWearMeasurement(db: Kysely<Database>, actor: Actor, partId: string, input: unknown): Promise<Result<WearMeasurement>> {
   const detail = await getWearPartDetail(db, actor, partId);
   if (!detail.ok) return detail;
   const { part, meter } = detail.value;
@@ -106,18 +122,12 @@ export async function addWearMeasurement(db: Kysely<Database>, actor: Actor, par
   if (absurd) return invalid('odometer', absurd);
   if (odometer < part.fittedOdometer) return invalid('odometer', 'This reading is from before the part was fitted.');
   const summary = part.limitDirection === 'min' ? Math.min(...valuesMm) : Math.max(...valuesMm);
-  const row = await db.insertInto('wear_measurements').values({
+  const row = await insertMeasurement(db, {
     wear_part_id: partId, measured_on: d.measuredOn, odometer, pieces_mm: JSON.stringify(d.pieces.length ? valuesMm : []),
     summary_mm: summary, note: d.note, created_by: actor.userId, client_key: d.clientKey ?? null,
-  }).onConflict((oc) => oc.columns(['wear_part_id', 'client_key']).where('client_key', 'is not', null).doNothing())
-    .returningAll().executeTakeFirst();
+  });
   // No row: a racing send of the same measurement won; answer that one.
   const written = row ?? (d.clientKey ? await findMeasurementByClientKey(db, partId, d.clientKey) : undefined);
   if (!written) throw new Error('A measurement was neither written nor found by its key.');
   return succeed(toWearMeasurement(written));
-}
-
-/** The measurement a device's key already created on this part, or undefined (the part is already checked to be the crew's). */
-function findMeasurementByClientKey(db: Kysely<Database>, partId: string, clientKey: string) {
-  return db.selectFrom('wear_measurements').selectAll().where('wear_part_id', '=', partId).where('client_key', '=', clientKey).executeTakeFirst();
 }

@@ -4,8 +4,8 @@
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import type { Kysely } from 'kysely';
 import type { Database } from '~/lib/db/database';
-import { findReferenceSamples } from '~/lib/lab-import/lab-import.repository';
-import { recomputeFindings, recomputeMachineFindings } from '~/lib/lab-import/lab-import.service';
+import { findReferenceSamples } from '~/lib/findings/findings.repository';
+import { recomputeFindings, recomputeMachineFindings } from '~/lib/findings/findings.service';
 import { openTestDb, truncateAll } from '../test-database';
 import { addSamples, makeCrewWithRoles } from '../trends/decision-fixtures';
 

@@ -8,10 +8,10 @@ import { MAX_LAB_FILE_BYTES } from '~/lib/lab-csv/lab-csv';
 import {
   confirmLabImport,
   previewLabImport,
-  recomputeFindings,
   saveLabProfile,
   storeLabFile,
 } from '~/lib/lab-import/lab-import.service';
+import { recomputeFindings } from '~/lib/findings/findings.service';
 import { computeCheckSymbol } from '~/lib/samples/bottle-code';
 import { openTestDb, TEST_DATABASE, truncateAll } from '../test-database';
 import { bytesOf, countImportRows, makeImportCrew, makeSample } from './lab-import-fixtures';

@@ -1,7 +1,7 @@
 import { sql } from 'kysely';
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { ENGINE_VERSION } from '~/lib/analysis';
-import { recomputeMachineFindings, recomputeStaleMachines } from '~/lib/lab-import/lab-import.service';
+import { recomputeMachineFindings, recomputeStaleMachines } from '~/lib/findings/findings.service';
 import { baselineChoiceSchema } from '~/lib/reviews/reviews';
 import { changeSampleBaseline, loadBaselineStatus } from '~/lib/reviews/reviews.service';
 import { listTrendSamples } from '~/lib/trends/trends.repository';

@@ -7,8 +7,9 @@ import { createMachine } from '~/lib/machines/machines.service';
 import { createOilChange } from '~/lib/oil-changes/oil-changes.service';
 import { computeCheckSymbol } from '~/lib/samples/bottle-code';
 import {
-  getSampleDetail, issueBottleCode, listSamplesByState, markSampleShipped, prefillDrainCard, recordSampleState, registerDrainCard,
+  getSampleDetail, issueBottleCode, listSamplesByState, markSampleShipped, prefillDrainCard, registerDrainCard,
 } from '~/lib/samples/samples.service';
+import { recordSampleState } from '~/lib/samples/sample-lifecycle';
 
 const db = openTestDb();
 afterAll(() => db.destroy());

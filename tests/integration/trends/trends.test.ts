@@ -2,7 +2,7 @@ import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { openTestDb, truncateAll } from '../test-database';
 import { loadMachineTrends } from '~/lib/trends/trends.service';
 import { addSamples, makeCrewWithRoles } from './decision-fixtures';
-import { recomputeMachineFindings } from '~/lib/lab-import/lab-import.service';
+import { recomputeMachineFindings } from '~/lib/findings/findings.service';
 
 const db = openTestDb();
 afterAll(() => db.destroy());

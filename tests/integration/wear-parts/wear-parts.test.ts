@@ -3,8 +3,8 @@ import { openTestDb, truncateAll } from '../test-database';
 import { countRiderRows, makeActor, MACHINE_450 } from '../rider-fixtures';
 import { collectMachineForm } from '~/lib/machines/machines';
 import { readFormObject } from '~/lib/http/result';
-import { createMachine } from '~/lib/machines/machines.service';
-import { addWearMeasurement, createWearPart, getWearPartDetail } from '~/lib/wear-parts/wear-parts.service';
+import { createMachine, getMachine } from '~/lib/machines/machines.service';
+import { addWearMeasurement, createWearPart, getWearPartDetail, listWearPartDetails } from '~/lib/wear-parts/wear-parts.service';
 
 const db = openTestDb();
 afterAll(() => db.destroy());
@@ -89,5 +89,32 @@ describe('wear parts', () => {
     expect(r.ok ? 200 : r.status).toBe(404);
     const d = await getWearPartDetail(db, stranger, partId);
     expect(d.ok ? 200 : d.status).toBe(404);
+  });
+});
+
+describe('the machine page’s wear parts', () => {
+  test('all parts with their measurements and forecasts in two queries, the same as each part’s detail', async () => {
+    const { rider, machineId, partId } = await setup();
+    const chain = await createWearPart(db, rider, machineId, { ...CLUTCH, name: 'Steel plates', pieceCount: '1' });
+    const bare = await createWearPart(db, rider, machineId, { ...CLUTCH, name: 'Another part', pieceCount: '1' });
+    if (!chain.ok || !bare.ok) throw new Error('setup');
+    for (const [id, odometer, value] of [[partId, '17000', '0.111'], [partId, '9000', '0.114'], [chain.value.id, '12000', '0.113']] as const) {
+      const r = await addWearMeasurement(db, rider, id, { measuredOn: '2025-05-01', odometer, unit: 'in', summary: value });
+      if (!r.ok) throw new Error(JSON.stringify(r));
+    }
+    const machine = await getMachine(db, rider, machineId);
+    if (!machine.ok) throw new Error('machine');
+    let queries = 0;
+    const counted = db.withPlugin({
+      transformQuery: (args) => { queries += 1; return args.node; },
+      transformResult: async (args) => args.result,
+    });
+    const list = await listWearPartDetails(counted, rider, machine.value);
+    expect(queries).toBe(2);
+    const one = await Promise.all([partId, chain.value.id, bare.value.id].map((id) => getWearPartDetail(db, rider, id)));
+    const byName = (a: { part: { name: string } }, b: { part: { name: string } }) => a.part.name.localeCompare(b.part.name);
+    expect(list).toEqual(one.map((d) => (d.ok ? d.value : null)).sort((a, b) => byName(a!, b!)));
+    // Stored in km, oldest reading first: 1 mi = 1.609344 km exactly (NIST SP 811, B.8).
+    expect(list.map((d) => d.measurements.map((m) => m.odometer))).toEqual([[], [17000 * 1.609344, 9000 * 1.609344].sort((a, b) => a - b), [12000 * 1.609344]].map((xs) => xs.map((x) => expect.closeTo(x, 6))));
   });
 });

@@ -1,7 +1,7 @@
 import { describe, expect, test } from 'vitest';
-import { checkGradeSuitsRiding, readNumber, runGradeOf, runSaybolt, runViscosityAt, runViscosityIndex } from '~/pages/tools/_oil-tools';
+import { checkGradeSuitsRiding, readNumber, runGradeOf, runSaybolt, runViscosityAt, runViscosityIndex } from '~/lib/oil-tools/oil-tools';
 
-// The oil tools' form layer (src/pages/tools/_oil-tools.ts); the calculators themselves are checked against
+// The oil tools' form layer (src/lib/oil-tools/oil-tools.ts); the calculators themselves are checked against
 // their standards in tests/unit/analysis/viscosity.test.ts. Here: reading fields, units and error placement.
 const q = (o: Record<string, string>) => new URLSearchParams(o);
 

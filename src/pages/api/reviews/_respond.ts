@@ -57,5 +57,3 @@ export async function failure(context: APIContext, form: boolean, back: string, 
 export function success(form: boolean, back: string, saved: string, data: unknown): Response {
   return form ? redirectBack(back, { review_saved: saved }) : jsonOk(data, 201);
 }
-
-export const STATUS: Record<string, number> = { not_found: 404, forbidden: 403, no_call: 409, no_results: 409 };

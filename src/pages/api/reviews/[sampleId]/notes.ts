@@ -2,7 +2,7 @@ import type { APIRoute } from 'astro';
 import { getDb } from '~/lib/db';
 import { reviewNoteSchema } from '~/lib/reviews/reviews';
 import { addReviewNote } from '~/lib/reviews/reviews.service';
-import { STATUS, failure, readReviewBody, refuseSignedOut, success } from '../_respond';
+import { failure, readReviewBody, refuseSignedOut, success } from '../_respond';
 
 /** POST /api/reviews/[sampleId]/notes — a mechanic's or lead's note (JSON, or a plain form that comes back to the page). */
 export const POST: APIRoute = async (context) => {
@@ -13,6 +13,6 @@ export const POST: APIRoute = async (context) => {
   const body = await readReviewBody(request, reviewNoteSchema, back);
   if (!body.ok) return body.response;
   const result = await addReviewNote(getDb(), { userId: locals.user.id, membership: locals.crew }, sampleId, body.data.body);
-  if (!result.ok) return failure(context, body.form, back, STATUS[result.code] ?? 400, result.code, result.message);
+  if (!result.ok) return failure(context, body.form, back, result.status, result.code, result.message);
   return success(body.form, back, 'note', result.value);
 };
