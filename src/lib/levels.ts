@@ -1,4 +1,10 @@
-import type { IntervalCallKind, Level } from './db/database';
+/** How far a reading or a sample is from this engine's normal. */
+export type Level = 'steady' | 'watch' | 'act';
+
+/** The interval calls in the order screens list them. */
+export const CALL_KINDS = ['shorten', 'hold', 'stretch', 'fix-first'] as const;
+/** What the next oil change interval should do. */
+export type IntervalCallKind = (typeof CALL_KINDS)[number];
 
 /** How each level is shown: a word, a shape and a colour, so no level relies on colour alone. */
 export const LEVEL_DISPLAY: Record<Level, { word: string; shape: 'circle' | 'diamond' | 'octagon'; meaning: string }> = {
@@ -11,9 +17,6 @@ export const LEVEL_DISPLAY: Record<Level, { word: string; shape: 'circle' | 'dia
 export function levelRank(level: Level): number {
   return level === 'act' ? 2 : level === 'watch' ? 1 : 0;
 }
-
-/** The interval calls in the order screens list them. */
-export const CALL_KINDS: readonly IntervalCallKind[] = ['shorten', 'hold', 'stretch', 'fix-first'];
 
 /** How each interval call is named and explained, on every screen, mail and export. */
 export const CALL_DISPLAY: Record<IntervalCallKind, { word: string; meaning: string }> = {

@@ -1,6 +1,6 @@
 /** The wear chart's data as tables, one per element: the accessible twin of the canvas. */
 import { useEffect, useState } from 'react';
-import type { Level } from '~/lib/db/database';
+import type { Level } from '~/lib/levels';
 import type { TrendResponse } from '~/lib/trends/trend-types';
 import { LEVEL_COLOURS } from './chart-styles';
 import { formatBand, formatDistance, formatFigure, formatFromBaseline, formatReported } from './format';

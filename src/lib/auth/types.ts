@@ -1,4 +1,5 @@
-import type { Role } from '../db/database';
+/** A member's role in a crew. */
+export type Role = 'lead' | 'mechanic' | 'rider';
 
 /** What every page knows of the signed-in user. */
 export interface SessionUser {
