@@ -1,5 +1,7 @@
+/** The levels, mildest first: a level's place in this list is its rank, here and in SQL (levels.repository.ts). */
+export const LEVELS = ['steady', 'watch', 'act'] as const;
 /** How far a reading or a sample is from this engine's normal. */
-export type Level = 'steady' | 'watch' | 'act';
+export type Level = (typeof LEVELS)[number];
 
 /** The interval calls in the order screens list them. */
 export const CALL_KINDS = ['shorten', 'hold', 'stretch', 'fix-first'] as const;
@@ -13,9 +15,24 @@ export const LEVEL_DISPLAY: Record<Level, { word: string; shape: 'circle' | 'dia
   act: { word: 'Act', shape: 'octagon', meaning: 'Well outside normal or past a fixed limit: inspect before riding far.' },
 };
 
-/** Orders levels so the worst can be picked: steady < watch < act. */
+/** Orders levels so the worst can be picked: steady 0 < watch 1 < act 2. */
 export function levelRank(level: Level): number {
-  return level === 'act' ? 2 : level === 'watch' ? 1 : 0;
+  return LEVELS.indexOf(level);
+}
+
+/** The level of a rank as levelRank gives it (and the SQL rank of levels.repository.ts); out of range: steady. */
+export function levelOfRank(rank: number): Level {
+  return LEVELS[rank] ?? 'steady';
+}
+
+/** The more serious of two levels (the first on a tie). */
+export function pickWorseLevel(a: Level, b: Level): Level {
+  return levelRank(b) > levelRank(a) ? b : a;
+}
+
+/** Sort comparator: worst level first. */
+export function byLevelWorstFirst(a: Level, b: Level): number {
+  return levelRank(b) - levelRank(a);
 }
 
 /** How each interval call is named and explained, on every screen, mail and export. */

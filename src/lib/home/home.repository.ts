@@ -1,6 +1,7 @@
 /** Queries of the crew home page; every one scoped by crew. */
 import { sql, type Kysely } from 'kysely';
 import type { Database, IntervalCallKind } from '../db/database';
+import { levelRankSql } from '../levels.repository';
 import type { CrewProgress, OpenFinding } from './home-cards';
 
 /** Samples of the crew in a state, with machine name, oldest first (limited). */
@@ -41,7 +42,7 @@ export async function listOpenFindings(db: Kysely<Database>, crewId: string, lim
     ) ls on true
     join findings f on f.sample_id = ls.id and f.level in ('watch', 'act')
     where m.crew_id = ${crewId} and m.archived_at is null
-    order by ls.drawn_on desc, m.name, case f.level when 'act' then 0 else 1 end, f.rule_id limit ${limit}
+    order by ls.drawn_on desc, m.name, ${levelRankSql('f.level')} desc, f.rule_id limit ${limit}
   `.execute(db);
   return rows;
 }

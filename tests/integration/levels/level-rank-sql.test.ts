@@ -1,0 +1,22 @@
+import { afterAll, describe, expect, test } from 'vitest';
+import { sql } from 'kysely';
+import { openTestDb } from '../test-database';
+import { LEVELS, levelRank } from '~/lib/levels';
+import { levelRankSql } from '~/lib/levels.repository';
+
+const db = openTestDb();
+afterAll(() => db.destroy());
+
+describe('levelRankSql', () => {
+  // The database must rank a level exactly as the screens do, or the overview sorts one way and the cards another.
+  test.each(LEVELS.map((l) => [l, levelRank(l)] as const))('PostgreSQL ranks %s as %i, as levelRank does', async (level, rank) => {
+    const { rows } = await sql<{ rank: number }>`select ${levelRankSql('t.level')} as rank from (select ${level}::text as level) t`.execute(db);
+    expect(Number(rows[0]!.rank)).toBe(rank);
+  });
+
+  test('the worst of several levels is the max of their ranks', async () => {
+    const { rows } = await sql<{ worst: number }>`
+      select max(${levelRankSql('t.level')}) as worst from (values ('watch'), ('steady'), ('act'), ('watch')) as t(level)`.execute(db);
+    expect(Number(rows[0]!.worst)).toBe(2);
+  });
+});
