@@ -21,7 +21,7 @@ import {
 } from '../lab-csv/lab-csv';
 import { checkCrewQuota } from '../storage-quota/storage-quota';
 import { sumCrewStorageBytes } from '../storage-quota/storage-quota.repository';
-import { CODE_ALPHABET, explainIssuedCode, hasValidCheckSymbol, ISSUED_DATA_LENGTH, normaliseBottleCode } from '../samples/bottle-code';
+import { CODE_ALPHABET, explainIssuedCode, hasValidCheckSymbol, ISSUED_DATA_LENGTH } from '../samples/bottle-code';
 import {
   computeHeaderSignature,
   countLines,
@@ -205,7 +205,7 @@ export async function previewLabImport(
   const parsed = parseLabCsv(decoded.text, profile ? { mapping: profile.mapping } : {});
   const bottleHeader = parsed.columns.find((c) => c.kind === 'bottle')?.header ?? 'Bottle';
 
-  const norms = parsed.rows.map((r) => normaliseBottleCode(r.bottle.raw));
+  const norms = parsed.rows.map((r) => r.bottle.normalised);
   const [samples, machines] = await Promise.all([
     repo.findSamplesByCodes(db, input.crewId, [...new Set(norms)]),
     repo.findMachinesForImport(db, input.crewId),
@@ -229,17 +229,10 @@ export async function previewLabImport(
     }
   }
 
-  const firstLineOfCode = new Map<string, number>();
-  const allRows: PreviewRow[] = parsed.rows.map((r, i) => {
-    const norm = norms[i] ?? r.bottle.normalised;
+  const allRows: PreviewRow[] = parsed.rows.map((r) => {
+    const norm = r.bottle.normalised;
     const issues = rowIssues.get(r.line) ?? [];
     const at = `Line ${r.line}, column "${bottleHeader}"`;
-    // The samples' normal form also drops _ . / — two cells the reader saw as different can be one bottle.
-    const earlier = firstLineOfCode.get(norm);
-    if (earlier === undefined) firstLineOfCode.set(norm, r.line);
-    else if (!issues.some((x) => x.code === 'duplicate-bottle-code')) {
-      issues.push({ severity: 'error', code: 'duplicate-bottle-code', row: r.line, column: bottleHeader, message: `${at}: bottle code "${r.bottle.raw}" is the same bottle as line ${earlier}. One bottle gets one result; remove the repeated row or correct its code.` });
-    }
     const sample = byCode.get(norm);
     let match: RowMatch;
     if (sample && sample.issued_code && !hasValidCheckSymbol(norm)) {
