@@ -15,7 +15,6 @@ import { readLabFileBytes } from '../lab-csv/lab-xlsx';
 import {
   MAX_LAB_FILE_BYTES,
   parseLabCsv,
-  type LabCsvColumn,
   type LabCsvIssue,
   type LabCsvMappingTarget,
 } from '../lab-csv/lab-csv';
@@ -27,6 +26,7 @@ import {
   countLines,
   MAX_LAB_FILE_LINES,
   tooManyLinesMessage,
+  findColumnTarget,
   type ConfirmHooks,
   type ImportPreview,
   type ImportSummary,
@@ -150,12 +150,8 @@ function readHeaders(text: string): string[] {
   return parseLabCsv(head).columns.map((c) => c.header);
 }
 
-/** What a column means now: the target its select starts on in the mapping form. */
-export function findColumnTarget(column: LabCsvColumn): LabCsvMappingTarget {
-  if (column.kind === 'bottle' || column.kind === 'sampled' || column.kind === 'reported') return column.kind;
-  if (column.kind === 'measurand' && column.code) return column.conversion === 'SUS210→KV100' ? 'SUS210' : column.code;
-  return 'ignore';
-}
+// Kept reachable from the service for its callers; it lives with the feature's pure helpers.
+export { findColumnTarget };
 
 function looksIssued(norm: string): boolean {
   return norm.length === ISSUED_DATA_LENGTH + 1 && [...norm].every((ch) => CODE_ALPHABET.includes(ch));
