@@ -6,7 +6,7 @@ import type { WearForecast } from '../analysis/wear-forecast';
 import type { OilChange } from '../oil-changes/oil-changes';
 import { STATE_LABELS, type Sample } from '../samples/samples';
 import { formatLength, formatMeter, formatTemperature, fromStoredMeter, type LengthUnit, type TemperatureUnit } from '../units/units';
-import { describeForecast } from '../wear-parts/forecast-words';
+import { describeForecast, formatWholeMeter } from '../wear-parts/forecast-words';
 import type { WearMeasurement, WearPart } from '../wear-parts/wear-parts';
 import { COOLING_LABELS, LAYOUT_LABELS, type Machine } from './machines';
 
@@ -108,7 +108,7 @@ export function buildMachinePageView(input: MachinePageInput): MachinePageView {
     wearParts: input.wearParts.map((d) => {
       const last = d.measurements.at(-1);
       const lastWords = last
-        ? ` · last ${formatLength(last.summaryMm, input.lengthUnit)} at ${Math.round(fromStoredMeter(last.odometer, m.meter)).toLocaleString('en-US')} ${m.meter}`
+        ? ` · last ${formatLength(last.summaryMm, input.lengthUnit)} at ${formatWholeMeter(fromStoredMeter(last.odometer, m.meter), m.meter)}`
         : '';
       return {
         href: `/machines/${m.id}/wear-parts/${d.part.id}`,

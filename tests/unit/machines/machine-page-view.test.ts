@@ -11,7 +11,9 @@ const machine: Machine = {
   maxIntervalDays: 365, notes: '', archivedAt: null,
 };
 
-function change(i: number, over: Partial<OilChange> = {}): OilChange & { photos: { id: string; caption: string }[] } {
+type Change = OilChange & { photos: { id: string; caption: string }[] };
+
+function change(i: number, over: Partial<Change> = {}): Change {
   return {
     id: `oc${i}`, machineId: 'm1', changedOn: `2026-0${9 - i}-01`, odometer: 10_000 - i * 1000, meterReplaced: false, oilProduct: 'Shop oil', saeGrade: '10W-40',
     volumeL: 1.2, filterChanged: true, topUpL: 0, otherWork: [], notes: '', distanceSincePrevious: 1000, photos: [], ...over,
