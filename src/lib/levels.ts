@@ -42,3 +42,9 @@ export const CALL_DISPLAY: Record<IntervalCallKind, { word: string; meaning: str
   stretch: { word: 'Stretch', meaning: 'The oil can run a little longer next time, within the manufacturer’s longest interval.' },
   'fix-first': { word: 'Fix first', meaning: 'The cause is not the oil: fix it, take another sample soon, interval unchanged.' },
 };
+
+/** The word of each interval call ("Shorten", "Fix first"), for lists, badges and buttons. */
+export const CALL_WORD: Record<IntervalCallKind, string> = Object.fromEntries(CALL_KINDS.map((c) => [c, CALL_DISPLAY[c].word])) as Record<IntervalCallKind, string>;
+
+/** The calls from most to least urgent (fix-first, shorten, hold, stretch): how lists sort by call. */
+export const CALLS_BY_URGENCY: readonly IntervalCallKind[] = ['fix-first', 'shorten', 'hold', 'stretch'];

@@ -10,10 +10,10 @@
  * stops after the first few samples (an incremental sort), and the query runs without JIT. A sample never
  * changes machine, so its call's machine is the sample's.
  */
-import { sql, type Kysely } from 'kysely';
+import { sql, type Kysely, type RawBuilder } from 'kysely';
 import type { Database, IntervalCallKind, Meter, Role } from '../db/database';
 import { levelOfRank, levelRank } from '../levels';
-import { levelRankSql } from '../levels.repository';
+import { callUrgencySql, levelRankSql } from '../levels.repository';
 import { isUuid } from '../trends/trends.repository';
 import { OVERVIEW_PAGE_SIZE, type OverviewPage, type OverviewQuery, type OverviewRow } from './overview';
 
@@ -40,12 +40,12 @@ interface RawRow {
 }
 
 // Sort expressions are chosen from this fixed map, never built from input.
-const ORDER: Record<OverviewQuery['sort'], string> = {
-  name: 'lower(name)',
-  'last-sample': 'drawn_on',
-  level: 'coalesce(worst_rank, -1)',
-  call: "case call when 'fix-first' then 0 when 'shorten' then 1 when 'hold' then 2 when 'stretch' then 3 end",
-  due: 'next_sample_on',
+const ORDER: Record<OverviewQuery['sort'], RawBuilder<unknown>> = {
+  name: sql.raw('lower(name)'),
+  'last-sample': sql.raw('drawn_on'),
+  level: sql.raw('coalesce(worst_rank, -1)'),
+  call: callUrgencySql('call'),
+  due: sql.raw('next_sample_on'),
 };
 
 /** One page of the crew overview. */
@@ -99,7 +99,7 @@ export async function listOverviewPage(db: Kysely<Database>, crewId: string, que
       select base.* from base where ${sql.join(filters, sql` and `)}
     )
     select *, count(*) over () as total from filtered
-    order by ${sql.raw(ORDER[query.sort])} ${dir} ${nulls}, lower(name) asc, machine_id asc
+    order by ${ORDER[query.sort]} ${dir} ${nulls}, lower(name) asc, machine_id asc
     limit ${OVERVIEW_PAGE_SIZE} offset ${offset}
   `;
   // A page reads every machine of the crew, so on large crews the planner's cost estimate crosses the JIT

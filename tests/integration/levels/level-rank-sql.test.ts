@@ -1,8 +1,8 @@
 import { afterAll, describe, expect, test } from 'vitest';
 import { sql } from 'kysely';
 import { openTestDb } from '../test-database';
-import { LEVELS, levelRank } from '~/lib/levels';
-import { levelRankSql } from '~/lib/levels.repository';
+import { CALLS_BY_URGENCY, LEVELS, levelRank } from '~/lib/levels';
+import { callUrgencySql, levelRankSql } from '~/lib/levels.repository';
 
 const db = openTestDb();
 afterAll(() => db.destroy());
@@ -18,5 +18,19 @@ describe('levelRankSql', () => {
     const { rows } = await sql<{ worst: number }>`
       select max(${levelRankSql('t.level')}) as worst from (values ('watch'), ('steady'), ('act'), ('watch')) as t(level)`.execute(db);
     expect(Number(rows[0]!.worst)).toBe(2);
+  });
+});
+
+describe('callUrgencySql', () => {
+  // The overview sorts by call from most to least urgent: fix-first, shorten, hold, stretch (common practice).
+  test.each([
+    ['fix-first', 0],
+    ['shorten', 1],
+    ['hold', 2],
+    ['stretch', 3],
+  ] as const)('PostgreSQL ranks %s as %i', async (call, rank) => {
+    const { rows } = await sql<{ rank: number }>`select ${callUrgencySql('t.call')} as rank from (select ${call}::text as call) t`.execute(db);
+    expect(Number(rows[0]!.rank)).toBe(rank);
+    expect(CALLS_BY_URGENCY.indexOf(call)).toBe(rank);
   });
 });
