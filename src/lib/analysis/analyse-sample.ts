@@ -2,7 +2,8 @@
 import { byLevelWorstFirst, pickWorseLevel } from '../levels';
 import { ELEMENT_CODES, getMeasurand, type MeasurandCode } from './measurands';
 import { ADDITIVE_MISMATCH, BASELINE_JUMP, CLIMBING_TREND, CONDITION_TREND, FIXED_LIMIT, resolveFixedLimits } from './rule-definitions';
-import { FINDING_RULES, buildBaselineBands, formatFigure, readFiringValue, type MeasurandBand, type RuleContext } from './rules';
+import { formatFigure } from './figures';
+import { FINDING_RULES, buildBaselineBands, readFiringValue, type MeasurandBand, type RuleContext } from './rules';
 import type { AnalyseInput, Finding, Level, SamplePoint } from './types';
 import { computeWearRate, type WearRate } from './wear-rate';
 

@@ -5,7 +5,8 @@
 import { HISTORY_TAIL, analyseSample, type SampleAnalysis } from './analyse-sample';
 import type { MeasurandCode } from './measurands';
 import { INTERVAL_CALL } from './rule-definitions';
-import { formatFigure, readFiringValue, findOwnLevel } from './rules';
+import { formatFigure } from './figures';
+import { readFiringValue, findOwnLevel } from './rules';
 import { CALL_KINDS, type IntervalCallKind } from '../levels';
 import type { AnalyseInput, FixedLimits, Level, MachineProfile, SamplePoint } from './types';
 

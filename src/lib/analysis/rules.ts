@@ -81,8 +81,6 @@ export function readBaselineValue(sample: SamplePoint, code: MeasurandCode): num
   return countReadingValue(r);
 }
 
-// Sentences round with the one figure formatter (no thousands separators: stored sentences never had them).
-export { formatFigure };
 
 function describe(code: MeasurandCode, value: number): string {
   const m = getMeasurand(code);
