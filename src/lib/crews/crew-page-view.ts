@@ -4,6 +4,7 @@
  */
 import { AUDIT_LABELS, type AuditEvent } from '../audit/audit';
 import type { Role } from '../auth/types';
+import { formatUtcMinute } from '../words/words';
 import { ROLE_HINTS, ROLE_LABELS, ROLES, type CrewMember, type PendingInvitation } from './crews';
 
 export interface CrewPageInput {
@@ -34,11 +35,6 @@ export interface CrewPageView {
   audit: { when: string; event: string; who: string; detail: string }[];
 }
 
-/** A timestamp as the crew page shows it: "2026-03-04 05:06" (UTC). */
-export function formatCrewTime(d: Date): string {
-  return d.toISOString().slice(0, 16).replace('T', ' ');
-}
-
 /** Who did it, and to whom when that is someone else: "Ada → Ben", "Ada", or "—". */
 export function describeAuditWho(e: Pick<AuditEvent, 'actorName' | 'subjectName'>): string {
   const who = e.actorName ?? e.subjectName ?? '—';
@@ -65,9 +61,9 @@ export function buildCrewPageView(input: CrewPageInput): CrewPageView {
       roles: ROLES.map((r) => ({ value: r, label: ROLE_LABELS[r], selected: r === m.role })),
       removeLabel: m.userId === input.userId ? 'Leave crew' : 'Remove',
     })),
-    invitations: input.invitations.map((i) => ({ id: i.id, text: `${i.email} · ${ROLE_LABELS[i.role]} · until ${formatCrewTime(i.expiresAt)} UTC` })),
+    invitations: input.invitations.map((i) => ({ id: i.id, text: `${i.email} · ${ROLE_LABELS[i.role]} · until ${formatUtcMinute(i.expiresAt)} UTC` })),
     audit: input.audit.map((e) => ({
-      when: formatCrewTime(e.at),
+      when: formatUtcMinute(e.at),
       event: AUDIT_LABELS[e.kind] ?? e.kind,
       who: describeAuditWho(e),
       detail: describeAuditDetail(e.detail),

@@ -4,7 +4,7 @@
  */
 import type { LabCsvColumn, LabReadings } from '../lab-csv/lab-csv';
 import { describeSayboltConvention } from '../lab-csv/saybolt';
-import { formatCount } from '../words/words';
+import { formatCount, formatUtcMinute } from '../words/words';
 import {
   describeMappingTarget,
   findColumnTarget,
@@ -196,7 +196,7 @@ export function buildPreviewView(input: PreviewViewInput): PreviewView {
   const newOil = preview.newOilRows.length > 0 ? `, ${formatCount(preview.newOilRows.length, 'new-oil reference')}` : '';
   return {
     imported,
-    uploadedAt: preview.file.uploadedAt.toISOString().slice(0, 16).replace('T', ' '),
+    uploadedAt: formatUtcMinute(preview.file.uploadedAt),
     writtenLinks: rows
       .flatMap((r) => (r.match.kind === 'unknown' ? [] : [{ href: `/samples/${r.match.sampleId}`, text: `Bottle ${r.bottle} · ${r.match.machineName} · ${r.match.drawnOn}` }]))
       .slice(0, WRITTEN_LINKS),

@@ -1,15 +1,18 @@
 import { describe, expect, test } from 'vitest';
 import type { AuditEvent } from '~/lib/audit/audit';
-import { buildCrewPageView, describeAuditDetail, describeAuditWho, formatCrewTime } from '~/lib/crews/crew-page-view';
+import { buildCrewPageView, describeAuditDetail, describeAuditWho } from '~/lib/crews/crew-page-view';
+import { formatUtcMinute } from '~/lib/words/words';
 
 const ada = { userId: 'u1', displayName: 'Ada', email: 'ada@example.test', role: 'lead' as const, joinedAt: new Date('2026-01-01T00:00:00Z') };
 const ben = { userId: 'u2', displayName: 'Ben', email: 'ben@example.test', role: 'rider' as const, joinedAt: new Date('2026-01-02T00:00:00Z') };
 
 describe('crew page words', () => {
+  // ISO 8601 date and time to the minute, with a space for the T (common practice on screens).
   test.each([
     ['2026-03-04T05:06:07Z', '2026-03-04 05:06'],
+    ['2026-03-04T07:06:07+02:00', '2026-03-04 05:06'],
     ['2026-12-31T23:59:59.999Z', '2026-12-31 23:59'],
-  ])('%s shows as %s', (iso, text) => expect(formatCrewTime(new Date(iso))).toBe(text));
+  ])('%s shows as %s', (iso, text) => expect(formatUtcMinute(new Date(iso))).toBe(text));
 
   test.each([
     [{ actorName: 'Ada', subjectName: 'Ben' }, 'Ada → Ben'],
