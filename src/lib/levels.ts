@@ -1,4 +1,12 @@
-import type { IntervalCallKind, Level } from './db/database';
+/** The levels, mildest first: a level's place in this list is its rank, here and in SQL (levels.repository.ts). */
+export const LEVELS = ['steady', 'watch', 'act'] as const;
+/** How far a reading or a sample is from this engine's normal. */
+export type Level = (typeof LEVELS)[number];
+
+/** The interval calls in the order screens list them. */
+export const CALL_KINDS = ['shorten', 'hold', 'stretch', 'fix-first'] as const;
+/** What the next oil change interval should do. */
+export type IntervalCallKind = (typeof CALL_KINDS)[number];
 
 /** How each level is shown: a word, a shape and a colour, so no level relies on colour alone. */
 export const LEVEL_DISPLAY: Record<Level, { word: string; shape: 'circle' | 'diamond' | 'octagon'; meaning: string }> = {
@@ -7,13 +15,25 @@ export const LEVEL_DISPLAY: Record<Level, { word: string; shape: 'circle' | 'dia
   act: { word: 'Act', shape: 'octagon', meaning: 'Well outside normal or past a fixed limit: inspect before riding far.' },
 };
 
-/** Orders levels so the worst can be picked: steady < watch < act. */
+/** Orders levels so the worst can be picked: steady 0 < watch 1 < act 2. */
 export function levelRank(level: Level): number {
-  return level === 'act' ? 2 : level === 'watch' ? 1 : 0;
+  return LEVELS.indexOf(level);
 }
 
-/** The interval calls in the order screens list them. */
-export const CALL_KINDS: readonly IntervalCallKind[] = ['shorten', 'hold', 'stretch', 'fix-first'];
+/** The level of a rank as levelRank gives it (and the SQL rank of levels.repository.ts); out of range: steady. */
+export function levelOfRank(rank: number): Level {
+  return LEVELS[rank] ?? 'steady';
+}
+
+/** The more serious of two levels (the first on a tie). */
+export function pickWorseLevel(a: Level, b: Level): Level {
+  return levelRank(b) > levelRank(a) ? b : a;
+}
+
+/** Sort comparator: worst level first. */
+export function byLevelWorstFirst(a: Level, b: Level): number {
+  return levelRank(b) - levelRank(a);
+}
 
 /** How each interval call is named and explained, on every screen, mail and export. */
 export const CALL_DISPLAY: Record<IntervalCallKind, { word: string; meaning: string }> = {
@@ -22,3 +42,9 @@ export const CALL_DISPLAY: Record<IntervalCallKind, { word: string; meaning: str
   stretch: { word: 'Stretch', meaning: 'The oil can run a little longer next time, within the manufacturer’s longest interval.' },
   'fix-first': { word: 'Fix first', meaning: 'The cause is not the oil: fix it, take another sample soon, interval unchanged.' },
 };
+
+/** The word of each interval call ("Shorten", "Fix first"), for lists, badges and buttons. */
+export const CALL_WORD: Record<IntervalCallKind, string> = Object.fromEntries(CALL_KINDS.map((c) => [c, CALL_DISPLAY[c].word])) as Record<IntervalCallKind, string>;
+
+/** The calls from most to least urgent (fix-first, shorten, hold, stretch): how lists sort by call. */
+export const CALLS_BY_URGENCY: readonly IntervalCallKind[] = ['fix-first', 'shorten', 'hold', 'stretch'];

@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { CALL_DISPLAY, CALL_KINDS, LEVEL_DISPLAY, levelRank } from '~/lib/levels';
+import { byLevelWorstFirst, CALL_DISPLAY, CALL_KINDS, LEVEL_DISPLAY, LEVELS, levelOfRank, levelRank, pickWorseLevel } from '~/lib/levels';
 import { CALLS } from '~/lib/analysis/interval-call';
 import { navFor } from '~/lib/navigation';
 
@@ -16,6 +16,45 @@ describe('levels', () => {
     ['watch', 'act'],
   ] as const)('%s ranks below %s', (low, high) => {
     expect(levelRank(low)).toBeLessThan(levelRank(high));
+  });
+
+  // The ranks stored and compared in SQL (worst_rank on the overview): common practice, no published source.
+  test.each([
+    ['steady', 0],
+    ['watch', 1],
+    ['act', 2],
+  ] as const)('%s has rank %i, and that rank reads back as %s', (level, rank) => {
+    expect(levelRank(level)).toBe(rank);
+    expect(levelOfRank(rank)).toBe(level);
+  });
+
+  test.each([
+    [-1, 'steady'],
+    [3, 'steady'],
+  ] as const)('an out-of-range rank %i reads as %s', (rank, level) => {
+    expect(levelOfRank(rank)).toBe(level);
+  });
+
+  test.each([
+    ['steady', 'steady', 'steady'],
+    ['steady', 'watch', 'watch'],
+    ['watch', 'steady', 'watch'],
+    ['watch', 'act', 'act'],
+    ['act', 'watch', 'act'],
+    ['act', 'act', 'act'],
+  ] as const)('the worse of %s and %s is %s', (a, b, worse) => {
+    expect(pickWorseLevel(a, b)).toBe(worse);
+  });
+
+  test('sorting worst first puts act, then watch, then steady, and keeps ties in order', () => {
+    const items = [
+      { id: 1, level: 'watch' },
+      { id: 2, level: 'steady' },
+      { id: 3, level: 'act' },
+      { id: 4, level: 'watch' },
+    ] as const;
+    expect([...items].sort((a, b) => byLevelWorstFirst(a.level, b.level)).map((i) => i.id)).toEqual([3, 1, 4, 2]);
+    expect([...LEVELS]).toEqual(['steady', 'watch', 'act']);
   });
 });
 

@@ -5,6 +5,7 @@ import { STATE_LOOK, editUrlOf, type OutboxItem, type OutboxKind } from '~/lib/o
 import { listOutbox, onOutboxChange, removeOutboxItem } from './outbox-store';
 import { flushOutbox, type FlushReport } from './outbox-sync';
 import { formatCount } from '~/lib/words/words';
+import type { Level } from '~/lib/levels';
 
 interface Props {
   /** Only this kind of write (the drain card shows its cards); all kinds when absent. */
@@ -13,7 +14,7 @@ interface Props {
   full?: boolean;
 }
 
-const TONE: Record<'steady' | 'watch' | 'act', string> = {
+const TONE: Record<Level, string> = {
   steady: 'bg-level-steady-bg text-level-steady border-level-steady',
   watch: 'bg-level-watch-bg text-level-watch border-level-watch',
   act: 'bg-level-act-bg text-level-act border-level-act',

@@ -1,9 +1,9 @@
 /** The wear chart's data as tables, one per element: the accessible twin of the canvas. */
 import { useEffect, useState } from 'react';
-import type { Level } from '~/lib/db/database';
+import type { Level } from '~/lib/levels';
 import type { TrendResponse } from '~/lib/trends/trend-types';
 import { LEVEL_COLOURS } from './chart-styles';
-import { formatBand, formatDistance, formatFigure, formatFromBaseline, formatReported } from './format';
+import { formatBand, formatChartFigure, formatDistance, formatFromBaseline, formatReported } from './format';
 
 const SHAPES: Record<Level, string> = {
   steady: '<circle cx="10" cy="10" r="7" />',
@@ -51,7 +51,7 @@ export function TrendTable({ data }: { data: TrendResponse }) {
                   <td className="num">{formatDistance(p.odometer, meter)}</td>
                   <td className="num">{formatDistance(p.distanceOnOil, meter)}</td>
                   <td>{p.grade ?? '—'}</td>
-                  <td className="num">{s.basis === 'rate' ? `${formatFigure(p.value)} (${formatReported(p)} ppm)` : formatReported(p)}</td>
+                  <td className="num">{s.basis === 'rate' ? `${formatChartFigure(p.value)} (${formatReported(p)} ppm)` : formatReported(p)}</td>
                   <td><LevelMark level={p.level} /></td>
                   <td>{formatBand(p)}</td>
                   <td>{formatFromBaseline(p)}</td>

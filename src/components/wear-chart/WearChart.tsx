@@ -22,7 +22,7 @@ import { MEASURANDS } from '~/lib/analysis/measurands';
 import { PICKER_GROUPS, type TrendAxis, type TrendBasis, type TrendResponse } from '~/lib/trends/trend-types';
 import { buildChartDatasets, buildGradeMarks, type XYPoint } from './chart-data';
 import { LEVEL_COLOURS, SERIES_COLOURS, pointRadiusFor, pointStyleFor, withAlpha } from './chart-styles';
-import { formatBand, formatDistance, formatFigure, formatFromBaseline, formatReported, xToDate } from './format';
+import { formatBand, formatChartFigure, formatDistance, formatFromBaseline, formatReported, xToDate } from './format';
 import { TrendTable } from './TrendTable';
 
 ChartJS.register(LineController, LineElement, PointElement, LinearScale, Filler, Tooltip);
@@ -307,7 +307,7 @@ function buildChart(data: TrendResponse): { data: { datasets: ChartDataset<'line
             const p = (item.raw as XYPoint).point;
             const s = data.series[Math.floor(item.datasetIndex / 3)]!;
             return [
-              `${s.name}: ${formatFigure(p.value)} ${s.unit}${s.basis === 'rate' ? ` (lab: ${formatReported(p)} ppm)` : p.qualifier ? ` (lab: ${formatReported(p)})` : ''} · ${p.level}`,
+              `${s.name}: ${formatChartFigure(p.value)} ${s.unit}${s.basis === 'rate' ? ` (lab: ${formatReported(p)} ppm)` : p.qualifier ? ` (lab: ${formatReported(p)})` : ''} · ${p.level}`,
               `Odometer ${formatDistance(p.odometer, meter)} · on oil ${formatDistance(p.distanceOnOil, meter)} · ${p.grade ?? 'grade not recorded'}`,
               `Baseline ${formatBand(p)} · ${formatFromBaseline(p)}`,
               ...(p.inBaseline ? [] : [`Kept out of the baseline: ${p.baselineNote ?? 'no reason given'}`]),

@@ -1,5 +1,5 @@
 /** Shapes the trend endpoint's answer into Chart.js datasets: band lower, band upper (filled), then the line. */
-import type { Level } from '~/lib/db/database';
+import type { Level } from '~/lib/levels';
 import type { TrendAxis, TrendPoint, TrendResponse } from '~/lib/trends/trend-types';
 import { dateToX } from './format';
 

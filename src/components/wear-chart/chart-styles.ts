@@ -1,5 +1,5 @@
 /** Level marks and series colours of the wear chart, matching LevelBadge's word + shape + colour. */
-import type { Level } from '~/lib/db/database';
+import type { Level } from '~/lib/levels';
 
 /** Level colours (tailwind.config.cjs level.*). */
 export const LEVEL_COLOURS: Record<Level, string> = { steady: '#2f6b3a', watch: '#8a5a00', act: '#a12a1c' };

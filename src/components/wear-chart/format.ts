@@ -1,15 +1,15 @@
 /** Number and label formatting shared by the wear chart and its table. */
+import { formatFigure } from '~/lib/analysis/figures';
 import type { TrendPoint } from '~/lib/trends/trend-types';
 
-/** A figure to sensible precision: whole from 100, one decimal from 10, two below. */
-export function formatFigure(v: number): string {
-  const digits = Math.abs(v) >= 100 ? 0 : Math.abs(v) >= 10 ? 1 : 2;
-  return Number(v.toFixed(digits)).toLocaleString('en-US');
+/** A figure as the chart and its table show it: the engine's rounding, with thousands separators. */
+export function formatChartFigure(v: number): string {
+  return formatFigure(v, { thousands: true });
 }
 
 /** The reading as the lab reported it, with its qualifier. */
 export function formatReported(p: TrendPoint): string {
-  return `${p.qualifier ?? ''}${formatFigure(p.reported)}`;
+  return `${p.qualifier ?? ''}${formatChartFigure(p.reported)}`;
 }
 
 /** "+4.1 (1.5 × the band's upper half-width above the mean)" or "baseline still building". */
@@ -18,13 +18,13 @@ export function formatFromBaseline(p: TrendPoint): string {
   const d = p.fromBaseline.delta;
   const s = p.fromBaseline.spreads;
   const dir = d >= 0 ? 'above' : 'below';
-  return `${d >= 0 ? '+' : '−'}${formatFigure(Math.abs(d))} (${formatFigure(Math.abs(s))} × the band's half-width ${dir} the mean)`;
+  return `${d >= 0 ? '+' : '−'}${formatChartFigure(Math.abs(d))} (${formatChartFigure(Math.abs(s))} × the band's half-width ${dir} the mean)`;
 }
 
 /** Baseline band as the rule used it: "lower–upper (mean m, act from a, n samples)". */
 export function formatBand(p: TrendPoint): string {
   if (!p.band) return 'building';
-  return `${formatFigure(p.band.lower)}–${formatFigure(p.band.upper)} (mean ${formatFigure(p.band.mean)}, act from ${formatFigure(p.band.actFrom)}, ${p.band.n} samples)`;
+  return `${formatChartFigure(p.band.lower)}–${formatChartFigure(p.band.upper)} (mean ${formatChartFigure(p.band.mean)}, act from ${formatChartFigure(p.band.actFrom)}, ${p.band.n} samples)`;
 }
 
 /** Whole distance with thousands separators, one decimal for hour meters. */

@@ -6,7 +6,7 @@
  * nothing).
  */
 import type { AlertLine, Level, Meter, NotificationKind } from '../db/database';
-import { LEVEL_DISPLAY } from '../levels';
+import { byLevelWorstFirst, LEVEL_DISPLAY } from '../levels';
 import { escapeHtml, renderMailLayout } from '../mail/templates';
 import { formatMeter } from '../units/units';
 import { formatCount } from '../words/words';
@@ -68,7 +68,7 @@ export function composeImportFindingsAlert(input: { crewName: string; fileName: 
   for (const m of input.machines) {
     lines.push({ text: `${m.name}`, url: m.url });
     for (const s of m.samples) {
-      const ordered = [...s.findings].sort((a, b) => (a.level === b.level ? 0 : a.level === 'act' ? -1 : 1));
+      const ordered = [...s.findings].sort((a, b) => byLevelWorstFirst(a.level, b.level));
       for (const f of ordered) {
         lines.push({ text: `${LEVEL_DISPLAY[f.level].word}${f.measurand ? ` · ${f.measurand}` : ''} (bottle ${s.bottleCode}, drawn ${s.drawnOn}): ${f.sentence}` });
       }

@@ -1,7 +1,9 @@
 /** analyseSample: every rule over one sample against the machine's own in-control history. */
+import { byLevelWorstFirst, pickWorseLevel } from '../levels';
 import { ELEMENT_CODES, getMeasurand, type MeasurandCode } from './measurands';
 import { ADDITIVE_MISMATCH, BASELINE_JUMP, CLIMBING_TREND, CONDITION_TREND, FIXED_LIMIT, resolveFixedLimits } from './rule-definitions';
-import { FINDING_RULES, buildBaselineBands, formatFigure, readFiringValue, type MeasurandBand, type RuleContext } from './rules';
+import { formatFigure } from './figures';
+import { FINDING_RULES, buildBaselineBands, readFiringValue, type MeasurandBand, type RuleContext } from './rules';
 import type { AnalyseInput, Finding, Level, SamplePoint } from './types';
 import { computeWearRate, type WearRate } from './wear-rate';
 
@@ -25,12 +27,8 @@ export interface SampleAnalysis {
   cautions: string[];
 }
 
-const LEVEL_RANK: Record<Level, number> = { steady: 0, watch: 1, act: 2 };
-
-/** The more serious of two levels. */
-export function pickWorseLevel(a: Level, b: Level): Level {
-  return LEVEL_RANK[b] > LEVEL_RANK[a] ? b : a;
-}
+// One level ranking for the engine, the screens and the SQL: the levels module's.
+export { pickWorseLevel };
 
 /** Advice wording shown with every analysis (PRODUCT.md: findings are advice). */
 export const ANALYSIS_CAUTIONS: readonly string[] = [
@@ -83,7 +81,7 @@ export function analyseSample(input: AnalyseInput): SampleAnalysis {
         'that reads as copper leaching from the oil cooler or new parts (usual on a new or rebuilt engine), not wear.',
     );
   }
-  findings.sort((a, b) => LEVEL_RANK[b.level] - LEVEL_RANK[a.level]);
+  findings.sort((a, b) => byLevelWorstFirst(a.level, b.level));
 
   let worst: Level = 'steady';
   const readingLevels: Partial<Record<MeasurandCode, Level>> = {};

@@ -26,6 +26,7 @@
  */
 export * from './measurands';
 export * from './types';
+export * from './figures';
 export * from './viscosity';
 export * from './baseline';
 export * from './wear-rate';

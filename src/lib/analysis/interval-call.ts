@@ -5,13 +5,14 @@
 import { HISTORY_TAIL, analyseSample, type SampleAnalysis } from './analyse-sample';
 import type { MeasurandCode } from './measurands';
 import { INTERVAL_CALL } from './rule-definitions';
-import { formatFigure, readFiringValue, findOwnLevel } from './rules';
+import { formatFigure } from './figures';
+import { readFiringValue, findOwnLevel } from './rules';
+import { CALL_KINDS, type IntervalCallKind } from '../levels';
 import type { AnalyseInput, FixedLimits, Level, MachineProfile, SamplePoint } from './types';
 
-export type Call = 'shorten' | 'hold' | 'stretch' | 'fix-first';
-
-/** The call words, in the order screens list them. */
-export const CALLS: readonly Call[] = ['shorten', 'hold', 'stretch', 'fix-first'];
+/** The call words (defined once in the levels module), in the order screens list them. */
+export type Call = IntervalCallKind;
+export const CALLS: readonly Call[] = CALL_KINDS;
 
 export interface IntervalCall {
   call: Call;

@@ -2,6 +2,7 @@
  * The finding rules. Each is a named pure function of a RuleContext returning findings with level, rule id,
  * the numbers behind it and a sentence. Thresholds come from rule-definitions.ts (RULE_DEFINITIONS).
  */
+import { formatFigure } from './figures';
 import { computeBaselineBand, computeTrendFit, type BaselineBand } from './baseline';
 import { getMeasurand, type MeasurandCode } from './measurands';
 import {
@@ -24,7 +25,7 @@ import {
 } from './rule-definitions';
 import { probit } from 'simple-statistics';
 import { studentTQuantile } from './statistics';
-import type { Finding, FixedLimits, MachineProfile, SamplePoint } from './types';
+import type { Finding, FixedLimits, MachineProfile, Reading, SamplePoint } from './types';
 import { SAE_J300_GRADES, findGradeWindow } from './viscosity';
 import { computeTopUpFactor, findRateBasis } from './wear-rate';
 
@@ -66,20 +67,20 @@ export function readFiringValue(sample: SamplePoint, code: MeasurandCode): numbe
 }
 
 /**
- * A reading as baselines use it: below detection counts as half the detection limit (a common convention
- * for censored lab data), above range as the reported figure.
+ * A reading as a level or a baseline counts it: below detection ('<') counts as half the detection limit (a
+ * common convention for censored lab data, no published source), above range as the reported figure.
  */
-export function readBaselineValue(sample: SamplePoint, code: MeasurandCode): number | undefined {
-  const r = sample.readings[code];
-  if (!r || !Number.isFinite(r.value)) return undefined;
+export function countReadingValue(r: Reading): number {
   return r.qualifier === '<' ? r.value / 2 : r.value;
 }
 
-/** Round for a sentence: whole numbers from 100, one decimal from 10, two below. */
-export function formatFigure(v: number): string {
-  const digits = Math.abs(v) >= 100 ? 0 : Math.abs(v) >= 10 ? 1 : 2;
-  return String(Number(v.toFixed(digits)));
+/** A sample's reading as baselines use it (see countReadingValue); missing or not a number gives undefined. */
+export function readBaselineValue(sample: SamplePoint, code: MeasurandCode): number | undefined {
+  const r = sample.readings[code];
+  if (!r || !Number.isFinite(r.value)) return undefined;
+  return countReadingValue(r);
 }
+
 
 function describe(code: MeasurandCode, value: number): string {
   const m = getMeasurand(code);
@@ -433,7 +434,7 @@ export function findOwnLevel(
 ): { value: number; source: 'new-oil' | 'first-samples'; samples: number } | undefined {
   const fromNew = ctx.sample.newOil?.readings[code];
   if (fromNew && Number.isFinite(fromNew.value)) {
-    return { value: fromNew.qualifier === '<' ? fromNew.value / 2 : fromNew.value, source: 'new-oil', samples: 0 };
+    return { value: countReadingValue(fromNew), source: 'new-oil', samples: 0 };
   }
   if (code === 'KV100' && ctx.sample.newOilKv100 !== undefined && ctx.sample.newOilKv100 > 0) {
     return { value: ctx.sample.newOilKv100, source: 'new-oil', samples: 0 };
@@ -722,7 +723,7 @@ export function findAdditiveMismatch(ctx: RuleContext): Finding[] {
     const ref = reference?.readings[code];
     let m: number;
     if (ref && Number.isFinite(ref.value)) {
-      m = ref.qualifier === '<' ? ref.value / 2 : ref.value;
+      m = countReadingValue(ref);
       usedReference = true;
     } else {
       const values = earlier.map((s) => readBaselineValue(s, code)).filter((x): x is number => x !== undefined);

@@ -1,10 +1,12 @@
 /** Plain types shared by the analysis engine. No database or framework types here. */
 import type { MeasurandCode } from './measurands';
 
-export type Level = 'steady' | 'watch' | 'act';
-export type Cooling = 'air' | 'oil' | 'liquid';
+import type { Level } from '../levels';
+import type { Cooling, Meter } from '../machines/machines';
+
+export type { Cooling, Level };
 /** Distance unit of the machine: miles, kilometres, or engine hours from an hour meter. */
-export type DistanceUnit = 'mi' | 'km' | 'h';
+export type DistanceUnit = Meter;
 
 export interface Reading {
   value: number;

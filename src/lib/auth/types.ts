@@ -1,4 +1,7 @@
-import type { Role } from '../db/database';
+/** The roles a crew member can have, most responsible first. */
+export const ROLES = ['lead', 'mechanic', 'rider'] as const;
+/** A member's role in a crew. */
+export type Role = (typeof ROLES)[number];
 
 /** What every page knows of the signed-in user. */
 export interface SessionUser {

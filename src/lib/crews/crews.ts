@@ -1,10 +1,10 @@
 import { z } from 'zod';
 import { emailSchema } from '../auth/auth';
-import type { Role } from '../db/database';
+import { ROLES, type Role } from '../auth/types';
 
-export const ROLES: readonly Role[] = ['lead', 'mechanic', 'rider'];
+export { ROLES };
 
-export const roleSchema = z.enum(['lead', 'mechanic', 'rider'], 'Choose lead, mechanic or rider.');
+export const roleSchema = z.enum(ROLES, 'Choose lead, mechanic or rider.');
 
 export const crewNameSchema = z.string({ error: 'Enter a name for the crew.' }).trim().min(1, 'Enter a name for the crew.').max(80, 'Use at most 80 characters.');
 

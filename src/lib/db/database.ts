@@ -7,12 +7,13 @@ type TimestampNullable = ColumnType<Date | null, Date | string | null | undefine
 type DateText = ColumnType<string, string, string>;
 type Json<T> = ColumnType<T, string | T | undefined, string | T>;
 
-export type Role = 'lead' | 'mechanic' | 'rider';
-export type Cooling = 'air' | 'oil' | 'liquid';
-export type Meter = 'mi' | 'km' | 'h';
-export type SampleState = 'drawn' | 'shipped' | 'results_in' | 'reviewed';
-export type Level = 'steady' | 'watch' | 'act';
-export type IntervalCallKind = 'shorten' | 'hold' | 'stretch' | 'fix-first';
+import type { Role } from '../auth/types';
+import type { IntervalCallKind, Level } from '../levels';
+import type { Cooling, Meter } from '../machines/machines';
+import type { SampleState } from '../samples/samples';
+
+// The domain words are defined in their feature modules; re-exported here for the row types' users.
+export type { Cooling, IntervalCallKind, Level, Meter, Role, SampleState };
 
 export interface UsersTable {
   id: string;
@@ -330,35 +331,6 @@ export interface RateLimitsTable {
   expire: number | null;
 }
 
-/** Every table Kysely may touch; later migrations add their tables here too. */
-export interface Database {
-  users: UsersTable;
-  crews: CrewsTable;
-  crew_members: CrewMembersTable;
-  sessions: SessionsTable;
-  machines: MachinesTable;
-  oil_changes: OilChangesTable;
-  photos: PhotosTable;
-  samples: SamplesTable;
-  sample_events: SampleEventsTable;
-  wear_parts: WearPartsTable;
-  wear_measurements: WearMeasurementsTable;
-  lab_files: LabFilesTable;
-  lab_profiles: LabProfilesTable;
-  lab_imports: LabImportsTable;
-  readings: ReadingsTable;
-  reading_history: ReadingHistoryTable;
-  findings: FindingsTable;
-  interval_calls: IntervalCallsTable;
-  review_notes: ReviewNotesTable;
-  crew_limits: CrewLimitsTable;
-  auth_tokens: AuthTokensTable;
-  crew_invitations: CrewInvitationsTable;
-  audit_events: AuditEventsTable;
-  rate_limits: RateLimitsTable;
-  bottle_code_reservations: BottleCodeReservationsTable;
-}
-
 export type UserRow = Selectable<UsersTable>;
 export type NewUserRow = Insertable<UsersTable>;
 export type CrewRow = Selectable<CrewsTable>;
@@ -373,7 +345,7 @@ export type IntervalCallRow = Selectable<IntervalCallsTable>;
 export type WearPartRow = Selectable<WearPartsTable>;
 export type WearMeasurementRow = Selectable<WearMeasurementsTable>;
 
-// ---- mail (migration 2026_12_02_0300): appended as a merged declaration so parallel edits above don't collide.
+// ---- mail (migration 2026_12_02_0300)
 
 /** One outgoing message, written in the caller's transaction; the worker sets sent_at once the relay accepted it. */
 export interface MailOutboxTable {
@@ -411,15 +383,10 @@ export interface DevMailboxTable {
   received_at: Generated<Date>;
 }
 
-export interface Database {
-  mail_outbox: MailOutboxTable;
-  dev_mailbox: DevMailboxTable;
-}
-
 export type MailOutboxRow = Selectable<MailOutboxTable>;
 export type DevMailboxRow = Selectable<DevMailboxTable>;
 
-// ---- alerts and reminders (migration 2026_12_02_0700): appended as a merged declaration, like the mail tables.
+// ---- alerts and reminders (migration 2026_12_02_0700)
 
 export type NotificationKind = 'import_findings' | 'sample_due' | 'shipped_overdue' | 'invitation_pending' | 'lab_report_arrived';
 export type NotificationDelivery = 'immediate' | 'digest' | 'off';
@@ -463,13 +430,7 @@ export interface AlertDigestItemsTable {
   digest_key: string | null;
 }
 
-export interface Database {
-  notification_preferences: NotificationPreferencesTable;
-  alert_deliveries: AlertDeliveriesTable;
-  alert_digest_items: AlertDigestItemsTable;
-}
-
-// ---- new-oil references (migration 2026_12_02_1400): appended as a merged declaration.
+// ---- new-oil references (migration 2026_12_02_1400)
 
 /** A reading of the oil as poured, as stored in new_oil_references.readings. */
 export interface NewOilReadingJson {
@@ -497,13 +458,9 @@ export interface NewOilReferencesTable {
   updated_at: Generated<Date>;
 }
 
-export interface Database {
-  new_oil_references: NewOilReferencesTable;
-}
-
 export type NewOilReferenceRow = Selectable<NewOilReferencesTable>;
 
-// ---- lab reports by e-mail (migration 2026_12_02_1600): appended as a merged declaration.
+// ---- lab reports by e-mail (migration 2026_12_02_1600)
 
 /** A crew's import address: labs mail results to <token>@<INBOUND_MAIL_DOMAIN>. */
 export interface ImportAddressesTable {
@@ -543,12 +500,6 @@ export interface InboundMailsTable {
   processed_at: TimestampNullable;
 }
 
-export interface Database {
-  import_addresses: ImportAddressesTable;
-  import_address_senders: ImportAddressSendersTable;
-  inbound_mails: InboundMailsTable;
-}
-
 /** The baseline band a rule used for one measurand of one sample (only ready bands are stored). */
 export interface BaselineBandsTable {
   sample_id: string;
@@ -569,6 +520,41 @@ export interface BaselineBandsTable {
   source_machines: ColumnType<number | null, number | null | undefined, number | null>;
 }
 
+/** Every table Kysely may touch: one interface, one line per table (a new migration adds its table here). */
 export interface Database {
+  users: UsersTable;
+  crews: CrewsTable;
+  crew_members: CrewMembersTable;
+  sessions: SessionsTable;
+  machines: MachinesTable;
+  oil_changes: OilChangesTable;
+  photos: PhotosTable;
+  samples: SamplesTable;
+  sample_events: SampleEventsTable;
+  wear_parts: WearPartsTable;
+  wear_measurements: WearMeasurementsTable;
+  lab_files: LabFilesTable;
+  lab_profiles: LabProfilesTable;
+  lab_imports: LabImportsTable;
+  readings: ReadingsTable;
+  reading_history: ReadingHistoryTable;
+  findings: FindingsTable;
+  interval_calls: IntervalCallsTable;
+  review_notes: ReviewNotesTable;
+  crew_limits: CrewLimitsTable;
+  auth_tokens: AuthTokensTable;
+  crew_invitations: CrewInvitationsTable;
+  audit_events: AuditEventsTable;
+  rate_limits: RateLimitsTable;
+  bottle_code_reservations: BottleCodeReservationsTable;
+  mail_outbox: MailOutboxTable;
+  dev_mailbox: DevMailboxTable;
+  notification_preferences: NotificationPreferencesTable;
+  alert_deliveries: AlertDeliveriesTable;
+  alert_digest_items: AlertDigestItemsTable;
+  new_oil_references: NewOilReferencesTable;
+  import_addresses: ImportAddressesTable;
+  import_address_senders: ImportAddressSendersTable;
+  inbound_mails: InboundMailsTable;
   baseline_bands: BaselineBandsTable;
 }

@@ -2,6 +2,7 @@
 import { sql, type Kysely } from 'kysely';
 import { getMeasurand, isMeasurandCode } from '../analysis';
 import type { Database } from '../db/database';
+import { levelRankSql } from '../levels.repository';
 import type { MeterUnit } from '../units/units';
 import type { ExportReading } from './readings-csv';
 
@@ -12,7 +13,7 @@ export async function listExportReadings(db: Kysely<Database>, crewId: string, m
     select m.name as machine_name, m.meter, s.bottle_code, s.drawn_on::text as drawn_on, s.odometer, s.distance_on_oil, s.sae_grade, s.oil_product,
       s.state, r.measurand, r.qualifier, r.value,
       (select f.level from findings f where f.sample_id = s.id and f.measurand = r.measurand
-        order by case f.level when 'act' then 2 when 'watch' then 1 else 0 end desc limit 1) as level
+        order by ${levelRankSql('f.level')} desc limit 1) as level
     from readings r
     join samples s on s.id = r.sample_id
     join machines m on m.id = s.machine_id

@@ -1,6 +1,8 @@
 /** Queries of the crew home page; every one scoped by crew. */
 import { sql, type Kysely } from 'kysely';
 import type { Database, IntervalCallKind } from '../db/database';
+import { levelRankSql } from '../levels.repository';
+import type { Meter } from '../machines/machines';
 import type { CrewProgress, OpenFinding } from './home-cards';
 
 /** Samples of the crew in a state, with machine name, oldest first (limited). */
@@ -41,7 +43,7 @@ export async function listOpenFindings(db: Kysely<Database>, crewId: string, lim
     ) ls on true
     join findings f on f.sample_id = ls.id and f.level in ('watch', 'act')
     where m.crew_id = ${crewId} and m.archived_at is null
-    order by ls.drawn_on desc, m.name, case f.level when 'act' then 0 else 1 end, f.rule_id limit ${limit}
+    order by ls.drawn_on desc, m.name, ${levelRankSql('f.level')} desc, f.rule_id limit ${limit}
   `.execute(db);
   return rows;
 }
@@ -70,7 +72,7 @@ export async function loadCrewProgress(db: Kysely<Database>, crewId: string): Pr
 
 /** Each active machine of the crew with its latest interval call and manufacturer limits, for the due check. */
 export async function listMachinesForDue(db: Kysely<Database>, crewId: string) {
-  const { rows } = await sql<{ id: string; name: string; meter: 'mi' | 'km' | 'h'; next_sample_on: string | null; next_sample_odometer: number | null;
+  const { rows } = await sql<{ id: string; name: string; meter: Meter; next_sample_on: string | null; next_sample_odometer: number | null;
     call: IntervalCallKind | null; last_change_on: string | null; last_change_odometer: number | null; max_interval_distance: number | null; max_interval_days: number | null }>`
     select m.id, m.name, m.meter, ic.call, ic.next_sample_on::text as next_sample_on, ic.next_sample_odometer,
       oc.changed_on::text as last_change_on, oc.odometer as last_change_odometer, m.max_interval_distance, m.max_interval_days

@@ -1,6 +1,7 @@
 /** The crew home: what needs doing now, each list scoped to the current crew. */
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
+import type { Meter } from '../machines/machines';
 import { listOdometerHistory } from '../overview/overview.repository';
 import { estimateCurrentOdometer, findSampleDue, type DueStatus, type OdometerEstimate } from './odometer-estimate';
 import { listMachinesForDue, listOpenFindings, listOverdueShipments, listSamplesInState, loadCrewProgress } from './home.repository';
@@ -13,7 +14,7 @@ export const SHIPPED_OVERDUE_DAYS = 21;
 export interface DueMachine {
   id: string;
   name: string;
-  meter: 'mi' | 'km' | 'h';
+  meter: Meter;
   due: DueStatus;
   estimate: OdometerEstimate | null;
   /** 'call' when the interval call set the target; 'manufacturer' when only the manual's interval did. */

@@ -3,6 +3,7 @@
  * for a rider with the line and column it sits in. Pure: no database, no I/O. The importer decides
  * what to write; this module only reads.
  */
+import { MAX_BOTTLE_CODE_TEXT, normaliseBottleCode } from '../samples/bottle-code';
 import Papa from 'papaparse';
 import { ELEMENT_CODES, isMeasurandCode, type MeasurandCode } from '../analysis/measurands';
 import {
@@ -127,7 +128,7 @@ const PLAIN_POINT = /^\d+(?:\.\d+)?$/;
 const PLAIN_COMMA = /^\d+(?:,\d+)?$/;
 
 /** Longest bottle code accepted; lab kit numbers and Sumpwise codes are far shorter. */
-const MAX_BOTTLE_CODE_LENGTH = 64;
+const MAX_BOTTLE_CODE_LENGTH = MAX_BOTTLE_CODE_TEXT;
 
 /** Sanity ceiling for kinematic viscosity: ISO 3448's heaviest grade, VG 3200, tops out at 3520 mm²/s (from memory); 100,000 leaves room for anything real. */
 const MAX_VISCOSITY = 100_000;
@@ -268,10 +269,6 @@ function detectDecimalMark(delimiter: ',' | ';' | '\t', data: readonly string[][
   // Without evidence either way, a report in a decimal-comma language keeps its comma.
   if (!commaEvidence && !pointEvidence) return preferComma ? ',' : '.';
   return commaEvidence && !pointEvidence ? ',' : '.';
-}
-
-function normaliseBottleCode(raw: string): string {
-  return raw.toUpperCase().replace(/[\s\-\u2010-\u2015\u2212]/g, '');
 }
 
 function normaliseMappingKey(header: string): string {

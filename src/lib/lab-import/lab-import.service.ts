@@ -12,18 +12,18 @@ import { readLabFileBytes } from '../lab-csv/lab-xlsx';
 import {
   MAX_LAB_FILE_BYTES,
   parseLabCsv,
-  type LabCsvColumn,
   type LabCsvIssue,
   type LabCsvMappingTarget,
 } from '../lab-csv/lab-csv';
 import { checkCrewQuota } from '../storage-quota/storage-quota';
 import { sumCrewStorageBytes } from '../storage-quota/storage-quota.repository';
-import { CODE_ALPHABET, explainIssuedCode, hasValidCheckSymbol, ISSUED_DATA_LENGTH, normaliseBottleCode } from '../samples/bottle-code';
+import { CODE_ALPHABET, explainIssuedCode, hasValidCheckSymbol, ISSUED_DATA_LENGTH } from '../samples/bottle-code';
 import {
   computeHeaderSignature,
   countLines,
   MAX_LAB_FILE_LINES,
   tooManyLinesMessage,
+  findColumnTarget,
   type ConfirmHooks,
   type ImportPreview,
   type ImportSummary,
@@ -138,12 +138,8 @@ function readHeaders(text: string): string[] {
   return parseLabCsv(head).columns.map((c) => c.header);
 }
 
-/** What a column means now: the target its select starts on in the mapping form. */
-export function findColumnTarget(column: LabCsvColumn): LabCsvMappingTarget {
-  if (column.kind === 'bottle' || column.kind === 'sampled' || column.kind === 'reported') return column.kind;
-  if (column.kind === 'measurand' && column.code) return column.conversion === 'SUS210→KV100' ? 'SUS210' : column.code;
-  return 'ignore';
-}
+// Kept reachable from the service for its callers; it lives with the feature's pure helpers.
+export { findColumnTarget };
 
 function looksIssued(norm: string): boolean {
   return norm.length === ISSUED_DATA_LENGTH + 1 && [...norm].every((ch) => CODE_ALPHABET.includes(ch));
@@ -193,7 +189,7 @@ export async function previewLabImport(
   const parsed = parseLabCsv(decoded.text, profile ? { mapping: profile.mapping } : {});
   const bottleHeader = parsed.columns.find((c) => c.kind === 'bottle')?.header ?? 'Bottle';
 
-  const norms = parsed.rows.map((r) => normaliseBottleCode(r.bottle.raw));
+  const norms = parsed.rows.map((r) => r.bottle.normalised);
   const [samples, machines] = await Promise.all([
     repo.findSamplesByCodes(db, input.crewId, [...new Set(norms)]),
     repo.findMachinesForImport(db, input.crewId),
@@ -217,17 +213,10 @@ export async function previewLabImport(
     }
   }
 
-  const firstLineOfCode = new Map<string, number>();
-  const allRows: PreviewRow[] = parsed.rows.map((r, i) => {
-    const norm = norms[i] ?? r.bottle.normalised;
+  const allRows: PreviewRow[] = parsed.rows.map((r) => {
+    const norm = r.bottle.normalised;
     const issues = rowIssues.get(r.line) ?? [];
     const at = `Line ${r.line}, column "${bottleHeader}"`;
-    // The samples' normal form also drops _ . / — two cells the reader saw as different can be one bottle.
-    const earlier = firstLineOfCode.get(norm);
-    if (earlier === undefined) firstLineOfCode.set(norm, r.line);
-    else if (!issues.some((x) => x.code === 'duplicate-bottle-code')) {
-      issues.push({ severity: 'error', code: 'duplicate-bottle-code', row: r.line, column: bottleHeader, message: `${at}: bottle code "${r.bottle.raw}" is the same bottle as line ${earlier}. One bottle gets one result; remove the repeated row or correct its code.` });
-    }
     const sample = byCode.get(norm);
     let match: RowMatch;
     if (sample && sample.issued_code && !hasValidCheckSymbol(norm)) {

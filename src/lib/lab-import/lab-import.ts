@@ -243,3 +243,10 @@ export function selectPreviewRows(rows: readonly PreviewRow[], filter: PreviewRo
     hiddenReady: ready.length - shownReady.length,
   };
 }
+
+/** What a column means now: the target its select starts on in the mapping form. */
+export function findColumnTarget(column: LabCsvColumn): LabCsvMappingTarget {
+  if (column.kind === 'bottle' || column.kind === 'sampled' || column.kind === 'reported') return column.kind;
+  if (column.kind === 'measurand' && column.code) return column.conversion === 'SUS210→KV100' ? 'SUS210' : column.code;
+  return 'ignore';
+}

@@ -7,6 +7,9 @@ import { checkbox, optionalNumber, text } from '~/lib/http/form-values';
 export const ENGINE_LAYOUTS = ['single', 'twin', 'triple', 'four', 'other'] as const;
 export const COOLINGS = ['air', 'oil', 'liquid'] as const;
 export const METERS = ['mi', 'km', 'h'] as const;
+export type Cooling = (typeof COOLINGS)[number];
+/** What the machine counts distance in: miles, kilometres, or engine hours from an hour meter. */
+export type Meter = (typeof METERS)[number];
 /** How many grade rows the machine form offers (a manual rarely lists more). */
 export const GRADE_ROWS = 4;
 

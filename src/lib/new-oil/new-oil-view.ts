@@ -9,8 +9,11 @@ import type { ProductInUse } from './new-oil.service';
 
 const UNITS: Partial<Record<MeasurandCode, string>> = { KV40: 'mm²/s', KV100: 'mm²/s', TBN: 'mg KOH/g', TAN: 'mg KOH/g', FLASH: '°C', FUEL: '%', WATER: '%', INSOL: '%', VI: '' };
 
-/** One figure as text: "KV100 14.2 mm²/s", "Zn 1,100 ppm", "B <1 ppm". */
-export function formatFigure(code: MeasurandCode, r: Reading): string {
+/**
+ * One reading of a reference as text: "KV100 14.2 mm²/s", "Zn 1,100 ppm", "B <1 ppm". Keeps two decimals below 100
+ * (a data sheet's figures as printed), unlike formatFigure's rounding for judged figures.
+ */
+export function formatReferenceReading(code: MeasurandCode, r: Reading): string {
   const unit = UNITS[code] ?? (getMeasurand(code).unit === 'ppm' ? 'ppm' : getMeasurand(code).unit);
   const n = Math.abs(r.value) >= 100 ? Math.round(r.value).toLocaleString('en-US') : String(Number(r.value.toFixed(2)));
   return `${code} ${r.qualifier ?? ''}${n}${unit ? ` ${unit}` : ''}`;
@@ -18,7 +21,7 @@ export function formatFigure(code: MeasurandCode, r: Reading): string {
 
 /** A reference's figures in catalogue order, joined for one line. */
 export function describeReadings(readings: Partial<Record<MeasurandCode, Reading>>): string {
-  return MEASURAND_CODES.flatMap((c) => (readings[c] ? [formatFigure(c, readings[c]!)] : [])).join(' · ');
+  return MEASURAND_CODES.flatMap((c) => (readings[c] ? [formatReferenceReading(c, readings[c]!)] : [])).join(' · ');
 }
 
 /** Where a reference stands, in words. */

@@ -3,6 +3,8 @@
 // request a queued write becomes, what an answer means, whether the current session may send it, how its
 // state reads); the browser side keeps the items in IndexedDB and sends them.
 
+import type { Level } from '../levels';
+
 export type OutboxKind = 'drain-card' | 'oil-change' | 'wear-reading';
 
 /**
@@ -136,7 +138,7 @@ export function sendable(items: readonly OutboxItem[]): OutboxItem[] {
 }
 
 /** The word, shape and tone each state is shown with (never colour alone). */
-export const STATE_LOOK: Record<OutboxState, { word: string; shape: string; tone: 'steady' | 'watch' | 'act' }> = {
+export const STATE_LOOK: Record<OutboxState, { word: string; shape: string; tone: Level }> = {
   waiting: { word: 'Waiting to send', shape: '◷', tone: 'watch' },
   sending: { word: 'Sending', shape: '↻', tone: 'watch' },
   refused: { word: 'Not accepted', shape: '✕', tone: 'act' },

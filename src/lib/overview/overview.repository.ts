@@ -10,8 +10,10 @@
  * stops after the first few samples (an incremental sort), and the query runs without JIT. A sample never
  * changes machine, so its call's machine is the sample's.
  */
-import { sql, type Kysely } from 'kysely';
-import type { Database, IntervalCallKind, Level, Meter, Role } from '../db/database';
+import { sql, type Kysely, type RawBuilder } from 'kysely';
+import type { Database, IntervalCallKind, Meter, Role } from '../db/database';
+import { levelOfRank, levelRank } from '../levels';
+import { callUrgencySql, levelRankSql } from '../levels.repository';
 import { isUuid } from '../ids';
 import { OVERVIEW_PAGE_SIZE, type OverviewPage, type OverviewQuery, type OverviewRow } from './overview';
 
@@ -37,15 +39,13 @@ interface RawRow {
   total: string;
 }
 
-const RANK_TO_LEVEL: Level[] = ['steady', 'watch', 'act'];
-
 // Sort expressions are chosen from this fixed map, never built from input.
-const ORDER: Record<OverviewQuery['sort'], string> = {
-  name: 'lower(name)',
-  'last-sample': 'drawn_on',
-  level: 'coalesce(worst_rank, -1)',
-  call: "case call when 'fix-first' then 0 when 'shorten' then 1 when 'hold' then 2 when 'stretch' then 3 end",
-  due: 'next_sample_on',
+const ORDER: Record<OverviewQuery['sort'], RawBuilder<unknown>> = {
+  name: sql.raw('lower(name)'),
+  'last-sample': sql.raw('drawn_on'),
+  level: sql.raw('coalesce(worst_rank, -1)'),
+  call: callUrgencySql('call'),
+  due: sql.raw('next_sample_on'),
 };
 
 /** One page of the crew overview. */
@@ -55,7 +55,7 @@ export async function listOverviewPage(db: Kysely<Database>, crewId: string, que
   const offset = (query.page - 1) * OVERVIEW_PAGE_SIZE;
   const filters = [sql`true`];
   if (query.level === 'none') filters.push(sql`sample_id is null`);
-  else if (query.level) filters.push(sql`worst_rank = ${RANK_TO_LEVEL.indexOf(query.level)}`);
+  else if (query.level) filters.push(sql`worst_rank = ${levelRank(query.level)}`);
   if (query.call) filters.push(sql`call = ${query.call}`);
   if (query.climbing) filters.push(sql`cardinality(climbing) > 0`);
   const like = query.q ? `%${query.q.replace(/[\\%_]/g, (c) => `\\${c}`)}%` : null;
@@ -73,12 +73,12 @@ export async function listOverviewPage(db: Kysely<Database>, crewId: string, que
         order by s.drawn_on desc, s.odometer desc limit 1
       ) ls on true
       left join lateral (
-        select max(case level when 'act' then 2 when 'watch' then 1 else 0 end) as worst_rank
+        select max(${levelRankSql('level')}) as worst_rank
         from findings where sample_id = ls.id
       ) f on true
       left join lateral (
         select rule_id, measurand, sentence from findings where sample_id = ls.id
-        order by case level when 'act' then 2 when 'watch' then 1 else 0 end desc, created_at, id limit 1
+        order by ${levelRankSql('level')} desc, created_at, id limit 1
       ) top on true
       left join lateral (
         select array_agg(distinct measurand order by measurand) as climbing from findings
@@ -99,7 +99,7 @@ export async function listOverviewPage(db: Kysely<Database>, crewId: string, que
       select base.* from base where ${sql.join(filters, sql` and `)}
     )
     select *, count(*) over () as total from filtered
-    order by ${sql.raw(ORDER[query.sort])} ${dir} ${nulls}, lower(name) asc, machine_id asc
+    order by ${ORDER[query.sort]} ${dir} ${nulls}, lower(name) asc, machine_id asc
     limit ${OVERVIEW_PAGE_SIZE} offset ${offset}
   `;
   // A page reads every machine of the crew, so on large crews the planner's cost estimate crosses the JIT
@@ -136,7 +136,7 @@ function toOverviewRow(r: RawRow): OverviewRow {
     name: r.name,
     meter: r.meter,
     lastSample: r.sample_id ? { id: r.sample_id, bottleCode: r.bottle_code ?? '', drawnOn: r.drawn_on ?? '', state: r.state ?? '' } : null,
-    worst: r.sample_id ? RANK_TO_LEVEL[r.worst_rank ?? 0]! : null,
+    worst: r.sample_id ? levelOfRank(r.worst_rank ?? 0) : null,
     topFinding: r.top_rule ? { ruleId: r.top_rule, measurand: r.top_measurand, sentence: r.top_sentence ?? '' } : null,
     climbing: r.climbing ?? [],
     call: r.call
@@ -150,7 +150,7 @@ export async function findMachineOverview(db: Kysely<Database>, crewId: string, 
   if (!isUuid(machineId)) return undefined;
   const page = await sql<RawRow>`
     select m.id as machine_id, m.name, m.meter, ls.id as sample_id, ls.bottle_code, ls.drawn_on::text as drawn_on, ls.state,
-      (select max(case level when 'act' then 2 when 'watch' then 1 else 0 end) from findings where sample_id = ls.id) as worst_rank,
+      (select max(${levelRankSql('level')}) from findings where sample_id = ls.id) as worst_rank,
       top.rule_id as top_rule, top.measurand as top_measurand, top.sentence as top_sentence,
       (select array_agg(distinct measurand order by measurand) from findings where sample_id = ls.id and rule_id = 'climbing-trend' and measurand is not null) as climbing,
       ic.call, ic.source as call_source, ic.made_by_role as call_role, ic.made_by_name as call_author, ic.next_sample_on::text as next_sample_on, ic.next_sample_odometer, '1' as total
@@ -161,7 +161,7 @@ export async function findMachineOverview(db: Kysely<Database>, crewId: string, 
     ) ls on true
     left join lateral (
       select rule_id, measurand, sentence from findings where sample_id = ls.id
-      order by case level when 'act' then 2 when 'watch' then 1 else 0 end desc, created_at, id limit 1
+      order by ${levelRankSql('level')} desc, created_at, id limit 1
     ) top on true
     left join lateral (
       select ic2.call, ic2.source, ic2.next_sample_on, ic2.next_sample_odometer,

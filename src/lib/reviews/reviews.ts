@@ -1,6 +1,6 @@
 /** Review notes and interval-call decisions: input schemas and domain shapes. */
 import { z } from 'zod';
-import type { IntervalCallKind } from '../db/database';
+import { CALL_KINDS, type IntervalCallKind } from '../levels';
 
 export const NOTE_MAX = 4000;
 
@@ -22,7 +22,7 @@ export const callDecisionSchema = z.discriminatedUnion('action', [
   z.object({ action: z.literal('confirm'), note: noteText.optional().default('') }),
   z.object({
     action: z.literal('override'),
-    call: z.enum(['shorten', 'hold', 'stretch', 'fix-first'], { error: 'Pick shorten, hold, stretch or fix first.' }),
+    call: z.enum(CALL_KINDS, { error: 'Pick shorten, hold, stretch or fix first.' }),
     note: noteText.pipe(z.string().min(1, 'An override needs a note saying why.')),
     /** In the machine's meter unit (mi, km or h). */
     nextInterval: optionalPositive('next interval'),

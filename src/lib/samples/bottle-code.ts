@@ -1,6 +1,7 @@
 /**
  * Bottle codes. A lab kit's code is kept as printed; Sumpwise compares codes in a normal form (upper case,
- * spaces and dashes removed) so "ab-12 c" and "AB12C" are the same bottle.
+ * spaces, dashes and other separators removed) so "ab-12 c" and "AB12C" are the same bottle: one normal form for
+ * the forms, the lab file reader and the import.
  *
  * Codes Sumpwise issues use a 29-symbol alphabet in the spirit of Crockford's base32 without the symbols
  * people misread: no I, L, O, U (read as 1, 1, 0, V), no 0 or 1 (read as O and I/L), and no Z (read as 2).
@@ -21,11 +22,18 @@ export const ISSUED_DATA_LENGTH = 6;
 /** Longest bottle-code text read; lab kit codes are under 20 characters (common practice, no published source). */
 export const MAX_BOTTLE_CODE_TEXT = 64;
 
+/**
+ * Separators people and lab systems put inside a code: white space, hyphen-minus, underscore, full stop, slash,
+ * middle dot, the Unicode hyphens and dashes (U+2010–U+2015) a spreadsheet's autocorrect writes, and the minus
+ * sign (U+2212).
+ */
+const CODE_SEPARATORS = /[\s\-_./·\u2010-\u2015\u2212]+/g;
+
 /** Upper case, with spaces, dashes and other separators removed: the form codes are compared in. */
 export function normaliseBottleCode(code: string): string {
   // Only the head of an absurdly long entry is read, so a pasted 100 KB string costs no more than a real code.
   const head = code.length > MAX_BOTTLE_CODE_TEXT ? code.slice(0, MAX_BOTTLE_CODE_TEXT) : code;
-  return head.toUpperCase().replace(/[\s\-_./·]+/g, '');
+  return head.toUpperCase().replace(CODE_SEPARATORS, '');
 }
 
 function valuesOf(symbols: string): number[] | null {

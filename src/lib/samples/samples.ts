@@ -1,9 +1,11 @@
 import { z } from 'zod';
-import type { SampleRow, SampleState } from '../db/database';
+import type { SampleRow } from '../db/database';
 import { optionalNumber, pastDay, requiredNumber, text } from '~/lib/http/form-values';
 import { clientKeySchema } from '../offline/client-key';
 
-export const SAMPLE_STATES: readonly SampleState[] = ['drawn', 'shipped', 'results_in', 'reviewed'];
+/** Where a sample bottle is, in the order it gets there. */
+export const SAMPLE_STATES = ['drawn', 'shipped', 'results_in', 'reviewed'] as const;
+export type SampleState = (typeof SAMPLE_STATES)[number];
 export const STATE_LABELS: Record<SampleState, string> = {
   drawn: 'Drawn', shipped: 'Shipped', results_in: 'Results in', reviewed: 'Reviewed',
 };

@@ -3,7 +3,7 @@
  * them stays small.
  */
 import type { MeasurandCode, MeasurandGroup } from '../analysis/measurands';
-import type { Level } from '../db/database';
+import type { Level } from '../levels';
 import type { MeterUnit } from '../units/units';
 
 export type TrendBasis = 'ppm' | 'rate';

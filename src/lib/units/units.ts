@@ -5,6 +5,7 @@
  * Factors are exact by definition (NIST SP 811, 2008 edition, Appendix B.8 and B.9):
  * 1 in = 25.4 mm, 1 mi (international) = 1609.344 m, t/°C = (t/°F − 32)/1.8.
  */
+import type { Meter } from '../machines/machines';
 
 /** Millimetres in one inch (exact, NIST SP 811 B.8). */
 export const MM_PER_IN = 25.4;
@@ -12,7 +13,8 @@ export const MM_PER_IN = 25.4;
 export const KM_PER_MI = 1.609344;
 
 export type DistanceUnit = 'mi' | 'km';
-export type MeterUnit = DistanceUnit | 'h';
+/** A machine's meter (the machines module's word, named here by what the conversions take). */
+export type MeterUnit = Meter;
 export type LengthUnit = 'in' | 'mm';
 export type TemperatureUnit = 'F' | 'C';
 

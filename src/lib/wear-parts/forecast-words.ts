@@ -1,7 +1,12 @@
 import type { WearForecast, WearReversal } from '../analysis/wear-forecast';
+import type { Level } from '../levels';
 import type { MeterUnit } from '../units/units';
 
-const n = (v: number, meter: MeterUnit) => `${Math.round(v).toLocaleString('en-US')} ${meter}`;
+/** A meter reading (already in the meter's unit) as whole units with separators: "12,400 km". */
+export function formatWholeMeter(v: number, meter: MeterUnit): string {
+  return `${Math.round(v).toLocaleString('en-US')} ${meter}`;
+}
+const n = formatWholeMeter;
 
 /** What the words need to know of the part. */
 export interface ForecastPart {
@@ -11,7 +16,7 @@ export interface ForecastPart {
 }
 
 /** The level a forecast deserves on screen: word + shape go with it, as everywhere else. */
-export type ForecastTone = 'steady' | 'watch' | 'act';
+export type ForecastTone = Level;
 
 /**
  * A brake part, recognised by its name (brake pads, brake shoes, a brake disc or rotor, a caliper):

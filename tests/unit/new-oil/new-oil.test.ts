@@ -3,7 +3,7 @@ import {
   attachNewOil, buildNewOilLookup, chooseNewOilForAnalysis, newOilInputSchema, normaliseProductName, readingsFromDataSheet,
   type NewOilReference,
 } from '~/lib/new-oil/new-oil';
-import { buildReferenceList, describeReadings, describeReferenceState, formatFigure, FIRST_SAMPLES_SERVE, newReferenceHref, referenceFormValues } from '~/lib/new-oil/new-oil-view';
+import { buildReferenceList, describeReadings, describeReferenceState, formatReferenceReading, FIRST_SAMPLES_SERVE, newReferenceHref, referenceFormValues } from '~/lib/new-oil/new-oil-view';
 import type { SamplePoint } from '~/lib/analysis/types';
 
 // Invented product names throughout (no real brands).
@@ -129,8 +129,8 @@ describe('new-oil screens', () => {
     ['B', { value: 1, qualifier: '<' as const }, 'B <1 ppm'],
     ['TBN', { value: 8.456 }, 'TBN 8.46 mg KOH/g'],
     ['VI', { value: 156 }, 'VI 156'],
-  ] as const)('formatFigure %s', (code, reading, text) => {
-    expect(formatFigure(code, reading)).toBe(text);
+  ] as const)('formatReferenceReading %s', (code, reading, text) => {
+    expect(formatReferenceReading(code, reading)).toBe(text);
   });
 
   test('figures come in catalogue order', () => {

@@ -13,6 +13,17 @@ describe('normaliseBottleCode', () => {
     { raw: '  K7M-Q4XH ', expected: 'K7MQ4XH' },
     { raw: 'lab 2024/0077', expected: 'LAB20240077' },
     { raw: 'x_y.z', expected: 'XYZ' },
+    // The lab file reader's separators, now the same normal form: Unicode hyphen U+2010, en dash U+2013, em
+    // dash U+2014, minus sign U+2212, middle dot, and a no-break space (white space to \s).
+    { raw: 'SW\u20102001', expected: 'SW2001' },
+    { raw: 'SW\u20132001', expected: 'SW2001' },
+    { raw: 'sw\u20142001', expected: 'SW2001' },
+    { raw: 'SW\u22122001', expected: 'SW2001' },
+    { raw: 'SW·20·01', expected: 'SW2001' },
+    { raw: 'SW\u00a02001', expected: 'SW2001' },
+    // Characters that are not separators stay: letters with diacritics upper-case, '#' and '+' are kept.
+    { raw: 'é#1+2', expected: 'É#1+2' },
+    { raw: '', expected: '' },
   ])('"$raw" → $expected', ({ raw, expected }) => {
     expect(normaliseBottleCode(raw)).toBe(expected);
   });
