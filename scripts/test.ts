@@ -1,6 +1,6 @@
-// `npm test`: the type check, unit tests, integration tests against the project's PostgreSQL, a build, and
-// end-to-end tests in headless Chromium against the built server. Exits non-zero on any failure and ends
-// with one line counting every test.
+// `npm test`: the formatter check and the linter, the type check, unit tests (with coverage thresholds),
+// integration tests against the project's PostgreSQL, a build, and end-to-end tests in headless Chromium
+// against the built server. Exits non-zero on any failure and ends with one line counting every test.
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import path from 'node:path';
 import { ROOT, run } from './lib/processes';
@@ -51,11 +51,19 @@ function vitest(project: string, extra: string[] = []): boolean {
 
 mkdirSync(results, { recursive: true });
 const started = performance.now();
+// The formatter and the linter both run (so one report shows both) and keep a content-based cache under
+// .data/cache, so a second run reads only the files that changed.
+const cache = path.join(ROOT, '.data/cache');
+const cacheArgs = (tool: string) => ['--cache', '--cache-strategy', 'content', '--cache-location', path.join(cache, tool)];
+const formatted = step('format (prettier --check)', () => run(bin('prettier'), ['--check', ...cacheArgs('prettier'), '.']) === 0);
+const linted = step('lint (eslint)', () => run(bin('eslint'), [...cacheArgs('eslint'), '.']) === 0);
 const ok =
+  formatted &&
+  linted &&
   ensureChromium() &&
   step('database', () => run('bash', ['scripts/db.sh', 'start']) === 0) &&
   step('type check (astro check)', () => run(bin('astro'), ['check', '--minimumSeverity', 'warning'], { env }) === 0) &&
-  step('unit tests', () => vitest('unit')) &&
+  step('unit tests (coverage of src/lib)', () => vitest('unit', ['--coverage'])) &&
   step('integration tests (PostgreSQL)', () => vitest('integration', ['--no-file-parallelism'])) &&
   step('build', () => { try { buildIfNeeded(); return true; } catch (e) { console.error(String(e)); return false; } }) &&
   step('end-to-end tests (Chromium)', () => vitest('e2e', ['--no-file-parallelism']));
