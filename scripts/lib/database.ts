@@ -3,6 +3,7 @@
 import path from 'node:path';
 import pg from 'pg';
 import { createDb } from '../../src/lib/db/db';
+import { useEmbeddedPassword } from '../../src/lib/db/embedded-password';
 import { assertMigrated, createMigrator } from '../../src/lib/db/migrator';
 import { recomputeStaleMachines } from '../../src/lib/lab-import/lab-import.service';
 import { ROOT, capture, run } from './processes';
@@ -10,6 +11,8 @@ import { ROOT, capture, run } from './processes';
 /** Starts the project's own PostgreSQL (nothing to do when it runs already). */
 export function startEmbeddedServer(): void {
   if (run('bash', [path.join(ROOT, 'scripts/db.sh'), 'start']) !== 0) throw new Error('the embedded PostgreSQL did not start (see above)');
+  // A first start writes the password file after this process read it at import: read it again.
+  useEmbeddedPassword(ROOT);
 }
 
 /** Starts the project's own PostgreSQL and makes sure database `name` exists; returns its URL. */
