@@ -36,13 +36,19 @@ export default tseslint.config(
         'error',
         { argsIgnorePattern: '^_', varsIgnorePattern: '^_', caughtErrors: 'none', ignoreRestSiblings: true },
       ],
-      // The readers refuse control characters on purpose, so their patterns name them.
-      'no-control-regex': 'off',
+      // A closure defined before the one assignment may read the variable (a worker id set once it exists).
+      'prefer-const': ['error', { ignoreReadBeforeAssign: true }],
     },
   },
   {
-    // Kysely's migrations take Kysely<any>: they must not depend on today's schema (Kysely's migration guide).
-    files: ['migrations/**'],
+    // Kysely<any> is the type of code that must work on any schema: migrations (Kysely's migration guide),
+    // the migrator, the health ping.
+    files: ['migrations/**', 'src/lib/db/migrator.ts', 'src/lib/health/**'],
+    rules: { '@typescript-eslint/no-explicit-any': 'off' },
+  },
+  {
+    // Tests read JSON answers and rows of any table loosely; their assertions check the shape.
+    files: ['tests/**'],
     rules: { '@typescript-eslint/no-explicit-any': 'off' },
   },
   {
