@@ -42,14 +42,15 @@ export default tseslint.config(
   },
   {
     // Kysely<any> is the type of code that must work on any schema: migrations (Kysely's migration guide),
-    // the migrator, the health ping.
-    files: ['migrations/**', 'src/lib/db/migrator.ts', 'src/lib/health/**'],
+    // the database plumbing (migrator, bulk copy), the health ping.
+    files: ['migrations/**', 'src/lib/db/**', 'src/lib/health/**'],
     rules: { '@typescript-eslint/no-explicit-any': 'off' },
   },
   {
-    // Tests read JSON answers and rows of any table loosely; their assertions check the shape.
+    // Tests read JSON answers and rows of any table loosely (their assertions check the shape), and feed the
+    // code hostile input on purpose: control characters, numbers a double cannot hold.
     files: ['tests/**'],
-    rules: { '@typescript-eslint/no-explicit-any': 'off' },
+    rules: { '@typescript-eslint/no-explicit-any': 'off', 'no-control-regex': 'off', 'no-loss-of-precision': 'off' },
   },
   {
     files: ['src/**'],
