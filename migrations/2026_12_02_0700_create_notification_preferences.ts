@@ -1,6 +1,6 @@
 import { sql, type Kysely } from 'kysely';
 
-// E-mail alerts and reminders (issue 8). Three tables:
+// E-mail alerts and reminders. Three tables:
 // - notification_preferences: per user, crew and kind of message, how it is delivered (immediately, in the
 //   daily digest, or not at all). No row means the kind's default.
 // - alert_deliveries: one row per logical alert a user was given (its dedupe key, e.g.

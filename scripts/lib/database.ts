@@ -3,13 +3,21 @@
 import path from 'node:path';
 import pg from 'pg';
 import { createDb } from '../../src/lib/db/db';
+import { useEmbeddedPassword } from '../../src/lib/db/embedded-password';
 import { assertMigrated, createMigrator } from '../../src/lib/db/migrator';
 import { recomputeStaleMachines } from '../../src/lib/findings/findings.service';
 import { ROOT, capture, run } from './processes';
 
+/** Starts the project's own PostgreSQL (nothing to do when it runs already). */
+export function startEmbeddedServer(): void {
+  if (run('bash', [path.join(ROOT, 'scripts/db.sh'), 'start']) !== 0) throw new Error('the embedded PostgreSQL did not start (see above)');
+  // A first start writes the password file after this process read it at import: read it again.
+  useEmbeddedPassword(ROOT);
+}
+
 /** Starts the project's own PostgreSQL and makes sure database `name` exists; returns its URL. */
 export function ensureEmbeddedDatabase(name: string): string {
-  if (run('bash', [path.join(ROOT, 'scripts/db.sh'), 'start']) !== 0) throw new Error('the embedded PostgreSQL did not start (see above)');
+  startEmbeddedServer();
   if (run('bash', [path.join(ROOT, 'scripts/db.sh'), 'ensure-db', name]) !== 0) throw new Error(`could not create database ${name}`);
   return capture('bash', [path.join(ROOT, 'scripts/db.sh'), 'url', name]);
 }
@@ -19,8 +27,9 @@ export function dropEmbeddedDatabase(name: string): void {
   run('bash', [path.join(ROOT, 'scripts/db.sh'), 'drop-db', name], { stdio: ['ignore', 'ignore', 'inherit'] });
 }
 
-/** Recreates database `name` empty on the embedded server. */
+/** Recreates database `name` empty on the embedded server (starting the server first, so the drop can run). */
 export function recreateEmbeddedDatabase(name: string): string {
+  startEmbeddedServer();
   dropEmbeddedDatabase(name);
   return ensureEmbeddedDatabase(name);
 }

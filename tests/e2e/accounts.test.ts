@@ -1,4 +1,4 @@
-// Accounts end to end in Chromium against the built server, and the attacks of issue 3 by plain fetch.
+// Accounts end to end in Chromium against the built server, and attacks on the account routes by plain fetch.
 import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
 import type { Browser } from 'playwright-core';
 import type { Kysely } from 'kysely';

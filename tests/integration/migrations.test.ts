@@ -5,20 +5,18 @@ import { sql } from 'kysely';
 import { afterAll, describe, expect, test } from 'vitest';
 import { createDb } from '~/lib/db/db';
 import { assertMigrated, createMigrator } from '~/lib/db/migrator';
+import { dropEmbeddedDatabase, recreateEmbeddedDatabase } from '../../scripts/lib/database';
 import { TEST_DATABASE } from './test-database';
-import { execFileSync } from 'node:child_process';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 const folder = path.join(root, 'migrations');
 const scratch = `${TEST_DATABASE.name}_migrations`;
 
 describe('migrations', () => {
-  execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'drop-db', scratch]);
-  execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'ensure-db', scratch]);
-  const db = createDb(TEST_DATABASE.url().replace(/\/[^/]+$/, `/${scratch}`), { max: 2 });
+  const db = createDb(recreateEmbeddedDatabase(scratch), { max: 2 });
   afterAll(async () => {
     await db.destroy();
-    execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'drop-db', scratch], { stdio: 'ignore' });
+    dropEmbeddedDatabase(scratch);
   });
 
   const tableCount = async () =>

@@ -293,7 +293,7 @@ export const ROLE_MATRIX: MatrixRow[] = [
     json: { productName: 'Matrix put target', KV100: 14.5 }, expect: memberApi },
   { route: '/api/oil-references/[id]', method: 'DELETE', path: async (ctx) => `/api/oil-references/${await crewOilReference(ctx)}`, expect: memberApi },
 
-  // Reading side (issue 7): overview, rules, oil tools, trends and the readings export.
+  // Reading side: overview, rules, oil tools, trends and the readings export.
   { route: '/overview', method: 'GET', path: '/overview', expect: signedInPage, note: 'each visitor sees their own crew' },
   { route: '/rules', method: 'GET', path: '/rules', expect: all(200), note: 'how findings are made is public' },
   { route: '/tools', method: 'GET', path: '/tools?tool=vi&kv40=100&kv100=11', expect: all(200), note: 'the calculators need no account' },
@@ -302,7 +302,7 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { route: '/api/exports/readings.csv', method: 'GET', path: '/api/exports/readings.csv', expect: { ...all(200), anonymous: 401 }, note: 'the own crew’s readings' },
   { route: '/api/exports/readings.csv', method: 'GET', path: async (ctx) => `/api/exports/readings.csv?machine=${await riderMachine(ctx)}`, expect: memberApi },
 
-  // Reviews (issue 7): leads and mechanics write notes and decide calls, as JSON or as the sample page's
+  // Reviews: leads and mechanics write notes and decide calls, as JSON or as the sample page's
   // plain forms. A signed-out browser's form goes to sign in; a JSON call gets 401.
   { route: '/api/reviews/[sampleId]/notes', method: 'POST', path: async (ctx) => `/api/reviews/${await riderSample(ctx)}/notes`, json: { body: 'Matrix note' },
     expect: { anonymous: 401, rider: 403, mechanic: 201, lead: 201, otherLead: 404 } },
@@ -324,7 +324,7 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { route: '/404', method: 'GET', path: '/404', expect: all(404) },
   { route: '/forbidden', method: 'GET', path: '/forbidden?reason=add-machine', expect: all(403), note: 'the 403 page pages rewrite to' },
 
-  // Alerts and reminders (issue 8): preferences of one's own account; the unsubscribe page and one-click
+  // Alerts and reminders: preferences of one's own account; the unsubscribe page and one-click
   // endpoint work without a session (the signed token is the proof), so every visitor gets the same answer.
   { route: '/account/notifications', method: 'GET', path: '/account/notifications', expect: signedInPage },
   { route: '/account/notifications', method: 'POST', path: '/account/notifications', form: { action: 'save' }, expect: all(303),
@@ -337,7 +337,7 @@ export const ROLE_MATRIX: MatrixRow[] = [
   { route: '/api/unsubscribe', method: 'POST', path: '/api/unsubscribe?token=not-a-real-token', form: { 'List-Unsubscribe': 'One-Click' }, expect: all(400) },
   { route: '/api/unsubscribe', method: 'GET', path: '/api/unsubscribe?token=x', expect: all(303), note: 'a GET only leads to the page that asks' },
 
-  // Lab import (issue 6): leads and mechanics upload, preview and confirm; the crew is always the session's.
+  // Lab import: leads and mechanics upload, preview and confirm; the crew is always the session's.
   { route: '/imports', method: 'GET', path: '/imports', expect: signedInPage, note: 'a rider sees why they cannot import' },
   { route: '/imports/[id]', method: 'GET', path: async (ctx) => `/imports/${await crewLabFile(ctx)}`, expect: importerPage },
   { route: '/imports/[id]', method: 'POST', path: async (ctx) => `/imports/${await crewLabFile(ctx)}`, form: { action: 'check' }, expect: importerPage },

@@ -8,7 +8,7 @@ import { listMachinesForDue, listOpenFindings, listOverdueShipments, listSamples
 import { groupFindingsByMachine } from './home-cards';
 import { describeOverdue } from '../words/words';
 
-/** Shipped samples without results after this many days surface on the home page (PRODUCT.md, issue 7). */
+/** Shipped samples without results after this many days surface on the home page (a product rule, no published source). */
 export const SHIPPED_OVERDUE_DAYS = 21;
 
 export interface DueMachine {

@@ -48,6 +48,7 @@ function fail(code: DecodeLabFileErrorCode, message: string): { error: DecodeLab
 /** True when the text holds control characters that never occur in a CSV (NUL aside, checked earlier). */
 function hasBinaryControls(text: string): boolean {
   // Tab, LF, CR and form feed are text; the other C0 controls and DEL mean this is not a text file.
+  // eslint-disable-next-line no-control-regex -- the control characters are what this pattern looks for
   return /[\u0001-\u0008\u000b\u000e-\u001a\u001c-\u001f\u007f]/.test(text);
 }
 

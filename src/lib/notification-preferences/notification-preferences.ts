@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import type { NotificationDelivery, NotificationKind } from '../db/database';
 
-// The kinds of e-mail Sumpwise sends on its own (issue 8) and how each may be delivered. Account e-mails
+// The kinds of e-mail Sumpwise sends on its own and how each may be delivered. Account e-mails
 // (verification, password reset, invitations) are not here: they answer something the user just did.
 
 export type { NotificationDelivery, NotificationKind };

@@ -8,8 +8,8 @@ import type { JobRegistration } from './job-queue';
 import type { LabMailJobOptions } from '../lab-mail/lab-mail-jobs';
 import { registerRateLimitJobs } from '../rate-limit/rate-limit-jobs';
 
-// Every job family the worker runs is registered here. Issue 8 (reminders, digests) adds its queues and
-// pg-boss schedules (`boss.schedule(name, cron)`) as further entries, each returning a JobRegistration.
+// Every job family the worker runs is registered here: its queues and pg-boss schedules
+// (`boss.schedule(name, cron)`), each entry returning a JobRegistration.
 
 export interface JobDependencies {
   db: Kysely<Database>;

@@ -4,10 +4,10 @@
  */
 import { countDaysBetween } from '../home/odometer-estimate';
 
-/** A shipped bottle without results after this many days gets a reminder (issue 8; the home page uses the same 21). */
+/** A shipped bottle without results after this many days gets a reminder (a product rule; the home page uses the same 21). */
 export { SHIPPED_OVERDUE_DAYS } from '../home/home.service';
 
-/** An invitation not accepted after this many days reminds the crew's leads (issue 8). */
+/** An invitation not accepted after this many days reminds the crew's leads (a product rule, no published source). */
 export const INVITATION_PENDING_DAYS = 7;
 
 /**

@@ -13,9 +13,7 @@ import { LIMIT_RULES, createRateLimits } from '~/lib/rate-limit/rate-limits';
 import { deleteExpiredRateLimits } from '~/lib/rate-limit/rate-limits.repository';
 
 const db = openTestDb();
-let deps: AuthDeps;
-let pool: pg.Pool;
-({ deps, pool } = makeAuthDeps(db));
+const { deps, pool }: { deps: AuthDeps; pool: pg.Pool } = makeAuthDeps(db);
 afterAll(async () => { await pool.end(); await db.destroy(); });
 beforeEach(async () => { await truncateAll(db); });
 

@@ -11,9 +11,7 @@ import { hashToken } from '~/lib/auth/tokens';
 import { findMembershipsForUser } from '~/lib/crews/crews.repository';
 
 const db = openTestDb();
-let deps: AuthDeps;
-let pool: pg.Pool;
-({ deps, pool } = makeAuthDeps(db));
+const { deps, pool }: { deps: AuthDeps; pool: pg.Pool } = makeAuthDeps(db);
 afterAll(async () => { await pool.end(); await db.destroy(); });
 beforeEach(async () => { await truncateAll(db); });
 

@@ -13,9 +13,7 @@ import { findMembership, findMembershipsForUser } from '~/lib/crews/crews.reposi
 import { listCrewAuditEvents } from '~/lib/audit/audit.repository';
 
 const db = openTestDb();
-let deps: AuthDeps;
-let pool: pg.Pool;
-({ deps, pool } = makeAuthDeps(db));
+const { deps, pool }: { deps: AuthDeps; pool: pg.Pool } = makeAuthDeps(db);
 afterAll(async () => { await pool.end(); await db.destroy(); });
 beforeEach(async () => { await truncateAll(db); });
 const meta = { ip: '192.0.2.20' }; // RFC 5737 documentation address

@@ -3,7 +3,7 @@ import {
   INVITATION_PENDING_DAYS, SHIPPED_OVERDUE_DAYS, addDays, buildSampleDueKey, checkInvitationPending, checkShippedOverdue, deriveSampleTarget,
 } from '~/lib/reminders/reminder-rules';
 
-// The 21 and 7 days are the issue's figures (issue 8), product rules rather than published values.
+// The 21 and 7 days are product rules, no published source.
 describe('reminder thresholds', () => {
   test('are the issue\'s 21 and 7 days', () => {
     expect(SHIPPED_OVERDUE_DAYS).toBe(21);

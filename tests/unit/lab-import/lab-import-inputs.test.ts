@@ -1,4 +1,4 @@
-// The request-side helpers of the lab import: pure, so they run without the database despite living here.
+// The request-side helpers of the lab import: pure, so they run without the database.
 import { describe, expect, test } from 'vitest';
 import { computeHeaderSignature, rowDecisionSchema } from '~/lib/lab-import/lab-import';
 import { wantsPage } from '~/lib/http/form';

@@ -4,7 +4,7 @@ import { readdirSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, test } from 'vitest';
-import { ROLE_MATRIX, VISITORS } from './role-matrix.routes';
+import { ROLE_MATRIX, VISITORS } from '../integration/role-matrix.routes';
 
 const pagesDir = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../src/pages');
 
