@@ -10,7 +10,7 @@ import { ELEMENT_CODES } from '~/lib/analysis/measurands';
 import { parseLabCsv } from '~/lib/lab-csv/lab-csv';
 
 const ROWS = 10_000;
-const RUNS = 7;
+const RUNS = Number(process.env.BENCH_RUNS ?? 7);
 
 /** Deterministic pseudo-random numbers (mulberry32), so every run parses the same file. */
 function createRandom(seed: number): () => number {

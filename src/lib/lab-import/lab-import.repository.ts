@@ -469,21 +469,19 @@ export interface BandInsert extends StoredBand {
   sourceMachines: number | null;
 }
 
-/** Replace the stored baseline bands of these samples (the bands the rules used). */
+/** Replace the stored baseline bands of these samples (the bands the rules used), written with COPY in the caller's transaction. */
 export async function replaceBands(db: Db, sampleIds: readonly string[], rows: readonly BandInsert[]): Promise<void> {
   if (sampleIds.length === 0) return;
   await db.deleteFrom('baseline_bands').where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`).execute();
-  const CHUNK = 10_000;
-  for (let from = 0; from < rows.length; from += CHUNK) {
-    const part = rows.slice(from, from + CHUNK);
-    const col = <T,>(f: (b: BandInsert) => T) => sql.val(part.map(f));
-    await sql`
-      insert into baseline_bands (sample_id, measurand, basis, n, mean, lower_edge, watch_above, act_from, to_reported, source, source_label, source_machines)
-      select * from unnest(${col((b) => b.sampleId)}::uuid[], ${col((b) => b.measurand)}::text[], ${col((b) => b.basis)}::text[],
-                           ${col((b) => b.n)}::int[], ${col((b) => b.mean)}::float8[], ${col((b) => b.lower)}::float8[],
-                           ${col((b) => b.watchAbove)}::float8[], ${col((b) => b.actFrom)}::float8[], ${col((b) => b.toReported)}::float8[],
-                           ${col((b) => b.source)}::text[], ${col((b) => b.sourceLabel)}::text[], ${col((b) => b.sourceMachines)}::int[])`.execute(db);
-  }
+  if (rows.length === 0) return;
+  await copyRows(
+    db,
+    'baseline_bands',
+    ['sample_id', 'measurand', 'basis', 'n', 'mean', 'lower_edge', 'watch_above', 'act_from', 'to_reported', 'source', 'source_label', 'source_machines'],
+    (function* bandLines(): Generator<CopyValue[]> {
+      for (const b of rows) yield [b.sampleId, b.measurand, b.basis, b.n, b.mean, b.lower, b.watchAbove, b.actFrom, b.toReported, b.source, b.sourceLabel, b.sourceMachines];
+    })(),
+  );
 }
 
 /** Records which engine version judged a machine's stored results. */
