@@ -1,7 +1,8 @@
 import { gunzipSync } from 'node:zlib';
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import type { CrewMembership, SessionUser } from '~/lib/auth/types';
-import type { Database } from '~/lib/db/database';
+import type { Insertable } from 'kysely';
+import type { BaselineBandsTable } from '~/lib/db/database';
 import { expandTrendResponse, type CompactTrendResponse } from '~/lib/trends/trend-compact';
 import { answerTrendRequest } from '~/lib/trends/trends.routes';
 import { openTestDb, truncateAll } from '../test-database';
@@ -35,7 +36,7 @@ async function machineWithHistory(count: number) {
     odometer: 1000 + i * 1500,
     readings: { Fe: Math.round((20 + 8 * Math.sin(i)) * 10) / 10, Al: 3 + (i % 4), Si: 6 + (i % 5) },
   })));
-  const bands: Database['baseline_bands'][] = [];
+  const bands: Insertable<BaselineBandsTable>[] = [];
   ids.forEach((sampleId, i) => {
     if (i < 4) return;
     for (const [measurand, mean] of [['Fe', 20.137], ['Al', 4.513], ['Si', 8.071]] as const) {
@@ -120,7 +121,7 @@ describe('GET /api/trends/[machineId]', () => {
     const other = await makeCrewWithRoles(db, 'Other');
     const own = await answerTrendRequest(db, { request: request(machine.id), machineId: machine.id, locals: localsOf(c.rider.id, c.crew.id) });
     const etag = own.headers.get('etag')!;
-    for (const headers of [{}, { 'if-none-match': etag }, { 'if-none-match': '*' }]) {
+    for (const headers of [{}, { 'if-none-match': etag }, { 'if-none-match': '*' }] as Record<string, string>[]) {
       const res = await answerTrendRequest(db, { request: request(machine.id, headers), machineId: machine.id, locals: localsOf(other.rider.id, other.crew.id) });
       expect(res.status).toBe(404);
       expect(res.headers.get('etag')).toBeNull();
