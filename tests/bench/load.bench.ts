@@ -2,8 +2,10 @@
  * Mixed load on loopback: 50 connections (autocannon, programmatic) for 60 s (LOAD_SECONDS to shorten) against the
  * built app, each connection a lead of an invented crew of its own who signs in once per cycle and then reads the
  * home page, the machine page and the wear chart's trend endpoint, and imports a one-row lab file (upload, then
- * confirm). Beside it, the floor: GET /api/health alone for 10 s at the same concurrency. Prints JSON: counts by
- * status class (429 apart), p50/p95/p99 per kind and overall, throughput, and ratios against the floor. No assertion.
+ * confirm), each from an address of its own behind one trusted proxy. Beside it, the floor: GET /api/health alone
+ * for 10 s at the same concurrency. Run once with one app process and once with one per core. Prints JSON: counts
+ * by status class (429 apart), p50/p95/p99 per kind and overall, throughput, ratios against the floor, and the
+ * throughput of all cores against one process. No assertion.
  * Run: node --import tsx tests/bench/load.bench.ts
  */
 import { createRequire } from 'node:module';
@@ -72,6 +74,7 @@ function runAutocannon(opts: Record<string, unknown>, onResponse: (status: numbe
 /** One run of the mixed load and its floor against the built app started with `processes` app processes. */
 async function runLoad(processes: number) {
   process.env.APP_PROCESSES = String(processes);
+  process.env.TRUST_PROXY = '1';
   const app = await startApp('sumpwise_bench_load', { seed: false });
   const db = createDb(app.databaseUrl, { max: 4 });
   try {
@@ -140,7 +143,10 @@ async function runLoad(processes: number) {
         }
       },
     });
-    const withCookie = (ctx: AcContext): Record<string, string> => (ctx.cookie ? { cookie: ctx.cookie } : {});
+    // Each rider on an address of their own, as behind one trusted proxy: the sign-in limit per address (credential
+    // stuffing) would otherwise count the whole bench as one client.
+    const addressOf = (n: number) => `10.77.${n >> 8}.${n & 255}`;
+    const withCookie = (ctx: AcContext): Record<string, string> => ({ 'x-forwarded-for': addressOf(ctx.n ?? 0), ...(ctx.cookie ? { cookie: ctx.cookie } : {}) });
     const BOUNDARY = '----sumpwiseLoadBench';
     const requests: AcRequest[] = CYCLE.map((kind, index) => {
       switch (kind) {
