@@ -144,6 +144,33 @@ const SET_READING: Readonly<Record<MeasurandCode, ReadingSetter>> = {
   OXI: (o, r) => { o.OXI = r; }, NIT: (o, r) => { o.NIT = r; },
 };
 
+/** Distinct cell texts kept per file; past this a file of all-different figures just allocates (common practice, no published source). */
+const MAX_PLAIN_READINGS = 65_536;
+
+/**
+ * The readings of fast-path cells by their text, one frozen object per distinct text in a file. A lab's figures
+ * repeat ("<1" in every clean column, whole ppm, one decimal), so a 10,000-row file reads a few thousand texts
+ * instead of 270,000 cells and keeps as many objects; frozen, so no reader of the result can change one row's
+ * reading through another's. `get` answers undefined for a text that is not plain (see plain-cells.ts).
+ */
+class PlainReadings {
+  private readonly byText = new Map<string, LabReading | null>();
+
+  constructor(private readonly mark: DecimalMark) {}
+
+  get(cell: string): LabReading | undefined {
+    const known = this.byText.get(cell);
+    if (known !== undefined) return known ?? undefined;
+    const first = cell.charCodeAt(0);
+    const notDetected = isBareNotDetected(cell);
+    const qualifier: Qualifier | undefined = first === 60 || notDetected ? '<' : first === 62 ? '>' : undefined;
+    const value = notDetected ? 0 : parsePlainNumber(cell, this.mark, qualifier === undefined ? 0 : 1);
+    const reading = Number.isNaN(value) ? null : Object.freeze(qualifier === undefined ? { value } : { value, qualifier });
+    if (this.byText.size < MAX_PLAIN_READINGS) this.byText.set(cell, reading);
+    return reading ?? undefined;
+  }
+}
+
 /** Longest bottle code accepted; lab kit numbers and Sumpwise codes are far shorter. */
 const MAX_BOTTLE_CODE_LENGTH = 64;
 
@@ -624,6 +651,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
   }
 
   const rows: LabCsvRow[] = [];
+  const readings = new PlainReadings(decimalMark);
   const bottleLines = new Map<string, number>();
   const pendingDates = new Map<number, PendingDate[]>();
   const width = headerCells.length;
@@ -707,14 +735,11 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     for (const plan of measurands) {
       const cell = cells[plan.index] ?? '';
       if (plan.fast) {
-        // Plain numbers, "<1"/">1000" and a bare "ND" are read here without a regex; anything else, or a value
-        // out of bounds (for its message), goes through the full reader below.
-        const first = cell.charCodeAt(0);
-        const notDetected = isBareNotDetected(cell);
-        const qualifier: Qualifier | undefined = first === 60 || notDetected ? '<' : first === 62 ? '>' : undefined;
-        const plainValue = notDetected ? 0 : parsePlainNumber(cell, decimalMark, qualifier === undefined ? 0 : 1);
-        if (plainValue <= plan.bounds.max) {
-          plan.set(row.readings, qualifier === undefined ? { value: plainValue } : { value: plainValue, qualifier });
+        // Plain numbers, "<1"/">1000" and a bare "ND" are read here without a regex, once per distinct text; anything
+        // else, or a value out of bounds (for its message), goes through the full reader below.
+        const reading = readings.get(cell);
+        if (reading !== undefined && reading.value <= plan.bounds.max) {
+          plan.set(row.readings, reading);
           readingCount += 1;
           continue;
         }
