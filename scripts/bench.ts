@@ -10,6 +10,9 @@ const dir = path.join(ROOT, 'tests/bench');
 const only = process.argv.slice(2);
 const files = readdirSync(dir).filter((f) => f.endsWith('.bench.ts') && (only.length === 0 || only.some((o) => f.includes(o)))).sort();
 const rows: [string, string, string][] = [];
+/** One line per limit a benchmark checks: what, result, its floor measured in the same run, the ratio, the limit. */
+interface SummaryRow { what: string; result: string; floor: string; ratio: number | null; limit: string; ok: boolean }
+const summary: [string, SummaryRow][] = [];
 let failures = 0;
 
 /** The last JSON object printed, on one line or pretty-printed over several (from a line starting with '{'). */
@@ -45,14 +48,23 @@ for (const file of files) {
     rows.push([name, 'error', (String(result.stderr).trim().split('\n').pop() ?? `exit ${result.status}`).slice(0, 120)]);
     continue;
   }
+  if (Array.isArray(json.summary)) for (const row of json.summary as SummaryRow[]) summary.push([name, row]);
+  const { summary: _summary, ...figures } = json;
   const flat: [string, string][] = [];
-  flatten('', json, flat);
+  flatten('', figures, flat);
   for (const [k, v] of flat) rows.push([name, k, v]);
 }
 
 const cpu = os.cpus()[0]?.model ?? 'unknown CPU';
 const header = `Machine: ${os.cpus().length} × ${cpu}, ${(os.totalmem() / 2 ** 30).toFixed(0)} GiB, Node.js ${process.version}, ${new Date().toISOString().slice(0, 10)}`;
-const table = ['| benchmark | figure | value |', '| --- | --- | --- |', ...rows.map((r) => `| ${r.join(' | ')} |`)].join('\n');
+const summaryTable = [
+  '| benchmark | what | result | floor in the same run | ratio | limit | |',
+  '| --- | --- | --- | --- | --- | --- | --- |',
+  ...summary.map(([name, r]) => `| ${name} | ${r.what} | ${r.result} | ${r.floor} | ${r.ratio === null ? '—' : `${r.ratio} ×`} | ${r.limit} | ${r.ok ? '✔' : '✘'} |`),
+].join('\n');
+const detail = ['| benchmark | figure | value |', '| --- | --- | --- |', ...rows.map((r) => `| ${r.join(' | ')} |`)].join('\n');
+// The load average says how busy the machine was: other work on it inflates every timing.
+const table = `${summaryTable}\n\nLoad average (1 min) at the end: ${os.loadavg()[0]!.toFixed(2)}\n\n${detail}`;
 console.log(`${header}\n\n${table}`);
 mkdirSync(path.join(ROOT, 'tests/bench/results'), { recursive: true });
 writeFileSync(path.join(ROOT, 'tests/bench/results/latest.md'), `${header}\n\n${table}\n`);

@@ -10,7 +10,7 @@ import { ELEMENT_CODES } from '~/lib/analysis/measurands';
 import { parseLabCsv } from '~/lib/lab-csv/lab-csv';
 
 const ROWS = 10_000;
-const RUNS = 7;
+const RUNS = Number(process.env.BENCH_RUNS ?? 7);
 
 /** Deterministic pseudo-random numbers (mulberry32), so every run parses the same file. */
 function createRandom(seed: number): () => number {
@@ -86,6 +86,15 @@ for (const delimiter of [',', ';'] as const) {
     ratioOfMin: Number((readerMs.min / papaMs.min).toFixed(2)),
   };
 }
+// The limit: the reader within 2 × papaparse on the same text (median of the runs, both layouts).
+const TARGET_RATIO = 2;
+figures.summary = (['comma', 'semicolonDecimalComma'] as const).map((layout) => {
+  const f = figures[layout] as { papaparseMs: number; parseLabCsvMs: number; ratio: number };
+  return {
+    what: `lab CSV reader, ${ROWS.toLocaleString('en-US')} rows × 30 columns, ${layout === 'comma' ? 'comma' : 'semicolon and decimal comma'}`,
+    result: `${f.parseLabCsvMs} ms`, floor: `papaparse ${f.papaparseMs} ms`, ratio: f.ratio, limit: `≤ ${TARGET_RATIO} ×`, ok: f.ratio <= TARGET_RATIO,
+  };
+});
 // maxRSS is in kibibytes (Node.js process.resourceUsage()).
 figures.peakRssMb = Number((process.resourceUsage().maxRSS / 1024).toFixed(1));
 figures.node = process.version;

@@ -1,7 +1,9 @@
 /**
- * Trend endpoint under load: GET /api/trends/[machineId] for a machine with 200 samples (30 readings each),
- * 20 concurrent clients on loopback for 10 s against the built server. Prints one JSON line (p50/p95/p99 in ms);
- * no assertion. Run: node --import tsx tests/bench/trend.bench.ts
+ * Trend endpoint under load: GET /api/trends/[machineId] for a machine with 200 samples (30 readings each), three
+ * elements, 20 concurrent clients on loopback for 10 s against the built server, beside its floor measured in the
+ * same run: GET /api/health (one cheap database round trip) at the same concurrency. Also the size of one answer
+ * as sent with gzip accepted. Prints JSON with a summary (limits: trend p95 within 3 × health p95, answer under
+ * 40 KB); no assertion. Run: node --import tsx tests/bench/trend.bench.ts
  */
 import { performance } from 'node:perf_hooks';
 import { openBenchApp, quantile, seedBenchMachine } from './bench-app';
@@ -9,17 +11,14 @@ import { openBenchApp, quantile, seedBenchMachine } from './bench-app';
 const SAMPLES = 200;
 const CONCURRENCY = Number(process.env.BENCH_CONCURRENCY ?? 20);
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 10);
+/** Limits of this benchmark. */
+const TARGET_P95_RATIO = 3;
+const TARGET_BYTES = 40 * 1024;
 
-const app = await openBenchApp('sumpwise_bench_trend');
-try {
-  const { cookie, machineId } = await seedBenchMachine(app.db, SAMPLES);
-  const url = `${app.baseUrl}/api/trends/${machineId}?measurands=Fe,Al,Si&basis=ppm&x=odometer`;
-  const first = await fetch(url, { headers: { cookie } });
-  const body = (await first.json()) as { series?: { points: unknown[] }[] };
-  if (first.status !== 200 || body.series?.[0]?.points.length !== SAMPLES) throw new Error(`warm-up answered ${first.status} with ${body.series?.[0]?.points.length} points`);
-  const bytes = JSON.stringify(body).length;
-  for (let i = 0; i < 20; i++) await (await fetch(url, { headers: { cookie } })).arrayBuffer();
+const r1 = (v: number) => Math.round(v * 10) / 10;
 
+/** CONCURRENCY clients asking `url` for SECONDS: latencies (ms) and errors. */
+async function hammer(url: string, headers: Record<string, string>) {
   const latencies: number[] = [];
   let errors = 0;
   const end = performance.now() + SECONDS * 1000;
@@ -27,7 +26,7 @@ try {
     while (performance.now() < end) {
       const t0 = performance.now();
       try {
-        const res = await fetch(url, { headers: { cookie } });
+        const res = await fetch(url, { headers });
         await res.arrayBuffer();
         if (res.status !== 200) errors++;
       } catch {
@@ -40,11 +39,41 @@ try {
   await Promise.all(Array.from({ length: CONCURRENCY }, worker));
   const elapsed = (performance.now() - started) / 1000;
   latencies.sort((a, b) => a - b);
+  return {
+    requests: latencies.length, errors, requestsPerSecond: Math.round(latencies.length / elapsed),
+    p50Ms: r1(quantile(latencies, 0.5)), p95Ms: r1(quantile(latencies, 0.95)), p99Ms: r1(quantile(latencies, 0.99)), maxMs: r1(latencies.at(-1)!),
+  };
+}
+
+const app = await openBenchApp('sumpwise_bench_trend');
+try {
+  const { cookie, machineId } = await seedBenchMachine(app.db, SAMPLES);
+  const url = `${app.baseUrl}/api/trends/${machineId}?measurands=Fe,Al,Si&basis=ppm&x=odometer`;
+  // What a browser sends: gzip accepted. fetch unpacks the body; content-length is the size on the wire.
+  const headers = { cookie, 'accept-encoding': 'gzip, deflate, br' };
+  const first = await fetch(url, { headers });
+  const sentBytes = Number(first.headers.get('content-length'));
+  const text = await first.text();
+  const body = JSON.parse(text) as { samples?: { id: unknown[] } };
+  if (first.status !== 200 || body.samples?.id.length !== SAMPLES) throw new Error(`warm-up answered ${first.status} with ${body.samples?.id.length} samples`);
+  const etag = first.headers.get('etag') ?? '';
+  const revalidated = await fetch(url, { headers: { ...headers, 'if-none-match': etag } });
+  await revalidated.arrayBuffer();
+  for (let i = 0; i < 20; i++) await (await fetch(url, { headers })).arrayBuffer();
+
+  // The floor first, then the trend, each on a warm server.
+  const health = await hammer(`${app.baseUrl}/api/health`, {});
+  const trend = await hammer(url, headers);
+  const p95Ratio = Math.round((trend.p95Ms / health.p95Ms) * 100) / 100;
   console.log(JSON.stringify({
-    samples: SAMPLES, measurands: 3, concurrency: CONCURRENCY, seconds: Math.round(elapsed * 10) / 10, requests: latencies.length, errors,
-    requestsPerSecond: Math.round(latencies.length / elapsed), responseBytes: bytes,
-    p50Ms: Math.round(quantile(latencies, 0.5) * 10) / 10, p95Ms: Math.round(quantile(latencies, 0.95) * 10) / 10,
-    p99Ms: Math.round(quantile(latencies, 0.99) * 10) / 10, maxMs: Math.round(latencies.at(-1)! * 10) / 10,
+    samples: SAMPLES, measurands: 3, concurrency: CONCURRENCY, seconds: SECONDS,
+    trend, health,
+    response: { sentBytes, encoding: first.headers.get('content-encoding'), jsonBytes: Buffer.byteLength(text), unchangedAnswers: revalidated.status },
+    p95RatioToHealth: p95Ratio,
+    summary: [
+      { what: `trend endpoint, 200 samples × 3 elements, ${CONCURRENCY} clients`, result: `p95 ${trend.p95Ms} ms (${trend.requestsPerSecond} req/s, ${trend.errors} errors)`, floor: `GET /api/health p95 ${health.p95Ms} ms`, ratio: p95Ratio, limit: `≤ ${TARGET_P95_RATIO} ×`, ok: p95Ratio <= TARGET_P95_RATIO && trend.errors === 0 },
+      { what: 'trend answer as sent (gzip accepted)', result: `${(sentBytes / 1024).toFixed(1)} KB (${(Buffer.byteLength(text) / 1024).toFixed(1)} KB of JSON); unchanged: ${revalidated.status}`, floor: '—', ratio: null, limit: '< 40 KB', ok: sentBytes < TARGET_BYTES && revalidated.status === 304 },
+    ],
   }));
 } finally {
   await app.stop();

@@ -19,6 +19,7 @@ import {
 } from 'chart.js';
 import { Line } from 'react-chartjs-2';
 import { MEASURANDS } from '~/lib/analysis/measurands';
+import { expandTrendResponse, type CompactTrendResponse } from '~/lib/trends/trend-compact';
 import { PICKER_GROUPS, type TrendAxis, type TrendBasis, type TrendResponse } from '~/lib/trends/trend-types';
 import { buildChartDatasets, buildGradeMarks, type XYPoint } from './chart-data';
 import { LEVEL_COLOURS, SERIES_COLOURS, pointRadiusFor, pointStyleFor, withAlpha } from './chart-styles';
@@ -93,9 +94,9 @@ export default function WearChart({ machineId, initial }: Props) {
     const q = new URLSearchParams({ measurands: codes.join(','), basis, x: axis });
     fetch(`/api/trends/${encodeURIComponent(machineId)}?${q}`, { signal: controller.signal, headers: { accept: 'application/json' } })
       .then(async (res) => {
-        const body = (await res.json()) as TrendResponse | { error: { message: string } };
+        const body = (await res.json()) as CompactTrendResponse | { error: { message: string } };
         if (!res.ok || 'error' in body) throw new Error('error' in body ? body.error.message : `The server answered ${res.status}.`);
-        setState({ status: 'ready', data: body });
+        setState({ status: 'ready', data: expandTrendResponse(body) });
       })
       .catch((e: unknown) => {
         if (controller.signal.aborted) return;

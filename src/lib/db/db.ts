@@ -1,5 +1,6 @@
 import { Kysely, PostgresDialect } from 'kysely';
 import pg from 'pg';
+import { CopyingClient } from './copy';
 import type { Database } from './database';
 import './embedded-password';
 
@@ -15,6 +16,8 @@ export function createPool(connectionString: string, options: { max?: number } =
     max: options.max ?? 10,
     connectionTimeoutMillis: 5_000,
     idleTimeoutMillis: 30_000,
+    // pg's client that also runs COPY FROM STDIN for copyRows (copy.ts), on the caller's connection.
+    Client: CopyingClient,
   });
   // An idle client losing its server (a restart) must not crash the process; the pool drops it. A client
   // whose connection is killed mid-query also emits 'error' after the query has failed: swallow that too.

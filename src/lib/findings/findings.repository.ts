@@ -4,6 +4,7 @@
  * Each function takes `db` or a transaction first.
  */
 import { sql, type Kysely, type Transaction } from 'kysely';
+import { copyRows, type CopyValue } from '../db/copy';
 import type { Database, IntervalCallKind, Level } from '../db/database';
 import type { StoredBand } from '../trends/trend-types';
 import type { FindingsSample, StoredFinding, StoredReading, StoredSampleBand } from './findings-view';
@@ -158,18 +159,17 @@ export async function replaceFindings(db: Db, sampleIds: readonly string[], rows
   await insertFindings(db, rows);
 }
 
-/** The one statement that writes findings (column arrays: one statement per 10,000 findings). */
+/** The one statement that writes findings: COPY on the caller's connection (inside its transaction). */
 export async function insertFindings(db: Db, rows: readonly FindingInsert[]): Promise<number> {
-  const CHUNK = 10_000;
-  for (let from = 0; from < rows.length; from += CHUNK) {
-    const part = rows.slice(from, from + CHUNK);
-    await sql`
-      insert into findings (sample_id, measurand, level, rule_id, numbers, sentence)
-      select s, m, l, r, n::jsonb, t
-      from unnest(${sql.val(part.map((f) => f.sampleId))}::uuid[], ${sql.val(part.map((f) => f.measurand))}::text[],
-                  ${sql.val(part.map((f) => f.level))}::text[], ${sql.val(part.map((f) => f.ruleId))}::text[],
-                  ${sql.val(part.map((f) => JSON.stringify(f.numbers)))}::text[], ${sql.val(part.map((f) => f.sentence))}::text[]) as x(s, m, l, r, n, t)`.execute(db);
-  }
+  if (rows.length === 0) return 0;
+  await copyRows(
+    db,
+    'findings',
+    ['sample_id', 'measurand', 'level', 'rule_id', 'numbers', 'sentence'],
+    (function* findingLines(): Generator<CopyValue[]> {
+      for (const f of rows) yield [f.sampleId, f.measurand, f.level, f.ruleId, JSON.stringify(f.numbers), f.sentence];
+    })(),
+  );
   return rows.length;
 }
 
@@ -215,17 +215,16 @@ export interface BandInsert extends StoredBand {
 export async function replaceBands(db: Db, sampleIds: readonly string[], rows: readonly BandInsert[]): Promise<void> {
   if (sampleIds.length === 0) return;
   await db.deleteFrom('baseline_bands').where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`).execute();
-  const CHUNK = 10_000;
-  for (let from = 0; from < rows.length; from += CHUNK) {
-    const part = rows.slice(from, from + CHUNK);
-    const col = <T,>(f: (b: BandInsert) => T) => sql.val(part.map(f));
-    await sql`
-      insert into baseline_bands (sample_id, measurand, basis, n, mean, lower_edge, watch_above, act_from, to_reported, source, source_label, source_machines)
-      select * from unnest(${col((b) => b.sampleId)}::uuid[], ${col((b) => b.measurand)}::text[], ${col((b) => b.basis)}::text[],
-                           ${col((b) => b.n)}::int[], ${col((b) => b.mean)}::float8[], ${col((b) => b.lower)}::float8[],
-                           ${col((b) => b.watchAbove)}::float8[], ${col((b) => b.actFrom)}::float8[], ${col((b) => b.toReported)}::float8[],
-                           ${col((b) => b.source)}::text[], ${col((b) => b.sourceLabel)}::text[], ${col((b) => b.sourceMachines)}::int[])`.execute(db);
-  }
+  if (rows.length === 0) return;
+  // As many bands as readings: COPY, like the readings.
+  await copyRows(
+    db,
+    'baseline_bands',
+    ['sample_id', 'measurand', 'basis', 'n', 'mean', 'lower_edge', 'watch_above', 'act_from', 'to_reported', 'source', 'source_label', 'source_machines'],
+    (function* bandLines(): Generator<CopyValue[]> {
+      for (const b of rows) yield [b.sampleId, b.measurand, b.basis, b.n, b.mean, b.lower, b.watchAbove, b.actFrom, b.toReported, b.source, b.sourceLabel, b.sourceMachines];
+    })(),
+  );
 }
 
 /** Records which engine version judged a machine's stored results. */

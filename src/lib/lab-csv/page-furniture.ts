@@ -27,24 +27,65 @@ function filled(cells: readonly string[]): string[] {
   return cells.map((c) => c.trim()).filter((c) => c !== '');
 }
 
+/** True when at least one cell holds more than spaces; no array is built (it runs on every row of a big file). */
+function hasFilledCell(cells: readonly string[]): boolean {
+  for (const cell of cells) if (cell.length > 0 && cell.trim() !== '') return true;
+  return false;
+}
+
+/** Filled cells, counted up to `limit` (a footer has one or two: counting further is wasted on every data row). */
+function countFilledCells(cells: readonly string[], limit: number): number {
+  let n = 0;
+  for (const cell of cells) {
+    if (cell.length > 0 && cell.trim() !== '' && ++n >= limit) break;
+  }
+  return n;
+}
+
 function fold(text: string): string {
+  // Printable ASCII without spaces folds to its lower case: NFKC leaves ASCII alone and there is no space to
+  // squeeze. Most cells of a data row are such numbers and codes, and skip the normalisation and the regex.
+  let plainAscii = true;
+  for (let i = 0; i < text.length; i += 1) {
+    const c = text.charCodeAt(i);
+    if (c <= 32 || c >= 127) {
+      plainAscii = false;
+      break;
+    }
+  }
+  if (plainAscii) return text.toLowerCase();
   return text.normalize('NFKC').trim().toLowerCase().replace(/\s+/g, ' ');
+}
+
+/** A header's filled cells folded once, with their positions, for isRepeatedHeader. */
+function foldHeader(header: readonly string[]): { index: number; folded: string }[] {
+  const out: { index: number; folded: string }[] = [];
+  header.forEach((h, index) => {
+    if (h.trim() !== '') out.push({ index, folded: fold(h) });
+  });
+  return out;
 }
 
 /** True when a row says the header again: at least two thirds of the header's filled cells, in place. */
 export function isRepeatedHeader(cells: readonly string[], header: readonly string[]): boolean {
-  let same = 0;
-  let total = 0;
-  header.forEach((h, i) => {
-    if (h.trim() === '') return;
-    total += 1;
-    if (fold(cells[i] ?? '') === fold(h)) same += 1;
-  });
-  return total >= 2 && same * 3 >= total * 2;
+  return repeatsFoldedHeader(cells, foldHeader(header));
+}
+
+function repeatsFoldedHeader(cells: readonly string[], folded: readonly { index: number; folded: string }[]): boolean {
+  const total = folded.length;
+  if (total < 2) return false;
+  // More than a third of the cells differing settles it: a data row stops after a few cells.
+  const allowedMisses = total - Math.ceil((total * 2) / 3);
+  let misses = 0;
+  for (const { index, folded: h } of folded) {
+    if (fold(cells[index] ?? '') !== h && ++misses > allowedMisses) return false;
+  }
+  return true;
 }
 
 /** True when a row is a footer line: one or two filled cells reading like a sentence or a page mark. */
 export function isFooterRow(cells: readonly string[], width: number): boolean {
+  if (countFilledCells(cells, 3) > 2) return false;
   const parts = filled(cells);
   if (parts.length === 0 || parts.length > 2 || (parts.length === 2 && width <= 3)) return false;
   const text = parts.join(', ');
@@ -66,9 +107,10 @@ export function findPageFurniture(input: FurnitureInput): FurnitureResult {
   const footers: number[] = [];
   const headers: number[] = [];
   const blanks: number[] = [];
+  const foldedHeader = foldHeader(headerCells);
   let lastFilled = -1;
   for (let r = data.length - 1; r >= firstDataRow; r -= 1) {
-    if (filled(data[r] ?? []).length > 0) {
+    if (hasFilledCell(data[r] ?? [])) {
       lastFilled = r;
       break;
     }
@@ -76,15 +118,15 @@ export function findPageFurniture(input: FurnitureInput): FurnitureResult {
   for (let r = firstDataRow; r <= lastFilled; r += 1) {
     const cells = data[r] ?? [];
     const line = lineOf[r] ?? r + 1;
-    if (filled(cells).length === 0) {
+    if (!hasFilledCell(cells)) {
       blanks.push(line);
       continue;
     }
-    if (isRepeatedHeader(cells, headerCells)) {
+    if (repeatsFoldedHeader(cells, foldedHeader)) {
       skip.add(r);
       headers.push(line);
       const next = data[r + 1];
-      if (next && filled(next).length > 0 && input.isUnitsRow(next)) {
+      if (next && hasFilledCell(next) && input.isUnitsRow(next)) {
         skip.add(r + 1);
         r += 1;
       }

@@ -1,5 +1,6 @@
 /** Every query of the lab import. Each function takes `db` or a transaction first. */
 import { sql, type Kysely, type Transaction } from 'kysely';
+import { copyRows, type CopyValue } from '../db/copy';
 import type { Database } from '../db/database';
 
 type Db = Kysely<Database> | Transaction<Database>;
@@ -251,18 +252,23 @@ export interface ReadingColumns {
   qualifiers: ('<' | '>' | null)[];
 }
 
-/** Bulk insert of readings as column arrays (one statement per 20,000 rows, whatever the file's width). */
+/**
+ * The readings, written with COPY on the caller's connection (inside its transaction): PostgreSQL's fastest way
+ * in, streamed in 64 KB chunks so no statement of the whole file is built in memory.
+ */
 export async function insertReadings(db: Db, rows: ReadingColumns, importId: string): Promise<number> {
-  // 20,000 rows keep each statement's serialised arrays around a megabyte.
-  const CHUNK = 20_000;
   const n = rows.sampleIds.length;
-  for (let from = 0; from < n; from += CHUNK) {
-    const to = Math.min(n, from + CHUNK);
-    await sql`
-      insert into readings (sample_id, measurand, value, qualifier, lab_import_id)
-      select s, m, v, q, ${importId}::uuid
-      from unnest(${sql.val(rows.sampleIds.slice(from, to))}::uuid[], ${sql.val(rows.measurands.slice(from, to))}::text[],
-                  ${sql.val(rows.values.slice(from, to))}::float8[], ${sql.val(rows.qualifiers.slice(from, to))}::text[]) as t(s, m, v, q)`.execute(db);
+  if (n === 0) return 0;
+  function* lines(): Generator<CopyValue[]> {
+    const line: CopyValue[] = ['', '', 0, null, importId];
+    for (let i = 0; i < n; i += 1) {
+      line[0] = rows.sampleIds[i]!;
+      line[1] = rows.measurands[i]!;
+      line[2] = rows.values[i]!;
+      line[3] = rows.qualifiers[i] ?? null;
+      yield line;
+    }
   }
+  await copyRows(db, 'readings', ['sample_id', 'measurand', 'value', 'qualifier', 'lab_import_id'], lines());
   return n;
 }

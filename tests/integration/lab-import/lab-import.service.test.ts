@@ -1,6 +1,7 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { Kysely, PostgresDialect } from 'kysely';
+import { CopyingClient } from '~/lib/db/copy';
 import pg from 'pg';
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import type { Database } from '~/lib/db/database';
@@ -289,7 +290,7 @@ describe('confirm', () => {
     const id = await upload(crewId, userId, csv('SW-1,2026-02-01,30,5,9,3'));
     const before = await countImportRows(db);
     // A pool of its own whose clients swallow the "terminated" event the killed connection emits afterwards.
-    const pool = new pg.Pool({ connectionString: TEST_DATABASE.url(), max: 2 });
+    const pool = new pg.Pool({ connectionString: TEST_DATABASE.url(), max: 2, Client: CopyingClient });
     pool.on('connect', (client) => client.on('error', () => {}));
     pool.on('error', () => {});
     const fragile = new Kysely<Database>({ dialect: new PostgresDialect({ pool }) });

@@ -1,0 +1,79 @@
+/**
+ * JSON that a browser may keep and revalidate: an entity tag of the body, 304 Not Modified when the client
+ * already holds it (RFC 9110 §13.1.2, If-None-Match), and gzip when the client accepts it (RFC 9110 §12.5.3,
+ * Accept-Encoding). For read endpoints whose answers are large and change rarely, such as the wear chart's.
+ */
+import { createHash } from 'node:crypto';
+import { promisify } from 'node:util';
+import { gzip } from 'node:zlib';
+
+const gzipAsync = promisify(gzip);
+
+/** Below this a gzip header and trailer cost more than they save (common practice, no published source). */
+const MIN_GZIP_BYTES = 1024;
+
+/** Longest If-None-Match or Accept-Encoding read; a real one is a few entity tags or codings long. */
+const MAX_HEADER_CHARS = 4096;
+
+/**
+ * A weak entity tag of the body: the same body gives the same tag whatever its encoding (gzip or not), which
+ * is what weak comparison, the one If-None-Match uses, allows (RFC 9110 §8.8.3).
+ */
+export function entityTagOf(body: string): string {
+  return `W/"${createHash('sha256').update(body).digest('base64url').slice(0, 32)}"`;
+}
+
+/** True when If-None-Match names `etag` (weak comparison) or is "*" (RFC 9110 §13.1.2). Anything malformed is no match. */
+export function ifNoneMatchMatches(header: string | null, etag: string): boolean {
+  if (header === null || header.length === 0 || header.length > MAX_HEADER_CHARS) return false;
+  const opaque = (tag: string) => (tag.startsWith('W/') ? tag.slice(2) : tag);
+  const wanted = opaque(etag);
+  for (const raw of header.split(',')) {
+    const tag = raw.trim();
+    if (tag === '*') return true;
+    if (/^(?:W\/)?"[^"]*"$/.test(tag) && opaque(tag) === wanted) return true;
+  }
+  return false;
+}
+
+/** True when Accept-Encoding allows gzip: named (or "*") with a q-value above zero, and not refused by name (RFC 9110 §12.5.3). */
+export function acceptsGzip(header: string | null): boolean {
+  if (header === null || header.length === 0 || header.length > MAX_HEADER_CHARS) return false;
+  let named: number | null = null;
+  let star: number | null = null;
+  for (const part of header.split(',')) {
+    const [coding = '', ...params] = part.split(';').map((s) => s.trim().toLowerCase());
+    let q = 1;
+    for (const p of params) {
+      const m = /^q=([01](?:\.\d{0,3})?)$/.exec(p);
+      if (m) q = Number(m[1]);
+    }
+    if (coding === 'gzip' || coding === 'x-gzip') named = Math.max(named ?? 0, q);
+    else if (coding === '*') star = q;
+  }
+  return named !== null ? named > 0 : star !== null && star > 0;
+}
+
+/**
+ * A JSON answer with an entity tag: 304 with no body when the request's If-None-Match already names it, else
+ * 200 with the body, gzipped when accepted. Private and revalidated on every use: the answer depends on the
+ * signed-in crew, so no shared cache may keep it, and the browser asks each time (cheaply, when unchanged).
+ */
+export async function conditionalJson(request: Request, data: unknown): Promise<Response> {
+  const body = JSON.stringify(data);
+  const etag = entityTagOf(body);
+  const headers: Record<string, string> = {
+    'content-type': 'application/json; charset=utf-8',
+    'cache-control': 'private, no-cache',
+    vary: 'Accept-Encoding, Cookie',
+    etag,
+  };
+  if (ifNoneMatchMatches(request.headers.get('if-none-match'), etag)) {
+    return new Response(null, { status: 304, headers: { 'cache-control': headers['cache-control']!, vary: headers.vary!, etag } });
+  }
+  if (body.length >= MIN_GZIP_BYTES && acceptsGzip(request.headers.get('accept-encoding'))) {
+    const compressed = await gzipAsync(Buffer.from(body, 'utf8'));
+    return new Response(new Uint8Array(compressed), { status: 200, headers: { ...headers, 'content-encoding': 'gzip', 'content-length': String(compressed.byteLength) } });
+  }
+  return new Response(body, { status: 200, headers });
+}

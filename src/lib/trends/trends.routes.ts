@@ -1,0 +1,32 @@
+/**
+ * The request side of the wear chart's endpoint, kept out of the route file so tests can call it with a real
+ * database and a plain Request: session and permission, the query, one service call, and the compact answer
+ * with its entity tag (304 when the client holds the same answer) and gzip when accepted.
+ */
+import type { Kysely } from 'kysely';
+import { canReadCrew } from '../auth/permissions';
+import type { CrewMembership, SessionUser } from '../auth/types';
+import type { Database } from '../db/database';
+import { conditionalJson } from '../http/conditional-json';
+import { fieldErrorsFrom, jsonError } from '../http/json';
+import { compactTrendResponse } from './trend-compact';
+import { trendQuerySchema } from './trends';
+import { loadMachineTrends } from './trends.service';
+
+export interface TrendRouteContext {
+  request: Request;
+  machineId: string;
+  locals: { user: SessionUser | null; crew: CrewMembership | null };
+}
+
+/** GET /api/trends/[machineId]?measurands=Fe,Al&basis=ppm|rate&x=odometer|date. */
+export async function answerTrendRequest(db: Kysely<Database>, ctx: TrendRouteContext): Promise<Response> {
+  const { user, crew } = ctx.locals;
+  if (!user) return jsonError(401, 'unauthenticated', 'Sign in to see this machine.');
+  if (!canReadCrew(crew)) return jsonError(404, 'not_found', 'No such machine in this crew.');
+  const parsed = trendQuerySchema.safeParse(Object.fromEntries(new URL(ctx.request.url).searchParams));
+  if (!parsed.success) return jsonError(400, 'invalid_input', 'The chart query needs attention.', fieldErrorsFrom(parsed.error));
+  const data = await loadMachineTrends(db, crew.crewId, ctx.machineId, parsed.data);
+  if (!data) return jsonError(404, 'not_found', 'No such machine in this crew.');
+  return conditionalJson(ctx.request, compactTrendResponse(data));
+}
