@@ -1,12 +1,15 @@
-// Serves the built app. A small supervisor (the primary process) starts APP_PROCESSES app processes with
-// Node's cluster module, all answering on one port, and starts a new one whenever one dies, with a line in
-// the log; SIGTERM or SIGINT stops them in order (each finishes its open requests). Each app process runs
+// Serves the built app. A small supervisor (the primary process) starts APP_PROCESSES app processes (one per
+// core by default) with Node's cluster module, all answering on one port, and starts a new one whenever one
+// dies, with a line in the log and a growing pause when they keep dying at start-up; SIGTERM or SIGINT stops them in order (each finishes its open requests). Each app process runs
 // Astro's own handler behind a plain HTTP server that puts the security headers on every response (static
 // files included: the adapter serves those before the app's middleware runs) and decides which address a
 // request came from (TRUST_PROXY) before Astro sees any forwarded header.
 //
 // Usage: node --import tsx scripts/serve.ts               (what `npm start` and the e2e tests run)
 //        node --import tsx scripts/serve.ts --production  (`npm run serve`: the production start, never a dev mailbox)
+// Why cluster and not SO_REUSEPORT: Node 20's net.Server has no `reusePort` option (it came in 22.12/23.1),
+// and cluster's primary hands accepted connections round-robin to the app processes on Linux, which spreads
+// the load evenly whatever the kernel's hashing would do.
 import cluster, { type Worker } from 'node:cluster';
 import { existsSync } from 'node:fs';
 import http from 'node:http';
@@ -19,8 +22,6 @@ import { ROOT } from './lib/processes';
 
 /** Exit code of an app process whose port is taken: restarting cannot help, so the supervisor stops. */
 const EXIT_PORT_IN_USE = 78;
-/** Most app processes one supervisor starts (common practice: about one per core; no published source). */
-const MAX_APP_PROCESSES = 64;
 /** Time an app process gets to finish open requests on stop before it is killed. */
 const STOP_GRACE_MS = 10_000;
 
@@ -40,11 +41,7 @@ function readSettings(): { config: AppConfig; processes: number } {
   } catch (error) {
     fail(error instanceof Error ? error.message : String(error));
   }
-  const raw = process.env.APP_PROCESSES ?? '1';
-  const processes = Number(raw);
-  if (!/^\d+$/.test(raw) || processes < 1 || processes > MAX_APP_PROCESSES) {
-    fail(`APP_PROCESSES must be a whole number from 1 to ${MAX_APP_PROCESSES}, not "${raw}".`);
-  }
+  const processes = config.APP_PROCESSES;
   return { config, processes };
 }
 

@@ -9,7 +9,7 @@ let instance: Kysely<Database> | undefined;
 
 /** The app's shared Kysely instance, created on first use from DATABASE_URL. */
 export function getDb(): Kysely<Database> {
-  instance ??= createDb(getConfig().DATABASE_URL, { max: 20 });
+  instance ??= createDb(getConfig().DATABASE_URL, { max: getConfig().DATABASE_POOL_SIZE });
   return instance;
 }
 
