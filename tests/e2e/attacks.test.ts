@@ -48,7 +48,7 @@ async function startServer(env: NodeJS.ProcessEnv, args: string[] = SERVE_ARGS):
   const url = `http://127.0.0.1:${port}`;
   const child = startService('app2', process.execPath, args, {
     ...process.env, NODE_ENV: 'production', DATABASE_URL: inject('databaseUrl'), HOST: '127.0.0.1', PORT: String(port), PUBLIC_URL: url,
-    ASTRO_TELEMETRY_DISABLED: '1', DEV_MAILBOX: '', ...env,
+    ASTRO_TELEMETRY_DISABLED: '1', DEV_MAILBOX: '', APP_PROCESSES: '1', ...env,
   }, true);
   let out = '';
   child.stdout?.on('data', (c: Buffer) => { out += c.toString(); });
