@@ -82,12 +82,17 @@ async function main(): Promise<void> {
     if (await isPortOpen(smtp.hostname, Number(smtp.port || 25))) fail(`port ${smtp.port} for the local mail relay is in use: stop that program or set SMTP_URL`);
     children.push(startService('mail', node, ['--import', 'tsx', 'scripts/mail-relay.ts'], env));
   }
-  // Photos go to the S3 API; with no S3_ENDPOINT of its own, `npm start` runs the local fake on loopback.
+  // Photos go to the S3 API. An endpoint on loopback with nothing listening gets the local fake (objects under
+  // .data/object-store); one already answering there (a store of your own) is used as it is.
   const s3 = new URL(config.S3_ENDPOINT);
-  if (config.PHOTO_STORE === 's3' && !process.env.S3_ENDPOINT) {
-    if (await isPortOpen(s3.hostname, Number(s3.port || 80))) fail(`port ${s3.port} for the local object store is in use: stop that program or set S3_ENDPOINT`);
-    children.push(startService('object-store', node, ['--import', 'tsx', 'scripts/object-store.ts'], env));
-    await waitFor(() => isPortOpen(s3.hostname, Number(s3.port || 80)), 30_000, 'the local object store');
+  const s3Port = Number(s3.port || 80);
+  if (config.PHOTO_STORE === 's3' && ['127.0.0.1', 'localhost'].includes(s3.hostname)) {
+    if (await isPortOpen(s3.hostname, s3Port)) {
+      console.log(`[start] photos go to the object store already answering at ${config.S3_ENDPOINT} (bucket ${config.S3_BUCKET})`);
+    } else {
+      children.push(startService('object-store', node, ['--import', 'tsx', 'scripts/object-store.ts'], env));
+      await waitFor(() => isPortOpen(s3.hostname, s3Port), 30_000, 'the local object store');
+    }
   }
   if (existsSync(path.join(ROOT, 'scripts/worker.ts'))) children.push(startService('worker', node, ['--import', 'tsx', 'scripts/worker.ts'], env));
   const server = startService('app', node, SERVE_ARGS, env, true);

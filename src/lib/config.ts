@@ -39,6 +39,9 @@ export const configSchema = z.object({
   // Connections each app process keeps to PostgreSQL. Small on purpose: processes × pool must stay under the
   // server's max_connections with room for the worker, the relay and maintenance (see the README).
   DATABASE_POOL_SIZE: z.coerce.number().int().min(1).max(100).default(5),
+  // The second, smaller pool of each app process, behind sessions and rate limits (Lucia and the limiter take a
+  // pg pool, not Kysely). Kept apart so a request holding a transaction can never starve its own session check.
+  AUTH_POOL_SIZE: z.coerce.number().int().min(1).max(100).default(3),
   // Connections of the one job worker's own pool (pg-boss keeps 4 more of its own, and one per listener).
   WORKER_POOL_SIZE: z.coerce.number().int().min(1).max(100).default(5),
   // Where photos are kept: 's3' (any S3 API; the default, served locally by a fake on loopback) or 'disk'

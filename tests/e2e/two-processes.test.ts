@@ -1,6 +1,7 @@
 // Two app servers on two ports over one database, one object store and one worker, as several machines behind
 // a load balancer would run: nothing a request leaves behind may live in one process. Plain HTTP (fetch) is
 // enough here: what is proved is where state lives, not how a page looks.
+import { execFileSync } from 'node:child_process';
 import { createHash, randomFillSync, randomUUID } from 'node:crypto';
 import { sql, type Kysely } from 'kysely';
 import { PNG } from 'pngjs';
@@ -13,7 +14,7 @@ import { startApp, type RunningApp } from './helpers/server';
 import { sessionCookieFor } from './helpers/sign-in';
 
 let app: RunningApp;
-let other: { baseUrl: string; stop(): Promise<void> };
+let other: { baseUrl: string; pid: number; stop(): Promise<void> };
 let db: Kysely<Database>;
 let A: string;
 let B: string;
@@ -23,7 +24,8 @@ const riderB = DEMO_ACCOUNTS.find((a) => a.key === 'riderB')!;
 
 beforeAll(async () => {
   app = await startApp('sumpwise_two_processes', { seed: true });
-  other = await app.startAnotherServer(await freePort());
+  // The second machine runs its supervisor with two app processes (cluster, one port), as `npm start` does on two cores.
+  other = await app.startAnotherServer(await freePort(), 2);
   db = createDb(app.databaseUrl, { max: 2 });
   [A, B] = [app.baseUrl, other.baseUrl];
 });
@@ -49,9 +51,14 @@ function noisyPng(side: number): Buffer {
 }
 
 describe('two app servers, one database, one object store, one worker', () => {
-  test('the two are separate processes on separate ports', async () => {
+  test('the two are separate servers on separate ports; the second runs two app processes under its supervisor', async () => {
     expect(A).not.toBe(B);
     for (const base of [A, B]) expect((await fetch(`${base}/api/health`)).status).toBe(200);
+    const children = execFileSync('pgrep', ['-P', String(other.pid)]).toString().trim().split('\n').filter(Boolean);
+    expect(children).toHaveLength(2);
+    // Twenty requests at once are all answered by the pair.
+    const statuses = await Promise.all(Array.from({ length: 20 }, () => fetch(`${B}/api/health`).then((r) => r.status)));
+    expect(statuses.every((s) => s === 200)).toBe(true);
   });
 
   test('a session made on one is valid on the other, and signing out on the other ends it on both', async () => {

@@ -56,7 +56,7 @@ let lucia: AppLucia | undefined;
 /** The pg pool behind Lucia and the rate limiter (they need a pg client, not Kysely). */
 export function getAuthPool(): pg.Pool {
   if (!pool) {
-    pool = new pg.Pool({ connectionString: getConfig().DATABASE_URL, max: 5, connectionTimeoutMillis: 5_000 });
+    pool = new pg.Pool({ connectionString: getConfig().DATABASE_URL, max: getConfig().AUTH_POOL_SIZE, connectionTimeoutMillis: 5_000 });
     pool.on('error', () => {});
   }
   return pool;

@@ -15,7 +15,7 @@ export interface RunningApp {
   smtpPort: number;
   env: NodeJS.ProcessEnv;
   /** Starts one more app server (its own supervisor) on `port` over the same database, object store and worker. */
-  startAnotherServer(port: number): Promise<{ baseUrl: string; stop(): Promise<void> }>;
+  startAnotherServer(port: number, appProcesses?: number): Promise<{ baseUrl: string; pid: number; stop(): Promise<void> }>;
   stop(): Promise<void>;
   /** Kills and restarts only the app server (for fault tests). */
   restartServer(): Promise<void>;
@@ -70,11 +70,11 @@ export async function startApp(
     databaseUrl,
     smtpPort,
     env,
-    async startAnotherServer(otherPort) {
-      const other = startService('app', node, SERVE_ARGS, { ...env, PORT: String(otherPort) }, true);
+    async startAnotherServer(otherPort, appProcesses = 1) {
+      const other = startService('app', node, SERVE_ARGS, { ...env, PORT: String(otherPort), APP_PROCESSES: String(appProcesses) }, true);
       const otherUrl = `http://127.0.0.1:${otherPort}`;
       await waitFor(() => httpOk(`${otherUrl}/api/health`), 30_000, 'the second app server');
-      return { baseUrl: otherUrl, stop: () => stopService(other) };
+      return { baseUrl: otherUrl, pid: other.pid!, stop: () => stopService(other) };
     },
     async stop() {
       await stopService(server);
