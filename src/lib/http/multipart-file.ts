@@ -27,8 +27,10 @@ export async function withMultipartFile<T>(
 
   let parser: busboy.Busboy;
   try {
-    // Limits beyond the one file: a handful of small fields, no second file kept (common practice, no published source).
-    parser = busboy({ headers: { 'content-type': type }, limits: { files: 1, fields: 10, fieldSize: 4096, parts: 20 } });
+    // A handful of small fields and files (only the named one is kept; the others are read and dropped, and
+    // count against the drain limit), so a file sent before the named one cannot hide it (common practice, no
+    // published source).
+    parser = busboy({ headers: { 'content-type': type }, limits: { files: 5, fields: 10, fieldSize: 4096, parts: 20 } });
   } catch {
     return { ok: false, reason: 'invalid' };
   }
