@@ -12,14 +12,15 @@ export type MultipartFileResult<T> =
 
 /**
  * Streams the file in `field` of a multipart body to `handle` (which must read it to its end). Other files
- * are dropped; a body past `drainLimit` bytes, or a malformed one, ends the read with a refusal.
+ * are dropped; a body past `drainLimit` bytes, or a malformed one, ends the read with a refusal, which is
+ * "too-large" whenever the body was larger than `maxBytes` (what the client most needs to hear).
  */
 export async function withMultipartFile<T>(
   request: Request,
-  field: string,
-  drainLimit: number,
+  limits: { field: string; maxBytes: number; drainLimit: number },
   handle: (file: Readable, fileName: string) => Promise<T>,
 ): Promise<MultipartFileResult<T>> {
+  const { field, maxBytes, drainLimit } = limits;
   const type = request.headers.get('content-type') ?? '';
   if (!/^multipart\/form-data\b/i.test(type) || !request.body) return { ok: false, reason: 'invalid' };
   const declared = Number(request.headers.get('content-length') ?? 'NaN');
@@ -74,8 +75,8 @@ export async function withMultipartFile<T>(
     // The file's reader sees the stream end with an error, so it stops and cleans up.
     current?.destroy(new Error('upload cut off'));
     await handled?.catch(() => {});
-    return overLimit ? { ok: false, reason: 'too-large', size: bodyBytes } : { ok: false, reason: 'invalid' };
+    return overLimit || bodyBytes > maxBytes ? { ok: false, reason: 'too-large', size: bodyBytes } : { ok: false, reason: 'invalid' };
   }
-  if (!handled) return { ok: false, reason: 'no-file' };
+  if (!handled) return bodyBytes > maxBytes ? { ok: false, reason: 'too-large', size: bodyBytes } : { ok: false, reason: 'no-file' };
   return { ok: true, value: await handled, bodyBytes };
 }

@@ -11,8 +11,9 @@ import { getPhotoStore } from '~/lib/photos/photo-stores';
 
 /** Room for the multipart envelope around one photo. */
 const ENVELOPE_BYTES = 64 * 1024;
+const MAX_BODY_BYTES = PHOTO_MAX_BYTES + ENVELOPE_BYTES;
 /** Past this, the read stops at once; up to it the rest of a too-large upload is read and dropped, so the client sees the 413. */
-const DRAIN_LIMIT_BYTES = PHOTO_MAX_BYTES + ENVELOPE_BYTES + 16 * 1024 * 1024;
+const DRAIN_LIMIT_BYTES = MAX_BODY_BYTES + 16 * 1024 * 1024;
 const tooLarge = (bytes: number) => jsonError(413, 'too_large', `The upload is ${(bytes / 1048576).toFixed(1)} MB; photos can be at most 10 MB each.`, { file: 'Photos can be at most 10 MB each.' });
 
 /** POST multipart/form-data with one `file`: checks and stores a photo as it streams in, answers its id. */
@@ -24,7 +25,7 @@ export const POST: APIRoute = async ({ request, locals }) => {
   }
   let upload: Awaited<ReturnType<typeof withMultipartFile<Awaited<ReturnType<typeof uploadPhoto>>>>>;
   try {
-    upload = await withMultipartFile(request, 'file', DRAIN_LIMIT_BYTES, (file, name) => uploadPhoto(getDb(), actorFrom(g), file, name || 'The file', getPhotoStore()));
+    upload = await withMultipartFile(request, { field: 'file', maxBytes: MAX_BODY_BYTES, drainLimit: DRAIN_LIMIT_BYTES }, (file, name) => uploadPhoto(getDb(), actorFrom(g), file, name || 'The file', getPhotoStore()));
   } catch (e) {
     // The bytes are stored before their row, so a failed write leaves neither; the person gets a sentence, the log the cause.
     if (!(e instanceof PhotoStorageError)) throw e;
