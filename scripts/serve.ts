@@ -19,6 +19,7 @@ import { readConfig, type AppConfig } from '../src/lib/config';
 import { FORWARDED_HEADERS, resolveClientAddress } from '../src/lib/http/client-address';
 import { securityHeaders } from '../src/lib/http/security-headers';
 import { ROOT } from './lib/processes';
+import { nextRestart } from './lib/restart-backoff';
 
 /** Exit code of an app process whose port is taken: restarting cannot help, so the supervisor stops. */
 const EXIT_PORT_IN_USE = 78;
@@ -40,6 +41,10 @@ function readSettings(): { config: AppConfig; processes: number } {
     config = readConfig(production ? { ...process.env, DEV_MAILBOX: '0' } : process.env);
   } catch (error) {
     fail(error instanceof Error ? error.message : String(error));
+  }
+  // Photos in production go to a real object store: the local fake's fixed credentials mean it was never set up.
+  if (production && config.PHOTO_STORE === 's3' && (!process.env.S3_ACCESS_KEY_ID || !process.env.S3_SECRET_ACCESS_KEY)) {
+    fail('the production start keeps photos in an object store: set S3_ENDPOINT, S3_BUCKET, S3_ACCESS_KEY_ID and S3_SECRET_ACCESS_KEY, or PHOTO_STORE=disk on a single machine.');
   }
   const processes = config.APP_PROCESSES;
   return { config, processes };
@@ -71,10 +76,10 @@ async function runSupervisor(): Promise<void> {
       process.exitCode = 1;
       return;
     }
-    // A process that dies right after starting again and again waits longer each time (up to 10 s), so a
-    // crash at start-up does not spin the CPU; one that ran a while is replaced at once.
-    quickDeaths = lived < 5_000 ? quickDeaths + 1 : 0;
-    const delay = quickDeaths === 0 ? 0 : Math.min(10_000, 250 * 2 ** (quickDeaths - 1));
+    // A crash loop at start-up backs off (scripts/lib/restart-backoff.ts); a process that ran a while is replaced at once.
+    const next = nextRestart(quickDeaths, lived);
+    quickDeaths = next.quickDeaths;
+    const delay = next.delayMs;
     console.error(`[serve] app process ${worker.process.pid} died (${signal ?? `exit ${code}`}) after ${(lived / 1000).toFixed(1)} s; starting another${delay ? ` in ${delay} ms` : ''}`);
     setTimeout(() => { if (!stopping) fork(); }, delay);
   });

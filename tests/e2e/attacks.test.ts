@@ -254,6 +254,7 @@ describe('5. the dev mailbox', () => {
   test.each([
     ['DEV_MAILBOX=1 on 0.0.0.0', { HOST: '0.0.0.0', DEV_MAILBOX: '1' }, SERVE_ARGS, /DEV_MAILBOX is 1, but the mailbox shows everyone's mail.*loopback/],
     ['the production start with DEV_MAILBOX=1', { DEV_MAILBOX: '1' }, [...SERVE_ARGS, '--production'], /the production start never serves the dev mailbox/],
+    ['the production start with the local object store\'s credentials', { S3_ACCESS_KEY_ID: '', S3_SECRET_ACCESS_KEY: '' }, [...SERVE_ARGS, '--production'], /the production start keeps photos in an object store: set S3_ENDPOINT/],
   ])('%s refuses to start with a sentence', (_label, env, args, sentence) => {
     let message = '';
     try {
