@@ -33,7 +33,8 @@ export function createDiskPhotoStore(uploadDir: string): PhotoStore {
       const target = keyPath(uploadDir, key);
       try {
         if ((await stat(target)).size === byteSize) {
-          body.resume();
+          // Content-addressed: the same bytes are already there.
+          body.destroy();
           return;
         }
       } catch {
