@@ -36,12 +36,10 @@ export const configSchema = z.object({
   // App processes the supervisor (scripts/serve.ts) runs on the one port: one per core by default, since each is
   // single-threaded and CPU-bound under load (common practice, no published source).
   APP_PROCESSES: z.coerce.number().int().min(1).max(64).default(() => Math.min(64, os.availableParallelism())),
-  // Connections each app process keeps to PostgreSQL. Small on purpose: processes × pool must stay under the
-  // server's max_connections with room for the worker, the relay and maintenance (see the README).
-  DATABASE_POOL_SIZE: z.coerce.number().int().min(1).max(100).default(5),
-  // The second, smaller pool of each app process, behind sessions and rate limits (Lucia and the limiter take a
-  // pg pool, not Kysely). Kept apart so a request holding a transaction can never starve its own session check.
-  AUTH_POOL_SIZE: z.coerce.number().int().min(1).max(100).default(3),
+  // Connections each app process keeps to PostgreSQL, for its queries, session checks and rate limits. Small on
+  // purpose: processes × pool must stay under the server's max_connections with room for the worker, the relay
+  // and maintenance (see the README).
+  DATABASE_POOL_SIZE: z.coerce.number().int().min(1).max(100).default(8),
   // Connections of the one job worker's own pool (pg-boss keeps 4 more of its own, and one per listener).
   WORKER_POOL_SIZE: z.coerce.number().int().min(1).max(100).default(5),
   // Where photos are kept: 's3' (any S3 API; the default, served locally by a fake on loopback) or 'disk'

@@ -24,7 +24,7 @@ describe('readConfig', () => {
     [{ APP_PROCESSES: '65' }, /APP_PROCESSES/],
     [{ APP_PROCESSES: 'all' }, /APP_PROCESSES/],
     [{ DATABASE_POOL_SIZE: '0' }, /DATABASE_POOL_SIZE/],
-    [{ AUTH_POOL_SIZE: '1.5' }, /AUTH_POOL_SIZE/],
+    [{ DATABASE_POOL_SIZE: '1.5' }, /DATABASE_POOL_SIZE/],
     [{ WORKER_POOL_SIZE: '-1' }, /WORKER_POOL_SIZE/],
     [{ PHOTO_STORE: 'ftp' }, /PHOTO_STORE/],
     [{ S3_ENDPOINT: 'ftp://127.0.0.1:21' }, /S3_ENDPOINT/],
@@ -50,7 +50,7 @@ describe('readConfig', () => {
   test('one app process per core with small pools, and photos in the S3 store (the local fake), by default', () => {
     const c = readConfig({});
     expect(c.APP_PROCESSES).toBe(Math.min(64, os.availableParallelism()));
-    expect([c.DATABASE_POOL_SIZE, c.AUTH_POOL_SIZE, c.WORKER_POOL_SIZE]).toEqual([5, 3, 5]);
+    expect([c.DATABASE_POOL_SIZE, c.WORKER_POOL_SIZE]).toEqual([8, 5]);
     expect(c.PHOTO_STORE).toBe('s3');
     expect(c.S3_ENDPOINT).toBe('http://127.0.0.1:4568');
     expect(c.S3_FORCE_PATH_STYLE).toBe(true);

@@ -2,6 +2,7 @@ import { Lucia } from 'lucia';
 import { NodePostgresAdapter } from '@lucia-auth/adapter-postgresql';
 import pg from 'pg';
 import { getConfig, isSecureOrigin } from '../config';
+import { getPool } from '../db';
 import type { SessionUser } from './types';
 
 /** The session cookie's name. */
@@ -50,16 +51,11 @@ declare module 'lucia' {
   }
 }
 
-let pool: pg.Pool | undefined;
 let lucia: AppLucia | undefined;
 
-/** The pg pool behind Lucia and the rate limiter (they need a pg client, not Kysely). */
+/** The pg pool behind Lucia and the rate limiter (they need a pg client, not Kysely): the app's one pool. */
 export function getAuthPool(): pg.Pool {
-  if (!pool) {
-    pool = new pg.Pool({ connectionString: getConfig().DATABASE_URL, max: getConfig().AUTH_POOL_SIZE, connectionTimeoutMillis: 5_000 });
-    pool.on('error', () => {});
-  }
-  return pool;
+  return getPool();
 }
 
 /** The app's Lucia instance. */
