@@ -1,12 +1,15 @@
-// Serves the built app. A small supervisor (the primary process) starts APP_PROCESSES app processes with
-// Node's cluster module, all answering on one port, and starts a new one whenever one dies, with a line in
-// the log; SIGTERM or SIGINT stops them in order (each finishes its open requests). Each app process runs
+// Serves the built app. A small supervisor (the primary process) starts APP_PROCESSES app processes (one per
+// core by default) with Node's cluster module, all answering on one port, and starts a new one whenever one
+// dies, with a line in the log and a growing pause when they keep dying at start-up; SIGTERM or SIGINT stops them in order (each finishes its open requests). Each app process runs
 // Astro's own handler behind a plain HTTP server that puts the security headers on every response (static
 // files included: the adapter serves those before the app's middleware runs) and decides which address a
 // request came from (TRUST_PROXY) before Astro sees any forwarded header.
 //
 // Usage: node --import tsx scripts/serve.ts               (what `npm start` and the e2e tests run)
 //        node --import tsx scripts/serve.ts --production  (`npm run serve`: the production start, never a dev mailbox)
+// Why cluster and not SO_REUSEPORT: Node 20's net.Server has no `reusePort` option (it came in 22.12/23.1),
+// and cluster's primary hands accepted connections round-robin to the app processes on Linux, which spreads
+// the load evenly whatever the kernel's hashing would do.
 import cluster, { type Worker } from 'node:cluster';
 import { existsSync } from 'node:fs';
 import http from 'node:http';
@@ -16,11 +19,10 @@ import { readConfig, type AppConfig } from '../src/lib/config';
 import { FORWARDED_HEADERS, resolveClientAddress } from '../src/lib/http/client-address';
 import { securityHeaders } from '../src/lib/http/security-headers';
 import { ROOT } from './lib/processes';
+import { nextRestart } from './lib/restart-backoff';
 
 /** Exit code of an app process whose port is taken: restarting cannot help, so the supervisor stops. */
 const EXIT_PORT_IN_USE = 78;
-/** Most app processes one supervisor starts (common practice: about one per core; no published source). */
-const MAX_APP_PROCESSES = 64;
 /** Time an app process gets to finish open requests on stop before it is killed. */
 const STOP_GRACE_MS = 10_000;
 
@@ -40,11 +42,11 @@ function readSettings(): { config: AppConfig; processes: number } {
   } catch (error) {
     fail(error instanceof Error ? error.message : String(error));
   }
-  const raw = process.env.APP_PROCESSES ?? '1';
-  const processes = Number(raw);
-  if (!/^\d+$/.test(raw) || processes < 1 || processes > MAX_APP_PROCESSES) {
-    fail(`APP_PROCESSES must be a whole number from 1 to ${MAX_APP_PROCESSES}, not "${raw}".`);
+  // Photos in production go to a real object store: the local fake's fixed credentials mean it was never set up.
+  if (production && config.PHOTO_STORE === 's3' && (!process.env.S3_ACCESS_KEY_ID || !process.env.S3_SECRET_ACCESS_KEY)) {
+    fail('the production start keeps photos in an object store: set S3_ENDPOINT, S3_BUCKET, S3_ACCESS_KEY_ID and S3_SECRET_ACCESS_KEY, or PHOTO_STORE=disk on a single machine.');
   }
+  const processes = config.APP_PROCESSES;
   return { config, processes };
 }
 
@@ -74,10 +76,10 @@ async function runSupervisor(): Promise<void> {
       process.exitCode = 1;
       return;
     }
-    // A process that dies right after starting again and again waits longer each time (up to 10 s), so a
-    // crash at start-up does not spin the CPU; one that ran a while is replaced at once.
-    quickDeaths = lived < 5_000 ? quickDeaths + 1 : 0;
-    const delay = quickDeaths === 0 ? 0 : Math.min(10_000, 250 * 2 ** (quickDeaths - 1));
+    // A crash loop at start-up backs off (scripts/lib/restart-backoff.ts); a process that ran a while is replaced at once.
+    const next = nextRestart(quickDeaths, lived);
+    quickDeaths = next.quickDeaths;
+    const delay = next.delayMs;
     console.error(`[serve] app process ${worker.process.pid} died (${signal ?? `exit ${code}`}) after ${(lived / 1000).toFixed(1)} s; starting another${delay ? ` in ${delay} ms` : ''}`);
     setTimeout(() => { if (!stopping) fork(); }, delay);
   });

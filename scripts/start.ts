@@ -1,5 +1,6 @@
 // `npm start`: the project's PostgreSQL, migrations, demo data on first run, a build when needed, the local
-// mail relay and job worker, then the built server on 127.0.0.1:4321. One clear line when something is wrong.
+// mail relay, object store and job worker, then the built server (one app process per core) on 127.0.0.1:4321.
+// One clear line when something is wrong.
 import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import type { ChildProcess } from 'node:child_process';
@@ -80,6 +81,18 @@ async function main(): Promise<void> {
   if (localRelay && existsSync(path.join(ROOT, 'scripts/mail-relay.ts'))) {
     if (await isPortOpen(smtp.hostname, Number(smtp.port || 25))) fail(`port ${smtp.port} for the local mail relay is in use: stop that program or set SMTP_URL`);
     children.push(startService('mail', node, ['--import', 'tsx', 'scripts/mail-relay.ts'], env));
+  }
+  // Photos go to the S3 API. An endpoint on loopback with nothing listening gets the local fake (objects under
+  // .data/object-store); one already answering there (a store of your own) is used as it is.
+  const s3 = new URL(config.S3_ENDPOINT);
+  const s3Port = Number(s3.port || 80);
+  if (config.PHOTO_STORE === 's3' && ['127.0.0.1', 'localhost'].includes(s3.hostname)) {
+    if (await isPortOpen(s3.hostname, s3Port)) {
+      console.log(`[start] photos go to the object store already answering at ${config.S3_ENDPOINT} (bucket ${config.S3_BUCKET})`);
+    } else {
+      children.push(startService('object-store', node, ['--import', 'tsx', 'scripts/object-store.ts'], env));
+      await waitFor(() => isPortOpen(s3.hostname, s3Port), 30_000, 'the local object store');
+    }
   }
   if (existsSync(path.join(ROOT, 'scripts/worker.ts'))) children.push(startService('worker', node, ['--import', 'tsx', 'scripts/worker.ts'], env));
   const server = startService('app', node, SERVE_ARGS, env, true);

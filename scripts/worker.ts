@@ -8,7 +8,7 @@ import { startJobQueue, stopJobQueue } from '../src/lib/queue/job-queue';
 import { registerJobs } from '../src/lib/queue/jobs';
 
 const config = readConfig();
-const db = createDb(config.DATABASE_URL, { max: 5 });
+const db = createDb(config.DATABASE_URL, { max: config.WORKER_POOL_SIZE });
 const transport = createMailTransport(config.SMTP_URL);
 const log = (line: string) => console.log(line);
 

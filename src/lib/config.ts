@@ -1,3 +1,4 @@
+import os from 'node:os';
 import { z } from 'zod';
 import { isLoopbackHost, parseTrustProxy } from './http/client-address';
 import './db/embedded-password';
@@ -32,7 +33,31 @@ export const configSchema = z.object({
       if (n === null) ctx.addIssue({ code: 'custom', message: 'must be off, on, or the number of proxies in front (1-9)' });
       return n ?? 0;
     }),
+  // App processes the supervisor (scripts/serve.ts) runs on the one port: one per core by default, since each is
+  // single-threaded and CPU-bound under load (common practice, no published source).
+  APP_PROCESSES: z.coerce.number().int().min(1).max(64).default(() => Math.min(64, os.availableParallelism())),
+  // Connections each app process keeps to PostgreSQL, for its queries, session checks and rate limits. Small on
+  // purpose: processes × pool must stay under the server's max_connections with room for the worker, the relay
+  // and maintenance (see the README).
+  DATABASE_POOL_SIZE: z.coerce.number().int().min(1).max(100).default(8),
+  // Connections of the one job worker's own pool (pg-boss keeps 4 more of its own, and one per listener).
+  WORKER_POOL_SIZE: z.coerce.number().int().min(1).max(100).default(5),
+  // Where photos are kept: 's3' (any S3 API; the default, served locally by a fake on loopback) or 'disk'
+  // (UPLOAD_DIR, for one machine only: a second machine would not see the first one's photos).
+  PHOTO_STORE: z.enum(['s3', 'disk']).default('s3'),
   UPLOAD_DIR: z.string().default('.data/uploads'),
+  S3_ENDPOINT: z.url({ protocol: /^https?$/ }).default('http://127.0.0.1:4568'),
+  S3_REGION: z.string().min(1).default('us-east-1'),
+  S3_BUCKET: z
+    .string()
+    .default('sumpwise-photos')
+    // Bucket naming rules of the S3 API (lower case, digits, dots, hyphens; 3-63 characters), from memory.
+    .refine((v) => /^[a-z0-9][a-z0-9.-]{1,61}[a-z0-9]$/.test(v), 'must be an S3 bucket name (3-63 lower-case letters, digits, dots, hyphens)'),
+  // The local fake accepts these fixed credentials; a real store needs its own (never commit them).
+  S3_ACCESS_KEY_ID: z.string().min(1).default('S3RVER'),
+  S3_SECRET_ACCESS_KEY: z.string().min(1).default('S3RVER'),
+  // Path-style addresses (endpoint/bucket/key) suit the fake and most self-hosted stores; '0' for virtual hosts.
+  S3_FORCE_PATH_STYLE: z.string().default('1').transform((v) => v !== '0'),
   APP_SECRET: z.string().min(32).optional(),
   NODE_ENV: z.enum(['development', 'production', 'test']).default('production'),
 }).superRefine((c, ctx) => {

@@ -48,7 +48,7 @@ async function startServer(env: NodeJS.ProcessEnv, args: string[] = SERVE_ARGS):
   const url = `http://127.0.0.1:${port}`;
   const child = startService('app2', process.execPath, args, {
     ...process.env, NODE_ENV: 'production', DATABASE_URL: inject('databaseUrl'), HOST: '127.0.0.1', PORT: String(port), PUBLIC_URL: url,
-    ASTRO_TELEMETRY_DISABLED: '1', DEV_MAILBOX: '', ...env,
+    ASTRO_TELEMETRY_DISABLED: '1', DEV_MAILBOX: '', APP_PROCESSES: '1', ...env,
   }, true);
   let out = '';
   child.stdout?.on('data', (c: Buffer) => { out += c.toString(); });
@@ -254,6 +254,7 @@ describe('5. the dev mailbox', () => {
   test.each([
     ['DEV_MAILBOX=1 on 0.0.0.0', { HOST: '0.0.0.0', DEV_MAILBOX: '1' }, SERVE_ARGS, /DEV_MAILBOX is 1, but the mailbox shows everyone's mail.*loopback/],
     ['the production start with DEV_MAILBOX=1', { DEV_MAILBOX: '1' }, [...SERVE_ARGS, '--production'], /the production start never serves the dev mailbox/],
+    ['the production start with the local object store\'s credentials', { S3_ACCESS_KEY_ID: '', S3_SECRET_ACCESS_KEY: '' }, [...SERVE_ARGS, '--production'], /the production start keeps photos in an object store: set S3_ENDPOINT/],
   ])('%s refuses to start with a sentence', (_label, env, args, sentence) => {
     let message = '';
     try {

@@ -56,7 +56,7 @@ async function photoRows(): Promise<number> {
 
 describe('faults around writes', () => {
   beforeAll(async () => {
-    app = await startApp('sumpwise_faults_import', { seed: true });
+    app = await startApp('sumpwise_faults_import', { seed: true, photoStore: 'disk' });
     db = createDb(app.databaseUrl, { max: 2 });
     cookie = await sessionCookieFor(app.baseUrl, lead.email, lead.password);
     uploadDir = app.env.UPLOAD_DIR!;

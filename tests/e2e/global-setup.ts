@@ -11,6 +11,7 @@ export default async function setup(project: TestProject): Promise<() => Promise
   project.provide('baseUrl', app.baseUrl);
   project.provide('databaseUrl', app.databaseUrl);
   project.provide('smtpPort', app.smtpPort);
+  project.provide('s3Endpoint', app.env.S3_ENDPOINT!);
   return async () => {
     await app?.stop();
     if (app) dropEmbeddedDatabase(new URL(app.databaseUrl).pathname.slice(1));

@@ -1,14 +1,12 @@
 // Sends every row of the role matrix to the built server as each visitor (anonymous, rider, mechanic and
 // lead of crew A, and the lead of crew B) and compares the status with the table.
 import { randomUUID } from 'node:crypto';
-import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { inject } from 'vitest';
 import type { Kysely } from 'kysely';
 import { createDb } from '~/lib/db/db';
 import type { Database } from '~/lib/db/database';
 import { ROLE_MATRIX, VISITORS, type MatrixContext, type MatrixRow, type Visitor } from '../integration/role-matrix.routes';
-import { ROOT } from '../../scripts/lib/processes';
 import { baseUrl } from './helpers/browser';
 import { makeMachine } from '../integration/factories';
 import { MATRIX_PASSWORD, MATRIX_USERS, ensureMatrixAccounts } from './helpers/matrix-accounts';
@@ -77,8 +75,8 @@ function expectNotFoundPage(a: Answer): void {
 describe('role matrix against the built server', () => {
   beforeAll(async () => {
     db = createDb(inject('databaseUrl'), { max: 2 });
-    // The server keeps uploads in .data/<database>-uploads (helpers/server.ts); photo rows write their file there.
-    process.env.MATRIX_UPLOAD_DIR ??= path.join(ROOT, '.data', `${new URL(inject('databaseUrl')).pathname.slice(1)}-uploads`);
+    // The server keeps photos in its local object store (helpers/server.ts); photo rows put their bytes there.
+    process.env.MATRIX_S3_ENDPOINT ??= inject('s3Endpoint');
     ctx = { db, ...(await ensureMatrixAccounts(db)) };
   });
   afterAll(async () => { await db?.destroy(); });

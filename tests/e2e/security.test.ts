@@ -202,7 +202,7 @@ describe('session cookie behind an https public address', () => {
     const local = `http://127.0.0.1:${port}`;
     server = startService('app-https', process.execPath, SERVE_ARGS, {
       ...process.env, NODE_ENV: 'production', DATABASE_URL: inject('databaseUrl'), HOST: '127.0.0.1', PORT: String(port),
-      PUBLIC_URL: 'https://sumpwise.example', SMTP_URL: 'smtp://127.0.0.1:9', UPLOAD_DIR: uploads, ASTRO_TELEMETRY_DISABLED: '1',
+      PUBLIC_URL: 'https://sumpwise.example', SMTP_URL: 'smtp://127.0.0.1:9', UPLOAD_DIR: uploads, APP_PROCESSES: '1', ASTRO_TELEMETRY_DISABLED: '1',
     }, true);
     await waitFor(() => httpOk(`${local}/api/health`).catch(() => false), 30_000, 'the https-addressed server');
     // TLS ends at a proxy in front of such a server; here the request reaches it directly over loopback.

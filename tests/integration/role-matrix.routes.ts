@@ -92,16 +92,17 @@ async function crewOilReference(ctx: MatrixContext, name = `Matrix oil ${randomU
   return r.id;
 }
 
-/** A photo of crew A with its file in the e2e server's upload folder (tests/e2e/helpers/server.ts names it). */
+/** A photo of crew A with its bytes in the e2e server's object store (tests/e2e/helpers/server.ts starts it). */
 async function crewPhoto(ctx: MatrixContext): Promise<string> {
-  const { mkdirSync, writeFileSync } = await import('node:fs');
-  const path = await import('node:path');
   const { createHash } = await import('node:crypto');
+  const { readConfig } = await import('~/lib/config');
+  const { createPhotoStore } = await import('~/lib/photos/photo-stores');
+  const { photoKey } = await import('~/lib/photos/photo-store');
+  const { bodyOf } = await import('~/lib/photos/photos.storage');
   const bytes = Buffer.from('89504e470d0a1a0a0000000d49484452000000010000000108060000001f15c4890000000d4944415478da63f8cfc0f01f0005000200ff5f1b5c0000000049454e44ae426082', 'hex');
   const sha = createHash('sha256').update(bytes).digest('hex');
-  const dir = process.env.MATRIX_UPLOAD_DIR ?? path.resolve(new URL('../../.data/sumpwise_e2e-uploads', import.meta.url).pathname);
-  mkdirSync(path.join(dir, sha.slice(0, 2)), { recursive: true });
-  writeFileSync(path.join(dir, sha.slice(0, 2), sha), bytes);
+  const store = createPhotoStore(readConfig({ PHOTO_STORE: 's3', S3_ENDPOINT: process.env.MATRIX_S3_ENDPOINT }));
+  await store.put(photoKey(sha), bodyOf(bytes), bytes.length, 'image/png');
   const p = await ctx.db.insertInto('photos').values({
     crew_id: ctx.crewA.id, sha256: sha, content_type: 'image/png', byte_size: bytes.length, created_by: ctx.crewA.riderId,
   }).returning('id').executeTakeFirstOrThrow();

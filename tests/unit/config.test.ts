@@ -1,3 +1,4 @@
+import os from 'node:os';
 import { describe, expect, test } from 'vitest';
 import { isSecureOrigin, readConfig } from '~/lib/config';
 
@@ -19,6 +20,16 @@ describe('readConfig', () => {
     [{ TRUST_PROXY: '12' }, /TRUST_PROXY/],
     [{ DEV_MAILBOX: '1', HOST: '0.0.0.0' }, /DEV_MAILBOX is 1, but .* only when HOST is a loopback address .* not 0\.0\.0\.0/],
     [{ DEV_MAILBOX: '1', HOST: '192.0.2.10' }, /DEV_MAILBOX/],
+    [{ APP_PROCESSES: '0' }, /APP_PROCESSES/],
+    [{ APP_PROCESSES: '65' }, /APP_PROCESSES/],
+    [{ APP_PROCESSES: 'all' }, /APP_PROCESSES/],
+    [{ DATABASE_POOL_SIZE: '0' }, /DATABASE_POOL_SIZE/],
+    [{ DATABASE_POOL_SIZE: '1.5' }, /DATABASE_POOL_SIZE/],
+    [{ WORKER_POOL_SIZE: '-1' }, /WORKER_POOL_SIZE/],
+    [{ PHOTO_STORE: 'ftp' }, /PHOTO_STORE/],
+    [{ S3_ENDPOINT: 'ftp://127.0.0.1:21' }, /S3_ENDPOINT/],
+    [{ S3_BUCKET: 'Photos_Bucket' }, /S3_BUCKET must be an S3 bucket name/],
+    [{ S3_BUCKET: 'ab' }, /S3_BUCKET/],
   ])('rejects %o with one line naming the variable', (env, message) => {
     expect(() => readConfig(env)).toThrow(message);
   });
@@ -34,6 +45,23 @@ describe('readConfig', () => {
 
   test.each(['127.0.0.1', '127.1.2.3', '::1', 'localhost'])('the dev mailbox may be served on loopback %s', (HOST) => {
     expect(readConfig({ DEV_MAILBOX: '1', HOST }).DEV_MAILBOX).toBe(true);
+  });
+
+  test('one app process per core with small pools, and photos in the S3 store (the local fake), by default', () => {
+    const c = readConfig({});
+    expect(c.APP_PROCESSES).toBe(Math.min(64, os.availableParallelism()));
+    expect([c.DATABASE_POOL_SIZE, c.WORKER_POOL_SIZE]).toEqual([8, 5]);
+    expect(c.PHOTO_STORE).toBe('s3');
+    expect(c.S3_ENDPOINT).toBe('http://127.0.0.1:4568');
+    expect(c.S3_FORCE_PATH_STYLE).toBe(true);
+  });
+
+  test.each([
+    [{ APP_PROCESSES: '3', DATABASE_POOL_SIZE: '12' }, { APP_PROCESSES: 3, DATABASE_POOL_SIZE: 12 }],
+    [{ PHOTO_STORE: 'disk', UPLOAD_DIR: '/srv/photos' }, { PHOTO_STORE: 'disk', UPLOAD_DIR: '/srv/photos' }],
+    [{ S3_FORCE_PATH_STYLE: '0', S3_BUCKET: 'crew.photos-01' }, { S3_FORCE_PATH_STYLE: false, S3_BUCKET: 'crew.photos-01' }],
+  ])('reads %o', (env, expected) => {
+    expect(readConfig(env)).toMatchObject(expected);
   });
 
   test('empty strings count as unset', () => {

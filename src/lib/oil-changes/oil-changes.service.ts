@@ -6,6 +6,7 @@ import type { Actor } from '~/lib/auth/types';
 import type { PreparedPhoto } from '../photos/photos';
 import { attachPhotos, findPhotosOfOilChanges, type PhotoRow } from '../photos/photos.repository';
 import { storePreparedPhoto } from '../photos/photos.service';
+import type { PhotoStore } from '../photos/photo-store';
 import { formatMeter, toStoredMeter } from '../units/units';
 import { computeDistances, explainAbsurdOdometer, oilChangeInputSchema, toOilChange, type OilChange } from './oil-changes';
 import { findLatestOilChange, findOilChangeAfter, findOilChangeBefore, findOilChangeByClientKey, findOilChangesOfMachine, insertOilChange } from './oil-changes.repository';
@@ -36,7 +37,7 @@ export async function getLatestOilChange(db: Kysely<Database>, actor: Actor, mac
  */
 export async function createOilChange(
   db: Kysely<Database>, actor: Actor, machineId: string, input: unknown,
-  options: { newPhotos?: PreparedPhoto[]; uploadDir?: string; quotaBytes?: number } = {},
+  options: { newPhotos?: PreparedPhoto[]; photoStore?: PhotoStore; quotaBytes?: number } = {},
 ): Promise<Result<OilChange & { repeated: boolean }>> {
   const m = await getMachine(db, actor, machineId);
   if (!m.ok) return m;
@@ -87,8 +88,8 @@ export async function createOilChange(
       throw new PhotoAttachError();
     }
     for (const p of options.newPhotos ?? []) {
-      if (!options.uploadDir) throw new Error('uploadDir is required to store photos.');
-      await storePreparedPhoto(trx, actor, p, options.uploadDir, row.id);
+      if (!options.photoStore) throw new Error('photoStore is required to store photos.');
+      await storePreparedPhoto(trx, actor, p, options.photoStore, row.id);
     }
     return succeed({ ...toOilChange(row), repeated: false });
   }).catch(async (e: unknown) => {

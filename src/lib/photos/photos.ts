@@ -71,24 +71,45 @@ export interface PreparedPhoto {
   height: number | null;
 }
 
-export type PhotoCheck = { ok: true; photo: PreparedPhoto } | { ok: false; code: 'too_large' | 'not_an_image' | 'empty'; message: string };
+export type PhotoRefusal = { ok: false; code: 'too_large' | 'not_an_image' | 'empty'; message: string };
+export type PhotoCheck = { ok: true; photo: PreparedPhoto } | PhotoRefusal;
 
-/** Checks an upload's size and real type and hashes it; says in plain words why a file is refused. */
-export function preparePhoto(bytes: Uint8Array, fileName = 'the file'): PhotoCheck {
-  if (bytes.byteLength === 0) return { ok: false, code: 'empty', message: `${fileName} is empty.` };
-  if (bytes.byteLength > PHOTO_MAX_BYTES) {
-    return { ok: false, code: 'too_large', message: `${fileName} is ${(bytes.byteLength / 1048576).toFixed(1)} MB; photos can be at most 10 MB each.` };
+/** What the checks read from a photo: its real type and, when the header says so cheaply, its pixel size. */
+export interface PhotoFacts {
+  contentType: ImageType;
+  width: number | null;
+  height: number | null;
+}
+
+/** Bytes from the start of a file that the checks need: the type signature and the header with the pixel size. */
+export const PHOTO_HEAD_BYTES = 256 * 1024;
+
+/**
+ * Checks a photo's size and real type from its first bytes (`head`, at least the first PHOTO_HEAD_BYTES or the
+ * whole file) and its full length; says in plain words why a file is refused.
+ */
+export function checkPhoto(head: Uint8Array, byteSize: number, fileName = 'the file'): ({ ok: true } & PhotoFacts) | PhotoRefusal {
+  if (byteSize === 0) return { ok: false, code: 'empty', message: `${fileName} is empty.` };
+  if (byteSize > PHOTO_MAX_BYTES) {
+    return { ok: false, code: 'too_large', message: `${fileName} is ${(byteSize / 1048576).toFixed(1)} MB; photos can be at most 10 MB each.` };
   }
-  const type = sniffImageType(bytes);
+  const type = sniffImageType(head);
   if (!type) {
     return { ok: false, code: 'not_an_image', message: `${fileName} is not a photo (JPEG, PNG, WebP, GIF, HEIC or AVIF), whatever its name says.` };
   }
-  const size = readImageSize(bytes, type);
+  const size = readImageSize(head, type);
+  return { ok: true, contentType: type, width: size?.width ?? null, height: size?.height ?? null };
+}
+
+/** Checks an upload held in memory and hashes it (the oil-change form's photos). */
+export function preparePhoto(bytes: Uint8Array, fileName = 'the file'): PhotoCheck {
+  const c = checkPhoto(bytes, bytes.byteLength, fileName);
+  if (!c.ok) return c;
   return {
     ok: true,
     photo: {
-      bytes, sha256: createHash('sha256').update(bytes).digest('hex'), contentType: type, byteSize: bytes.byteLength,
-      width: size?.width ?? null, height: size?.height ?? null,
+      bytes, sha256: createHash('sha256').update(bytes).digest('hex'), contentType: c.contentType, byteSize: bytes.byteLength,
+      width: c.width, height: c.height,
     },
   };
 }

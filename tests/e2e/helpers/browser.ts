@@ -44,6 +44,8 @@ declare module 'vitest' {
     baseUrl: string;
     databaseUrl: string;
     smtpPort: number;
+    /** The e2e server's object store (S3 API), where its photos live. */
+    s3Endpoint: string;
   }
 }
 

@@ -1,7 +1,6 @@
 import type { APIRoute } from 'astro';
 import { z } from 'zod';
 import { requireApiCrew } from '~/lib/auth/guards';
-import { getConfig } from '~/lib/config';
 import { getDb } from '~/lib/db';
 import { jsonError, jsonOk, parseJsonBody } from '~/lib/http/json';
 import { refuseQueuedWriteOfOtherCrew } from '~/lib/http/queued-write';
@@ -9,6 +8,7 @@ import { actorFrom, refusalJson } from '~/lib/http/page-context';
 import { readOilChangeUpload } from '~/lib/oil-changes/oil-change-upload';
 import { createOilChange, listOilChanges } from '~/lib/oil-changes/oil-changes.service';
 import { PhotoStorageError } from '~/lib/photos/photos.storage';
+import { getPhotoStore } from '~/lib/photos/photo-stores';
 
 /** GET the machine's oil changes, newest first, with the distance since the previous one. */
 export const GET: APIRoute = async ({ params, locals }) => {
@@ -34,7 +34,7 @@ export const POST: APIRoute = async ({ params, request, locals }) => {
     const upload = await readOilChangeUpload(request);
     if (!upload.ok) return jsonError(upload.status, upload.status === 413 ? 'too_large' : 'invalid_input', upload.message, { photos: upload.message });
     input = upload.input;
-    photos = { newPhotos: upload.photos, uploadDir: getConfig().UPLOAD_DIR };
+    photos = { newPhotos: upload.photos, photoStore: getPhotoStore() };
   } else {
     const body = await parseJsonBody(request, z.looseObject({}));
     if (!body.ok) return body.response;
