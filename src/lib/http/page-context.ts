@@ -28,7 +28,6 @@ export function echoValues(form: URLSearchParams | FormData): Record<string, str
   return out;
 }
 
-export { refusalJson } from './responses';
 
 /** What a machine page needs once the visitor may see it. */
 export interface MachinePageContext {

@@ -25,9 +25,6 @@ export interface Refusal {
 
 export type Result<T> = { ok: true; value: T } | Refusal;
 
-/** @deprecated The old name of {@link Result}, kept while the features still importing it move over. */
-export type ServiceResult<T> = Result<T>;
-
 /** A successful outcome. */
 export function succeed<T>(value: T): { ok: true; value: T } {
   return { ok: true, value };
@@ -57,9 +54,6 @@ export function refuseForbidden(message = 'Your role in this crew does not allow
 export function refuseInvalid(error: z.ZodError, message = 'Some fields need attention.'): Refusal {
   return refuse(400, 'invalid_input', message, fieldErrorsFrom(error));
 }
-
-/** @deprecated Moved to the auth domain module; import `Actor` from `~/lib/auth/types`. */
-export type { Actor } from '../auth/types';
 
 /** Turns a posted form into a plain object: repeated names become arrays, everything else a string. */
 export function readFormObject(form: URLSearchParams | FormData, repeated: readonly string[] = []): Record<string, unknown> {

@@ -44,5 +44,3 @@ export async function deleteMachineRow(db: Db, crewId: string, id: string): Prom
   return Number(r.numDeletedRows) > 0;
 }
 
-/** @deprecated Import `isUuid` from `~/lib/ids`; re-exported while other features still import it from here. */
-export { isUuid } from '~/lib/ids';

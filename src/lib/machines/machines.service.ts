@@ -6,7 +6,8 @@ import { machineInputSchema, parseGradeRows, toMachine, type Machine } from './m
 import {
   countMachineRecords, deleteMachineRow, findMachineOfCrew, findMachinesOfCrew, insertMachine, updateMachineRow,
 } from './machines.repository';
-import { refuse, refuseInvalid, refuseNotFound, succeed, type Actor, type ServiceResult } from '~/lib/http/result';
+import { refuse, refuseInvalid, refuseNotFound, succeed, type Result } from '~/lib/http/result';
+import type { Actor } from '~/lib/auth/types';
 import { formatCount } from '../words/words';
 
 /** The crew's machines for a member (archived ones too when asked). */
@@ -16,7 +17,7 @@ export async function listMachines(db: Kysely<Database>, actor: Actor, options: 
 }
 
 /** One machine of the actor's crew, or a 404 refusal. */
-export async function getMachine(db: Kysely<Database>, actor: Actor, id: string): Promise<ServiceResult<Machine>> {
+export async function getMachine(db: Kysely<Database>, actor: Actor, id: string): Promise<Result<Machine>> {
   if (!canReadCrew(actor.membership)) return refuseNotFound('machine');
   const row = await findMachineOfCrew(db, actor.membership.crewId, id);
   return row ? succeed(toMachine(row)) : refuseNotFound('machine');
@@ -46,7 +47,7 @@ function validate(input: unknown, temperatureUnit: TemperatureUnit) {
 }
 
 /** Adds a machine owned by the actor; temperatures arrive in the actor's unit. */
-export async function createMachine(db: Kysely<Database>, actor: Actor, input: unknown, temperatureUnit: TemperatureUnit): Promise<ServiceResult<Machine>> {
+export async function createMachine(db: Kysely<Database>, actor: Actor, input: unknown, temperatureUnit: TemperatureUnit): Promise<Result<Machine>> {
   if (!canCreateMachine(actor.membership)) return refuse(403, 'forbidden', 'Your role in this crew does not add machines.');
   const v = validate(input, temperatureUnit);
   if (!v.ok) return v.refusal;
@@ -55,7 +56,7 @@ export async function createMachine(db: Kysely<Database>, actor: Actor, input: u
 }
 
 /** Changes a machine's details. Switching the meter unit is refused once readings exist (they would change meaning). */
-export async function updateMachine(db: Kysely<Database>, actor: Actor, id: string, input: unknown, temperatureUnit: TemperatureUnit): Promise<ServiceResult<Machine>> {
+export async function updateMachine(db: Kysely<Database>, actor: Actor, id: string, input: unknown, temperatureUnit: TemperatureUnit): Promise<Result<Machine>> {
   const found = await getMachine(db, actor, id);
   if (!found.ok) return found;
   if (!canActorEdit(actor, found.value)) return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can change it.');
@@ -72,7 +73,7 @@ export async function updateMachine(db: Kysely<Database>, actor: Actor, id: stri
 }
 
 /** Archives (hides) or restores a machine; its records stay. */
-export async function setMachineArchived(db: Kysely<Database>, actor: Actor, id: string, archived: boolean): Promise<ServiceResult<Machine>> {
+export async function setMachineArchived(db: Kysely<Database>, actor: Actor, id: string, archived: boolean): Promise<Result<Machine>> {
   const found = await getMachine(db, actor, id);
   if (!found.ok) return found;
   if (!canActorEdit(actor, found.value)) return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can archive it.');
@@ -81,7 +82,7 @@ export async function setMachineArchived(db: Kysely<Database>, actor: Actor, id:
 }
 
 /** Deletes a machine only when no sample or oil change hangs from it; otherwise asks to archive instead. */
-export async function deleteMachine(db: Kysely<Database>, actor: Actor, id: string): Promise<ServiceResult<{ deleted: true }>> {
+export async function deleteMachine(db: Kysely<Database>, actor: Actor, id: string): Promise<Result<{ deleted: true }>> {
   const found = await getMachine(db, actor, id);
   if (!found.ok) return found;
   if (!canActorEdit(actor, found.value)) return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can delete it.');

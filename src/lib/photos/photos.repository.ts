@@ -1,6 +1,6 @@
 import type { Kysely, Transaction } from 'kysely';
 import type { Database } from '../db/database';
-import { isUuid } from '../machines/machines.repository';
+import { isUuid } from '../ids';
 
 type Db = Kysely<Database> | Transaction<Database>;
 

@@ -142,5 +142,3 @@ export async function listTrendOilChanges(db: Kysely<Database>, machineId: strin
   return rows.map((r) => ({ changedOn: r.changed_on, odometerStored: Number(r.odometer), grade: r.sae_grade }));
 }
 
-/** @deprecated Import `isUuid` from `~/lib/ids`; re-exported while other features still import it from here. */
-export { isUuid } from '~/lib/ids';

@@ -4,7 +4,8 @@ import { requireApiCrew } from '~/lib/auth/guards';
 import { getDb } from '~/lib/db';
 import { jsonOk, parseJsonBody } from '~/lib/http/json';
 import { createMachine, listMachines } from '~/lib/machines/machines.service';
-import { actorFrom, refusalJson } from '~/lib/http/page-context';
+import { actorFrom } from '~/lib/http/page-context';
+import { refusalJson } from '~/lib/http/responses';
 
 /** GET the crew's machines (?archived=1 to include archived ones). */
 export const GET: APIRoute = async ({ locals, url }) => {

@@ -2,7 +2,7 @@ import type { APIRoute } from 'astro';
 import { Readable } from 'node:stream';
 import { requireApiUser } from '~/lib/auth/guards';
 import { getDb } from '~/lib/db';
-import { refusalJson } from '~/lib/http/page-context';
+import { refusalJson } from '~/lib/http/responses';
 import { getPhotoForMember } from '~/lib/photos/photos.service';
 import { photoKey, PhotoStorageError } from '~/lib/photos/photo-store';
 import { getPhotoStore } from '~/lib/photos/photo-stores';

@@ -5,7 +5,8 @@ import { getDb } from '~/lib/db';
 import type { SampleState } from '~/lib/db/database';
 import { jsonError, jsonOk, parseJsonBody } from '~/lib/http/json';
 import { refuseQueuedWriteOfOtherCrew } from '~/lib/http/queued-write';
-import { actorFrom, refusalJson } from '~/lib/http/page-context';
+import { actorFrom } from '~/lib/http/page-context';
+import { refusalJson } from '~/lib/http/responses';
 import { SAMPLE_STATES } from '~/lib/samples/samples';
 import { listSamplesByState, registerDrainCard } from '~/lib/samples/samples.service';
 

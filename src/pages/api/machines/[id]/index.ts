@@ -4,7 +4,8 @@ import { requireApiCrew } from '~/lib/auth/guards';
 import { getDb } from '~/lib/db';
 import { jsonOk, parseJsonBody } from '~/lib/http/json';
 import { deleteMachine, getMachine, setMachineArchived, updateMachine } from '~/lib/machines/machines.service';
-import { actorFrom, refusalJson } from '~/lib/http/page-context';
+import { actorFrom } from '~/lib/http/page-context';
+import { refusalJson } from '~/lib/http/responses';
 
 /** GET one machine of the crew (another crew's id answers 404). */
 export const GET: APIRoute = async ({ params, locals }) => {

@@ -2,7 +2,8 @@ import type { APIRoute } from 'astro';
 import { requireApiCrew } from '~/lib/auth/guards';
 import { getDb } from '~/lib/db';
 import { jsonOk } from '~/lib/http/json';
-import { actorFrom, refusalJson } from '~/lib/http/page-context';
+import { actorFrom } from '~/lib/http/page-context';
+import { refusalJson } from '~/lib/http/responses';
 import { getSampleDetail } from '~/lib/samples/samples.service';
 
 /** GET one sample of the crew with its state history. */

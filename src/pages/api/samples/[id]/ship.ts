@@ -3,7 +3,8 @@ import { z } from 'zod';
 import { requireApiCrew } from '~/lib/auth/guards';
 import { getDb } from '~/lib/db';
 import { jsonOk, parseJsonBody } from '~/lib/http/json';
-import { actorFrom, refusalJson } from '~/lib/http/page-context';
+import { actorFrom } from '~/lib/http/page-context';
+import { refusalJson } from '~/lib/http/responses';
 import { markSampleShipped } from '~/lib/samples/samples.service';
 
 /** POST { trackingNote? }: marks a drawn sample shipped. */

@@ -4,7 +4,8 @@ import { requireApiCrew } from '~/lib/auth/guards';
 import { getDb } from '~/lib/db';
 import { jsonOk, parseJsonBody } from '~/lib/http/json';
 import { refuseQueuedWriteOfOtherCrew } from '~/lib/http/queued-write';
-import { actorFrom, refusalJson } from '~/lib/http/page-context';
+import { actorFrom } from '~/lib/http/page-context';
+import { refusalJson } from '~/lib/http/responses';
 import { addWearMeasurement } from '~/lib/wear-parts/wear-parts.service';
 
 /** POST a wear-part measurement (JSON, the fields of the measurement form). A resend with the same clientKey writes nothing new. */
