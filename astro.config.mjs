@@ -43,7 +43,14 @@ export default defineConfig({
       },
       injectManifest: {
         // Scripts, styles, the Latin font files (the interface is in English), icons and the offline page.
-        globPatterns: ['_astro/**/*.{js,css}', '_astro/**/*-latin-*.woff2', '_astro/**/*-latin-ext-*.woff2', 'icons/*.{png,svg}', 'favicon.svg', 'offline.html'],
+        globPatterns: [
+          '_astro/**/*.{js,css}',
+          '_astro/**/*-latin-*.woff2',
+          '_astro/**/*-latin-ext-*.woff2',
+          'icons/*.{png,svg}',
+          'favicon.svg',
+          'offline.html',
+        ],
         maximumFileSizeToCacheInBytes: 3 * 1024 * 1024,
         // Keep file names as they are: the integration's default turns offline.html into /offline, a
         // page the server does not have (pages here are rendered on the server, not prebuilt).

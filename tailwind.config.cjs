@@ -8,11 +8,22 @@ module.exports = {
       colors: {
         ink: { DEFAULT: '#16202a', soft: '#3a4a5a', faint: '#56636f' },
         paper: { DEFAULT: '#f7f5f0', raised: '#ffffff', sunk: '#ece8df' },
-        steel: { 50: '#eef4f8', 100: '#d6e4ee', 300: '#8fb0c6', 500: '#3d6f91', 600: '#2c5a7a', 700: '#1f4560', 900: '#0f2536' },
+        steel: {
+          50: '#eef4f8',
+          100: '#d6e4ee',
+          300: '#8fb0c6',
+          500: '#3d6f91',
+          600: '#2c5a7a',
+          700: '#1f4560',
+          900: '#0f2536',
+        },
         level: {
-          steady: '#2f6b3a', 'steady-bg': '#e3f0e3',
-          watch: '#8a5a00', 'watch-bg': '#fbefd2',
-          act: '#a12a1c', 'act-bg': '#f8e0dc',
+          steady: '#2f6b3a',
+          'steady-bg': '#e3f0e3',
+          watch: '#8a5a00',
+          'watch-bg': '#fbefd2',
+          act: '#a12a1c',
+          'act-bg': '#f8e0dc',
         },
         // Safety cautions only: an indigo of its own, so a caution never reads as a watch level.
         safety: { DEFAULT: '#463c8c', bg: '#eeecf8' },

@@ -9,9 +9,24 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn('email_verified_at', 'timestamptz')
     .addColumn('password_hash', 'text', (c) => c.notNull())
     .addColumn('display_name', 'text', (c) => c.notNull())
-    .addColumn('distance_unit', 'text', (c) => c.notNull().defaultTo('mi').check(sql`distance_unit in ('mi', 'km')`))
-    .addColumn('length_unit', 'text', (c) => c.notNull().defaultTo('in').check(sql`length_unit in ('in', 'mm')`))
-    .addColumn('temperature_unit', 'text', (c) => c.notNull().defaultTo('F').check(sql`temperature_unit in ('F', 'C')`))
+    .addColumn('distance_unit', 'text', (c) =>
+      c
+        .notNull()
+        .defaultTo('mi')
+        .check(sql`distance_unit in ('mi', 'km')`),
+    )
+    .addColumn('length_unit', 'text', (c) =>
+      c
+        .notNull()
+        .defaultTo('in')
+        .check(sql`length_unit in ('in', 'mm')`),
+    )
+    .addColumn('temperature_unit', 'text', (c) =>
+      c
+        .notNull()
+        .defaultTo('F')
+        .check(sql`temperature_unit in ('F', 'C')`),
+    )
     .addColumn('created_at', 'timestamptz', (c) => c.notNull().defaultTo(sql`now()`))
     .execute();
   await sql`create unique index users_email_lower_key on users (lower(email))`.execute(db);

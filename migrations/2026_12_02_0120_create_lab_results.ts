@@ -96,7 +96,17 @@ const UP = [
   )`,
 ];
 
-const DOWN = ['crew_limits', 'review_notes', 'interval_calls', 'findings', 'reading_history', 'readings', 'lab_imports', 'lab_profiles', 'lab_files'];
+const DOWN = [
+  'crew_limits',
+  'review_notes',
+  'interval_calls',
+  'findings',
+  'reading_history',
+  'readings',
+  'lab_imports',
+  'lab_profiles',
+  'lab_files',
+];
 
 export async function up(db: Kysely<any>): Promise<void> {
   for (const statement of UP) await sql.raw(statement).execute(db);

@@ -45,10 +45,16 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn('at', 'timestamptz', (c) => c.notNull().defaultTo(sql`now()`))
     .execute();
   await db.schema.createIndex('audit_events_crew_idx').on('audit_events').columns(['crew_id', 'at']).execute();
-  await db.schema.createIndex('audit_events_subject_idx').on('audit_events').columns(['subject_user_id', 'at']).execute();
+  await db.schema
+    .createIndex('audit_events_subject_idx')
+    .on('audit_events')
+    .columns(['subject_user_id', 'at'])
+    .execute();
 
   // The shape rate-limiter-flexible's RateLimiterPostgres expects (created here so the app never runs DDL).
-  await sql`create table rate_limits (key varchar(255) primary key, points integer not null default 0, expire bigint)`.execute(db);
+  await sql`create table rate_limits (key varchar(255) primary key, points integer not null default 0, expire bigint)`.execute(
+    db,
+  );
 }
 
 export async function down(db: Kysely<any>): Promise<void> {

@@ -29,7 +29,9 @@ export async function up(db: Kysely<any>): Promise<void> {
     .execute();
   // The worker's only query: unsent rows that are due, oldest first. A partial index stays small because
   // finished rows leave it.
-  await sql`create index mail_outbox_due_idx on mail_outbox (next_attempt_at, created_at) where sent_at is null and failed_at is null`.execute(db);
+  await sql`create index mail_outbox_due_idx on mail_outbox (next_attempt_at, created_at) where sent_at is null and failed_at is null`.execute(
+    db,
+  );
 
   await db.schema
     .createTable('dev_mailbox')

@@ -33,7 +33,9 @@ export async function up(db: Kysely<any>): Promise<void> {
   await db.schema
     .createTable('alert_digest_items')
     .addColumn('id', 'uuid', (c) => c.primaryKey().defaultTo(sql`gen_random_uuid()`))
-    .addColumn('dedupe_key', 'text', (c) => c.notNull().unique().references('alert_deliveries.dedupe_key').onDelete('cascade'))
+    .addColumn('dedupe_key', 'text', (c) =>
+      c.notNull().unique().references('alert_deliveries.dedupe_key').onDelete('cascade'),
+    )
     .addColumn('user_id', 'text', (c) => c.notNull().references('users.id').onDelete('cascade'))
     .addColumn('crew_id', 'uuid', (c) => c.notNull().references('crews.id').onDelete('cascade'))
     .addColumn('kind', 'text', (c) => c.notNull().check(kinds))
@@ -43,7 +45,9 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn('digested_at', 'timestamptz')
     .addColumn('digest_key', 'text')
     .execute();
-  await sql`create index alert_digest_items_pending_idx on alert_digest_items (user_id, created_at) where digested_at is null`.execute(db);
+  await sql`create index alert_digest_items_pending_idx on alert_digest_items (user_id, created_at) where digested_at is null`.execute(
+    db,
+  );
   // The import alert finds the samples an import wrote through their readings, inside the import's
   // transaction: without this index that is a scan of every reading ever imported.
   await sql`create index readings_lab_import_idx on readings (lab_import_id)`.execute(db);

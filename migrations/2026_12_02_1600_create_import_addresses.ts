@@ -42,10 +42,14 @@ export async function up(db: Kysely<any>): Promise<void> {
     processed_at timestamptz,
     unique (crew_id, raw_sha256)
   )`.execute(db);
-  await sql`create index inbound_mails_pending_idx on inbound_mails (received_at) where status = 'received'`.execute(db);
+  await sql`create index inbound_mails_pending_idx on inbound_mails (received_at) where status = 'received'`.execute(
+    db,
+  );
   await sql`create index inbound_mails_crew_idx on inbound_mails (crew_id, received_at)`.execute(db);
   await sql`alter table lab_files alter column uploaded_by drop not null`.execute(db);
-  await sql`alter table lab_files add column inbound_mail_id uuid references inbound_mails(id) on delete set null`.execute(db);
+  await sql`alter table lab_files add column inbound_mail_id uuid references inbound_mails(id) on delete set null`.execute(
+    db,
+  );
   await sql`alter table lab_profiles add column sheet_name text check (length(sheet_name) <= 200)`.execute(db);
   for (const table of KIND_TABLES) {
     await sql.raw(`alter table ${table} drop constraint ${table}_kind_check`).execute(db);

@@ -10,11 +10,15 @@ import { sql, type Kysely } from 'kysely';
 // devices, or a device and the online "issue a code" button, never get the same one.
 export async function up(db: Kysely<any>): Promise<void> {
   await db.schema.alterTable('oil_changes').addColumn('client_key', 'text').execute();
-  await sql`create unique index oil_changes_client_key_key on oil_changes (crew_id, client_key) where client_key is not null`.execute(db);
+  await sql`create unique index oil_changes_client_key_key on oil_changes (crew_id, client_key) where client_key is not null`.execute(
+    db,
+  );
   await db.schema.alterTable('wear_measurements').addColumn('client_key', 'text').execute();
   // Measurements hang off a wear part (which belongs to one crew), so a key is unique per part and looked
   // up through the part's crew.
-  await sql`create unique index wear_measurements_client_key_key on wear_measurements (wear_part_id, client_key) where client_key is not null`.execute(db);
+  await sql`create unique index wear_measurements_client_key_key on wear_measurements (wear_part_id, client_key) where client_key is not null`.execute(
+    db,
+  );
 
   await db.schema
     .createTable('bottle_code_reservations')
@@ -24,7 +28,11 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn('device_key', 'text', (c) => c.notNull())
     .addColumn('reserved_at', 'timestamptz', (c) => c.notNull().defaultTo(sql`now()`))
     .execute();
-  await db.schema.createIndex('bottle_code_reservations_device_idx').on('bottle_code_reservations').columns(['crew_id', 'user_id', 'device_key']).execute();
+  await db.schema
+    .createIndex('bottle_code_reservations_device_idx')
+    .on('bottle_code_reservations')
+    .columns(['crew_id', 'user_id', 'device_key'])
+    .execute();
 }
 
 export async function down(db: Kysely<any>): Promise<void> {

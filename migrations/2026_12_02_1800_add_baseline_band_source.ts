@@ -11,7 +11,9 @@ const UP = [
      add constraint baseline_bands_crew_label check (source = 'own' or source_label is not null)`,
 ];
 
-const DOWN = [`alter table baseline_bands drop constraint baseline_bands_crew_label, drop column source_machines, drop column source_label, drop column source`];
+const DOWN = [
+  `alter table baseline_bands drop constraint baseline_bands_crew_label, drop column source_machines, drop column source_label, drop column source`,
+];
 
 export async function up(db: Kysely<any>): Promise<void> {
   for (const statement of UP) await sql.raw(statement).execute(db);

@@ -6,7 +6,13 @@ import type { Kysely, Transaction } from 'kysely';
 import { findGradeWindow } from '../src/lib/analysis/viscosity';
 import type { Database } from '../src/lib/db/database';
 import type { LabReadings } from '../src/lib/lab-csv/lab-csv';
-import { formatLabCsv, LAB_CSV_LAYOUTS, LAB_NAMES, type LabCsvLayout, type LabReportRow } from '../src/lib/lab-csv/lab-csv-layouts';
+import {
+  formatLabCsv,
+  LAB_CSV_LAYOUTS,
+  LAB_NAMES,
+  type LabCsvLayout,
+  type LabReportRow,
+} from '../src/lib/lab-csv/lab-csv-layouts';
 import { confirmLabImport, storeLabFile } from '../src/lib/lab-import/lab-import.service';
 import { recomputeMachineFindings } from '../src/lib/findings/findings.service';
 
@@ -42,15 +48,41 @@ export function inventReadings(story: LabStory, i: number, n: number, grade: str
   const w = WOBBLE[i % WOBBLE.length] ?? 0;
   const window = grade ? findGradeWindow(grade) : null;
   // New-oil viscosity a little above the middle of the grade's SAE J300 window (13.2 mm²/s for a 40).
-  const kv100 = window && Number.isFinite(window.max) ? Math.round(((window.min + window.max) / 2 - 0.2) * 10) / 10 : 13.2;
+  const kv100 =
+    window && Number.isFinite(window.max) ? Math.round(((window.min + window.max) / 2 - 0.2) * 10) / 10 : 13.2;
   const r: LabReadings = {
-    Fe: { value: 22 + w }, Al: { value: 4 }, Cr: { value: 1 }, Cu: { value: 5 + (w > 0 ? 1 : 0) }, Pb: { value: 2 },
-    Sn: lt(1), Ni: lt(1), Ag: lt(0), Ti: lt(0), V: lt(0), Mn: { value: 1 },
-    Si: { value: 8 + w }, Na: { value: 3 }, K: lt(1), B: { value: 3 },
-    Mo: { value: 55 }, Zn: { value: 1020 + 10 * w }, P: { value: 930 + 8 * w }, Ca: { value: 2300 + 20 * w }, Mg: { value: 16 }, Ba: lt(1), S: { value: 2400 },
-    KV40: { value: Math.round(kv100 * 6.9 * 10) / 10 }, KV100: { value: kv100 }, VI: { value: 146 },
-    TBN: { value: 7.2 }, TAN: { value: 2.1 }, FUEL: { value: 0.4 }, WATER: lt(0.05), GLYCOL: { value: 0 },
-    FLASH: { value: 215 }, INSOL: { value: 0.3 },
+    Fe: { value: 22 + w },
+    Al: { value: 4 },
+    Cr: { value: 1 },
+    Cu: { value: 5 + (w > 0 ? 1 : 0) },
+    Pb: { value: 2 },
+    Sn: lt(1),
+    Ni: lt(1),
+    Ag: lt(0),
+    Ti: lt(0),
+    V: lt(0),
+    Mn: { value: 1 },
+    Si: { value: 8 + w },
+    Na: { value: 3 },
+    K: lt(1),
+    B: { value: 3 },
+    Mo: { value: 55 },
+    Zn: { value: 1020 + 10 * w },
+    P: { value: 930 + 8 * w },
+    Ca: { value: 2300 + 20 * w },
+    Mg: { value: 16 },
+    Ba: lt(1),
+    S: { value: 2400 },
+    KV40: { value: Math.round(kv100 * 6.9 * 10) / 10 },
+    KV100: { value: kv100 },
+    VI: { value: 146 },
+    TBN: { value: 7.2 },
+    TAN: { value: 2.1 },
+    FUEL: { value: 0.4 },
+    WATER: lt(0.05),
+    GLYCOL: { value: 0 },
+    FLASH: { value: 215 },
+    INSOL: { value: 0.3 },
   };
   const fromEnd = n - 1 - i; // 0 for the newest sample with results.
   switch (story) {
@@ -102,7 +134,10 @@ function addDays(iso: string, days: number): string {
 }
 
 function slug(text: string): string {
-  return text.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '');
+  return text
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, '-')
+    .replace(/^-|-$/g, '');
 }
 
 export interface SeededLabReports {
@@ -118,7 +153,10 @@ export interface SeededLabReports {
  * one machine), write them as the invented labs' files (three layouts, consecutive stretches of time), and
  * import each file through storeLabFile + confirmLabImport.
  */
-export async function seedLabReports(db: Db, options: { crewIds: string[]; userId: string }): Promise<SeededLabReports> {
+export async function seedLabReports(
+  db: Db,
+  options: { crewIds: string[]; userId: string },
+): Promise<SeededLabReports> {
   const out: SeededLabReports = { files: 0, samples: 0, readings: 0, waitingSampleId: null };
   for (const crewId of options.crewIds) {
     const machines = await db
@@ -131,14 +169,22 @@ export async function seedLabReports(db: Db, options: { crewIds: string[]; userI
       .selectFrom('samples')
       .select(['id', 'machine_id', 'bottle_code', 'drawn_on', 'sae_grade'])
       .where('crew_id', '=', crewId)
-      .where((eb) => eb.not(eb.exists(eb.selectFrom('readings').select('sample_id').whereRef('readings.sample_id', '=', 'samples.id'))))
+      .where((eb) =>
+        eb.not(
+          eb.exists(eb.selectFrom('readings').select('sample_id').whereRef('readings.sample_id', '=', 'samples.id')),
+        ),
+      )
       .orderBy('drawn_on')
       .orderBy('odometer')
       .execute();
 
     const rows: (LabReportRow & { drawnOn: string })[] = [];
     for (const machine of machines) {
-      const story = pickLabStory({ displacementCc: machine.displacement_cc, cooling: machine.cooling, onlyMachineOfCrew: machines.length === 1 });
+      const story = pickLabStory({
+        displacementCc: machine.displacement_cc,
+        cooling: machine.cooling,
+        onlyMachineOfCrew: machines.length === 1,
+      });
       let own = samples.filter((s) => s.machine_id === machine.id);
       // The air-cooled single's newest bottle is still on its way to the lab.
       if (story === 'fuel-dilution' && out.waitingSampleId === null && own.length > 1) {
@@ -164,23 +210,47 @@ export async function seedLabReports(db: Db, options: { crewIds: string[]; userI
       const slice = rows.slice(Math.floor((p * rows.length) / parts), Math.floor(((p + 1) * rows.length) / parts));
       if (slice.length === 0) continue;
       const layout: LabCsvLayout = LAB_CSV_LAYOUTS[p]!;
-      const text = formatLabCsv(layout, slice.map(({ drawnOn: _d, ...row }) => row));
+      const text = formatLabCsv(
+        layout,
+        slice.map(({ drawnOn: _d, ...row }) => row),
+      );
       const ext = layout === 'units-row-saybolt' ? 'tsv' : 'csv';
       const fileName = `${slug(LAB_NAMES[layout])}-${slice[0]!.drawnOn}.${ext}`;
-      const stored = await storeLabFile(db, { crewId, userId: options.userId, fileName, bytes: new TextEncoder().encode(text) });
+      const stored = await storeLabFile(db, {
+        crewId,
+        userId: options.userId,
+        fileName,
+        bytes: new TextEncoder().encode(text),
+      });
       if (!stored.ok) throw new Error(`demo lab file ${fileName}: ${stored.message}`);
-      const confirmed = await confirmLabImport(db, { crewId, userId: options.userId, labFileId: stored.value.labFileId, decisions: {} });
+      const confirmed = await confirmLabImport(db, {
+        crewId,
+        userId: options.userId,
+        labFileId: stored.value.labFileId,
+        decisions: {},
+      });
       if (!confirmed.ok) {
-        throw new Error(`demo lab file ${fileName}: ${confirmed.message} ${Object.values(confirmed.fields ?? {}).slice(0, 3).join(' ')}`);
+        throw new Error(
+          `demo lab file ${fileName}: ${confirmed.message} ${Object.values(confirmed.fields ?? {})
+            .slice(0, 3)
+            .join(' ')}`,
+        );
       }
       out.files += 1;
       out.samples += confirmed.value.samplesWritten;
       out.readings += confirmed.value.readingsWritten;
       // The lab's results arrived about when it reported them (never later than today), not all on seed day:
       // "next sample by" dates count from that day.
-      const arrived = slice.reduce((latest, r) => ((r.reported ?? r.drawnOn) > latest ? (r.reported ?? r.drawnOn) : latest), '');
+      const arrived = slice.reduce(
+        (latest, r) => ((r.reported ?? r.drawnOn) > latest ? (r.reported ?? r.drawnOn) : latest),
+        '',
+      );
       const today = new Date().toISOString().slice(0, 10);
-      await db.updateTable('lab_imports').set({ confirmed_at: new Date(`${arrived < today ? arrived : today}T12:00:00Z`) }).where('id', '=', confirmed.value.importId).execute();
+      await db
+        .updateTable('lab_imports')
+        .set({ confirmed_at: new Date(`${arrived < today ? arrived : today}T12:00:00Z`) })
+        .where('id', '=', confirmed.value.importId)
+        .execute();
     }
     // Judge the crew's machines again now the arrival days are known (the same replay the import ran).
     for (const machine of machines) {

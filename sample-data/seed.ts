@@ -10,7 +10,10 @@ import { seedImportSenders } from './seed-lab-mail';
 
 /** True when the database holds no users yet (a fresh install). */
 export async function isDatabaseEmpty(db: Kysely<Database>): Promise<boolean> {
-  const row = await db.selectFrom('users').select(sql<number>`count(*)::int`.as('n')).executeTakeFirstOrThrow();
+  const row = await db
+    .selectFrom('users')
+    .select(sql<number>`count(*)::int`.as('n'))
+    .executeTakeFirstOrThrow();
   return row.n === 0;
 }
 
@@ -25,7 +28,10 @@ export async function seedDemo(db: Kysely<Database>): Promise<string> {
       soloUserId: accounts.userIds.solo,
     });
     // The school's mechanic imports the school's reports; the solo rider imports their own.
-    const schoolLabs = await seedLabReports(trx, { crewIds: [accounts.schoolCrewId], userId: accounts.userIds.mechanic });
+    const schoolLabs = await seedLabReports(trx, {
+      crewIds: [accounts.schoolCrewId],
+      userId: accounts.userIds.mechanic,
+    });
     const soloLabs = await seedLabReports(trx, { crewIds: [accounts.soloCrewId], userId: accounts.userIds.solo });
     // The school's lab mails its reports; only its address is accepted at the school's import address.
     await seedImportSenders(trx, { crewId: accounts.schoolCrewId, userId: accounts.userIds.lead });

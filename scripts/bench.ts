@@ -8,10 +8,19 @@ import { ROOT } from './lib/processes';
 
 const dir = path.join(ROOT, 'tests/bench');
 const only = process.argv.slice(2);
-const files = readdirSync(dir).filter((f) => f.endsWith('.bench.ts') && (only.length === 0 || only.some((o) => f.includes(o)))).sort();
+const files = readdirSync(dir)
+  .filter((f) => f.endsWith('.bench.ts') && (only.length === 0 || only.some((o) => f.includes(o))))
+  .sort();
 const rows: [string, string, string][] = [];
 /** One line per limit a benchmark checks: what, result, its floor measured in the same run, the ratio, the limit. */
-interface SummaryRow { what: string; result: string; floor: string; ratio: number | null; limit: string; ok: boolean }
+interface SummaryRow {
+  what: string;
+  result: string;
+  floor: string;
+  ratio: number | null;
+  limit: string;
+  ok: boolean;
+}
 const summary: [string, SummaryRow][] = [];
 let failures = 0;
 
@@ -23,7 +32,9 @@ function lastJsonObject(stdout: string): Record<string, unknown> | undefined {
     try {
       const value = JSON.parse(lines.slice(i).join('\n')) as unknown;
       if (value && typeof value === 'object' && !Array.isArray(value)) return value as Record<string, unknown>;
-    } catch { /* not where the object starts: keep looking */ }
+    } catch {
+      /* not where the object starts: keep looking */
+    }
   }
   return undefined;
 }
@@ -40,12 +51,20 @@ for (const file of files) {
   const name = file.replace(/\.bench\.ts$/, '');
   process.stderr.write(`[bench] ${name}…\n`);
   const result = spawnSync(process.execPath, ['--expose-gc', '--import', 'tsx', path.join(dir, file)], {
-    cwd: ROOT, encoding: 'utf8', env: { ...process.env, ASTRO_TELEMETRY_DISABLED: '1' }, maxBuffer: 64 << 20, timeout: 15 * 60_000,
+    cwd: ROOT,
+    encoding: 'utf8',
+    env: { ...process.env, ASTRO_TELEMETRY_DISABLED: '1' },
+    maxBuffer: 64 << 20,
+    timeout: 15 * 60_000,
   });
   const json = lastJsonObject(String(result.stdout));
   if (result.status !== 0 || !json) {
     failures++;
-    rows.push([name, 'error', (String(result.stderr).trim().split('\n').pop() ?? `exit ${result.status}`).slice(0, 120)]);
+    rows.push([
+      name,
+      'error',
+      (String(result.stderr).trim().split('\n').pop() ?? `exit ${result.status}`).slice(0, 120),
+    ]);
     continue;
   }
   if (Array.isArray(json.summary)) for (const row of json.summary as SummaryRow[]) summary.push([name, row]);
@@ -60,9 +79,16 @@ const header = `Machine: ${os.cpus().length} × ${cpu}, ${(os.totalmem() / 2 ** 
 const summaryTable = [
   '| benchmark | what | result | floor in the same run | ratio | limit | |',
   '| --- | --- | --- | --- | --- | --- | --- |',
-  ...summary.map(([name, r]) => `| ${name} | ${r.what} | ${r.result} | ${r.floor} | ${r.ratio === null ? '—' : `${r.ratio} ×`} | ${r.limit} | ${r.ok ? '✔' : '✘'} |`),
+  ...summary.map(
+    ([name, r]) =>
+      `| ${name} | ${r.what} | ${r.result} | ${r.floor} | ${r.ratio === null ? '—' : `${r.ratio} ×`} | ${r.limit} | ${r.ok ? '✔' : '✘'} |`,
+  ),
 ].join('\n');
-const detail = ['| benchmark | figure | value |', '| --- | --- | --- |', ...rows.map((r) => `| ${r.join(' | ')} |`)].join('\n');
+const detail = [
+  '| benchmark | figure | value |',
+  '| --- | --- | --- |',
+  ...rows.map((r) => `| ${r.join(' | ')} |`),
+].join('\n');
 // The load average says how busy the machine was: other work on it inflates every timing.
 const table = `${summaryTable}\n\nLoad average (1 min) at the end: ${os.loadavg()[0]!.toFixed(2)}\n\n${detail}`;
 console.log(`${header}\n\n${table}`);

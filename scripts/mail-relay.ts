@@ -16,13 +16,21 @@ if (url.protocol !== 'smtp:') {
 const db = createDb(config.DATABASE_URL, { max: 3 });
 let relay: Awaited<ReturnType<typeof startMailRelay>>;
 try {
-  relay = await startMailRelay({ db, port, host: '127.0.0.1', inboundDomain: config.INBOUND_MAIL_DOMAIN, log: (line) => console.log(line) });
+  relay = await startMailRelay({
+    db,
+    port,
+    host: '127.0.0.1',
+    inboundDomain: config.INBOUND_MAIL_DOMAIN,
+    log: (line) => console.log(line),
+  });
 } catch (error) {
   console.error(`[mail-relay] ${error instanceof Error ? error.message : String(error)}`);
   await db.destroy();
   process.exit(1);
 }
-console.log(`[mail-relay] listening on smtp://${relay.host}:${relay.port}, storing mail in dev_mailbox (lab mail to *@${config.INBOUND_MAIL_DOMAIN} goes to the crews' imports)`);
+console.log(
+  `[mail-relay] listening on smtp://${relay.host}:${relay.port}, storing mail in dev_mailbox (lab mail to *@${config.INBOUND_MAIL_DOMAIN} goes to the crews' imports)`,
+);
 
 let stopping = false;
 const stop = async (signal: string) => {

@@ -13,9 +13,13 @@ const db = createDb(config.DATABASE_URL, { max: 2 });
 try {
   const migrator = createMigrator(db, folder);
   const result =
-    command === 'latest' ? await migrator.migrateToLatest()
-    : command === 'down' ? await migrator.migrateDown()
-    : (() => { throw new Error(`unknown command ${command}; use latest or down`); })();
+    command === 'latest'
+      ? await migrator.migrateToLatest()
+      : command === 'down'
+        ? await migrator.migrateDown()
+        : (() => {
+            throw new Error(`unknown command ${command}; use latest or down`);
+          })();
   for (const r of result.results ?? []) console.log(`[migrate] ${r.direction} ${r.migrationName}: ${r.status}`);
   assertMigrated(result);
   if (!result.results?.length) console.log('[migrate] nothing to do');

@@ -20,7 +20,9 @@ try {
   console.error(`[object-store] ${error instanceof Error ? error.message : String(error)}`);
   process.exit(1);
 }
-console.log(`[object-store] listening on ${store.endpoint}, bucket ${config.S3_BUCKET}, objects in ${path.relative(ROOT, directory) || directory}`);
+console.log(
+  `[object-store] listening on ${store.endpoint}, bucket ${config.S3_BUCKET}, objects in ${path.relative(ROOT, directory) || directory}`,
+);
 
 let stopping = false;
 const stop = async (signal: string) => {

@@ -34,7 +34,9 @@ function fail(message: string): never {
 function readSettings(): { config: AppConfig; processes: number } {
   const production = process.argv.includes('--production');
   if (production && process.env.DEV_MAILBOX === '1') {
-    fail('the production start never serves the dev mailbox: unset DEV_MAILBOX (it is for `npm start` on a loopback address only).');
+    fail(
+      'the production start never serves the dev mailbox: unset DEV_MAILBOX (it is for `npm start` on a loopback address only).',
+    );
   }
   let config: AppConfig;
   try {
@@ -43,8 +45,14 @@ function readSettings(): { config: AppConfig; processes: number } {
     fail(error instanceof Error ? error.message : String(error));
   }
   // Photos in production go to a real object store: the local fake's fixed credentials mean it was never set up.
-  if (production && config.PHOTO_STORE === 's3' && (!process.env.S3_ACCESS_KEY_ID || !process.env.S3_SECRET_ACCESS_KEY)) {
-    fail('the production start keeps photos in an object store: set S3_ENDPOINT, S3_BUCKET, S3_ACCESS_KEY_ID and S3_SECRET_ACCESS_KEY, or PHOTO_STORE=disk on a single machine.');
+  if (
+    production &&
+    config.PHOTO_STORE === 's3' &&
+    (!process.env.S3_ACCESS_KEY_ID || !process.env.S3_SECRET_ACCESS_KEY)
+  ) {
+    fail(
+      'the production start keeps photos in an object store: set S3_ENDPOINT, S3_BUCKET, S3_ACCESS_KEY_ID and S3_SECRET_ACCESS_KEY, or PHOTO_STORE=disk on a single machine.',
+    );
   }
   const processes = config.APP_PROCESSES;
   return { config, processes };
@@ -80,14 +88,21 @@ async function runSupervisor(): Promise<void> {
     const next = nextRestart(quickDeaths, lived);
     quickDeaths = next.quickDeaths;
     const delay = next.delayMs;
-    console.error(`[serve] app process ${worker.process.pid} died (${signal ?? `exit ${code}`}) after ${(lived / 1000).toFixed(1)} s; starting another${delay ? ` in ${delay} ms` : ''}`);
-    setTimeout(() => { if (!stopping) fork(); }, delay);
+    console.error(
+      `[serve] app process ${worker.process.pid} died (${signal ?? `exit ${code}`}) after ${(lived / 1000).toFixed(1)} s; starting another${delay ? ` in ${delay} ms` : ''}`,
+    );
+    setTimeout(() => {
+      if (!stopping) fork();
+    }, delay);
   });
 
   let listening = 0;
   cluster.on('listening', () => {
     listening += 1;
-    if (listening === processes) console.log(`listening on http://${config.HOST}:${config.PORT} (${processes} app process${processes === 1 ? '' : 'es'})`);
+    if (listening === processes)
+      console.log(
+        `listening on http://${config.HOST}:${config.PORT} (${processes} app process${processes === 1 ? '' : 'es'})`,
+      );
   });
 
   const stop = (signal: NodeJS.Signals) => {
@@ -95,7 +110,9 @@ async function runSupervisor(): Promise<void> {
     stopping = true;
     const workers = Object.values(cluster.workers ?? {}).filter((w): w is Worker => w !== undefined);
     console.log(`[serve] ${signal}: stopping ${workers.length} app process${workers.length === 1 ? '' : 'es'}`);
-    const killTimer = setTimeout(() => { for (const w of workers) w.process.kill('SIGKILL'); }, STOP_GRACE_MS);
+    const killTimer = setTimeout(() => {
+      for (const w of workers) w.process.kill('SIGKILL');
+    }, STOP_GRACE_MS);
     killTimer.unref();
     // disconnect(): the process stops accepting, finishes its open requests, then exits.
     for (const w of workers) w.disconnect();

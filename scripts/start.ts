@@ -44,8 +44,14 @@ async function main(): Promise<void> {
   const url = `http://${config.HOST}:${config.PORT}`;
 
   const other = runningInstance();
-  if (other) fail(`Sumpwise is already running at ${other.url} (pid ${other.pid}); stop it first (Ctrl-C in its terminal, or kill ${other.pid}).`);
-  if (await isPortOpen(config.HOST, config.PORT)) fail(`port ${config.PORT} on ${config.HOST} is already in use by another program: stop it or choose another port, e.g. PORT=4400 npm start`);
+  if (other)
+    fail(
+      `Sumpwise is already running at ${other.url} (pid ${other.pid}); stop it first (Ctrl-C in its terminal, or kill ${other.pid}).`,
+    );
+  if (await isPortOpen(config.HOST, config.PORT))
+    fail(
+      `port ${config.PORT} on ${config.HOST} is already in use by another program: stop it or choose another port, e.g. PORT=4400 npm start`,
+    );
 
   mkdirSync(path.join(ROOT, '.data'), { recursive: true });
   writeFileSync(PID_FILE, JSON.stringify({ pid: process.pid, url }));
@@ -79,7 +85,8 @@ async function main(): Promise<void> {
   const smtp = new URL(config.SMTP_URL);
   const localRelay = ['127.0.0.1', 'localhost'].includes(smtp.hostname) && !process.env.SMTP_URL;
   if (localRelay && existsSync(path.join(ROOT, 'scripts/mail-relay.ts'))) {
-    if (await isPortOpen(smtp.hostname, Number(smtp.port || 25))) fail(`port ${smtp.port} for the local mail relay is in use: stop that program or set SMTP_URL`);
+    if (await isPortOpen(smtp.hostname, Number(smtp.port || 25)))
+      fail(`port ${smtp.port} for the local mail relay is in use: stop that program or set SMTP_URL`);
     children.push(startService('mail', node, ['--import', 'tsx', 'scripts/mail-relay.ts'], env));
   }
   // Photos go to the S3 API. An endpoint on loopback with nothing listening gets the local fake (objects under
@@ -88,16 +95,21 @@ async function main(): Promise<void> {
   const s3Port = Number(s3.port || 80);
   if (config.PHOTO_STORE === 's3' && ['127.0.0.1', 'localhost'].includes(s3.hostname)) {
     if (await isPortOpen(s3.hostname, s3Port)) {
-      console.log(`[start] photos go to the object store already answering at ${config.S3_ENDPOINT} (bucket ${config.S3_BUCKET})`);
+      console.log(
+        `[start] photos go to the object store already answering at ${config.S3_ENDPOINT} (bucket ${config.S3_BUCKET})`,
+      );
     } else {
       children.push(startService('object-store', node, ['--import', 'tsx', 'scripts/object-store.ts'], env));
       await waitFor(() => isPortOpen(s3.hostname, s3Port), 30_000, 'the local object store');
     }
   }
-  if (existsSync(path.join(ROOT, 'scripts/worker.ts'))) children.push(startService('worker', node, ['--import', 'tsx', 'scripts/worker.ts'], env));
+  if (existsSync(path.join(ROOT, 'scripts/worker.ts')))
+    children.push(startService('worker', node, ['--import', 'tsx', 'scripts/worker.ts'], env));
   const server = startService('app', node, SERVE_ARGS, env, true);
   children.push(server);
-  server.once('exit', (code) => { if (!stopping) fail(`the app server stopped unexpectedly (exit ${code})`); });
+  server.once('exit', (code) => {
+    if (!stopping) fail(`the app server stopped unexpectedly (exit ${code})`);
+  });
 
   await waitFor(() => httpOk(`${url}/api/health`), 30_000, 'the app server');
   // First start of the demo: the invented lab mails a report, so a preview link waits in the local mailbox.
@@ -105,9 +117,13 @@ async function main(): Promise<void> {
     const mailDb = createDb(databaseUrl, { max: 1 });
     try {
       await waitFor(() => isPortOpen(smtp.hostname, Number(smtp.port || 25)), 30_000, 'the local mail relay');
-      console.log(`[demo] ${await sendDemoLabMail(mailDb, { smtpUrl: config.SMTP_URL, domain: config.INBOUND_MAIL_DOMAIN })}`);
+      console.log(
+        `[demo] ${await sendDemoLabMail(mailDb, { smtpUrl: config.SMTP_URL, domain: config.INBOUND_MAIL_DOMAIN })}`,
+      );
     } catch (error) {
-      console.log(`[demo] the demo lab mail could not be sent: ${error instanceof Error ? error.message : String(error)}`);
+      console.log(
+        `[demo] the demo lab mail could not be sent: ${error instanceof Error ? error.message : String(error)}`,
+      );
     } finally {
       await mailDb.destroy();
     }

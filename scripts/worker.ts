@@ -14,7 +14,10 @@ const log = (line: string) => console.log(line);
 
 let boss: Awaited<ReturnType<typeof startJobQueue>>;
 try {
-  boss = await startJobQueue({ connectionString: config.DATABASE_URL, onError: (e) => console.error(`[worker] queue: ${e.message}`) });
+  boss = await startJobQueue({
+    connectionString: config.DATABASE_URL,
+    onError: (e) => console.error(`[worker] queue: ${e.message}`),
+  });
 } catch (error) {
   console.error(`[worker] cannot start the job queue: ${error instanceof Error ? error.message : String(error)}`);
   await db.destroy();

@@ -26,8 +26,18 @@ export const onRequest = defineMiddleware(async (context, next) => {
   context.locals.crew = null;
   context.locals.crews = [];
   const allowedOrigins = [context.url.origin, new URL(getConfig().PUBLIC_URL).origin];
-  if (isForbiddenCrossSiteWrite(context.request.method, context.url.pathname, context.request.headers, { allowedOrigins, exemptPaths: ORIGIN_EXEMPT_PATHS })) {
-    return withSecurityHeaders(new Response('Cross-site POST form submissions are forbidden', { status: 403, headers: { 'content-type': 'text/plain' } }));
+  if (
+    isForbiddenCrossSiteWrite(context.request.method, context.url.pathname, context.request.headers, {
+      allowedOrigins,
+      exemptPaths: ORIGIN_EXEMPT_PATHS,
+    })
+  ) {
+    return withSecurityHeaders(
+      new Response('Cross-site POST form submissions are forbidden', {
+        status: 403,
+        headers: { 'content-type': 'text/plain' },
+      }),
+    );
   }
   let loaded: Awaited<ReturnType<typeof loadSession>>;
   try {

@@ -23,7 +23,12 @@ cleanupOutdatedCaches();
 /** Keeps only good, final pages, stamped with the time they were saved. */
 const stampPlugin: WorkboxPlugin = {
   cacheWillUpdate: async ({ response }) => {
-    if (response.status !== 200 || response.redirected || !(response.headers.get('content-type') ?? '').includes('text/html')) return null;
+    if (
+      response.status !== 200 ||
+      response.redirected ||
+      !(response.headers.get('content-type') ?? '').includes('text/html')
+    )
+      return null;
     const headers = new Headers(response.headers);
     headers.set(SAVED_AT_HEADER, new Date().toISOString());
     return new Response(await response.blob(), { status: 200, statusText: response.statusText, headers });

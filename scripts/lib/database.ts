@@ -10,7 +10,8 @@ import { ROOT, capture, run } from './processes';
 
 /** Starts the project's own PostgreSQL (nothing to do when it runs already). */
 export function startEmbeddedServer(): void {
-  if (run('bash', [path.join(ROOT, 'scripts/db.sh'), 'start']) !== 0) throw new Error('the embedded PostgreSQL did not start (see above)');
+  if (run('bash', [path.join(ROOT, 'scripts/db.sh'), 'start']) !== 0)
+    throw new Error('the embedded PostgreSQL did not start (see above)');
   // A first start writes the password file after this process read it at import: read it again.
   useEmbeddedPassword(ROOT);
 }
@@ -18,7 +19,8 @@ export function startEmbeddedServer(): void {
 /** Starts the project's own PostgreSQL and makes sure database `name` exists; returns its URL. */
 export function ensureEmbeddedDatabase(name: string): string {
   startEmbeddedServer();
-  if (run('bash', [path.join(ROOT, 'scripts/db.sh'), 'ensure-db', name]) !== 0) throw new Error(`could not create database ${name}`);
+  if (run('bash', [path.join(ROOT, 'scripts/db.sh'), 'ensure-db', name]) !== 0)
+    throw new Error(`could not create database ${name}`);
   return capture('bash', [path.join(ROOT, 'scripts/db.sh'), 'url', name]);
 }
 
@@ -42,8 +44,10 @@ export async function assertReachable(url: string): Promise<void> {
     await client.query('select 1');
   } catch (error) {
     const u = new URL(url);
-    const cause = error instanceof Error ? (error as NodeJS.ErrnoException).code ?? error.message : String(error);
-    throw new Error(`cannot reach the database at ${u.hostname}:${u.port || 5432}/${u.pathname.slice(1)} (${cause}): start it, fix DATABASE_URL, or unset DATABASE_URL to use the embedded PostgreSQL`);
+    const cause = error instanceof Error ? ((error as NodeJS.ErrnoException).code ?? error.message) : String(error);
+    throw new Error(
+      `cannot reach the database at ${u.hostname}:${u.port || 5432}/${u.pathname.slice(1)} (${cause}): start it, fix DATABASE_URL, or unset DATABASE_URL to use the embedded PostgreSQL`,
+    );
   } finally {
     await client.end().catch(() => {});
   }

@@ -9,7 +9,11 @@ export interface LocalObjectStore {
 }
 
 /** Starts the fake on 127.0.0.1:`port` keeping objects under `directory`, with `bucket` created. */
-export async function startLocalObjectStore(options: { port: number; directory: string; bucket: string }): Promise<LocalObjectStore> {
+export async function startLocalObjectStore(options: {
+  port: number;
+  directory: string;
+  bucket: string;
+}): Promise<LocalObjectStore> {
   mkdirSync(options.directory, { recursive: true });
   const server = new S3rver({
     address: '127.0.0.1',

@@ -23,7 +23,10 @@ export function capture(cmd: string, args: string[], options: SpawnOptions = {})
 export function isPortOpen(host: string, port: number, timeoutMs = 500): Promise<boolean> {
   return new Promise((resolve) => {
     const socket = net.connect({ host, port });
-    const done = (open: boolean) => { socket.destroy(); resolve(open); };
+    const done = (open: boolean) => {
+      socket.destroy();
+      resolve(open);
+    };
     socket.setTimeout(timeoutMs, () => done(false));
     socket.once('connect', () => done(true));
     socket.once('error', () => done(false));
@@ -37,7 +40,9 @@ export function freePort(): Promise<number> {
     server.once('error', reject);
     server.listen(0, '127.0.0.1', () => {
       const address = server.address();
-      server.close(() => (typeof address === 'object' && address ? resolve(address.port) : reject(new Error('no port'))));
+      server.close(() =>
+        typeof address === 'object' && address ? resolve(address.port) : reject(new Error('no port')),
+      );
     });
   });
 }
@@ -53,10 +58,24 @@ export async function waitFor(check: () => Promise<boolean>, timeoutMs: number, 
 }
 
 /** Starts a long-running child; its output goes to ours with a prefix. */
-export function startService(name: string, cmd: string, args: string[], env: NodeJS.ProcessEnv, quiet = false): ChildProcess {
+export function startService(
+  name: string,
+  cmd: string,
+  args: string[],
+  env: NodeJS.ProcessEnv,
+  quiet = false,
+): ChildProcess {
   const child = spawn(cmd, args, { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
-  const prefix = (chunk: Buffer) => chunk.toString().split('\n').filter(Boolean).map((l) => `[${name}] ${l}`).join('\n') + '\n';
-  child.stdout?.on('data', (c: Buffer) => { if (!quiet) process.stdout.write(prefix(c)); });
+  const prefix = (chunk: Buffer) =>
+    chunk
+      .toString()
+      .split('\n')
+      .filter(Boolean)
+      .map((l) => `[${name}] ${l}`)
+      .join('\n') + '\n';
+  child.stdout?.on('data', (c: Buffer) => {
+    if (!quiet) process.stdout.write(prefix(c));
+  });
   child.stderr?.on('data', (c: Buffer) => process.stderr.write(prefix(c)));
   return child;
 }

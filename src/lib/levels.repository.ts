@@ -7,7 +7,9 @@ import { CALLS_BY_URGENCY, LEVELS } from './levels';
 
 /** `case <column> when 'watch' then 1 when 'act' then 2 else 0 end`: a findings level column's rank. */
 export function levelRankSql(column: string): RawBuilder<number> {
-  const whens = LEVELS.flatMap((level, rank) => (rank === 0 ? [] : [sql`when ${sql.lit(level)} then ${sql.lit(rank)}`]));
+  const whens = LEVELS.flatMap((level, rank) =>
+    rank === 0 ? [] : [sql`when ${sql.lit(level)} then ${sql.lit(rank)}`],
+  );
   return sql<number>`case ${sql.ref(column)} ${sql.join(whens, sql` `)} else 0 end`;
 }
 

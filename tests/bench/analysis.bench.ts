@@ -19,16 +19,69 @@ import { makeRandom } from '../unit/analysis/simulated-machines';
 
 const SAMPLES = 500;
 const CODES: MeasurandCode[] = [
-  'Fe', 'Al', 'Cr', 'Cu', 'Pb', 'Sn', 'Ni', 'Ag', 'Ti', 'V', 'Mn', 'Si', 'Na', 'K', 'B',
-  'Mo', 'Zn', 'P', 'Ca', 'Mg', 'Ba', 'S',
-  'KV40', 'KV100', 'VI', 'SUS210', 'FLASH', 'FUEL', 'WATER', 'INSOL',
+  'Fe',
+  'Al',
+  'Cr',
+  'Cu',
+  'Pb',
+  'Sn',
+  'Ni',
+  'Ag',
+  'Ti',
+  'V',
+  'Mn',
+  'Si',
+  'Na',
+  'K',
+  'B',
+  'Mo',
+  'Zn',
+  'P',
+  'Ca',
+  'Mg',
+  'Ba',
+  'S',
+  'KV40',
+  'KV100',
+  'VI',
+  'SUS210',
+  'FLASH',
+  'FUEL',
+  'WATER',
+  'INSOL',
 ];
 const TYPICAL: Record<string, number> = {
-  Fe: 20, Al: 4, Cr: 1, Cu: 5, Pb: 2, Sn: 1, Ni: 1, Ag: 0.5, Ti: 0.5, V: 0.5, Mn: 1, Si: 7, Na: 5, K: 2, B: 4,
-  Mo: 60, Zn: 1100, P: 950, Ca: 2100, Mg: 20, Ba: 1, S: 2500,
-  KV40: 100, KV100: 14, VI: 145, SUS210: 75, FLASH: 220, FUEL: 0.6, WATER: 0.02, INSOL: 0.3,
+  Fe: 20,
+  Al: 4,
+  Cr: 1,
+  Cu: 5,
+  Pb: 2,
+  Sn: 1,
+  Ni: 1,
+  Ag: 0.5,
+  Ti: 0.5,
+  V: 0.5,
+  Mn: 1,
+  Si: 7,
+  Na: 5,
+  K: 2,
+  B: 4,
+  Mo: 60,
+  Zn: 1100,
+  P: 950,
+  Ca: 2100,
+  Mg: 20,
+  Ba: 1,
+  S: 2500,
+  KV40: 100,
+  KV100: 14,
+  VI: 145,
+  SUS210: 75,
+  FLASH: 220,
+  FUEL: 0.6,
+  WATER: 0.02,
+  INSOL: 0.3,
 };
-
 
 function buildMachineHistory(): SamplePoint[] {
   const random = makeRandom(20240501);
@@ -62,7 +115,12 @@ function median(xs: number[]): number {
   return s[Math.floor(s.length / 2)]!;
 }
 
-const machine: MachineProfile = { cooling: 'liquid', distanceUnit: 'km', maxIntervalDistance: 6000, maxIntervalDays: 365 };
+const machine: MachineProfile = {
+  cooling: 'liquid',
+  distanceUnit: 'km',
+  maxIntervalDistance: 6000,
+  maxIntervalDays: 365,
+};
 const samples = buildMachineHistory();
 const history = samples.slice(0, -1);
 const sample = samples.at(-1)!;
@@ -70,14 +128,24 @@ const sample = samples.at(-1)!;
 // The judgements of the earlier samples, as the replay carries them forward.
 const earlier = replayHistory({ machine, samples: history });
 const previous: PreviousJudgement[] = earlier.map((r, i) => ({
-  sampleId: r.sampleId, call: r.call.call, worst: r.analysis.worst, stretchReady: r.call.basis.stretchReady,
-  nextIntervalDistance: r.call.nextIntervalDistance, distanceOnOil: history[i]!.distanceOnOil,
+  sampleId: r.sampleId,
+  call: r.call.call,
+  worst: r.analysis.worst,
+  stretchReady: r.call.basis.stretchReady,
+  nextIntervalDistance: r.call.nextIntervalDistance,
+  distanceOnOil: history[i]!.distanceOnOil,
 }));
 
 // One step of the replay: the newest sample's findings and call, given the judgements before it.
 function runLatest(): number {
   const analysis = analyseSample({ machine, history, sample });
-  const call = decideIntervalCall({ machine, history: history.slice(-HISTORY_TAIL), sample, analysis, previous: previous.slice(-HISTORY_TAIL) });
+  const call = decideIntervalCall({
+    machine,
+    history: history.slice(-HISTORY_TAIL),
+    sample,
+    analysis,
+    previous: previous.slice(-HISTORY_TAIL),
+  });
   return analysis.findings.length + call.reasons.length;
 }
 

@@ -32,13 +32,20 @@ function generateReport(delimiter: ',' | ';'): string {
   for (let i = 0; i < ROWS; i += 1) {
     const day = 1 + (i % 28);
     const month = 1 + (i % 12);
-    const cells = [`SW-${String(i).padStart(5, '0')}`, `2026-${String(month).padStart(2, '0')}-${String(day).padStart(2, '0')}`];
+    const cells = [
+      `SW-${String(i).padStart(5, '0')}`,
+      `2026-${String(month).padStart(2, '0')}-${String(day).padStart(2, '0')}`,
+    ];
     for (let e = 0; e < ELEMENT_CODES.length; e += 1) {
       const r = random();
       cells.push(r < 0.1 ? '<1' : r < 0.13 ? 'ND' : decimal(Math.round(r * 3000) / 10));
     }
     cells.push(decimal(Math.round((60 + random() * 60) * 10) / 10), decimal(Math.round((8 + random() * 8) * 10) / 10));
-    cells.push(String(Math.round(120 + random() * 40)), decimal(Math.round(random() * 100) / 10), decimal(Math.round(random() * 40) / 10));
+    cells.push(
+      String(Math.round(120 + random() * 40)),
+      decimal(Math.round(random() * 100) / 10),
+      decimal(Math.round(random() * 40) / 10),
+    );
     cells.push(decimal(Math.round(random() * 50) / 10));
     lines.push(cells.join(delimiter));
   }
@@ -92,7 +99,11 @@ figures.summary = (['comma', 'semicolonDecimalComma'] as const).map((layout) => 
   const f = figures[layout] as { papaparseMs: number; parseLabCsvMs: number; ratio: number };
   return {
     what: `lab CSV reader, ${ROWS.toLocaleString('en-US')} rows × 30 columns, ${layout === 'comma' ? 'comma' : 'semicolon and decimal comma'}`,
-    result: `${f.parseLabCsvMs} ms`, floor: `papaparse ${f.papaparseMs} ms`, ratio: f.ratio, limit: `≤ ${TARGET_RATIO} ×`, ok: f.ratio <= TARGET_RATIO,
+    result: `${f.parseLabCsvMs} ms`,
+    floor: `papaparse ${f.papaparseMs} ms`,
+    ratio: f.ratio,
+    limit: `≤ ${TARGET_RATIO} ×`,
+    ok: f.ratio <= TARGET_RATIO,
   };
 });
 // maxRSS is in kibibytes (Node.js process.resourceUsage()).

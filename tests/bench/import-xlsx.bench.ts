@@ -19,7 +19,17 @@ async function buildWorkbook(): Promise<Uint8Array> {
   ws.addRow(['Bottle', 'Sampled', ...ELEMENT_CODES, 'KV40', 'KV100', 'VI', 'TBN', 'TAN', 'Fuel %']);
   for (let i = 0; i < ROWS; i += 1) {
     const values = ELEMENT_CODES.map((_, e) => ((i * 31 + e * 17) % 3000) / 10);
-    ws.addRow([`SW-${String(i).padStart(5, '0')}`, new Date(Date.UTC(2026, i % 12, 1 + (i % 28))), ...values, 98.5, 13.2, 140, 7.1, 2.2, 0.6]);
+    ws.addRow([
+      `SW-${String(i).padStart(5, '0')}`,
+      new Date(Date.UTC(2026, i % 12, 1 + (i % 28))),
+      ...values,
+      98.5,
+      13.2,
+      140,
+      7.1,
+      2.2,
+      0.6,
+    ]);
   }
   return new Uint8Array(await wb.xlsx.writeBuffer());
 }
@@ -37,7 +47,17 @@ for (let i = 0; i <= RUNS; i += 1) {
 }
 if (rows !== ROWS) throw new Error(`bench workbook misread: ${rows} rows`);
 runs.sort((a, b) => a - b);
-console.log(JSON.stringify({
-  xlsx: { rows: ROWS, columns: 30, fileBytes: bytes.byteLength, runs: RUNS, medianMs: runs[Math.floor(runs.length / 2)], minMs: runs[0], msPer1000Rows: (runs[0] ?? 0) / (ROWS / 1000) },
-  machine: { cpus: os.cpus().length, node: process.version },
-}));
+console.log(
+  JSON.stringify({
+    xlsx: {
+      rows: ROWS,
+      columns: 30,
+      fileBytes: bytes.byteLength,
+      runs: RUNS,
+      medianMs: runs[Math.floor(runs.length / 2)],
+      minMs: runs[0],
+      msPer1000Rows: (runs[0] ?? 0) / (ROWS / 1000),
+    },
+    machine: { cpus: os.cpus().length, node: process.version },
+  }),
+);

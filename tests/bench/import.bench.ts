@@ -35,7 +35,8 @@ function createRandom(seed: number): () => number {
 }
 
 const code = (i: number) => `SW-${String(i).padStart(5, '0')}`;
-const dayOf = (i: number) => new Date(Date.UTC(2020, 0, 1) + Math.floor(i / MACHINES) * 86_400_000).toISOString().slice(0, 10);
+const dayOf = (i: number) =>
+  new Date(Date.UTC(2020, 0, 1) + Math.floor(i / MACHINES) * 86_400_000).toISOString().slice(0, 10);
 
 /** 30 columns: bottle, sampled, reported, 22 elements, KV40, KV100, VI, TBN, fuel %. Invented values. */
 function generateReport(): string {
@@ -49,7 +50,11 @@ function generateReport(): string {
       cells.push(r < 0.1 ? '<1' : String(Math.round(r * 600) / 10));
     }
     cells.push(String(Math.round((80 + random() * 20) * 10) / 10), String(Math.round((12 + random() * 2) * 10) / 10));
-    cells.push(String(Math.round(140 + random() * 10)), String(Math.round(60 + random() * 20) / 10), String(Math.round(random() * 30) / 10));
+    cells.push(
+      String(Math.round(140 + random() * 10)),
+      String(Math.round(60 + random() * 20) / 10),
+      String(Math.round(random() * 30) / 10),
+    );
     lines.push(cells.join(','));
   }
   return `${lines.join('\n')}\n`;
@@ -75,21 +80,47 @@ async function main(): Promise<void> {
     const bytes = new TextEncoder().encode(text);
 
     // Scratch data: one crew, 20 machines, 10,000 registered samples (one per row).
-    const user = await db.insertInto('users').values({ id: 'bench-user', email: 'bench@example.test', display_name: 'Bench', password_hash: 'x', email_verified_at: new Date() } as never).returning('id').executeTakeFirstOrThrow();
-    const crew = await db.insertInto('crews').values({ name: 'Bench crew' } as never).returning('id').executeTakeFirstOrThrow();
+    const user = await db
+      .insertInto('users')
+      .values({
+        id: 'bench-user',
+        email: 'bench@example.test',
+        display_name: 'Bench',
+        password_hash: 'x',
+        email_verified_at: new Date(),
+      } as never)
+      .returning('id')
+      .executeTakeFirstOrThrow();
+    const crew = await db
+      .insertInto('crews')
+      .values({ name: 'Bench crew' } as never)
+      .returning('id')
+      .executeTakeFirstOrThrow();
     const machineIds: string[] = [];
     for (let m = 0; m < MACHINES; m += 1) {
-      const row = await db.insertInto('machines').values({
-        crew_id: crew.id, owner_user_id: user.id, name: `Bench ${m}`, engine_layout: 'single', cooling: 'liquid', meter: 'km',
-        recommended_grades: JSON.stringify([]), max_interval_distance: 6000,
-      } as never).returning('id').executeTakeFirstOrThrow();
+      const row = await db
+        .insertInto('machines')
+        .values({
+          crew_id: crew.id,
+          owner_user_id: user.id,
+          name: `Bench ${m}`,
+          engine_layout: 'single',
+          cooling: 'liquid',
+          meter: 'km',
+          recommended_grades: JSON.stringify([]),
+          max_interval_distance: 6000,
+        } as never)
+        .returning('id')
+        .executeTakeFirstOrThrow();
       machineIds.push(row.id);
     }
     await sql`
       insert into samples (crew_id, machine_id, bottle_code, bottle_code_norm, drawn_on, odometer, distance_on_oil, sae_grade, created_by, state)
       select ${crew.id}::uuid, (${sql.val(machineIds)}::uuid[])[(i % ${MACHINES}) + 1], c, n, d::date, 3000 * (i / ${MACHINES} + 1), 3000, '10W-40', ${user.id}, 'shipped'
       from unnest(${sql.val(Array.from({ length: ROWS }, (_, i) => i))}::int[], ${sql.val(Array.from({ length: ROWS }, (_, i) => code(i)))}::text[],
-                  ${sql.val(Array.from({ length: ROWS }, (_, i) => normaliseBottleCode(code(i))))}::text[], ${sql.val(Array.from({ length: ROWS }, (_, i) => dayOf(i)))}::text[]) as t(i, c, n, d)`.execute(db);
+                  ${sql.val(Array.from({ length: ROWS }, (_, i) => normaliseBottleCode(code(i))))}::text[], ${sql.val(Array.from({ length: ROWS }, (_, i) => dayOf(i)))}::text[]) as t(i, c, n, d)`.execute(
+      db,
+    );
 
     // The import, phase by phase.
     const rssBeforeImport = process.memoryUsage().rss;
@@ -100,11 +131,18 @@ async function main(): Promise<void> {
     if (!stored.ok) throw new Error(stored.message);
     const previewStart = performance.now();
     // The preview is its own request in the app: its result is not kept while the confirm runs.
-    const clean = await previewLabImport(db, { crewId: crew.id, labFileId: stored.value.labFileId }).then((p) => p.ok && p.value.canConfirm);
+    const clean = await previewLabImport(db, { crewId: crew.id, labFileId: stored.value.labFileId }).then(
+      (p) => p.ok && p.value.canConfirm,
+    );
     const previewMs = ms(previewStart);
     if (!clean) throw new Error('the bench file should preview clean');
     const confirmStart = performance.now();
-    const confirmed = await confirmLabImport(db, { crewId: crew.id, userId: user.id, labFileId: stored.value.labFileId, decisions: {} });
+    const confirmed = await confirmLabImport(db, {
+      crewId: crew.id,
+      userId: user.id,
+      labFileId: stored.value.labFileId,
+      decisions: {},
+    });
     const confirmMs = ms(confirmStart);
     if (!confirmed.ok) throw new Error(confirmed.message);
     importing = false;
@@ -124,54 +162,87 @@ async function main(): Promise<void> {
 
     // Floor 2: the same readings with one COPY into the real readings table (its key, indexes and foreign keys),
     // the sample ids looked up beforehand; rolled back.
-    const idOf = new Map((await db.selectFrom('samples').select(['id', 'bottle_code_norm']).where('crew_id', '=', crew.id).execute()).map((s) => [s.bottle_code_norm, s.id]));
+    const idOf = new Map(
+      (await db.selectFrom('samples').select(['id', 'bottle_code_norm']).where('crew_id', '=', crew.id).execute()).map(
+        (s) => [s.bottle_code_norm, s.id],
+      ),
+    );
     const importId = confirmed.value.importId;
-    const copyMs = await db.transaction().execute(async (trx) => {
-      await sql`delete from readings`.execute(trx);
-      const t = performance.now();
-      function* rows(): Generator<CopyValue[]> {
-        for (const r of parsed.rows) {
-          const sampleId = idOf.get(r.bottle.normalised)!;
-          for (const m in r.readings) {
-            const v = r.readings[m as keyof typeof r.readings]!;
-            yield [sampleId, m, v.value, v.qualifier ?? null, importId];
+    const copyMs = await db
+      .transaction()
+      .execute(async (trx) => {
+        await sql`delete from readings`.execute(trx);
+        const t = performance.now();
+        function* rows(): Generator<CopyValue[]> {
+          for (const r of parsed.rows) {
+            const sampleId = idOf.get(r.bottle.normalised)!;
+            for (const m in r.readings) {
+              const v = r.readings[m as keyof typeof r.readings]!;
+              yield [sampleId, m, v.value, v.qualifier ?? null, importId];
+            }
           }
         }
-      }
-      await copyRows(trx, 'readings', ['sample_id', 'measurand', 'value', 'qualifier', 'lab_import_id'], rows());
-      const took = ms(t);
-      throw Object.assign(new Error('rollback'), { took });
-    }).catch((e: { took?: number }) => e.took ?? Number.NaN);
+        await copyRows(trx, 'readings', ['sample_id', 'measurand', 'value', 'qualifier', 'lab_import_id'], rows());
+        const took = ms(t);
+        throw Object.assign(new Error('rollback'), { took });
+      })
+      .catch((e: { took?: number }) => e.took ?? Number.NaN);
 
     const wholeMs = Math.round((storeMs + previewMs + confirmMs) * 10) / 10;
     const floorMs = Math.round((papaMs + copyMs) * 10) / 10;
-    console.log(JSON.stringify({
-      file: { rows: ROWS, columns: parsed.columns.length, bytes: bytes.byteLength, machines: MACHINES },
-      // The floor: papaparse alone + one COPY of the readings into the readings table (key, indexes, foreign keys).
-      floor: { papaparseMs: papaMs, copyIntoReadingsMs: copyMs, totalMs: floorMs },
-      import: {
-        readerParseMs: readerMs,
-        storeMs,
-        // Preview = read the stored file, parse, match 10,000 bottle codes and decide every row (the validation).
-        previewValidationMs: previewMs,
-        // Confirm = the preview again under a row lock, then every write, findings and interval calls, in one transaction.
-        confirmWriteMs: confirmMs,
-        wholeMs,
-        samplesWritten: confirmed.value.samplesWritten,
-        readingsWritten: confirmed.value.readingsWritten,
-        findingsWritten: confirmed.value.findingsWritten,
-      },
-      ratioToFloor: Math.round((wholeMs / floorMs) * 100) / 100,
-      targetRatio: TARGET_RATIO,
-      withinTarget: wholeMs / floorMs <= TARGET_RATIO && peakRss / 2 ** 20 < TARGET_RSS_MB,
-      // Process peak (maxRSS, includes generating the file), the peak sampled while the import ran, and the RSS before it.
-      memory: { peakRssMb: mb(peakRss), peakRssDuringImportMb: mb(peakRssImport), rssBeforeImportMb: mb(rssBeforeImport), peakHeapMb: mb(peakHeap), targetMb: TARGET_RSS_MB },
-      summary: [
-        { what: `lab import whole (store + preview + confirm), ${ROWS.toLocaleString('en-US')} rows × 30 columns`, result: `${(wholeMs / 1000).toFixed(1)} s (confirm ${(confirmMs / 1000).toFixed(1)} s)`, floor: `papaparse + COPY into readings ${(floorMs / 1000).toFixed(1)} s`, ratio: Math.round((wholeMs / floorMs) * 100) / 100, limit: `≤ ${TARGET_RATIO} ×`, ok: wholeMs / floorMs <= TARGET_RATIO },
-        { what: 'lab import, peak RSS of the process', result: `${mb(peakRss)} MB (${mb(rssBeforeImport)} MB before the import)`, floor: '—', ratio: null, limit: `< ${TARGET_RSS_MB} MB`, ok: peakRss / 2 ** 20 < TARGET_RSS_MB },
-      ],
-      node: process.version,
-    }, null, 2));
+    console.log(
+      JSON.stringify(
+        {
+          file: { rows: ROWS, columns: parsed.columns.length, bytes: bytes.byteLength, machines: MACHINES },
+          // The floor: papaparse alone + one COPY of the readings into the readings table (key, indexes, foreign keys).
+          floor: { papaparseMs: papaMs, copyIntoReadingsMs: copyMs, totalMs: floorMs },
+          import: {
+            readerParseMs: readerMs,
+            storeMs,
+            // Preview = read the stored file, parse, match 10,000 bottle codes and decide every row (the validation).
+            previewValidationMs: previewMs,
+            // Confirm = the preview again under a row lock, then every write, findings and interval calls, in one transaction.
+            confirmWriteMs: confirmMs,
+            wholeMs,
+            samplesWritten: confirmed.value.samplesWritten,
+            readingsWritten: confirmed.value.readingsWritten,
+            findingsWritten: confirmed.value.findingsWritten,
+          },
+          ratioToFloor: Math.round((wholeMs / floorMs) * 100) / 100,
+          targetRatio: TARGET_RATIO,
+          withinTarget: wholeMs / floorMs <= TARGET_RATIO && peakRss / 2 ** 20 < TARGET_RSS_MB,
+          // Process peak (maxRSS, includes generating the file), the peak sampled while the import ran, and the RSS before it.
+          memory: {
+            peakRssMb: mb(peakRss),
+            peakRssDuringImportMb: mb(peakRssImport),
+            rssBeforeImportMb: mb(rssBeforeImport),
+            peakHeapMb: mb(peakHeap),
+            targetMb: TARGET_RSS_MB,
+          },
+          summary: [
+            {
+              what: `lab import whole (store + preview + confirm), ${ROWS.toLocaleString('en-US')} rows × 30 columns`,
+              result: `${(wholeMs / 1000).toFixed(1)} s (confirm ${(confirmMs / 1000).toFixed(1)} s)`,
+              floor: `papaparse + COPY into readings ${(floorMs / 1000).toFixed(1)} s`,
+              ratio: Math.round((wholeMs / floorMs) * 100) / 100,
+              limit: `≤ ${TARGET_RATIO} ×`,
+              ok: wholeMs / floorMs <= TARGET_RATIO,
+            },
+            {
+              what: 'lab import, peak RSS of the process',
+              result: `${mb(peakRss)} MB (${mb(rssBeforeImport)} MB before the import)`,
+              floor: '—',
+              ratio: null,
+              limit: `< ${TARGET_RSS_MB} MB`,
+              ok: peakRss / 2 ** 20 < TARGET_RSS_MB,
+            },
+          ],
+          node: process.version,
+        },
+        null,
+        2,
+      ),
+    );
   } finally {
     clearInterval(sampler);
     await db.destroy();

@@ -27,22 +27,63 @@ const USERS = CONNECTIONS * 2;
 const PASSWORD = 'load-bench-password';
 
 // autocannon 8 ships no types: the few parts used here, typed locally.
-interface AcContext { n?: number; cookie?: string; labFileId?: string }
+interface AcContext {
+  n?: number;
+  cookie?: string;
+  labFileId?: string;
+}
 interface AcRequest {
-  method?: string; path?: string; headers?: Record<string, string>; body?: string | Buffer;
+  method?: string;
+  path?: string;
+  headers?: Record<string, string>;
+  body?: string | Buffer;
   setupRequest?: (req: AcRequest, context: AcContext) => AcRequest;
   onResponse?: (status: number, body: string, context: AcContext, headers: Record<string, string | string[]>) => void;
 }
-interface AcResult { requests: { total: number }; errors: number; timeouts: number; non2xx: number; '2xx': number; '4xx': number; '5xx': number; duration: number }
-interface AcInstance { on(event: 'response', fn: (client: unknown, status: number, bytes: number, ms: number) => void): void }
+interface AcResult {
+  requests: { total: number };
+  errors: number;
+  timeouts: number;
+  non2xx: number;
+  '2xx': number;
+  '4xx': number;
+  '5xx': number;
+  duration: number;
+}
+interface AcInstance {
+  on(event: 'response', fn: (client: unknown, status: number, bytes: number, ms: number) => void): void;
+}
 type Autocannon = (opts: Record<string, unknown>, cb: (err: Error | null, result: AcResult) => void) => AcInstance;
 const autocannon = createRequire(import.meta.url)('autocannon') as Autocannon;
 
 type Kind = 'signIn' | 'home' | 'machine' | 'trend' | 'upload' | 'confirm';
 /** One connection's cycle: one sign-in, then reads and one small import, in this order. */
-const CYCLE: Kind[] = ['signIn', 'home', 'trend', 'machine', 'trend', 'home', 'trend', 'upload', 'confirm', 'machine', 'trend', 'home', 'machine', 'trend'];
+const CYCLE: Kind[] = [
+  'signIn',
+  'home',
+  'trend',
+  'machine',
+  'trend',
+  'home',
+  'trend',
+  'upload',
+  'confirm',
+  'machine',
+  'trend',
+  'home',
+  'machine',
+  'trend',
+];
 
-interface Tally { latencies: number[]; s2xx: number; s3xx: number; s4xx: number; s429: number; s5xx: number; other: number }
+interface Tally {
+  latencies: number[];
+  s2xx: number;
+  s3xx: number;
+  s4xx: number;
+  s429: number;
+  s5xx: number;
+  other: number;
+}
 const newTally = (): Tally => ({ latencies: [], s2xx: 0, s3xx: 0, s4xx: 0, s429: 0, s5xx: 0, other: 0 });
 function count(t: Tally, status: number, ms: number): void {
   t.latencies.push(ms);
@@ -57,14 +98,25 @@ const r1 = (v: number) => Math.round(v * 10) / 10;
 function summarise(t: Tally, seconds: number) {
   const sorted = [...t.latencies].sort((a, b) => a - b);
   return {
-    requests: sorted.length, '2xx': t.s2xx, '3xx': t.s3xx, '4xx': t.s4xx, '429': t.s429, '5xx': t.s5xx,
+    requests: sorted.length,
+    '2xx': t.s2xx,
+    '3xx': t.s3xx,
+    '4xx': t.s4xx,
+    '429': t.s429,
+    '5xx': t.s5xx,
     perSecond: r1(sorted.length / seconds),
-    p50Ms: r1(quantile(sorted, 0.5)), p95Ms: r1(quantile(sorted, 0.95)), p99Ms: r1(quantile(sorted, 0.99)), maxMs: r1(sorted.at(-1) ?? NaN),
+    p50Ms: r1(quantile(sorted, 0.5)),
+    p95Ms: r1(quantile(sorted, 0.95)),
+    p99Ms: r1(quantile(sorted, 0.99)),
+    maxMs: r1(sorted.at(-1) ?? NaN),
   };
 }
 
 /** Promise wrapper that also taps every response (kind taken from the request that was just answered). */
-function runAutocannon(opts: Record<string, unknown>, onResponse: (status: number, ms: number) => void): Promise<AcResult> {
+function runAutocannon(
+  opts: Record<string, unknown>,
+  onResponse: (status: number, ms: number) => void,
+): Promise<AcResult> {
   return new Promise((resolve, reject) => {
     const instance = autocannon(opts, (err, result) => (err ? reject(err) : resolve(result)));
     instance.on('response', (_client, status, _bytes, ms) => onResponse(status, ms));
@@ -83,11 +135,15 @@ async function runLoad(processes: number) {
     const hash = await hashPassword(PASSWORD);
     await sql`
       insert into users (id, email, display_name, password_hash, email_verified_at)
-      select 'load-user-' || n, 'load-' || n || '@bench.example', 'Load rider ' || n, ${hash}, now() from generate_series(1, ${USERS}) n`.execute(db);
+      select 'load-user-' || n, 'load-' || n || '@bench.example', 'Load rider ' || n, ${hash}, now() from generate_series(1, ${USERS}) n`.execute(
+      db,
+    );
     await sql`insert into crews (name) select 'Load crew ' || n from generate_series(1, ${USERS}) n`.execute(db);
     await sql`
       insert into crew_members (crew_id, user_id, role)
-      select c.id, 'load-user-' || substring(c.name from 11), 'lead' from crews c where c.name like 'Load crew %'`.execute(db);
+      select c.id, 'load-user-' || substring(c.name from 11), 'lead' from crews c where c.name like 'Load crew %'`.execute(
+      db,
+    );
     await sql`
       insert into machines (crew_id, owner_user_id, name, engine_layout, cooling, meter, oil_capacity_l, recommended_grades, max_interval_distance)
       select c.id, 'load-user-' || substring(c.name from 11), 'Load 450 no. ' || substring(c.name from 11), 'single', 'liquid', 'km', 1.2,
@@ -108,12 +164,20 @@ async function runLoad(processes: number) {
     await sql`
       insert into findings (sample_id, measurand, level, rule_id, sentence)
       select s.id, 'Al', 'watch', 'baseline-jump', 'Invented bench finding.'
-      from samples s where s.bottle_code like 'LD%' and s.state = 'results_in' and right(s.bottle_code, 1) in ('4', '9')`.execute(db);
+      from samples s where s.bottle_code like 'LD%' and s.state = 'results_in' and right(s.bottle_code, 1) in ('4', '9')`.execute(
+      db,
+    );
     await sql`
       insert into interval_calls (sample_id, machine_id, call, next_interval, next_sample_odometer, source)
-      select s.id, s.machine_id, 'hold', 1500, s.odometer + 1500, 'engine' from samples s where s.bottle_code like 'LD%' and s.state = 'results_in'`.execute(db);
-    const machines = new Map((await sql<{ n: string; id: string }>`
-      select substring(owner_user_id from 11) as n, id from machines where name like 'Load 450 no. %'`.execute(db)).rows.map((r) => [Number(r.n), r.id]));
+      select s.id, s.machine_id, 'hold', 1500, s.odometer + 1500, 'engine' from samples s where s.bottle_code like 'LD%' and s.state = 'results_in'`.execute(
+      db,
+    );
+    const machines = new Map(
+      (
+        await sql<{ n: string; id: string }>`
+      select substring(owner_user_id from 11) as n, id from machines where name like 'Load 450 no. %'`.execute(db)
+      ).rows.map((r) => [Number(r.n), r.id]),
+    );
 
     const origin = app.baseUrl;
     // A user is leased for one cycle, so no two connections sign in as the same user or import into the same machine
@@ -138,7 +202,11 @@ async function runLoad(processes: number) {
         if (kind === 'upload') {
           ctx.labFileId = undefined;
           if (status < 300) {
-            try { ctx.labFileId = (JSON.parse(body) as { labFileId?: string }).labFileId; } catch { /* counted by its status */ }
+            try {
+              ctx.labFileId = (JSON.parse(body) as { labFileId?: string }).labFileId;
+            } catch {
+              /* counted by its status */
+            }
           }
         }
       },
@@ -146,19 +214,45 @@ async function runLoad(processes: number) {
     // Each rider on an address of their own, as behind one trusted proxy: the sign-in limit per address (credential
     // stuffing) would otherwise count the whole bench as one client.
     const addressOf = (n: number) => `10.77.${n >> 8}.${n & 255}`;
-    const withCookie = (ctx: AcContext): Record<string, string> => ({ 'x-forwarded-for': addressOf(ctx.n ?? 0), ...(ctx.cookie ? { cookie: ctx.cookie } : {}) });
+    const withCookie = (ctx: AcContext): Record<string, string> => ({
+      'x-forwarded-for': addressOf(ctx.n ?? 0),
+      ...(ctx.cookie ? { cookie: ctx.cookie } : {}),
+    });
     const BOUNDARY = '----sumpwiseLoadBench';
     const requests: AcRequest[] = CYCLE.map((kind, index) => {
       switch (kind) {
         case 'signIn':
-          return at(kind, index, (req, ctx) => ({ ...req, method: 'POST', path: '/api/auth/sign-in', headers: { 'content-type': 'application/json', origin },
-            body: JSON.stringify({ email: `load-${ctx.n}@bench.example`, password: PASSWORD }) }));
+          return at(kind, index, (req, ctx) => ({
+            ...req,
+            method: 'POST',
+            path: '/api/auth/sign-in',
+            headers: { 'content-type': 'application/json', origin },
+            body: JSON.stringify({ email: `load-${ctx.n}@bench.example`, password: PASSWORD }),
+          }));
         case 'home':
-          return at(kind, index, (req, ctx) => ({ ...req, method: 'GET', path: '/', headers: withCookie(ctx), body: '' }));
+          return at(kind, index, (req, ctx) => ({
+            ...req,
+            method: 'GET',
+            path: '/',
+            headers: withCookie(ctx),
+            body: '',
+          }));
         case 'machine':
-          return at(kind, index, (req, ctx) => ({ ...req, method: 'GET', path: `/machines/${machines.get(ctx.n!)}`, headers: withCookie(ctx), body: '' }));
+          return at(kind, index, (req, ctx) => ({
+            ...req,
+            method: 'GET',
+            path: `/machines/${machines.get(ctx.n!)}`,
+            headers: withCookie(ctx),
+            body: '',
+          }));
         case 'trend':
-          return at(kind, index, (req, ctx) => ({ ...req, method: 'GET', path: `/api/trends/${machines.get(ctx.n!)}?measurands=Fe,Al,Si`, headers: withCookie(ctx), body: '' }));
+          return at(kind, index, (req, ctx) => ({
+            ...req,
+            method: 'GET',
+            path: `/api/trends/${machines.get(ctx.n!)}?measurands=Fe,Al,Si`,
+            headers: withCookie(ctx),
+            body: '',
+          }));
         case 'upload':
           return at(kind, index, (req, ctx) => {
             const done = importsOf.get(ctx.n!) ?? 0;
@@ -168,17 +262,37 @@ async function runLoad(processes: number) {
             const day = new Date(Date.UTC(2020, 0, 1) + i * 14 * 86_400_000).toISOString().slice(0, 10);
             const csv = `Bottle,Sampled,Fe,Al,Cu,Si,Na,Zn,KV100\n${code},${day},${18 + (i % 7)},${3 + (i % 3)},5,${6 + (i % 4)},4,1080,13.9\n`;
             const body = `--${BOUNDARY}\r\nContent-Disposition: form-data; name="file"; filename="load-${code}.csv"\r\nContent-Type: text/csv\r\n\r\n${csv}\r\n--${BOUNDARY}--\r\n`;
-            return { ...req, method: 'POST', path: '/api/imports', headers: { ...withCookie(ctx), origin, accept: 'application/json', 'content-type': `multipart/form-data; boundary=${BOUNDARY}` }, body };
+            return {
+              ...req,
+              method: 'POST',
+              path: '/api/imports',
+              headers: {
+                ...withCookie(ctx),
+                origin,
+                accept: 'application/json',
+                'content-type': `multipart/form-data; boundary=${BOUNDARY}`,
+              },
+              body,
+            };
           });
         case 'confirm':
-          return at(kind, index, (req, ctx) => ({ ...req, method: 'POST', path: `/api/imports/${ctx.labFileId ?? 'no-upload'}/confirm`,
-            headers: { ...withCookie(ctx), origin, 'content-type': 'application/json' }, body: '{"decisions":{}}' }));
+          return at(kind, index, (req, ctx) => ({
+            ...req,
+            method: 'POST',
+            path: `/api/imports/${ctx.labFileId ?? 'no-upload'}/confirm`,
+            headers: { ...withCookie(ctx), origin, 'content-type': 'application/json' },
+            body: '{"decisions":{}}',
+          }));
       }
     });
 
     // Warm-up: one user through one whole cycle by fetch, so the first measured requests do not pay for cold code paths.
     {
-      const signIn = await fetch(`${origin}/api/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: 'load-1@bench.example', password: PASSWORD }) });
+      const signIn = await fetch(`${origin}/api/auth/sign-in`, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json' },
+        body: JSON.stringify({ email: 'load-1@bench.example', password: PASSWORD }),
+      });
       if (signIn.status !== 200) throw new Error(`warm-up sign-in answered ${signIn.status}`);
       const cookie = signIn.headers.getSetCookie()[0]!.split(';')[0]!;
       for (const path of ['/', `/machines/${machines.get(1)}`, `/api/trends/${machines.get(1)}?measurands=Fe,Al,Si`]) {
@@ -190,13 +304,19 @@ async function runLoad(processes: number) {
 
     // The floor: the health endpoint alone (one cheap database round trip), same concurrency.
     const floor = newTally();
-    const floorRun = await runAutocannon({ url: `${origin}/api/health`, connections: CONNECTIONS, duration: FLOOR_SECONDS }, (status, ms) => count(floor, status, ms));
+    const floorRun = await runAutocannon(
+      { url: `${origin}/api/health`, connections: CONNECTIONS, duration: FLOOR_SECONDS },
+      (status, ms) => count(floor, status, ms),
+    );
 
     const kinds = Object.fromEntries(CYCLE.map((k) => [k, newTally()])) as Record<Kind, Tally>;
     const overall = newTally();
     const loadRun = await runAutocannon(
       { url: origin, connections: CONNECTIONS, duration: SECONDS, requests, timeout: 30 },
-      (status, ms) => { count(kinds[lastKind], status, ms); count(overall, status, ms); },
+      (status, ms) => {
+        count(kinds[lastKind], status, ms);
+        count(overall, status, ms);
+      },
     );
 
     const imports = await sql<{ n: string }>`select count(*)::text as n from lab_imports`.execute(db);
@@ -212,7 +332,12 @@ async function runLoad(processes: number) {
       overall: { ...overallSummary, socketErrors: loadRun.errors, timeouts: loadRun.timeouts },
       perKind,
       importsWritten: Number(imports.rows[0]!.n),
-      floor: { endpoint: 'GET /api/health', seconds: floorRun.duration, ...floorSummary, socketErrors: floorRun.errors },
+      floor: {
+        endpoint: 'GET /api/health',
+        seconds: floorRun.duration,
+        ...floorSummary,
+        socketErrors: floorRun.errors,
+      },
       ratiosToFloor: {
         overallP50: ratio(overallSummary.p50Ms, floorSummary.p50Ms),
         overallP99: ratio(overallSummary.p99Ms, floorSummary.p99Ms),
@@ -234,16 +359,32 @@ const one = await runLoad(1);
 const all = await runLoad(cores);
 const r2 = (v: number) => Math.round(v * 100) / 100;
 const scaling = r2(all.overall.perSecond / one.overall.perSecond);
-console.log(JSON.stringify({
-  bench: 'load',
-  connections: CONNECTIONS,
-  cores,
-  oneProcess: one,
-  allCores: all,
-  throughputRatioAllCoresToOne: scaling,
-  summary: [
-    { what: `mixed load, ${CONNECTIONS} connections, 1 app process`, result: `${one.overall.perSecond} req/s, p95 ${one.overall.p95Ms} ms, ${one.serverErrors} × 5xx`, floor: `GET /api/health ${one.floor.perSecond} req/s`, ratio: one.ratiosToFloor.throughput, limit: '0 × 5xx', ok: one.serverErrors === 0 },
-    { what: `mixed load, ${CONNECTIONS} connections, ${cores} app processes`, result: `${all.overall.perSecond} req/s, p95 ${all.overall.p95Ms} ms, ${all.serverErrors} × 5xx`, floor: `1 process ${one.overall.perSecond} req/s`, ratio: scaling, limit: cores >= 2 ? '≥ 1.6 ×, 0 × 5xx' : '0 × 5xx', ok: all.serverErrors === 0 && (cores < 2 || scaling >= 1.6) },
-  ],
-  node: process.version,
-}));
+console.log(
+  JSON.stringify({
+    bench: 'load',
+    connections: CONNECTIONS,
+    cores,
+    oneProcess: one,
+    allCores: all,
+    throughputRatioAllCoresToOne: scaling,
+    summary: [
+      {
+        what: `mixed load, ${CONNECTIONS} connections, 1 app process`,
+        result: `${one.overall.perSecond} req/s, p95 ${one.overall.p95Ms} ms, ${one.serverErrors} × 5xx`,
+        floor: `GET /api/health ${one.floor.perSecond} req/s`,
+        ratio: one.ratiosToFloor.throughput,
+        limit: '0 × 5xx',
+        ok: one.serverErrors === 0,
+      },
+      {
+        what: `mixed load, ${CONNECTIONS} connections, ${cores} app processes`,
+        result: `${all.overall.perSecond} req/s, p95 ${all.overall.p95Ms} ms, ${all.serverErrors} × 5xx`,
+        floor: `1 process ${one.overall.perSecond} req/s`,
+        ratio: scaling,
+        limit: cores >= 2 ? '≥ 1.6 ×, 0 × 5xx' : '0 × 5xx',
+        ok: all.serverErrors === 0 && (cores < 2 || scaling >= 1.6),
+      },
+    ],
+    node: process.version,
+  }),
+);

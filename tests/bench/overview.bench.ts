@@ -20,14 +20,22 @@ const RUNS = 20;
 const TARGET_MS = 200;
 
 const r1 = (v: number) => Math.round(v * 10) / 10;
-const median = (xs: number[]) => quantile([...xs].sort((a, b) => a - b), 0.5);
+const median = (xs: number[]) =>
+  quantile(
+    [...xs].sort((a, b) => a - b),
+    0.5,
+  );
 
 const app = await startApp('sumpwise_bench_overview', { seed: false });
 const db = createDb(app.databaseUrl, { max: 4 });
 try {
   const seedStart = performance.now();
-  await sql`insert into users (id, email, display_name, password_hash, email_verified_at) values ('overview-lead', 'overview@bench.example', 'Overview lead', 'not-a-real-hash', now())`.execute(db);
-  const crew = (await sql<{ id: string }>`insert into crews (name) values ('Overview bench crew') returning id`.execute(db)).rows[0]!;
+  await sql`insert into users (id, email, display_name, password_hash, email_verified_at) values ('overview-lead', 'overview@bench.example', 'Overview lead', 'not-a-real-hash', now())`.execute(
+    db,
+  );
+  const crew = (
+    await sql<{ id: string }>`insert into crews (name) values ('Overview bench crew') returning id`.execute(db)
+  ).rows[0]!;
   await sql`insert into crew_members (crew_id, user_id, role) values (${crew.id}, 'overview-lead', 'lead')`.execute(db);
   await sql`
     insert into machines (crew_id, owner_user_id, name, engine_layout, cooling, meter, oil_capacity_l, recommended_grades, max_interval_distance)
@@ -55,15 +63,21 @@ try {
     select s.id, 'Al', 'watch', case when hashtext(s.machine_id::text) % 7 = 0 then 'climbing-trend' else 'baseline-jump' end, 'Invented bench finding: aluminium above the band.'
       from samples s where s.state <> 'shipped' and hashtext(s.id::text) % 3 = 0
     union all
-    select s.id, 'Si', 'act', 'fixed-limit', 'Invented bench finding: silicon over the fixed limit.' from samples s where s.state <> 'shipped' and hashtext(s.id::text) % 11 = 0`.execute(db);
+    select s.id, 'Si', 'act', 'fixed-limit', 'Invented bench finding: silicon over the fixed limit.' from samples s where s.state <> 'shipped' and hashtext(s.id::text) % 11 = 0`.execute(
+    db,
+  );
   await sql`
     insert into interval_calls (sample_id, machine_id, call, next_interval, next_sample_odometer, next_sample_on, source)
     select s.id, s.machine_id, (array['shorten', 'hold', 'stretch'])[1 + abs(hashtext(s.id::text)) % 3], 2000, s.odometer + 2000, s.drawn_on + 60, 'engine'
     from samples s where s.state <> 'shipped'`.execute(db);
   await sql`analyze`.execute(db);
-  const counts = (await sql<{ samples: string; readings: string; findings: string; calls: string }>`
+  const counts = (
+    await sql<{ samples: string; readings: string; findings: string; calls: string }>`
     select (select count(*) from samples)::text as samples, (select count(*) from readings)::text as readings,
-      (select count(*) from findings)::text as findings, (select count(*) from interval_calls)::text as calls`.execute(db)).rows[0]!;
+      (select count(*) from findings)::text as findings, (select count(*) from interval_calls)::text as calls`.execute(
+      db,
+    )
+  ).rows[0]!;
   const seedMs = performance.now() - seedStart;
 
   const cases: Record<string, OverviewQuery> = {
@@ -89,15 +103,31 @@ try {
       total = page.total;
     }
     if (rows === 0) throw new Error(`the ${name} case found no rows: the synthetic data does not exercise it`);
-    service[name] = { medianMs: r1(median(times)), p95Ms: r1(quantile([...times].sort((a, b) => a - b), 0.95)), rows, total };
+    service[name] = {
+      medianMs: r1(median(times)),
+      p95Ms: r1(
+        quantile(
+          [...times].sort((a, b) => a - b),
+          0.95,
+        ),
+      ),
+      rows,
+      total,
+    };
   }
 
   // The page itself, through the built server, with a session written straight into the sessions table.
   const sessionId = randomBytes(20).toString('hex');
-  await sql`insert into sessions (id, user_id, expires_at, current_crew_id) values (${sessionId}, 'overview-lead', now() + interval '1 day', ${crew.id})`.execute(db);
+  await sql`insert into sessions (id, user_id, expires_at, current_crew_id) values (${sessionId}, 'overview-lead', now() + interval '1 day', ${crew.id})`.execute(
+    db,
+  );
   const cookie = `sumpwise_session=${sessionId}`;
   const http: Record<string, { medianMs: number; status: number; bytes: number }> = {};
-  for (const [name, path] of [['firstPage', '/overview'], ['deepPage', `/overview?sort=name&page=${Math.ceil(MACHINES / 50)}`], ['filtered', '/overview?level=act&call=shorten']] as const) {
+  for (const [name, path] of [
+    ['firstPage', '/overview'],
+    ['deepPage', `/overview?sort=name&page=${Math.ceil(MACHINES / 50)}`],
+    ['filtered', '/overview?level=act&call=shorten'],
+  ] as const) {
     let status = 0;
     let bytes = 0;
     const times: number[] = [];
@@ -114,17 +144,27 @@ try {
   }
 
   const slowest = Object.entries(service).sort((a, b) => b[1].medianMs - a[1].medianMs)[0]!;
-  console.log(JSON.stringify({
-    bench: 'overview',
-    data: { machines: MACHINES, samplesPerMachine: SAMPLES, samples: Number(counts.samples), readings: Number(counts.readings), findings: Number(counts.findings), intervalCalls: Number(counts.calls), seedSeconds: r1(seedMs / 1000) },
-    runs: RUNS,
-    service,
-    http,
-    slowest: { case: slowest[0], medianMs: slowest[1].medianMs },
-    targetMs: TARGET_MS,
-    withinTarget: Object.values(service).every((s) => s.medianMs < TARGET_MS),
-    node: process.version,
-  }));
+  console.log(
+    JSON.stringify({
+      bench: 'overview',
+      data: {
+        machines: MACHINES,
+        samplesPerMachine: SAMPLES,
+        samples: Number(counts.samples),
+        readings: Number(counts.readings),
+        findings: Number(counts.findings),
+        intervalCalls: Number(counts.calls),
+        seedSeconds: r1(seedMs / 1000),
+      },
+      runs: RUNS,
+      service,
+      http,
+      slowest: { case: slowest[0], medianMs: slowest[1].medianMs },
+      targetMs: TARGET_MS,
+      withinTarget: Object.values(service).every((s) => s.medianMs < TARGET_MS),
+      node: process.version,
+    }),
+  );
 } finally {
   await db.destroy();
   await app.stop();

@@ -41,7 +41,8 @@ function closure(entries: string[]): Set<string> {
 function entriesOf(html: string): string[] {
   const urls = new Set<string>();
   for (const m of html.matchAll(/<script[^>]*\ssrc="([^"]+)"/g)) urls.add(m[1]!);
-  for (const m of html.matchAll(/(?:component-url|renderer-url|before-hydration-url)="([^"]+)"/g)) if (m[1]) urls.add(m[1]);
+  for (const m of html.matchAll(/(?:component-url|renderer-url|before-hydration-url)="([^"]+)"/g))
+    if (m[1]) urls.add(m[1]);
   return [...urls];
 }
 
@@ -49,18 +50,39 @@ const app = await openBenchApp('sumpwise_bench_pages');
 try {
   const { cookie, machineId, sampleId } = await seedBenchMachine(app.db, 12);
   const pages: Record<string, string> = {
-    home: '/', overview: '/overview', tools: '/tools', rules: '/rules', machine: `/machines/${machineId}`,
-    history: `/machines/${machineId}/history`, sample: `/samples/${sampleId}`,
+    home: '/',
+    overview: '/overview',
+    tools: '/tools',
+    rules: '/rules',
+    machine: `/machines/${machineId}`,
+    history: `/machines/${machineId}/history`,
+    sample: `/samples/${sampleId}`,
   };
   // The garage pages are the rider's: measured as a lead of the same crew (mechanics cannot open them).
   const garagePages: Record<string, string> = {
-    drainCard: `/machines/${machineId}/drain-card`, oilChange: `/machines/${machineId}/oil-change`, outbox: '/outbox',
+    drainCard: `/machines/${machineId}/drain-card`,
+    oilChange: `/machines/${machineId}/oil-change`,
+    outbox: '/outbox',
   };
-  const result: Record<string, { status: number; files: number; islands: number; rawKB: number; gzipKB: number; react: boolean }> = {};
-  for (const [name, p] of [...Object.entries(pages), ['promote', ''], ...Object.entries(garagePages)] as [string, string][]) {
+  const result: Record<
+    string,
+    { status: number; files: number; islands: number; rawKB: number; gzipKB: number; react: boolean }
+  > = {};
+  for (const [name, p] of [...Object.entries(pages), ['promote', ''], ...Object.entries(garagePages)] as [
+    string,
+    string,
+  ][]) {
     if (name === 'promote') {
-      await app.db.updateTable('crew_members').set({ role: 'lead' })
-        .where('crew_id', '=', (await app.db.selectFrom('machines').select('crew_id').where('id', '=', machineId).executeTakeFirstOrThrow()).crew_id).execute();
+      await app.db
+        .updateTable('crew_members')
+        .set({ role: 'lead' })
+        .where(
+          'crew_id',
+          '=',
+          (await app.db.selectFrom('machines').select('crew_id').where('id', '=', machineId).executeTakeFirstOrThrow())
+            .crew_id,
+        )
+        .execute();
       continue;
     }
     const res = await fetch(`${app.baseUrl}${p}`, { headers: { cookie }, redirect: 'manual' });
@@ -81,20 +103,45 @@ try {
       gz += gzipSync(buf, { level: 9 }).length;
       if (/react-dom|__SECRET_INTERNALS|createRoot/.test(buf.toString('utf8'))) react = true;
     }
-    result[name] = { status: res.status, files: files.size, islands: (html.match(/<astro-island/g) ?? []).length, rawKB: Math.round(raw / 102.4) / 10, gzipKB: Math.round(gz / 102.4) / 10, react };
+    result[name] = {
+      status: res.status,
+      files: files.size,
+      islands: (html.match(/<astro-island/g) ?? []).length,
+      rawKB: Math.round(raw / 102.4) / 10,
+      gzipKB: Math.round(gz / 102.4) / 10,
+      react,
+    };
   }
-  const noFramework = Object.entries(result).filter(([n]) => !['machine', 'sample', 'drainCard', 'oilChange', 'outbox'].includes(n)).every(([, r]) => !r.react);
+  const noFramework = Object.entries(result)
+    .filter(([n]) => !['machine', 'sample', 'drainCard', 'oilChange', 'outbox'].includes(n))
+    .every(([, r]) => !r.react);
   // The service worker is fetched once per install, not per page; reported beside the pages.
-  const sw = (() => { try { return readFileSync(path.join(CLIENT, 'sw.js')); } catch { return null; } })();
-  const serviceWorker = sw ? { rawKB: Math.round(sw.length / 102.4) / 10, gzipKB: Math.round(gzipSync(sw, { level: 9 }).length / 102.4) / 10 } : null;
-  const offlineAddedKB = Math.round((result['drainCard']!.gzipKB - DRAIN_CARD_BEFORE_OFFLINE_KB + (serviceWorker?.gzipKB ?? 0)) * 10) / 10;
-  console.log(JSON.stringify({
-    pages: result, serviceWorker,
-    targets: {
-      machineUnderKB: TARGET_MACHINE_KB, machineMet: result['machine']!.gzipKB < TARGET_MACHINE_KB, staticPagesWithoutFramework: noFramework,
-      offlineAddedToDrainCardKB: offlineAddedKB, offlineAddedUnderKB: TARGET_OFFLINE_ADDED_KB, offlineMet: offlineAddedKB <= TARGET_OFFLINE_ADDED_KB,
-    },
-  }));
+  const sw = (() => {
+    try {
+      return readFileSync(path.join(CLIENT, 'sw.js'));
+    } catch {
+      return null;
+    }
+  })();
+  const serviceWorker = sw
+    ? { rawKB: Math.round(sw.length / 102.4) / 10, gzipKB: Math.round(gzipSync(sw, { level: 9 }).length / 102.4) / 10 }
+    : null;
+  const offlineAddedKB =
+    Math.round((result['drainCard']!.gzipKB - DRAIN_CARD_BEFORE_OFFLINE_KB + (serviceWorker?.gzipKB ?? 0)) * 10) / 10;
+  console.log(
+    JSON.stringify({
+      pages: result,
+      serviceWorker,
+      targets: {
+        machineUnderKB: TARGET_MACHINE_KB,
+        machineMet: result['machine']!.gzipKB < TARGET_MACHINE_KB,
+        staticPagesWithoutFramework: noFramework,
+        offlineAddedToDrainCardKB: offlineAddedKB,
+        offlineAddedUnderKB: TARGET_OFFLINE_ADDED_KB,
+        offlineMet: offlineAddedKB <= TARGET_OFFLINE_ADDED_KB,
+      },
+    }),
+  );
 } finally {
   await app.stop();
 }

@@ -15,9 +15,17 @@ console.log(
   JSON.stringify({
     bench: 'simulation',
     ...figures,
-    budget: { stableAnyShortenPercentMax: 10, stableAnyActPercentMax: 5, ironDetectedPercentMin: 80, aluminiumDetectedPercentMin: 80 },
+    budget: {
+      stableAnyShortenPercentMax: 10,
+      stableAnyActPercentMax: 5,
+      ironDetectedPercentMin: 80,
+      aluminiumDetectedPercentMin: 80,
+    },
     withinBudget:
-      figures.stableAnyShortenPercent <= 10 && figures.stableAnyActPercent <= 5 && figures.ironDetectedPercent >= 80 && figures.aluminiumDetectedPercent >= 80,
+      figures.stableAnyShortenPercent <= 10 &&
+      figures.stableAnyActPercent <= 5 &&
+      figures.ironDetectedPercent >= 80 &&
+      figures.aluminiumDetectedPercent >= 80,
     machinesJudged: 3 * figures.machines,
     ms: Math.round(ms),
     node: process.version,

@@ -40,8 +40,13 @@ async function hammer(url: string, headers: Record<string, string>) {
   const elapsed = (performance.now() - started) / 1000;
   latencies.sort((a, b) => a - b);
   return {
-    requests: latencies.length, errors, requestsPerSecond: Math.round(latencies.length / elapsed),
-    p50Ms: r1(quantile(latencies, 0.5)), p95Ms: r1(quantile(latencies, 0.95)), p99Ms: r1(quantile(latencies, 0.99)), maxMs: r1(latencies.at(-1)!),
+    requests: latencies.length,
+    errors,
+    requestsPerSecond: Math.round(latencies.length / elapsed),
+    p50Ms: r1(quantile(latencies, 0.5)),
+    p95Ms: r1(quantile(latencies, 0.95)),
+    p99Ms: r1(quantile(latencies, 0.99)),
+    maxMs: r1(latencies.at(-1)!),
   };
 }
 
@@ -55,7 +60,8 @@ try {
   const sentBytes = Number(first.headers.get('content-length'));
   const text = await first.text();
   const body = JSON.parse(text) as { samples?: { id: unknown[] } };
-  if (first.status !== 200 || body.samples?.id.length !== SAMPLES) throw new Error(`warm-up answered ${first.status} with ${body.samples?.id.length} samples`);
+  if (first.status !== 200 || body.samples?.id.length !== SAMPLES)
+    throw new Error(`warm-up answered ${first.status} with ${body.samples?.id.length} samples`);
   const etag = first.headers.get('etag') ?? '';
   const revalidated = await fetch(url, { headers: { ...headers, 'if-none-match': etag } });
   await revalidated.arrayBuffer();
@@ -65,16 +71,41 @@ try {
   const health = await hammer(`${app.baseUrl}/api/health`, {});
   const trend = await hammer(url, headers);
   const p95Ratio = Math.round((trend.p95Ms / health.p95Ms) * 100) / 100;
-  console.log(JSON.stringify({
-    samples: SAMPLES, measurands: 3, concurrency: CONCURRENCY, seconds: SECONDS,
-    trend, health,
-    response: { sentBytes, encoding: first.headers.get('content-encoding'), jsonBytes: Buffer.byteLength(text), unchangedAnswers: revalidated.status },
-    p95RatioToHealth: p95Ratio,
-    summary: [
-      { what: `trend endpoint, 200 samples × 3 elements, ${CONCURRENCY} clients`, result: `p95 ${trend.p95Ms} ms (${trend.requestsPerSecond} req/s, ${trend.errors} errors)`, floor: `GET /api/health p95 ${health.p95Ms} ms`, ratio: p95Ratio, limit: `≤ ${TARGET_P95_RATIO} ×`, ok: p95Ratio <= TARGET_P95_RATIO && trend.errors === 0 },
-      { what: 'trend answer as sent (gzip accepted)', result: `${(sentBytes / 1024).toFixed(1)} KB (${(Buffer.byteLength(text) / 1024).toFixed(1)} KB of JSON); unchanged: ${revalidated.status}`, floor: '—', ratio: null, limit: '< 40 KB', ok: sentBytes < TARGET_BYTES && revalidated.status === 304 },
-    ],
-  }));
+  console.log(
+    JSON.stringify({
+      samples: SAMPLES,
+      measurands: 3,
+      concurrency: CONCURRENCY,
+      seconds: SECONDS,
+      trend,
+      health,
+      response: {
+        sentBytes,
+        encoding: first.headers.get('content-encoding'),
+        jsonBytes: Buffer.byteLength(text),
+        unchangedAnswers: revalidated.status,
+      },
+      p95RatioToHealth: p95Ratio,
+      summary: [
+        {
+          what: `trend endpoint, 200 samples × 3 elements, ${CONCURRENCY} clients`,
+          result: `p95 ${trend.p95Ms} ms (${trend.requestsPerSecond} req/s, ${trend.errors} errors)`,
+          floor: `GET /api/health p95 ${health.p95Ms} ms`,
+          ratio: p95Ratio,
+          limit: `≤ ${TARGET_P95_RATIO} ×`,
+          ok: p95Ratio <= TARGET_P95_RATIO && trend.errors === 0,
+        },
+        {
+          what: 'trend answer as sent (gzip accepted)',
+          result: `${(sentBytes / 1024).toFixed(1)} KB (${(Buffer.byteLength(text) / 1024).toFixed(1)} KB of JSON); unchanged: ${revalidated.status}`,
+          floor: '—',
+          ratio: null,
+          limit: '< 40 KB',
+          ok: sentBytes < TARGET_BYTES && revalidated.status === 304,
+        },
+      ],
+    }),
+  );
 } finally {
   await app.stop();
 }

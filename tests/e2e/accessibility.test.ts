@@ -19,11 +19,16 @@ function routeKey(pathname: string): string {
 
 /** One readable line per page with problems, so a failure says what to fix. */
 function describeProblems(problems: { url: string; violations: AxeViolation[] }[]): string[] {
-  return problems.map((p) => `${p.url}: ${p.violations.map((v) => `${v.id} (${v.impact}) at ${v.targets.join(' | ')}`).join('; ')}`);
+  return problems.map(
+    (p) => `${p.url}: ${p.violations.map((v) => `${v.id} (${v.impact}) at ${v.targets.join(' | ')}`).join('; ')}`,
+  );
 }
 
 /** Follows same-origin links breadth-first from `start`; runs axe on the first page of each route. */
-async function crawl(page: Page, start: string): Promise<{ pages: string[]; problems: { url: string; violations: AxeViolation[] }[] }> {
+async function crawl(
+  page: Page,
+  start: string,
+): Promise<{ pages: string[]; problems: { url: string; violations: AxeViolation[] }[] }> {
   const origin = new URL(baseUrl()).origin;
   const queue = [start];
   const seenRoutes = new Set<string>();
@@ -35,7 +40,8 @@ async function crawl(page: Page, start: string): Promise<{ pages: string[]; prob
     if (seenRoutes.has(key)) continue;
     seenRoutes.add(key);
     const response = await page.goto(path);
-    if (!response || response.status() >= 400 || !(response.headers()['content-type'] ?? '').includes('text/html')) continue;
+    if (!response || response.status() >= 400 || !(response.headers()['content-type'] ?? '').includes('text/html'))
+      continue;
     pages.push(path);
     const violations = await seriousViolations(page);
     if (violations.length > 0) problems.push({ url: path, violations });
@@ -59,8 +65,12 @@ function axeContext(browser: Browser): Promise<BrowserContext> {
 describe('accessibility (axe-core, WCAG 2.1 A/AA, serious and critical)', () => {
   let browser: Browser;
   let context: BrowserContext;
-  beforeAll(async () => { browser = await launchBrowser(); });
-  afterAll(async () => { await browser?.close(); });
+  beforeAll(async () => {
+    browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   test('every page a signed-out visitor can reach', async () => {
     context = await axeContext(browser);
@@ -71,14 +81,18 @@ describe('accessibility (axe-core, WCAG 2.1 A/AA, serious and critical)', () => 
     await context.close();
   });
 
-  test.each(['lead', 'mechanic', 'riderA'] as const)('every page the demo %s can reach', async (key) => {
-    const account = DEMO_ACCOUNTS.find((a) => a.key === key)!;
-    context = await axeContext(browser);
-    const page = await context.newPage();
-    await signInAs(page, account.email, account.password);
-    const { pages, problems } = await crawl(page, '/');
-    expect(pages.length).toBeGreaterThan(5);
-    expect(describeProblems(problems)).toEqual([]);
-    await context.close();
-  }, 180_000);
+  test.each(['lead', 'mechanic', 'riderA'] as const)(
+    'every page the demo %s can reach',
+    async (key) => {
+      const account = DEMO_ACCOUNTS.find((a) => a.key === key)!;
+      context = await axeContext(browser);
+      const page = await context.newPage();
+      await signInAs(page, account.email, account.password);
+      const { pages, problems } = await crawl(page, '/');
+      expect(pages.length).toBeGreaterThan(5);
+      expect(describeProblems(problems)).toEqual([]);
+      await context.close();
+    },
+    180_000,
+  );
 });

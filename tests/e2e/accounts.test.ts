@@ -21,10 +21,18 @@ beforeAll(async () => {
   db = createDb(inject('databaseUrl'), { max: 2 });
   crews = await ensureMatrixAccounts(db);
 });
-afterAll(async () => { await browser?.close(); await db?.destroy(); });
+afterAll(async () => {
+  await browser?.close();
+  await db?.destroy();
+});
 
 const postJson = (path: string, body: unknown, headers: Record<string, string> = {}) =>
-  fetch(`${baseUrl()}${path}`, { method: 'POST', headers: { 'content-type': 'application/json', ...headers }, body: JSON.stringify(body), redirect: 'manual' });
+  fetch(`${baseUrl()}${path}`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', ...headers },
+    body: JSON.stringify(body),
+    redirect: 'manual',
+  });
 
 async function signUpByApi(email: string, password = 'a long enough password') {
   const res = await postJson('/api/auth/sign-up', { email, password, displayName: email.split('@')[0] });
@@ -43,7 +51,10 @@ describe('accounts in Chromium', () => {
     await lead.getByLabel('E-mail address').fill(leadEmail);
     await lead.getByLabel('Your name').fill('Ada Lead');
     await lead.getByLabel('Password').fill('larch valley gearbox');
-    await Promise.all([lead.waitForURL(/\/account\?welcome=1$/), lead.getByRole('button', { name: 'Create account' }).click()]);
+    await Promise.all([
+      lead.waitForURL(/\/account\?welcome=1$/),
+      lead.getByRole('button', { name: 'Create account' }).click(),
+    ]);
     await expect(lead.getByTestId('current-crew').textContent()).resolves.toContain('Ada Lead’s crew');
 
     // The verification link, followed from the mailbox page.
@@ -60,7 +71,10 @@ describe('accounts in Chromium', () => {
 
     await lead.goto('/crews');
     await lead.getByLabel('Crew name').fill(crewName);
-    await Promise.all([lead.waitForURL(/\/crews\/[0-9a-f-]{36}$/), lead.getByRole('button', { name: 'Create crew' }).click()]);
+    await Promise.all([
+      lead.waitForURL(/\/crews\/[0-9a-f-]{36}$/),
+      lead.getByRole('button', { name: 'Create crew' }).click(),
+    ]);
     const crewPath = new URL(lead.url()).pathname;
     await lead.getByLabel('E-mail address').fill(mechanicEmail);
     await lead.getByLabel('Role', { exact: true }).selectOption('mechanic');
@@ -78,7 +92,10 @@ describe('accounts in Chromium', () => {
     await mechanic.getByRole('link', { name: 'Create an account and join' }).click();
     await expect(mechanic.getByLabel('E-mail address').inputValue()).resolves.toBe(mechanicEmail);
     await mechanic.getByLabel('Password').fill('wren spanner torque');
-    await Promise.all([mechanic.waitForURL(new RegExp(`${crewPath}\\?joined=1$`)), mechanic.getByRole('button', { name: 'Create account' }).click()]);
+    await Promise.all([
+      mechanic.waitForURL(new RegExp(`${crewPath}\\?joined=1$`)),
+      mechanic.getByRole('button', { name: 'Create account' }).click(),
+    ]);
     await expect(mechanic.locator('main').textContent()).resolves.toContain('You are mechanic here');
     await expect(mechanic.getByTestId('members').textContent()).resolves.toContain(leadEmail);
     await screenshot(mechanic, 'crew-page-mechanic');
@@ -105,7 +122,10 @@ describe('accounts in Chromium', () => {
     await page.goto('/sign-in');
     await page.getByLabel('E-mail address').fill(email);
     await page.getByLabel('Password').fill('not the right one');
-    const [res] = await Promise.all([page.waitForResponse((r) => r.url().endsWith('/sign-in') && r.request().method() === 'POST'), page.getByRole('button', { name: 'Sign in' }).click()]);
+    const [res] = await Promise.all([
+      page.waitForResponse((r) => r.url().endsWith('/sign-in') && r.request().method() === 'POST'),
+      page.getByRole('button', { name: 'Sign in' }).click(),
+    ]);
     expect(res.status()).toBe(401);
     await expect(page.getByLabel('E-mail address').inputValue()).resolves.toBe(email);
     await expect(page.getByTestId('form-error').textContent()).resolves.toContain('do not match');
@@ -118,7 +138,10 @@ describe('attacks against the built server', () => {
     const email = `same-${run}@e2e.example`;
     await signUpByApi(email);
     const wrong = await postJson('/api/auth/sign-in', { email, password: 'wrong password here' });
-    const unknown = await postJson('/api/auth/sign-in', { email: `nobody-${run}@e2e.example`, password: 'wrong password here' });
+    const unknown = await postJson('/api/auth/sign-in', {
+      email: `nobody-${run}@e2e.example`,
+      password: 'wrong password here',
+    });
     expect([wrong.status, unknown.status]).toEqual([401, 401]);
     expect(await unknown.json()).toEqual(await wrong.json());
   });
@@ -138,16 +161,32 @@ describe('attacks against the built server', () => {
   });
 
   test.each([
-    ['JSON endpoint', '/api/auth/sign-in', 'application/json', JSON.stringify({ email: 'a@e2e.example', password: 'x'.repeat(40_000) })],
-    ['form page', '/sign-in', 'application/x-www-form-urlencoded', `email=a%40e2e.example&password=${'x'.repeat(40_000)}`],
+    [
+      'JSON endpoint',
+      '/api/auth/sign-in',
+      'application/json',
+      JSON.stringify({ email: 'a@e2e.example', password: 'x'.repeat(40_000) }),
+    ],
+    [
+      'form page',
+      '/sign-in',
+      'application/x-www-form-urlencoded',
+      `email=a%40e2e.example&password=${'x'.repeat(40_000)}`,
+    ],
   ])('an oversized body to a %s answers 413', async (_kind, path, type, body) => {
-    const res = await fetch(`${baseUrl()}${path}`, { method: 'POST', headers: { 'content-type': type, origin: baseUrl() }, body, redirect: 'manual' });
+    const res = await fetch(`${baseUrl()}${path}`, {
+      method: 'POST',
+      headers: { 'content-type': type, origin: baseUrl() },
+      body,
+      redirect: 'manual',
+    });
     expect(res.status).toBe(413);
   });
 
   test('a cross-site form post is refused with 403', async () => {
     const res = await fetch(`${baseUrl()}/sign-in`, {
-      method: 'POST', redirect: 'manual',
+      method: 'POST',
+      redirect: 'manual',
       headers: { 'content-type': 'application/x-www-form-urlencoded', origin: 'https://attacker.example' },
       body: 'email=a%40e2e.example&password=whatever-long',
     });
@@ -158,24 +197,40 @@ describe('attacks against the built server', () => {
     const email = `forged-${run}@e2e.example`;
     const { userId } = await signUpByApi(email);
     const token = generateToken();
-    await db.insertInto('crew_invitations').values({
-      crew_id: crews.crewA.id, email, role: 'rider', token_hash: hashToken(token), invited_by: crews.crewA.leadId, expires_at: new Date(Date.now() + 3_600_000),
-    }).execute();
+    await db
+      .insertInto('crew_invitations')
+      .values({
+        crew_id: crews.crewA.id,
+        email,
+        role: 'rider',
+        token_hash: hashToken(token),
+        invited_by: crews.crewA.leadId,
+        expires_at: new Date(Date.now() + 3_600_000),
+      })
+      .execute();
     const cookie = await sessionCookieFor(baseUrl(), email, 'a long enough password');
     const res = await fetch(`${baseUrl()}/invitations/${token}`, {
-      method: 'POST', redirect: 'manual',
+      method: 'POST',
+      redirect: 'manual',
       headers: { cookie, origin: baseUrl(), 'content-type': 'application/x-www-form-urlencoded' },
       body: 'role=lead&crewId=whatever',
     });
     expect(res.status).toBe(303);
-    const m = await db.selectFrom('crew_members').select('role').where('crew_id', '=', crews.crewA.id).where('user_id', '=', userId).executeTakeFirstOrThrow();
+    const m = await db
+      .selectFrom('crew_members')
+      .select('role')
+      .where('crew_id', '=', crews.crewA.id)
+      .where('user_id', '=', userId)
+      .executeTakeFirstOrThrow();
     expect(m.role).toBe('rider');
   });
 
   test('a mechanic cannot promote themselves by sending a role', async () => {
     const cookie = await sessionCookieFor(baseUrl(), MATRIX_USERS.mechanic, MATRIX_PASSWORD);
     const res = await fetch(`${baseUrl()}/api/crews/${crews.crewA.id}/members/${crews.crewA.mechanicId}`, {
-      method: 'PATCH', headers: { cookie, origin: baseUrl(), 'content-type': 'application/json' }, body: JSON.stringify({ role: 'lead' }),
+      method: 'PATCH',
+      headers: { cookie, origin: baseUrl(), 'content-type': 'application/json' },
+      body: JSON.stringify({ role: 'lead' }),
     });
     expect(res.status).toBe(403);
     expect(await res.json()).toEqual({ error: { code: 'forbidden', message: expect.any(String), fields: {} } });
@@ -185,12 +240,24 @@ describe('attacks against the built server', () => {
     const email = `other-addr-${run}@e2e.example`;
     await signUpByApi(email);
     const token = generateToken();
-    await db.insertInto('crew_invitations').values({
-      crew_id: crews.crewA.id, email: `someone-else-${run}@e2e.example`, role: 'mechanic', token_hash: hashToken(token), invited_by: crews.crewA.leadId,
-      expires_at: new Date(Date.now() + 3_600_000),
-    }).execute();
+    await db
+      .insertInto('crew_invitations')
+      .values({
+        crew_id: crews.crewA.id,
+        email: `someone-else-${run}@e2e.example`,
+        role: 'mechanic',
+        token_hash: hashToken(token),
+        invited_by: crews.crewA.leadId,
+        expires_at: new Date(Date.now() + 3_600_000),
+      })
+      .execute();
     const cookie = await sessionCookieFor(baseUrl(), email, 'a long enough password');
-    const res = await fetch(`${baseUrl()}/invitations/${token}`, { method: 'POST', redirect: 'manual', headers: { cookie, origin: baseUrl(), 'content-type': 'application/x-www-form-urlencoded' }, body: '' });
+    const res = await fetch(`${baseUrl()}/invitations/${token}`, {
+      method: 'POST',
+      redirect: 'manual',
+      headers: { cookie, origin: baseUrl(), 'content-type': 'application/x-www-form-urlencoded' },
+      body: '',
+    });
     expect(res.status).toBe(403);
     expect(await res.text()).toContain('another e-mail address');
   });
@@ -221,8 +288,15 @@ describe('attacks against the built server', () => {
     expect(setCookie).toMatch(/SameSite=Lax/i);
     expect(setCookie).not.toMatch(/Secure/i); // the e2e public URL is http://127.0.0.1
     const oldCookie = setCookie.split(';')[0]!;
-    const second = await postJson('/api/auth/sign-in', { email, password: 'a long enough password' }, { cookie: oldCookie, origin: baseUrl() });
-    const newCookie = second.headers.getSetCookie().find((c) => c.startsWith('sumpwise_session='))!.split(';')[0]!;
+    const second = await postJson(
+      '/api/auth/sign-in',
+      { email, password: 'a long enough password' },
+      { cookie: oldCookie, origin: baseUrl() },
+    );
+    const newCookie = second.headers
+      .getSetCookie()
+      .find((c) => c.startsWith('sumpwise_session='))!
+      .split(';')[0]!;
     expect(newCookie).not.toBe(oldCookie);
     expect((await fetch(`${baseUrl()}/api/auth/me`, { headers: { cookie: oldCookie } })).status).toBe(401);
     expect((await fetch(`${baseUrl()}/api/auth/me`, { headers: { cookie: newCookie } })).status).toBe(200);

@@ -19,9 +19,18 @@ const NEW_MACHINE = 'Kestrel New';
 async function addKestrels(): Promise<void> {
   const db = createDb(inject('databaseUrl'), { max: 1 });
   try {
-    const crew = await db.selectFrom('crew_members').innerJoin('users', 'users.id', 'crew_members.user_id')
-      .select(['crew_members.crew_id', 'users.id']).where('users.email', '=', mechanic.email).executeTakeFirstOrThrow();
-    const exists = await db.selectFrom('machines').select('id').where('crew_id', '=', crew.crew_id).where('name', '=', NEW_MACHINE).executeTakeFirst();
+    const crew = await db
+      .selectFrom('crew_members')
+      .innerJoin('users', 'users.id', 'crew_members.user_id')
+      .select(['crew_members.crew_id', 'users.id'])
+      .where('users.email', '=', mechanic.email)
+      .executeTakeFirstOrThrow();
+    const exists = await db
+      .selectFrom('machines')
+      .select('id')
+      .where('crew_id', '=', crew.crew_id)
+      .where('name', '=', NEW_MACHINE)
+      .executeTakeFirst();
     if (exists) return;
     const machines: [name: string, fe: number[], year: number][] = [
       ['Kestrel One', [11, 12, 12, 13, 12], 2024],
@@ -30,19 +39,54 @@ async function addKestrels(): Promise<void> {
       [NEW_MACHINE, [12, 13], 2026],
     ];
     for (const [m, [name, fe, year]] of machines.entries()) {
-      const machine = await db.insertInto('machines').values({
-        crew_id: crew.crew_id, owner_user_id: crew.id, name, engine_layout: 'single', displacement_cc: 300, cooling: 'liquid',
-        meter: 'km', recommended_grades: JSON.stringify([]), max_interval_distance: 5000,
-      } as never).returning('id').executeTakeFirstOrThrow();
+      const machine = await db
+        .insertInto('machines')
+        .values({
+          crew_id: crew.crew_id,
+          owner_user_id: crew.id,
+          name,
+          engine_layout: 'single',
+          displacement_cc: 300,
+          cooling: 'liquid',
+          meter: 'km',
+          recommended_grades: JSON.stringify([]),
+          max_interval_distance: 5000,
+        } as never)
+        .returning('id')
+        .executeTakeFirstOrThrow();
       for (const [i, v] of fe.entries()) {
         const code = `KST${m}-${i + 1}`;
-        const sample = await db.insertInto('samples').values({
-          crew_id: crew.crew_id, machine_id: machine.id, bottle_code: code, bottle_code_norm: normaliseBottleCode(code),
-          drawn_on: `${year}-0${i + 2}-10`, odometer: (i + 1) * 3000, distance_on_oil: 3000, sae_grade: '10W-40', oil_product: 'Test Oil 10W-40',
-          client_key: null, created_by: crew.id, state: 'results_in',
-        } as never).returning('id').executeTakeFirstOrThrow();
+        const sample = await db
+          .insertInto('samples')
+          .values({
+            crew_id: crew.crew_id,
+            machine_id: machine.id,
+            bottle_code: code,
+            bottle_code_norm: normaliseBottleCode(code),
+            drawn_on: `${year}-0${i + 2}-10`,
+            odometer: (i + 1) * 3000,
+            distance_on_oil: 3000,
+            sae_grade: '10W-40',
+            oil_product: 'Test Oil 10W-40',
+            client_key: null,
+            created_by: crew.id,
+            state: 'results_in',
+          } as never)
+          .returning('id')
+          .executeTakeFirstOrThrow();
         const readings = { Fe: v, Al: 3, Cu: 2, Si: 6, KV100: 13.8, FUEL: 0.5, WATER: 0.02 };
-        await db.insertInto('readings').values(Object.entries(readings).map(([measurand, value]) => ({ sample_id: sample.id, measurand, value, qualifier: null, lab_import_id: null }))).execute();
+        await db
+          .insertInto('readings')
+          .values(
+            Object.entries(readings).map(([measurand, value]) => ({
+              sample_id: sample.id,
+              measurand,
+              value,
+              qualifier: null,
+              lab_import_id: null,
+            })),
+          )
+          .execute();
       }
       await db.transaction().execute((trx) => recomputeMachineFindings(trx, machine.id, null));
     }
@@ -68,7 +112,9 @@ describe.each([
     page.on('pageerror', (e) => errors.push(e.message));
     await signInAs(page, mechanic.email, mechanic.password);
   });
-  afterAll(async () => { await browser?.close(); });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   test('a new machine of an engine the crew runs shows the crew reference band, labelled, on its chart and sample page', async () => {
     await page.goto('/overview');
@@ -91,7 +137,9 @@ describe.each([
 
     await page.goto(links.at(-1)!);
     await expect(page.getByTestId('crew-reference-note').textContent()).resolves.toContain(LABEL);
-    const band = await page.locator('[data-testid="readings-table"] tr[data-measurand="Fe"] [data-testid="reading-band"]').textContent();
+    const band = await page
+      .locator('[data-testid="readings-table"] tr[data-measurand="Fe"] [data-testid="reading-band"]')
+      .textContent();
     expect(band).toContain(`crew reference, ${LABEL}`);
     // Steady on a crew reference: a hold, never a stretch, and the reasons say whose band it was.
     await expect(page.getByTestId('current-call').getAttribute('data-call')).resolves.toBe('hold');

@@ -13,12 +13,18 @@ const account = (key: string) => {
   return a;
 };
 
-async function signedIn(browser: Browser, key: string, viewport: { width: number; height: number }): Promise<{ context: BrowserContext; page: Page; errors: string[] }> {
+async function signedIn(
+  browser: Browser,
+  key: string,
+  viewport: { width: number; height: number },
+): Promise<{ context: BrowserContext; page: Page; errors: string[] }> {
   const context = await newContext(browser, viewport);
   const page = await context.newPage();
   const errors: string[] = [];
   page.on('pageerror', (e) => errors.push(e.message));
-  page.on('console', (m) => { if (m.type() === 'error') errors.push(m.text()); });
+  page.on('console', (m) => {
+    if (m.type() === 'error') errors.push(m.text());
+  });
   const a = account(key);
   await signInAs(page, a.email, a.password);
   return { context, page, errors };
@@ -44,8 +50,12 @@ async function chartLevels(page: Page, href: string, code: string): Promise<stri
 
 describe('decisions: a mechanic overrides a call and a rider sees it', () => {
   let browser: Browser;
-  beforeAll(async () => { browser = await launchBrowser(); });
-  afterAll(async () => { await browser?.close(); });
+  beforeAll(async () => {
+    browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   test.each([
     ['phone', PHONE, 'hold'],
@@ -79,9 +89,17 @@ describe('decisions: a mechanic overrides a call and a rider sees it', () => {
     await chart.scrollIntoViewIfNeeded();
     await page.locator('[data-testid="wear-chart"] canvas').waitFor({ state: 'visible', timeout: 15_000 });
     await page.getByTestId('wear-chart-table').waitFor({ state: 'visible' });
-    await expect(page.locator('[data-testid="wear-chart-table"] tr[data-level="act"], [data-testid="wear-chart-table"] tr[data-level="watch"]').count()).resolves.toBeGreaterThan(0);
+    await expect(
+      page
+        .locator(
+          '[data-testid="wear-chart-table"] tr[data-level="act"], [data-testid="wear-chart-table"] tr[data-level="watch"]',
+        )
+        .count(),
+    ).resolves.toBeGreaterThan(0);
     await expect(page.getByTestId('machine-summary').isVisible()).resolves.toBe(true);
-    await chart.screenshot({ path: `${(await import('./helpers/browser')).SCREENSHOT_DIR}/decisions-chart-${name}.png` });
+    await chart.screenshot({
+      path: `${(await import('./helpers/browser')).SCREENSHOT_DIR}/decisions-chart-${name}.png`,
+    });
     await screenshot(page, `decisions-machine-${name}`);
 
     // 4. Back on the sample: override the call with a note (a note is required).
@@ -92,12 +110,17 @@ describe('decisions: a mechanic overrides a call and a rider sees it', () => {
     await form.locator(`input[name="call"][value="${newCall}"]`).check();
     const note = `Checked the air filter on ${machineName} (${name}); resample in 500 km.`;
     await form.getByLabel('Why (required)').fill(note);
-    await Promise.all([page.waitForURL(/review_saved=override/), form.getByRole('button', { name: 'Override the call' }).click()]);
+    await Promise.all([
+      page.waitForURL(/review_saved=override/),
+      form.getByRole('button', { name: 'Override the call' }).click(),
+    ]);
     const current = page.getByTestId('current-call');
     await expect(current.getAttribute('data-source')).resolves.toBe('override');
     await expect(current.getAttribute('data-call')).resolves.toBe(newCall);
     await expect(current.textContent()).resolves.toContain(note);
-    await expect(page.locator('[data-testid="call-history"] li[data-source="override"]').count()).resolves.toBeGreaterThan(0);
+    await expect(
+      page.locator('[data-testid="call-history"] li[data-source="override"]').count(),
+    ).resolves.toBeGreaterThan(0);
     await screenshot(page, `decisions-overridden-${name}`);
     expect(mech.errors).toEqual([]);
     await mech.context.close();
@@ -112,7 +135,9 @@ describe('decisions: a mechanic overrides a call and a rider sees it', () => {
     await rider.page.goto(mHref!);
     await expect(rider.page.getByTestId('summary-call').getAttribute('data-call')).resolves.toBe(newCall);
     await screenshot(rider.page, `decisions-rider-${name}`);
-    const overflow = await rider.page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+    const overflow = await rider.page.evaluate(
+      () => document.documentElement.scrollWidth - document.documentElement.clientWidth,
+    );
     expect(overflow).toBeLessThanOrEqual(0);
     expect(rider.errors).toEqual([]);
     await rider.context.close();
@@ -121,7 +146,10 @@ describe('decisions: a mechanic overrides a call and a rider sees it', () => {
   test('an override without a note is refused and writes nothing', async () => {
     const mech = await signedIn(browser, 'mechanic', DESKTOP);
     await mech.page.goto('/overview');
-    const sampleHref = await mech.page.locator('tr[data-machine="Heron"] td a[href^="/samples/"]').first().getAttribute('href');
+    const sampleHref = await mech.page
+      .locator('tr[data-machine="Heron"] td a[href^="/samples/"]')
+      .first()
+      .getAttribute('href');
     const before = await mech.page.request.get(`${sampleHref}`);
     expect(before.status()).toBe(200);
     const res = await mech.page.request.post(`/api/reviews/${sampleHref!.split('/').pop()}/call`, {
@@ -142,7 +170,10 @@ describe('the demo tells its stories', () => {
     browser = await launchBrowser();
     mech = await signedIn(browser, 'lead', DESKTOP);
   });
-  afterAll(async () => { await mech?.context.close(); await browser?.close(); });
+  afterAll(async () => {
+    await mech?.context.close();
+    await browser?.close();
+  });
 
   test('aluminium climbing on the 450 single', async () => {
     const href = await machineHref(mech.page, 'Marten');
@@ -165,14 +196,18 @@ describe('the demo tells its stories', () => {
   test('coolant markers on the liquid-cooled twin', async () => {
     const href = await machineHref(mech.page, 'Old Bruin');
     await mech.page.goto(`${href}/history`);
-    await expect(mech.page.locator('[data-testid="history-findings"] [data-rule="coolant-markers"]').count()).resolves.toBeGreaterThan(0);
+    await expect(
+      mech.page.locator('[data-testid="history-findings"] [data-rule="coolant-markers"]').count(),
+    ).resolves.toBeGreaterThan(0);
     await screenshot(mech.page, 'decisions-story-coolant-history');
   });
 
   test('fuel dilution on the air-cooled 650', async () => {
     const href = await machineHref(mech.page, 'Sorrel');
     await mech.page.goto(`${href}/history`);
-    await expect(mech.page.locator('[data-testid="history-findings"] [data-rule="fuel-dilution"]').count()).resolves.toBeGreaterThan(0);
+    await expect(
+      mech.page.locator('[data-testid="history-findings"] [data-rule="fuel-dilution"]').count(),
+    ).resolves.toBeGreaterThan(0);
     const levels = await chartLevels(mech.page, href, 'FUEL');
     expect(levels.some((l) => l !== 'steady')).toBe(true);
   });

@@ -44,22 +44,61 @@ async function callOn(page: Page, sampleHref: string): Promise<string | null> {
 async function addMachineWithOutlier(name: string): Promise<void> {
   const db = createDb(inject('databaseUrl'), { max: 1 });
   try {
-    const crew = await db.selectFrom('crew_members').innerJoin('users', 'users.id', 'crew_members.user_id')
-      .select(['crew_members.crew_id', 'users.id']).where('users.email', '=', mechanic.email).executeTakeFirstOrThrow();
-    const machine = await db.insertInto('machines').values({
-      crew_id: crew.crew_id, owner_user_id: crew.id, name, engine_layout: 'single', displacement_cc: 500, cooling: 'air',
-      meter: 'km', recommended_grades: JSON.stringify([]), max_interval_distance: 6000,
-    } as never).returning('id').executeTakeFirstOrThrow();
+    const crew = await db
+      .selectFrom('crew_members')
+      .innerJoin('users', 'users.id', 'crew_members.user_id')
+      .select(['crew_members.crew_id', 'users.id'])
+      .where('users.email', '=', mechanic.email)
+      .executeTakeFirstOrThrow();
+    const machine = await db
+      .insertInto('machines')
+      .values({
+        crew_id: crew.crew_id,
+        owner_user_id: crew.id,
+        name,
+        engine_layout: 'single',
+        displacement_cc: 500,
+        cooling: 'air',
+        meter: 'km',
+        recommended_grades: JSON.stringify([]),
+        max_interval_distance: 6000,
+      } as never)
+      .returning('id')
+      .executeTakeFirstOrThrow();
     const fe = [20, 45, 20, 21, 19, 20, 50];
     for (const [i, v] of fe.entries()) {
       const code = `${name.split(' ')[1]!.toUpperCase()}-${i + 1}`;
-      const sample = await db.insertInto('samples').values({
-        crew_id: crew.crew_id, machine_id: machine.id, bottle_code: code, bottle_code_norm: normaliseBottleCode(code),
-        drawn_on: `2025-0${i + 1}-10`, odometer: (i + 1) * 3000, distance_on_oil: 3000, sae_grade: '10W-40', oil_product: 'Test Oil 10W-40',
-        client_key: null, created_by: crew.id, state: 'results_in',
-      } as never).returning('id').executeTakeFirstOrThrow();
+      const sample = await db
+        .insertInto('samples')
+        .values({
+          crew_id: crew.crew_id,
+          machine_id: machine.id,
+          bottle_code: code,
+          bottle_code_norm: normaliseBottleCode(code),
+          drawn_on: `2025-0${i + 1}-10`,
+          odometer: (i + 1) * 3000,
+          distance_on_oil: 3000,
+          sae_grade: '10W-40',
+          oil_product: 'Test Oil 10W-40',
+          client_key: null,
+          created_by: crew.id,
+          state: 'results_in',
+        } as never)
+        .returning('id')
+        .executeTakeFirstOrThrow();
       const readings = { Fe: v, Al: 4, Cu: 3, Si: 7, KV100: 13.8, FUEL: 0.5, WATER: 0.02 };
-      await db.insertInto('readings').values(Object.entries(readings).map(([measurand, value]) => ({ sample_id: sample.id, measurand, value, qualifier: null, lab_import_id: null }))).execute();
+      await db
+        .insertInto('readings')
+        .values(
+          Object.entries(readings).map(([measurand, value]) => ({
+            sample_id: sample.id,
+            measurand,
+            value,
+            qualifier: null,
+            lab_import_id: null,
+          })),
+        )
+        .execute();
     }
     await db.transaction().execute((trx) => recomputeMachineFindings(trx, machine.id, new Set()));
   } finally {
@@ -82,7 +121,9 @@ describe.each([
     page.on('pageerror', (e) => errors.push(e.message));
     await signInAs(page, mechanic.email, mechanic.password);
   });
-  afterAll(async () => { await browser?.close(); });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   test('the demo stories show the recomputed calls on machine and sample pages', async () => {
     // The dusty week on the 690: dirt, so fix the cause first.
@@ -125,7 +166,10 @@ describe.each([
     await page.locator('[data-testid="baseline-details"] summary').click();
     const form = page.getByTestId('baseline-form');
     await form.locator('textarea[name="reason"]').fill('Drawn from the drain plug after a top-up, not mid-stream');
-    await Promise.all([page.waitForURL(/review_saved=baseline-out/), form.getByRole('button', { name: 'Take out of baseline' }).click()]);
+    await Promise.all([
+      page.waitForURL(/review_saved=baseline-out/),
+      form.getByRole('button', { name: 'Take out of baseline' }).click(),
+    ]);
     await expect(page.getByTestId('baseline-status').getAttribute('data-in-baseline')).resolves.toBe('false');
     await expect(page.getByTestId('baseline-status').textContent()).resolves.toContain('Drawn from the drain plug');
     await screenshot(page, `engine-${label}-sample-out-of-baseline`);
@@ -137,7 +181,9 @@ describe.each([
     await screenshot(page, `engine-${label}-chart-after-exclusion`);
     expect(await callOn(page, latest)).toBe('shorten');
     // The sample page shows the band the rule used: four in-control samples of 20 ppm, act from about 43 ppm.
-    const feBand = await page.locator('[data-testid="readings-table"] tr[data-measurand="Fe"] [data-testid="reading-band"]').textContent();
+    const feBand = await page
+      .locator('[data-testid="readings-table"] tr[data-measurand="Fe"] [data-testid="reading-band"]')
+      .textContent();
     expect(feBand).toMatch(/act from 4\d(\.\d+)?/);
     expect(feBand).toMatch(/usual 20\b/);
     expect(feBand).toContain('judged per distance');

@@ -47,7 +47,11 @@ function noisyPng(side: number): Uint8Array {
 async function postPhoto(bytes: Uint8Array, name: string, type = 'image/png'): Promise<Response> {
   const form = new FormData();
   form.append('file', new Blob([Buffer.from(bytes)], { type }), name);
-  return fetch(`${app.baseUrl}/api/photos`, { method: 'POST', headers: { cookie, origin: app.baseUrl, accept: 'application/json' }, body: form });
+  return fetch(`${app.baseUrl}/api/photos`, {
+    method: 'POST',
+    headers: { cookie, origin: app.baseUrl, accept: 'application/json' },
+    body: form,
+  });
 }
 
 async function photoRows(): Promise<number> {
@@ -69,44 +73,86 @@ describe('faults around writes', () => {
 
   test('the server killed mid-confirm leaves the whole import or nothing; confirming again after the restart writes it once', async () => {
     // Invented machines in the demo school with shipped samples waiting for results, one lab row for each.
-    const crew = await db.selectFrom('crews').select('id').where('name', '=', DEMO_SCHOOL_NAME).executeTakeFirstOrThrow();
+    const crew = await db
+      .selectFrom('crews')
+      .select('id')
+      .where('name', '=', DEMO_SCHOOL_NAME)
+      .executeTakeFirstOrThrow();
     const owner = await db.selectFrom('users').select('id').where('email', '=', lead.email).executeTakeFirstOrThrow();
     await sql`
       insert into machines (crew_id, owner_user_id, name, engine_layout, cooling, meter, recommended_grades, max_interval_distance)
-      select ${crew.id}, ${owner.id}, 'Fault bike ' || n, 'single', 'liquid', 'km', '[]'::jsonb, 3000 from generate_series(1, ${MACHINES}) n`.execute(db);
+      select ${crew.id}, ${owner.id}, 'Fault bike ' || n, 'single', 'liquid', 'km', '[]'::jsonb, 3000 from generate_series(1, ${MACHINES}) n`.execute(
+      db,
+    );
     await sql`
       insert into samples (crew_id, machine_id, bottle_code, bottle_code_norm, drawn_on, odometer, distance_on_oil, sae_grade, state, created_by)
       select m.crew_id, m.id, c, c, date '2024-01-01' + i * 3, 1500 * (i + 1), 1400, '10W-40', 'shipped', ${owner.id}
       from machines m, generate_series(0, ${SAMPLES_PER_MACHINE - 1}) i,
         lateral (select 'KILL' || substring(m.name from 12) || 'N' || lpad(i::text, 4, '0') as c) code
       where m.name like 'Fault bike %'`.execute(db);
-    const codes = (await sql<{ c: string; d: string }>`select bottle_code as c, drawn_on::text as d from samples where bottle_code like 'KILL%' order by bottle_code`.execute(db)).rows;
+    const codes = (
+      await sql<{
+        c: string;
+        d: string;
+      }>`select bottle_code as c, drawn_on::text as d from samples where bottle_code like 'KILL%' order by bottle_code`.execute(
+        db,
+      )
+    ).rows;
     expect(codes).toHaveLength(ROWS);
-    const csv = [`Bottle,Sampled,${MEASURANDS.join(',')}`, ...codes.map((r, i) => `${r.c},${r.d},${20 + (i % 9)},${4 + (i % 3)},5,${7 + (i % 5)},3,1100,14.1`)].join('\n');
+    const csv = [
+      `Bottle,Sampled,${MEASURANDS.join(',')}`,
+      ...codes.map((r, i) => `${r.c},${r.d},${20 + (i % 9)},${4 + (i % 3)},5,${7 + (i % 5)},3,1100,14.1`),
+    ].join('\n');
 
     const form = new FormData();
     form.append('file', new Blob([csv], { type: 'text/csv' }), 'kill-halfway.csv');
-    const uploaded = await fetch(`${app.baseUrl}/api/imports`, { method: 'POST', headers: { cookie, origin: app.baseUrl, accept: 'application/json' }, body: form });
+    const uploaded = await fetch(`${app.baseUrl}/api/imports`, {
+      method: 'POST',
+      headers: { cookie, origin: app.baseUrl, accept: 'application/json' },
+      body: form,
+    });
     expect(uploaded.status).toBe(201);
     const { labFileId } = (await uploaded.json()) as { labFileId: string };
 
-    const confirm = () => fetch(`${app.baseUrl}/api/imports/${labFileId}/confirm`, {
-      method: 'POST', headers: { cookie, origin: app.baseUrl, 'content-type': 'application/json' }, body: '{"decisions":{}}',
-    });
+    const confirm = () =>
+      fetch(`${app.baseUrl}/api/imports/${labFileId}/confirm`, {
+        method: 'POST',
+        headers: { cookie, origin: app.baseUrl, 'content-type': 'application/json' },
+        body: '{"decisions":{}}',
+      });
     // Start the confirm and wait until its transaction has written readings (a row lock on the readings table held
     // by the app's connection), then kill the server while the findings are still being computed.
     let settled = false;
-    const inFlight = confirm().then((r) => { settled = true; return r.status; }, () => { settled = true; return 0; });
-    const writingReadings = async () => Number((await sql<{ n: string }>`
+    const inFlight = confirm().then(
+      (r) => {
+        settled = true;
+        return r.status;
+      },
+      () => {
+        settled = true;
+        return 0;
+      },
+    );
+    const writingReadings = async () =>
+      Number(
+        (
+          await sql<{ n: string }>`
       select count(*)::text as n from pg_locks l join pg_class c on c.oid = l.relation
-      where c.relname = 'readings' and l.mode = 'RowExclusiveLock' and l.pid <> pg_backend_pid()`.execute(db)).rows[0]!.n) > 0;
+      where c.relname = 'readings' and l.mode = 'RowExclusiveLock' and l.pid <> pg_backend_pid()`.execute(db)
+        ).rows[0]!.n,
+      ) > 0;
     const deadline = Date.now() + 30_000;
     let caught = false;
     while (!settled && Date.now() < deadline) {
-      if (await writingReadings()) { caught = true; break; }
+      if (await writingReadings()) {
+        caught = true;
+        break;
+      }
       await new Promise((r) => setTimeout(r, 5));
     }
-    expect(caught, 'the confirm finished (or never wrote) before it could be interrupted: make the import larger').toBe(true);
+    expect(caught, 'the confirm finished (or never wrote) before it could be interrupted: make the import larger').toBe(
+      true,
+    );
     await app.restartServer();
     expect(await inFlight).toBe(0); // the client saw the connection drop, not an answer
 
@@ -116,7 +162,16 @@ describe('faults around writes', () => {
       if (Date.now() > gone) throw new Error('the killed import still holds its locks after 15 s');
       await new Promise((r) => setTimeout(r, 50));
     }
-    const state = async () => (await sql<{ readings: string; imports: string; results: string; events: string; findings: string; calls: string }>`
+    const state = async () =>
+      (
+        await sql<{
+          readings: string;
+          imports: string;
+          results: string;
+          events: string;
+          findings: string;
+          calls: string;
+        }>`
       select
         (select count(*) from readings r join samples s on s.id = r.sample_id where s.bottle_code like 'KILL%')::text as readings,
         (select count(*) from lab_imports where lab_file_id = ${labFileId})::text as imports,
@@ -124,13 +179,24 @@ describe('faults around writes', () => {
         (select count(*) from sample_events e join samples s on s.id = e.sample_id where s.bottle_code like 'KILL%')::text as events,
         (select count(*) from findings f join samples s on s.id = f.sample_id where s.bottle_code like 'KILL%')::text as findings,
         (select count(*) from interval_calls ic join samples s on s.id = ic.sample_id where s.bottle_code like 'KILL%')::text as calls
-    `.execute(db)).rows[0]!;
-    expect(await state()).toEqual({ readings: '0', imports: '0', results: '0', events: '0', findings: '0', calls: '0' });
+    `.execute(db)
+      ).rows[0]!;
+    expect(await state()).toEqual({
+      readings: '0',
+      imports: '0',
+      results: '0',
+      events: '0',
+      findings: '0',
+      calls: '0',
+    });
 
     // The kept file is still there and confirms once after the restart; a second confirm writes nothing.
     const again = await confirm();
     expect(again.status).toBe(201);
-    expect((await again.json()) as { samplesWritten: number; readingsWritten: number }).toMatchObject({ samplesWritten: ROWS, readingsWritten: ROWS * MEASURANDS.length });
+    expect((await again.json()) as { samplesWritten: number; readingsWritten: number }).toMatchObject({
+      samplesWritten: ROWS,
+      readingsWritten: ROWS * MEASURANDS.length,
+    });
     const after = await state();
     expect(after).toMatchObject({ readings: String(ROWS * MEASURANDS.length), imports: '1', results: String(ROWS) });
     expect(Number(after.calls)).toBeGreaterThan(0);
@@ -146,7 +212,9 @@ describe('faults around writes', () => {
       execFileSync('mount', ['-t', 'tmpfs', '-o', 'size=64k', 'tmpfs', uploadDir], { stdio: 'pipe' });
       tmpfsMounted = true;
     } catch (e) {
-      console.warn(`[faults-import] tmpfs mount refused (${(e as Error).message.split('\n')[0]}): the full-disk case is skipped; the unusable-folder case below still runs`);
+      console.warn(
+        `[faults-import] tmpfs mount refused (${(e as Error).message.split('\n')[0]}): the full-disk case is skipped; the unusable-folder case below still runs`,
+      );
       return;
     }
     try {

@@ -47,12 +47,24 @@ describe('faults', () => {
     const seen: number[] = [];
     let running = true;
     const traffic = (async () => {
-      while (running) { seen.push(await healthStatus(app.baseUrl)); await new Promise((r) => setTimeout(r, 50)); }
+      while (running) {
+        seen.push(await healthStatus(app.baseUrl));
+        await new Promise((r) => setTimeout(r, 50));
+      }
     })();
 
     // An account, so a page behind a session (which reads the database on every request) can be asked for.
     const db = createDb(app.databaseUrl, { max: 1 });
-    await db.insertInto('users').values({ id: 'faults-rider', email: 'faults@example.test', display_name: 'Faults', password_hash: await hashPassword('faults test password'), email_verified_at: new Date() }).execute();
+    await db
+      .insertInto('users')
+      .values({
+        id: 'faults-rider',
+        email: 'faults@example.test',
+        display_name: 'Faults',
+        password_hash: await hashPassword('faults test password'),
+        email_verified_at: new Date(),
+      })
+      .execute();
     await db.destroy();
     const signedIn = await sessionCookieFor(app.baseUrl, 'faults@example.test', 'faults test password');
     // Asynchronously, so the traffic loop keeps running while the server goes down.
@@ -60,7 +72,10 @@ describe('faults', () => {
     await new Promise((r) => setTimeout(r, 1_000));
     const downStatus = await healthStatus(app.baseUrl);
     expect(downStatus).toBe(503);
-    const body = await (await fetch(`${app.baseUrl}/api/health`)).json() as { status: string; database: { reachable: boolean; reason?: string } };
+    const body = (await (await fetch(`${app.baseUrl}/api/health`)).json()) as {
+      status: string;
+      database: { reachable: boolean; reason?: string };
+    };
     expect(body.status).toBe('unavailable');
     expect(body.database.reachable).toBe(false);
     // The raw error (host, port, errno) stays in the server log.
@@ -76,7 +91,10 @@ describe('faults', () => {
     const back = Date.now();
     let recovered = false;
     while (Date.now() - back < 10_000) {
-      if ((await healthStatus(app.baseUrl)) === 200) { recovered = true; break; }
+      if ((await healthStatus(app.baseUrl)) === 200) {
+        recovered = true;
+        break;
+      }
       await new Promise((r) => setTimeout(r, 100));
     }
     running = false;

@@ -24,9 +24,13 @@ async function overflowing(page: Page): Promise<string[]> {
       let clipped = false;
       for (let p = el.parentElement; p && p !== document.body; p = p.parentElement) {
         const o = getComputedStyle(p).overflowX;
-        if (o === 'auto' || o === 'hidden' || o === 'scroll' || o === 'clip') { clipped = true; break; }
+        if (o === 'auto' || o === 'hidden' || o === 'scroll' || o === 'clip') {
+          clipped = true;
+          break;
+        }
       }
-      if (!clipped && !el.closest('.sr-only')) out.push(`${el.tagName.toLowerCase()}.${el.className} right ${Math.round(r.right)}`);
+      if (!clipped && !el.closest('.sr-only'))
+        out.push(`${el.tagName.toLowerCase()}.${el.className} right ${Math.round(r.right)}`);
     }
     return out.slice(0, 10);
   });
@@ -42,25 +46,45 @@ describe('screens at a glance: machine page and sample page', () => {
     browser = await launchBrowser();
     const db = createDb(inject('databaseUrl'), { max: 1 });
     try {
-      const machine = await db.selectFrom('machines').select('id').where('name', '=', 'Old Bruin').executeTakeFirstOrThrow();
+      const machine = await db
+        .selectFrom('machines')
+        .select('id')
+        .where('name', '=', 'Old Bruin')
+        .executeTakeFirstOrThrow();
       bruinId = machine.id;
-      const latest = await db.selectFrom('samples').select('id').where('machine_id', '=', bruinId)
-        .where('state', 'in', ['results_in', 'reviewed']).orderBy('drawn_on', 'desc').orderBy('odometer', 'desc').limit(1).executeTakeFirstOrThrow();
+      const latest = await db
+        .selectFrom('samples')
+        .select('id')
+        .where('machine_id', '=', bruinId)
+        .where('state', 'in', ['results_in', 'reviewed'])
+        .orderBy('drawn_on', 'desc')
+        .orderBy('odometer', 'desc')
+        .limit(1)
+        .executeTakeFirstOrThrow();
       flaggedSampleId = latest.id;
-      const findings = await db.selectFrom('findings').select(['measurand']).where('sample_id', '=', latest.id).execute();
+      const findings = await db
+        .selectFrom('findings')
+        .select(['measurand'])
+        .where('sample_id', '=', latest.id)
+        .execute();
       flaggedCodes = [...new Set(findings.map((f) => f.measurand).filter((m): m is string => m !== null))];
     } finally {
       await db.destroy();
     }
   });
-  afterAll(async () => { await browser?.close(); });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
-  test('the demo story: Old Bruin\'s latest results flag the coolant markers', () => {
+  test("the demo story: Old Bruin's latest results flag the coolant markers", () => {
     // The demo seeds a coolant leak on the liquid-cooled twin (sample-data/seed-machines.ts).
     expect(flaggedCodes.some((c) => ['Na', 'K', 'B'].includes(c))).toBe(true);
   });
 
-  test.each([['phone', PHONE], ['desktop', DESKTOP]] as const)('machine page, %s: chart first on the flagged elements, links visible', async (label, size) => {
+  test.each([
+    ['phone', PHONE],
+    ['desktop', DESKTOP],
+  ] as const)('machine page, %s: chart first on the flagged elements, links visible', async (label, size) => {
     const context = await newContext(browser, size);
     const page = await context.newPage();
     const errors: string[] = [];
@@ -69,15 +93,23 @@ describe('screens at a glance: machine page and sample page', () => {
     await page.goto(`/machines/${bruinId}`);
     await page.locator('#wear-chart').scrollIntoViewIfNeeded();
     await page.locator('[data-testid="wear-chart"] canvas').waitFor({ state: 'visible', timeout: 15_000 });
-    const drawn = await page.locator('[data-testid="wear-chart-settings"] button[data-code]').evaluateAll((bs) => bs.map((b) => b.getAttribute('data-code')));
+    const drawn = await page
+      .locator('[data-testid="wear-chart-settings"] button[data-code]')
+      .evaluateAll((bs) => bs.map((b) => b.getAttribute('data-code')));
     expect(drawn.slice(0, 3).sort()).toEqual(['B', 'K', 'Na']);
     expect(drawn).not.toContain('Fe');
-    const tables = await page.locator('[data-testid="wear-chart-table"] table[data-measurand]').evaluateAll((ts) => ts.map((t) => t.getAttribute('data-measurand')));
+    const tables = await page
+      .locator('[data-testid="wear-chart-table"] table[data-measurand]')
+      .evaluateAll((ts) => ts.map((t) => t.getAttribute('data-measurand')));
     expect(tables.slice(0, 3).sort()).toEqual(['B', 'K', 'Na']);
 
     // The chart comes before the element picker, and the picker is folded.
-    const chartTop = await page.locator('[data-testid="wear-chart"] canvas').evaluate((c) => c.getBoundingClientRect().top + window.scrollY);
-    const pickerTop = await page.getByTestId('element-picker').evaluate((c) => c.getBoundingClientRect().top + window.scrollY);
+    const chartTop = await page
+      .locator('[data-testid="wear-chart"] canvas')
+      .evaluate((c) => c.getBoundingClientRect().top + window.scrollY);
+    const pickerTop = await page
+      .getByTestId('element-picker')
+      .evaluate((c) => c.getBoundingClientRect().top + window.scrollY);
     expect(chartTop).toBeLessThan(pickerTop);
     await expect(page.getByTestId('element-picker').getAttribute('open')).resolves.toBeNull();
     // The picker opens from the keyboard and its checkboxes draw another element.
@@ -102,37 +134,46 @@ describe('screens at a glance: machine page and sample page', () => {
 
   // The mechanic's page also carries the review forms (folded); a rider's is the shorter one.
   test.each([
-    ['phone', PHONE, mechanic], ['desktop', DESKTOP, mechanic], ['phone-rider', PHONE, rider],
-  ] as const)('sample page, %s: grouped readings, flagged ones in view, numbers in words', async (label, size, account) => {
-    const context = await newContext(browser, size);
-    const page = await context.newPage();
-    await signInAs(page, account.email, account.password);
-    await page.goto(`/samples/${flaggedSampleId}`);
-    const flagged = page.locator('[data-testid="readings-table"] tr[data-flagged="yes"]');
-    expect(await flagged.count()).toBeGreaterThan(0);
-    for (const row of await flagged.all()) await expect(row.isVisible()).resolves.toBe(true);
-    // Groups with nothing flagged are folded.
-    const groups = await page.locator('[data-testid="readings-table"] details').evaluateAll((ds) =>
-      ds.map((d) => ({ open: (d as HTMLDetailsElement).open, flagged: Number(d.getAttribute('data-flagged')) })));
-    expect(groups.length).toBeGreaterThan(1);
-    for (const g of groups) expect(g.open).toBe(g.flagged > 0);
-    // The numbers behind each finding are sentences: no parameter name, no raw float.
-    const numbers = await page.getByTestId('finding-numbers').allInnerTexts();
-    expect(numbers.length).toBeGreaterThan(0);
-    // Each text node on its own (adjacent cells would run together in innerText).
-    const texts = await page.locator('main').evaluate((main) => {
-      const walker = document.createTreeWalker(main, NodeFilter.SHOW_TEXT);
-      const out: string[] = [];
-      for (let n = walker.nextNode(); n; n = walker.nextNode()) if (n.textContent?.trim()) out.push(n.textContent.trim());
-      return out;
-    });
-    expect(texts.filter((t) => /\b[a-z]+[A-Z][a-zA-Z]*\b/.test(t))).toEqual([]);
-    expect(texts.filter((t) => /\b\d+\.\d{3,}\b/.test(t))).toEqual([]);
-    expect(await overflowing(page)).toEqual([]);
-    const height = await page.evaluate(() => document.documentElement.scrollHeight);
-    await screenshot(page, `glance-sample-${label}`);
-    console.info(`sample page ${label}: ${height} px tall`);
-    if (size === PHONE) expect(height).toBeLessThan(4000);
-    await context.close();
-  });
+    ['phone', PHONE, mechanic],
+    ['desktop', DESKTOP, mechanic],
+    ['phone-rider', PHONE, rider],
+  ] as const)(
+    'sample page, %s: grouped readings, flagged ones in view, numbers in words',
+    async (label, size, account) => {
+      const context = await newContext(browser, size);
+      const page = await context.newPage();
+      await signInAs(page, account.email, account.password);
+      await page.goto(`/samples/${flaggedSampleId}`);
+      const flagged = page.locator('[data-testid="readings-table"] tr[data-flagged="yes"]');
+      expect(await flagged.count()).toBeGreaterThan(0);
+      for (const row of await flagged.all()) await expect(row.isVisible()).resolves.toBe(true);
+      // Groups with nothing flagged are folded.
+      const groups = await page
+        .locator('[data-testid="readings-table"] details')
+        .evaluateAll((ds) =>
+          ds.map((d) => ({ open: (d as HTMLDetailsElement).open, flagged: Number(d.getAttribute('data-flagged')) })),
+        );
+      expect(groups.length).toBeGreaterThan(1);
+      for (const g of groups) expect(g.open).toBe(g.flagged > 0);
+      // The numbers behind each finding are sentences: no parameter name, no raw float.
+      const numbers = await page.getByTestId('finding-numbers').allInnerTexts();
+      expect(numbers.length).toBeGreaterThan(0);
+      // Each text node on its own (adjacent cells would run together in innerText).
+      const texts = await page.locator('main').evaluate((main) => {
+        const walker = document.createTreeWalker(main, NodeFilter.SHOW_TEXT);
+        const out: string[] = [];
+        for (let n = walker.nextNode(); n; n = walker.nextNode())
+          if (n.textContent?.trim()) out.push(n.textContent.trim());
+        return out;
+      });
+      expect(texts.filter((t) => /\b[a-z]+[A-Z][a-zA-Z]*\b/.test(t))).toEqual([]);
+      expect(texts.filter((t) => /\b\d+\.\d{3,}\b/.test(t))).toEqual([]);
+      expect(await overflowing(page)).toEqual([]);
+      const height = await page.evaluate(() => document.documentElement.scrollHeight);
+      await screenshot(page, `glance-sample-${label}`);
+      console.info(`sample page ${label}: ${height} px tall`);
+      if (size === PHONE) expect(height).toBeLessThan(4000);
+      await context.close();
+    },
+  );
 });

@@ -16,7 +16,10 @@ beforeAll(async () => {
   browser = await launchBrowser();
   db = createDb(inject('databaseUrl'), { max: 2 });
 });
-afterAll(async () => { await browser?.close(); await db?.destroy(); });
+afterAll(async () => {
+  await browser?.close();
+  await db?.destroy();
+});
 
 /** Elements reaching past the viewport's edges, outside any scrolling box (a wide table scrolls inside its own box). */
 async function tooWide(page: Page): Promise<string[]> {
@@ -30,13 +33,19 @@ async function tooWide(page: Page): Promise<string[]> {
       return false;
     };
     return [...document.querySelectorAll('body *')]
-      .filter((el) => { const r = el.getBoundingClientRect(); return r.width > 0 && (r.right > width + 1 || r.left < -1) && !scrolls(el); })
+      .filter((el) => {
+        const r = el.getBoundingClientRect();
+        return r.width > 0 && (r.right > width + 1 || r.left < -1) && !scrolls(el);
+      })
       .map((el) => `${el.tagName.toLowerCase()}.${String(el.getAttribute('class') ?? '').slice(0, 40)}`)
       .slice(0, 5);
   });
 }
 
-const SIZES = [['phone', PHONE], ['desktop', DESKTOP]] as const;
+const SIZES = [
+  ['phone', PHONE],
+  ['desktop', DESKTOP],
+] as const;
 
 describe.each(SIZES)('the demo crew at %s size', (name, viewport) => {
   test('home shows one card per machine with findings; the overview names reasons in words; pages fit the screen', async () => {
@@ -56,9 +65,13 @@ describe.each(SIZES)('the demo crew at %s size', (name, viewport) => {
       expect(await card.locator('a[href^="/machines/"]').count()).toBeGreaterThan(0);
     }
     // Overdue samples say how late and come first.
-    const due = await page.getByTestId('home-due').locator('li').evaluateAll((els) => els.map((e) => Boolean(e.querySelector('[data-testid=overdue-tag]'))));
+    const due = await page
+      .getByTestId('home-due')
+      .locator('li')
+      .evaluateAll((els) => els.map((e) => Boolean(e.querySelector('[data-testid=overdue-tag]'))));
     expect(due.indexOf(false) === -1 || due.slice(due.indexOf(false)).every((x) => !x)).toBe(true);
-    for (const tag of await page.getByTestId('overdue-tag').allTextContents()) expect(tag).toMatch(/Overdue\s*· due (today|\d+ (day|days|week|weeks|month|months) ago)/);
+    for (const tag of await page.getByTestId('overdue-tag').allTextContents())
+      expect(tag).toMatch(/Overdue\s*· due (today|\d+ (day|days|week|weeks|month|months) ago)/);
     expect(await tooWide(page)).toEqual([]);
     await screenshot(page, `glance-home-${name}`);
 
@@ -84,9 +97,13 @@ describe.each(SIZES)('the demo crew at %s size', (name, viewport) => {
     await expect(page.locator('h1').textContent()).resolves.toBe('Alert limits');
     const iron = page.locator('[data-limit=Fe]');
     await expect(iron.textContent()).resolves.toContain('Default 100 ppm');
-    await expect(page.getByTestId('limit-group').filter({ has: iron }).getByTestId('limit-source').textContent()).resolves.toContain('Petro-Canada Lubricants Handbook (2004)');
+    await expect(
+      page.getByTestId('limit-group').filter({ has: iron }).getByTestId('limit-source').textContent(),
+    ).resolves.toContain('Petro-Canada Lubricants Handbook (2004)');
     // Every field has a default beside it, and every card a source.
-    expect(await page.locator('[data-limit]').count()).toBe(await page.locator('[data-limit] >> text=/Default [0-9.]+ (ppm|%)/').count());
+    expect(await page.locator('[data-limit]').count()).toBe(
+      await page.locator('[data-limit] >> text=/Default [0-9.]+ (ppm|%)/').count(),
+    );
     expect(await page.getByTestId('limit-source').count()).toBe(await page.getByTestId('limit-group').count());
     expect(await page.locator('[data-limit=B]').count()).toBe(0);
     expect(await tooWide(page)).toEqual([]);
@@ -100,12 +117,20 @@ describe.each(SIZES)('the demo crew at %s size', (name, viewport) => {
     await screenshot(page, `glance-limits-refused-${name}`);
 
     await page.getByLabel('Iron (ppm)').fill('90');
-    await Promise.all([page.waitForURL(/changed=1/), page.getByRole('button', { name: 'Save the alert limits' }).click()]);
-    await expect(page.getByTestId('form-info').textContent()).resolves.toMatch(/Saved: 1 limit changed, \d+ machines? judged again\./);
+    await Promise.all([
+      page.waitForURL(/changed=1/),
+      page.getByRole('button', { name: 'Save the alert limits' }).click(),
+    ]);
+    await expect(page.getByTestId('form-info').textContent()).resolves.toMatch(
+      /Saved: 1 limit changed, \d+ machines? judged again\./,
+    );
     await expect(page.getByLabel('Iron (ppm)').inputValue()).resolves.toBe('90');
     // Back to the default, so the demo's findings are as seeded for the other tests.
     await page.getByLabel('Iron (ppm)').fill('');
-    await Promise.all([page.waitForURL(/changed=1/), page.getByRole('button', { name: 'Save the alert limits' }).click()]);
+    await Promise.all([
+      page.waitForURL(/changed=1/),
+      page.getByRole('button', { name: 'Save the alert limits' }).click(),
+    ]);
     await expect(page.getByLabel('Iron (ppm)').inputValue()).resolves.toBe('');
     await context.close();
   });
@@ -120,13 +145,21 @@ describe.each(SIZES)('a new crew at %s size', (name, viewport) => {
     await page.getByLabel('E-mail address').fill(email);
     await page.getByLabel('Your name').fill('Noa First');
     await page.getByLabel('Password').fill('first minutes gearbox');
-    await Promise.all([page.waitForURL(/\/account\?welcome=1$/), page.getByRole('button', { name: 'Create account' }).click()]);
+    await Promise.all([
+      page.waitForURL(/\/account\?welcome=1$/),
+      page.getByRole('button', { name: 'Create account' }).click(),
+    ]);
 
     await page.goto('/');
     await expect(page.getByTestId('home-clear').textContent()).resolves.toBe('Nothing waiting.');
     const steps = page.getByTestId('first-steps').locator('li');
-    expect(await steps.evaluateAll((els) => els.map((e) => [e.getAttribute('data-step'), e.getAttribute('data-done')]))).toEqual([
-      ['machine', 'no'], ['oil-change', 'no'], ['drain-card', 'no'], ['invite', 'no'],
+    expect(
+      await steps.evaluateAll((els) => els.map((e) => [e.getAttribute('data-step'), e.getAttribute('data-done')])),
+    ).toEqual([
+      ['machine', 'no'],
+      ['oil-change', 'no'],
+      ['drain-card', 'no'],
+      ['invite', 'no'],
     ]);
     expect(await page.getByTestId('home-findings').count()).toBe(0);
     expect(await tooWide(page)).toEqual([]);
@@ -138,10 +171,15 @@ describe.each(SIZES)('a new crew at %s size', (name, viewport) => {
     await page.getByLabel('Oil capacity (L)').fill('1.2');
     await page.getByLabel('Grade 1').fill('10W-40');
     await page.getByLabel('Longest change interval (meter unit)').fill('3000');
-    await Promise.all([page.waitForURL(/\/machines\/[0-9a-f-]{36}\?added=1$/), page.getByRole('button', { name: 'Add machine' }).click()]);
+    await Promise.all([
+      page.waitForURL(/\/machines\/[0-9a-f-]{36}\?added=1$/),
+      page.getByRole('button', { name: 'Add machine' }).click(),
+    ]);
     await page.goto('/');
     await expect(page.locator('[data-step=machine]').getAttribute('data-done')).resolves.toBe('yes');
-    await expect(page.locator('[data-step=oil-change] a').getAttribute('href')).resolves.toMatch(/^\/machines\/[0-9a-f-]{36}\/oil-change$/);
+    await expect(page.locator('[data-step=oil-change] a').getAttribute('href')).resolves.toMatch(
+      /^\/machines\/[0-9a-f-]{36}\/oil-change$/,
+    );
     await screenshot(page, `glance-first-steps-ticked-${name}`);
 
     // Confirming the address: the page says so and offers no new link.

@@ -4,8 +4,12 @@ import { DESKTOP, PHONE, baseUrl, launchBrowser, newContext, screenshot } from '
 
 describe('home page and health', () => {
   let browser: Browser;
-  beforeAll(async () => { browser = await launchBrowser(); });
-  afterAll(async () => { await browser?.close(); });
+  beforeAll(async () => {
+    browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   test.each([
     ['phone', PHONE],
@@ -15,14 +19,19 @@ describe('home page and health', () => {
     const page = await context.newPage();
     const errors: string[] = [];
     page.on('pageerror', (e) => errors.push(e.message));
-    page.on('console', (m) => { if (m.type() === 'error') errors.push(m.text()); });
+    page.on('console', (m) => {
+      if (m.type() === 'error') errors.push(m.text());
+    });
     const response = await page.goto('/');
     expect(response?.status()).toBe(200);
     await expect(page.title()).resolves.toContain('Sumpwise');
     expect(await page.getByRole('heading', { level: 1 }).textContent()).toBeTruthy();
     // Levels are readable without colour: each badge carries its word.
-    for (const word of ['Steady', 'Watch', 'Act']) await expect(page.locator(`[data-level] >> text=${word}`).first().isVisible()).resolves.toBe(true);
-    const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+    for (const word of ['Steady', 'Watch', 'Act'])
+      await expect(page.locator(`[data-level] >> text=${word}`).first().isVisible()).resolves.toBe(true);
+    const overflow = await page.evaluate(
+      () => document.documentElement.scrollWidth - document.documentElement.clientWidth,
+    );
     expect(overflow).toBeLessThanOrEqual(0);
     await screenshot(page, `home-${name}`);
     expect(errors).toEqual([]);
@@ -39,9 +48,10 @@ describe('home page and health', () => {
     expect(res.headers.get('x-content-type-options')).toBe('nosniff');
   });
 
-  test('a cross-site form POST is refused (403); a mail provider\'s one-click unsubscribe POST is not', async () => {
+  test("a cross-site form POST is refused (403); a mail provider's one-click unsubscribe POST is not", async () => {
     const crossSite = await fetch(`${baseUrl()}/sign-in`, {
-      method: 'POST', redirect: 'manual',
+      method: 'POST',
+      redirect: 'manual',
       headers: { origin: 'https://evil.example', 'content-type': 'application/x-www-form-urlencoded' },
       body: 'email=a%40b.example&password=whatever-long',
     });
@@ -49,7 +59,9 @@ describe('home page and health', () => {
     // RFC 8058: the provider's server POSTs "List-Unsubscribe=One-Click" with no Origin and no cookies.
     // A bad token answers 400 from the app itself, proving the request got past the origin check.
     const oneClick = await fetch(`${baseUrl()}/api/unsubscribe?token=not-a-real-token`, {
-      method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'List-Unsubscribe=One-Click',
+      method: 'POST',
+      headers: { 'content-type': 'application/x-www-form-urlencoded' },
+      body: 'List-Unsubscribe=One-Click',
     });
     expect(oneClick.status).toBe(400);
     expect(((await oneClick.json()) as { error: { code: string } }).error.code).toBe('invalid_token');

@@ -12,20 +12,35 @@ import { signInAs } from './helpers/sign-in';
 async function tabTo(page: Page, matches: (el: Element) => boolean, limit = 80): Promise<void> {
   for (let i = 0; i < limit; i++) {
     await page.keyboard.press('Tab');
-    if (await page.evaluate((fn) => { const el = document.activeElement; return el ? new Function('el', `return (${fn})(el)`)(el) as boolean : false; }, matches.toString())) return;
+    if (
+      await page.evaluate((fn) => {
+        const el = document.activeElement;
+        return el ? (new Function('el', `return (${fn})(el)`)(el) as boolean) : false;
+      }, matches.toString())
+    )
+      return;
   }
   throw new Error(`no focusable element matched after ${limit} Tab presses`);
 }
 
 describe('keyboard only', () => {
   let browser: Browser;
-  beforeAll(async () => { browser = await launchBrowser(); });
-  afterAll(async () => { await browser?.close(); });
+  beforeAll(async () => {
+    browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   test('a rider fills and registers the drain card with the keyboard alone', async () => {
     const rider = DEMO_ACCOUNTS.find((a) => a.key === 'riderA')!;
     const db = createDb(inject('databaseUrl'), { max: 1 });
-    const machine = await db.selectFrom('machines').select(['id', 'name']).where('owner_user_id', '=', 'demo-ridera').orderBy('name').executeTakeFirstOrThrow();
+    const machine = await db
+      .selectFrom('machines')
+      .select(['id', 'name'])
+      .where('owner_user_id', '=', 'demo-ridera')
+      .orderBy('name')
+      .executeTakeFirstOrThrow();
     const context = await newContext(browser, PHONE);
     const page = await context.newPage();
     await signInAs(page, rider.email, rider.password);
@@ -47,7 +62,11 @@ describe('keyboard only', () => {
     await Promise.all([page.waitForURL(/\/samples\/[0-9a-f-]{36}\?registered=1$/), page.keyboard.press('Enter')]);
     await expect(page.getByRole('heading', { level: 1 }).textContent()).resolves.toContain(code);
 
-    const stored = await db.selectFrom('samples').select(['bottle_code', 'machine_id']).where('bottle_code', '=', code).execute();
+    const stored = await db
+      .selectFrom('samples')
+      .select(['bottle_code', 'machine_id'])
+      .where('bottle_code', '=', code)
+      .execute();
     expect(stored).toEqual([{ bottle_code: code, machine_id: machine.id }]);
     await db.destroy();
     await context.close();
@@ -62,7 +81,13 @@ describe('keyboard only', () => {
       await page.goto(path);
       // Greyscale rendering: what remains must still say which level each badge is.
       await page.emulateMedia({ colorScheme: 'light', forcedColors: 'active' });
-      const badges = await page.$$eval('[data-level]', (els) => els.map((e) => ({ level: e.getAttribute('data-level'), text: (e.textContent ?? '').trim().toLowerCase(), shape: !!e.querySelector('svg') })));
+      const badges = await page.$$eval('[data-level]', (els) =>
+        els.map((e) => ({
+          level: e.getAttribute('data-level'),
+          text: (e.textContent ?? '').trim().toLowerCase(),
+          shape: !!e.querySelector('svg'),
+        })),
+      );
       expect(badges.length).toBeGreaterThan(0);
       for (const b of badges) {
         expect(['steady', 'watch', 'act']).toContain(b.level);

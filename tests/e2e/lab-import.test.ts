@@ -18,23 +18,51 @@ const email = `lab-lead-${Date.now().toString(36)}@import.example`;
 /** A fresh lead (their own crew of one) with a machine and the three drain-card samples the Hollow Creek report names. */
 async function prepareCrew(): Promise<void> {
   const res = await fetch(`${baseUrl()}/api/auth/sign-up`, {
-    method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: PASSWORD, displayName: 'Wren Importer' }),
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify({ email, password: PASSWORD, displayName: 'Wren Importer' }),
   });
   if (res.status >= 300) throw new Error(`sign-up ${res.status}: ${await res.text()}`);
   const db = createDb(inject('databaseUrl'), { max: 1 });
   try {
-    const member = await db.selectFrom('crew_members').innerJoin('users', 'users.id', 'crew_members.user_id')
-      .select(['crew_members.crew_id', 'users.id']).where('users.email', '=', email).executeTakeFirstOrThrow();
-    const machine = await db.insertInto('machines').values({
-      crew_id: member.crew_id, owner_user_id: member.id, name: 'Wren 450', engine_layout: 'single', displacement_cc: 449, cooling: 'liquid',
-      meter: 'km', recommended_grades: JSON.stringify([{ grade: '10W-40', minC: -10, maxC: 40 }]), max_interval_distance: 3000,
-    } as never).returning('id').executeTakeFirstOrThrow();
+    const member = await db
+      .selectFrom('crew_members')
+      .innerJoin('users', 'users.id', 'crew_members.user_id')
+      .select(['crew_members.crew_id', 'users.id'])
+      .where('users.email', '=', email)
+      .executeTakeFirstOrThrow();
+    const machine = await db
+      .insertInto('machines')
+      .values({
+        crew_id: member.crew_id,
+        owner_user_id: member.id,
+        name: 'Wren 450',
+        engine_layout: 'single',
+        displacement_cc: 449,
+        cooling: 'liquid',
+        meter: 'km',
+        recommended_grades: JSON.stringify([{ grade: '10W-40', minC: -10, maxC: 40 }]),
+        max_interval_distance: 3000,
+      } as never)
+      .returning('id')
+      .executeTakeFirstOrThrow();
     for (const [i, code] of ['SW-1041', 'SW-1042', 'SW-1043'].entries()) {
-      await db.insertInto('samples').values({
-        crew_id: member.crew_id, machine_id: machine.id, bottle_code: code, bottle_code_norm: normaliseBottleCode(code),
-        drawn_on: `2026-03-0${2 + i * 3}`, odometer: 4000 + i * 1500, distance_on_oil: 1500, sae_grade: '10W-40',
-        client_key: null, created_by: member.id, state: 'shipped',
-      }).execute();
+      await db
+        .insertInto('samples')
+        .values({
+          crew_id: member.crew_id,
+          machine_id: machine.id,
+          bottle_code: code,
+          bottle_code_norm: normaliseBottleCode(code),
+          drawn_on: `2026-03-0${2 + i * 3}`,
+          odometer: 4000 + i * 1500,
+          distance_on_oil: 1500,
+          sae_grade: '10W-40',
+          client_key: null,
+          created_by: member.id,
+          state: 'shipped',
+        })
+        .execute();
     }
   } finally {
     await db.destroy();
@@ -56,7 +84,9 @@ describe('lab import in Chromium', () => {
     page.on('pageerror', (e) => errors.push(e.message));
     await signInAs(page, email, PASSWORD);
   });
-  afterAll(async () => { await browser?.close(); });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   test('uploads a lab report through the Uppy dashboard and lands on its preview', async () => {
     await page.goto('/imports');
@@ -69,8 +99,11 @@ describe('lab import in Chromium', () => {
     await page.waitForURL(/\/imports\/[0-9a-f-]{36}$/, { timeout: 20_000 });
     previewUrl = new URL(page.url()).pathname;
     await expect(page.getByRole('heading', { level: 1 }).textContent()).resolves.toContain('hollow-creek-oil-lab.csv');
-    await expect(page.getByTestId('preview-counts').textContent()).resolves.toMatch(/3 ready \(\d+ readings\) · 0 skipped · 0 need attention/);
-    for (const code of ['SW-1041', 'SW-1042', 'SW-1043']) expect(await page.locator('tr', { hasText: code }).first().textContent()).toContain('Wren 450');
+    await expect(page.getByTestId('preview-counts').textContent()).resolves.toMatch(
+      /3 ready \(\d+ readings\) · 0 skipped · 0 need attention/,
+    );
+    for (const code of ['SW-1041', 'SW-1042', 'SW-1043'])
+      expect(await page.locator('tr', { hasText: code }).first().textContent()).toContain('Wren 450');
     await screenshot(page, 'lab-import-02-preview-desktop');
   });
 
@@ -81,7 +114,10 @@ describe('lab import in Chromium', () => {
     await page.locator('summary', { hasText: 'Columns and lab profile' }).click();
     await page.getByLabel('Map column Insol % to').selectOption('ignore');
     await page.getByLabel('Lab profile name').fill('Hollow Creek standard');
-    await Promise.all([page.waitForURL(/profile=saved/), page.getByRole('button', { name: 'Save lab profile and read again' }).click()]);
+    await Promise.all([
+      page.waitForURL(/profile=saved/),
+      page.getByRole('button', { name: 'Save lab profile and read again' }).click(),
+    ]);
     await expect(page.locator('main').textContent()).resolves.toContain('lab profile Hollow Creek standard');
     const after = await page.getByTestId('preview-counts').textContent();
     // SW-1041 is the only row with an insolubles figure (0.3 %).
@@ -93,7 +129,10 @@ describe('lab import in Chromium', () => {
     await Promise.all([page.waitForURL(/done=1/), page.getByTestId('confirm-import').click()]);
     await expect(page.getByTestId('import-done').textContent()).resolves.toContain('Imported.');
     await screenshot(page, 'lab-import-03-done-desktop');
-    await Promise.all([page.waitForURL(/\/samples\/[0-9a-f-]{36}$/), page.getByRole('link', { name: /Bottle SW-1041/ }).click()]);
+    await Promise.all([
+      page.waitForURL(/\/samples\/[0-9a-f-]{36}$/),
+      page.getByRole('link', { name: /Bottle SW-1041/ }).click(),
+    ]);
     const readings = page.getByTestId('readings-table');
     // A sample with no finding keeps its full table folded.
     await readings.waitFor({ state: 'attached' });
@@ -106,7 +145,9 @@ describe('lab import in Chromium', () => {
     await screenshot(page, 'lab-import-05-sample-phone');
     await page.goto(previewUrl);
     await screenshot(page, 'lab-import-06-preview-phone');
-    const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+    const overflow = await page.evaluate(
+      () => document.documentElement.scrollWidth - document.documentElement.clientWidth,
+    );
     expect(overflow).toBeLessThanOrEqual(0);
     expect(errors).toEqual([]);
   });
@@ -124,7 +165,9 @@ describe('lab import in Chromium', () => {
     const confirm = page.getByTestId('confirm-import');
     expect(await confirm.isDisabled()).toBe(true);
     expect(await confirm.textContent()).toBe('Confirm import');
-    await expect(page.getByTestId('confirm-why').textContent()).resolves.toContain('choose what to do with the 1 row marked above');
+    await expect(page.getByTestId('confirm-why').textContent()).resolves.toContain(
+      'choose what to do with the 1 row marked above',
+    );
     await page.getByLabel('What to do with line 2').selectOption({ label: 'Create the sample on Wren 450' });
     await expect(confirm.isEnabled()).resolves.toBe(true);
     expect(await confirm.textContent()).toBe('Confirm import with these choices');
@@ -139,11 +182,17 @@ describe('lab import in Chromium', () => {
     await p.goto('/imports');
     expect(await p.locator('#plain-upload').isVisible()).toBe(true);
     await p.getByLabel('Lab file', { exact: true }).setInputFiles(path.join(LABS, 'hollow-creek-oil-lab.csv'));
-    await Promise.all([p.waitForURL(/error=already_imported/), p.getByRole('button', { name: 'Upload and preview' }).click()]);
+    await Promise.all([
+      p.waitForURL(/error=already_imported/),
+      p.getByRole('button', { name: 'Upload and preview' }).click(),
+    ]);
     await expect(p.getByTestId('upload-error').textContent()).resolves.toContain('already imported');
     await screenshot(p, 'lab-import-07-already-imported-phone');
     await p.getByLabel('Lab file', { exact: true }).setInputFiles(path.join(LABS, 'thistlefen-tribology-bench.csv'));
-    await Promise.all([p.waitForURL(/\/imports\/[0-9a-f-]{36}$/), p.getByRole('button', { name: 'Upload and preview' }).click()]);
+    await Promise.all([
+      p.waitForURL(/\/imports\/[0-9a-f-]{36}$/),
+      p.getByRole('button', { name: 'Upload and preview' }).click(),
+    ]);
     // Bottles this crew never registered: listed as unknown, with the choice to create or skip.
     expect(await p.getByTestId('preview-counts').textContent()).toMatch(/0 ready .* 2 need attention/);
     expect(await p.locator('tr[data-line="2"]').textContent()).toContain('Unknown bottle');
@@ -155,7 +204,9 @@ describe('lab import in Chromium', () => {
     await expect(p.getByTestId('confirm-why').textContent()).resolves.toContain('Nothing can be written yet');
     await p.getByRole('button', { name: 'Check my choices' }).click();
     await p.waitForLoadState();
-    await expect(p.getByTestId('confirm-import').textContent()).resolves.toMatch(/Confirm import: 1 sample, \d+ readings?/);
+    await expect(p.getByTestId('confirm-import').textContent()).resolves.toMatch(
+      /Confirm import: 1 sample, \d+ readings?/,
+    );
     await Promise.all([p.waitForURL(/done=1/), p.getByTestId('confirm-import').click()]);
     await screenshot(p, 'lab-import-08-plain-done-phone');
     await plain.close();

@@ -19,8 +19,14 @@ const PASSWORD = 'a long enough password';
 const stamp = Date.now().toString(36);
 const email = `garage-${stamp}@offline.example`;
 const CHROMIUM_ARGS = [
-  '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking',
-  '--disable-component-update', '--disable-sync', '--disable-dev-shm-usage',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+  '--disable-dev-shm-usage',
 ];
 
 function tinyPng(): Buffer {
@@ -32,8 +38,13 @@ function tinyPng(): Buffer {
 /** A persistent profile (its IndexedDB, caches and service worker survive closing the browser). */
 async function openProfile(dir: string, offline = false): Promise<BrowserContext> {
   const ctx = await chromium.launchPersistentContext(dir, {
-    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium', headless: true, args: CHROMIUM_ARGS,
-    viewport: PHONE, baseURL: baseUrl(), deviceScaleFactor: 1, offline,
+    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+    headless: true,
+    args: CHROMIUM_ARGS,
+    viewport: PHONE,
+    baseURL: baseUrl(),
+    deviceScaleFactor: 1,
+    offline,
   });
   // Granting only this refuses the rest, Background Sync included: Chromium's sync follows the machine's real
   // network, not the emulated one, and would send the queue behind the test's back. Here the pages send it
@@ -47,9 +58,16 @@ async function formReady(p: Page): Promise<void> {
   await p.locator('form[data-offline-form=ready]').waitFor({ timeout: 15_000 });
 }
 
-async function api(cookie: string, method: string, url: string, body?: unknown): Promise<{ status: number; json: any }> {
+async function api(
+  cookie: string,
+  method: string,
+  url: string,
+  body?: unknown,
+): Promise<{ status: number; json: any }> {
   const res = await fetch(`${baseUrl()}${url}`, {
-    method, headers: { cookie, 'content-type': 'application/json', origin: baseUrl() }, body: body === undefined ? undefined : JSON.stringify(body),
+    method,
+    headers: { cookie, 'content-type': 'application/json', origin: baseUrl() },
+    body: body === undefined ? undefined : JSON.stringify(body),
   });
   return { status: res.status, json: await res.json().catch(() => null) };
 }
@@ -66,11 +84,18 @@ describe('the garage without signal', () => {
 
   beforeAll(async () => {
     const res = await fetch(`${baseUrl()}/api/auth/sign-up`, {
-      method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: PASSWORD, displayName: 'Wren Garage' }),
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({ email, password: PASSWORD, displayName: 'Wren Garage' }),
     });
     if (res.status >= 300) throw new Error(`sign-up ${res.status}`);
     cookie = await sessionCookieFor(baseUrl(), email, PASSWORD);
-    const m = await api(cookie, 'POST', '/api/machines', { name: 'Shed 690', engineLayout: 'single', cooling: 'liquid', meter: 'km' });
+    const m = await api(cookie, 'POST', '/api/machines', {
+      name: 'Shed 690',
+      engineLayout: 'single',
+      cooling: 'liquid',
+      meter: 'km',
+    });
     if (m.status !== 201) throw new Error(`machine ${m.status}: ${JSON.stringify(m.json)}`);
     machineId = m.json.machine.id;
     context = await openProfile(profile);
@@ -89,8 +114,16 @@ describe('the garage without signal', () => {
     await page.locator('html[data-offline-ready=true]').waitFor({ timeout: 30_000 });
     const href = await page.locator('link[rel=manifest]').getAttribute('href');
     const manifest = await (await page.request.get(href!)).json();
-    expect(manifest).toMatchObject({ name: 'Sumpwise', short_name: 'Sumpwise', start_url: '/', display: 'standalone', theme_color: '#1f4560' });
-    const sizes = (manifest.icons as { sizes: string; type: string; src: string }[]).filter((i) => i.type === 'image/png').map((i) => i.sizes);
+    expect(manifest).toMatchObject({
+      name: 'Sumpwise',
+      short_name: 'Sumpwise',
+      start_url: '/',
+      display: 'standalone',
+      theme_color: '#1f4560',
+    });
+    const sizes = (manifest.icons as { sizes: string; type: string; src: string }[])
+      .filter((i) => i.type === 'image/png')
+      .map((i) => i.sizes);
     expect(sizes).toEqual(expect.arrayContaining(['192x192', '512x512']));
     for (const icon of manifest.icons as { src: string; type: string }[]) {
       const r = await page.request.get(icon.src);
@@ -123,16 +156,24 @@ describe('the garage without signal', () => {
     await page.goto(`/machines/${machineId}/drain-card`);
     await formReady(page);
     await page.getByRole('button', { name: 'Issue a Sumpwise code' }).click();
-    await expect.poll(() => page.getByLabel('Bottle code').inputValue(), { timeout: 10_000 }).toMatch(/^[2-9A-HJKMNP-TV-Y]{3}-[2-9A-HJKMNP-TV-Y]{4}$/);
+    await expect
+      .poll(() => page.getByLabel('Bottle code').inputValue(), { timeout: 10_000 })
+      .toMatch(/^[2-9A-HJKMNP-TV-Y]{3}-[2-9A-HJKMNP-TV-Y]{4}$/);
     issuedCode = normaliseBottleCode(await page.getByLabel('Bottle code').inputValue());
     expect(hasValidCheckSymbol(issuedCode)).toBe(true);
     // Reserved for this device on the server before the network went away, and for nobody else.
-    const reserved = await db.selectFrom('bottle_code_reservations').select(['code_norm']).where('code_norm', '=', issuedCode).execute();
+    const reserved = await db
+      .selectFrom('bottle_code_reservations')
+      .select(['code_norm'])
+      .where('code_norm', '=', issuedCode)
+      .execute();
     expect(reserved.length).toBe(1);
     await page.getByLabel('Odometer (km)').fill('5,200');
     await page.getByRole('button', { name: 'Show bottle tag' }).click();
     await page.getByTestId('offline-tag').locator('svg').waitFor();
-    expect(await page.getByTestId('offline-tag').textContent()).toContain(`${issuedCode.slice(0, 3)}-${issuedCode.slice(3)}`);
+    expect(await page.getByTestId('offline-tag').textContent()).toContain(
+      `${issuedCode.slice(0, 3)}-${issuedCode.slice(3)}`,
+    );
     await screenshot(page, 'offline-02-tag-from-device');
     await page.getByRole('button', { name: 'Register sample' }).click();
     await page.getByTestId('offline-form-status').getByText('Saved on this device').waitFor();
@@ -143,7 +184,10 @@ describe('the garage without signal', () => {
     await page.getByLabel('SAE grade').fill('10W-40');
     await page.getByLabel('Oil product').fill('Valley Shed 4T');
     await page.locator('[data-photo-fallback]').scrollIntoViewIfNeeded(); // the uploader starts when it comes into view
-    await page.locator('[data-testid=photo-uploader] input[type=file]').first().setInputFiles({ name: 'drain-plug.png', mimeType: 'image/png', buffer: tinyPng() });
+    await page
+      .locator('[data-testid=photo-uploader] input[type=file]')
+      .first()
+      .setInputFiles({ name: 'drain-plug.png', mimeType: 'image/png', buffer: tinyPng() });
     await page.getByRole('button', { name: 'Save oil change' }).click();
     await page.getByTestId('offline-form-status').getByText('Saved on this device').waitFor();
 
@@ -153,8 +197,13 @@ describe('the garage without signal', () => {
     const items = page.getByTestId('outbox-item');
     await items.nth(1).waitFor();
     expect(await items.count()).toBe(2);
-    expect(await page.getByTestId('outbox-list').textContent()).toMatch(/Drain card · Shed 690[\s\S]*Bottle [\s\S]*Oil change · Shed 690[\s\S]*5,200 km, 10W-40 · 1 photo/);
-    expect(await items.evaluateAll((els) => els.map((e) => e.getAttribute('data-state')))).toEqual(['waiting', 'waiting']);
+    expect(await page.getByTestId('outbox-list').textContent()).toMatch(
+      /Drain card · Shed 690[\s\S]*Bottle [\s\S]*Oil change · Shed 690[\s\S]*5,200 km, 10W-40 · 1 photo/,
+    );
+    expect(await items.evaluateAll((els) => els.map((e) => e.getAttribute('data-state')))).toEqual([
+      'waiting',
+      'waiting',
+    ]);
     await screenshot(page, 'offline-03-outbox-phone');
     await page.setViewportSize(DESKTOP);
     await screenshot(page, 'offline-04-outbox-desktop');
@@ -173,17 +222,36 @@ describe('the garage without signal', () => {
     expect(await page.getByTestId('outbox-item').count()).toBe(2);
     await context.setOffline(false);
     await expect.poll(() => page.getByTestId('outbox-item').count(), { timeout: 30_000 }).toBe(0);
-    const samples = await db.selectFrom('samples').select(['id', 'issued_code', 'client_key']).where('bottle_code_norm', '=', issuedCode).execute();
+    const samples = await db
+      .selectFrom('samples')
+      .select(['id', 'issued_code', 'client_key'])
+      .where('bottle_code_norm', '=', issuedCode)
+      .execute();
     expect(samples.length).toBe(1);
     expect(samples[0]!.issued_code).toBe(true);
-    const changes = await db.selectFrom('oil_changes').select(['id', 'client_key']).where('machine_id', '=', machineId).execute();
+    const changes = await db
+      .selectFrom('oil_changes')
+      .select(['id', 'client_key'])
+      .where('machine_id', '=', machineId)
+      .execute();
     expect(changes.length).toBe(1);
     expect(changes[0]!.client_key).toMatch(/^[0-9a-f-]{36}$/);
-    const photos = await db.selectFrom('photos').select(['oil_change_id', 'byte_size']).where('oil_change_id', '=', changes[0]!.id).execute();
+    const photos = await db
+      .selectFrom('photos')
+      .select(['oil_change_id', 'byte_size'])
+      .where('oil_change_id', '=', changes[0]!.id)
+      .execute();
     expect(photos.length).toBe(1);
     expect(photos[0]!.byte_size).toBe(tinyPng().length);
     // A resend of what already arrived writes nothing new.
-    const again = await api(cookie, 'POST', '/api/samples', { machineId, clientKey: samples[0]!.client_key, bottleCode: issuedCode, codeSource: 'issued', drawnOn: '2025-01-01', odometer: 1 });
+    const again = await api(cookie, 'POST', '/api/samples', {
+      machineId,
+      clientKey: samples[0]!.client_key,
+      bottleCode: issuedCode,
+      codeSource: 'issued',
+      drawnOn: '2025-01-01',
+      odometer: 1,
+    });
     expect(again.status).toBe(200);
     expect(again.json.repeated).toBe(true);
   });
@@ -216,9 +284,16 @@ describe('the garage without signal', () => {
       await p.getByTestId('offline-form-status').getByText('Saved on this device').waitFor({ timeout: 20_000 });
       expect(await p.getByTestId('outbox-item').first().getAttribute('data-state')).toBe('waiting');
       expect(cut).toBe(1);
-      expect(await db.selectFrom('samples').select('id').where('bottle_code_norm', '=', code).execute()).toHaveLength(1);
-      await Promise.all([p.getByTestId('outbox-item').first().waitFor({ state: 'detached', timeout: 20_000 }), p.getByRole('button', { name: 'Send now' }).click()]);
-      expect(await db.selectFrom('samples').select('id').where('bottle_code_norm', '=', code).execute()).toHaveLength(1);
+      expect(await db.selectFrom('samples').select('id').where('bottle_code_norm', '=', code).execute()).toHaveLength(
+        1,
+      );
+      await Promise.all([
+        p.getByTestId('outbox-item').first().waitFor({ state: 'detached', timeout: 20_000 }),
+        p.getByRole('button', { name: 'Send now' }).click(),
+      ]);
+      expect(await db.selectFrom('samples').select('id').where('bottle_code_norm', '=', code).execute()).toHaveLength(
+        1,
+      );
       await ctx.close();
     } finally {
       await browser.close();
@@ -227,7 +302,16 @@ describe('the garage without signal', () => {
 
   test('a refused write stays with the server’s sentence and can be edited and sent', async () => {
     const taken = `TAKEN${stamp}`.toUpperCase();
-    expect((await api(cookie, 'POST', '/api/samples', { machineId, bottleCode: taken, drawnOn: '2025-01-02', odometer: 5100 })).status).toBe(201);
+    expect(
+      (
+        await api(cookie, 'POST', '/api/samples', {
+          machineId,
+          bottleCode: taken,
+          drawnOn: '2025-01-02',
+          odometer: 5100,
+        })
+      ).status,
+    ).toBe(201);
     await page.goto(`/machines/${machineId}/drain-card`);
     await formReady(page);
     await page.getByLabel('Bottle code').fill(taken);
@@ -238,7 +322,9 @@ describe('the garage without signal', () => {
     await context.setOffline(false);
     const item = page.getByTestId('outbox-item').first();
     await expect.poll(() => item.getAttribute('data-state'), { timeout: 20_000 }).toBe('refused');
-    expect(await item.getByTestId('outbox-message').textContent()).toMatch(new RegExp(`Bottle code ${taken} is already on a sample of Shed 690`));
+    expect(await item.getByTestId('outbox-message').textContent()).toMatch(
+      new RegExp(`Bottle code ${taken} is already on a sample of Shed 690`),
+    );
     expect(await item.textContent()).toContain('Not accepted');
     await page.goto('/outbox');
     await page.getByTestId('outbox-item').first().waitFor();
@@ -251,8 +337,17 @@ describe('the garage without signal', () => {
     await formReady(page);
     expect(await page.getByLabel('Bottle code').inputValue()).toBe(taken);
     await page.getByLabel('Bottle code').fill(`FRESH${stamp}`);
-    await Promise.all([page.waitForURL(/\/samples\/[0-9a-f-]{36}\?registered=1$/), page.getByRole('button', { name: 'Register sample' }).click()]);
-    expect(await db.selectFrom('samples').select('id').where('bottle_code_norm', '=', `FRESH${stamp}`.toUpperCase()).execute()).toHaveLength(1);
+    await Promise.all([
+      page.waitForURL(/\/samples\/[0-9a-f-]{36}\?registered=1$/),
+      page.getByRole('button', { name: 'Register sample' }).click(),
+    ]);
+    expect(
+      await db
+        .selectFrom('samples')
+        .select('id')
+        .where('bottle_code_norm', '=', `FRESH${stamp}`.toUpperCase())
+        .execute(),
+    ).toHaveLength(1);
     expect(await db.selectFrom('samples').select('id').where('bottle_code_norm', '=', taken).execute()).toHaveLength(1);
     await page.goto('/outbox');
     await page.getByText('Nothing is waiting').waitFor();
@@ -277,12 +372,18 @@ describe('the garage without signal', () => {
       await ctx.setOffline(false);
       const item = p.getByTestId('outbox-item').first();
       await expect.poll(() => item.getAttribute('data-state'), { timeout: 20_000 }).toBe('sign-in');
-      expect(await item.textContent()).toMatch(/Sign in to send[\s\S]*Your session has ended\. Sign in again with the same account and it will be sent\./);
-      expect(await db.selectFrom('samples').select('id').where('bottle_code_norm', '=', code).execute()).toHaveLength(0);
+      expect(await item.textContent()).toMatch(
+        /Sign in to send[\s\S]*Your session has ended\. Sign in again with the same account and it will be sent\./,
+      );
+      expect(await db.selectFrom('samples').select('id').where('bottle_code_norm', '=', code).execute()).toHaveLength(
+        0,
+      );
       await signInAs(p, email, PASSWORD);
       await p.goto('/outbox');
       await p.getByText('Nothing is waiting').waitFor({ timeout: 20_000 });
-      expect(await db.selectFrom('samples').select('id').where('bottle_code_norm', '=', code).execute()).toHaveLength(1);
+      expect(await db.selectFrom('samples').select('id').where('bottle_code_norm', '=', code).execute()).toHaveLength(
+        1,
+      );
       await ctx.close();
     } finally {
       await browser.close();

@@ -14,7 +14,9 @@ describe('oil tools in Chromium', () => {
     page = await (await newContext(browser, PHONE)).newPage();
     page.on('pageerror', (e) => errors.push(e.message));
   });
-  afterAll(async () => { await browser?.close(); });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   test('swapped viscosities are refused beside the KV40 field, with no VI shown', async () => {
     await page.goto('/tools');

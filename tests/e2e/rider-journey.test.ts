@@ -7,7 +7,15 @@ import path from 'node:path';
 import jsQR from 'jsqr';
 import { PNG } from 'pngjs';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { PHONE, SCREENSHOT_DIR, baseUrl, launchBrowser, newContext, openMenuIfFolded, screenshot } from './helpers/browser';
+import {
+  PHONE,
+  SCREENSHOT_DIR,
+  baseUrl,
+  launchBrowser,
+  newContext,
+  openMenuIfFolded,
+  screenshot,
+} from './helpers/browser';
 import { sessionCookieFor, signInAs } from './helpers/sign-in';
 
 const PASSWORD = 'a long enough password';
@@ -17,7 +25,9 @@ const strangerEmail = `stranger-${stamp}@journey.example`;
 
 async function signUp(email: string): Promise<void> {
   const res = await fetch(`${baseUrl()}/api/auth/sign-up`, {
-    method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: PASSWORD, displayName: 'Juniper Rider' }),
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify({ email, password: PASSWORD, displayName: 'Juniper Rider' }),
   });
   if (res.status >= 300) throw new Error(`sign-up ${res.status}: ${await res.text()}`);
 }
@@ -50,12 +60,16 @@ describe('rider journey on a phone', () => {
     page.on('pageerror', (e) => errors.push(e.message));
     await signInAs(page, riderEmail, PASSWORD);
   });
-  afterAll(async () => { await browser?.close(); });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   test('adds a machine, with a bad grade refused beside its field first', async () => {
     await page.goto('/machines');
     await openMenuIfFolded(page);
-    expect(await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Machines' }).isVisible()).toBe(true);
+    expect(
+      await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Machines' }).isVisible(),
+    ).toBe(true);
     await page.locator('header details > summary').click(); // fold it again
     await screenshot(page, 'rider-01-machines-empty');
     await page.getByRole('link', { name: 'Add a machine' }).first().click();
@@ -67,10 +81,15 @@ describe('rider journey on a phone', () => {
     await page.getByLabel('From °F').first().fill('14');
     await page.getByLabel('Longest change interval (meter unit)').fill('3000');
     await page.getByRole('button', { name: 'Add machine' }).click();
-    await expect(page.locator('#f-grade_0-error').textContent()).resolves.toContain('45 is not an SAE high-temperature grade');
+    await expect(page.locator('#f-grade_0-error').textContent()).resolves.toContain(
+      '45 is not an SAE high-temperature grade',
+    );
     await screenshot(page, 'rider-02-machine-form-error');
     await page.getByLabel('Grade 1').fill('10W-50');
-    await Promise.all([page.waitForURL(/\/machines\/[0-9a-f-]{36}\?added=1$/), page.getByRole('button', { name: 'Add machine' }).click()]);
+    await Promise.all([
+      page.waitForURL(/\/machines\/[0-9a-f-]{36}\?added=1$/),
+      page.getByRole('button', { name: 'Add machine' }).click(),
+    ]);
     machineUrl = new URL(page.url()).pathname;
     await expect(page.getByRole('heading', { level: 1 }).textContent()).resolves.toContain('Juniper 450');
     // 14 °F shown back as −10 °C would be wrong for this user: their unit is °F.
@@ -85,7 +104,10 @@ describe('rider journey on a phone', () => {
     await page.getByLabel('SAE grade').fill('10W-50');
     await page.getByLabel('Oil product').fill('Quillmoor Synth 4T');
     await page.getByLabel('Other work done').fill('Drain plug washer replaced');
-    await page.locator('[data-testid=photo-uploader] input[type=file]').first().setInputFiles({ name: 'cover-bolts.png', mimeType: 'image/png', buffer: tinyPng() });
+    await page
+      .locator('[data-testid=photo-uploader] input[type=file]')
+      .first()
+      .setInputFiles({ name: 'cover-bolts.png', mimeType: 'image/png', buffer: tinyPng() });
     await page.getByText('1 photo ready').waitFor({ timeout: 15_000 });
     await screenshot(page, 'rider-04-oil-change-form');
     await Promise.all([page.waitForURL(/\?logged=1$/), page.getByRole('button', { name: 'Save oil change' }).click()]);
@@ -94,7 +116,9 @@ describe('rider journey on a phone', () => {
     // The thumbnail loads lazily: wait for it, then check the browser decoded the stored photo.
     const width = await img.evaluate((el) => {
       const im = el as HTMLImageElement;
-      return im.complete && im.naturalWidth > 0 ? im.naturalWidth : new Promise<number>((resolve) => im.addEventListener('load', () => resolve(im.naturalWidth), { once: true }));
+      return im.complete && im.naturalWidth > 0
+        ? im.naturalWidth
+        : new Promise<number>((resolve) => im.addEventListener('load', () => resolve(im.naturalWidth), { once: true }));
     });
     expect(width).toBe(64);
     const src = await img.getAttribute('src');
@@ -113,11 +137,18 @@ describe('rider journey on a phone', () => {
       fd.append('file', new Blob([bytes], { type: 'image/jpeg' }), name);
       return fd;
     };
-    const renamed = await page.request.post('/api/photos', { headers: { origin: baseUrl() }, multipart: { file: { name: 'bolts.jpg', mimeType: 'image/jpeg', buffer: Buffer.from('not a photo at all') } } });
+    const renamed = await page.request.post('/api/photos', {
+      headers: { origin: baseUrl() },
+      multipart: { file: { name: 'bolts.jpg', mimeType: 'image/jpeg', buffer: Buffer.from('not a photo at all') } },
+    });
     expect(renamed.status()).toBe(415);
     expect((await renamed.json()).error.fields.file).toMatch(/not a photo/);
     const cookie = (await context.cookies()).map((c) => `${c.name}=${c.value}`).join('; ');
-    const huge = await fetch(`${baseUrl()}/api/photos`, { method: 'POST', headers: { cookie, origin: baseUrl() }, body: fileBody(new Uint8Array(40 * 1024 * 1024), 'huge.jpg') });
+    const huge = await fetch(`${baseUrl()}/api/photos`, {
+      method: 'POST',
+      headers: { cookie, origin: baseUrl() },
+      body: fileBody(new Uint8Array(40 * 1024 * 1024), 'huge.jpg'),
+    });
     expect(huge.status).toBe(413);
     expect(((await huge.json()) as { error: { message: string } }).error.message).toMatch(/at most 10 MB/);
 
@@ -140,7 +171,9 @@ describe('rider journey on a phone', () => {
     await page.getByRole('button', { name: 'Issue a Sumpwise code' }).click();
     await page.waitForLoadState('load');
     // From this device's reserved block when it holds one, else from the server: either way it fills the field.
-    await expect.poll(() => page.getByLabel('Bottle code').inputValue(), { timeout: 10_000 }).toMatch(/^[2-9A-HJKMNP-TV-Y]{3}-[2-9A-HJKMNP-TV-Y]{4}$/);
+    await expect
+      .poll(() => page.getByLabel('Bottle code').inputValue(), { timeout: 10_000 })
+      .toMatch(/^[2-9A-HJKMNP-TV-Y]{3}-[2-9A-HJKMNP-TV-Y]{4}$/);
     const code = await page.getByLabel('Bottle code').inputValue();
     // A mistyped issued code is refused beside the field.
     const typo = code.slice(0, -1) + (code.endsWith('A') ? 'B' : 'A');
@@ -153,7 +186,10 @@ describe('rider journey on a phone', () => {
     await page.getByLabel('Odometer (mi)').fill('17,000');
     expect(await page.locator('[data-distance-out]').textContent()).toContain('3,000 mi');
     await screenshot(page, 'rider-06-drain-card');
-    await Promise.all([page.waitForURL(/\/samples\/[0-9a-f-]{36}\?registered=1$/), page.getByRole('button', { name: 'Register sample' }).click()]);
+    await Promise.all([
+      page.waitForURL(/\/samples\/[0-9a-f-]{36}\?registered=1$/),
+      page.getByRole('button', { name: 'Register sample' }).click(),
+    ]);
     sampleUrl = new URL(page.url()).pathname;
     expect(await page.getByTestId('distance-on-oil').textContent()).toBe('3,000 mi');
     await screenshot(page, 'rider-07-sample-registered');
@@ -227,7 +263,10 @@ describe('rider journey on a phone', () => {
     await page.getByLabel('New: smallest').fill('0.115');
     await page.getByLabel('New: largest').fill('0.121');
     await page.getByLabel('Service limit').fill('0.100');
-    await Promise.all([page.waitForURL(/wear-parts\/[0-9a-f-]{36}$/), page.getByRole('button', { name: 'Add wear part' }).click()]);
+    await Promise.all([
+      page.waitForURL(/wear-parts\/[0-9a-f-]{36}$/),
+      page.getByRole('button', { name: 'Add wear part' }).click(),
+    ]);
     await page.getByLabel('Odometer (mi)').fill('17000');
     await page.getByLabel('…or one value').fill('0.130');
     await page.getByRole('button', { name: 'Save measurement' }).click();
@@ -235,7 +274,10 @@ describe('rider journey on a phone', () => {
     expect(await page.locator('#f-summary-error').textContent()).toMatch(/above the new range/);
     await page.getByLabel('Odometer (mi)').fill('17000');
     await page.getByLabel('…or one value').fill('0.110');
-    await Promise.all([page.waitForURL(/\?measured=1$/), page.getByRole('button', { name: 'Save measurement' }).click()]);
+    await Promise.all([
+      page.waitForURL(/\?measured=1$/),
+      page.getByRole('button', { name: 'Save measurement' }).click(),
+    ]);
     const forecast = await page.getByTestId('wear-forecast').textContent();
     // From the expected thinnest of 8 new plates (0.115 + 0.006/9 in) at 0 to 0.110 in at 17,000 mi: the
     // limit of 0.100 in near 47,000 mi.
@@ -243,7 +285,9 @@ describe('rider journey on a phone', () => {
     expect(forecast).toContain('between 29,750 mi and 63,750 mi');
     expect(forecast).toMatch(/service manual and a mechanic decide/);
     await screenshot(page, 'rider-13-wear-part-forecast');
-    const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+    const overflow = await page.evaluate(
+      () => document.documentElement.scrollWidth - document.documentElement.clientWidth,
+    );
     expect(overflow).toBeLessThanOrEqual(0);
     expect(errors).toEqual([]);
   });

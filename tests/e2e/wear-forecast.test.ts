@@ -20,34 +20,88 @@ async function prepare(): Promise<void> {
   const db = createDb(inject('databaseUrl'), { max: 1 });
   try {
     const hash = await hashPassword(PASSWORD);
-    const crew = await db.insertInto('crews').values({ name: `Brackfen rider ${stamp}` }).returning('id').executeTakeFirstOrThrow();
+    const crew = await db
+      .insertInto('crews')
+      .values({ name: `Brackfen rider ${stamp}` })
+      .returning('id')
+      .executeTakeFirstOrThrow();
     const userId = `wear-rider-${stamp}`;
-    await db.insertInto('users').values({ id: userId, email, display_name: 'Cass Brackfen', password_hash: hash, email_verified_at: new Date() }).execute();
+    await db
+      .insertInto('users')
+      .values({ id: userId, email, display_name: 'Cass Brackfen', password_hash: hash, email_verified_at: new Date() })
+      .execute();
     await db.insertInto('crew_members').values({ crew_id: crew.id, user_id: userId, role: 'lead' }).execute();
-    const m = await db.insertInto('machines').values({
-      crew_id: crew.id, owner_user_id: userId, name: 'Brack 690', engine_layout: 'single', cooling: 'liquid', meter: 'km',
-      recommended_grades: JSON.stringify([]),
-    } as never).returning('id').executeTakeFirstOrThrow();
+    const m = await db
+      .insertInto('machines')
+      .values({
+        crew_id: crew.id,
+        owner_user_id: userId,
+        name: 'Brack 690',
+        engine_layout: 'single',
+        cooling: 'liquid',
+        meter: 'km',
+        recommended_grades: JSON.stringify([]),
+      } as never)
+      .returning('id')
+      .executeTakeFirstOrThrow();
     machineId = m.id;
-    const part = async (name: string, o: { pieces: number; min: number; max: number; limit: number; dir: 'min' | 'max'; fitted: number }, readings: [string, number, number[]][]) => {
-      const p = await db.insertInto('wear_parts').values({
-        crew_id: crew.id, machine_id: m.id, name, piece_count: o.pieces, new_min_mm: o.min, new_max_mm: o.max, service_limit_mm: o.limit,
-        limit_direction: o.dir, fitted_odometer: o.fitted, manual_unit: 'mm',
-      }).returning('id').executeTakeFirstOrThrow();
+    const part = async (
+      name: string,
+      o: { pieces: number; min: number; max: number; limit: number; dir: 'min' | 'max'; fitted: number },
+      readings: [string, number, number[]][],
+    ) => {
+      const p = await db
+        .insertInto('wear_parts')
+        .values({
+          crew_id: crew.id,
+          machine_id: m.id,
+          name,
+          piece_count: o.pieces,
+          new_min_mm: o.min,
+          new_max_mm: o.max,
+          service_limit_mm: o.limit,
+          limit_direction: o.dir,
+          fitted_odometer: o.fitted,
+          manual_unit: 'mm',
+        })
+        .returning('id')
+        .executeTakeFirstOrThrow();
       for (const [on, odometer, pieces] of readings) {
-        await db.insertInto('wear_measurements').values({
-          wear_part_id: p.id, measured_on: on, odometer, pieces_mm: JSON.stringify(pieces),
-          summary_mm: o.dir === 'min' ? Math.min(...pieces) : Math.max(...pieces), created_by: userId,
-        }).execute();
+        await db
+          .insertInto('wear_measurements')
+          .values({
+            wear_part_id: p.id,
+            measured_on: on,
+            odometer,
+            pieces_mm: JSON.stringify(pieces),
+            summary_mm: o.dir === 'min' ? Math.min(...pieces) : Math.max(...pieces),
+            created_by: userId,
+          })
+          .execute();
       }
       return p.id;
     };
-    parts.pack = await part('Clutch friction plates', { pieces: 7, min: 2.92, max: 3.08, limit: 2.6, dir: 'min', fitted: 20_000 },
-      [['2026-03-01', 31_000, [3.01, 2.95, 2.93, 3.05, 2.99, 2.97, 2.92]]]);
-    parts.chain = await part('Drive chain, 20 pitches', { pieces: 1, min: 317.5, max: 317.5, limit: 323, dir: 'max', fitted: 30_000 },
-      [['2025-10-02', 40_000, [319.0]], ['2026-05-14', 50_000, [320.5]]]);
-    parts.pads = await part('Front brake pads', { pieces: 2, min: 4.5, max: 5.0, limit: 1.0, dir: 'min', fitted: 14_500 },
-      [['2026-04-01', 27_400, [2.5, 2.6]], ['2026-10-05', 33_900, [0.9, 1.1]]]);
+    parts.pack = await part(
+      'Clutch friction plates',
+      { pieces: 7, min: 2.92, max: 3.08, limit: 2.6, dir: 'min', fitted: 20_000 },
+      [['2026-03-01', 31_000, [3.01, 2.95, 2.93, 3.05, 2.99, 2.97, 2.92]]],
+    );
+    parts.chain = await part(
+      'Drive chain, 20 pitches',
+      { pieces: 1, min: 317.5, max: 317.5, limit: 323, dir: 'max', fitted: 30_000 },
+      [
+        ['2025-10-02', 40_000, [319.0]],
+        ['2026-05-14', 50_000, [320.5]],
+      ],
+    );
+    parts.pads = await part(
+      'Front brake pads',
+      { pieces: 2, min: 4.5, max: 5.0, limit: 1.0, dir: 'min', fitted: 14_500 },
+      [
+        ['2026-04-01', 27_400, [2.5, 2.6]],
+        ['2026-10-05', 33_900, [0.9, 1.1]],
+      ],
+    );
   } finally {
     await db.destroy();
   }
@@ -67,7 +121,9 @@ describe('wear-part forecasts in Chromium', () => {
     page.on('pageerror', (e) => errors.push(e.message));
     await signInAs(page, email, PASSWORD);
   });
-  afterAll(async () => { await browser?.close(); });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   const forecastOf = async (key: keyof typeof parts) => {
     await page.goto(`/machines/${machineId}/wear-parts/${parts[key]}`);

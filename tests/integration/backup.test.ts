@@ -16,10 +16,14 @@ const restoredName = `${TEST_DATABASE.name}_restored`;
 
 /** Row count of every public table, as a map. */
 async function countEveryTable(db: Kysely<any>): Promise<Record<string, number>> {
-  const { rows } = await sql<{ tablename: string }>`select tablename from pg_tables where schemaname = 'public' order by tablename`.execute(db);
+  const { rows } = await sql<{
+    tablename: string;
+  }>`select tablename from pg_tables where schemaname = 'public' order by tablename`.execute(db);
   const counts: Record<string, number> = {};
   for (const { tablename } of rows) {
-    counts[tablename] = Number((await sql<{ n: number }>`select count(*)::int as n from ${sql.table(tablename)}`.execute(db)).rows[0]!.n);
+    counts[tablename] = Number(
+      (await sql<{ n: number }>`select count(*)::int as n from ${sql.table(tablename)}`.execute(db)).rows[0]!.n,
+    );
   }
   return counts;
 }
@@ -32,7 +36,9 @@ describe('backup and restore (scripts/db.sh backup / restore)', () => {
     rmSync(dir, { recursive: true, force: true });
     execFileSync('bash', [dbSh, 'drop-db', restoredName], { stdio: 'ignore' });
   });
-  beforeEach(async () => { await truncateAll(db); });
+  beforeEach(async () => {
+    await truncateAll(db);
+  });
 
   test('a dump restored into an empty database holds every record', async () => {
     const user = await makeUser(db);
@@ -60,6 +66,8 @@ describe('backup and restore (scripts/db.sh backup / restore)', () => {
   test('restore refuses a database that already has tables', () => {
     const file = path.join(dir, 'again.dump');
     execFileSync('bash', [dbSh, 'backup', file, TEST_DATABASE.name], { stdio: 'ignore' });
-    expect(() => execFileSync('bash', [dbSh, 'restore', file, TEST_DATABASE.name], { stdio: 'pipe' })).toThrow(/not empty/);
+    expect(() => execFileSync('bash', [dbSh, 'restore', file, TEST_DATABASE.name], { stdio: 'pipe' })).toThrow(
+      /not empty/,
+    );
   });
 });

@@ -20,7 +20,15 @@ describe('migrations', () => {
   });
 
   const tableCount = async () =>
-    Number((await sql<{ n: string }>`select count(*)::int as n from pg_tables where schemaname = 'public' and tablename not like 'kysely_%'`.execute(db)).rows[0]!.n);
+    Number(
+      (
+        await sql<{
+          n: string;
+        }>`select count(*)::int as n from pg_tables where schemaname = 'public' and tablename not like 'kysely_%'`.execute(
+          db,
+        )
+      ).rows[0]!.n,
+    );
 
   test('every up, every down and every up again on an empty database', async () => {
     const files = readdirSync(folder).filter((f) => /^\d{4}_\d{2}_\d{2}_\d{4}_[a-z0-9_]+\.ts$/.test(f));

@@ -20,16 +20,39 @@ export async function addActor(db: Kysely<Database>, of: Actor, role: Role): Pro
 
 /** Row counts of the rider-side tables, to prove a refusal wrote nothing. */
 export async function countRiderRows(db: Kysely<Database>) {
-  const tables = ['machines', 'oil_changes', 'photos', 'samples', 'sample_events', 'wear_parts', 'wear_measurements'] as const;
+  const tables = [
+    'machines',
+    'oil_changes',
+    'photos',
+    'samples',
+    'sample_events',
+    'wear_parts',
+    'wear_measurements',
+  ] as const;
   const out: Record<string, number> = {};
   for (const t of tables) {
-    const r = await db.selectFrom(t).select((eb) => eb.fn.countAll<number>().as('n')).executeTakeFirstOrThrow();
+    const r = await db
+      .selectFrom(t)
+      .select((eb) => eb.fn.countAll<number>().as('n'))
+      .executeTakeFirstOrThrow();
     out[t] = Number(r.n);
   }
   return out;
 }
 
 export const MACHINE_450 = {
-  name: 'Gravel 450', modelYear: '2021', engineLayout: 'single', displacementCc: '449', cooling: 'liquid', sharedOil: 'on',
-  oilCapacityL: '1.2', meter: 'mi', grade_0: '10W-50', grade_min_0: '14', grade_max_0: '', maxInterval: '3000', maxIntervalDays: '365', notes: '',
+  name: 'Gravel 450',
+  modelYear: '2021',
+  engineLayout: 'single',
+  displacementCc: '449',
+  cooling: 'liquid',
+  sharedOil: 'on',
+  oilCapacityL: '1.2',
+  meter: 'mi',
+  grade_0: '10W-50',
+  grade_min_0: '14',
+  grade_max_0: '',
+  maxInterval: '3000',
+  maxIntervalDays: '365',
+  notes: '',
 };

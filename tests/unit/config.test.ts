@@ -18,7 +18,10 @@ describe('readConfig', () => {
     [{ APP_SECRET: 'short' }, /APP_SECRET/],
     [{ TRUST_PROXY: 'yes' }, /TRUST_PROXY must be off, on, or the number of proxies/],
     [{ TRUST_PROXY: '12' }, /TRUST_PROXY/],
-    [{ DEV_MAILBOX: '1', HOST: '0.0.0.0' }, /DEV_MAILBOX is 1, but .* only when HOST is a loopback address .* not 0\.0\.0\.0/],
+    [
+      { DEV_MAILBOX: '1', HOST: '0.0.0.0' },
+      /DEV_MAILBOX is 1, but .* only when HOST is a loopback address .* not 0\.0\.0\.0/,
+    ],
     [{ DEV_MAILBOX: '1', HOST: '192.0.2.10' }, /DEV_MAILBOX/],
     [{ APP_PROCESSES: '0' }, /APP_PROCESSES/],
     [{ APP_PROCESSES: '65' }, /APP_PROCESSES/],
@@ -57,9 +60,18 @@ describe('readConfig', () => {
   });
 
   test.each([
-    [{ APP_PROCESSES: '3', DATABASE_POOL_SIZE: '12' }, { APP_PROCESSES: 3, DATABASE_POOL_SIZE: 12 }],
-    [{ PHOTO_STORE: 'disk', UPLOAD_DIR: '/srv/photos' }, { PHOTO_STORE: 'disk', UPLOAD_DIR: '/srv/photos' }],
-    [{ S3_FORCE_PATH_STYLE: '0', S3_BUCKET: 'crew.photos-01' }, { S3_FORCE_PATH_STYLE: false, S3_BUCKET: 'crew.photos-01' }],
+    [
+      { APP_PROCESSES: '3', DATABASE_POOL_SIZE: '12' },
+      { APP_PROCESSES: 3, DATABASE_POOL_SIZE: 12 },
+    ],
+    [
+      { PHOTO_STORE: 'disk', UPLOAD_DIR: '/srv/photos' },
+      { PHOTO_STORE: 'disk', UPLOAD_DIR: '/srv/photos' },
+    ],
+    [
+      { S3_FORCE_PATH_STYLE: '0', S3_BUCKET: 'crew.photos-01' },
+      { S3_FORCE_PATH_STYLE: false, S3_BUCKET: 'crew.photos-01' },
+    ],
   ])('reads %o', (env, expected) => {
     expect(readConfig(env)).toMatchObject(expected);
   });

@@ -39,7 +39,12 @@ describe('parseLimitsForm', () => {
     ['below the range', { Fe: '0' }, 'Fe', 'Between 1 and 2000 ppm.'],
     ['above the range', { WATER: '50' }, 'WATER', 'Between 0.01 and 5 %.'],
     ['KV100 past the act tier', { KV100: '30' }, 'KV100', `Between 5 and ${VISCOSITY_CHANGE.params.actThinPercent} %.`],
-    ['a 100 KB string', { Fe: '9'.repeat(100_000) }, 'Fe', `Too long: type a number of at most ${MAX_INPUT_LENGTH} characters.`],
+    [
+      'a 100 KB string',
+      { Fe: '9'.repeat(100_000) },
+      'Fe',
+      `Too long: type a number of at most ${MAX_INPUT_LENGTH} characters.`,
+    ],
   ])('refuses %s with a clear message', (_n, entries, field, message) => {
     const r = parseLimitsForm(form(entries));
     expect(r.ok).toBe(false);
@@ -58,7 +63,10 @@ describe('parseLimitsForm', () => {
 
 describe('formValuesFrom', () => {
   test('shows the crew’s figure, or an empty box for the default', () => {
-    const v = formValuesFrom([{ measurand: 'Fe', act_at: 80 }, { measurand: 'B', act_at: 30 }]);
+    const v = formValuesFrom([
+      { measurand: 'Fe', act_at: 80 },
+      { measurand: 'B', act_at: 30 },
+    ]);
     expect(v['Fe']).toBe('80');
     expect(v['Si']).toBe('');
     expect(v['B']).toBeUndefined();

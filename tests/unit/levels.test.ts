@@ -1,5 +1,14 @@
 import { describe, expect, test } from 'vitest';
-import { byLevelWorstFirst, CALL_DISPLAY, CALL_KINDS, LEVEL_DISPLAY, LEVELS, levelOfRank, levelRank, pickWorseLevel } from '~/lib/levels';
+import {
+  byLevelWorstFirst,
+  CALL_DISPLAY,
+  CALL_KINDS,
+  LEVEL_DISPLAY,
+  LEVELS,
+  levelOfRank,
+  levelRank,
+  pickWorseLevel,
+} from '~/lib/levels';
 import { CALLS } from '~/lib/analysis/interval-call';
 import { navFor } from '~/lib/navigation';
 

@@ -1,7 +1,10 @@
 import { describe, expect, test } from 'vitest';
 import { isForbiddenCrossSiteWrite, type OriginPolicy } from '~/lib/http/origin-check';
 
-const policy: OriginPolicy = { allowedOrigins: ['http://127.0.0.1:4321', 'https://sumpwise.example'], exemptPaths: ['/api/unsubscribe'] };
+const policy: OriginPolicy = {
+  allowedOrigins: ['http://127.0.0.1:4321', 'https://sumpwise.example'],
+  exemptPaths: ['/api/unsubscribe'],
+};
 const form = 'application/x-www-form-urlencoded';
 
 describe('isForbiddenCrossSiteWrite', () => {

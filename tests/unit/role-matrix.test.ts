@@ -20,7 +20,11 @@ function walk(dir: string, prefix = ''): string[] {
     const rel = prefix ? `${prefix}/${e.name}` : e.name;
     if (e.isDirectory()) return walk(path.join(dir, e.name), rel);
     // Files starting with _ are not routes in Astro.
-    return /\.(astro|ts|js|mjs|md|mdx|html)$/.test(e.name) && !e.name.startsWith('_') && !rel.split('/').some((p) => p.startsWith('_')) ? [rel] : [];
+    return /\.(astro|ts|js|mjs|md|mdx|html)$/.test(e.name) &&
+      !e.name.startsWith('_') &&
+      !rel.split('/').some((p) => p.startsWith('_'))
+      ? [rel]
+      : [];
   });
 }
 

@@ -44,7 +44,16 @@ export default function LabUpload({ endpoint, maxBytes, fallbackId }: Props) {
         maxNumberOfFiles: 1,
         maxFileSize: maxBytes,
         // The server checks the content; these only steer the file picker.
-        allowedFileTypes: ['.csv', '.tsv', '.txt', '.xlsx', 'text/csv', 'text/tab-separated-values', 'text/plain', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet'],
+        allowedFileTypes: [
+          '.csv',
+          '.tsv',
+          '.txt',
+          '.xlsx',
+          'text/csv',
+          'text/tab-separated-values',
+          'text/plain',
+          'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
+        ],
       },
     }).use(XHRUpload, {
       endpoint,

@@ -46,7 +46,8 @@ export default function PhotoUploader({ fallbackInputId, maxFileBytes }: Props) 
     const onCollect = (e: Event) => {
       const into = (e as CustomEvent<OutboxPhoto[]>).detail;
       for (const f of uppy.getFiles()) {
-        if (!f.progress.uploadComplete && f.data instanceof Blob) into.push({ name: f.name ?? 'photo', type: f.type ?? 'application/octet-stream', blob: f.data });
+        if (!f.progress.uploadComplete && f.data instanceof Blob)
+          into.push({ name: f.name ?? 'photo', type: f.type ?? 'application/octet-stream', blob: f.data });
       }
     };
     const onKept = () => {
@@ -74,8 +75,14 @@ export default function PhotoUploader({ fallbackInputId, maxFileBytes }: Props) 
         note="Photos only, up to 10 MB each."
         locale={{ strings: { dropPasteFiles: 'Drop photos here or %{browseFiles}', browseFiles: 'choose photos' } }}
       />
-      {ids.map((id) => <input key={id} type="hidden" name="photoIds" value={id} />)}
-      <p className="mt-2 text-sm" aria-live="polite">{ids.length > 0 ? `${formatCount(ids.length, 'photo')} ready; ${ids.length === 1 ? 'it is' : 'they are'} attached when you save.` : ''}</p>
+      {ids.map((id) => (
+        <input key={id} type="hidden" name="photoIds" value={id} />
+      ))}
+      <p className="mt-2 text-sm" aria-live="polite">
+        {ids.length > 0
+          ? `${formatCount(ids.length, 'photo')} ready; ${ids.length === 1 ? 'it is' : 'they are'} attached when you save.`
+          : ''}
+      </p>
     </div>
   );
 }

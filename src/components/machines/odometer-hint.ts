@@ -22,4 +22,5 @@ export function wireOdometerHint(selector: string, words: OdometerHintWords, emp
 }
 
 /** A distance as the hints write it: whole units with thousands separators. */
-export const formatHintDistance = (d: number, unit: string): string => `${Math.round(d).toLocaleString('en-US')} ${unit}`;
+export const formatHintDistance = (d: number, unit: string): string =>
+  `${Math.round(d).toLocaleString('en-US')} ${unit}`;

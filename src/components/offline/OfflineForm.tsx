@@ -22,8 +22,11 @@ interface Props {
   unit: string;
 }
 
-
-const SUCCESS_QUERY: Record<OutboxKind, string> = { 'drain-card': '?registered=1', 'oil-change': '?logged=1', 'wear-reading': '?measured=1' };
+const SUCCESS_QUERY: Record<OutboxKind, string> = {
+  'drain-card': '?registered=1',
+  'oil-change': '?logged=1',
+  'wear-reading': '?measured=1',
+};
 
 function fieldsOf(form: HTMLFormElement): Record<string, string | string[]> {
   const out: Record<string, string | string[]> = {};
@@ -48,7 +51,12 @@ function setClientKey(form: HTMLFormElement, key: string): void {
 
 function fillForm(form: HTMLFormElement, fields: Record<string, string | string[]>): void {
   for (const el of Array.from(form.elements)) {
-    if (!(el instanceof HTMLInputElement || el instanceof HTMLTextAreaElement || el instanceof HTMLSelectElement) || !el.name || el.name === 'clientKey') continue;
+    if (
+      !(el instanceof HTMLInputElement || el instanceof HTMLTextAreaElement || el instanceof HTMLSelectElement) ||
+      !el.name ||
+      el.name === 'clientKey'
+    )
+      continue;
     const v = fields[el.name];
     if (el instanceof HTMLInputElement && (el.type === 'checkbox' || el.type === 'radio')) {
       const vals = Array.isArray(v) ? v : v === undefined ? [] : [v];
@@ -102,21 +110,24 @@ export default function OfflineForm({ kind, formId, machineId, machineName, part
     }
   }, [form, kind]);
 
-  const queued = useCallback(async (item: OutboxItem, why?: string) => {
-    window.dispatchEvent(new CustomEvent(PHOTOS_KEPT_EVENT));
-    keptPhotos.current = [];
-    setEditing(null);
-    const f = form();
-    if (f) {
-      setClientKey(f, crypto.randomUUID());
-      if (kind === 'drain-card') {
-        const code = f.elements.namedItem('bottleCode') as HTMLInputElement | null;
-        if (code) code.value = '';
+  const queued = useCallback(
+    async (item: OutboxItem, why?: string) => {
+      window.dispatchEvent(new CustomEvent(PHOTOS_KEPT_EVENT));
+      keptPhotos.current = [];
+      setEditing(null);
+      const f = form();
+      if (f) {
+        setClientKey(f, crypto.randomUUID());
+        if (kind === 'drain-card') {
+          const code = f.elements.namedItem('bottleCode') as HTMLInputElement | null;
+          if (code) code.value = '';
+        }
       }
-    }
-    setStatus(why ?? `Saved on this device: ${item.label}. It is sent when the network returns, and never twice.`);
-    await requestBackgroundSync();
-  }, [form, kind]);
+      setStatus(why ?? `Saved on this device: ${item.label}. It is sent when the network returns, and never twice.`);
+      await requestBackgroundSync();
+    },
+    [form, kind],
+  );
 
   useEffect(() => {
     const f = form();
@@ -127,7 +138,8 @@ export default function OfflineForm({ kind, formId, machineId, machineName, part
       // Decided before any await: a submit event cannot be cancelled later.
       e.preventDefault();
       if (submitter?.name === 'action' && submitter.value === 'issue') {
-        const code = session['user'] && session['crew'] ? await takeReservedCode(session['user'], session['crew']) : null;
+        const code =
+          session['user'] && session['crew'] ? await takeReservedCode(session['user'], session['crew']) : null;
         if (code) {
           (f.elements.namedItem('bottleCode') as HTMLInputElement).value = code.display;
           const issued = f.querySelector<HTMLInputElement>('input[name=codeSource][value=issued]');
@@ -135,7 +147,9 @@ export default function OfflineForm({ kind, formId, machineId, machineName, part
           setTagCode(code.display);
           setStatus(`Bottle code ${code.display} is yours: write it on the bottle, or show the tag below.`);
         } else if (!navigator.onLine) {
-          setStatus('No reserved bottle codes are left on this device. Use the lab kit’s code, or issue one when the network returns.');
+          setStatus(
+            'No reserved bottle codes are left on this device. Use the lab kit’s code, or issue one when the network returns.',
+          );
         } else {
           // Online without a reserved code: the plain post issues one.
           const action = document.createElement('input');
@@ -158,12 +172,26 @@ export default function OfflineForm({ kind, formId, machineId, machineName, part
       if (kind === 'oil-change') {
         window.dispatchEvent(new CustomEvent(COLLECT_PHOTOS_EVENT, { detail: fresh }));
         const input = f.querySelector<HTMLInputElement>('input[type=file][name=photos]');
-        if (input && !input.disabled) for (const file of Array.from(input.files ?? [])) fresh.push({ name: file.name, type: file.type, blob: file });
+        if (input && !input.disabled)
+          for (const file of Array.from(input.files ?? []))
+            fresh.push({ name: file.name, type: file.type, blob: file });
       }
       const photos = [...keptPhotos.current, ...fresh];
       const item: OutboxItem = {
-        key, kind, userId: session['user'], crewId: session['crew'], crewName: session['crewName'] ?? '', machineId, machineName, partId,
-        label: labelOf(kind, fields, unit), fields, photos, savedAt: new Date().toISOString(), state: 'waiting', attempts: 0,
+        key,
+        kind,
+        userId: session['user'],
+        crewId: session['crew'],
+        crewName: session['crewName'] ?? '',
+        machineId,
+        machineName,
+        partId,
+        label: labelOf(kind, fields, unit),
+        fields,
+        photos,
+        savedAt: new Date().toISOString(),
+        state: 'waiting',
+        attempts: 0,
       };
       // Kept before sending, so a page closed mid-request still has it.
       await putOutboxItem(item);
@@ -193,7 +221,10 @@ export default function OfflineForm({ kind, formId, machineId, machineName, part
         showFieldErrors(f, now.fieldErrors ?? {});
         return;
       }
-      return queued(now, now.state === 'waiting' ? undefined : `Saved on this device: ${now.label}. ${now.message ?? ''}`);
+      return queued(
+        now,
+        now.state === 'waiting' ? undefined : `Saved on this device: ${now.label}. ${now.message ?? ''}`,
+      );
     };
     const listener = (e: Event) => void onSubmit(e as SubmitEvent);
     f.addEventListener('submit', listener);
@@ -205,12 +236,27 @@ export default function OfflineForm({ kind, formId, machineId, machineName, part
     <div>
       {editing && (
         <div className="caution mt-3" data-testid="outbox-editing">
-          <p className="font-semibold">Editing a {kind === 'drain-card' ? 'drain card' : kind === 'oil-change' ? 'oil change' : 'measurement'} that was not accepted.</p>
+          <p className="font-semibold">
+            Editing a {kind === 'drain-card' ? 'drain card' : kind === 'oil-change' ? 'oil change' : 'measurement'} that
+            was not accepted.
+          </p>
           {editing.message && <p>✕ {editing.message}</p>}
-          {editing.photos.length > 0 && <p>{formatCount(editing.photos.length, 'photo')} saved with it {editing.photos.length === 1 ? 'is' : 'are'} kept.</p>}
+          {editing.photos.length > 0 && (
+            <p>
+              {formatCount(editing.photos.length, 'photo')} saved with it {editing.photos.length === 1 ? 'is' : 'are'}{' '}
+              kept.
+            </p>
+          )}
         </div>
       )}
-      <p className={status ? 'caution mt-3 font-semibold' : 'sr-only'} role="status" aria-live="polite" data-testid="offline-form-status">{status}</p>
+      <p
+        className={status ? 'caution mt-3 font-semibold' : 'sr-only'}
+        role="status"
+        aria-live="polite"
+        data-testid="offline-form-status"
+      >
+        {status}
+      </p>
       {tagCode && <OfflineTag code={tagCode} formId={formId} machineName={machineName} unit={unit} />}
       <OutboxList kind={kind} />
     </div>
@@ -218,7 +264,17 @@ export default function OfflineForm({ kind, formId, machineId, machineName, part
 }
 
 /** The bottle tag for a code issued on this device: printable, with a QR code that opens the sample once it is sent. */
-function OfflineTag({ code, formId, machineName, unit }: { code: string; formId: string; machineName: string; unit: string }) {
+function OfflineTag({
+  code,
+  formId,
+  machineName,
+  unit,
+}: {
+  code: string;
+  formId: string;
+  machineName: string;
+  unit: string;
+}) {
   const [open, setOpen] = useState(false);
   const [qr, setQr] = useState('');
   const [details, setDetails] = useState<Record<string, string>>({});
@@ -230,7 +286,10 @@ function OfflineTag({ code, formId, machineName, unit }: { code: string; formId:
     setOpen(true);
     // Loaded only when a tag is shown, so the drain card stays light.
     const QRCode = (await import('qrcode')).default;
-    const url = new URL(`/samples/by-code/${encodeURIComponent(code.replace(/-/g, ''))}`, window.location.origin).toString();
+    const url = new URL(
+      `/samples/by-code/${encodeURIComponent(code.replace(/-/g, ''))}`,
+      window.location.origin,
+    ).toString();
     setQr(await QRCode.toString(url, { type: 'svg', errorCorrectionLevel: 'M', margin: 1 }));
   };
   const printTag = () => {
@@ -240,15 +299,32 @@ function OfflineTag({ code, formId, machineName, unit }: { code: string; formId:
   };
   return (
     <div className="mt-3">
-      <button type="button" className="btn-secondary" onClick={() => void show()} aria-expanded={open}>Show bottle tag</button>
+      <button type="button" className="btn-secondary" onClick={() => void show()} aria-expanded={open}>
+        Show bottle tag
+      </button>
       {open && (
-        <div className="mt-2 flex gap-3 rounded-md border-2 border-ink bg-white p-3 text-black" data-testid="offline-tag" data-print-tag>
-          <div className="h-32 w-32 flex-none" aria-label={`QR code for bottle ${code}`} role="img" dangerouslySetInnerHTML={{ __html: qr }} />
+        <div
+          className="mt-2 flex gap-3 rounded-md border-2 border-ink bg-white p-3 text-black"
+          data-testid="offline-tag"
+          data-print-tag
+        >
+          <div
+            className="h-32 w-32 flex-none"
+            aria-label={`QR code for bottle ${code}`}
+            role="img"
+            dangerouslySetInnerHTML={{ __html: qr }}
+          />
           <div>
             <p className="font-mono text-2xl font-bold tracking-wider">{code}</p>
             <p>{machineName}</p>
-            <p className="text-sm">Drawn {details['drawnOn'] ?? ''}{details['odometer'] ? ` at ${details['odometer']} ${unit}` : ''}{details['saeGrade'] ? ` · ${details['saeGrade']}` : ''}</p>
-            <button type="button" className="btn-quiet mt-1 print:hidden" onClick={printTag}>Print</button>
+            <p className="text-sm">
+              Drawn {details['drawnOn'] ?? ''}
+              {details['odometer'] ? ` at ${details['odometer']} ${unit}` : ''}
+              {details['saeGrade'] ? ` · ${details['saeGrade']}` : ''}
+            </p>
+            <button type="button" className="btn-quiet mt-1 print:hidden" onClick={printTag}>
+              Print
+            </button>
           </div>
         </div>
       )}

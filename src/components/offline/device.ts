@@ -28,7 +28,8 @@ const blockKey = (userId: string, crewId: string) => `codes:${userId}:${crewId}`
 export async function refreshCodeBlock(userId: string, crewId: string): Promise<CodeBlock | undefined> {
   try {
     const res = await fetch('/api/samples/reserved-codes', {
-      method: 'POST', credentials: 'same-origin',
+      method: 'POST',
+      credentials: 'same-origin',
       headers: { 'content-type': 'application/json', accept: 'application/json' },
       body: JSON.stringify({ deviceKey: await deviceKey() }),
     });
@@ -51,12 +52,19 @@ export function readCodeBlock(userId: string, crewId: string): Promise<CodeBlock
 }
 
 /** Takes the next reserved code off the block (null when none is left). */
-export async function takeReservedCode(userId: string, crewId: string): Promise<{ code: string; display: string } | null> {
+export async function takeReservedCode(
+  userId: string,
+  crewId: string,
+): Promise<{ code: string; display: string } | null> {
   let taken: { code: string; display: string } | null = null;
-  await update<CodeBlock | undefined>(blockKey(userId, crewId), (block) => {
-    if (!block || block.codes.length === 0) return block;
-    taken = block.codes[0]!;
-    return { ...block, codes: block.codes.slice(1) };
-  }, store);
+  await update<CodeBlock | undefined>(
+    blockKey(userId, crewId),
+    (block) => {
+      if (!block || block.codes.length === 0) return block;
+      taken = block.codes[0]!;
+      return { ...block, codes: block.codes.slice(1) };
+    },
+    store,
+  );
   return taken;
 }

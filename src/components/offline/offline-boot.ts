@@ -16,7 +16,9 @@ const WARMED_KEY = 'sumpwise.warmedAt.v1';
 const OLD_QUEUE_KEY = 'sumpwise.drainCards.v1';
 
 const body = document.body.dataset;
-const session = body['user'] ? { userId: body['user'], crewId: body['crew'] ?? '', crewName: body['crewName'] ?? '', role: body['role'] ?? '' } : null;
+const session = body['user']
+  ? { userId: body['user'], crewId: body['crew'] ?? '', crewName: body['crewName'] ?? '', role: body['role'] ?? '' }
+  : null;
 const savedCopy = document.documentElement.getAttribute(SAVED_COPY_ATTRIBUTE);
 
 function notice(id: string, html: string, tone: 'watch' | 'steady'): HTMLElement {
@@ -36,21 +38,34 @@ const escapeHtml = (s: string) => s.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt
 
 // 1. A saved copy says so, with the time it was saved.
 if (savedCopy !== null) {
-  notice('saved-copy-notice', `<p class="font-semibold" data-testid="saved-copy"><span aria-hidden="true">◷</span> ${escapeHtml(savedCopySentence(savedCopy))}</p>`, 'watch');
+  notice(
+    'saved-copy-notice',
+    `<p class="font-semibold" data-testid="saved-copy"><span aria-hidden="true">◷</span> ${escapeHtml(savedCopySentence(savedCopy))}</p>`,
+    'watch',
+  );
 }
 
 // 2. A form the rider has typed into is never reloaded from under them.
 const formSnapshots = new Map<HTMLFormElement, string>();
-const snapshot = (f: HTMLFormElement) => JSON.stringify([...new FormData(f).entries()].map(([k, v]) => [k, typeof v === 'string' ? v : v.name]));
+const snapshot = (f: HTMLFormElement) =>
+  JSON.stringify([...new FormData(f).entries()].map(([k, v]) => [k, typeof v === 'string' ? v : v.name]));
 for (const f of document.querySelectorAll<HTMLFormElement>('main form')) formSnapshots.set(f, snapshot(f));
 const formIsDirty = () => [...formSnapshots].some(([f, s]) => document.contains(f) && snapshot(f) !== s);
 
 const updateSW = registerSW({
   immediate: true,
   onNeedRefresh() {
-    const el = notice('update-notice', '<p class="font-semibold">A new version of Sumpwise is ready — reload to use it.</p><p class="text-sm">Nothing changes until you reload; finish or save what you are typing first.</p><button type="button" class="btn-secondary mt-2" data-reload>Reload</button>', 'steady');
+    const el = notice(
+      'update-notice',
+      '<p class="font-semibold">A new version of Sumpwise is ready — reload to use it.</p><p class="text-sm">Nothing changes until you reload; finish or save what you are typing first.</p><button type="button" class="btn-secondary mt-2" data-reload>Reload</button>',
+      'steady',
+    );
     el.querySelector('[data-reload]')?.addEventListener('click', () => {
-      if (formIsDirty() && !window.confirm('This form has changes that are not saved yet. Reload anyway and lose them?')) return;
+      if (
+        formIsDirty() &&
+        !window.confirm('This form has changes that are not saved yet. Reload anyway and lose them?')
+      )
+        return;
       void updateSW(true);
     });
   },
@@ -73,14 +88,23 @@ async function warmPages(): Promise<void> {
   if (!session || !navigator.onLine || savedCopy !== null || !('caches' in window)) return;
   const last = Number(localStorage.getItem(WARMED_KEY) ?? '0');
   if (Date.now() - last < WARM_EVERY_MS) return;
-  const res = await fetch('/api/offline/pages', { headers: { accept: 'application/json' }, credentials: 'same-origin' });
+  const res = await fetch('/api/offline/pages', {
+    headers: { accept: 'application/json' },
+    credentials: 'same-origin',
+  });
   if (!res.ok) return;
   const { crewId, pages } = (await res.json()) as { crewId: string; pages: string[] };
   if (crewId !== session.crewId) return;
   const cache = await caches.open(PAGE_CACHE);
   for (const url of pages) {
     const page = await fetch(url, { credentials: 'same-origin', headers: { accept: 'text/html' } }).catch(() => null);
-    if (!page || page.status !== 200 || page.redirected || !(page.headers.get('content-type') ?? '').includes('text/html')) continue;
+    if (
+      !page ||
+      page.status !== 200 ||
+      page.redirected ||
+      !(page.headers.get('content-type') ?? '').includes('text/html')
+    )
+      continue;
     const headers = new Headers(page.headers);
     headers.set(SAVED_AT_HEADER, new Date().toISOString());
     await cache.put(url, new Response(await page.blob(), { status: 200, headers }));
@@ -93,12 +117,28 @@ async function adoptOldQueue(): Promise<void> {
   const raw = localStorage.getItem(OLD_QUEUE_KEY);
   if (!raw || !session) return;
   try {
-    const cards = JSON.parse(raw) as { clientKey: string; machineId: string; machineName: string; body: Record<string, string>; savedAt: string }[];
+    const cards = JSON.parse(raw) as {
+      clientKey: string;
+      machineId: string;
+      machineName: string;
+      body: Record<string, string>;
+      savedAt: string;
+    }[];
     for (const c of Array.isArray(cards) ? cards : []) {
       const item: OutboxItem = {
-        key: c.clientKey, kind: 'drain-card', userId: session.userId, crewId: session.crewId, crewName: session.crewName,
-        machineId: c.machineId, machineName: c.machineName, label: labelOf('drain-card', c.body, ''), fields: c.body, photos: [],
-        savedAt: c.savedAt, state: 'waiting', attempts: 0,
+        key: c.clientKey,
+        kind: 'drain-card',
+        userId: session.userId,
+        crewId: session.crewId,
+        crewName: session.crewName,
+        machineId: c.machineId,
+        machineName: c.machineName,
+        label: labelOf('drain-card', c.body, ''),
+        fields: c.body,
+        photos: [],
+        savedAt: c.savedAt,
+        state: 'waiting',
+        attempts: 0,
       };
       await putOutboxItem(item);
     }
@@ -119,7 +159,11 @@ async function showWaiting(): Promise<void> {
     return;
   }
   const held = items.filter((i) => i.state !== 'waiting' && i.state !== 'sending').length;
-  notice('outbox-notice', `<p><span aria-hidden="true">◷</span> <a href="/outbox" data-testid="outbox-link">${items.length} ${items.length === 1 ? 'write' : 'writes'} waiting to send</a>${held ? ` — ${held} ${held === 1 ? 'needs' : 'need'} you` : ''}.</p>`, 'watch');
+  notice(
+    'outbox-notice',
+    `<p><span aria-hidden="true">◷</span> <a href="/outbox" data-testid="outbox-link">${items.length} ${items.length === 1 ? 'write' : 'writes'} waiting to send</a>${held ? ` — ${held} ${held === 1 ? 'needs' : 'need'} you` : ''}.</p>`,
+    'watch',
+  );
 }
 
 async function send(): Promise<void> {

@@ -1,7 +1,14 @@
 // Sends what waits in the outbox, one write at a time, oldest first. Runs in pages (on load, when the
 // network returns, on "send now") and in the service worker (Background Sync). A Web Lock keeps two of
 // them from sending at once; were both to send anyway, the client key makes the second send write nothing.
-import { checkSession, judgeAnswer, requestOf, sendable, type OutboxItem, type OutboxSession } from '../../lib/offline/outbox';
+import {
+  checkSession,
+  judgeAnswer,
+  requestOf,
+  sendable,
+  type OutboxItem,
+  type OutboxSession,
+} from '../../lib/offline/outbox';
 import { listOutbox, putOutboxItem, removeOutboxItem } from './outbox-store';
 
 export const SYNC_TAG = 'sumpwise-outbox';
@@ -16,13 +23,21 @@ export interface FlushReport {
 export async function readSession(fetchImpl: typeof fetch = fetch): Promise<OutboxSession | null | 'offline'> {
   let res: Response;
   try {
-    res = await fetchImpl('/api/auth/me', { headers: { accept: 'application/json' }, credentials: 'same-origin', cache: 'no-store' });
+    res = await fetchImpl('/api/auth/me', {
+      headers: { accept: 'application/json' },
+      credentials: 'same-origin',
+      cache: 'no-store',
+    });
   } catch {
     return 'offline';
   }
   if (res.status === 401) return null;
   if (!res.ok) return 'offline';
-  const body = (await res.json()) as { user: { id: string }; crew: { crewId: string } | null; crews: { crewId: string; crewName: string }[] };
+  const body = (await res.json()) as {
+    user: { id: string };
+    crew: { crewId: string } | null;
+    crews: { crewId: string; crewName: string }[];
+  };
   return { userId: body.user.id, crewId: body.crew?.crewId ?? null, crews: body.crews };
 }
 
@@ -59,22 +74,42 @@ async function flushNow(fetchImpl: typeof fetch): Promise<FlushReport> {
   for (const item of items) {
     const allowed = checkSession(item, session);
     if (!allowed.ok) {
-      if (item.state !== allowed.state || item.message !== allowed.message) await putOutboxItem({ ...item, state: allowed.state, message: allowed.message });
+      if (item.state !== allowed.state || item.message !== allowed.message)
+        await putOutboxItem({ ...item, state: allowed.state, message: allowed.message });
       continue;
     }
     const now = new Date().toISOString();
-    await putOutboxItem({ ...item, state: 'sending', message: undefined, attempts: item.attempts + 1, lastTriedAt: now });
+    await putOutboxItem({
+      ...item,
+      state: 'sending',
+      message: undefined,
+      attempts: item.attempts + 1,
+      lastTriedAt: now,
+    });
     const answer = await post(item, fetchImpl);
     const verdict = judgeAnswer(item, answer.status, answer.body);
     if (verdict.kind === 'sent') {
       await removeOutboxItem(item.key);
       report.sent.push({ item, url: verdict.url });
     } else if (verdict.kind === 'retry') {
-      await putOutboxItem({ ...item, state: 'waiting', attempts: item.attempts + 1, lastTriedAt: now, message: answer.status === null ? undefined : `The server answered ${answer.status}; it will be tried again.` });
+      await putOutboxItem({
+        ...item,
+        state: 'waiting',
+        attempts: item.attempts + 1,
+        lastTriedAt: now,
+        message: answer.status === null ? undefined : `The server answered ${answer.status}; it will be tried again.`,
+      });
       report.offline = answer.status === null;
       break;
     } else {
-      await putOutboxItem({ ...item, state: verdict.state, message: verdict.message, fieldErrors: verdict.fields, attempts: item.attempts + 1, lastTriedAt: now });
+      await putOutboxItem({
+        ...item,
+        state: verdict.state,
+        message: verdict.message,
+        fieldErrors: verdict.fields,
+        attempts: item.attempts + 1,
+        lastTriedAt: now,
+      });
     }
   }
   return report;
@@ -94,7 +129,8 @@ export async function flushOutbox(fetchImpl: typeof fetch = fetch): Promise<Flus
 /** Asks the browser to send the outbox when the network returns, even with no page open (Background Sync, where the browser has it). */
 export async function requestBackgroundSync(): Promise<void> {
   try {
-    const reg = (await navigator.serviceWorker?.ready) as (ServiceWorkerRegistration & { sync?: { register(tag: string): Promise<void> } }) | undefined;
+    const reg = (await navigator.serviceWorker?.ready) as
+      (ServiceWorkerRegistration & { sync?: { register(tag: string): Promise<void> } }) | undefined;
     await reg?.sync?.register(SYNC_TAG);
   } catch {
     // Not supported, or not allowed: the next visit or "send now" sends it.

@@ -13,8 +13,19 @@ const SHAPES: Record<Level, string> = {
 
 function LevelMark({ level }: { level: Level }) {
   return (
-    <span className="inline-flex items-center gap-1 font-semibold" data-level={level} style={{ color: LEVEL_COLOURS[level] }}>
-      <svg width="14" height="14" viewBox="0 0 20 20" aria-hidden="true" fill="currentColor" dangerouslySetInnerHTML={{ __html: SHAPES[level] }} />
+    <span
+      className="inline-flex items-center gap-1 font-semibold"
+      data-level={level}
+      style={{ color: LEVEL_COLOURS[level] }}
+    >
+      <svg
+        width="14"
+        height="14"
+        viewBox="0 0 20 20"
+        aria-hidden="true"
+        fill="currentColor"
+        dangerouslySetInnerHTML={{ __html: SHAPES[level] }}
+      />
       {level === 'steady' ? 'Steady' : level === 'watch' ? 'Watch' : 'Act'}
     </span>
   );
@@ -25,37 +36,73 @@ export function TrendTable({ data }: { data: TrendResponse }) {
   const meter = data.machine.meter;
   // Open beside the chart on wide screens; folded on a phone, where the tables would push everything down.
   const [open, setOpen] = useState(true);
-  useEffect(() => { if (window.matchMedia('(max-width: 767px)').matches) setOpen(false); }, []);
+  useEffect(() => {
+    if (window.matchMedia('(max-width: 767px)').matches) setOpen(false);
+  }, []);
   return (
-    <details className="rounded-card border border-line bg-paper-raised p-3" open={open} onToggle={(e) => setOpen(e.currentTarget.open)} data-testid="wear-chart-table">
+    <details
+      className="rounded-card border border-line bg-paper-raised p-3"
+      open={open}
+      onToggle={(e) => setOpen(e.currentTarget.open)}
+      data-testid="wear-chart-table"
+    >
       <summary className="min-h-tap cursor-pointer font-semibold">The chart's data as tables</summary>
       {data.series.map((s) => (
         <div key={s.code} className="table-wrap mt-3">
           <table className="data-table whitespace-nowrap" data-measurand={s.code}>
-            <caption className="px-3 py-2 text-left font-semibold">{s.name} ({s.code}), {s.unit}</caption>
+            <caption className="px-3 py-2 text-left font-semibold">
+              {s.name} ({s.code}), {s.unit}
+            </caption>
             <thead>
               <tr>
-                <th scope="col">Bottle</th><th scope="col">Date</th><th scope="col" className="num">Odometer</th>
-                <th scope="col" className="num">On oil</th><th scope="col">Grade</th><th scope="col" className="num">Value</th>
-                <th scope="col">Level</th><th scope="col">Baseline band</th><th scope="col">From baseline</th><th scope="col">In baseline</th>
+                <th scope="col">Bottle</th>
+                <th scope="col">Date</th>
+                <th scope="col" className="num">
+                  Odometer
+                </th>
+                <th scope="col" className="num">
+                  On oil
+                </th>
+                <th scope="col">Grade</th>
+                <th scope="col" className="num">
+                  Value
+                </th>
+                <th scope="col">Level</th>
+                <th scope="col">Baseline band</th>
+                <th scope="col">From baseline</th>
+                <th scope="col">In baseline</th>
               </tr>
             </thead>
             <tbody>
               {s.points.length === 0 && (
-                <tr><td colSpan={10}>No results for {s.name.toLowerCase()} yet.</td></tr>
+                <tr>
+                  <td colSpan={10}>No results for {s.name.toLowerCase()} yet.</td>
+                </tr>
               )}
               {s.points.map((p) => (
                 <tr key={p.sampleId} data-level={p.level}>
-                  <td><a href={`/samples/${p.sampleId}`} className="font-mono">{p.bottleCode}</a></td>
+                  <td>
+                    <a href={`/samples/${p.sampleId}`} className="font-mono">
+                      {p.bottleCode}
+                    </a>
+                  </td>
                   <td>{p.date}</td>
                   <td className="num">{formatDistance(p.odometer, meter)}</td>
                   <td className="num">{formatDistance(p.distanceOnOil, meter)}</td>
                   <td>{p.grade ?? '—'}</td>
-                  <td className="num">{s.basis === 'rate' ? `${formatChartFigure(p.value)} (${formatReported(p)} ppm)` : formatReported(p)}</td>
-                  <td><LevelMark level={p.level} /></td>
+                  <td className="num">
+                    {s.basis === 'rate'
+                      ? `${formatChartFigure(p.value)} (${formatReported(p)} ppm)`
+                      : formatReported(p)}
+                  </td>
+                  <td>
+                    <LevelMark level={p.level} />
+                  </td>
                   <td>{formatBand(p)}</td>
                   <td>{formatFromBaseline(p)}</td>
-                  <td data-testid="in-baseline" data-in-baseline={String(p.inBaseline)}>{p.inBaseline ? 'Yes' : `No: ${p.baselineNote ?? 'kept out'}`}</td>
+                  <td data-testid="in-baseline" data-in-baseline={String(p.inBaseline)}>
+                    {p.inBaseline ? 'Yes' : `No: ${p.baselineNote ?? 'kept out'}`}
+                  </td>
                 </tr>
               ))}
             </tbody>

@@ -92,10 +92,14 @@ export default function WearChart({ machineId, initial }: Props) {
     const controller = new AbortController();
     setState({ status: 'loading' });
     const q = new URLSearchParams({ measurands: codes.join(','), basis, x: axis });
-    fetch(`/api/trends/${encodeURIComponent(machineId)}?${q}`, { signal: controller.signal, headers: { accept: 'application/json' } })
+    fetch(`/api/trends/${encodeURIComponent(machineId)}?${q}`, {
+      signal: controller.signal,
+      headers: { accept: 'application/json' },
+    })
       .then(async (res) => {
         const body = (await res.json()) as CompactTrendResponse | { error: { message: string } };
-        if (!res.ok || 'error' in body) throw new Error('error' in body ? body.error.message : `The server answered ${res.status}.`);
+        if (!res.ok || 'error' in body)
+          throw new Error('error' in body ? body.error.message : `The server answered ${res.status}.`);
         setState({ status: 'ready', data: expandTrendResponse(body) });
       })
       .catch((e: unknown) => {
@@ -110,14 +114,21 @@ export default function WearChart({ machineId, initial }: Props) {
 
   const ready = state.status === 'ready' ? state.data : null;
   const [meter, setMeter] = useState<string | null>(null);
-  useEffect(() => { if (ready) setMeter(ready.machine.meter); }, [ready]);
+  useEffect(() => {
+    if (ready) setMeter(ready.machine.meter);
+  }, [ready]);
   const chart = useMemo(() => (ready ? buildChart(ready) : null), [ready]);
   const empty = ready !== null && ready.series.every((s) => s.points.length === 0);
 
   const named = (code: string) => MEASURANDS.find((m) => m.code === code)?.name ?? code;
 
   const settings = (
-    <form className="space-y-3" onSubmit={(e) => e.preventDefault()} aria-label="Wear chart settings" data-testid="wear-chart-settings">
+    <form
+      className="space-y-3"
+      onSubmit={(e) => e.preventDefault()}
+      aria-label="Wear chart settings"
+      data-testid="wear-chart-settings"
+    >
       <div className="flex flex-wrap items-center gap-2" aria-label="Elements drawn" role="group">
         <span className="text-sm font-semibold">Drawn:</span>
         {codes.map((code) => (
@@ -143,8 +154,18 @@ export default function WearChart({ machineId, initial }: Props) {
               <legend className="px-1 text-sm font-semibold">{g.label}</legend>
               <div className="flex flex-wrap gap-1">
                 {MEASURANDS.filter((m) => m.group === g.group).map((m) => (
-                  <label key={m.code} className="flex min-h-tap min-w-tap cursor-pointer items-center gap-1 rounded px-2 hover:bg-paper-sunk" title={m.name}>
-                    <input type="checkbox" checked={codes.includes(m.code)} onChange={() => toggle(m.code)} className="h-5 w-5" aria-label={m.name} />
+                  <label
+                    key={m.code}
+                    className="flex min-h-tap min-w-tap cursor-pointer items-center gap-1 rounded px-2 hover:bg-paper-sunk"
+                    title={m.name}
+                  >
+                    <input
+                      type="checkbox"
+                      checked={codes.includes(m.code)}
+                      onChange={() => toggle(m.code)}
+                      className="h-5 w-5"
+                      aria-label={m.name}
+                    />
                     <span className="font-mono text-sm">{m.code}</span>
                   </label>
                 ))}
@@ -158,8 +179,19 @@ export default function WearChart({ machineId, initial }: Props) {
           <legend className="px-1 text-sm font-semibold">Values</legend>
           {(['ppm', 'rate'] as const).map((b) => (
             <label key={b} className="flex min-h-tap items-center gap-2 px-1">
-              <input type="radio" name="basis" value={b} checked={basis === b} onChange={() => setBasis(b)} className="h-5 w-5" />
-              {b === 'ppm' ? 'Raw ppm' : meter === 'h' ? 'Per 100 h of oil use' : `Per 1,000 ${meter ?? 'mi/km'} of oil use`}
+              <input
+                type="radio"
+                name="basis"
+                value={b}
+                checked={basis === b}
+                onChange={() => setBasis(b)}
+                className="h-5 w-5"
+              />
+              {b === 'ppm'
+                ? 'Raw ppm'
+                : meter === 'h'
+                  ? 'Per 100 h of oil use'
+                  : `Per 1,000 ${meter ?? 'mi/km'} of oil use`}
             </label>
           ))}
         </fieldset>
@@ -167,7 +199,14 @@ export default function WearChart({ machineId, initial }: Props) {
           <legend className="px-1 text-sm font-semibold">Across</legend>
           {(['odometer', 'date'] as const).map((a) => (
             <label key={a} className="flex min-h-tap items-center gap-2 px-1">
-              <input type="radio" name="axis" value={a} checked={axis === a} onChange={() => setAxis(a)} className="h-5 w-5" />
+              <input
+                type="radio"
+                name="axis"
+                value={a}
+                checked={axis === a}
+                onChange={() => setAxis(a)}
+                className="h-5 w-5"
+              />
               {a === 'odometer' ? (meter === 'h' ? 'Hour meter' : 'Odometer') : 'Date'}
             </label>
           ))}
@@ -181,14 +220,22 @@ export default function WearChart({ machineId, initial }: Props) {
     <div className="space-y-4" data-testid="wear-chart">
       <div aria-live="polite" className="min-h-[1.5rem]">
         {codes.length === 0 && <p>Pick at least one element to draw.</p>}
-        {codes.length > 0 && state.status === 'loading' && <p data-testid="wear-chart-loading">Loading the wear chart…</p>}
+        {codes.length > 0 && state.status === 'loading' && (
+          <p data-testid="wear-chart-loading">Loading the wear chart…</p>
+        )}
         {state.status === 'error' && (
           <div role="alert" className="rounded-card border-l-8 border-level-act bg-level-act-bg p-3">
             <p>The wear chart could not be loaded: {state.message}</p>
-            <button type="button" className="btn-secondary mt-2" onClick={() => setAttempt((n) => n + 1)}>Try again</button>
+            <button type="button" className="btn-secondary mt-2" onClick={() => setAttempt((n) => n + 1)}>
+              Try again
+            </button>
           </div>
         )}
-        {empty && <p data-testid="wear-chart-empty">No results for these elements yet. The chart fills in as lab results come in.</p>}
+        {empty && (
+          <p data-testid="wear-chart-empty">
+            No results for these elements yet. The chart fills in as lab results come in.
+          </p>
+        )}
       </div>
 
       {ready && chart && !empty && (
@@ -203,7 +250,9 @@ export default function WearChart({ machineId, initial }: Props) {
           </figure>
           <Legend data={ready} />
           {ready.notes.map((n) => (
-            <p key={n} className="text-sm text-ink-soft">{n}</p>
+            <p key={n} className="text-sm text-ink-soft">
+              {n}
+            </p>
           ))}
         </>
       )}
@@ -215,7 +264,8 @@ export default function WearChart({ machineId, initial }: Props) {
 
 /** The label of a crew reference band on the chart, when any point was judged against one. */
 function crewLabel(data: TrendResponse): string | undefined {
-  for (const s of data.series) for (const p of s.points) if (p.band?.source === 'crew' && p.band.sourceLabel) return p.band.sourceLabel;
+  for (const s of data.series)
+    for (const p of s.points) if (p.band?.source === 'crew' && p.band.sourceLabel) return p.band.sourceLabel;
   return undefined;
 }
 
@@ -224,14 +274,24 @@ function Legend({ data }: { data: TrendResponse }) {
     <ul className="flex flex-wrap gap-x-4 gap-y-1 text-sm" aria-label="Chart key">
       {data.series.map((s, i) => (
         <li key={s.code} className="flex items-center gap-2">
-          <span aria-hidden="true" className="inline-block h-1 w-6" style={{ background: SERIES_COLOURS[i % SERIES_COLOURS.length] }} />
+          <span
+            aria-hidden="true"
+            className="inline-block h-1 w-6"
+            style={{ background: SERIES_COLOURS[i % SERIES_COLOURS.length] }}
+          />
           {s.name} ({s.unit})
         </li>
       ))}
-      <li className="flex items-center gap-2"><span aria-hidden="true" className="inline-block h-3 w-6 bg-steel-100" />Baseline band</li>
+      <li className="flex items-center gap-2">
+        <span aria-hidden="true" className="inline-block h-3 w-6 bg-steel-100" />
+        Baseline band
+      </li>
       {crewLabel(data) && (
         <li className="flex items-center gap-2" data-testid="crew-reference-legend">
-          <span aria-hidden="true" className="inline-block h-3 w-6 border border-dashed border-steel-700 bg-steel-100" />
+          <span
+            aria-hidden="true"
+            className="inline-block h-3 w-6 border border-dashed border-steel-700 bg-steel-100"
+          />
           Early band: crew reference {crewLabel(data)}
         </li>
       )}
@@ -247,7 +307,9 @@ function Legend({ data }: { data: TrendResponse }) {
       ))}
       {data.series.some((s) => s.points.some((p) => !p.inBaseline)) && (
         <li className="flex items-center gap-1">
-          <svg width="12" height="12" viewBox="0 0 20 20" aria-hidden="true"><circle cx="10" cy="10" r="6" fill="#ffffff" stroke="currentColor" strokeWidth="3" /></svg>
+          <svg width="12" height="12" viewBox="0 0 20 20" aria-hidden="true">
+            <circle cx="10" cy="10" r="6" fill="#ffffff" stroke="currentColor" strokeWidth="3" />
+          </svg>
           hollow: kept out of the baseline
         </li>
       )}
@@ -256,21 +318,44 @@ function Legend({ data }: { data: TrendResponse }) {
   );
 }
 
-function buildChart(data: TrendResponse): { data: { datasets: ChartDataset<'line', XYPoint[]>[] }; options: ChartOptions<'line'> } {
+function buildChart(data: TrendResponse): {
+  data: { datasets: ChartDataset<'line', XYPoint[]>[] };
+  options: ChartOptions<'line'>;
+} {
   const specs = buildChartDatasets(data, SERIES_COLOURS);
   const meter = data.machine.meter;
   const datasets: ChartDataset<'line', XYPoint[]>[] = specs.map((spec) => {
     if (spec.kind === 'band-lower') {
-      return { label: spec.label, data: spec.data, borderWidth: 0, pointRadius: 0, pointHitRadius: 0, fill: false, borderColor: 'transparent' };
+      return {
+        label: spec.label,
+        data: spec.data,
+        borderWidth: 0,
+        pointRadius: 0,
+        pointHitRadius: 0,
+        fill: false,
+        borderColor: 'transparent',
+      };
     }
     if (spec.kind === 'band-upper') {
       return {
-        label: spec.label, data: spec.data, borderWidth: 1, borderDash: [3, 3], borderColor: withAlpha(spec.colour, 0.45),
-        backgroundColor: withAlpha(spec.colour, 0.12), pointRadius: 0, pointHitRadius: 0, fill: '-1',
+        label: spec.label,
+        data: spec.data,
+        borderWidth: 1,
+        borderDash: [3, 3],
+        borderColor: withAlpha(spec.colour, 0.45),
+        backgroundColor: withAlpha(spec.colour, 0.12),
+        pointRadius: 0,
+        pointHitRadius: 0,
+        fill: '-1',
       };
     }
     return {
-      label: spec.label, data: spec.data, borderColor: spec.colour, borderWidth: 2, fill: false, tension: 0,
+      label: spec.label,
+      data: spec.data,
+      borderColor: spec.colour,
+      borderWidth: 2,
+      fill: false,
+      tension: 0,
       pointStyle: spec.levels.map(pointStyleFor),
       pointRadius: spec.levels.map(pointRadiusFor),
       pointHoverRadius: spec.levels.map((l) => pointRadiusFor(l) + 2),
@@ -292,9 +377,23 @@ function buildChart(data: TrendResponse): { data: { datasets: ChartDataset<'line
       x: {
         type: 'linear',
         title: { display: true, text: data.x === 'date' ? 'Date drawn' : `Odometer (${meter})` },
-        ticks: { callback: (v) => (data.x === 'date' ? xToDate(Number(v)) : Number(v).toLocaleString('en-US')), maxRotation: 0, autoSkip: true },
+        ticks: {
+          callback: (v) => (data.x === 'date' ? xToDate(Number(v)) : Number(v).toLocaleString('en-US')),
+          maxRotation: 0,
+          autoSkip: true,
+        },
       },
-      y: { type: 'linear', beginAtZero: true, title: { display: true, text: data.series.map((s) => s.unit).filter((u, i, a) => a.indexOf(u) === i).join(' · ') } },
+      y: {
+        type: 'linear',
+        beginAtZero: true,
+        title: {
+          display: true,
+          text: data.series
+            .map((s) => s.unit)
+            .filter((u, i, a) => a.indexOf(u) === i)
+            .join(' · '),
+        },
+      },
     },
     plugins: {
       tooltip: {

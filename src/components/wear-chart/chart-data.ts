@@ -37,8 +37,24 @@ export function buildChartDatasets(data: TrendResponse, colours: readonly string
     const withBand = s.points.filter((p) => p.band !== null);
     const lower: XYPoint[] = withBand.map((p) => ({ x: xOf(p, data.x), y: p.band!.lower, point: p }));
     const upper: XYPoint[] = withBand.map((p) => ({ x: xOf(p, data.x), y: p.band!.upper, point: p }));
-    out.push({ kind: 'band-lower', code: s.code, label: `${s.code} baseline band (lower)`, data: lower, colour, levels: [], excluded: [] });
-    out.push({ kind: 'band-upper', code: s.code, label: `${s.code} baseline band`, data: upper, colour, levels: [], excluded: [] });
+    out.push({
+      kind: 'band-lower',
+      code: s.code,
+      label: `${s.code} baseline band (lower)`,
+      data: lower,
+      colour,
+      levels: [],
+      excluded: [],
+    });
+    out.push({
+      kind: 'band-upper',
+      code: s.code,
+      label: `${s.code} baseline band`,
+      data: upper,
+      colour,
+      levels: [],
+      excluded: [],
+    });
     out.push({
       kind: 'line',
       code: s.code,
@@ -54,5 +70,8 @@ export function buildChartDatasets(data: TrendResponse, colours: readonly string
 
 /** Grade changes as x positions on the chosen axis, with their label. */
 export function buildGradeMarks(data: TrendResponse): { x: number; label: string }[] {
-  return data.gradeChanges.map((g) => ({ x: data.x === 'date' ? dateToX(g.date) : g.odometer, label: `${g.from} → ${g.to}` }));
+  return data.gradeChanges.map((g) => ({
+    x: data.x === 'date' ? dateToX(g.date) : g.odometer,
+    label: `${g.from} → ${g.to}`,
+  }));
 }

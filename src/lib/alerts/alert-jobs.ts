@@ -40,13 +40,23 @@ export async function registerAlertJobs(boss: PgBoss, options: AlertJobOptions):
   const env = options.env ? { env: options.env } : {};
   for (const name of [REMINDERS_QUEUE, DIGEST_QUEUE] as const) {
     // `stately`: at most one run queued and one active, so a slow run is never overlapped by the next tick.
-    await boss.createQueue(name, { name, policy: 'stately', retryLimit: 3, retryDelay: 60, retryBackoff: true, expireInSeconds: 30 * 60 });
+    await boss.createQueue(name, {
+      name,
+      policy: 'stately',
+      retryLimit: 3,
+      retryDelay: 60,
+      retryBackoff: true,
+      expireInSeconds: 30 * 60,
+    });
     await boss.schedule(name, ALERT_SCHEDULES[name], {}, { tz: 'UTC' });
   }
   const polling = { pollingIntervalSeconds: options.pollingIntervalSeconds ?? 30 };
   await boss.work(REMINDERS_QUEUE, polling, async () => {
     const report = await runReminders(options.db, { now: now(), ...env });
-    const queued = (report.sampleDue.immediate ?? 0) + (report.shippedOverdue.immediate ?? 0) + (report.invitationPending.immediate ?? 0);
+    const queued =
+      (report.sampleDue.immediate ?? 0) +
+      (report.shippedOverdue.immediate ?? 0) +
+      (report.invitationPending.immediate ?? 0);
     if (queued > 0) log(`[alerts] reminders: ${queued} queued`);
     return report;
   });

@@ -58,7 +58,12 @@ export interface ImportMachineInput {
 }
 
 /** The mail after a lab import: every machine of the recipient's with findings at watch or act, act first. */
-export function composeImportFindingsAlert(input: { crewName: string; fileName: string; homeUrl: string; machines: ImportMachineInput[] }): AlertContent {
+export function composeImportFindingsAlert(input: {
+  crewName: string;
+  fileName: string;
+  homeUrl: string;
+  machines: ImportMachineInput[];
+}): AlertContent {
   const all = input.machines.flatMap((m) => m.samples.flatMap((s) => s.findings));
   const acts = all.filter((f) => f.level === 'act').length;
   const watches = all.length - acts;
@@ -70,7 +75,9 @@ export function composeImportFindingsAlert(input: { crewName: string; fileName: 
     for (const s of m.samples) {
       const ordered = [...s.findings].sort((a, b) => byLevelWorstFirst(a.level, b.level));
       for (const f of ordered) {
-        lines.push({ text: `${LEVEL_DISPLAY[f.level].word}${f.measurand ? ` · ${f.measurand}` : ''} (bottle ${s.bottleCode}, drawn ${s.drawnOn}): ${f.sentence}` });
+        lines.push({
+          text: `${LEVEL_DISPLAY[f.level].word}${f.measurand ? ` · ${f.measurand}` : ''} (bottle ${s.bottleCode}, drawn ${s.drawnOn}): ${f.sentence}`,
+        });
       }
       lines.push({ text: `Sample ${s.bottleCode}, readings and findings`, url: s.url });
     }
@@ -98,9 +105,13 @@ export function composeSampleDueAlert(input: {
   estimatedOdometer: number | null;
 }): AlertContent {
   const why: string[] = [];
-  if (input.reasons.includes('date') && input.nextSampleOn) why.push(`the next sample was due on ${input.nextSampleOn}`);
+  if (input.reasons.includes('date') && input.nextSampleOn)
+    why.push(`the next sample was due on ${input.nextSampleOn}`);
   if (input.reasons.includes('odometer') && input.nextSampleOdometer !== null) {
-    const est = input.estimatedOdometer === null ? '' : ` and, from its recent riding, it is probably near ${formatMeter(input.estimatedOdometer, input.meter)} now`;
+    const est =
+      input.estimatedOdometer === null
+        ? ''
+        : ` and, from its recent riding, it is probably near ${formatMeter(input.estimatedOdometer, input.meter)} now`;
     why.push(`the next sample is due at ${formatMeter(input.nextSampleOdometer, input.meter)}${est}`);
   }
   return {
@@ -109,7 +120,9 @@ export function composeSampleDueAlert(input: {
     title: `${input.machineName}: next sample due`,
     intro: `In ${input.crewName}, ${why.join('; ') || 'the next sample is due'}.`,
     lines: [
-      { text: 'Draw the sample warm, at the next oil change or from the valve, and fill in a drain card in the garage. Hot oil burns: wear gloves and eye protection, and take the used oil to a collection point.' },
+      {
+        text: 'Draw the sample warm, at the next oil change or from the valve, and fill in a drain card in the garage. Hot oil burns: wear gloves and eye protection, and take the used oil to a collection point.',
+      },
       { text: `${input.machineName}, its interval call and wear chart`, url: input.machineUrl },
     ],
     action: { label: 'Fill in a drain card', url: input.drainCardUrl },
@@ -131,14 +144,23 @@ export function composeShippedOverdueAlert(input: {
     title: `Bottle ${input.bottleCode}: no results after ${formatCount(input.days, 'day')}`,
     intro: `The bottle from ${input.machineName} in ${input.crewName} was shipped on ${input.shippedOn} and no lab results have been imported since.`,
     lines: [
-      { text: 'Ask the lab whether it arrived, or import their results if they came by another route. A note on the sample keeps the crew in the picture.' },
+      {
+        text: 'Ask the lab whether it arrived, or import their results if they came by another route. A note on the sample keeps the crew in the picture.',
+      },
     ],
     action: { label: 'Open the sample', url: input.sampleUrl },
   };
 }
 
 /** The reminder to a lead that an invitation has waited `days` days. */
-export function composeInvitationPendingAlert(input: { crewName: string; email: string; invitedOn: string; days: number; crewUrl: string; expired: boolean }): AlertContent {
+export function composeInvitationPendingAlert(input: {
+  crewName: string;
+  email: string;
+  invitedOn: string;
+  days: number;
+  crewUrl: string;
+  expired: boolean;
+}): AlertContent {
   return {
     kind: 'invitation_pending',
     subject: fitSubject(`Invitation to ${input.crewName} not accepted yet: ${input.email}`),
@@ -165,7 +187,15 @@ export function renderAlertMail(content: AlertContent, links: AlertFooterLinks):
     action: content.action,
     footer: 'You receive this because of your Sumpwise account and your crew. Findings are advice, not a diagnosis.',
   });
-  return { subject: content.subject, text, html: linkifyParagraphs(html, [...content.lines.flatMap((l) => (l.url ? [l.url] : [])), links.unsubscribeUrl, links.preferencesUrl]) };
+  return {
+    subject: content.subject,
+    text,
+    html: linkifyParagraphs(html, [
+      ...content.lines.flatMap((l) => (l.url ? [l.url] : [])),
+      links.unsubscribeUrl,
+      links.preferencesUrl,
+    ]),
+  };
 }
 
 /** One stored digest item: an alert already composed, with its crew. */
@@ -176,7 +206,10 @@ export interface DigestEntry {
 }
 
 /** Renders the daily digest: every waiting alert of the user, grouped by crew, in one message. */
-export function renderDigestMail(input: { day: string; homeUrl: string; entries: DigestEntry[] }, links: AlertFooterLinks): RenderedAlert {
+export function renderDigestMail(
+  input: { day: string; homeUrl: string; entries: DigestEntry[] },
+  links: AlertFooterLinks,
+): RenderedAlert {
   const paragraphs: string[] = [];
   const urls: string[] = [];
   const crews = [...new Set(input.entries.map((e) => e.crewName))];
@@ -234,7 +267,10 @@ function linkifyParagraphs(html: string, urls: readonly string[]): string {
   // One pass, longest address first, so an address that starts another one is never linked inside it.
   const pattern = new RegExp(escaped.map((u) => u.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')).join('|'), 'g');
   return html.replace(/(<p\b[^>]*>)([^<]*)(<\/p>)/g, (_m, open: string, body: string, close: string) => {
-    const out = body.replace(pattern, (u) => `<a href="${u}" style="color:#1f4560;text-decoration:underline;">${u}</a>`);
+    const out = body.replace(
+      pattern,
+      (u) => `<a href="${u}" style="color:#1f4560;text-decoration:underline;">${u}</a>`,
+    );
     return `${open}${out.replace(/:\n/g, ': ')}${close}`;
   });
 }

@@ -13,7 +13,12 @@ export interface RecipientRow {
 }
 
 /** The crew's members of the given roles, plus the given users if they are members (any role). */
-export async function listCrewRecipients(db: Db, crewId: string, roles: readonly Role[], alsoUserIds: readonly string[] = []): Promise<RecipientRow[]> {
+export async function listCrewRecipients(
+  db: Db,
+  crewId: string,
+  roles: readonly Role[],
+  alsoUserIds: readonly string[] = [],
+): Promise<RecipientRow[]> {
   const { rows } = await sql<RecipientRow>`
     select u.id as user_id, u.email, u.display_name, cm.role, (u.email_verified_at is not null) as email_verified
     from crew_members cm join users u on u.id = cm.user_id
@@ -73,7 +78,13 @@ export async function insertAlertDelivery(
 ): Promise<boolean> {
   const written = await db
     .insertInto('alert_deliveries')
-    .values({ dedupe_key: row.dedupeKey, user_id: row.userId, crew_id: row.crewId, kind: row.kind, delivery: row.delivery })
+    .values({
+      dedupe_key: row.dedupeKey,
+      user_id: row.userId,
+      crew_id: row.crewId,
+      kind: row.kind,
+      delivery: row.delivery,
+    })
     .onConflict((oc) => oc.column('dedupe_key').doNothing())
     .returning('dedupe_key')
     .executeTakeFirst();
@@ -87,7 +98,14 @@ export async function insertDigestItem(
 ): Promise<void> {
   await db
     .insertInto('alert_digest_items')
-    .values({ dedupe_key: row.dedupeKey, user_id: row.userId, crew_id: row.crewId, kind: row.kind, title: row.title, lines: JSON.stringify(row.lines) })
+    .values({
+      dedupe_key: row.dedupeKey,
+      user_id: row.userId,
+      crew_id: row.crewId,
+      kind: row.kind,
+      title: row.title,
+      lines: JSON.stringify(row.lines),
+    })
     .execute();
 }
 
@@ -106,7 +124,14 @@ export async function listUsersWithPendingDigest(db: Db, before: Date): Promise<
 
 /** Locks a user's waiting digest items (skipping ones another digest run holds), oldest first, with crew names. */
 export async function lockPendingDigestItems(trx: Transaction<Database>, userId: string, before: Date) {
-  const { rows } = await sql<{ id: string; crew_id: string; crew_name: string; kind: NotificationKind; title: string; lines: AlertLine[] }>`
+  const { rows } = await sql<{
+    id: string;
+    crew_id: string;
+    crew_name: string;
+    kind: NotificationKind;
+    title: string;
+    lines: AlertLine[];
+  }>`
     select i.id, i.crew_id, c.name as crew_name, i.kind, i.title, i.lines
     from alert_digest_items i join crews c on c.id = i.crew_id
     where i.user_id = ${userId} and i.digested_at is null and i.created_at <= ${before}
@@ -116,9 +141,18 @@ export async function lockPendingDigestItems(trx: Transaction<Database>, userId:
 }
 
 /** Marks digest items as sent in the digest with this key. */
-export async function markDigested(trx: Transaction<Database>, ids: readonly string[], digestKey: string, at: Date): Promise<void> {
+export async function markDigested(
+  trx: Transaction<Database>,
+  ids: readonly string[],
+  digestKey: string,
+  at: Date,
+): Promise<void> {
   if (ids.length === 0) return;
-  await trx.updateTable('alert_digest_items').set({ digested_at: at, digest_key: digestKey }).where('id', 'in', [...ids]).execute();
+  await trx
+    .updateTable('alert_digest_items')
+    .set({ digested_at: at, digest_key: digestKey })
+    .where('id', 'in', [...ids])
+    .execute();
 }
 
 /** Whether a message with this idempotency key is already in the outbox (sent or waiting). */
@@ -129,5 +163,9 @@ export async function hasOutboxKey(db: Db, key: string): Promise<boolean> {
 
 /** A user's address and whether it is confirmed. */
 export async function findUserAddress(db: Db, userId: string) {
-  return db.selectFrom('users').select(['id', 'email', 'display_name', sql<boolean>`email_verified_at is not null`.as('email_verified')]).where('id', '=', userId).executeTakeFirst();
+  return db
+    .selectFrom('users')
+    .select(['id', 'email', 'display_name', sql<boolean>`email_verified_at is not null`.as('email_verified')])
+    .where('id', '=', userId)
+    .executeTakeFirst();
 }

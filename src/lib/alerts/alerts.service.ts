@@ -11,11 +11,34 @@ import { getConfig } from '../config';
 import type { Database, NotificationKind } from '../db/database';
 import { queueMail } from '../mail/mail.service';
 import { resolveDeliveries } from '../notification-preferences/notification-preferences.service';
-import { buildUnsubscribeHeaders, composeImportFindingsAlert, renderAlertMail, renderDigestMail, type AlertContent, type ImportMachineInput } from './alert-mail';
-import { describeUnsubscribeScope, formatUtcDay, isDeliverableAddress, MAIL_KIND, type AlertEnv, type AlertOutcome } from './alerts';
 import {
-  findImportHeader, findUserAddress, hasOutboxKey, insertAlertDelivery, insertDigestItem, listCrewRecipients, listImportFindings,
-  listUsersWithPendingDigest, lockPendingDigestItems, markDigested, type RecipientRow,
+  buildUnsubscribeHeaders,
+  composeImportFindingsAlert,
+  renderAlertMail,
+  renderDigestMail,
+  type AlertContent,
+  type ImportMachineInput,
+} from './alert-mail';
+import {
+  describeUnsubscribeScope,
+  formatUtcDay,
+  isDeliverableAddress,
+  MAIL_KIND,
+  type AlertEnv,
+  type AlertOutcome,
+} from './alerts';
+import {
+  findImportHeader,
+  findUserAddress,
+  hasOutboxKey,
+  insertAlertDelivery,
+  insertDigestItem,
+  listCrewRecipients,
+  listImportFindings,
+  listUsersWithPendingDigest,
+  lockPendingDigestItems,
+  markDigested,
+  type RecipientRow,
 } from './alerts.repository';
 import { readAppSecret } from './secret';
 import { signUnsubscribeToken, type UnsubscribeScope } from './unsubscribe-token';
@@ -51,7 +74,12 @@ export async function deliverAlerts(
   env: AlertEnv,
   input: { crewId: string; crewName: string; kind: NotificationKind; alerts: readonly AlertForRecipient[] },
 ): Promise<AlertOutcome[]> {
-  const deliveries = await resolveDeliveries(db, input.crewId, input.kind, input.alerts.map((a) => a.recipient.user_id));
+  const deliveries = await resolveDeliveries(
+    db,
+    input.crewId,
+    input.kind,
+    input.alerts.map((a) => a.recipient.user_id),
+  );
   const outcomes: AlertOutcome[] = [];
   for (const alert of input.alerts) {
     const { recipient } = alert;
@@ -66,13 +94,26 @@ export async function deliverAlerts(
       outcomes.push('unconfirmed');
       continue;
     }
-    const fresh = await insertAlertDelivery(db, { dedupeKey: alert.dedupeKey, userId: recipient.user_id, crewId: input.crewId, kind: input.kind, delivery });
+    const fresh = await insertAlertDelivery(db, {
+      dedupeKey: alert.dedupeKey,
+      userId: recipient.user_id,
+      crewId: input.crewId,
+      kind: input.kind,
+      delivery,
+    });
     if (!fresh) {
       outcomes.push('duplicate');
       continue;
     }
     if (delivery === 'digest') {
-      await insertDigestItem(db, { dedupeKey: alert.dedupeKey, userId: recipient.user_id, crewId: input.crewId, kind: input.kind, title: alert.content.title, lines: alert.content.lines });
+      await insertDigestItem(db, {
+        dedupeKey: alert.dedupeKey,
+        userId: recipient.user_id,
+        crewId: input.crewId,
+        kind: input.kind,
+        title: alert.content.title,
+        lines: alert.content.lines,
+      });
       outcomes.push('digest');
       continue;
     }
@@ -101,7 +142,11 @@ export async function deliverAlerts(
  * per recipient (the machine's rider, the crew's mechanics and leads) listing their machines with findings at
  * watch or act. Nothing when the import brought none.
  */
-export async function queueImportAlerts(trx: Db, importId: string, env: AlertEnv = loadAlertEnv()): Promise<AlertOutcome[]> {
+export async function queueImportAlerts(
+  trx: Db,
+  importId: string,
+  env: AlertEnv = loadAlertEnv(),
+): Promise<AlertOutcome[]> {
   const header = await findImportHeader(trx, importId);
   if (!header) return [];
   const rows = await listImportFindings(trx, importId);
@@ -111,12 +156,20 @@ export async function queueImportAlerts(trx: Db, importId: string, env: AlertEnv
   for (const r of rows) {
     let m = machines.get(r.machine_id);
     if (!m) {
-      m = { owner: r.owner_user_id, input: { name: r.machine_name, url: `${env.publicUrl}/machines/${r.machine_id}`, samples: [] } };
+      m = {
+        owner: r.owner_user_id,
+        input: { name: r.machine_name, url: `${env.publicUrl}/machines/${r.machine_id}`, samples: [] },
+      };
       machines.set(r.machine_id, m);
     }
     let s = m.input.samples.find((x) => x.url.endsWith(`/${r.sample_id}`));
     if (!s) {
-      s = { bottleCode: r.bottle_code, drawnOn: r.drawn_on, url: `${env.publicUrl}/samples/${r.sample_id}`, findings: [] };
+      s = {
+        bottleCode: r.bottle_code,
+        drawnOn: r.drawn_on,
+        url: `${env.publicUrl}/samples/${r.sample_id}`,
+        findings: [],
+      };
       m.input.samples.push(s);
     }
     s.findings.push({ level: r.level, measurand: r.measurand, sentence: r.sentence });
@@ -127,15 +180,27 @@ export async function queueImportAlerts(trx: Db, importId: string, env: AlertEnv
   const alerts: AlertForRecipient[] = [];
   for (const recipient of recipients) {
     // Mechanics and leads look after every machine of the crew; a rider hears about their own.
-    const theirs = [...machines.values()].filter((m) => recipient.role !== 'rider' || m.owner === recipient.user_id).map((m) => m.input);
+    const theirs = [...machines.values()]
+      .filter((m) => recipient.role !== 'rider' || m.owner === recipient.user_id)
+      .map((m) => m.input);
     if (theirs.length === 0) continue;
     alerts.push({
       recipient,
       dedupeKey: `import-alert:${importId}:${recipient.user_id}`,
-      content: composeImportFindingsAlert({ crewName: header.crew_name, fileName: header.file_name, homeUrl: `${env.publicUrl}/`, machines: theirs }),
+      content: composeImportFindingsAlert({
+        crewName: header.crew_name,
+        fileName: header.file_name,
+        homeUrl: `${env.publicUrl}/`,
+        machines: theirs,
+      }),
     });
   }
-  return deliverAlerts(trx, env, { crewId: header.crew_id, crewName: header.crew_name, kind: 'import_findings', alerts });
+  return deliverAlerts(trx, env, {
+    crewId: header.crew_id,
+    crewName: header.crew_name,
+    kind: 'import_findings',
+    alerts,
+  });
 }
 
 /** What one digest run did. */
@@ -149,7 +214,10 @@ export interface DigestReport {
  * Queues one digest per user with waiting items filed up to `now`, each in its own transaction that locks the
  * items, queues `digest:<userId>:<day>` and marks the items; a re-run on the same day sends nothing again.
  */
-export async function sendDailyDigests(db: Kysely<Database>, options: { now: Date; env?: AlertEnv }): Promise<DigestReport> {
+export async function sendDailyDigests(
+  db: Kysely<Database>,
+  options: { now: Date; env?: AlertEnv },
+): Promise<DigestReport> {
   const env = options.env ?? loadAlertEnv();
   const day = formatUtcDay(options.now);
   const report: DigestReport = { queued: 0, deferred: 0 };
@@ -163,13 +231,34 @@ export async function sendDailyDigests(db: Kysely<Database>, options: { now: Dat
       if (user && user.email_verified && isDeliverableAddress(user.email)) {
         const links = buildUnsubscribeLinks(env, { userId, crewId: null, kind: 'digest' });
         const mail = renderDigestMail(
-          { day, homeUrl: `${env.publicUrl}/`, entries: items.map((i) => ({ crewName: i.crew_name, title: i.title, lines: i.lines })) },
-          { unsubscribeUrl: links.pageUrl, unsubscribeWhat: describeUnsubscribeScope('digest', null), preferencesUrl: links.preferencesUrl },
+          {
+            day,
+            homeUrl: `${env.publicUrl}/`,
+            entries: items.map((i) => ({ crewName: i.crew_name, title: i.title, lines: i.lines })),
+          },
+          {
+            unsubscribeUrl: links.pageUrl,
+            unsubscribeWhat: describeUnsubscribeScope('digest', null),
+            preferencesUrl: links.preferencesUrl,
+          },
         );
-        await queueMail(trx, { to: user.email, subject: mail.subject, text: mail.text, html: mail.html, idempotencyKey: key, kind: MAIL_KIND.digest, headers: buildUnsubscribeHeaders(links.oneClickUrl) });
+        await queueMail(trx, {
+          to: user.email,
+          subject: mail.subject,
+          text: mail.text,
+          html: mail.html,
+          idempotencyKey: key,
+          kind: MAIL_KIND.digest,
+          headers: buildUnsubscribeHeaders(links.oneClickUrl),
+        });
       }
       // An address that can no longer receive mail still clears its items, so they do not pile up forever.
-      await markDigested(trx, items.map((i) => i.id), key, options.now);
+      await markDigested(
+        trx,
+        items.map((i) => i.id),
+        key,
+        options.now,
+      );
       return 'queued' as const;
     });
     if (outcome !== 'none') report[outcome] += 1;

@@ -15,12 +15,18 @@ export const MAIL_KIND: Record<NotificationKind | 'digest', string> = {
 export function describeUnsubscribeScope(kind: NotificationKind | 'digest', crewName: string | null): string {
   const of = crewName ? ` of ${crewName}` : '';
   switch (kind) {
-    case 'import_findings': return `e-mails about findings from lab imports${of}`;
-    case 'lab_report_arrived': return `e-mails about lab reports that arrived by mail${of}`;
-    case 'sample_due': return `next-sample-due reminders${of}`;
-    case 'shipped_overdue': return `reminders about shipped bottles without results${of}`;
-    case 'invitation_pending': return `reminders about invitations not accepted${of}`;
-    case 'digest': return 'the daily digest';
+    case 'import_findings':
+      return `e-mails about findings from lab imports${of}`;
+    case 'lab_report_arrived':
+      return `e-mails about lab reports that arrived by mail${of}`;
+    case 'sample_due':
+      return `next-sample-due reminders${of}`;
+    case 'shipped_overdue':
+      return `reminders about shipped bottles without results${of}`;
+    case 'invitation_pending':
+      return `reminders about invitations not accepted${of}`;
+    case 'digest':
+      return 'the daily digest';
   }
 }
 

@@ -7,15 +7,23 @@ import type { NotificationKind } from '../db/database';
 
 /** What an unsubscribe link stops: one kind from one crew, or (kind 'digest') the user's daily digest. */
 export type UnsubscribeScope =
-  | { userId: string; crewId: string; kind: NotificationKind }
-  | { userId: string; crewId: null; kind: 'digest' };
+  { userId: string; crewId: string; kind: NotificationKind } | { userId: string; crewId: null; kind: 'digest' };
 
 const VERSION = 'u1';
-const KINDS = new Set<string>(['import_findings', 'lab_report_arrived', 'sample_due', 'shipped_overdue', 'invitation_pending', 'digest']);
+const KINDS = new Set<string>([
+  'import_findings',
+  'lab_report_arrived',
+  'sample_due',
+  'shipped_overdue',
+  'invitation_pending',
+  'digest',
+]);
 
 /** Signs a scope into a URL-safe token. */
 export function signUnsubscribeToken(scope: UnsubscribeScope, secret: string): string {
-  const payload = Buffer.from(JSON.stringify([VERSION, scope.userId, scope.crewId, scope.kind]), 'utf8').toString('base64url');
+  const payload = Buffer.from(JSON.stringify([VERSION, scope.userId, scope.crewId, scope.kind]), 'utf8').toString(
+    'base64url',
+  );
   return `${payload}.${sign(payload, secret)}`;
 }
 

@@ -11,5 +11,12 @@ export async function userExists(db: Db, userId: string): Promise<boolean> {
 
 /** Whether the user is still a member of the crew. */
 export async function isCrewMember(db: Db, crewId: string, userId: string): Promise<boolean> {
-  return (await db.selectFrom('crew_members').select('user_id').where('crew_id', '=', crewId).where('user_id', '=', userId).executeTakeFirst()) !== undefined;
+  return (
+    (await db
+      .selectFrom('crew_members')
+      .select('user_id')
+      .where('crew_id', '=', crewId)
+      .where('user_id', '=', userId)
+      .executeTakeFirst()) !== undefined
+  );
 }

@@ -10,7 +10,11 @@ import { verifyUnsubscribeToken, type UnsubscribeScope } from './unsubscribe-tok
 export type UnsubscribeLookup = { ok: true; scope: UnsubscribeScope; what: string } | { ok: false };
 
 /** What a token would stop, in words; not ok for a forged or altered token, or a user or crew that no longer exists. */
-export async function describeUnsubscribeToken(db: Kysely<Database>, token: string, secret: string): Promise<UnsubscribeLookup> {
+export async function describeUnsubscribeToken(
+  db: Kysely<Database>,
+  token: string,
+  secret: string,
+): Promise<UnsubscribeLookup> {
   const scope = verifyUnsubscribeToken(token, secret);
   if (!scope) return { ok: false };
   if (!(await userExists(db, scope.userId))) return { ok: false };
@@ -25,7 +29,11 @@ export async function describeUnsubscribeToken(db: Kysely<Database>, token: stri
  * nothing else. Repeating it is harmless. A user who has left the crew gets none of its mail anyway, so
  * nothing is written for them.
  */
-export async function applyUnsubscribe(db: Kysely<Database>, token: string, secret: string): Promise<UnsubscribeLookup> {
+export async function applyUnsubscribe(
+  db: Kysely<Database>,
+  token: string,
+  secret: string,
+): Promise<UnsubscribeLookup> {
   const found = await describeUnsubscribeToken(db, token, secret);
   if (!found.ok) return found;
   const { scope } = found;
@@ -34,7 +42,8 @@ export async function applyUnsubscribe(db: Kysely<Database>, token: string, secr
       await turnOffDigest(trx, scope.userId);
       return;
     }
-    if (await isCrewMember(trx, scope.crewId, scope.userId)) await turnOffKind(trx, scope.userId, scope.crewId, scope.kind);
+    if (await isCrewMember(trx, scope.crewId, scope.userId))
+      await turnOffKind(trx, scope.userId, scope.crewId, scope.kind);
   });
   return found;
 }

@@ -1,7 +1,14 @@
 /** analyseSample: every rule over one sample against the machine's own in-control history. */
 import { byLevelWorstFirst, pickWorseLevel } from '../levels';
 import { ELEMENT_CODES, getMeasurand, type MeasurandCode } from './measurands';
-import { ADDITIVE_MISMATCH, BASELINE_JUMP, CLIMBING_TREND, CONDITION_TREND, FIXED_LIMIT, resolveFixedLimits } from './rule-definitions';
+import {
+  ADDITIVE_MISMATCH,
+  BASELINE_JUMP,
+  CLIMBING_TREND,
+  CONDITION_TREND,
+  FIXED_LIMIT,
+  resolveFixedLimits,
+} from './rule-definitions';
 import { formatFigure } from './figures';
 import { FINDING_RULES, buildBaselineBands, readFiringValue, type MeasurandBand, type RuleContext } from './rules';
 import type { AnalyseInput, Finding, Level, SamplePoint } from './types';
@@ -38,7 +45,12 @@ export const ANALYSIS_CAUTIONS: readonly string[] = [
 
 // The longest look-back any rule needs, with room for samples kept out of the baseline: the analysis never
 // reads further back, so its cost does not grow with the length of a machine's history.
-export const HISTORY_TAIL = Math.max(3 * BASELINE_JUMP.params.window, CLIMBING_TREND.params.window, CONDITION_TREND.params.window, ADDITIVE_MISMATCH.params.lookBack);
+export const HISTORY_TAIL = Math.max(
+  3 * BASELINE_JUMP.params.window,
+  CLIMBING_TREND.params.window,
+  CONDITION_TREND.params.window,
+  ADDITIVE_MISMATCH.params.lookBack,
+);
 
 const NO_EXCLUSIONS: ReadonlyMap<string, ReadonlySet<MeasurandCode>> = new Map();
 
@@ -53,7 +65,9 @@ function oilStart(s: SamplePoint): number {
 function isCopperLeaching(ctx: RuleContext, findings: readonly Finding[]): { from: number; to: number } | undefined {
   const cu = readFiringValue(ctx.sample, 'Cu');
   if (cu === undefined || !Number.isFinite(oilStart(ctx.sample))) return undefined;
-  const previous = [...ctx.history].reverse().find((s) => Number.isFinite(oilStart(s)) && oilStart(s) < oilStart(ctx.sample) - 1 && s.readings.Cu);
+  const previous = [...ctx.history]
+    .reverse()
+    .find((s) => Number.isFinite(oilStart(s)) && oilStart(s) < oilStart(ctx.sample) - 1 && s.readings.Cu);
   const before = previous ? readFiringValue(previous, 'Cu') : undefined;
   if (before === undefined || !(cu < before)) return undefined;
   const bearingsRaised = findings.some((f) => f.measurands.includes('Pb') || f.measurands.includes('Sn'));
@@ -67,15 +81,27 @@ function isCopperLeaching(ctx: RuleContext, findings: readonly Finding[]): { fro
 /** Findings, worst level, bands and wear rates for one sample against the machine's previous samples. */
 export function analyseSample(input: AnalyseInput): SampleAnalysis {
   const history = input.history.length > HISTORY_TAIL ? input.history.slice(-HISTORY_TAIL) : input.history;
-  const base = { machine: input.machine, sample: input.sample, history, outOfBaseline: input.outOfBaseline ?? NO_EXCLUSIONS };
-  const ctx: RuleContext = { ...base, limits: resolveFixedLimits(input.limits), bands: buildBaselineBands(base), earlier: [] };
+  const base = {
+    machine: input.machine,
+    sample: input.sample,
+    history,
+    outOfBaseline: input.outOfBaseline ?? NO_EXCLUSIONS,
+  };
+  const ctx: RuleContext = {
+    ...base,
+    limits: resolveFixedLimits(input.limits),
+    bands: buildBaselineBands(base),
+    earlier: [],
+  };
   let findings: Finding[] = [];
   for (const rule of FINDING_RULES) findings.push(...rule({ ...ctx, earlier: findings }));
 
   const notes: string[] = [];
   const leaching = isCopperLeaching(ctx, findings);
   if (leaching && findings.some((f) => f.measurands[0] === 'Cu')) {
-    findings = findings.filter((f) => !(f.measurands[0] === 'Cu' && ['baseline-jump', 'climbing-trend', 'fixed-limit'].includes(f.ruleId)));
+    findings = findings.filter(
+      (f) => !(f.measurands[0] === 'Cu' && ['baseline-jump', 'climbing-trend', 'fixed-limit'].includes(f.ruleId)),
+    );
     notes.push(
       `Copper fell from ${formatFigure(leaching.from)} to ${formatFigure(leaching.to)} ppm since the last oil change, with lead and tin quiet: ` +
         'that reads as copper leaching from the oil cooler or new parts (usual on a new or rebuilt engine), not wear.',
@@ -104,9 +130,19 @@ export function analyseSample(input: AnalyseInput): SampleAnalysis {
   // Only the machine's own bands make a ready baseline: a crew reference judges findings but never earns a stretch.
   const ready = wearBands.length > 0 && wearBands.every((b) => b.status === 'ready' && b.source === 'own');
   const crewBands = Object.values(ctx.bands).filter((b) => b.source === 'crew' && b.crew);
-  const crewReference = crewBands.length > 0 ? { label: crewBands[0]!.crew!.label, machines: Math.max(...crewBands.map((b) => b.crew!.machines)) } : undefined;
+  const crewReference =
+    crewBands.length > 0
+      ? { label: crewBands[0]!.crew!.label, machines: Math.max(...crewBands.map((b) => b.crew!.machines)) }
+      : undefined;
   return {
-    findings, worst, readingLevels, baselineStatus: ready ? 'ready' : 'building', ...(crewReference ? { crewReference } : {}),
-    bands: ctx.bands, wearRates, notes, cautions: [...ANALYSIS_CAUTIONS],
+    findings,
+    worst,
+    readingLevels,
+    baselineStatus: ready ? 'ready' : 'building',
+    ...(crewReference ? { crewReference } : {}),
+    bands: ctx.bands,
+    wearRates,
+    notes,
+    cautions: [...ANALYSIS_CAUTIONS],
   };
 }

@@ -25,7 +25,8 @@ export interface EngineDescription {
  * within CREW_REFERENCE.params.displacementTolerance of the machine's, and both on hours or both on distance.
  */
 export function isSameEngine(machine: EngineDescription, other: EngineDescription): boolean {
-  if (machine.layout !== other.layout || machine.cooling !== other.cooling || machine.sharedOil !== other.sharedOil) return false;
+  if (machine.layout !== other.layout || machine.cooling !== other.cooling || machine.sharedOil !== other.sharedOil)
+    return false;
   if ((machine.distanceUnit === 'h') !== (other.distanceUnit === 'h')) return false;
   const a = machine.displacementCc;
   const b = other.displacementCc;
@@ -34,11 +35,18 @@ export function isSameEngine(machine: EngineDescription, other: EngineDescriptio
   return Math.round((Math.abs(b - a) / a) * 1e9) / 1e9 <= CREW_REFERENCE.params.displacementTolerance;
 }
 
-const LAYOUT_WORDS: Record<EngineLayout, string> = { single: 'singles', twin: 'twins', triple: 'triples', four: 'fours', other: 'engines' };
+const LAYOUT_WORDS: Record<EngineLayout, string> = {
+  single: 'singles',
+  twin: 'twins',
+  triple: 'triples',
+  four: 'fours',
+  other: 'engines',
+};
 
 /** "450 cc liquid-cooled singles": how riders name an engine family. */
 export function describeEngine(engine: Pick<EngineDescription, 'layout' | 'displacementCc' | 'cooling'>): string {
-  const cc = engine.displacementCc !== null && engine.displacementCc > 0 ? `${Math.round(engine.displacementCc)} cc ` : '';
+  const cc =
+    engine.displacementCc !== null && engine.displacementCc > 0 ? `${Math.round(engine.displacementCc)} cc ` : '';
   return `${cc}${engine.cooling}-cooled ${LAYOUT_WORDS[engine.layout]}`;
 }
 

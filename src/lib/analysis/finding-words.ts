@@ -7,9 +7,19 @@ import { getMeasurand, isMeasurandCode } from './measurands';
 
 /** What a rider calls each measurand in a short phrase; anything not named here uses the catalogue's name. */
 const PLAIN_NAME: Partial<Record<string, string>> = {
-  KV40: 'viscosity', KV100: 'viscosity', VI: 'viscosity index', SUS210: 'viscosity', FLASH: 'flash point',
-  FUEL: 'fuel', WATER: 'water', GLYCOL: 'coolant', INSOL: 'insolubles', TBN: 'base reserve', TAN: 'acid number',
-  OXI: 'oxidation', NIT: 'nitration',
+  KV40: 'viscosity',
+  KV100: 'viscosity',
+  VI: 'viscosity index',
+  SUS210: 'viscosity',
+  FLASH: 'flash point',
+  FUEL: 'fuel',
+  WATER: 'water',
+  GLYCOL: 'coolant',
+  INSOL: 'insolubles',
+  TBN: 'base reserve',
+  TAN: 'acid number',
+  OXI: 'oxidation',
+  NIT: 'nitration',
 };
 
 /** The coolant markers (sodium, potassium, boron, glycol) point to one cause, so they share one phrase. */
@@ -32,14 +42,22 @@ export function describeFindingReason(ruleId: RuleId | string, measurand: string
   const m = measurand ?? '';
   const name = nameOf(measurand);
   switch (ruleId as RuleId) {
-    case 'coolant-markers': return 'coolant markers rising';
-    case 'fuel-dilution': return 'fuel in the oil';
-    case 'dirt': return 'dirt getting in';
-    case 'flash-point': return 'flash point low: fuel in the oil?';
-    case 'clutch-friction': return 'clutch material in the oil';
-    case 'additive-mismatch': return 'a different or mixed oil';
-    case 'viscosity-grade': return 'oil out of its grade';
-    case 'viscosity-change': return 'viscosity changed from new';
+    case 'coolant-markers':
+      return 'coolant markers rising';
+    case 'fuel-dilution':
+      return 'fuel in the oil';
+    case 'dirt':
+      return 'dirt getting in';
+    case 'flash-point':
+      return 'flash point low: fuel in the oil?';
+    case 'clutch-friction':
+      return 'clutch material in the oil';
+    case 'additive-mismatch':
+      return 'a different or mixed oil';
+    case 'viscosity-grade':
+      return 'oil out of its grade';
+    case 'viscosity-change':
+      return 'viscosity changed from new';
     case 'climbing-trend':
       if (COOLANT.has(m)) return 'coolant markers rising';
       if (DIRT.has(m)) return 'dirt getting in';

@@ -99,10 +99,12 @@ export function findRegularInterval(
     // A gap far longer than the oil was seen to run hides an oil change without a sample.
     completed.push(gap > 1.5 * oils[i]!.longest ? oils[i]!.longest : gap);
   }
-  if (completed.length > 0) return { value: median(completed.slice(-INTERVAL_CALL.params.regularOf)), source: 'completed-oil-changes' };
+  if (completed.length > 0)
+    return { value: median(completed.slice(-INTERVAL_CALL.params.regularOf)), source: 'completed-oil-changes' };
   const longest = Math.max(0, ...all.map((s) => s.distanceOnOil));
   if (longest > 0) return { value: longest, source: 'longest-run' };
-  if (machine.maxIntervalDistance !== undefined && machine.maxIntervalDistance > 0) return { value: machine.maxIntervalDistance, source: 'manufacturer' };
+  if (machine.maxIntervalDistance !== undefined && machine.maxIntervalDistance > 0)
+    return { value: machine.maxIntervalDistance, source: 'manufacturer' };
   return { value: null, source: 'unknown' };
 }
 
@@ -134,7 +136,9 @@ function findStretchBlocks(sample: SamplePoint, history: readonly SamplePoint[],
   const tbn = readFiringValue(sample, 'TBN');
   const tbnNew = tbn !== undefined ? findOwnLevel({ sample, history }, 'TBN', 1) : undefined;
   if (tbn !== undefined && tbnNew && tbn < p.tbnMinFraction * tbnNew.value) {
-    blocks.push(`TBN is down to ${formatFigure(tbn)} from ${formatFigure(tbnNew.value)}: the oil's reserve is mostly spent`);
+    blocks.push(
+      `TBN is down to ${formatFigure(tbn)} from ${formatFigure(tbnNew.value)}: the oil's reserve is mostly spent`,
+    );
   }
   const tan = readFiringValue(sample, 'TAN');
   const tanNew = tan !== undefined ? findOwnLevel({ sample, history }, 'TAN', 1) : undefined;
@@ -159,21 +163,29 @@ export function decideIntervalCall(input: {
   const { machine, sample, history, analysis, previous } = input;
   const step = p.roundTo[machine.distanceUnit];
   const regular = findRegularInterval(machine, history, sample);
-  const manufacturer = machine.maxIntervalDistance !== undefined && machine.maxIntervalDistance > 0 ? machine.maxIntervalDistance : undefined;
-  const longestRun = Math.max(0, ...[...history, sample].map((s) => (Number.isFinite(s.distanceOnOil) ? s.distanceOnOil : 0)));
+  const manufacturer =
+    machine.maxIntervalDistance !== undefined && machine.maxIntervalDistance > 0
+      ? machine.maxIntervalDistance
+      : undefined;
+  const longestRun = Math.max(
+    0,
+    ...[...history, sample].map((s) => (Number.isFinite(s.distanceOnOil) ? s.distanceOnOil : 0)),
+  );
   const ceiling = manufacturer ?? (Math.max(longestRun, regular.value ?? 0) || null);
   const ceilingSource = manufacturer !== undefined ? 'manufacturer' : 'machine-history';
   const unit = machine.distanceUnit;
   const reasons: string[] = [];
   const ruleIds = [...new Set(analysis.findings.map((f) => f.ruleId))];
-  const blocks = analysis.worst === 'steady' ? findStretchBlocks(sample, history, analysis) : ['not every reading was steady'];
+  const blocks =
+    analysis.worst === 'steady' ? findStretchBlocks(sample, history, analysis) : ['not every reading was steady'];
   const stretchReady = blocks.length === 0;
 
   const r = regular.value;
   // A hold keeps the regular interval as it is (never rounded down); shorter intervals round down to `step`.
   const hold = r === null ? null : ceiling === null ? r : Math.min(ceiling, r);
   const capped = (d: number) => (ceiling === null ? d : Math.min(ceiling, d));
-  const shortened = (factor: number) => (r === null ? null : capped(Math.max(Math.min(step, r), roundDownTo(r * factor, step))));
+  const shortened = (factor: number) =>
+    r === null ? null : capped(Math.max(Math.min(step, r), roundDownTo(r * factor, step)));
 
   let call: IntervalCall['call'];
   let next: number | null;
@@ -223,21 +235,33 @@ export function decideIntervalCall(input: {
     const confirmed =
       !shortenJudgement ||
       shortenJudgement.nextIntervalDistance === null ||
-      [...run, { distanceOnOil: sample.distanceOnOil }].some((j) => j.distanceOnOil <= 1.1 * shortenJudgement.nextIntervalDistance!);
+      [...run, { distanceOnOil: sample.distanceOnOil }].some(
+        (j) => j.distanceOnOil <= 1.1 * shortenJudgement.nextIntervalDistance!,
+      );
     const stretched = r === null ? null : Math.min(ceiling ?? Infinity, roundDownTo(r * p.stretchFactor, step));
     if (!stretchReady) {
       reasons.push(`All steady; no stretch yet because ${blocks.join(', and ')}: hold.`);
     } else if (run.length < need || !run.every((j) => j.stretchReady)) {
-      reasons.push(`All steady this time; a stretch waits for ${p.stretchSteadySamples} steady samples in a row on ready baselines with the oil's condition reported.`);
+      reasons.push(
+        `All steady this time; a stretch waits for ${p.stretchSteadySamples} steady samples in a row on ready baselines with the oil's condition reported.`,
+      );
     } else if (lastShorten !== -1 && lastShorten < need) {
-      reasons.push('All steady, but the interval was shortened recently: hold until samples at the shorter interval confirm it.');
+      reasons.push(
+        'All steady, but the interval was shortened recently: hold until samples at the shorter interval confirm it.',
+      );
     } else if (!confirmed) {
       reasons.push('All steady, but no sample has been drawn at the shortened interval yet to confirm it: hold.');
-    } else if (lastStretch && lastStretch.nextIntervalDistance !== null && sample.distanceOnOil < 0.9 * lastStretch.nextIntervalDistance) {
+    } else if (
+      lastStretch &&
+      lastStretch.nextIntervalDistance !== null &&
+      sample.distanceOnOil < 0.9 * lastStretch.nextIntervalDistance
+    ) {
       // The stretch stands, but it is not stretched again until a sample at the longer interval confirms it.
       call = 'stretch';
       next = Math.min(ceiling ?? Infinity, lastStretch.nextIntervalDistance);
-      reasons.push(`All steady: the stretch to about ${Math.round(next)} ${unit} stands. It stretches no further until a sample at that interval confirms it.`);
+      reasons.push(
+        `All steady: the stretch to about ${Math.round(next)} ${unit} stands. It stretches no further until a sample at that interval confirms it.`,
+      );
     } else if (stretched !== null && r !== null && stretched > r) {
       call = 'stretch';
       next = stretched;
@@ -264,24 +288,41 @@ export function decideIntervalCall(input: {
     );
   }
   if (regular.source !== 'completed-oil-changes' && r !== null) {
-    reasons.push(`No completed oil change on file yet, so the interval taken as regular is ${regular.source === 'manufacturer' ? "the manufacturer's longest" : 'the longest this machine has run'} (${Math.round(r)} ${unit}).`);
+    reasons.push(
+      `No completed oil change on file yet, so the interval taken as regular is ${regular.source === 'manufacturer' ? "the manufacturer's longest" : 'the longest this machine has run'} (${Math.round(r)} ${unit}).`,
+    );
   }
-  if (r === null) reasons.push('No distance on this oil, no earlier one and no manufacturer interval: the interval cannot be set yet.');
+  if (r === null)
+    reasons.push(
+      'No distance on this oil, no earlier one and no manufacturer interval: the interval cannot be set yet.',
+    );
   if (analysis.crewReference) {
     const { label, machines } = analysis.crewReference;
-    reasons.push(`While this machine's own baseline builds, its readings were judged against a crew reference band ${label} (${machines} machines).`);
+    reasons.push(
+      `While this machine's own baseline builds, its readings were judged against a crew reference band ${label} (${machines} machines).`,
+    );
   }
   for (const note of analysis.notes) reasons.push(note);
 
   // Dates count from the later of the draw and the day the results arrived, so they are never in the past.
   const drawn = Date.parse(sample.takenAt);
   const arrived = sample.resultsOn ? Date.parse(sample.resultsOn) : NaN;
-  const from = Number.isFinite(arrived) && (!Number.isFinite(drawn) || arrived > drawn) ? sample.resultsOn! : sample.takenAt;
+  const from =
+    Number.isFinite(arrived) && (!Number.isFinite(drawn) || arrived > drawn) ? sample.resultsOn! : sample.takenAt;
   const pace = estimatePace(history, sample);
-  const days = [pace && dueAfter !== null ? dueAfter / pace : Infinity, machine.maxIntervalDays ?? Infinity, urgentDays ?? Infinity];
+  const days = [
+    pace && dueAfter !== null ? dueAfter / pace : Infinity,
+    machine.maxIntervalDays ?? Infinity,
+    urgentDays ?? Infinity,
+  ];
   const dueInDays = Math.max(1, Math.min(...days));
   const date = Number.isFinite(Math.min(...days)) ? addDays(from, dueInDays) : undefined;
-  if (machine.maxIntervalDays !== undefined && pace !== undefined && dueAfter !== null && dueAfter / pace > machine.maxIntervalDays) {
+  if (
+    machine.maxIntervalDays !== undefined &&
+    pace !== undefined &&
+    dueAfter !== null &&
+    dueAfter / pace > machine.maxIntervalDays
+  ) {
     reasons.push(`At this machine's pace the calendar limit of ${machine.maxIntervalDays} days comes first.`);
   }
   const dueDistance = dueAfter === null ? null : sample.odometer + dueAfter;
@@ -290,7 +331,15 @@ export function decideIntervalCall(input: {
     nextIntervalDistance: next,
     nextSampleDue: date ? { distance: dueDistance, date } : { distance: dueDistance },
     reasons,
-    basis: { worst: analysis.worst, regularInterval: r, regularSource: regular.source, ceiling, ceilingSource, ruleIds, stretchReady },
+    basis: {
+      worst: analysis.worst,
+      regularInterval: r,
+      regularSource: regular.source,
+      ceiling,
+      ceilingSource,
+      ruleIds,
+      stretchReady,
+    },
   };
 }
 
@@ -306,15 +355,27 @@ export interface ReplayedSample {
  * each sample's results arrive: a measurand that was act on a sample leaves that measurand's baseline, samples
  * marked baselineExcluded never enter it, and each call knows the calls before it.
  */
-export function replayHistory(input: { machine: MachineProfile; samples: readonly SamplePoint[]; limits?: Partial<FixedLimits> | undefined }): ReplayedSample[] {
+export function replayHistory(input: {
+  machine: MachineProfile;
+  samples: readonly SamplePoint[];
+  limits?: Partial<FixedLimits> | undefined;
+}): ReplayedSample[] {
   const outOfBaseline = new Map<string, Set<MeasurandCode>>();
   const previous: PreviousJudgement[] = [];
   const replayed: ReplayedSample[] = [];
   input.samples.forEach((sample, i) => {
     const history = input.samples.slice(Math.max(0, i - HISTORY_TAIL), i);
     const analysis = analyseSample({ machine: input.machine, history, sample, limits: input.limits, outOfBaseline });
-    const call = decideIntervalCall({ machine: input.machine, history, sample, analysis, previous: previous.slice(-HISTORY_TAIL) });
-    const acted = (Object.entries(analysis.readingLevels) as [MeasurandCode, Level][]).filter(([, l]) => l === 'act').map(([c]) => c);
+    const call = decideIntervalCall({
+      machine: input.machine,
+      history,
+      sample,
+      analysis,
+      previous: previous.slice(-HISTORY_TAIL),
+    });
+    const acted = (Object.entries(analysis.readingLevels) as [MeasurandCode, Level][])
+      .filter(([, l]) => l === 'act')
+      .map(([c]) => c);
     if (acted.length > 0) outOfBaseline.set(sample.id, new Set(acted));
     previous.push({
       sampleId: sample.id,
@@ -334,7 +395,11 @@ export function replayHistory(input: { machine: MachineProfile; samples: readonl
  * in control and what was called before, so it answers as judgeHistory would for the last sample.
  */
 export function makeIntervalCall(input: AnalyseInput & { analysis?: SampleAnalysis | undefined }): IntervalCall {
-  const replayed = replayHistory({ machine: input.machine, samples: [...input.history, input.sample], limits: input.limits });
+  const replayed = replayHistory({
+    machine: input.machine,
+    samples: [...input.history, input.sample],
+    limits: input.limits,
+  });
   const last = replayed[replayed.length - 1]!;
   if (!input.analysis) return last.call;
   const previous = replayed.slice(0, -1).map((r, i) => ({
@@ -345,5 +410,11 @@ export function makeIntervalCall(input: AnalyseInput & { analysis?: SampleAnalys
     nextIntervalDistance: r.call.nextIntervalDistance,
     distanceOnOil: input.history[i]!.distanceOnOil,
   }));
-  return decideIntervalCall({ machine: input.machine, history: input.history.slice(-HISTORY_TAIL), sample: input.sample, analysis: input.analysis, previous });
+  return decideIntervalCall({
+    machine: input.machine,
+    history: input.history.slice(-HISTORY_TAIL),
+    sample: input.sample,
+    analysis: input.analysis,
+    previous,
+  });
 }

@@ -22,7 +22,11 @@ export interface JudgedSample {
 }
 
 /** Findings, worst level and interval call of every sample of a machine, oldest first. */
-export function judgeHistory(input: { machine: MachineProfile; samples: readonly SamplePoint[]; limits?: Partial<FixedLimits> }): JudgedSample[] {
+export function judgeHistory(input: {
+  machine: MachineProfile;
+  samples: readonly SamplePoint[];
+  limits?: Partial<FixedLimits>;
+}): JudgedSample[] {
   return replayHistory(input).map((r) => ({
     sampleId: r.sampleId,
     worst: r.analysis.worst,

@@ -37,7 +37,20 @@ export const LAB_SCATTER = { absolutePpm: 0.5, relative: 0.12 } as const;
 /** Which measurands the baseline rules judge, and on what basis. */
 export const BASELINE_BASIS = {
   /** Judged as a wear rate (ppm per 1,000 mi/km or per 100 h of oil use, top-up corrected). */
-  rate: ['Fe', 'Al', 'Cr', 'Cu', 'Pb', 'Sn', 'Ni', 'Ag', 'Ti', 'V', 'Mn', 'Si'] as const satisfies readonly ElementCode[],
+  rate: [
+    'Fe',
+    'Al',
+    'Cr',
+    'Cu',
+    'Pb',
+    'Sn',
+    'Ni',
+    'Ag',
+    'Ti',
+    'V',
+    'Mn',
+    'Si',
+  ] as const satisfies readonly ElementCode[],
   /** Judged in ppm against the oil's own level: these come mostly with the oil, not with the distance run. */
   ppm: ['Na', 'K', 'B'] as const satisfies readonly ElementCode[],
   /** Baselines of these restart when the oil product changes (they come with the oil's additives). */
@@ -88,10 +101,10 @@ export const CREW_REFERENCE = {
     "is built with the same rules as the machine's own: wear metals and silicon as rates per distance, the last " +
     '`window` values, the same prediction-limit multiples and lab-scatter floor. It needs at least minMachines other ' +
     'machines in the band; with fewer there is no crew reference and only fixed limits apply. The band is labelled ' +
-    "\"from the crew's other <engine> machines\" on the wear chart, the sample page and in the call's reasons, and it " +
+    '"from the crew\'s other <engine> machines" on the wear chart, the sample page and in the call\'s reasons, and it ' +
     "never leaves the crew. A stretch is never earned on a crew reference: only the machine's own ready iron and " +
-    'aluminium baselines can count towards one. Once the machine\'s own band is ready it takes over. When an import ' +
-    'changes a machine, the crew\'s other machines of that engine still on a crew reference (at most ' +
+    "aluminium baselines can count towards one. Once the machine's own band is ready it takes over. When an import " +
+    "changes a machine, the crew's other machines of that engine still on a crew reference (at most " +
     'rejudgeUpToSamples samples) are judged again in the same transaction.',
   source:
     "Sumpwise rule (common practice, no published source): pooling sister engines' history is a usual way to start " +
@@ -117,7 +130,8 @@ export const CLIMBING_TREND = {
     'before this one) and more than twice the lab scatter there, and the newest reading must not have fallen. Act ' +
     'when the level has doubled (actRiseFraction) and the slope test passes at actAlpha. One jump does not fire both ' +
     'rules: when the reading already fired the jump rule, the earlier points must be climbing on their own.',
-  source: 'Sumpwise rule (common practice, no published source); slope by ordinary least squares (checked against NIST StRD Norris), tested against the lab scatter the simulation assumes (15–20 %).',
+  source:
+    'Sumpwise rule (common practice, no published source); slope by ordinary least squares (checked against NIST StRD Norris), tested against the lab scatter the simulation assumes (15–20 %).',
   params: {
     window: 6,
     minPoints: 4,
@@ -135,7 +149,7 @@ export const FIXED_LIMIT = {
   kind: 'finding',
   title: 'Alert limit',
   description:
-    'A reading at or above one of the crew\'s alert limits (fixed figures the crew lead can change): Fe, Cr, Cu, Sn, Al, Pb and Si in ppm, and water in %. ' +
+    "A reading at or above one of the crew's alert limits (fixed figures the crew lead can change): Fe, Cr, Cu, Sn, Al, Pb and Si in ppm, and water in %. " +
     'At the limit: act. From watchFraction of the limit: watch, as an early warning. Boron has no fixed limit here: ' +
     "many motorcycle oils carry borate, so it is judged against the oil's own level.",
   source:
@@ -181,8 +195,7 @@ export const FUEL_DILUTION = {
   description:
     'Fuel in the oil above watchPercent: watch; at or above the fixed fuel limit (default 5 %): act. Short trips ' +
     'that never warm the oil are the usual cause.',
-  source:
-    'Watch above 2 %: common practice, no published source. Act at 5 %: Petro-Canada Lubricants Handbook (2004).',
+  source: 'Watch above 2 %: common practice, no published source. Act at 5 %: Petro-Canada Lubricants Handbook (2004).',
   params: { watchPercent: 2 },
 } as const;
 
@@ -216,11 +229,11 @@ export const BORON_AND_COOLANT = {
   kind: 'finding',
   title: 'Coolant markers',
   description:
-    'Liquid-cooled engines only: sodium, potassium and boron judged against the oil\'s own level (the new-oil reference, ' +
+    "Liquid-cooled engines only: sodium, potassium and boron judged against the oil's own level (the new-oil reference, " +
     'else the baseline or first samples of that oil product), so a borate oil is not read as coolant. Glycol present: ' +
-    'act. Potassium alone at potassiumWatchPpm or more above the oil\'s own level: watch; with glycol or water at the ' +
-    'water watch level: act. A marker is raised at its markerRisePpm above the oil\'s own level; two raised: watch; two ' +
-    'raised with one at twice its rise (or at the act edge of its band): act. Coolant in the oil is not the oil\'s fault: the call is fix-first. On air- ' +
+    "act. Potassium alone at potassiumWatchPpm or more above the oil's own level: watch; with glycol or water at the " +
+    "water watch level: act. A marker is raised at its markerRisePpm above the oil's own level; two raised: watch; two " +
+    "raised with one at twice its rise (or at the act edge of its band): act. Coolant in the oil is not the oil's fault: the call is fix-first. On air- " +
     "and oil-cooled engines boron is never a coolant marker; a change from the oil's own level is an oil mix-up, " +
     'judged by the baseline band (watch at most).',
   source:
@@ -241,9 +254,10 @@ export const DIRT = {
     'Silicon and aluminium both up (above the baseline band or at watchFraction of the fixed limit), rising together ' +
     'in the proportion of dust: the rise of silicon over its usual level divided by the rise of aluminium between ' +
     'minRatio and maxRatio. Silicon up alone is more likely sealant or antifoam. Watch; act when silicon is at its ' +
-    'fixed limit or the act edge of its band. Dirt is not the oil\'s fault: the call is fix-first (air filter, seal, ' +
+    "fixed limit or the act edge of its band. Dirt is not the oil's fault: the call is fix-first (air filter, seal, " +
     'intake boots).',
-  source: 'Common practice, no published source (road dust is mostly silica with some alumina; the ratio range is from memory).',
+  source:
+    'Common practice, no published source (road dust is mostly silica with some alumina; the ratio range is from memory).',
   params: { minRatio: 1.5, maxRatio: 15 },
 } as const;
 
@@ -300,10 +314,10 @@ export const INTERVAL_CALL = {
     'regular interval, at most resampleDays), the interval unchanged. Any other act finding: shorten to actFactor of ' +
     'the regular interval and resample soon. A climbing trend at watch or other watch findings: hold, next sample at ' +
     'the same interval. Stretch by at most stretchFactor only on stretchSteadySamples steady samples in a row, each ' +
-    'judged on this machine\'s own ready iron and aluminium band (never on a crew reference) with viscosity, fuel (or flash point) and water reported, with TBN not ' +
+    "judged on this machine's own ready iron and aluminium band (never on a crew reference) with viscosity, fuel (or flash point) and water reported, with TBN not " +
     'below tbnMinFraction of new and TAN not up by tanMaxRise when reported, and never right after a shorten until a ' +
     'sample at the shortened interval confirms it; a stretch stands, but stretches no further, until a sample at the ' +
-    'longer interval confirms it. Never beyond the manufacturer\'s longest interval; with none on ' +
+    "longer interval confirms it. Never beyond the manufacturer's longest interval; with none on " +
     'file, never beyond the longest interval this machine has run. "Next sample by" dates count from the later of the ' +
     'draw and the day the results arrived.',
   source: 'Sumpwise rule (common practice, no published source).',

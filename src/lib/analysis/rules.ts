@@ -81,7 +81,6 @@ export function readBaselineValue(sample: SamplePoint, code: MeasurandCode): num
   return countReadingValue(r);
 }
 
-
 function describe(code: MeasurandCode, value: number): string {
   const m = getMeasurand(code);
   const unit = m.unit === 'ppm' ? ' ppm' : m.unit === '%' ? ' %' : m.unit ? ` ${m.unit}` : '';
@@ -134,7 +133,11 @@ function toBasis(ppm: number, sample: SamplePoint, basis: JudgeBasis, machine: M
 /** The factor from the judged basis back to reported ppm at a sample. */
 function basisToReported(sample: SamplePoint, basis: JudgeBasis, machine: MachineProfile): number {
   if (basis === 'ppm') return 1;
-  return sample.distanceOnOil / findRateBasis(machine.distanceUnit) / computeTopUpFactor(sample.topUpVolume, sample.oilVolume);
+  return (
+    sample.distanceOnOil /
+    findRateBasis(machine.distanceUnit) /
+    computeTopUpFactor(sample.topUpVolume, sample.oilVolume)
+  );
 }
 
 /** A reading in the judged basis: `firing` for the sample being judged, else as baselines and trends use it. */
@@ -153,7 +156,12 @@ export function readJudgedValue(
 // every later sample's bands and trends. Keyed by sample, then measurand and basis (the machine never changes
 // within a replay; a different machine object starts a new entry).
 const JUDGED_OF = new WeakMap<SamplePoint, { machine: MachineProfile; values: Map<string, number | undefined> }>();
-function readEarlierValue(s: SamplePoint, code: MeasurandCode, basis: JudgeBasis, machine: MachineProfile): number | undefined {
+function readEarlierValue(
+  s: SamplePoint,
+  code: MeasurandCode,
+  basis: JudgeBasis,
+  machine: MachineProfile,
+): number | undefined {
   let entry = JUDGED_OF.get(s);
   if (!entry || entry.machine !== machine) {
     entry = { machine, values: new Map() };
@@ -216,7 +224,9 @@ export function buildBaselineBands(
 /** The lab scatters in ppm; on a rate basis its scatter scales by per / distance like the readings do. */
 function rateFloor(basis: JudgeBasis, distances: readonly number[], per: number): (level: number) => number {
   const meanDistance = distances.reduce((a, b) => a + b, 0) / Math.max(1, distances.length);
-  return basis === 'ppm' || !(meanDistance > 0) ? labScatterAt : (level: number) => (labScatterAt((level * meanDistance) / per) * per) / meanDistance;
+  return basis === 'ppm' || !(meanDistance > 0)
+    ? labScatterAt
+    : (level: number) => (labScatterAt((level * meanDistance) / per) * per) / meanDistance;
 }
 
 /**
@@ -255,18 +265,34 @@ function buildCrewBand(
     machines.add(s.machineId);
   }
   if (machines.size < q.minMachines) return undefined;
-  const band = computeBaselineBand(values, { ...settings, floorAt: rateFloor(basis, distances, findRateBasis(ctx.machine.distanceUnit)) });
+  const band = computeBaselineBand(values, {
+    ...settings,
+    floorAt: rateFloor(basis, distances, findRateBasis(ctx.machine.distanceUnit)),
+  });
   if (band.status !== 'ready') return undefined;
-  return { ...band, basis, sampleIds: ids, toReported, source: 'crew', crew: { label: reference.label, machines: machines.size } };
+  return {
+    ...band,
+    basis,
+    sampleIds: ids,
+    toReported,
+    source: 'crew',
+    crew: { label: reference.label, machines: machines.size },
+  };
 }
 
 /** "this machine's baseline band", or the crew reference band with its label. */
 export function bandWords(band: Pick<MeasurandBand, 'source' | 'crew'>): string {
-  return band.source === 'crew' && band.crew ? `the crew reference band (${band.crew.label})` : "this machine's baseline band";
+  return band.source === 'crew' && band.crew
+    ? `the crew reference band (${band.crew.label})`
+    : "this machine's baseline band";
 }
 
 function basisWords(basis: JudgeBasis, machine: MachineProfile): string {
-  return basis === 'rate' ? (machine.distanceUnit === 'h' ? ' ppm per 100 h' : ` ppm per 1,000 ${machine.distanceUnit}`) : ' ppm';
+  return basis === 'rate'
+    ? machine.distanceUnit === 'h'
+      ? ' ppm per 100 h'
+      : ` ppm per 1,000 ${machine.distanceUnit}`
+    : ' ppm';
 }
 
 function isBandAct(band: MeasurandBand & { status: 'ready' }, v: number): boolean {
@@ -369,7 +395,9 @@ export function findClimbingTrends(ctx: RuleContext): Finding[] {
     const base = Math.max(0, points.slice(0, -1).reduce((a, [, y]) => a + y, 0) / (points.length - 1));
     const per = findRateBasis(ctx.machine.distanceUnit);
     const inBasis = (ppmScatter: (ppm: number) => number) =>
-      basis === 'rate' ? (ppmScatter((base * ctx.sample.distanceOnOil) / per) * per) / ctx.sample.distanceOnOil : ppmScatter(base);
+      basis === 'rate'
+        ? (ppmScatter((base * ctx.sample.distanceOnOil) / per) * per) / ctx.sample.distanceOnOil
+        : ppmScatter(base);
     // The slope is tested against the lab's known scatter at the earlier level (not the scatter around this
     // handful of points, which a single high reading inflates): z = slope · √Sxx / σ, one-sided.
     const sigma = inBasis((ppm) => Math.hypot(LAB_SCATTER.absolutePpm, p.scatterRelative * ppm));
@@ -392,7 +420,14 @@ export function findClimbingTrends(ctx: RuleContext): Finding[] {
       ruleId: 'climbing-trend',
       level,
       measurands: [code],
-      numbers: { value: current, slopePerDistance: fit.slope, rise, fittedStart: start, points: points.length, slopeT: Number.isFinite(stat) ? stat : 999 },
+      numbers: {
+        value: current,
+        slopePerDistance: fit.slope,
+        rise,
+        fittedStart: start,
+        points: points.length,
+        slopeT: Number.isFinite(stat) ? stat : 999,
+      },
       sentence:
         `${getMeasurand(code).name} has been climbing: up about ${formatFigure(rise)}${unit} over the last ${points.length} samples ` +
         `(${formatFigure(xLast - xFirst)} ${ctx.machine.distanceUnit})${level === 'act' ? ', roughly double where it started' : ''}. ${pointsTo(code, ctx.machine)}`,
@@ -475,7 +510,9 @@ export function findViscosityOutsideGrade(ctx: RuleContext): Finding[] {
       sentence:
         `${describe('KV100', kv)} is ${thin ? 'below' : 'above'} the SAE J300 window of the ${w.grade} poured ` +
         `(${formatFigure(w.min)} to under ${formatFigure(w.max)} mm²/s)` +
-        (level === 'act' ? ` and below the SAE ${lower!.grade} window too: the oil no longer protects like the grade you chose. ` : `: the oil has ${thin ? 'thinned' : 'thickened'} out of its grade. `) +
+        (level === 'act'
+          ? ` and below the SAE ${lower!.grade} window too: the oil no longer protects like the grade you chose. `
+          : `: the oil has ${thin ? 'thinned' : 'thickened'} out of its grade. `) +
         `${thin ? 'Fuel dilution or gearbox shear are the usual causes.' : 'Oxidation or a long interval are the usual causes.'}`,
     },
   ];
@@ -497,7 +534,13 @@ export function findViscosityChange(ctx: RuleContext): Finding[] {
       ruleId: 'viscosity-change',
       level,
       measurands: ['KV100'],
-      numbers: { value: kv, newOil: own.value, changePercent, limit, fromNewOilReference: own.source === 'new-oil' ? 1 : 0 },
+      numbers: {
+        value: kv,
+        newOil: own.value,
+        changePercent,
+        limit,
+        fromNewOilReference: own.source === 'new-oil' ? 1 : 0,
+      },
       sentence:
         `${describe('KV100', kv)} is ${formatFigure(changePercent)} % ${kv < own.value ? 'thinner' : 'thicker'} than the oil as poured ` +
         `(${formatFigure(own.value)} mm²/s, from ${ownLevelWords(own)}). ${pointsTo('KV100')}`,
@@ -569,7 +612,12 @@ export function findConditionTrends(ctx: RuleContext): Finding[] {
     return points.length >= p.minPoints && ctx.sample.odometer > points[0]![0] ? points : undefined;
   };
   const tCrit = (n: number) => studentTQuantile(1 - p.alpha, n - 2);
-  const check = (code: 'KV100' | 'FUEL' | 'WATER', direction: 1 | -1, enough: (start: number, change: number) => boolean, words: string) => {
+  const check = (
+    code: 'KV100' | 'FUEL' | 'WATER',
+    direction: 1 | -1,
+    enough: (start: number, change: number) => boolean,
+    words: string,
+  ) => {
     const points = series(code);
     if (!points) return;
     const last = points[points.length - 1]![1];
@@ -588,12 +636,24 @@ export function findConditionTrends(ctx: RuleContext): Finding[] {
       sentence: `${getMeasurand(code).name} has been ${direction > 0 ? 'rising' : 'falling'} over the last ${points.length} samples (${direction > 0 ? 'up' : 'down'} about ${formatFigure(change)} ${getMeasurand(code).unit}). ${words}`,
     });
   };
-  check('KV100', -1, (start, change) => start > 0 && (100 * change) / start >= p.kv100DropPercent,
-    'Gearbox shear in a shared sump, or fuel building up, thins the oil slowly: consider a shear-stable oil or a shorter interval.');
-  check('FUEL', 1, (_s, change) => change >= p.fuelRisePoints,
-    'Fuel building up over a season of short trips: a longer ride that gets the oil fully hot usually helps.');
-  check('WATER', 1, (_s, change) => change >= p.waterRisePoints,
-    'Water building up: condensation from short trips or washing, or coolant on a liquid-cooled engine.');
+  check(
+    'KV100',
+    -1,
+    (start, change) => start > 0 && (100 * change) / start >= p.kv100DropPercent,
+    'Gearbox shear in a shared sump, or fuel building up, thins the oil slowly: consider a shear-stable oil or a shorter interval.',
+  );
+  check(
+    'FUEL',
+    1,
+    (_s, change) => change >= p.fuelRisePoints,
+    'Fuel building up over a season of short trips: a longer ride that gets the oil fully hot usually helps.',
+  );
+  check(
+    'WATER',
+    1,
+    (_s, change) => change >= p.waterRisePoints,
+    'Water building up: condensation from short trips or washing, or coolant on a liquid-cooled engine.',
+  );
   return findings;
 }
 
@@ -713,7 +773,9 @@ export function findAdditiveMismatch(ctx: RuleContext): Finding[] {
   const product = normaliseProduct(ctx.sample.oilProduct);
   const reference = ctx.sample.newOil;
   if (!product && !reference) return [];
-  const earlier = product ? ctx.history.slice(-p.lookBack).filter((s) => !s.baselineExcluded && normaliseProduct(s.oilProduct) === product) : [];
+  const earlier = product
+    ? ctx.history.slice(-p.lookBack).filter((s) => !s.baselineExcluded && normaliseProduct(s.oilProduct) === product)
+    : [];
   const moved: MeasurandCode[] = [];
   const numbers: Record<string, number> = { earlierSamples: earlier.length };
   let usedReference = false;
@@ -738,7 +800,9 @@ export function findAdditiveMismatch(ctx: RuleContext): Finding[] {
     }
   }
   if (moved.length === 0) return [];
-  const against = usedReference ? 'the new-oil reference of this oil' : `earlier samples of "${ctx.sample.oilProduct!.trim()}" (no new-oil reference is recorded)`;
+  const against = usedReference
+    ? 'the new-oil reference of this oil'
+    : `earlier samples of "${ctx.sample.oilProduct!.trim()}" (no new-oil reference is recorded)`;
   return [
     {
       ruleId: 'additive-mismatch',
@@ -766,7 +830,7 @@ export function findClutchFriction(ctx: RuleContext): Finding[] {
       numbers: { value: mo, watchFrom: CLUTCH_FRICTION.params.watchMoPpm, fromNewOilReference: fromNew ? 1 : 0 },
       sentence:
         `Molybdenum at ${formatFigure(mo)} ppm${fromNew ? ' in this oil as poured' : ''} points to a friction-modified oil. ` +
-        'This engine\'s wet clutch runs in the same oil, and friction modifiers can make it slip: an oil rated for wet clutches ' +
+        "This engine's wet clutch runs in the same oil, and friction modifiers can make it slip: an oil rated for wet clutches " +
         '(see the service manual) is the usual choice.',
     },
   ];

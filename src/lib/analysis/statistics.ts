@@ -55,7 +55,9 @@ export function regularizedIncompleteBeta(x: number, a: number, b: number): numb
   if (x <= 0) return 0;
   if (x >= 1) return 1;
   const front = Math.exp(logGamma(a + b) - logGamma(a) - logGamma(b) + a * Math.log(x) + b * Math.log(1 - x));
-  return x < (a + 1) / (a + b + 2) ? (front * betaContinuedFraction(a, b, x)) / a : 1 - (front * betaContinuedFraction(b, a, 1 - x)) / b;
+  return x < (a + 1) / (a + b + 2)
+    ? (front * betaContinuedFraction(a, b, x)) / a
+    : 1 - (front * betaContinuedFraction(b, a, 1 - x)) / b;
 }
 
 /** P(T ≤ t) for Student's t with `df` degrees of freedom. */

@@ -98,8 +98,8 @@ export function expectedStartSize(newMin: number, newMax: number, direction: 'mi
  * NIST/SEMATECH e-Handbook of Statistical Methods, section 1.3.6.7.2 (values from memory of that table).
  */
 const T975 = [
-  12.706, 4.303, 3.182, 2.776, 2.571, 2.447, 2.365, 2.306, 2.262, 2.228, 2.201, 2.179, 2.16, 2.145, 2.131, 2.12,
-  2.11, 2.101, 2.093, 2.086, 2.08, 2.074, 2.069, 2.064, 2.06, 2.056, 2.052, 2.048, 2.045, 2.042,
+  12.706, 4.303, 3.182, 2.776, 2.571, 2.447, 2.365, 2.306, 2.262, 2.228, 2.201, 2.179, 2.16, 2.145, 2.131, 2.12, 2.11,
+  2.101, 2.093, 2.086, 2.08, 2.074, 2.069, 2.064, 2.06, 2.056, 2.052, 2.048, 2.045, 2.042,
 ];
 
 /** The 95 % two-sided t critical value for df degrees of freedom (table to 30, then 40/60/120/∞ steps). */
@@ -170,8 +170,16 @@ export function forecastWearLimit(input: WearForecastInput): WearForecast {
     const rel = toGoDistance > 0 ? width / toGoDistance : Infinity;
     const sureness = rel > 1 ? 'wide' : rel > 0.4 ? 'moderate' : 'narrow';
     return {
-      status: 'forecast' as const, limitAt: at, low: lowClamped, high: highClamped, method, readings: readings.length, ratePer1000, sureness,
-      start: { odometer: fittedAt, value: startValue }, reversals,
+      status: 'forecast' as const,
+      limitAt: at,
+      low: lowClamped,
+      high: highClamped,
+      method,
+      readings: readings.length,
+      ratePer1000,
+      sureness,
+      start: { odometer: fittedAt, value: startValue },
+      reversals,
     } satisfies WearForecast;
   };
 
@@ -219,7 +227,11 @@ export function forecastWearLimit(input: WearForecastInput): WearForecast {
 }
 
 /** Each step between consecutive readings that moved away from the limit by more than the resolution. */
-function findReversals(readings: readonly WearReading[], toGo: (v: number) => number, resolution: number): WearReversal[] {
+function findReversals(
+  readings: readonly WearReading[],
+  toGo: (v: number) => number,
+  resolution: number,
+): WearReversal[] {
   const out: WearReversal[] = [];
   for (let i = 1; i < readings.length; i++) {
     const from = readings[i - 1]!;

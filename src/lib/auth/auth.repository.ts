@@ -22,10 +22,19 @@ export async function findUserById(db: Db, id: string) {
 }
 
 /** Inserts a user. */
-export async function insertUser(db: Db, v: { id: string; email: string; displayName: string; passwordHash: string; verified: boolean }): Promise<void> {
+export async function insertUser(
+  db: Db,
+  v: { id: string; email: string; displayName: string; passwordHash: string; verified: boolean },
+): Promise<void> {
   await db
     .insertInto('users')
-    .values({ id: v.id, email: v.email, display_name: v.displayName, password_hash: v.passwordHash, email_verified_at: v.verified ? new Date() : null })
+    .values({
+      id: v.id,
+      email: v.email,
+      display_name: v.displayName,
+      password_hash: v.passwordHash,
+      email_verified_at: v.verified ? new Date() : null,
+    })
     .execute();
 }
 
@@ -36,14 +45,32 @@ export async function updatePasswordHash(db: Db, userId: string, passwordHash: s
 
 /** Marks a user's address verified (kept if it already was). */
 export async function markEmailVerified(db: Db, userId: string): Promise<void> {
-  await db.updateTable('users').set({ email_verified_at: sql`coalesce(email_verified_at, now())` }).where('id', '=', userId).execute();
+  await db
+    .updateTable('users')
+    .set({ email_verified_at: sql`coalesce(email_verified_at, now())` })
+    .where('id', '=', userId)
+    .execute();
 }
 
 /** Saves display preferences. */
-export async function updateUserSettings(db: Db, userId: string, v: { distanceUnit: 'mi' | 'km'; lengthUnit: 'in' | 'mm'; temperatureUnit: 'F' | 'C'; displayName?: string | undefined }): Promise<void> {
+export async function updateUserSettings(
+  db: Db,
+  userId: string,
+  v: {
+    distanceUnit: 'mi' | 'km';
+    lengthUnit: 'in' | 'mm';
+    temperatureUnit: 'F' | 'C';
+    displayName?: string | undefined;
+  },
+): Promise<void> {
   await db
     .updateTable('users')
-    .set({ distance_unit: v.distanceUnit, length_unit: v.lengthUnit, temperature_unit: v.temperatureUnit, ...(v.displayName ? { display_name: v.displayName } : {}) })
+    .set({
+      distance_unit: v.distanceUnit,
+      length_unit: v.lengthUnit,
+      temperature_unit: v.temperatureUnit,
+      ...(v.displayName ? { display_name: v.displayName } : {}),
+    })
     .where('id', '=', userId)
     .execute();
 }
@@ -57,7 +84,10 @@ export async function deleteOtherSessions(db: Db, userId: string, keepSessionId:
 }
 
 /** Stores a token hash; earlier unused tokens of the same purpose are spent so only the newest link works. */
-export async function insertAuthToken(db: Db, v: { userId: string; purpose: AuthTokenPurpose; tokenHash: string; email: string; expiresAt: Date }): Promise<string> {
+export async function insertAuthToken(
+  db: Db,
+  v: { userId: string; purpose: AuthTokenPurpose; tokenHash: string; email: string; expiresAt: Date },
+): Promise<string> {
   await db
     .updateTable('auth_tokens')
     .set({ used_at: new Date() })

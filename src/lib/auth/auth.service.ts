@@ -7,8 +7,17 @@ import type { RateLimits } from '../rate-limit/rate-limits';
 import { acceptInvitationInTransaction } from '../crews/crews.service';
 import { findMembershipsForUser, insertCrew, insertMember } from '../crews/crews.repository';
 import {
-  deleteOtherSessions, findAuthToken, findUserByEmail, findUserById, insertAuthToken, insertUser, lockAuthToken,
-  markAuthTokenUsed, markEmailVerified, updatePasswordHash, updateUserSettings,
+  deleteOtherSessions,
+  findAuthToken,
+  findUserByEmail,
+  findUserById,
+  insertAuthToken,
+  insertUser,
+  lockAuthToken,
+  markAuthTokenUsed,
+  markEmailVerified,
+  updatePasswordHash,
+  updateUserSettings,
 } from './auth.repository';
 import type { ChangePasswordInput, SignInInput, SignUpInput, UnitsInput } from './auth';
 import { composePasswordResetEmail, composeVerificationEmail } from './emails';
@@ -31,22 +40,38 @@ export interface RequestMeta {
   ip: string | null;
 }
 
-const INVALID_CREDENTIALS = () => refuse(401, 'invalid_credentials', 'That e-mail address and password do not match an account.');
+const INVALID_CREDENTIALS = () =>
+  refuse(401, 'invalid_credentials', 'That e-mail address and password do not match an account.');
 const rateLimited = (retryAfterSeconds: number) =>
-  refuse(429, 'rate_limited', `Too many attempts. Try again in ${Math.ceil(retryAfterSeconds / 60)} minute(s).`, {}, { retryAfterSeconds });
+  refuse(
+    429,
+    'rate_limited',
+    `Too many attempts. Try again in ${Math.ceil(retryAfterSeconds / 60)} minute(s).`,
+    {},
+    { retryAfterSeconds },
+  );
 
 function link(deps: AuthDeps, path: string): string {
   return new URL(path, deps.publicUrl).toString();
 }
 
-async function queueVerification(deps: AuthDeps, db: Parameters<typeof queueMail>[0], user: { id: string; email: string; display_name: string }): Promise<string> {
+async function queueVerification(
+  deps: AuthDeps,
+  db: Parameters<typeof queueMail>[0],
+  user: { id: string; email: string; display_name: string },
+): Promise<string> {
   const token = generateToken();
   const tokenId = await insertAuthToken(db, {
-    userId: user.id, purpose: 'verify_email', tokenHash: hashToken(token), email: user.email,
+    userId: user.id,
+    purpose: 'verify_email',
+    tokenHash: hashToken(token),
+    email: user.email,
     expiresAt: new Date(Date.now() + TOKEN_LIFETIME_MS.verify_email),
   });
   const mail = composeVerificationEmail({
-    displayName: user.display_name, url: link(deps, `/verify-email?token=${token}`), validHours: TOKEN_LIFETIME_MS.verify_email / 3_600_000,
+    displayName: user.display_name,
+    url: link(deps, `/verify-email?token=${token}`),
+    validHours: TOKEN_LIFETIME_MS.verify_email / 3_600_000,
   });
   await queueMail(db, { to: user.email, ...mail, idempotencyKey: `verify_email:${tokenId}`, kind: 'verify_email' });
   return token;
@@ -56,11 +81,17 @@ async function queueVerification(deps: AuthDeps, db: Parameters<typeof queueMail
  * Creates an account with its own crew (the user leads it), queues the verification message and opens a
  * session. With an invitation token for the same address the user also joins that crew and starts there.
  */
-export async function signUp(deps: AuthDeps, input: SignUpInput, meta: RequestMeta): Promise<Result<{ userId: string; crewId: string; cookie: SessionCookie; verificationToken: string | null }>> {
+export async function signUp(
+  deps: AuthDeps,
+  input: SignUpInput,
+  meta: RequestMeta,
+): Promise<Result<{ userId: string; crewId: string; cookie: SessionCookie; verificationToken: string | null }>> {
   const limit = await deps.limits.consume('signUpIp', meta.ip ?? 'unknown');
   if (!limit.allowed) return rateLimited(limit.retryAfterSeconds);
   if (await findUserByEmail(deps.db, input.email)) {
-    return refuse(409, 'email_taken', 'An account with this address already exists.', { email: 'An account with this address already exists. Sign in, or reset the password.' });
+    return refuse(409, 'email_taken', 'An account with this address already exists.', {
+      email: 'An account with this address already exists. Sign in, or reset the password.',
+    });
   }
   const passwordHash = await hashPassword(input.password);
   const userId = newUserId();
@@ -76,24 +107,41 @@ export async function signUp(deps: AuthDeps, input: SignUpInput, meta: RequestMe
       let crewId = ownCrewId;
       let verificationToken: string | null = null;
       if (input.invitation) {
-        const joined = await acceptInvitationInTransaction(trx, input.invitation, { id: userId, email: input.email }, meta);
+        const joined = await acceptInvitationInTransaction(
+          trx,
+          input.invitation,
+          { id: userId, email: input.email },
+          meta,
+        );
         // Throwing rolls the whole sign-up back: no half-made account for a bad invitation.
         if (!joined.ok) throw new SignUpAborted(joined);
         crewId = joined.value.crewId;
       } else {
-        verificationToken = await queueVerification(deps, trx, { id: userId, email: input.email, display_name: displayName });
+        verificationToken = await queueVerification(deps, trx, {
+          id: userId,
+          email: input.email,
+          display_name: displayName,
+        });
       }
       return succeed({ crewId, verificationToken });
     });
   } catch (error) {
     if (error instanceof SignUpAborted) outcome = error.failure;
     // Two sign-ups for one address racing: the unique index on lower(email) decides.
-    else if (uniqueViolation(error, 'users_email_lower_key')) outcome = refuse(409, 'email_taken', 'An account with this address already exists.', { email: 'An account with this address already exists.' });
+    else if (uniqueViolation(error, 'users_email_lower_key'))
+      outcome = refuse(409, 'email_taken', 'An account with this address already exists.', {
+        email: 'An account with this address already exists.',
+      });
     else throw error;
   }
   if (!outcome.ok) return outcome;
   const session = await deps.lucia.createSession(userId, { current_crew_id: outcome.value.crewId });
-  return succeed({ userId, crewId: outcome.value.crewId, cookie: deps.lucia.createSessionCookie(session.id), verificationToken: outcome.value.verificationToken });
+  return succeed({
+    userId,
+    crewId: outcome.value.crewId,
+    cookie: deps.lucia.createSessionCookie(session.id),
+    verificationToken: outcome.value.verificationToken,
+  });
 }
 
 class SignUpAborted extends Error {
@@ -106,7 +154,11 @@ class SignUpAborted extends Error {
  * Checks e-mail and password and opens a fresh session (the old one, if any, ends: the id rotates).
  * Unknown address and wrong password give the same answer after the same Argon2 work.
  */
-export async function signIn(deps: AuthDeps, input: SignInInput, meta: RequestMeta & { previousSessionId?: string | null; knownDevice?: boolean }): Promise<Result<{ userId: string; cookie: SessionCookie }>> {
+export async function signIn(
+  deps: AuthDeps,
+  input: SignInInput,
+  meta: RequestMeta & { previousSessionId?: string | null; knownDevice?: boolean },
+): Promise<Result<{ userId: string; cookie: SessionCookie }>> {
   const ip = meta.ip ?? 'unknown';
   const pairKey = `${input.email}|${ip}`;
   // Spend first, then check the password: parallel guesses each spend a point before any of them is judged.
@@ -117,12 +169,25 @@ export async function signIn(deps: AuthDeps, input: SignInInput, meta: RequestMe
   const refused = verdicts.find((v) => !v.allowed);
   if (refused) {
     await recordAuditEvent(deps.db, { kind: 'sign_in_failed', ip: meta.ip, detail: { reason: 'rate_limited' } });
-    return refuse(429, 'rate_limited', `Too many sign-in attempts. Try again in ${Math.ceil(refused.retryAfterSeconds / 60)} minute(s), or reset your password by e-mail.`, {}, { retryAfterSeconds: refused.retryAfterSeconds });
+    return refuse(
+      429,
+      'rate_limited',
+      `Too many sign-in attempts. Try again in ${Math.ceil(refused.retryAfterSeconds / 60)} minute(s), or reset your password by e-mail.`,
+      {},
+      { retryAfterSeconds: refused.retryAfterSeconds },
+    );
   }
   const user = await findUserByEmail(deps.db, input.email);
-  const matches = user ? await verifyPassword(user.password_hash, input.password) : await verifyAgainstDummy(input.password);
+  const matches = user
+    ? await verifyPassword(user.password_hash, input.password)
+    : await verifyAgainstDummy(input.password);
   if (!user || !matches) {
-    await recordAuditEvent(deps.db, { kind: 'sign_in_failed', subjectUserId: user?.id ?? null, ip: meta.ip, detail: { reason: user ? 'wrong_password' : 'unknown_email' } });
+    await recordAuditEvent(deps.db, {
+      kind: 'sign_in_failed',
+      subjectUserId: user?.id ?? null,
+      ip: meta.ip,
+      detail: { reason: user ? 'wrong_password' : 'unknown_email' },
+    });
     return INVALID_CREDENTIALS();
   }
   // The owner's own attempt: it clears this address's failures on the account and gives back what it spent.
@@ -137,38 +202,75 @@ export async function signIn(deps: AuthDeps, input: SignInInput, meta: RequestMe
 }
 
 /** Ends one session and returns the blank cookie that clears it in the browser. */
-export async function signOut(deps: AuthDeps, session: { id: string; userId: string }, meta: RequestMeta): Promise<SessionCookie> {
+export async function signOut(
+  deps: AuthDeps,
+  session: { id: string; userId: string },
+  meta: RequestMeta,
+): Promise<SessionCookie> {
   await deps.lucia.invalidateSession(session.id);
-  await recordAuditEvent(deps.db, { kind: 'sign_out', actorUserId: session.userId, subjectUserId: session.userId, ip: meta.ip });
+  await recordAuditEvent(deps.db, {
+    kind: 'sign_out',
+    actorUserId: session.userId,
+    subjectUserId: session.userId,
+    ip: meta.ip,
+  });
   return deps.lucia.createBlankSessionCookie();
 }
 
 /** Changes the password after checking the current one; every other session of the user ends. */
-export async function changePassword(deps: AuthDeps, userId: string, currentSessionId: string, input: ChangePasswordInput, meta: RequestMeta): Promise<Result<{ endedSessions: number }>> {
+export async function changePassword(
+  deps: AuthDeps,
+  userId: string,
+  currentSessionId: string,
+  input: ChangePasswordInput,
+  meta: RequestMeta,
+): Promise<Result<{ endedSessions: number }>> {
   // A stolen session must not become a way to guess the current password without limit.
   const limit = await deps.limits.consume('passwordChangeUser', userId);
   if (!limit.allowed) return rateLimited(limit.retryAfterSeconds);
   const user = await findUserById(deps.db, userId);
   if (!user || !(await verifyPassword(user.password_hash, input.currentPassword))) {
-    return refuse(400, 'wrong_password', 'The current password is not right.', { currentPassword: 'That is not your current password.' });
+    return refuse(400, 'wrong_password', 'The current password is not right.', {
+      currentPassword: 'That is not your current password.',
+    });
   }
   const passwordHash = await hashPassword(input.newPassword);
   const endedSessions = await deps.db.transaction().execute(async (trx) => {
     await updatePasswordHash(trx, userId, passwordHash);
     const ended = await deleteOtherSessions(trx, userId, currentSessionId);
-    await recordAuditEvent(trx, { kind: 'password_changed', actorUserId: userId, subjectUserId: userId, ip: meta.ip, detail: { endedSessions: ended } });
+    await recordAuditEvent(trx, {
+      kind: 'password_changed',
+      actorUserId: userId,
+      subjectUserId: userId,
+      ip: meta.ip,
+      detail: { endedSessions: ended },
+    });
     return ended;
   });
   return succeed({ endedSessions });
 }
 
 /** Queues a fresh verification message (the previous link stops working); limited per account and per address. */
-export async function requestEmailVerification(deps: AuthDeps, userId: string, meta: RequestMeta): Promise<Result<{ token: string | null }>> {
+export async function requestEmailVerification(
+  deps: AuthDeps,
+  userId: string,
+  meta: RequestMeta,
+): Promise<Result<{ token: string | null }>> {
   const user = await findUserById(deps.db, userId);
   if (!user) return refuse(404, 'not_found', 'No such account.');
   if (user.email_verified_at) return succeed({ token: null });
-  for (const verdict of [await deps.limits.consume('verifyResendUser', userId), await deps.limits.consume('verifyResendIp', meta.ip ?? 'unknown')]) {
-    if (!verdict.allowed) return refuse(429, 'rate_limited', `Several links are already on their way; look for them (and in the spam folder), or ask for another in ${Math.ceil(verdict.retryAfterSeconds / 60)} minute(s).`, {}, { retryAfterSeconds: verdict.retryAfterSeconds });
+  for (const verdict of [
+    await deps.limits.consume('verifyResendUser', userId),
+    await deps.limits.consume('verifyResendIp', meta.ip ?? 'unknown'),
+  ]) {
+    if (!verdict.allowed)
+      return refuse(
+        429,
+        'rate_limited',
+        `Several links are already on their way; look for them (and in the spam folder), or ask for another in ${Math.ceil(verdict.retryAfterSeconds / 60)} minute(s).`,
+        {},
+        { retryAfterSeconds: verdict.retryAfterSeconds },
+      );
   }
   const token = await deps.db.transaction().execute((trx) => queueVerification(deps, trx, user));
   return succeed({ token });
@@ -190,7 +292,11 @@ const TOKEN_FAILURES: Record<Exclude<TokenState, 'valid'>, () => Refusal> = {
 };
 
 /** Spends a verification token and marks the address verified. */
-export async function verifyEmail(deps: AuthDeps, token: string, meta: RequestMeta): Promise<Result<{ userId: string }>> {
+export async function verifyEmail(
+  deps: AuthDeps,
+  token: string,
+  meta: RequestMeta,
+): Promise<Result<{ userId: string }>> {
   return deps.db.transaction().execute(async (trx) => {
     const row = await lockAuthToken(trx, hashToken(token), 'verify_email');
     const state = tokenState(row);
@@ -200,7 +306,12 @@ export async function verifyEmail(deps: AuthDeps, token: string, meta: RequestMe
     if (!user || user.email.toLowerCase() !== row.email.toLowerCase()) return TOKEN_FAILURES.invalid();
     await markAuthTokenUsed(trx, row.id);
     await markEmailVerified(trx, row.user_id);
-    await recordAuditEvent(trx, { kind: 'email_verified', actorUserId: row.user_id, subjectUserId: row.user_id, ip: meta.ip });
+    await recordAuditEvent(trx, {
+      kind: 'email_verified',
+      actorUserId: row.user_id,
+      subjectUserId: row.user_id,
+      ip: meta.ip,
+    });
     return succeed({ userId: row.user_id });
   });
 }
@@ -209,8 +320,15 @@ export async function verifyEmail(deps: AuthDeps, token: string, meta: RequestMe
  * Queues a reset link when the address has an account. The answer is the same either way, so the form
  * cannot be used to find out who has an account.
  */
-export async function requestPasswordReset(deps: AuthDeps, email: string, meta: RequestMeta): Promise<Result<{ token: string | null }>> {
-  for (const verdict of [await deps.limits.consume('resetIp', meta.ip ?? 'unknown'), await deps.limits.consume('resetEmail', email)]) {
+export async function requestPasswordReset(
+  deps: AuthDeps,
+  email: string,
+  meta: RequestMeta,
+): Promise<Result<{ token: string | null }>> {
+  for (const verdict of [
+    await deps.limits.consume('resetIp', meta.ip ?? 'unknown'),
+    await deps.limits.consume('resetEmail', email),
+  ]) {
     if (!verdict.allowed) return rateLimited(verdict.retryAfterSeconds);
   }
   const user = await findUserByEmail(deps.db, email);
@@ -218,13 +336,23 @@ export async function requestPasswordReset(deps: AuthDeps, email: string, meta: 
   const token = generateToken();
   await deps.db.transaction().execute(async (trx) => {
     const tokenId = await insertAuthToken(trx, {
-      userId: user.id, purpose: 'reset_password', tokenHash: hashToken(token), email: user.email,
+      userId: user.id,
+      purpose: 'reset_password',
+      tokenHash: hashToken(token),
+      email: user.email,
       expiresAt: new Date(Date.now() + TOKEN_LIFETIME_MS.reset_password),
     });
     const mail = composePasswordResetEmail({
-      displayName: user.display_name, url: link(deps, `/reset-password?token=${token}`), validMinutes: TOKEN_LIFETIME_MS.reset_password / 60_000,
+      displayName: user.display_name,
+      url: link(deps, `/reset-password?token=${token}`),
+      validMinutes: TOKEN_LIFETIME_MS.reset_password / 60_000,
     });
-    await queueMail(trx, { to: user.email, ...mail, idempotencyKey: `reset_password:${tokenId}`, kind: 'reset_password' });
+    await queueMail(trx, {
+      to: user.email,
+      ...mail,
+      idempotencyKey: `reset_password:${tokenId}`,
+      kind: 'reset_password',
+    });
   });
   return succeed({ token });
 }
@@ -235,7 +363,11 @@ export async function checkResetToken(deps: Pick<AuthDeps, 'db'>, token: string)
 }
 
 /** Spends a reset token, sets the new password and ends every session of the account. */
-export async function resetPassword(deps: AuthDeps, input: { token: string; password: string }, meta: RequestMeta): Promise<Result<{ userId: string }>> {
+export async function resetPassword(
+  deps: AuthDeps,
+  input: { token: string; password: string },
+  meta: RequestMeta,
+): Promise<Result<{ userId: string }>> {
   const passwordHash = await hashPassword(input.password);
   return deps.db.transaction().execute(async (trx) => {
     const row = await lockAuthToken(trx, hashToken(input.token), 'reset_password');

@@ -18,7 +18,10 @@ export const newPasswordSchema = z
   .max(PASSWORD_MAX_LENGTH, `Use at most ${PASSWORD_MAX_LENGTH} characters.`);
 
 /** Sign-in takes any string as the password: length rules apply to new passwords only. */
-const anyPasswordSchema = z.string({ error: 'Enter your password.' }).min(1, 'Enter your password.').max(1024, 'That password is too long.');
+const anyPasswordSchema = z
+  .string({ error: 'Enter your password.' })
+  .min(1, 'Enter your password.')
+  .max(1024, 'That password is too long.');
 
 export const displayNameSchema = z.string().trim().max(80, 'Use at most 80 characters.');
 
@@ -33,7 +36,10 @@ export type SignUpInput = z.infer<typeof signUpSchema>;
 export const signInSchema = z.strictObject({ email: emailSchema, password: anyPasswordSchema });
 export type SignInInput = z.infer<typeof signInSchema>;
 
-export const changePasswordSchema = z.strictObject({ currentPassword: anyPasswordSchema, newPassword: newPasswordSchema });
+export const changePasswordSchema = z.strictObject({
+  currentPassword: anyPasswordSchema,
+  newPassword: newPasswordSchema,
+});
 export type ChangePasswordInput = z.infer<typeof changePasswordSchema>;
 
 export const requestResetSchema = z.strictObject({ email: emailSchema });

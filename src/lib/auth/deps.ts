@@ -24,7 +24,11 @@ export function isKnownDeviceFor(cookies: AstroCookies, email: string): boolean 
 /** Marks this browser as one the owner of `email` signs in from. */
 export function rememberKnownDevice(cookies: AstroCookies, email: string): void {
   cookies.set(KNOWN_DEVICE_COOKIE, markKnownDevice(readAppSecret(getConfig().APP_SECRET), email), {
-    httpOnly: true, sameSite: 'lax', path: '/', maxAge: KNOWN_DEVICE_MAX_AGE_SECONDS, secure: isSecureOrigin(getConfig()),
+    httpOnly: true,
+    sameSite: 'lax',
+    path: '/',
+    maxAge: KNOWN_DEVICE_MAX_AGE_SECONDS,
+    secure: isSecureOrigin(getConfig()),
   });
 }
 

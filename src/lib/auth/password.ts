@@ -3,7 +3,13 @@ import { hash, verify, type Algorithm, type Options } from '@node-rs/argon2';
 // Argon2id with m = 19 MiB, t = 2, p = 1: the minimum configuration in the OWASP Password Storage Cheat
 // Sheet (Argon2id section). `2` is Algorithm.Argon2id in @node-rs/argon2 (a const enum we cannot import
 // under isolatedModules).
-const ARGON2ID_OPTIONS: Options = { algorithm: 2 as Algorithm, memoryCost: 19456, timeCost: 2, parallelism: 1, outputLen: 32 };
+const ARGON2ID_OPTIONS: Options = {
+  algorithm: 2 as Algorithm,
+  memoryCost: 19456,
+  timeCost: 2,
+  parallelism: 1,
+  outputLen: 32,
+};
 
 /** Length rules only (NIST SP 800-63B §3.1.1.2: at least 8, allow at least 64, no composition rules). */
 export const PASSWORD_MIN_LENGTH = 10;

@@ -85,7 +85,11 @@ export interface LoadedSession {
  * Validates the session cookie (refreshing or clearing it as Lucia says) and resolves the crew the
  * session works in: the one it points at if the user is still a member, else their first crew.
  */
-export async function loadSession(db: Kysely<Database>, lucia: AppLucia, cookies: AstroCookies): Promise<LoadedSession | null> {
+export async function loadSession(
+  db: Kysely<Database>,
+  lucia: AppLucia,
+  cookies: AstroCookies,
+): Promise<LoadedSession | null> {
   const sessionId = cookies.get(lucia.sessionCookieName)?.value ?? null;
   if (!sessionId) return null;
   const { session, user } = await lucia.validateSession(sessionId);
@@ -102,8 +106,13 @@ export async function loadSession(db: Kysely<Database>, lucia: AppLucia, cookies
   const crew = crews.find((c) => c.crewId === session.currentCrewId) ?? crews[0] ?? null;
   return {
     user: {
-      id: user.id, email: user.email, displayName: user.displayName, emailVerified: user.emailVerified,
-      distanceUnit: user.distanceUnit, lengthUnit: user.lengthUnit, temperatureUnit: user.temperatureUnit,
+      id: user.id,
+      email: user.email,
+      displayName: user.displayName,
+      emailVerified: user.emailVerified,
+      distanceUnit: user.distanceUnit,
+      lengthUnit: user.lengthUnit,
+      temperatureUnit: user.temperatureUnit,
     },
     session: { id: session.id, expiresAt: session.expiresAt, fresh: session.fresh },
     crews,

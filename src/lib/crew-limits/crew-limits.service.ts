@@ -16,12 +16,16 @@ export interface SavedLimits {
 }
 
 /** The change in words for the crew's log ("Iron: 100 → 80 ppm; Water: 0.05 → default"). */
-export function describeChanges(changes: readonly { measurand: string; from: number | null; to: number | null }[]): string {
-  return changes.map((c) => {
-    const f = LIMIT_FIELDS.find((x) => x.measurand === c.measurand)!;
-    const word = (v: number | null) => (v === null ? `default ${f.defaultValue}` : String(v));
-    return `${f.label}: ${word(c.from)} → ${word(c.to)} ${f.unit}`;
-  }).join('; ');
+export function describeChanges(
+  changes: readonly { measurand: string; from: number | null; to: number | null }[],
+): string {
+  return changes
+    .map((c) => {
+      const f = LIMIT_FIELDS.find((x) => x.measurand === c.measurand)!;
+      const word = (v: number | null) => (v === null ? `default ${f.defaultValue}` : String(v));
+      return `${f.label}: ${word(c.from)} → ${word(c.to)} ${f.unit}`;
+    })
+    .join('; ');
 }
 
 /** The crew's limits as stored (for the form). */
@@ -35,7 +39,10 @@ export async function loadCrewLimits(db: Kysely<Database>, membership: CrewMembe
  * stored findings and interval calls never disagree with the limits on this page.
  */
 export async function saveCrewLimits(
-  db: Kysely<Database>, actor: Actor<CrewMembership | null>, values: LimitValues, meta: { ip: string | null },
+  db: Kysely<Database>,
+  actor: Actor<CrewMembership | null>,
+  values: LimitValues,
+  meta: { ip: string | null },
 ): Promise<Result<SavedLimits>> {
   if (!actor.membership) return refuse(404, 'not_found', 'No such crew.');
   if (!canEditLimits(actor.membership)) return refuseForbidden('Only a lead of this crew changes its alert limits.');
@@ -53,7 +60,13 @@ export async function saveCrewLimits(
       changes.push({ measurand: f.measurand, from, to });
     }
     if (changes.length === 0) return succeed({ changed: 0, machinesJudged: 0 });
-    await recordAuditEvent(trx, { kind: 'alert_limits_changed', crewId, actorUserId: actor.userId, ip: meta.ip, detail: { limits: describeChanges(changes) } });
+    await recordAuditEvent(trx, {
+      kind: 'alert_limits_changed',
+      crewId,
+      actorUserId: actor.userId,
+      ip: meta.ip,
+      detail: { limits: describeChanges(changes) },
+    });
     const machines = await listCrewMachineSamples(trx, crewId);
     let judged = 0;
     for (const [machineId, sampleIds] of machines) {

@@ -43,7 +43,9 @@ export function describeAuditWho(e: Pick<AuditEvent, 'actorName' | 'subjectName'
 
 /** An audit event's detail as "key: value" pairs. */
 export function describeAuditDetail(detail: Record<string, unknown>): string {
-  return Object.entries(detail).map(([k, v]) => `${k}: ${String(v)}`).join(', ');
+  return Object.entries(detail)
+    .map(([k, v]) => `${k}: ${String(v)}`)
+    .join(', ');
 }
 
 /** The crew page's model. */
@@ -61,7 +63,10 @@ export function buildCrewPageView(input: CrewPageInput): CrewPageView {
       roles: ROLES.map((r) => ({ value: r, label: ROLE_LABELS[r], selected: r === m.role })),
       removeLabel: m.userId === input.userId ? 'Leave crew' : 'Remove',
     })),
-    invitations: input.invitations.map((i) => ({ id: i.id, text: `${i.email} · ${ROLE_LABELS[i.role]} · until ${formatUtcMinute(i.expiresAt)} UTC` })),
+    invitations: input.invitations.map((i) => ({
+      id: i.id,
+      text: `${i.email} · ${ROLE_LABELS[i.role]} · until ${formatUtcMinute(i.expiresAt)} UTC`,
+    })),
     audit: input.audit.map((e) => ({
       when: formatUtcMinute(e.at),
       event: AUDIT_LABELS[e.kind] ?? e.kind,

@@ -60,19 +60,34 @@ export async function listMembers(db: Db, crewId: string): Promise<CrewMember[]>
 
 /** Locks the crew's membership rows and returns each member's role (for last-lead checks in a transaction). */
 export async function lockMemberRoles(trx: Transaction<Database>, crewId: string): Promise<Map<string, Role>> {
-  const rows = await trx.selectFrom('crew_members').select(['user_id', 'role']).where('crew_id', '=', crewId).forUpdate().execute();
+  const rows = await trx
+    .selectFrom('crew_members')
+    .select(['user_id', 'role'])
+    .where('crew_id', '=', crewId)
+    .forUpdate()
+    .execute();
   return new Map(rows.map((r) => [r.user_id, r.role]));
 }
 
 /** Sets a member's role. */
 export async function updateMemberRole(db: Db, crewId: string, userId: string, role: Role): Promise<void> {
-  await db.updateTable('crew_members').set({ role }).where('crew_id', '=', crewId).where('user_id', '=', userId).execute();
+  await db
+    .updateTable('crew_members')
+    .set({ role })
+    .where('crew_id', '=', crewId)
+    .where('user_id', '=', userId)
+    .execute();
 }
 
 /** Removes a member and clears sessions that were working in that crew. */
 export async function deleteMember(db: Db, crewId: string, userId: string): Promise<void> {
   await db.deleteFrom('crew_members').where('crew_id', '=', crewId).where('user_id', '=', userId).execute();
-  await db.updateTable('sessions').set({ current_crew_id: null }).where('user_id', '=', userId).where('current_crew_id', '=', crewId).execute();
+  await db
+    .updateTable('sessions')
+    .set({ current_crew_id: null })
+    .where('user_id', '=', userId)
+    .where('current_crew_id', '=', crewId)
+    .execute();
 }
 
 /** Points a session at a crew. */
@@ -81,10 +96,20 @@ export async function updateSessionCrew(db: Db, sessionId: string, crewId: strin
 }
 
 /** Stores an invitation (its token only as a hash). */
-export async function insertInvitation(db: Db, v: { crewId: string; email: string; role: Role; tokenHash: string; invitedBy: string; expiresAt: Date }): Promise<string> {
+export async function insertInvitation(
+  db: Db,
+  v: { crewId: string; email: string; role: Role; tokenHash: string; invitedBy: string; expiresAt: Date },
+): Promise<string> {
   const row = await db
     .insertInto('crew_invitations')
-    .values({ crew_id: v.crewId, email: v.email, role: v.role, token_hash: v.tokenHash, invited_by: v.invitedBy, expires_at: v.expiresAt })
+    .values({
+      crew_id: v.crewId,
+      email: v.email,
+      role: v.role,
+      token_hash: v.tokenHash,
+      invited_by: v.invitedBy,
+      expires_at: v.expiresAt,
+    })
     .returning('id')
     .executeTakeFirstOrThrow();
   return row.id;
@@ -107,7 +132,16 @@ export async function findInvitationByHash(db: Db, tokenHash: string) {
   return db
     .selectFrom('crew_invitations as i')
     .innerJoin('crews as c', 'c.id', 'i.crew_id')
-    .select(['i.id', 'i.crew_id as crewId', 'c.name as crewName', 'i.email', 'i.role', 'i.expires_at as expiresAt', 'i.accepted_at as acceptedAt', 'i.revoked_at as revokedAt'])
+    .select([
+      'i.id',
+      'i.crew_id as crewId',
+      'c.name as crewName',
+      'i.email',
+      'i.role',
+      'i.expires_at as expiresAt',
+      'i.accepted_at as acceptedAt',
+      'i.revoked_at as revokedAt',
+    ])
     .where('i.token_hash', '=', tokenHash)
     .executeTakeFirst();
 }
@@ -139,7 +173,11 @@ export async function listOpenInvitations(db: Db, crewId: string): Promise<Pendi
 }
 
 /** Withdraws one open invitation of a crew; false when there was none. */
-export async function revokeInvitation(db: Db, crewId: string, invitationId: string): Promise<{ email: string } | null> {
+export async function revokeInvitation(
+  db: Db,
+  crewId: string,
+  invitationId: string,
+): Promise<{ email: string } | null> {
   const row = await db
     .updateTable('crew_invitations')
     .set({ revoked_at: new Date() })

@@ -6,7 +6,11 @@ export { ROLES };
 
 export const roleSchema = z.enum(ROLES, 'Choose lead, mechanic or rider.');
 
-export const crewNameSchema = z.string({ error: 'Enter a name for the crew.' }).trim().min(1, 'Enter a name for the crew.').max(80, 'Use at most 80 characters.');
+export const crewNameSchema = z
+  .string({ error: 'Enter a name for the crew.' })
+  .trim()
+  .min(1, 'Enter a name for the crew.')
+  .max(80, 'Use at most 80 characters.');
 
 export const createCrewSchema = z.strictObject({ name: crewNameSchema });
 export const inviteSchema = z.strictObject({ email: emailSchema, role: roleSchema });

@@ -4,7 +4,13 @@ import { renderMailLayout } from '../mail/templates';
 import { ROLE_HINTS } from './crews';
 
 /** The invitation to join a crew with a role. */
-export function composeInvitationEmail(input: { crewName: string; inviterName: string; role: Role; url: string; validDays: number }): MailText {
+export function composeInvitationEmail(input: {
+  crewName: string;
+  inviterName: string;
+  role: Role;
+  url: string;
+  validDays: number;
+}): MailText {
   const subject = `${input.inviterName} invites you to the crew ${input.crewName} on Sumpwise`;
   return {
     subject: subject.length > 200 ? `You are invited to a crew on Sumpwise` : subject,

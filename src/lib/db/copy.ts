@@ -52,7 +52,9 @@ export function encodeCopyValue(value: CopyValue): string {
     if (!Number.isFinite(value)) throw new Error(`COPY cannot write ${value}`);
     return String(value);
   }
-  return /[\\\t\n\r]/.test(value) ? value.replace(/[\\\t\n\r]/g, (c) => (c === '\\' ? '\\\\' : c === '\t' ? '\\t' : c === '\n' ? '\\n' : '\\r')) : value;
+  return /[\\\t\n\r]/.test(value)
+    ? value.replace(/[\\\t\n\r]/g, (c) => (c === '\\' ? '\\\\' : c === '\t' ? '\\t' : c === '\n' ? '\\n' : '\\r'))
+    : value;
 }
 
 const IDENTIFIER = /^[a-z_][a-z0-9_]*$/;
@@ -61,8 +63,14 @@ const IDENTIFIER = /^[a-z_][a-z0-9_]*$/;
  * COPY the rows into `table` (its `columns`, in order) on the connection of `db`: inside a transaction, as part
  * of it. Returns the number of rows PostgreSQL took. Table and column names are code, never input.
  */
-export async function copyRows(db: Kysely<any>, table: string, columns: readonly string[], rows: Iterable<readonly CopyValue[]>): Promise<number> {
-  for (const name of [table, ...columns]) if (!IDENTIFIER.test(name)) throw new Error(`not a plain identifier: ${name}`);
+export async function copyRows(
+  db: Kysely<any>,
+  table: string,
+  columns: readonly string[],
+  rows: Iterable<readonly CopyValue[]>,
+): Promise<number> {
+  for (const name of [table, ...columns])
+    if (!IDENTIFIER.test(name)) throw new Error(`not a plain identifier: ${name}`);
   const statement = `copy ${table} (${columns.join(', ')}) from stdin`;
   const result = await db.executeQuery(CompiledQuery.raw(statement, [new CopySource(rows)]));
   return Number(result.numAffectedRows ?? (result.rows[0] as { rowCount?: number } | undefined)?.rowCount ?? 0);

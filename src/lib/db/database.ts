@@ -388,7 +388,8 @@ export type DevMailboxRow = Selectable<DevMailboxTable>;
 
 // ---- alerts and reminders (migration 2026_12_02_0700)
 
-export type NotificationKind = 'import_findings' | 'sample_due' | 'shipped_overdue' | 'invitation_pending' | 'lab_report_arrived';
+export type NotificationKind =
+  'import_findings' | 'sample_due' | 'shipped_overdue' | 'invitation_pending' | 'lab_report_arrived';
 export type NotificationDelivery = 'immediate' | 'digest' | 'off';
 
 /** How one user wants one kind of message from one crew; no row means the kind's default. */

@@ -22,7 +22,9 @@ export function createPool(connectionString: string, options: { max?: number } =
   // An idle client losing its server (a restart) must not crash the process; the pool drops it. A client
   // whose connection is killed mid-query also emits 'error' after the query has failed: swallow that too.
   pool.on('error', () => {});
-  pool.on('connect', (client) => { client.on('error', () => {}); });
+  pool.on('connect', (client) => {
+    client.on('error', () => {});
+  });
   return pool;
 }
 

@@ -13,7 +13,9 @@ class FolderMigrationProvider implements MigrationProvider {
     const migrations: Record<string, Migration> = {};
     for (const file of (await readdir(this.folder)).sort()) {
       if (!MIGRATION_FILE.test(file)) continue;
-      const mod = (await import(/* @vite-ignore */ pathToFileURL(path.join(this.folder, file)).href)) as Partial<Migration>;
+      const mod = (await import(
+        /* @vite-ignore */ pathToFileURL(path.join(this.folder, file)).href
+      )) as Partial<Migration>;
       if (typeof mod.up !== 'function' || typeof mod.down !== 'function') {
         throw new Error(`migration ${file} must export both up and down`);
       }

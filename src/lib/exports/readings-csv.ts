@@ -23,8 +23,20 @@ export interface ExportReading {
 }
 
 export const READINGS_CSV_HEADER = [
-  'machine', 'bottle_code', 'drawn_on', 'odometer', 'meter', 'distance_on_oil', 'sae_grade', 'oil_product', 'state',
-  'measurand', 'qualifier', 'value', 'unit', 'level',
+  'machine',
+  'bottle_code',
+  'drawn_on',
+  'odometer',
+  'meter',
+  'distance_on_oil',
+  'sae_grade',
+  'oil_product',
+  'state',
+  'measurand',
+  'qualifier',
+  'value',
+  'unit',
+  'level',
 ] as const;
 
 /** One CSV field: neutralised when formula-like, quoted when it holds a comma, quote or line break (RFC 4180). */
@@ -45,9 +57,20 @@ export function buildReadingsCsv(rows: Iterable<ExportReading>): string {
   for (const r of rows) {
     const digits = r.meter === 'h' ? 1 : 0;
     out += formatCsvLine([
-      r.machineName, r.bottleCode, r.drawnOn, roundTo(fromStoredMeter(r.odometerStored, r.meter), digits), r.meter,
+      r.machineName,
+      r.bottleCode,
+      r.drawnOn,
+      roundTo(fromStoredMeter(r.odometerStored, r.meter), digits),
+      r.meter,
       r.distanceOnOilStored === null ? null : roundTo(fromStoredMeter(r.distanceOnOilStored, r.meter), digits),
-      r.grade, r.oilProduct, r.state, r.measurand, r.qualifier, r.value, r.unit, r.level,
+      r.grade,
+      r.oilProduct,
+      r.state,
+      r.measurand,
+      r.qualifier,
+      r.value,
+      r.unit,
+      r.level,
     ]);
   }
   return out;
@@ -55,6 +78,11 @@ export function buildReadingsCsv(rows: Iterable<ExportReading>): string {
 
 /** A file name safe for a Content-Disposition header. */
 export function buildExportFileName(scope: string, today: string): string {
-  const slug = scope.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '').slice(0, 40) || 'readings';
+  const slug =
+    scope
+      .toLowerCase()
+      .replace(/[^a-z0-9]+/g, '-')
+      .replace(/^-+|-+$/g, '')
+      .slice(0, 40) || 'readings';
   return `sumpwise-${slug}-${today}.csv`;
 }

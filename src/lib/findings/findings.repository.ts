@@ -32,15 +32,37 @@ export function findMachineOfSample(db: Db, sampleId: string) {
 export function findMachineProfile(db: Db, machineId: string) {
   return db
     .selectFrom('machines')
-    .select(['id', 'crew_id', 'cooling', 'meter', 'oil_capacity_l', 'max_interval_distance', 'max_interval_days', 'shared_oil', 'judged_by', 'engine_layout', 'displacement_cc'])
+    .select([
+      'id',
+      'crew_id',
+      'cooling',
+      'meter',
+      'oil_capacity_l',
+      'max_interval_distance',
+      'max_interval_days',
+      'shared_oil',
+      'judged_by',
+      'engine_layout',
+      'displacement_cc',
+    ])
     .where('id', '=', machineId)
     .executeTakeFirst();
 }
 
 /** What the engine needs of a stored sample (with a left join of its oil change). */
 const SAMPLE_POINT_COLUMNS = [
-  'samples.id', 'samples.drawn_on', 'samples.odometer', 'samples.distance_on_oil', 'samples.top_up_l', 'samples.sae_grade',
-  'samples.oil_product', 'samples.in_baseline', 'samples.baseline_note', 'samples.break_in', 'samples.created_at', 'oil_changes.volume_l',
+  'samples.id',
+  'samples.drawn_on',
+  'samples.odometer',
+  'samples.distance_on_oil',
+  'samples.top_up_l',
+  'samples.sae_grade',
+  'samples.oil_product',
+  'samples.in_baseline',
+  'samples.baseline_note',
+  'samples.break_in',
+  'samples.created_at',
+  'oil_changes.volume_l',
 ] as const;
 
 /** Every sample of a machine that has readings, oldest first, with its oil change's oil volume. */
@@ -52,14 +74,19 @@ export function findSamplesWithReadings(db: Db, machineId: string) {
       ...SAMPLE_POINT_COLUMNS,
       // The day the results arrived: "next sample by" counts from it when the lab took a while.
       (eb) =>
-        eb.selectFrom('readings')
+        eb
+          .selectFrom('readings')
           .innerJoin('lab_imports', 'lab_imports.id', 'readings.lab_import_id')
           .select((e) => e.fn.max('lab_imports.confirmed_at').as('at'))
           .whereRef('readings.sample_id', '=', 'samples.id')
           .as('results_at'),
     ])
     .where('samples.machine_id', '=', machineId)
-    .where((eb) => eb.exists(eb.selectFrom('readings').select('readings.sample_id').whereRef('readings.sample_id', '=', 'samples.id')))
+    .where((eb) =>
+      eb.exists(
+        eb.selectFrom('readings').select('readings.sample_id').whereRef('readings.sample_id', '=', 'samples.id'),
+      ),
+    )
     .orderBy('samples.drawn_on')
     .orderBy('samples.odometer')
     .orderBy('samples.created_at')
@@ -70,15 +97,32 @@ export function findSamplesWithReadings(db: Db, machineId: string) {
  * The crew's other machines (not archived) with this layout, cooling and sump setting, with how many samples with
  * readings each has; displacement and meter are compared by isSameEngine. Never another crew's machines.
  */
-export function findEngineCandidates(db: Db, crewId: string, machineId: string, engine: { layout: string; cooling: string; sharedOil: boolean }) {
+export function findEngineCandidates(
+  db: Db,
+  crewId: string,
+  machineId: string,
+  engine: { layout: string; cooling: string; sharedOil: boolean },
+) {
   return db
     .selectFrom('machines')
-    .select(['machines.id', 'machines.engine_layout', 'machines.displacement_cc', 'machines.cooling', 'machines.shared_oil', 'machines.meter'])
+    .select([
+      'machines.id',
+      'machines.engine_layout',
+      'machines.displacement_cc',
+      'machines.cooling',
+      'machines.shared_oil',
+      'machines.meter',
+    ])
     .select((eb) =>
-      eb.selectFrom('samples')
+      eb
+        .selectFrom('samples')
         .select((e) => e.fn.countAll<string>().as('n'))
         .whereRef('samples.machine_id', '=', 'machines.id')
-        .where((e) => e.exists(e.selectFrom('readings').select('readings.sample_id').whereRef('readings.sample_id', '=', 'samples.id')))
+        .where((e) =>
+          e.exists(
+            e.selectFrom('readings').select('readings.sample_id').whereRef('readings.sample_id', '=', 'samples.id'),
+          ),
+        )
         .as('samples_with_readings'),
     )
     .where('machines.crew_id', '=', crewId)
@@ -110,13 +154,25 @@ export async function findReferenceSamples(db: Db, crewId: string, machineIds: r
       'samples.machine_id',
       'machines.oil_capacity_l',
       sql<Date | null>`null::timestamptz`.as('results_at'),
-      sql<[string, number, string | null][]>`(select coalesce(json_agg(json_build_array(r.measurand, r.value, r.qualifier)), '[]'::json) from readings r where r.sample_id = samples.id)`.as('readings'),
-      sql<string[]>`(select coalesce(array_agg(distinct f.measurand), '{}') from findings f where f.sample_id = samples.id and f.level = 'act' and f.measurand is not null)`.as('acted'),
+      sql<
+        [string, number, string | null][]
+      >`(select coalesce(json_agg(json_build_array(r.measurand, r.value, r.qualifier)), '[]'::json) from readings r where r.sample_id = samples.id)`.as(
+        'readings',
+      ),
+      sql<
+        string[]
+      >`(select coalesce(array_agg(distinct f.measurand), '{}') from findings f where f.sample_id = samples.id and f.level = 'act' and f.measurand is not null)`.as(
+        'acted',
+      ),
     ])
     .where('samples.crew_id', '=', crewId)
     .where('machines.crew_id', '=', crewId)
     .where('samples.machine_id', '=', sql<string>`any(${sql.val(machineIds)}::uuid[])`)
-    .where((eb) => eb.exists(eb.selectFrom('readings').select('readings.sample_id').whereRef('readings.sample_id', '=', 'samples.id')))
+    .where((eb) =>
+      eb.exists(
+        eb.selectFrom('readings').select('readings.sample_id').whereRef('readings.sample_id', '=', 'samples.id'),
+      ),
+    )
     .orderBy('samples.drawn_on', 'desc')
     .orderBy('samples.odometer', 'desc')
     .orderBy('samples.created_at', 'desc')
@@ -153,9 +209,16 @@ export interface FindingInsert {
  * Replace the findings of these samples with new ones: the old ones deleted, the new ones written by
  * insertFindings, in the caller's transaction.
  */
-export async function replaceFindings(db: Db, sampleIds: readonly string[], rows: readonly FindingInsert[]): Promise<void> {
+export async function replaceFindings(
+  db: Db,
+  sampleIds: readonly string[],
+  rows: readonly FindingInsert[],
+): Promise<void> {
   if (sampleIds.length === 0) return;
-  await db.deleteFrom('findings').where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`).execute();
+  await db
+    .deleteFrom('findings')
+    .where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`)
+    .execute();
   await insertFindings(db, rows);
 }
 
@@ -184,7 +247,11 @@ export interface IntervalCallInsert {
 }
 
 /** Replace the engine's interval calls of these samples (a mechanic's confirm or override stays). */
-export async function replaceEngineCalls(db: Db, sampleIds: readonly string[], rows: readonly IntervalCallInsert[]): Promise<void> {
+export async function replaceEngineCalls(
+  db: Db,
+  sampleIds: readonly string[],
+  rows: readonly IntervalCallInsert[],
+): Promise<void> {
   if (sampleIds.length === 0) return;
   await db
     .deleteFrom('interval_calls')
@@ -200,7 +267,9 @@ export async function replaceEngineCalls(db: Db, sampleIds: readonly string[], r
       from unnest(${sql.val(part.map((c) => c.sampleId))}::uuid[], ${sql.val(part.map((c) => c.machineId))}::uuid[],
                   ${sql.val(part.map((c) => c.call))}::text[], ${sql.val(part.map((c) => c.nextInterval))}::float8[],
                   ${sql.val(part.map((c) => c.nextSampleOdometer))}::float8[], ${sql.val(part.map((c) => c.nextSampleOn))}::text[],
-                  ${sql.val(part.map((c) => JSON.stringify(c.reasons)))}::text[]) as x(s, m, c, ni, no, nd, r)`.execute(db);
+                  ${sql.val(part.map((c) => JSON.stringify(c.reasons)))}::text[]) as x(s, m, c, ni, no, nd, r)`.execute(
+      db,
+    );
   }
 }
 
@@ -214,15 +283,45 @@ export interface BandInsert extends StoredBand {
 /** Replace the stored baseline bands of these samples (the bands the rules used). */
 export async function replaceBands(db: Db, sampleIds: readonly string[], rows: readonly BandInsert[]): Promise<void> {
   if (sampleIds.length === 0) return;
-  await db.deleteFrom('baseline_bands').where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`).execute();
+  await db
+    .deleteFrom('baseline_bands')
+    .where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`)
+    .execute();
   if (rows.length === 0) return;
   // As many bands as readings: COPY, like the readings.
   await copyRows(
     db,
     'baseline_bands',
-    ['sample_id', 'measurand', 'basis', 'n', 'mean', 'lower_edge', 'watch_above', 'act_from', 'to_reported', 'source', 'source_label', 'source_machines'],
+    [
+      'sample_id',
+      'measurand',
+      'basis',
+      'n',
+      'mean',
+      'lower_edge',
+      'watch_above',
+      'act_from',
+      'to_reported',
+      'source',
+      'source_label',
+      'source_machines',
+    ],
     (function* bandLines(): Generator<CopyValue[]> {
-      for (const b of rows) yield [b.sampleId, b.measurand, b.basis, b.n, b.mean, b.lower, b.watchAbove, b.actFrom, b.toReported, b.source, b.sourceLabel, b.sourceMachines];
+      for (const b of rows)
+        yield [
+          b.sampleId,
+          b.measurand,
+          b.basis,
+          b.n,
+          b.mean,
+          b.lower,
+          b.watchAbove,
+          b.actFrom,
+          b.toReported,
+          b.source,
+          b.sourceLabel,
+          b.sourceMachines,
+        ];
     })(),
   );
 }
@@ -246,36 +345,92 @@ export function listStaleMachines(db: Db, version: string, afterId: string | nul
 
 /** Locks one machine row for the rest of the transaction; undefined when it is gone. */
 export function lockMachine(db: Db, machineId: string) {
-  return db.selectFrom('machines').select(['id', 'judged_by']).where('id', '=', machineId).forUpdate().executeTakeFirst();
+  return db
+    .selectFrom('machines')
+    .select(['id', 'judged_by'])
+    .where('id', '=', machineId)
+    .forUpdate()
+    .executeTakeFirst();
 }
 
 /** A sample of the crew with its machine's distance unit, for its findings view; undefined for another crew's. */
-export async function findFindingsSample(db: Db, crewId: string, sampleId: string): Promise<FindingsSample | undefined> {
-  const row = await db.selectFrom('samples').innerJoin('machines', 'machines.id', 'samples.machine_id')
+export async function findFindingsSample(
+  db: Db,
+  crewId: string,
+  sampleId: string,
+): Promise<FindingsSample | undefined> {
+  const row = await db
+    .selectFrom('samples')
+    .innerJoin('machines', 'machines.id', 'samples.machine_id')
     .select(['samples.id', 'samples.state', 'samples.distance_on_oil', 'machines.meter'])
-    .where('samples.id', '=', sampleId).where('samples.crew_id', '=', crewId).executeTakeFirst();
-  return row && { id: row.id, state: row.state, distanceOnOil: row.distance_on_oil === null ? null : Number(row.distance_on_oil), meter: row.meter };
+    .where('samples.id', '=', sampleId)
+    .where('samples.crew_id', '=', crewId)
+    .executeTakeFirst();
+  return (
+    row && {
+      id: row.id,
+      state: row.state,
+      distanceOnOil: row.distance_on_oil === null ? null : Number(row.distance_on_oil),
+      meter: row.meter,
+    }
+  );
 }
 
 /** The readings of one sample. */
 export async function findReadingsOfSample(db: Db, sampleId: string): Promise<StoredReading[]> {
-  const rows = await db.selectFrom('readings').select(['measurand', 'value', 'qualifier']).where('sample_id', '=', sampleId).execute();
+  const rows = await db
+    .selectFrom('readings')
+    .select(['measurand', 'value', 'qualifier'])
+    .where('sample_id', '=', sampleId)
+    .execute();
   return rows.map((r) => ({ measurand: r.measurand, value: Number(r.value), qualifier: r.qualifier }));
 }
 
 /** The stored findings of one sample. */
 export async function findFindingsOfSample(db: Db, sampleId: string): Promise<StoredFinding[]> {
-  const rows = await db.selectFrom('findings').select(['id', 'measurand', 'level', 'rule_id', 'numbers', 'sentence']).where('sample_id', '=', sampleId).execute();
-  return rows.map((r) => ({ id: r.id, measurand: r.measurand, level: r.level, ruleId: r.rule_id, numbers: r.numbers ?? {}, sentence: r.sentence }));
+  const rows = await db
+    .selectFrom('findings')
+    .select(['id', 'measurand', 'level', 'rule_id', 'numbers', 'sentence'])
+    .where('sample_id', '=', sampleId)
+    .execute();
+  return rows.map((r) => ({
+    id: r.id,
+    measurand: r.measurand,
+    level: r.level,
+    ruleId: r.rule_id,
+    numbers: r.numbers ?? {},
+    sentence: r.sentence,
+  }));
 }
 
 /** The bands the rules used for one sample's readings (ready bands only). */
 export async function findBandsOfSample(db: Db, sampleId: string): Promise<StoredSampleBand[]> {
-  const rows = await db.selectFrom('baseline_bands')
-    .select(['measurand', 'basis', 'n', 'mean', 'watch_above', 'act_from', 'to_reported', 'source', 'source_label', 'source_machines'])
-    .where('sample_id', '=', sampleId).execute();
+  const rows = await db
+    .selectFrom('baseline_bands')
+    .select([
+      'measurand',
+      'basis',
+      'n',
+      'mean',
+      'watch_above',
+      'act_from',
+      'to_reported',
+      'source',
+      'source_label',
+      'source_machines',
+    ])
+    .where('sample_id', '=', sampleId)
+    .execute();
   return rows.map((b) => ({
-    measurand: b.measurand, basis: b.basis, n: b.n, mean: Number(b.mean), watchAbove: Number(b.watch_above), actFrom: Number(b.act_from),
-    toReported: Number(b.to_reported), source: b.source, sourceLabel: b.source_label, sourceMachines: b.source_machines,
+    measurand: b.measurand,
+    basis: b.basis,
+    n: b.n,
+    mean: Number(b.mean),
+    watchAbove: Number(b.watch_above),
+    actFrom: Number(b.act_from),
+    toReported: Number(b.to_reported),
+    source: b.source,
+    sourceLabel: b.source_label,
+    sourceMachines: b.source_machines,
   }));
 }

@@ -6,8 +6,16 @@
  */
 import type { Kysely, Transaction } from 'kysely';
 import {
-  CREW_REFERENCE, ENGINE_VERSION, crewReferenceLabel, isSameEngine, replayHistory,
-  type CrewReference, type CrewReferenceSample, type FixedLimits, type MachineProfile, type SamplePoint,
+  CREW_REFERENCE,
+  ENGINE_VERSION,
+  crewReferenceLabel,
+  isSameEngine,
+  replayHistory,
+  type CrewReference,
+  type CrewReferenceSample,
+  type FixedLimits,
+  type MachineProfile,
+  type SamplePoint,
 } from '../analysis';
 import { isMeasurandCode, type MeasurandCode } from '../analysis/measurands';
 import type { Database } from '../db/database';
@@ -28,7 +36,12 @@ type SampleWithReadings = Awaited<ReturnType<typeof repo.findSamplesWithReadings
  * A stored sample as the analysis engine sees it. The engine works in the machine's own meter unit (its
  * sentences and rounding steps say mi, km or h), so stored kilometres are converted here and back below.
  */
-function toSamplePoint(s: Omit<SampleWithReadings, 'created_at'>, readings: SamplePoint['readings'], oilCapacity: number | null, meter: MeterUnit): SamplePoint {
+function toSamplePoint(
+  s: Omit<SampleWithReadings, 'created_at'>,
+  readings: SamplePoint['readings'],
+  oilCapacity: number | null,
+  meter: MeterUnit,
+): SamplePoint {
   return {
     id: s.id,
     takenAt: s.drawn_on,
@@ -42,7 +55,10 @@ function toSamplePoint(s: Omit<SampleWithReadings, 'created_at'>, readings: Samp
     readings,
     baselineExcluded: s.in_baseline
       ? undefined
-      : { reason: s.baseline_note || (s.break_in ? 'Break-in oil.' : 'No oil change on file for this sample.'), breakIn: s.break_in },
+      : {
+          reason: s.baseline_note || (s.break_in ? 'Break-in oil.' : 'No oil change on file for this sample.'),
+          breakIn: s.break_in,
+        },
     resultsOn: s.results_at ? new Date(s.results_at).toISOString().slice(0, 10) : undefined,
   };
 }
@@ -51,11 +67,27 @@ type MachineProfileRow = NonNullable<Awaited<ReturnType<typeof repo.findMachineP
 
 /** The same-engine machines of the crew (crew-scoped, archived ones left out), as isSameEngine decides. */
 async function findSameEngineMachines(trx: Db, machine: MachineProfileRow) {
-  const engine = { layout: machine.engine_layout, displacementCc: machine.displacement_cc === null ? null : Number(machine.displacement_cc), cooling: machine.cooling, sharedOil: machine.shared_oil, distanceUnit: machine.meter };
+  const engine = {
+    layout: machine.engine_layout,
+    displacementCc: machine.displacement_cc === null ? null : Number(machine.displacement_cc),
+    cooling: machine.cooling,
+    sharedOil: machine.shared_oil,
+    distanceUnit: machine.meter,
+  };
   if (engine.displacementCc === null) return { engine, peers: [] };
-  const candidates = await repo.findEngineCandidates(trx, machine.crew_id, machine.id, { layout: engine.layout, cooling: engine.cooling, sharedOil: engine.sharedOil });
+  const candidates = await repo.findEngineCandidates(trx, machine.crew_id, machine.id, {
+    layout: engine.layout,
+    cooling: engine.cooling,
+    sharedOil: engine.sharedOil,
+  });
   const peers = candidates.filter((c) =>
-    isSameEngine(engine, { layout: c.engine_layout, displacementCc: c.displacement_cc === null ? null : Number(c.displacement_cc), cooling: c.cooling, sharedOil: c.shared_oil, distanceUnit: c.meter }),
+    isSameEngine(engine, {
+      layout: c.engine_layout,
+      displacementCc: c.displacement_cc === null ? null : Number(c.displacement_cc),
+      cooling: c.cooling,
+      sharedOil: c.shared_oil,
+      distanceUnit: c.meter,
+    }),
   );
   return { engine, peers };
 }
@@ -69,16 +101,25 @@ async function loadCrewReference(trx: Db, machine: MachineProfileRow): Promise<C
   const { engine, peers } = await findSameEngineMachines(trx, machine);
   const withSamples = peers.filter((p) => Number(p.samples_with_readings ?? 0) > 0);
   if (withSamples.length < CREW_REFERENCE.params.minMachines) return undefined;
-  const rows = await repo.findReferenceSamples(trx, machine.crew_id, withSamples.map((p) => p.id));
+  const rows = await repo.findReferenceSamples(
+    trx,
+    machine.crew_id,
+    withSamples.map((p) => p.id),
+  );
   const samples: CrewReferenceSample[] = [];
   for (const row of rows) {
     const readings: SamplePoint['readings'] = {};
     for (const [measurand, value, qualifier] of row.readings) {
       if (!isMeasurandCode(measurand)) continue;
-      readings[measurand] = qualifier === '<' || qualifier === '>' ? { value: Number(value), qualifier } : { value: Number(value) };
+      readings[measurand] =
+        qualifier === '<' || qualifier === '>' ? { value: Number(value), qualifier } : { value: Number(value) };
     }
     const acted = new Set(row.acted.filter(isMeasurandCode));
-    samples.push({ ...toSamplePoint(row, readings, row.oil_capacity_l, machine.meter), machineId: row.machine_id, outOfBaseline: acted });
+    samples.push({
+      ...toSamplePoint(row, readings, row.oil_capacity_l, machine.meter),
+      machineId: row.machine_id,
+      outOfBaseline: acted,
+    });
   }
   return { label: crewReferenceLabel(engine), samples };
 }
@@ -108,7 +149,17 @@ export async function rejudgeEnginePeers(trx: Db, machineIds: ReadonlySet<string
 }
 
 const LIMIT_KEYS: Partial<Record<string, keyof FixedLimits>> = {
-  Fe: 'Fe', Cr: 'Cr', Cu: 'Cu', Sn: 'Sn', Al: 'Al', Pb: 'Pb', B: 'B', Si: 'Si', FUEL: 'fuelPercent', WATER: 'waterPercent', KV100: 'kv100ChangePercent',
+  Fe: 'Fe',
+  Cr: 'Cr',
+  Cu: 'Cu',
+  Sn: 'Sn',
+  Al: 'Al',
+  Pb: 'Pb',
+  B: 'B',
+  Si: 'Si',
+  FUEL: 'fuelPercent',
+  WATER: 'waterPercent',
+  KV100: 'kv100ChangePercent',
 };
 
 /**
@@ -126,14 +177,22 @@ export async function recomputeMachineFindings(
 ): Promise<number> {
   const machineRow = await repo.findMachineProfile(trx, machineId);
   if (!machineRow) return 0;
-  const [samples, limitRows, newOil] = await Promise.all([repo.findSamplesWithReadings(trx, machineId), repo.findCrewLimits(trx, machineRow.crew_id), loadNewOilLookup(trx, machineRow.crew_id)]);
+  const [samples, limitRows, newOil] = await Promise.all([
+    repo.findSamplesWithReadings(trx, machineId),
+    repo.findCrewLimits(trx, machineRow.crew_id),
+    loadNewOilLookup(trx, machineRow.crew_id),
+  ]);
   // Readings this import just wrote are in memory already; only the machine's earlier ones are read back.
-  const readingRows = await repo.findReadingsOfSamples(trx, samples.filter((s) => !known.has(s.id)).map((s) => s.id));
+  const readingRows = await repo.findReadingsOfSamples(
+    trx,
+    samples.filter((s) => !known.has(s.id)).map((s) => s.id),
+  );
   const readingsBySample = new Map<string, SamplePoint['readings']>(known);
   for (const r of readingRows) {
     if (!isMeasurandCode(r.measurand)) continue;
     const map = readingsBySample.get(r.sample_id) ?? {};
-    map[r.measurand as MeasurandCode] = r.qualifier === '<' || r.qualifier === '>' ? { value: r.value, qualifier: r.qualifier } : { value: r.value };
+    map[r.measurand as MeasurandCode] =
+      r.qualifier === '<' || r.qualifier === '>' ? { value: r.value, qualifier: r.qualifier } : { value: r.value };
     readingsBySample.set(r.sample_id, map);
   }
   const limits: Partial<FixedLimits> = {};
@@ -145,7 +204,8 @@ export async function recomputeMachineFindings(
   const machine: MachineProfile = {
     cooling: machineRow.cooling,
     distanceUnit: meter,
-    maxIntervalDistance: machineRow.max_interval_distance === null ? undefined : fromStoredMeter(machineRow.max_interval_distance, meter),
+    maxIntervalDistance:
+      machineRow.max_interval_distance === null ? undefined : fromStoredMeter(machineRow.max_interval_distance, meter),
     maxIntervalDays: machineRow.max_interval_days ?? undefined,
     sharedOil: machineRow.shared_oil,
   };
@@ -156,7 +216,9 @@ export async function recomputeMachineFindings(
     if (stale) await repo.markMachineJudged(trx, machineId, ENGINE_VERSION);
     return 0;
   }
-  const points = samples.map((s) => attachNewOil(toSamplePoint(s, readingsBySample.get(s.id) ?? {}, machineRow.oil_capacity_l, meter), newOil));
+  const points = samples.map((s) =>
+    attachNewOil(toSamplePoint(s, readingsBySample.get(s.id) ?? {}, machineRow.oil_capacity_l, meter), newOil),
+  );
   machine.crewReference = await loadCrewReference(trx, machineRow);
   const replayed = replayHistory({ machine, samples: points, limits });
   const findings: repo.FindingInsert[] = [];
@@ -166,13 +228,30 @@ export async function recomputeMachineFindings(
   for (const { sampleId, analysis, call } of replayed.slice(firstChanged)) {
     recomputed.push(sampleId);
     for (const f of analysis.findings) {
-      findings.push({ sampleId, measurand: f.measurands[0] ?? null, level: f.level, ruleId: f.ruleId, numbers: f.numbers, sentence: f.sentence });
+      findings.push({
+        sampleId,
+        measurand: f.measurands[0] ?? null,
+        level: f.level,
+        ruleId: f.ruleId,
+        numbers: f.numbers,
+        sentence: f.sentence,
+      });
     }
     for (const [measurand, band] of Object.entries(analysis.bands)) {
       if (!band || band.status !== 'ready') continue;
       bands.push({
-        sampleId, measurand, basis: band.basis, source: band.source, sourceLabel: band.crew?.label ?? null, sourceMachines: band.crew?.machines ?? null, n: band.n, mean: band.mean, lower: band.lower,
-        watchAbove: band.watchAbove, actFrom: band.actFrom, toReported: band.toReported,
+        sampleId,
+        measurand,
+        basis: band.basis,
+        source: band.source,
+        sourceLabel: band.crew?.label ?? null,
+        sourceMachines: band.crew?.machines ?? null,
+        n: band.n,
+        mean: band.mean,
+        lower: band.lower,
+        watchAbove: band.watchAbove,
+        actFrom: band.actFrom,
+        toReported: band.toReported,
       });
     }
     calls.push({
@@ -180,8 +259,14 @@ export async function recomputeMachineFindings(
       machineId,
       call: call.call,
       // Back to the stored unit (km, or hours).
-      nextInterval: call.nextIntervalDistance !== null && Number.isFinite(call.nextIntervalDistance) ? toStoredMeter(call.nextIntervalDistance, meter) : null,
-      nextSampleOdometer: call.nextSampleDue.distance !== null && Number.isFinite(call.nextSampleDue.distance) ? toStoredMeter(call.nextSampleDue.distance, meter) : null,
+      nextInterval:
+        call.nextIntervalDistance !== null && Number.isFinite(call.nextIntervalDistance)
+          ? toStoredMeter(call.nextIntervalDistance, meter)
+          : null,
+      nextSampleOdometer:
+        call.nextSampleDue.distance !== null && Number.isFinite(call.nextSampleDue.distance)
+          ? toStoredMeter(call.nextSampleDue.distance, meter)
+          : null,
       nextSampleOn: call.nextSampleDue.date ?? null,
       reasons: call.reasons,
     });
@@ -254,12 +339,18 @@ export async function recomputeFindings(trx: Db, sampleId: string): Promise<numb
 }
 
 /** How a sample's findings were made, for a member of its crew; null for another crew's or an unknown sample. */
-export async function loadFindingsView(db: Kysely<Database>, crew: CrewMembership | null, sampleId: string): Promise<FindingsView | null> {
+export async function loadFindingsView(
+  db: Kysely<Database>,
+  crew: CrewMembership | null,
+  sampleId: string,
+): Promise<FindingsView | null> {
   if (!canReadCrew(crew) || !isUuid(sampleId)) return null;
   const sample = await repo.findFindingsSample(db, crew.crewId, sampleId);
   if (!sample) return null;
   const [readings, findings, bands] = await Promise.all([
-    repo.findReadingsOfSample(db, sampleId), repo.findFindingsOfSample(db, sampleId), repo.findBandsOfSample(db, sampleId),
+    repo.findReadingsOfSample(db, sampleId),
+    repo.findFindingsOfSample(db, sampleId),
+    repo.findBandsOfSample(db, sampleId),
   ]);
   return buildFindingsView({ sample, readings, findings, bands });
 }

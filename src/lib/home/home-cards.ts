@@ -32,22 +32,39 @@ export interface MachineCard {
  * One card per machine from the open findings of each machine's latest sample: the worst level first, then the
  * most recent sample, then the name. Within a machine the main finding is the worst, ties by the order given.
  */
-export function groupFindingsByMachine(findings: readonly OpenFinding[], calls: ReadonlyMap<string, IntervalCallKind | null>): MachineCard[] {
+export function groupFindingsByMachine(
+  findings: readonly OpenFinding[],
+  calls: ReadonlyMap<string, IntervalCallKind | null>,
+): MachineCard[] {
   const byMachine = new Map<string, MachineCard>();
   for (const f of findings) {
     const card = byMachine.get(f.machine_id);
     if (!card) {
       byMachine.set(f.machine_id, {
-        machineId: f.machine_id, machineName: f.machine_name, sampleId: f.sample_id, bottleCode: f.bottle_code, drawnOn: f.drawn_on,
-        worst: f.level, main: f, count: 1, call: calls.get(f.machine_id) ?? null,
+        machineId: f.machine_id,
+        machineName: f.machine_name,
+        sampleId: f.sample_id,
+        bottleCode: f.bottle_code,
+        drawnOn: f.drawn_on,
+        worst: f.level,
+        main: f,
+        count: 1,
+        call: calls.get(f.machine_id) ?? null,
       });
       continue;
     }
     card.count += 1;
-    if (levelRank(f.level) > levelRank(card.worst)) { card.worst = f.level; card.main = f; }
+    if (levelRank(f.level) > levelRank(card.worst)) {
+      card.worst = f.level;
+      card.main = f;
+    }
   }
-  return [...byMachine.values()].sort((a, b) =>
-    levelRank(b.worst) - levelRank(a.worst) || b.drawnOn.localeCompare(a.drawnOn) || a.machineName.localeCompare(b.machineName));
+  return [...byMachine.values()].sort(
+    (a, b) =>
+      levelRank(b.worst) - levelRank(a.worst) ||
+      b.drawnOn.localeCompare(a.drawnOn) ||
+      a.machineName.localeCompare(b.machineName),
+  );
 }
 
 export interface CrewProgress {
@@ -77,9 +94,25 @@ export function firstSteps(p: CrewProgress, role: Role, crewId: string): FirstSt
   const machineHref = (m: string | null, path: string) => (m ? `/machines/${m}/${path}` : '/machines/new');
   const steps: FirstStep[] = [
     { key: 'machine', label: 'Add a machine', href: '/machines/new', done: p.machines > 0 },
-    { key: 'oil-change', label: 'Log its last oil change', href: machineHref(p.firstMachineId, 'oil-change'), done: p.machinesWithOilChange > 0 },
-    { key: 'drain-card', label: 'Fill a drain card at the next oil change', href: machineHref(p.firstMachineWithOilChangeId ?? p.firstMachineId, 'drain-card'), done: p.drainCards > 0 },
+    {
+      key: 'oil-change',
+      label: 'Log its last oil change',
+      href: machineHref(p.firstMachineId, 'oil-change'),
+      done: p.machinesWithOilChange > 0,
+    },
+    {
+      key: 'drain-card',
+      label: 'Fill a drain card at the next oil change',
+      href: machineHref(p.firstMachineWithOilChangeId ?? p.firstMachineId, 'drain-card'),
+      done: p.drainCards > 0,
+    },
   ];
-  if (role === 'lead') steps.push({ key: 'invite', label: 'Invite a mechanic', href: `/crews/${crewId}#invite-h`, done: p.mechanicsOrInvites > 0 });
+  if (role === 'lead')
+    steps.push({
+      key: 'invite',
+      label: 'Invite a mechanic',
+      href: `/crews/${crewId}#invite-h`,
+      done: p.mechanicsOrInvites > 0,
+    });
   return steps;
 }

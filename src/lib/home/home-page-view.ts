@@ -58,7 +58,14 @@ export interface HomeView {
   cardsMore: string;
   waiting: SampleLink[];
   waitingMore: string;
-  due: { href: string; name: string; overdueWords: string | null; dueBy: string | null; dueAt: string | null; fromManufacturer: boolean }[];
+  due: {
+    href: string;
+    name: string;
+    overdueWords: string | null;
+    dueBy: string | null;
+    dueAt: string | null;
+    fromManufacturer: boolean;
+  }[];
   overdue: SampleLink[];
   drawn: SampleLink[];
   drawnMore: string;
@@ -69,8 +76,14 @@ export function describeMore(n: number): string {
   return n > LIST_MAX ? `and ${n - LIST_MAX} more` : '';
 }
 
-function sampleLinks<T extends SampleListRow>(rows: readonly T[], href: (r: T) => string, when: (r: T) => string): SampleLink[] {
-  return rows.slice(0, LIST_MAX).map((r) => ({ href: href(r), machineName: r.machine_name, bottleCode: r.bottle_code, when: when(r) }));
+function sampleLinks<T extends SampleListRow>(
+  rows: readonly T[],
+  href: (r: T) => string,
+  when: (r: T) => string,
+): SampleLink[] {
+  return rows
+    .slice(0, LIST_MAX)
+    .map((r) => ({ href: href(r), machineName: r.machine_name, bottleCode: r.bottle_code, when: when(r) }));
 }
 
 /** A machine card in words: the worst finding's reason and sentence, the interval call, the link to all findings. */
@@ -111,11 +124,23 @@ export function buildHomeView(home: CrewHomeInput, role: Role, crewId: string): 
     steps: firstSteps(home.progress, role, crewId),
     cards: home.cards.slice(0, LIST_MAX).map(describeHomeCard),
     cardsMore: describeMore(home.cards.length),
-    waiting: sampleLinks(home.waiting, (s) => `/samples/${s.id}#review`, (s) => s.drawn_on),
+    waiting: sampleLinks(
+      home.waiting,
+      (s) => `/samples/${s.id}#review`,
+      (s) => s.drawn_on,
+    ),
     waitingMore: describeMore(home.waiting.length),
     due: home.due.map(describeDue),
-    overdue: sampleLinks(home.overdue, (s) => `/samples/${s.id}`, (s) => `shipped ${s.shipped_on}`),
-    drawn: sampleLinks(home.drawn, (s) => `/samples/${s.id}`, (s) => `drawn ${s.drawn_on}`),
+    overdue: sampleLinks(
+      home.overdue,
+      (s) => `/samples/${s.id}`,
+      (s) => `shipped ${s.shipped_on}`,
+    ),
+    drawn: sampleLinks(
+      home.drawn,
+      (s) => `/samples/${s.id}`,
+      (s) => `drawn ${s.drawn_on}`,
+    ),
     drawnMore: describeMore(home.drawn.length),
   };
 }

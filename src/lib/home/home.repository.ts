@@ -6,11 +6,22 @@ import type { Meter } from '../machines/machines';
 import type { CrewProgress, OpenFinding } from './home-cards';
 
 /** Samples of the crew in a state, with machine name, oldest first (limited). */
-export async function listSamplesInState(db: Kysely<Database>, crewId: string, state: 'drawn' | 'results_in', limit = 50) {
+export async function listSamplesInState(
+  db: Kysely<Database>,
+  crewId: string,
+  state: 'drawn' | 'results_in',
+  limit = 50,
+) {
   return db
     .selectFrom('samples')
     .innerJoin('machines', 'machines.id', 'samples.machine_id')
-    .select(['samples.id', 'samples.bottle_code', 'samples.drawn_on', 'samples.machine_id', 'machines.name as machine_name'])
+    .select([
+      'samples.id',
+      'samples.bottle_code',
+      'samples.drawn_on',
+      'samples.machine_id',
+      'machines.name as machine_name',
+    ])
     .where('samples.crew_id', '=', crewId)
     .where('samples.state', '=', state)
     .orderBy('samples.drawn_on')
@@ -20,7 +31,13 @@ export async function listSamplesInState(db: Kysely<Database>, crewId: string, s
 
 /** Samples shipped on or before `shippedBefore` (YYYY-MM-DD) with no results yet. */
 export async function listOverdueShipments(db: Kysely<Database>, crewId: string, shippedBefore: string, limit = 50) {
-  const { rows } = await sql<{ id: string; bottle_code: string; drawn_on: string; machine_name: string; shipped_on: string }>`
+  const { rows } = await sql<{
+    id: string;
+    bottle_code: string;
+    drawn_on: string;
+    machine_name: string;
+    shipped_on: string;
+  }>`
     select s.id, s.bottle_code, s.drawn_on::text as drawn_on, m.name as machine_name,
       coalesce((select max(e.at) from sample_events e where e.sample_id = s.id and e.state = 'shipped')::date, s.drawn_on)::text as shipped_on
     from samples s join machines m on m.id = s.machine_id
@@ -50,7 +67,14 @@ export async function listOpenFindings(db: Kysely<Database>, crewId: string, lim
 
 /** How far a crew has come: machines, machines with an oil change, drain cards, mechanics and open invitations. */
 export async function loadCrewProgress(db: Kysely<Database>, crewId: string): Promise<CrewProgress> {
-  const { rows } = await sql<{ machines: string; with_change: string; drain_cards: string; mechanics: string; first_machine: string | null; first_with_change: string | null }>`
+  const { rows } = await sql<{
+    machines: string;
+    with_change: string;
+    drain_cards: string;
+    mechanics: string;
+    first_machine: string | null;
+    first_with_change: string | null;
+  }>`
     select
       (select count(*) from machines m where m.crew_id = ${crewId} and m.archived_at is null) as machines,
       (select count(*) from machines m where m.crew_id = ${crewId} and m.archived_at is null
@@ -65,15 +89,29 @@ export async function loadCrewProgress(db: Kysely<Database>, crewId: string): Pr
   `.execute(db);
   const r = rows[0]!;
   return {
-    machines: Number(r.machines), machinesWithOilChange: Number(r.with_change), drainCards: Number(r.drain_cards),
-    mechanicsOrInvites: Number(r.mechanics), firstMachineId: r.first_machine, firstMachineWithOilChangeId: r.first_with_change,
+    machines: Number(r.machines),
+    machinesWithOilChange: Number(r.with_change),
+    drainCards: Number(r.drain_cards),
+    mechanicsOrInvites: Number(r.mechanics),
+    firstMachineId: r.first_machine,
+    firstMachineWithOilChangeId: r.first_with_change,
   };
 }
 
 /** Each active machine of the crew with its latest interval call and manufacturer limits, for the due check. */
 export async function listMachinesForDue(db: Kysely<Database>, crewId: string) {
-  const { rows } = await sql<{ id: string; name: string; meter: Meter; next_sample_on: string | null; next_sample_odometer: number | null;
-    call: IntervalCallKind | null; last_change_on: string | null; last_change_odometer: number | null; max_interval_distance: number | null; max_interval_days: number | null }>`
+  const { rows } = await sql<{
+    id: string;
+    name: string;
+    meter: Meter;
+    next_sample_on: string | null;
+    next_sample_odometer: number | null;
+    call: IntervalCallKind | null;
+    last_change_on: string | null;
+    last_change_odometer: number | null;
+    max_interval_distance: number | null;
+    max_interval_days: number | null;
+  }>`
     select m.id, m.name, m.meter, ic.call, ic.next_sample_on::text as next_sample_on, ic.next_sample_odometer,
       oc.changed_on::text as last_change_on, oc.odometer as last_change_odometer, m.max_interval_distance, m.max_interval_days
     from machines m

@@ -4,7 +4,13 @@ import type { Database } from '../db/database';
 import type { Meter } from '../machines/machines';
 import { listOdometerHistory } from '../overview/overview.repository';
 import { estimateCurrentOdometer, findSampleDue, type DueStatus, type OdometerEstimate } from './odometer-estimate';
-import { listMachinesForDue, listOpenFindings, listOverdueShipments, listSamplesInState, loadCrewProgress } from './home.repository';
+import {
+  listMachinesForDue,
+  listOpenFindings,
+  listOverdueShipments,
+  listSamplesInState,
+  loadCrewProgress,
+} from './home.repository';
 import { groupFindingsByMachine } from './home-cards';
 import { describeOverdue } from '../words/words';
 
@@ -39,19 +45,41 @@ export async function loadCrewHome(db: Kysely<Database>, crewId: string, today: 
     listMachinesForDue(db, crewId),
     loadCrewProgress(db, crewId),
   ]);
-  const histories = await listOdometerHistory(db, machines.map((m) => m.id));
+  const histories = await listOdometerHistory(
+    db,
+    machines.map((m) => m.id),
+  );
   const due: DueMachine[] = [];
   for (const m of machines) {
     const estimate = estimateCurrentOdometer(histories.get(m.id) ?? [], today);
     const fromCall = m.next_sample_on !== null || m.next_sample_odometer !== null;
     // Without a call, the manufacturer's interval from the last oil change is the target.
-    const nextSampleOn = fromCall ? m.next_sample_on : m.last_change_on && m.max_interval_days ? addDays(m.last_change_on, m.max_interval_days) : null;
+    const nextSampleOn = fromCall
+      ? m.next_sample_on
+      : m.last_change_on && m.max_interval_days
+        ? addDays(m.last_change_on, m.max_interval_days)
+        : null;
     const nextSampleOdometer = fromCall
-      ? m.next_sample_odometer === null ? null : Number(m.next_sample_odometer)
-      : m.last_change_odometer !== null && m.max_interval_distance !== null ? Number(m.last_change_odometer) + Number(m.max_interval_distance) : null;
+      ? m.next_sample_odometer === null
+        ? null
+        : Number(m.next_sample_odometer)
+      : m.last_change_odometer !== null && m.max_interval_distance !== null
+        ? Number(m.last_change_odometer) + Number(m.max_interval_distance)
+        : null;
     const status = findSampleDue({ today, estimate, nextSampleOn, nextSampleOdometer });
     const late = nextSampleOn && status.reasons.includes('date') ? describeOverdue(nextSampleOn, today) : null;
-    if (status.due) due.push({ id: m.id, name: m.name, meter: m.meter, due: status, estimate, target: fromCall ? 'call' : 'manufacturer', nextSampleOn, nextSampleOdometer, overdue: late });
+    if (status.due)
+      due.push({
+        id: m.id,
+        name: m.name,
+        meter: m.meter,
+        due: status,
+        estimate,
+        target: fromCall ? 'call' : 'manufacturer',
+        nextSampleOn,
+        nextSampleOdometer,
+        overdue: late,
+      });
   }
   // The longest overdue first; machines due by the meter estimate alone follow, by name.
   due.sort((a, b) => (b.overdue?.days ?? -1) - (a.overdue?.days ?? -1) || a.name.localeCompare(b.name));

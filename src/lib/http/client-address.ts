@@ -5,7 +5,14 @@ import { isIP } from 'node:net';
 // the outermost trusted proxy appended, N places from the right of the chain that ends with the socket.
 
 /** Headers that name the client or the original request; stripped when no proxy is trusted. */
-export const FORWARDED_HEADERS = ['x-forwarded-for', 'x-forwarded-host', 'x-forwarded-proto', 'x-forwarded-port', 'forwarded', 'x-real-ip'] as const;
+export const FORWARDED_HEADERS = [
+  'x-forwarded-for',
+  'x-forwarded-host',
+  'x-forwarded-proto',
+  'x-forwarded-port',
+  'forwarded',
+  'x-real-ip',
+] as const;
 
 /** A valid IP address in its plain form (IPv4-mapped IPv6 as IPv4), or null. */
 export function normaliseIp(value: string | undefined | null): string | null {
@@ -16,10 +23,17 @@ export function normaliseIp(value: string | undefined | null): string | null {
 }
 
 /** The client's address for a request: the socket's with no trusted proxy, else the one the outermost trusted proxy appended. */
-export function resolveClientAddress(socketAddress: string | undefined, forwardedFor: string | string[] | undefined, trustedProxies: number): string | null {
+export function resolveClientAddress(
+  socketAddress: string | undefined,
+  forwardedFor: string | string[] | undefined,
+  trustedProxies: number,
+): string | null {
   const socket = normaliseIp(socketAddress);
   if (trustedProxies <= 0) return socket;
-  const chain = (Array.isArray(forwardedFor) ? forwardedFor.join(',') : forwardedFor ?? '').split(',').map((s) => s.trim()).filter((s) => s !== '');
+  const chain = (Array.isArray(forwardedFor) ? forwardedFor.join(',') : (forwardedFor ?? ''))
+    .split(',')
+    .map((s) => s.trim())
+    .filter((s) => s !== '');
   const hops = [...chain, socket ?? ''];
   // Fewer hops than trusted proxies means the request skipped a proxy: the leftmost is the best there is.
   const picked = hops[Math.max(0, hops.length - 1 - trustedProxies)];
@@ -36,7 +50,10 @@ export function parseTrustProxy(value: string | undefined): number | null {
 
 /** True for an address or host name only this machine can reach. */
 export function isLoopbackHost(host: string): boolean {
-  const h = host.trim().toLowerCase().replace(/^\[|\]$/g, '');
+  const h = host
+    .trim()
+    .toLowerCase()
+    .replace(/^\[|\]$/g, '');
   if (h === 'localhost' || h === '::1') return true;
   const ip = normaliseIp(h);
   return ip !== null && isIP(ip) === 4 && ip.startsWith('127.');

@@ -69,11 +69,17 @@ export async function conditionalJson(request: Request, data: unknown): Promise<
     etag,
   };
   if (ifNoneMatchMatches(request.headers.get('if-none-match'), etag)) {
-    return new Response(null, { status: 304, headers: { 'cache-control': headers['cache-control']!, vary: headers.vary!, etag } });
+    return new Response(null, {
+      status: 304,
+      headers: { 'cache-control': headers['cache-control']!, vary: headers.vary!, etag },
+    });
   }
   if (body.length >= MIN_GZIP_BYTES && acceptsGzip(request.headers.get('accept-encoding'))) {
     const compressed = await gzipAsync(Buffer.from(body, 'utf8'));
-    return new Response(new Uint8Array(compressed), { status: 200, headers: { ...headers, 'content-encoding': 'gzip', 'content-length': String(compressed.byteLength) } });
+    return new Response(new Uint8Array(compressed), {
+      status: 200,
+      headers: { ...headers, 'content-encoding': 'gzip', 'content-length': String(compressed.byteLength) },
+    });
   }
   return new Response(body, { status: 200, headers });
 }

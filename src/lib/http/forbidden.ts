@@ -20,6 +20,9 @@ export function explainForbidden(reason: string | null): string {
 }
 
 /** Renders the 403 page in place of the current one. */
-export function forbiddenPage(astro: { rewrite: (to: string) => Promise<Response> }, reason: ForbiddenReason): Promise<Response> {
+export function forbiddenPage(
+  astro: { rewrite: (to: string) => Promise<Response> },
+  reason: ForbiddenReason,
+): Promise<Response> {
   return astro.rewrite(`/forbidden?reason=${reason}`);
 }

@@ -31,7 +31,10 @@ export interface FormPostSteps<S extends z.ZodTypeAny, T> {
 }
 
 /** Reads the posted form (16 KiB cap) and settles it with {@link settleFormPost}. */
-export async function handleFormPost<S extends z.ZodTypeAny, T>(page: FormPage, steps: FormPostSteps<S, T>): Promise<FormPostOutcome<T, z.infer<S>>> {
+export async function handleFormPost<S extends z.ZodTypeAny, T>(
+  page: FormPage,
+  steps: FormPostSteps<S, T>,
+): Promise<FormPostOutcome<T, z.infer<S>>> {
   const body = await readForm(page.request);
   if (!body.ok) return { status: 'unreadable', response: body.response };
   return settleFormPost(page, body.form, steps);
@@ -42,7 +45,11 @@ export async function handleFormPost<S extends z.ZodTypeAny, T>(page: FormPage, 
  * refusal sets its status (and Retry-After) on the page. A refusal about fields is shown beside them, any
  * other as one sentence (`message`, empty when fields carry it).
  */
-export async function settleFormPost<S extends z.ZodTypeAny, T>(page: FormPage, form: URLSearchParams, steps: FormPostSteps<S, T>): Promise<Exclude<FormPostOutcome<T, z.infer<S>>, { status: 'unreadable' }>> {
+export async function settleFormPost<S extends z.ZodTypeAny, T>(
+  page: FormPage,
+  form: URLSearchParams,
+  steps: FormPostSteps<S, T>,
+): Promise<Exclude<FormPostOutcome<T, z.infer<S>>, { status: 'unreadable' }>> {
   const parsed = steps.schema.safeParse(steps.input(form));
   if (!parsed.success) {
     page.response.status = 400;

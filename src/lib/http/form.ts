@@ -14,7 +14,10 @@ export function wantsPage(request: Request, options: { bareForm?: 'page' | 'json
   const accept = request.headers.get('accept') ?? '';
   if (/application\/json/i.test(accept)) return false;
   if (/text\/html/i.test(accept)) return true;
-  return options.bareForm === 'page' && /^(application\/x-www-form-urlencoded|multipart\/form-data)\b/i.test(request.headers.get('content-type') ?? '');
+  return (
+    options.bareForm === 'page' &&
+    /^(application\/x-www-form-urlencoded|multipart\/form-data)\b/i.test(request.headers.get('content-type') ?? '')
+  );
 }
 
 export type ParsedForm = { ok: true; form: URLSearchParams } | { ok: false; response: Response };
@@ -23,14 +26,19 @@ export type ParsedForm = { ok: true; form: URLSearchParams } | { ok: false; resp
 export async function readForm(request: Request, maxBytes = DEFAULT_FORM_LIMIT_BYTES): Promise<ParsedForm> {
   const type = request.headers.get('content-type') ?? '';
   if (!/^application\/x-www-form-urlencoded\b/i.test(type)) {
-    return { ok: false, response: new Response('Send this form as application/x-www-form-urlencoded.', { status: 415 }) };
+    return {
+      ok: false,
+      response: new Response('Send this form as application/x-www-form-urlencoded.', { status: 415 }),
+    };
   }
   const body = await readBodyText(request, maxBytes);
-  if (!body.ok) return { ok: false, response: new Response('The form is larger than this page accepts.', { status: 413 }) };
+  if (!body.ok)
+    return { ok: false, response: new Response('The form is larger than this page accepts.', { status: 413 }) };
   return { ok: true, form: new URLSearchParams(body.text) };
 }
 
-export type ParsedMultipart = { ok: true; form: FormData } | { ok: false; reason: 'too-large'; size: number } | { ok: false; reason: 'invalid' };
+export type ParsedMultipart =
+  { ok: true; form: FormData } | { ok: false; reason: 'too-large'; size: number } | { ok: false; reason: 'invalid' };
 
 /**
  * Reads a multipart/form-data body through the bounded reader, so a body without a length header (chunked)
@@ -43,7 +51,14 @@ export async function readMultipartForm(request: Request, maxBytes: number): Pro
   if (!body.ok) return { ok: false, reason: 'too-large', size: body.size };
   try {
     const bytes = Buffer.from(body.bytes.buffer, body.bytes.byteOffset, body.bytes.byteLength);
-    return { ok: true, form: await new Request('http://local/', { method: 'POST', headers: { 'content-type': type }, body: bytes as unknown as BodyInit }).formData() };
+    return {
+      ok: true,
+      form: await new Request('http://local/', {
+        method: 'POST',
+        headers: { 'content-type': type },
+        body: bytes as unknown as BodyInit,
+      }).formData(),
+    };
   } catch {
     return { ok: false, reason: 'invalid' };
   }

@@ -14,7 +14,13 @@ export const DEFAULT_JSON_LIMIT_BYTES = 16 * 1024;
 const JSON_HEADERS = { 'content-type': 'application/json; charset=utf-8', 'cache-control': 'no-store' };
 
 /** A JSON error response in the shared shape. */
-export function jsonError(status: number, code: string, message: string, fields: FieldErrors = {}, headers: Record<string, string> = {}): Response {
+export function jsonError(
+  status: number,
+  code: string,
+  message: string,
+  fields: FieldErrors = {},
+  headers: Record<string, string> = {},
+): Response {
   const body: ErrorBody = { error: { code, message, fields } };
   return new Response(JSON.stringify(body), { status, headers: { ...JSON_HEADERS, ...headers } });
 }
@@ -71,7 +77,10 @@ export async function readBodyBytes(
 }
 
 /** Reads a body as text but stops as soon as it passes maxBytes, so a huge upload is never buffered. */
-export async function readBodyText(request: Request, maxBytes: number): Promise<{ ok: true; text: string } | { ok: false }> {
+export async function readBodyText(
+  request: Request,
+  maxBytes: number,
+): Promise<{ ok: true; text: string } | { ok: false }> {
   const body = await readBodyBytes(request, maxBytes);
   return body.ok ? { ok: true, text: Buffer.from(body.bytes).toString('utf8') } : { ok: false };
 }
@@ -79,13 +88,24 @@ export async function readBodyText(request: Request, maxBytes: number): Promise<
 export type ParsedBody<T> = { ok: true; data: T } | { ok: false; response: Response };
 
 /** Parses a JSON body against a zod schema: 413 when oversized, 415 when not JSON, 400 (with fields) when invalid. */
-export async function parseJsonBody<S extends z.ZodType>(request: Request, schema: S, maxBytes = DEFAULT_JSON_LIMIT_BYTES): Promise<ParsedBody<z.infer<S>>> {
+export async function parseJsonBody<S extends z.ZodType>(
+  request: Request,
+  schema: S,
+  maxBytes = DEFAULT_JSON_LIMIT_BYTES,
+): Promise<ParsedBody<z.infer<S>>> {
   const type = request.headers.get('content-type') ?? '';
   if (!/^application\/json\b/i.test(type)) {
-    return { ok: false, response: jsonError(415, 'unsupported_media_type', 'Send the request body as application/json.') };
+    return {
+      ok: false,
+      response: jsonError(415, 'unsupported_media_type', 'Send the request body as application/json.'),
+    };
   }
   const body = await readBodyText(request, maxBytes);
-  if (!body.ok) return { ok: false, response: jsonError(413, 'payload_too_large', `The request body is larger than ${maxBytes} bytes.`) };
+  if (!body.ok)
+    return {
+      ok: false,
+      response: jsonError(413, 'payload_too_large', `The request body is larger than ${maxBytes} bytes.`),
+    };
   let raw: unknown;
   try {
     raw = body.text === '' ? {} : JSON.parse(body.text);
@@ -94,7 +114,10 @@ export async function parseJsonBody<S extends z.ZodType>(request: Request, schem
   }
   const parsed = schema.safeParse(raw);
   if (!parsed.success) {
-    return { ok: false, response: jsonError(400, 'invalid_input', 'Some fields need attention.', fieldErrorsFrom(parsed.error)) };
+    return {
+      ok: false,
+      response: jsonError(400, 'invalid_input', 'Some fields need attention.', fieldErrorsFrom(parsed.error)),
+    };
   }
   return { ok: true, data: parsed.data };
 }

@@ -31,7 +31,10 @@ export async function withMultipartFile<T>(
     // A handful of small fields and files (only the named one is kept; the others are read and dropped, and
     // count against the drain limit), so a file sent before the named one cannot hide it (common practice, no
     // published source).
-    parser = busboy({ headers: { 'content-type': type }, limits: { files: 5, fields: 10, fieldSize: 4096, parts: 20 } });
+    parser = busboy({
+      headers: { 'content-type': type },
+      limits: { files: 5, fields: 10, fieldSize: 4096, parts: 20 },
+    });
   } catch {
     return { ok: false, reason: 'invalid' };
   }
@@ -75,8 +78,13 @@ export async function withMultipartFile<T>(
     // The file's reader sees the stream end with an error, so it stops and cleans up.
     current?.destroy(new Error('upload cut off'));
     await handled?.catch(() => {});
-    return overLimit || bodyBytes > maxBytes ? { ok: false, reason: 'too-large', size: bodyBytes } : { ok: false, reason: 'invalid' };
+    return overLimit || bodyBytes > maxBytes
+      ? { ok: false, reason: 'too-large', size: bodyBytes }
+      : { ok: false, reason: 'invalid' };
   }
-  if (!handled) return bodyBytes > maxBytes ? { ok: false, reason: 'too-large', size: bodyBytes } : { ok: false, reason: 'no-file' };
+  if (!handled)
+    return bodyBytes > maxBytes
+      ? { ok: false, reason: 'too-large', size: bodyBytes }
+      : { ok: false, reason: 'no-file' };
   return { ok: true, value: await handled, bodyBytes };
 }

@@ -11,6 +11,12 @@ export function notFoundPage(): Response {
  * The not-found page from a JSON endpoint answering a plain HTML form (Astro renders 404.astro only for
  * pages): a GET rewrite to /404, since the form's body has been read and cannot be passed on.
  */
-export function rewriteToNotFoundPage(context: { url: URL; request: Request; rewrite: (to: Request) => Promise<Response> }): Promise<Response> {
-  return context.rewrite(new Request(new URL('/404', context.url), { method: 'GET', headers: context.request.headers }));
+export function rewriteToNotFoundPage(context: {
+  url: URL;
+  request: Request;
+  rewrite: (to: Request) => Promise<Response>;
+}): Promise<Response> {
+  return context.rewrite(
+    new Request(new URL('/404', context.url), { method: 'GET', headers: context.request.headers }),
+  );
 }

@@ -19,7 +19,12 @@ export interface OriginPolicy {
  * from non-browser clients: a browser always sends Origin on a cross-site POST, and cannot send JSON
  * cross-site without a preflight this app never grants.
  */
-export function isForbiddenCrossSiteWrite(method: string, pathname: string, headers: Headers, policy: OriginPolicy): boolean {
+export function isForbiddenCrossSiteWrite(
+  method: string,
+  pathname: string,
+  headers: Headers,
+  policy: OriginPolicy,
+): boolean {
   if (SAFE_METHODS.has(method.toUpperCase())) return false;
   if (policy.exemptPaths.includes(pathname)) return false;
   const origin = headers.get('origin');

@@ -28,13 +28,16 @@ export function echoValues(form: URLSearchParams | FormData): Record<string, str
   return out;
 }
 
-
 /** What a machine page needs once the visitor may see it. */
 export interface MachinePageContext {
   g: { user: SessionUser; crew: CrewMembership };
   actor: Actor;
   db: Kysely<Database>;
-  machine: Awaited<ReturnType<typeof getMachine>> extends infer R ? (R extends { ok: true; value: infer M } ? M : never) : never;
+  machine: Awaited<ReturnType<typeof getMachine>> extends infer R
+    ? R extends { ok: true; value: infer M }
+      ? M
+      : never
+    : never;
 }
 
 /**
@@ -43,7 +46,12 @@ export interface MachinePageContext {
  * who may not change it.
  */
 export async function loadMachinePage(
-  astro: { locals: App.Locals; url: URL; params: Record<string, string | undefined>; rewrite: (to: string) => Promise<Response> },
+  astro: {
+    locals: App.Locals;
+    url: URL;
+    params: Record<string, string | undefined>;
+    rewrite: (to: string) => Promise<Response>;
+  },
   options: { edit: boolean },
 ): Promise<Response | MachinePageContext> {
   const g = requireCrew(astro.locals, astro.url);

@@ -6,4 +6,3 @@ export function refusalJson(r: Refusal): Response {
   const headers: Record<string, string> = r.retryAfterSeconds ? { 'retry-after': String(r.retryAfterSeconds) } : {};
   return jsonError(r.status, r.code, r.message, r.fields, headers);
 }
-

@@ -31,7 +31,13 @@ export function succeed<T>(value: T): { ok: true; value: T } {
 }
 
 /** A refusal with a status, a machine-readable code, a sentence and per-field messages. */
-export function refuse(status: RefusalStatus, code: string, message: string, fields: FieldErrors = {}, options: { retryAfterSeconds?: number } = {}): Refusal {
+export function refuse(
+  status: RefusalStatus,
+  code: string,
+  message: string,
+  fields: FieldErrors = {},
+  options: { retryAfterSeconds?: number } = {},
+): Refusal {
   return options.retryAfterSeconds === undefined
     ? { ok: false, status, code, message, fields }
     : { ok: false, status, code, message, fields, retryAfterSeconds: options.retryAfterSeconds };
@@ -42,7 +48,11 @@ export function refuse(status: RefusalStatus, code: string, message: string, fie
  * no `what`, the crew-wide sentence used where naming the kind of record would already say too much.
  */
 export function refuseNotFound(what?: string): Refusal {
-  return refuse(404, 'not_found', what ? `No such ${what} in your crew.` : 'There is nothing here, or it belongs to a crew you are not in.');
+  return refuse(
+    404,
+    'not_found',
+    what ? `No such ${what} in your crew.` : 'There is nothing here, or it belongs to a crew you are not in.',
+  );
 }
 
 /** The usual 403: a member whose role may not do this. */
@@ -56,7 +66,10 @@ export function refuseInvalid(error: z.ZodError, message = 'Some fields need att
 }
 
 /** Turns a posted form into a plain object: repeated names become arrays, everything else a string. */
-export function readFormObject(form: URLSearchParams | FormData, repeated: readonly string[] = []): Record<string, unknown> {
+export function readFormObject(
+  form: URLSearchParams | FormData,
+  repeated: readonly string[] = [],
+): Record<string, unknown> {
   const out: Record<string, unknown> = {};
   for (const [key, value] of form.entries()) {
     if (typeof value !== 'string') continue;

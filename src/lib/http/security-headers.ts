@@ -16,7 +16,14 @@ export function scriptHashSources(scripts: readonly string[]): string[] {
 }
 
 /** Astro's own inline scripts (astro/runtime/server/scripts.js writes each as `<script>${text}</script>`). */
-export const ASTRO_INLINE_SCRIPTS = [islandScript, idleDirective, loadDirective, mediaDirective, onlyDirective, visibleDirective] as const;
+export const ASTRO_INLINE_SCRIPTS = [
+  islandScript,
+  idleDirective,
+  loadDirective,
+  mediaDirective,
+  onlyDirective,
+  visibleDirective,
+] as const;
 
 const SCRIPT_SRC = ["'self'", ...scriptHashSources(ASTRO_INLINE_SCRIPTS)].join(' ');
 

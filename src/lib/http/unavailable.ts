@@ -5,9 +5,21 @@ import { jsonError } from './json';
 
 /** PostgreSQL error classes and socket errors that mean "the database cannot be reached right now". */
 const UNREACHABLE_CODES = new Set([
-  'ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EHOSTUNREACH', 'ENOTFOUND', 'EPIPE',
+  'ECONNREFUSED',
+  'ECONNRESET',
+  'ETIMEDOUT',
+  'EHOSTUNREACH',
+  'ENOTFOUND',
+  'EPIPE',
   // SQLSTATE class 08 (connection exception) and 57P0x (operator intervention: shutdown, cannot connect now).
-  '08000', '08001', '08003', '08004', '08006', '57P01', '57P02', '57P03',
+  '08000',
+  '08001',
+  '08003',
+  '08004',
+  '08006',
+  '57P01',
+  '57P02',
+  '57P03',
 ]);
 
 /** True when an error means the database is unreachable rather than a bug. */
@@ -16,7 +28,11 @@ export function isDatabaseUnavailable(error: unknown): boolean {
     const code = (e as { code?: unknown }).code;
     if (typeof code === 'string' && UNREACHABLE_CODES.has(code)) return true;
     const message = (e as { message?: unknown }).message;
-    if (typeof message === 'string' && /Connection terminated|connect ECONNREFUSED|timeout exceeded when trying to connect/i.test(message)) return true;
+    if (
+      typeof message === 'string' &&
+      /Connection terminated|connect ECONNREFUSED|timeout exceeded when trying to connect/i.test(message)
+    )
+      return true;
     if (e instanceof AggregateError && e.errors.some((inner) => isDatabaseUnavailable(inner))) return true;
   }
   return false;
@@ -45,7 +61,13 @@ h1{font-size:1.6rem;margin:0 0 .75rem}p{line-height:1.5}a{display:inline-block;m
 export function databaseUnavailableResponse(pathname: string): Response {
   const headers = { 'retry-after': '30', 'cache-control': 'no-store' };
   if (pathname.startsWith('/api/')) {
-    return jsonError(503, 'database_unavailable', 'Sumpwise cannot reach its database right now; nothing was saved. Try again in a minute.', {}, headers);
+    return jsonError(
+      503,
+      'database_unavailable',
+      'Sumpwise cannot reach its database right now; nothing was saved. Try again in a minute.',
+      {},
+      headers,
+    );
   }
   return new Response(PAGE, { status: 503, headers: { ...headers, 'content-type': 'text/html; charset=utf-8' } });
 }

@@ -20,7 +20,8 @@ const MISSING_MARKERS = new Set(['', '-', '--', '–', '—', 'n/a', 'na', 'n.a.
 
 /** "Not detected" markers, optionally followed by the limit: "ND", "n.d.", "ND (<1)", "BDL 0.5". */
 // Each quantified part is fenced by a literal or a class the next part cannot match, so matching is linear.
-const NOT_DETECTED = /^(?:nd|n\.d\.?|not detected|bdl|below detection(?: limit)?)(?:\s*(?:\(\s*)?(?:<\s*)?([^()<\s](?:[^()\s]|\s+[^()\s])*)\s*\)?)?$/;
+const NOT_DETECTED =
+  /^(?:nd|n\.d\.?|not detected|bdl|below detection(?: limit)?)(?:\s*(?:\(\s*)?(?:<\s*)?([^()<\s](?:[^()\s]|\s+[^()\s])*)\s*\)?)?$/;
 
 /** Longest cell read as a value; a lab's longest real cell ("below detection limit (<0.5)") is under 40. */
 export const MAX_CELL_TEXT = 64;
@@ -55,7 +56,8 @@ export function parseReadingCell(cell: string, mark: DecimalMark): ReadingParse 
   if (mark === '.' ? PLAIN_POINT.test(cell) : PLAIN_COMMA.test(cell)) {
     return { status: 'ok', value: Number(mark === '.' ? cell : cell.replace(',', '.')) };
   }
-  if (cell.length > MAX_CELL_TEXT) return { status: 'problem', problem: 'not-a-number', detail: `${cell.slice(0, 24)}…` };
+  if (cell.length > MAX_CELL_TEXT)
+    return { status: 'problem', problem: 'not-a-number', detail: `${cell.slice(0, 24)}…` };
   const s = tidy(cell);
   const lower = s.toLowerCase();
   if (MISSING_MARKERS.has(lower)) return { status: 'missing' };
@@ -90,12 +92,25 @@ export function parseReadingCell(cell: string, mark: DecimalMark): ReadingParse 
 
 const GLYCOL_POSITIVE = new Set(['positive', 'pos', 'pos.', 'yes', 'y', 'detected', 'present', '+', '1', 'true']);
 const GLYCOL_NEGATIVE = new Set([
-  'negative', 'neg', 'neg.', 'no', 'n', 'not detected', 'nd', 'n.d.', 'n.d', 'absent', 'none', '0', 'false',
+  'negative',
+  'neg',
+  'neg.',
+  'no',
+  'n',
+  'not detected',
+  'nd',
+  'n.d.',
+  'n.d',
+  'absent',
+  'none',
+  '0',
+  'false',
 ]);
 
 /** Read a glycol (coolant) result: positive/negative/yes/no (and 1/0) → 1/0; blank is missing. */
 export function parseGlycolCell(cell: string): ReadingParse {
-  if (cell.length > MAX_CELL_TEXT) return { status: 'problem', problem: 'not-a-number', detail: `${cell.slice(0, 24)}…` };
+  if (cell.length > MAX_CELL_TEXT)
+    return { status: 'problem', problem: 'not-a-number', detail: `${cell.slice(0, 24)}…` };
   const s = tidy(cell).toLowerCase();
   if (GLYCOL_POSITIVE.has(s)) return { status: 'ok', value: 1 };
   if (GLYCOL_NEGATIVE.has(s)) return { status: 'ok', value: 0 };
@@ -115,9 +130,30 @@ export type DateCell =
   | { kind: 'problem'; problem: 'invalid-date' | 'formula-like-cell'; detail: string };
 
 const MONTHS: Readonly<Record<string, number>> = {
-  jan: 1, feb: 2, mar: 3, apr: 4, may: 5, jun: 6, jul: 7, aug: 8, sep: 9, sept: 9, oct: 10, nov: 11, dec: 12,
-  january: 1, february: 2, march: 3, april: 4, june: 6, july: 7, august: 8, september: 9, october: 10,
-  november: 11, december: 12,
+  jan: 1,
+  feb: 2,
+  mar: 3,
+  apr: 4,
+  may: 5,
+  jun: 6,
+  jul: 7,
+  aug: 8,
+  sep: 9,
+  sept: 9,
+  oct: 10,
+  nov: 11,
+  dec: 12,
+  january: 1,
+  february: 2,
+  march: 3,
+  april: 4,
+  june: 6,
+  july: 7,
+  august: 8,
+  september: 9,
+  october: 10,
+  november: 11,
+  december: 12,
 };
 
 function expandYear(year: string): number {

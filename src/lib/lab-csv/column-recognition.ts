@@ -21,17 +21,57 @@ export interface RecognisedHeader {
 
 /** Full names of the ASTM D5185 elements, both spellings where English has two. */
 const ELEMENT_NAMES: Readonly<Record<string, MeasurandCode>> = {
-  iron: 'Fe', aluminum: 'Al', aluminium: 'Al', chromium: 'Cr', chrome: 'Cr', copper: 'Cu', lead: 'Pb',
-  tin: 'Sn', nickel: 'Ni', silver: 'Ag', titanium: 'Ti', vanadium: 'V', manganese: 'Mn',
-  silicon: 'Si', sodium: 'Na', potassium: 'K', boron: 'B',
-  molybdenum: 'Mo', zinc: 'Zn', phosphorus: 'P', phosphorous: 'P', calcium: 'Ca', magnesium: 'Mg',
-  barium: 'Ba', sulfur: 'S', sulphur: 'S',
+  iron: 'Fe',
+  aluminum: 'Al',
+  aluminium: 'Al',
+  chromium: 'Cr',
+  chrome: 'Cr',
+  copper: 'Cu',
+  lead: 'Pb',
+  tin: 'Sn',
+  nickel: 'Ni',
+  silver: 'Ag',
+  titanium: 'Ti',
+  vanadium: 'V',
+  manganese: 'Mn',
+  silicon: 'Si',
+  sodium: 'Na',
+  potassium: 'K',
+  boron: 'B',
+  molybdenum: 'Mo',
+  zinc: 'Zn',
+  phosphorus: 'P',
+  phosphorous: 'P',
+  calcium: 'Ca',
+  magnesium: 'Mg',
+  barium: 'Ba',
+  sulfur: 'S',
+  sulphur: 'S',
 };
 
 const ELEMENT_SYMBOLS: Readonly<Record<string, MeasurandCode>> = {
-  fe: 'Fe', al: 'Al', cr: 'Cr', cu: 'Cu', pb: 'Pb', sn: 'Sn', ni: 'Ni', ag: 'Ag', ti: 'Ti', v: 'V',
-  mn: 'Mn', si: 'Si', na: 'Na', k: 'K', b: 'B', mo: 'Mo', zn: 'Zn', p: 'P', ca: 'Ca', mg: 'Mg',
-  ba: 'Ba', s: 'S',
+  fe: 'Fe',
+  al: 'Al',
+  cr: 'Cr',
+  cu: 'Cu',
+  pb: 'Pb',
+  sn: 'Sn',
+  ni: 'Ni',
+  ag: 'Ag',
+  ti: 'Ti',
+  v: 'V',
+  mn: 'Mn',
+  si: 'Si',
+  na: 'Na',
+  k: 'K',
+  b: 'B',
+  mo: 'Mo',
+  zn: 'Zn',
+  p: 'P',
+  ca: 'Ca',
+  mg: 'Mg',
+  ba: 'Ba',
+  s: 'S',
 };
 
 /** Words that add nothing to an element header ("ICP Iron", "Iron content"). */
@@ -89,7 +129,16 @@ function tokensOf(text: string): string[] {
 
 const SAMPLED_WORDS = new Set(['sampled', 'sampling', 'drawn', 'drained', 'taken', 'collected']);
 const REPORTED_WORDS = new Set([
-  'reported', 'report', 'completed', 'tested', 'test', 'analysed', 'analyzed', 'issued', 'finalised', 'finalized',
+  'reported',
+  'report',
+  'completed',
+  'tested',
+  'test',
+  'analysed',
+  'analyzed',
+  'issued',
+  'finalised',
+  'finalized',
 ]);
 const BOTTLE_WORDS = new Set(['bottle', 'kit', 'tag', 'container']);
 const SAMPLE_ID_WORDS = new Set(['id', 'no', 'nr', 'number', 'code', 'ref', 'reference', 'num']);
@@ -126,7 +175,11 @@ function findTemperature(text: string, tokens: readonly string[]): { value: numb
   return null;
 }
 
-function recogniseViscosity(text: string, tokens: readonly string[], unit: LabUnit | undefined): RecognisedHeader | null {
+function recogniseViscosity(
+  text: string,
+  tokens: readonly string[],
+  unit: LabUnit | undefined,
+): RecognisedHeader | null {
   const has = (w: string): boolean => tokens.includes(w);
   const glued = tokens.some((t) => /^(kv|v|vis|visc|sus|ssu)(40|100|210)$/.test(t));
   const saybolt = unit === 'SUS' || tokens.some((t) => /^(sus|ssu)(210)?$/.test(t));
@@ -136,18 +189,25 @@ function recogniseViscosity(text: string, tokens: readonly string[], unit: LabUn
   if (!saybolt && !glued && !tokens.some((t) => VISCOSITY_WORDS.has(t))) return null;
   const temperature = findTemperature(text, tokens);
   if (saybolt) {
-    if (temperature?.value === 210 && temperature.scale !== 'c') return { kind: 'measurand', code: 'SUS210', unit: 'SUS' };
+    if (temperature?.value === 210 && temperature.scale !== 'c')
+      return { kind: 'measurand', code: 'SUS210', unit: 'SUS' };
     return {
       kind: 'unknown',
       note: 'Saybolt seconds are read only at 210 °F (ASTM D2161); this column gives no temperature or another one',
     };
   }
-  if (temperature === null) return { kind: 'unknown', note: 'a viscosity column needs its temperature (40 °C or 100 °C)' };
+  if (temperature === null)
+    return { kind: 'unknown', note: 'a viscosity column needs its temperature (40 °C or 100 °C)' };
   const { value, scale } = temperature;
   // 104 °F = 40 °C and 212 °F = 100 °C exactly.
-  if ((value === 40 && scale !== 'f') || (value === 104 && scale !== 'c')) return { kind: 'measurand', code: 'KV40', unit: 'mm²/s' };
-  if ((value === 100 && scale !== 'f') || (value === 212 && scale !== 'c')) return { kind: 'measurand', code: 'KV100', unit: 'mm²/s' };
-  return { kind: 'unknown', note: `viscosity is read at 40 °C and 100 °C only, not at ${value} °${scale === 'f' ? 'F' : 'C'}` };
+  if ((value === 40 && scale !== 'f') || (value === 104 && scale !== 'c'))
+    return { kind: 'measurand', code: 'KV40', unit: 'mm²/s' };
+  if ((value === 100 && scale !== 'f') || (value === 212 && scale !== 'c'))
+    return { kind: 'measurand', code: 'KV100', unit: 'mm²/s' };
+  return {
+    kind: 'unknown',
+    note: `viscosity is read at 40 °C and 100 °C only, not at ${value} °${scale === 'f' ? 'F' : 'C'}`,
+  };
 }
 
 function recogniseCondition(tokens: readonly string[], unit: LabUnit | undefined): RecognisedHeader | null {
@@ -189,7 +249,8 @@ export function recogniseHeader(header: string, unitsCell = ''): RecognisedHeade
   const tokens = tokensOf(rest);
   const rawTokens = tokensOf(text);
   if (tokens.length === 0 && unit === undefined) return { kind: 'unknown' };
-  if (rawTokens.includes('sus210') || rawTokens.includes('ssu210')) return { kind: 'measurand', code: 'SUS210', unit: 'SUS' };
+  if (rawTokens.includes('sus210') || rawTokens.includes('ssu210'))
+    return { kind: 'measurand', code: 'SUS210', unit: 'SUS' };
   return (
     recogniseDateOrBottle(tokens, text) ??
     recogniseViscosity(text, rawTokens, unit) ??

@@ -8,21 +8,14 @@ export const MAX_LAB_FILE_BYTES = 5 * 1024 * 1024;
 
 export type LabFileEncoding = 'utf-8' | 'utf-16le' | 'utf-16be' | 'windows-1252';
 
-export type DecodeLabFileErrorCode =
-  | 'empty-file'
-  | 'file-too-large'
-  | 'image-file'
-  | 'not-csv-file'
-  | 'binary-file';
+export type DecodeLabFileErrorCode = 'empty-file' | 'file-too-large' | 'image-file' | 'not-csv-file' | 'binary-file';
 
 export interface DecodeLabFileError {
   code: DecodeLabFileErrorCode;
   message: string;
 }
 
-export type DecodeLabFileResult =
-  | { text: string; encoding: LabFileEncoding }
-  | { error: DecodeLabFileError };
+export type DecodeLabFileResult = { text: string; encoding: LabFileEncoding } | { error: DecodeLabFileError };
 
 /** File signatures ("magic bytes") of things riders upload by mistake instead of a CSV. */
 const SIGNATURES: ReadonlyArray<{ bytes: readonly number[]; code: DecodeLabFileErrorCode; what: string }> = [
@@ -33,7 +26,11 @@ const SIGNATURES: ReadonlyArray<{ bytes: readonly number[]; code: DecodeLabFileE
   // ZIP container: .xlsx and .ods spreadsheets are ZIP files.
   { bytes: [0x50, 0x4b, 0x03, 0x04], code: 'not-csv-file', what: 'a spreadsheet or ZIP archive' },
   // Compound File Binary: the old .xls format.
-  { bytes: [0xd0, 0xcf, 0x11, 0xe0, 0xa1, 0xb1, 0x1a, 0xe1], code: 'not-csv-file', what: 'an old Excel (.xls) spreadsheet' },
+  {
+    bytes: [0xd0, 0xcf, 0x11, 0xe0, 0xa1, 0xb1, 0x1a, 0xe1],
+    code: 'not-csv-file',
+    what: 'an old Excel (.xls) spreadsheet',
+  },
 ];
 
 function startsWith(bytes: Uint8Array, prefix: readonly number[]): boolean {
@@ -75,7 +72,10 @@ function guessBomlessUtf16(bytes: Uint8Array): 'utf-16le' | 'utf-16be' | null {
 export function decodeLabFile(bytes: Uint8Array): DecodeLabFileResult {
   if (bytes.length > MAX_LAB_FILE_BYTES) {
     const mib = (bytes.length / (1024 * 1024)).toFixed(1);
-    return fail('file-too-large', `The file is ${mib} MiB; lab files up to 5 MiB are accepted. Split the report into smaller files.`);
+    return fail(
+      'file-too-large',
+      `The file is ${mib} MiB; lab files up to 5 MiB are accepted. Split the report into smaller files.`,
+    );
   }
   if (bytes.length === 0) {
     return fail('empty-file', 'The file is empty: it holds no header and no readings.');
@@ -97,7 +97,10 @@ export function decodeLabFile(bytes: Uint8Array): DecodeLabFileResult {
     try {
       text = new TextDecoder('utf-8', { fatal: true, ignoreBOM: false }).decode(bytes);
     } catch {
-      return fail('binary-file', 'The file starts like UTF-8 text but holds bytes that are not text. Export the lab report as CSV again.');
+      return fail(
+        'binary-file',
+        'The file starts like UTF-8 text but holds bytes that are not text. Export the lab report as CSV again.',
+      );
     }
   } else if (startsWith(bytes, [0xff, 0xfe]) || startsWith(bytes, [0xfe, 0xff])) {
     encoding = bytes[0] === 0xff ? 'utf-16le' : 'utf-16be';
@@ -108,7 +111,10 @@ export function decodeLabFile(bytes: Uint8Array): DecodeLabFileResult {
     text = new TextDecoder(encoding).decode(bytes);
   } else {
     if (bytes.includes(0)) {
-      return fail('binary-file', 'The file holds NUL bytes, so it is a binary file, not a CSV text file. Export the lab report as CSV.');
+      return fail(
+        'binary-file',
+        'The file holds NUL bytes, so it is a binary file, not a CSV text file. Export the lab report as CSV.',
+      );
     }
     try {
       text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
@@ -121,7 +127,10 @@ export function decodeLabFile(bytes: Uint8Array): DecodeLabFileResult {
     }
   }
   if (text.includes('\u0000') || hasBinaryControls(text)) {
-    return fail('binary-file', 'The file holds control bytes that never occur in a CSV, so it is a binary file. Export the lab report as CSV.');
+    return fail(
+      'binary-file',
+      'The file holds control bytes that never occur in a CSV, so it is a binary file. Export the lab report as CSV.',
+    );
   }
   if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
   return { text, encoding };

@@ -28,9 +28,28 @@ export const LAB_NAMES: Readonly<Record<LabCsvLayout, string>> = {
 };
 
 const ELEMENT_NAMES: Readonly<Record<ElementCode, string>> = {
-  Fe: 'Iron', Al: 'Aluminium', Cr: 'Chromium', Cu: 'Copper', Pb: 'Lead', Sn: 'Tin', Ni: 'Nickel', Ag: 'Silver',
-  Ti: 'Titanium', V: 'Vanadium', Mn: 'Manganese', Si: 'Silicon', Na: 'Sodium', K: 'Potassium', B: 'Boron',
-  Mo: 'Molybdenum', Zn: 'Zinc', P: 'Phosphorus', Ca: 'Calcium', Mg: 'Magnesium', Ba: 'Barium', S: 'Sulphur',
+  Fe: 'Iron',
+  Al: 'Aluminium',
+  Cr: 'Chromium',
+  Cu: 'Copper',
+  Pb: 'Lead',
+  Sn: 'Tin',
+  Ni: 'Nickel',
+  Ag: 'Silver',
+  Ti: 'Titanium',
+  V: 'Vanadium',
+  Mn: 'Manganese',
+  Si: 'Silicon',
+  Na: 'Sodium',
+  K: 'Potassium',
+  B: 'Boron',
+  Mo: 'Molybdenum',
+  Zn: 'Zinc',
+  P: 'Phosphorus',
+  Ca: 'Calcium',
+  Mg: 'Magnesium',
+  Ba: 'Barium',
+  S: 'Sulphur',
 };
 
 type Cell = (row: LabReportRow) => string;
@@ -170,7 +189,9 @@ const LAYOUTS: Readonly<Record<LabCsvLayout, LayoutSpec>> = {
         header: 'Viscosity 210 °F',
         unit: 'SUS',
         cell: (row) => {
-          const sus = row.readings.SUS210?.value ?? (row.readings.KV100 ? computeSayboltSeconds(row.readings.KV100.value, 210) : undefined);
+          const sus =
+            row.readings.SUS210?.value ??
+            (row.readings.KV100 ? computeSayboltSeconds(row.readings.KV100.value, 210) : undefined);
           // Saybolt seconds to two decimals: finer than any lab reports, so the round trip stays within 0.01 mm²/s.
           return sus === undefined ? '' : plain(round(sus, 2));
         },

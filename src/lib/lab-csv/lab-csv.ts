@@ -19,10 +19,22 @@ import {
   type Qualifier,
   type ReadingParse,
 } from './cell-values';
-import { isUnitCell, recogniseHeader, type ColumnKind, type LabUnit, type RecognisedHeader } from './column-recognition';
+import {
+  isUnitCell,
+  recogniseHeader,
+  type ColumnKind,
+  type LabUnit,
+  type RecognisedHeader,
+} from './column-recognition';
 import { isFormulaLikeCell } from './csv-cell';
 import { isBareNotDetected, parsePlainNumber, readIsoDay } from './plain-cells';
-import { DAY_FIRST_LANGUAGES, detectHeaderLanguages, HEADER_LANGUAGES, parseLocalMonthDate, readLocalGlycolWord } from './header-dictionary';
+import {
+  DAY_FIRST_LANGUAGES,
+  detectHeaderLanguages,
+  HEADER_LANGUAGES,
+  parseLocalMonthDate,
+  readLocalGlycolWord,
+} from './header-dictionary';
 import { detectLongFormat, pivotLongFormat, rewordPivotIssues, type PivotResult } from './long-format';
 import { findPageFurniture } from './page-furniture';
 import { convertSayboltToKinematic } from './saybolt';
@@ -133,16 +145,111 @@ type ReadingSetter = (readings: LabReadings, reading: LabReading) => void;
  * third of the reader's time. A named store per code stays on the fast path.
  */
 const SET_READING: Readonly<Record<MeasurandCode, ReadingSetter>> = {
-  Fe: (o, r) => { o.Fe = r; }, Al: (o, r) => { o.Al = r; }, Cr: (o, r) => { o.Cr = r; }, Cu: (o, r) => { o.Cu = r; },
-  Pb: (o, r) => { o.Pb = r; }, Sn: (o, r) => { o.Sn = r; }, Ni: (o, r) => { o.Ni = r; }, Ag: (o, r) => { o.Ag = r; },
-  Ti: (o, r) => { o.Ti = r; }, V: (o, r) => { o.V = r; }, Mn: (o, r) => { o.Mn = r; }, Si: (o, r) => { o.Si = r; },
-  Na: (o, r) => { o.Na = r; }, K: (o, r) => { o.K = r; }, B: (o, r) => { o.B = r; }, Mo: (o, r) => { o.Mo = r; },
-  Zn: (o, r) => { o.Zn = r; }, P: (o, r) => { o.P = r; }, Ca: (o, r) => { o.Ca = r; }, Mg: (o, r) => { o.Mg = r; },
-  Ba: (o, r) => { o.Ba = r; }, S: (o, r) => { o.S = r; }, KV40: (o, r) => { o.KV40 = r; }, KV100: (o, r) => { o.KV100 = r; },
-  VI: (o, r) => { o.VI = r; }, SUS210: (o, r) => { o.SUS210 = r; }, FLASH: (o, r) => { o.FLASH = r; },
-  FUEL: (o, r) => { o.FUEL = r; }, WATER: (o, r) => { o.WATER = r; }, GLYCOL: (o, r) => { o.GLYCOL = r; },
-  INSOL: (o, r) => { o.INSOL = r; }, TBN: (o, r) => { o.TBN = r; }, TAN: (o, r) => { o.TAN = r; },
-  OXI: (o, r) => { o.OXI = r; }, NIT: (o, r) => { o.NIT = r; },
+  Fe: (o, r) => {
+    o.Fe = r;
+  },
+  Al: (o, r) => {
+    o.Al = r;
+  },
+  Cr: (o, r) => {
+    o.Cr = r;
+  },
+  Cu: (o, r) => {
+    o.Cu = r;
+  },
+  Pb: (o, r) => {
+    o.Pb = r;
+  },
+  Sn: (o, r) => {
+    o.Sn = r;
+  },
+  Ni: (o, r) => {
+    o.Ni = r;
+  },
+  Ag: (o, r) => {
+    o.Ag = r;
+  },
+  Ti: (o, r) => {
+    o.Ti = r;
+  },
+  V: (o, r) => {
+    o.V = r;
+  },
+  Mn: (o, r) => {
+    o.Mn = r;
+  },
+  Si: (o, r) => {
+    o.Si = r;
+  },
+  Na: (o, r) => {
+    o.Na = r;
+  },
+  K: (o, r) => {
+    o.K = r;
+  },
+  B: (o, r) => {
+    o.B = r;
+  },
+  Mo: (o, r) => {
+    o.Mo = r;
+  },
+  Zn: (o, r) => {
+    o.Zn = r;
+  },
+  P: (o, r) => {
+    o.P = r;
+  },
+  Ca: (o, r) => {
+    o.Ca = r;
+  },
+  Mg: (o, r) => {
+    o.Mg = r;
+  },
+  Ba: (o, r) => {
+    o.Ba = r;
+  },
+  S: (o, r) => {
+    o.S = r;
+  },
+  KV40: (o, r) => {
+    o.KV40 = r;
+  },
+  KV100: (o, r) => {
+    o.KV100 = r;
+  },
+  VI: (o, r) => {
+    o.VI = r;
+  },
+  SUS210: (o, r) => {
+    o.SUS210 = r;
+  },
+  FLASH: (o, r) => {
+    o.FLASH = r;
+  },
+  FUEL: (o, r) => {
+    o.FUEL = r;
+  },
+  WATER: (o, r) => {
+    o.WATER = r;
+  },
+  GLYCOL: (o, r) => {
+    o.GLYCOL = r;
+  },
+  INSOL: (o, r) => {
+    o.INSOL = r;
+  },
+  TBN: (o, r) => {
+    o.TBN = r;
+  },
+  TAN: (o, r) => {
+    o.TAN = r;
+  },
+  OXI: (o, r) => {
+    o.OXI = r;
+  },
+  NIT: (o, r) => {
+    o.NIT = r;
+  },
 };
 
 /** Distinct cell texts kept per file; past this a file of all-different figures just allocates (common practice, no published source). */
@@ -166,7 +273,9 @@ class PlainReadings {
     const notDetected = isBareNotDetected(cell);
     const qualifier: Qualifier | undefined = first === 60 || notDetected ? '<' : first === 62 ? '>' : undefined;
     const value = notDetected ? 0 : parsePlainNumber(cell, this.mark, qualifier === undefined ? 0 : 1);
-    const reading = Number.isNaN(value) ? null : Object.freeze(qualifier === undefined ? { value } : { value, qualifier });
+    const reading = Number.isNaN(value)
+      ? null
+      : Object.freeze(qualifier === undefined ? { value } : { value, qualifier });
     if (this.byText.size < MAX_PLAIN_READINGS) this.byText.set(cell, reading);
     return reading ?? undefined;
   }
@@ -237,12 +346,39 @@ function defaultUnit(code: MeasurandCode): LabUnit | undefined {
 
 /** Readable name of a measurand for messages. */
 const MEASURAND_LABELS: Partial<Record<MeasurandCode, string>> = {
-  Fe: 'iron', Al: 'aluminium', Cr: 'chromium', Cu: 'copper', Pb: 'lead', Sn: 'tin', Ni: 'nickel',
-  Ag: 'silver', Ti: 'titanium', V: 'vanadium', Mn: 'manganese', Si: 'silicon', Na: 'sodium',
-  K: 'potassium', B: 'boron', Mo: 'molybdenum', Zn: 'zinc', P: 'phosphorus', Ca: 'calcium',
-  Mg: 'magnesium', Ba: 'barium', S: 'sulfur', KV40: 'viscosity at 40 °C', KV100: 'viscosity at 100 °C',
-  VI: 'viscosity index', SUS210: 'Saybolt viscosity at 210 °F', FLASH: 'flash point', FUEL: 'fuel dilution',
-  WATER: 'water', GLYCOL: 'glycol', INSOL: 'insolubles', TBN: 'TBN', TAN: 'TAN',
+  Fe: 'iron',
+  Al: 'aluminium',
+  Cr: 'chromium',
+  Cu: 'copper',
+  Pb: 'lead',
+  Sn: 'tin',
+  Ni: 'nickel',
+  Ag: 'silver',
+  Ti: 'titanium',
+  V: 'vanadium',
+  Mn: 'manganese',
+  Si: 'silicon',
+  Na: 'sodium',
+  K: 'potassium',
+  B: 'boron',
+  Mo: 'molybdenum',
+  Zn: 'zinc',
+  P: 'phosphorus',
+  Ca: 'calcium',
+  Mg: 'magnesium',
+  Ba: 'barium',
+  S: 'sulfur',
+  KV40: 'viscosity at 40 °C',
+  KV100: 'viscosity at 100 °C',
+  VI: 'viscosity index',
+  SUS210: 'Saybolt viscosity at 210 °F',
+  FLASH: 'flash point',
+  FUEL: 'fuel dilution',
+  WATER: 'water',
+  GLYCOL: 'glycol',
+  INSOL: 'insolubles',
+  TBN: 'TBN',
+  TAN: 'TAN',
 };
 
 function describeCode(code: MeasurandCode): string {
@@ -278,7 +414,11 @@ function countOutsideQuotes(line: string, delimiter: string): number {
  * semicolon, then comma, since a tab or semicolon in a comma file is rarer than the reverse.
  */
 function detectDelimiter(lines: readonly string[]): ',' | ';' | '\t' {
-  let best: { delimiter: ',' | ';' | '\t'; frequency: number; mode: number } = { delimiter: ',', frequency: 0, mode: 0 };
+  let best: { delimiter: ',' | ';' | '\t'; frequency: number; mode: number } = {
+    delimiter: ',',
+    frequency: 0,
+    mode: 0,
+  };
   for (const delimiter of ['\t', ';', ','] as const) {
     const tally = new Map<number, number>();
     for (const line of lines) {
@@ -295,7 +435,12 @@ function detectDelimiter(lines: readonly string[]): ',' | ';' | '\t' {
 }
 
 /** Decide the decimal mark from the numbers themselves; see parseLabCsv's doc for the rule. */
-function detectDecimalMark(delimiter: ',' | ';' | '\t', data: readonly string[][], start: number, preferComma = false): DecimalMark {
+function detectDecimalMark(
+  delimiter: ',' | ';' | '\t',
+  data: readonly string[][],
+  start: number,
+  preferComma = false,
+): DecimalMark {
   if (delimiter === ',') return '.';
   let commaEvidence = false;
   let pointEvidence = false;
@@ -499,12 +644,18 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
   let body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
   if (body.includes('\r')) body = body.replace(/\r\n?/g, '\n');
   if (body.trim() === '') {
-    issues.push({ severity: 'error', code: 'empty-file', row: null, column: null, message: 'The file is empty: it holds no header and no readings.' });
+    issues.push({
+      severity: 'error',
+      code: 'empty-file',
+      row: null,
+      column: null,
+      message: 'The file is empty: it holds no header and no readings.',
+    });
     return result([], [], ',', '.', null, null);
   }
 
   const firstLines: string[] = [];
-  for (let from = 0; firstLines.length < 20 && from < body.length; ) {
+  for (let from = 0; firstLines.length < 20 && from < body.length;) {
     const end = body.indexOf('\n', from);
     const line = body.slice(from, end === -1 ? body.length : end);
     if (line.trim() !== '') firstLines.push(line);
@@ -514,7 +665,10 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
   // Spreadsheet exports may open with a "sep=;" line naming the delimiter; it is honoured, then read as blank.
   const sepLine = /^sep=([,;\t])\n/i.exec(body);
   if (sepLine) body = `\n${body.slice(sepLine[0].length)}`;
-  const delimiter = sepLine?.[1] === ',' || sepLine?.[1] === ';' || sepLine?.[1] === '\t' ? sepLine[1] : detectDelimiter(firstLines.slice(sepLine ? 1 : 0));
+  const delimiter =
+    sepLine?.[1] === ',' || sepLine?.[1] === ';' || sepLine?.[1] === '\t'
+      ? sepLine[1]
+      : detectDelimiter(firstLines.slice(sepLine ? 1 : 0));
   const parsed = Papa.parse<string[]>(body, { delimiter, newline: '\n', skipEmptyLines: false });
   let data = parsed.data;
 
@@ -595,7 +749,13 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
   }
 
   // Footers, headers repeated at page breaks and blank separator lines are skipped with a note.
-  const furniture = findPageFurniture({ data, firstDataRow, headerCells, lineOf, isUnitsRow: (cells) => filledUnitsRow(cells) });
+  const furniture = findPageFurniture({
+    data,
+    firstDataRow,
+    headerCells,
+    lineOf,
+    isUnitsRow: (cells) => filledUnitsRow(cells),
+  });
   issues.push(...furniture.notes);
   let skipRows: ReadonlySet<number> = furniture.skip;
   const languages = detectHeaderLanguages(headerCells);
@@ -603,9 +763,23 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
 
   // One row per bottle and test: pivoted to one row per bottle, then read like any wide file.
   let pivot: PivotResult | null = null;
-  const long = detectLongFormat(headerCells, headerCells.map((h, i) => resolveHeader(h.trim(), unitsCells?.[i] ?? '', foldedMapping(options), options.mapping).kind));
+  const long = detectLongFormat(
+    headerCells,
+    headerCells.map(
+      (h, i) => resolveHeader(h.trim(), unitsCells?.[i] ?? '', foldedMapping(options), options.mapping).kind,
+    ),
+  );
   if (long) {
-    pivot = pivotLongFormat({ plan: long, headerCells, data, firstDataRow, lineOf, headerLine, skip: new Set([...skipRows, ...brokenRows]), normaliseBottle: normaliseBottleCode });
+    pivot = pivotLongFormat({
+      plan: long,
+      headerCells,
+      data,
+      firstDataRow,
+      lineOf,
+      headerLine,
+      skip: new Set([...skipRows, ...brokenRows]),
+      normaliseBottle: normaliseBottleCode,
+    });
     issues.push(...pivot.issues);
     data = pivot.grid;
     lineOf = pivot.lines;
@@ -672,15 +846,36 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
 
     const bottleRaw = (cells[bottleColumn.index] ?? '').trim();
     if (bottleRaw === '') {
-      issues.push({ severity: 'error', code: 'missing-bottle-code', row: line, column: bottleColumn.header, message: `${where(line, bottleColumn.header)}: the bottle code is blank, so this row cannot be matched to a sample.` });
+      issues.push({
+        severity: 'error',
+        code: 'missing-bottle-code',
+        row: line,
+        column: bottleColumn.header,
+        message: `${where(line, bottleColumn.header)}: the bottle code is blank, so this row cannot be matched to a sample.`,
+      });
       continue;
     }
     if (isFormulaLikeCell(bottleRaw)) {
-      issues.push({ severity: 'error', code: 'formula-like-cell', row: line, column: bottleColumn.header, message: problemMessage('formula-like-cell', bottleRaw, line, bottleColumn.header, decimalMark).replace('the lab should send a number here', 'a bottle code never starts like this') });
+      issues.push({
+        severity: 'error',
+        code: 'formula-like-cell',
+        row: line,
+        column: bottleColumn.header,
+        message: problemMessage('formula-like-cell', bottleRaw, line, bottleColumn.header, decimalMark).replace(
+          'the lab should send a number here',
+          'a bottle code never starts like this',
+        ),
+      });
       continue;
     }
     if (bottleRaw.length > MAX_BOTTLE_CODE_LENGTH) {
-      issues.push({ severity: 'error', code: 'bottle-code-too-long', row: line, column: bottleColumn.header, message: `${where(line, bottleColumn.header)}: the bottle code is ${bottleRaw.length} characters long; codes up to ${MAX_BOTTLE_CODE_LENGTH} are accepted.` });
+      issues.push({
+        severity: 'error',
+        code: 'bottle-code-too-long',
+        row: line,
+        column: bottleColumn.header,
+        message: `${where(line, bottleColumn.header)}: the bottle code is ${bottleRaw.length} characters long; codes up to ${MAX_BOTTLE_CODE_LENGTH} are accepted.`,
+      });
       continue;
     }
     const issuesBeforeRow = issues.length;
@@ -722,7 +917,10 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
           column: dateColumn.header,
           message:
             parsedDate.problem === 'formula-like-cell'
-              ? problemMessage('formula-like-cell', parsedDate.detail, line, dateColumn.header, decimalMark).replace('the lab should send a number here', 'a date is expected here')
+              ? problemMessage('formula-like-cell', parsedDate.detail, line, dateColumn.header, decimalMark).replace(
+                  'the lab should send a number here',
+                  'a date is expected here',
+                )
               : `${where(line, dateColumn.header)}: ${quoteCell(parsedDate.detail)} is not a date that exists. Write it as yyyy-mm-dd, for example 2026-04-03.`,
         });
       }
@@ -744,7 +942,13 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       const parsedCell = plan.read(cell);
       if (parsedCell.status === 'missing') continue;
       if (parsedCell.status === 'problem') {
-        issues.push({ severity: 'error', code: parsedCell.problem, row: line, column: plan.header, message: problemMessage(parsedCell.problem, parsedCell.detail, line, plan.header, decimalMark) });
+        issues.push({
+          severity: 'error',
+          code: parsedCell.problem,
+          row: line,
+          column: plan.header,
+          message: problemMessage(parsedCell.problem, parsedCell.detail, line, plan.header, decimalMark),
+        });
         continue;
       }
       // Bounds apply in the catalogue's unit, after conversion (500 ppm of water is 0.05 %).
@@ -760,7 +964,8 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
         });
         continue;
       }
-      const reading: LabReading = parsedCell.qualifier === undefined ? { value } : { value, qualifier: parsedCell.qualifier };
+      const reading: LabReading =
+        parsedCell.qualifier === undefined ? { value } : { value, qualifier: parsedCell.qualifier };
       plan.set(row.readings, reading);
       readingCount += 1;
       if (plan.alsoKv100) {
@@ -776,7 +981,8 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
           });
           continue;
         }
-        row.readings.KV100 = parsedCell.qualifier === undefined ? { value: kv100 } : { value: kv100, qualifier: parsedCell.qualifier };
+        row.readings.KV100 =
+          parsedCell.qualifier === undefined ? { value: kv100 } : { value: kv100, qualifier: parsedCell.qualifier };
       }
     }
 
@@ -785,11 +991,26 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       if (raw === '') continue;
       row.other[column.header] = raw;
       if (isFormulaLikeCell(raw)) {
-        issues.push({ severity: 'warning', code: 'formula-like-cell', row: line, column: column.header, message: problemMessage('formula-like-cell', raw, line, column.header, decimalMark).replace('; the lab should send a number here', '') });
+        issues.push({
+          severity: 'warning',
+          code: 'formula-like-cell',
+          row: line,
+          column: column.header,
+          message: problemMessage('formula-like-cell', raw, line, column.header, decimalMark).replace(
+            '; the lab should send a number here',
+            '',
+          ),
+        });
       }
     }
     if (measurands.length > 0 && readingCount === 0 && issues.length === issuesBeforeRow) {
-      issues.push({ severity: 'warning', code: 'no-readings', row: line, column: null, message: `Line ${line} (bottle ${quoteCell(bottleRaw)}) has no readings at all: every measurand cell is blank.` });
+      issues.push({
+        severity: 'warning',
+        code: 'no-readings',
+        row: line,
+        column: null,
+        message: `Line ${line} (bottle ${quoteCell(bottleRaw)}) has no readings at all: every measurand cell is blank.`,
+      });
     }
     rows.push(row);
   }
@@ -850,7 +1071,8 @@ function settleDates(
       if (evidence) orders.add(evidence);
     }
     const languageOrder: DateOrder | null = orders.size === 0 && dayFirstLanguage !== undefined ? 'dmy' : null;
-    const columnOrder: DateOrder | null = profileOrder ?? (orders.size === 1 ? [...orders][0] ?? null : languageOrder);
+    const columnOrder: DateOrder | null =
+      profileOrder ?? (orders.size === 1 ? ([...orders][0] ?? null) : languageOrder);
     let settledByLanguage = 0;
     for (const { row, field, cell, raw } of list) {
       const own = evidenceOfDateOrder(cell);
@@ -866,11 +1088,18 @@ function settleDates(
         });
         continue;
       }
-      if (own === null && cell.first !== cell.second && profileOrder === undefined && languageOrder !== null) settledByLanguage += 1;
+      if (own === null && cell.first !== cell.second && profileOrder === undefined && languageOrder !== null)
+        settledByLanguage += 1;
       const day = order === 'dmy' ? cell.first : cell.second;
       const month = order === 'dmy' ? cell.second : cell.first;
       if (!isRealDate(cell.year, month, day)) {
-        issues.push({ severity: 'error', code: 'invalid-date', row: row.line, column: header, message: `${where(row.line, header)}: ${quoteCell(raw)} is not a date that exists when read ${order === 'dmy' ? 'day-month-year' : 'month-day-year'} like the rest of this column. Write it as yyyy-mm-dd.` });
+        issues.push({
+          severity: 'error',
+          code: 'invalid-date',
+          row: row.line,
+          column: header,
+          message: `${where(row.line, header)}: ${quoteCell(raw)} is not a date that exists when read ${order === 'dmy' ? 'day-month-year' : 'month-day-year'} like the rest of this column. Write it as yyyy-mm-dd.`,
+        });
         continue;
       }
       row[field] = formatIsoDate(cell.year, month, day);
@@ -887,7 +1116,20 @@ function settleDates(
   }
 }
 
-const MONTH_NAMES = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
+const MONTH_NAMES = [
+  'January',
+  'February',
+  'March',
+  'April',
+  'May',
+  'June',
+  'July',
+  'August',
+  'September',
+  'October',
+  'November',
+  'December',
+];
 
 function describeDay(year: number, month: number, day: number): string {
   return `${day} ${MONTH_NAMES[month - 1] ?? '?'} ${year}`;

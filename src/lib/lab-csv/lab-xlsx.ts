@@ -17,8 +17,7 @@ export const MAX_XLSX_UNPACKED_BYTES = 64 * 1024 * 1024;
 const MAX_XLSX_ENTRIES = 500;
 
 export type ReadLabFileResult =
-  | { text: string; format: 'text' | 'xlsx'; sheet: string | null; sheets: string[] }
-  | { error: DecodeLabFileError };
+  { text: string; format: 'text' | 'xlsx'; sheet: string | null; sheets: string[] } | { error: DecodeLabFileError };
 
 export const XLSX_CONTENT_TYPE = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 
@@ -68,13 +67,17 @@ export function checkWorkbookArchive(bytes: Uint8Array): string | null {
     names.add(name);
     if (compressed === 0xffffffff || declared === 0xffffffff) return 'it uses ZIP64 sizes, which no lab workbook needs';
     total += declared;
-    if (total > MAX_XLSX_UNPACKED_BYTES) return `it unpacks to more than ${MAX_XLSX_UNPACKED_BYTES / (1024 * 1024)} MiB`;
-    if (localAt + 30 > bytes.length || view.getUint32(localAt, true) !== ZIP_LOCAL) return 'its ZIP entries are damaged';
+    if (total > MAX_XLSX_UNPACKED_BYTES)
+      return `it unpacks to more than ${MAX_XLSX_UNPACKED_BYTES / (1024 * 1024)} MiB`;
+    if (localAt + 30 > bytes.length || view.getUint32(localAt, true) !== ZIP_LOCAL)
+      return 'its ZIP entries are damaged';
     const dataAt = localAt + 30 + view.getUint16(localAt + 26, true) + view.getUint16(localAt + 28, true);
     if (dataAt + compressed > bytes.length) return 'it is truncated';
     if (method === 8) {
       try {
-        const out = inflateRawSync(bytes.subarray(dataAt, dataAt + compressed), { maxOutputLength: Math.max(1, declared) });
+        const out = inflateRawSync(bytes.subarray(dataAt, dataAt + compressed), {
+          maxOutputLength: Math.max(1, declared),
+        });
         if (out.byteLength !== declared) return `part "${name}" does not unpack to the size its directory states`;
       } catch {
         return `part "${name}" does not unpack to the size its directory states`;
@@ -85,7 +88,9 @@ export function checkWorkbookArchive(bytes: Uint8Array): string | null {
     at += 46 + nameLength + extraLength + commentLength;
   }
   if (!names.has('[Content_Types].xml') || !names.has('xl/workbook.xml')) {
-    return names.has('content.xml') ? 'it is an OpenDocument spreadsheet (.ods), not an .xlsx workbook' : 'it is a ZIP archive, not an .xlsx workbook';
+    return names.has('content.xml')
+      ? 'it is an OpenDocument spreadsheet (.ods), not an .xlsx workbook'
+      : 'it is a ZIP archive, not an .xlsx workbook';
   }
   return null;
 }
@@ -114,8 +119,10 @@ export function formatSheetCell(value: CellValue): string {
     if ('formula' in value || 'sharedFormula' in value) {
       const result = (value as { result?: unknown }).result;
       // No cached result: the formula's text, which the reader reports as a formula it did not run.
-      if (result === undefined || result === null) return `=${(value as { formula?: string }).formula ?? (value as { sharedFormula?: string }).sharedFormula ?? ''}`;
-      if (typeof result === 'object' && result !== null && 'error' in result) return String((result as { error: unknown }).error);
+      if (result === undefined || result === null)
+        return `=${(value as { formula?: string }).formula ?? (value as { sharedFormula?: string }).sharedFormula ?? ''}`;
+      if (typeof result === 'object' && result !== null && 'error' in result)
+        return String((result as { error: unknown }).error);
       return formatSheetCell(result as CellValue);
     }
     if ('text' in value) return formatSheetCell((value as { text: CellValue }).text);
@@ -155,9 +162,16 @@ export function hasRecognisableHeader(rows: readonly (readonly string[])[]): boo
 }
 
 /** Read an .xlsx workbook as tab-separated text of one sheet; see the module doc. */
-export async function readXlsxLabFile(bytes: Uint8Array, options: { sheetNames?: readonly string[] } = {}): Promise<ReadLabFileResult> {
+export async function readXlsxLabFile(
+  bytes: Uint8Array,
+  options: { sheetNames?: readonly string[] } = {},
+): Promise<ReadLabFileResult> {
   const problem = checkWorkbookArchive(bytes);
-  if (problem) return refuse('not-csv-file', `This file starts like a spreadsheet, but ${problem}. Save the lab report again as .xlsx or CSV and upload that.`);
+  if (problem)
+    return refuse(
+      'not-csv-file',
+      `This file starts like a spreadsheet, but ${problem}. Save the lab report again as .xlsx or CSV and upload that.`,
+    );
   // Loaded only when a workbook arrives: the reader is large, and a CSV upload should not wait for it.
   const { default: ExcelRuntime } = await import('exceljs');
   const workbook = new ExcelRuntime.Workbook();
@@ -165,12 +179,18 @@ export async function readXlsxLabFile(bytes: Uint8Array, options: { sheetNames?:
     await workbook.xlsx.load(Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength) as unknown as ArrayBuffer);
   } catch (error) {
     const why = error instanceof Error ? error.message.slice(0, 120) : 'unreadable';
-    return refuse('not-csv-file', `This spreadsheet could not be read (${why}). Save the lab report again as .xlsx or CSV and upload that.`);
+    return refuse(
+      'not-csv-file',
+      `This spreadsheet could not be read (${why}). Save the lab report again as .xlsx or CSV and upload that.`,
+    );
   }
   const sheets = workbook.worksheets;
   const names = sheets.map((s) => s.name);
-  if (sheets.length === 0) return refuse('empty-file', 'The spreadsheet has no sheets, so it holds no header and no readings.');
-  const named = (options.sheetNames ?? []).map((n) => sheets.find((s) => s.name.trim().toLowerCase() === n.trim().toLowerCase())).find((s) => s !== undefined);
+  if (sheets.length === 0)
+    return refuse('empty-file', 'The spreadsheet has no sheets, so it holds no header and no readings.');
+  const named = (options.sheetNames ?? [])
+    .map((n) => sheets.find((s) => s.name.trim().toLowerCase() === n.trim().toLowerCase()))
+    .find((s) => s !== undefined);
   let chosen: { sheet: ExcelJS.Worksheet; rows: string[][] } | null = null;
   if (named) chosen = { sheet: named, rows: readSheetCells(named) };
   if (!chosen) {
@@ -187,7 +207,8 @@ export async function readXlsxLabFile(bytes: Uint8Array, options: { sheetNames?:
     }
     chosen ??= firstWithData;
   }
-  if (!chosen || chosen.rows.length === 0) return refuse('empty-file', 'Every sheet of this spreadsheet is empty: it holds no header and no readings.');
+  if (!chosen || chosen.rows.length === 0)
+    return refuse('empty-file', 'Every sheet of this spreadsheet is empty: it holds no header and no readings.');
   const text = chosen.rows.map((row) => row.map(tsvCell).join('\t')).join('\n');
   return { text: `${text}\n`, format: 'xlsx', sheet: chosen.sheet.name, sheets: names };
 }
@@ -196,7 +217,10 @@ export async function readXlsxLabFile(bytes: Uint8Array, options: { sheetNames?:
  * Turn the bytes of a lab file into text, whatever it is: a CSV, TSV or text export (see decodeLabFile),
  * or an .xlsx workbook (recognised by content, never by name). Same size limit for both.
  */
-export async function readLabFileBytes(bytes: Uint8Array, options: { sheetNames?: readonly string[] } = {}): Promise<ReadLabFileResult> {
+export async function readLabFileBytes(
+  bytes: Uint8Array,
+  options: { sheetNames?: readonly string[] } = {},
+): Promise<ReadLabFileResult> {
   if (bytes.length <= MAX_LAB_FILE_BYTES && looksLikeZip(bytes)) return readXlsxLabFile(bytes, options);
   const decoded = decodeLabFile(bytes);
   if ('error' in decoded) return decoded;

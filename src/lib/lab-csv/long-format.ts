@@ -8,7 +8,17 @@ import { translateHeader } from './header-dictionary';
 import { isUnitCell, type ColumnKind } from './column-recognition';
 import type { LabCsvIssue } from './lab-csv';
 
-const TEST_WORDS = new Set(['test', 'tests', 'parameter', 'analyte', 'element', 'measurand', 'determination', 'property', 'characteristic']);
+const TEST_WORDS = new Set([
+  'test',
+  'tests',
+  'parameter',
+  'analyte',
+  'element',
+  'measurand',
+  'determination',
+  'property',
+  'characteristic',
+]);
 const RESULT_WORDS = new Set(['result', 'results', 'value', 'reading', 'measured', 'measurement']);
 const UNIT_WORDS = new Set(['unit', 'units', 'uom']);
 
@@ -20,7 +30,12 @@ function words(header: string): string[] {
 function isRole(header: string, set: ReadonlySet<string>): boolean {
   const ws = words(header);
   // "Test", "Test name", "Element", "Result value": short headers made of these words and "name"/"of".
-  return ws.length > 0 && ws.length <= 3 && ws.some((w) => set.has(w)) && ws.every((w) => set.has(w) || w === 'name' || w === 'of' || w === 'code');
+  return (
+    ws.length > 0 &&
+    ws.length <= 3 &&
+    ws.some((w) => set.has(w)) &&
+    ws.every((w) => set.has(w) || w === 'name' || w === 'of' || w === 'code')
+  );
 }
 
 export interface LongFormatPlan {
@@ -54,7 +69,15 @@ export function detectLongFormat(headerCells: readonly string[], kinds: readonly
   const reported = kinds.indexOf('reported');
   const used = new Set([bottle, test, result, unit, sampled, reported]);
   const others = headerCells.flatMap((h, i) => (!used.has(i) && h.trim() !== '' && kinds[i] !== 'ignored' ? [i] : []));
-  return { bottle, test, result, unit, sampled: sampled === -1 ? null : sampled, reported: reported === -1 ? null : reported, others };
+  return {
+    bottle,
+    test,
+    result,
+    unit,
+    sampled: sampled === -1 ? null : sampled,
+    reported: reported === -1 ? null : reported,
+    others,
+  };
 }
 
 export interface PivotInput {
@@ -118,7 +141,13 @@ export function pivotLongFormat(input: PivotInput): PivotResult {
     const unit = cell(cells, plan.unit);
     const testHeader = headerCells[plan.test]?.trim() || 'Test';
     if (bottleRaw === '') {
-      issues.push({ severity: 'error', code: 'missing-bottle-code', row: line, column: headerCells[plan.bottle] ?? null, message: `Line ${line}: the bottle code is blank, so this result${testName ? ` (${quote(testName)})` : ''} cannot be matched to a sample.` });
+      issues.push({
+        severity: 'error',
+        code: 'missing-bottle-code',
+        row: line,
+        column: headerCells[plan.bottle] ?? null,
+        message: `Line ${line}: the bottle code is blank, so this result${testName ? ` (${quote(testName)})` : ''} cannot be matched to a sample.`,
+      });
       continue;
     }
     const norm = input.normaliseBottle(bottleRaw);
@@ -130,7 +159,13 @@ export function pivotLongFormat(input: PivotInput): PivotResult {
     group.sampled ||= cell(cells, plan.sampled);
     group.reported ||= cell(cells, plan.reported);
     if (testName === '') {
-      issues.push({ severity: 'error', code: 'missing-test', row: group.line, column: testHeader, message: `Line ${line}, column "${testHeader}": the test name is blank, so the result ${quote(result)} for bottle ${quote(bottleRaw)} cannot be placed. Fill in the test or remove the line.` });
+      issues.push({
+        severity: 'error',
+        code: 'missing-test',
+        row: group.line,
+        column: testHeader,
+        message: `Line ${line}, column "${testHeader}": the test name is blank, so the result ${quote(result)} for bottle ${quote(bottleRaw)} cannot be placed. Fill in the test or remove the line.`,
+      });
       continue;
     }
     const key = testKey(testName);
@@ -140,24 +175,48 @@ export function pivotLongFormat(input: PivotInput): PivotResult {
       tests.set(key, test);
     }
     if (unit !== '' && !isUnitCell(unit)) {
-      issues.push({ severity: 'error', code: 'unknown-unit', row: group.line, column: test.header, message: `Line ${line}: the unit ${quote(unit)} of ${quote(testName)} is not one Sumpwise reads (ppm, mg/kg, %, cSt, mm²/s, SUS, °C, °F, mg KOH/g), so the result is not read. Ask the lab for one of those, or remove the line.` });
+      issues.push({
+        severity: 'error',
+        code: 'unknown-unit',
+        row: group.line,
+        column: test.header,
+        message: `Line ${line}: the unit ${quote(unit)} of ${quote(testName)} is not one Sumpwise reads (ppm, mg/kg, %, cSt, mm²/s, SUS, °C, °F, mg KOH/g), so the result is not read. Ask the lab for one of those, or remove the line.`,
+      });
       group.doubled.add(key);
       continue;
     }
     if (testKey(unit) !== testKey(test.unit)) {
-      issues.push({ severity: 'error', code: 'mixed-units', row: group.line, column: test.header, message: `Line ${line}: ${quote(testName)} is given in ${unit ? quote(unit) : 'no unit'} here but in ${test.unit ? quote(test.unit) : 'no unit'} on line ${test.unitLine}. Each test is read in one unit per file; ask the lab for one unit, or split the file.` });
+      issues.push({
+        severity: 'error',
+        code: 'mixed-units',
+        row: group.line,
+        column: test.header,
+        message: `Line ${line}: ${quote(testName)} is given in ${unit ? quote(unit) : 'no unit'} here but in ${test.unit ? quote(test.unit) : 'no unit'} on line ${test.unitLine}. Each test is read in one unit per file; ask the lab for one unit, or split the file.`,
+      });
       group.doubled.add(key);
       continue;
     }
     const earlier = group.values.get(key);
     if (earlier || group.doubled.has(key)) {
-      issues.push({ severity: 'error', code: 'duplicate-test', row: group.line, column: test.header, message: `Line ${line}: bottle ${quote(bottleRaw)} has ${quote(testName)} again${earlier ? ` (also on line ${earlier.line})` : ''}. One bottle gets one result per test; remove the repeated line or correct its bottle code.` });
+      issues.push({
+        severity: 'error',
+        code: 'duplicate-test',
+        row: group.line,
+        column: test.header,
+        message: `Line ${line}: bottle ${quote(bottleRaw)} has ${quote(testName)} again${earlier ? ` (also on line ${earlier.line})` : ''}. One bottle gets one result per test; remove the repeated line or correct its bottle code.`,
+      });
       group.values.delete(key);
       group.doubled.add(key);
       continue;
     }
     if (result === '') {
-      issues.push({ severity: 'error', code: 'missing-result', row: group.line, column: test.header, message: `Line ${line}: bottle ${quote(bottleRaw)} names the test ${quote(testName)} but its result is blank. Fill it in, write ND or - for "no result", or remove the line.` });
+      issues.push({
+        severity: 'error',
+        code: 'missing-result',
+        row: group.line,
+        column: test.header,
+        message: `Line ${line}: bottle ${quote(bottleRaw)} names the test ${quote(testName)} but its result is blank. Fill it in, write ND or - for "no result", or remove the line.`,
+      });
       group.doubled.add(key);
       continue;
     }
@@ -201,7 +260,13 @@ export function pivotLongFormat(input: PivotInput): PivotResult {
   }
   if (plan.others.length > 0) {
     const names = plan.others.map((i) => `"${headerCells[i]?.trim() ?? ''}"`).join(', ');
-    issues.push({ severity: 'warning', code: 'unknown-column', row: input.headerLine, column: null, message: `Line ${input.headerLine}: this file has one row per test; column${plan.others.length === 1 ? '' : 's'} ${names} ${plan.others.length === 1 ? 'is' : 'are'} not read.` });
+    issues.push({
+      severity: 'warning',
+      code: 'unknown-column',
+      row: input.headerLine,
+      column: null,
+      message: `Line ${input.headerLine}: this file has one row per test; column${plan.others.length === 1 ? '' : 's'} ${names} ${plan.others.length === 1 ? 'is' : 'are'} not read.`,
+    });
   }
   return { grid, units, lines, issues, cellLines, testFirstLine };
 }
@@ -217,7 +282,11 @@ export function rewordPivotIssues(issues: LabCsvIssue[], from: number, pivot: Pi
     const first = pivot.testFirstLine.get(issue.column);
     if (first === undefined) continue;
     if (issue.code === 'unknown-column' && issue.row === headerLine) {
-      issues[i] = { ...issue, row: first, message: `Line ${first}: the test "${issue.column}" was not recognised. Its results are kept as text and not read as readings; a lab profile can map it.` };
+      issues[i] = {
+        ...issue,
+        row: first,
+        message: `Line ${first}: the test "${issue.column}" was not recognised. Its results are kept as text and not read as readings; a lab profile can map it.`,
+      };
       continue;
     }
     if (issue.row === null) continue;

@@ -50,7 +50,9 @@ export function convertSayboltToKinematic(sus: number, tempF: number): number | 
  * number, so the import reads the figure as "SUS at 210 °F" and inverts D2161 at 210 °F — never at the
  * equation's 100 °F reference, which would give a KV100 about 0.7 % off.
  */
-export function describeSayboltConvention(columns: readonly { code?: string | undefined; conversion?: string | undefined }[]): string | null {
+export function describeSayboltConvention(
+  columns: readonly { code?: string | undefined; conversion?: string | undefined }[],
+): string | null {
   const converted = columns.some((c) => c.conversion === 'SUS210→KV100');
   const kept = columns.some((c) => c.code === 'SUS210');
   if (converted) {

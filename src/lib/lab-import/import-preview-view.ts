@@ -117,7 +117,9 @@ export function formatFileFigure(v: number): string {
 /** One reading as the preview lists it: "ND" for a zero below detection, else qualifier and figure. */
 export function formatPreviewReading(reading: { value: number; qualifier?: string | undefined } | undefined): string {
   if (!reading) return '';
-  return reading.qualifier === '<' && reading.value === 0 ? 'ND' : `${reading.qualifier ?? ''}${formatFileFigure(reading.value)}`;
+  return reading.qualifier === '<' && reading.value === 0
+    ? 'ND'
+    : `${reading.qualifier ?? ''}${formatFileFigure(reading.value)}`;
 }
 
 /** The first readings of a row: "Fe 12 · Cu ND · Si 4.5". */
@@ -130,7 +132,8 @@ export function describeRowReadings(readings: LabReadings): string {
 
 /** What a column was read as: "Iron (ppm) (converted …)", "Not recognised", "Ignored: why". */
 export function describeColumnReading(c: LabCsvColumn): string {
-  if (c.kind === 'measurand') return `${describeMappingTarget(findColumnTarget(c))}${c.conversion ? ` (converted ${c.conversion})` : ''}`;
+  if (c.kind === 'measurand')
+    return `${describeMappingTarget(findColumnTarget(c))}${c.conversion ? ` (converted ${c.conversion})` : ''}`;
   if (c.kind === 'unknown') return 'Not recognised';
   if (c.kind === 'ignored') return `Ignored${c.note ? `: ${c.note}` : ''}`;
   return describeMappingTarget(c.kind);
@@ -140,10 +143,18 @@ function sampleCell(r: PreviewRow, imported: boolean): SampleCell {
   if (imported) {
     return r.match.kind === 'unknown'
       ? { kind: 'none', text: 'No sample' }
-      : { kind: 'link', href: `/samples/${r.match.sampleId}`, text: `${r.match.machineName} · drawn ${r.match.drawnOn}` };
+      : {
+          kind: 'link',
+          href: `/samples/${r.match.sampleId}`,
+          text: `${r.match.machineName} · drawn ${r.match.drawnOn}`,
+        };
   }
   if (r.match.kind === 'unknown') return { kind: 'unknown', text: 'Unknown bottle' };
-  return { kind: 'text', text: `${r.match.machineName} · drawn ${r.match.drawnOn}`, existing: r.match.kind === 'has-results' ? r.match.existing : null };
+  return {
+    kind: 'text',
+    text: `${r.match.machineName} · drawn ${r.match.drawnOn}`,
+    existing: r.match.kind === 'has-results' ? r.match.existing : null,
+  };
 }
 
 /** The choices of a row's select: "Choose…" while undecided or in error, then what its match allows, then skip. */
@@ -152,10 +163,21 @@ export function rowChoices(r: PreviewRow, machines: readonly { id: string; name:
   const clean = r.errors.length === 0;
   const choices: Choice[] = [];
   if (r.decision === null || !clean) choices.push({ value: '', label: 'Choose…', selected: r.decision === null });
-  if (clean && r.match.kind === 'matched') choices.push({ value: 'write', label: 'Write to this sample', selected: current === 'write' });
-  if (clean && r.match.kind === 'has-results') choices.push({ value: 'replace', label: 'Replace its results (old ones kept in history)', selected: current === 'replace' });
+  if (clean && r.match.kind === 'matched')
+    choices.push({ value: 'write', label: 'Write to this sample', selected: current === 'write' });
+  if (clean && r.match.kind === 'has-results')
+    choices.push({
+      value: 'replace',
+      label: 'Replace its results (old ones kept in history)',
+      selected: current === 'replace',
+    });
   if (clean && r.match.kind === 'unknown') {
-    for (const m of machines) choices.push({ value: `create:${m.id}`, label: `Create the sample on ${m.name}`, selected: current === `create:${m.id}` });
+    for (const m of machines)
+      choices.push({
+        value: `create:${m.id}`,
+        label: `Create the sample on ${m.name}`,
+        selected: current === `create:${m.id}`,
+      });
   }
   choices.push({ value: 'skip', label: 'Skip this row', selected: current === 'skip' });
   return choices;
@@ -193,12 +215,22 @@ export function buildPreviewView(input: PreviewViewInput): PreviewView {
   const shownLines = new Set(shown.map((r) => r.line));
   const base = `/imports/${encodeURIComponent(input.labFileId)}`;
   const { counts } = preview;
-  const newOil = preview.newOilRows.length > 0 ? `, ${formatCount(preview.newOilRows.length, 'new-oil reference')}` : '';
+  const newOil =
+    preview.newOilRows.length > 0 ? `, ${formatCount(preview.newOilRows.length, 'new-oil reference')}` : '';
   return {
     imported,
     uploadedAt: formatUtcMinute(preview.file.uploadedAt),
     writtenLinks: rows
-      .flatMap((r) => (r.match.kind === 'unknown' ? [] : [{ href: `/samples/${r.match.sampleId}`, text: `Bottle ${r.bottle} · ${r.match.machineName} · ${r.match.drawnOn}` }]))
+      .flatMap((r) =>
+        r.match.kind === 'unknown'
+          ? []
+          : [
+              {
+                href: `/samples/${r.match.sampleId}`,
+                text: `Bottle ${r.bottle} · ${r.match.machineName} · ${r.match.drawnOn}`,
+              },
+            ],
+      )
       .slice(0, WRITTEN_LINKS),
     writtenRows: rows.filter((r) => r.written).length,
     notWrittenRows: rows.filter((r) => !r.written).length,
@@ -232,6 +264,7 @@ export function buildPreviewView(input: PreviewViewInput): PreviewView {
       preview.columns.some((c) => c.kind === 'unknown') ||
       preview.fileIssues.some((i) => i.severity === 'error') ||
       Object.keys(fields).some((k) => k.startsWith('col.') || k === '_' || k === 'profileName'),
-    profileName: input.profileName ?? preview.profile?.name ?? preview.file.fileName.replace(/\.[a-z]+$/i, '').slice(0, 80),
+    profileName:
+      input.profileName ?? preview.profile?.name ?? preview.file.fileName.replace(/\.[a-z]+$/i, '').slice(0, 80),
   };
 }

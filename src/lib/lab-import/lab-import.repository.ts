@@ -40,12 +40,23 @@ export function findLabFileOfCrew(db: Db, crewId: string, id: string) {
 
 /** Locks a crew's lab file row for the rest of the transaction: one confirm of a file at a time. */
 export async function lockLabFile(db: Db, crewId: string, id: string): Promise<void> {
-  await db.selectFrom('lab_files').select('id').where('id', '=', id).where('crew_id', '=', crewId).forUpdate().execute();
+  await db
+    .selectFrom('lab_files')
+    .select('id')
+    .where('id', '=', id)
+    .where('crew_id', '=', crewId)
+    .forUpdate()
+    .execute();
 }
 
 /** The raw bytes of a crew's lab file. */
 export async function findLabFileContent(db: Db, crewId: string, id: string): Promise<Buffer | undefined> {
-  const row = await db.selectFrom('lab_files').select('content').where('crew_id', '=', crewId).where('id', '=', id).executeTakeFirst();
+  const row = await db
+    .selectFrom('lab_files')
+    .select('content')
+    .where('crew_id', '=', crewId)
+    .where('id', '=', id)
+    .executeTakeFirst();
   return row?.content;
 }
 
@@ -54,7 +65,13 @@ export function listLabFilesOfCrew(db: Db, crewId: string, limit = 20) {
   return db
     .selectFrom('lab_files')
     .leftJoin('lab_imports', 'lab_imports.lab_file_id', 'lab_files.id')
-    .select([...FILE_COLUMNS, 'lab_imports.id as import_id', 'lab_imports.confirmed_at', 'lab_imports.samples_written', 'lab_imports.readings_written'])
+    .select([
+      ...FILE_COLUMNS,
+      'lab_imports.id as import_id',
+      'lab_imports.confirmed_at',
+      'lab_imports.samples_written',
+      'lab_imports.readings_written',
+    ])
     .where('lab_files.crew_id', '=', crewId)
     .orderBy('lab_files.uploaded_at', 'desc')
     .limit(limit)
@@ -64,7 +81,14 @@ export function listLabFilesOfCrew(db: Db, crewId: string, limit = 20) {
 /** Store an upload; on a hash the crew already has, insert nothing and return null. */
 export async function insertLabFile(
   db: Db,
-  row: { crewId: string; sha256: string; fileName: string; content: Buffer; uploadedBy: string | null; inboundMailId?: string | null },
+  row: {
+    crewId: string;
+    sha256: string;
+    fileName: string;
+    content: Buffer;
+    uploadedBy: string | null;
+    inboundMailId?: string | null;
+  },
 ): Promise<{ id: string } | null> {
   const inserted = await db
     .insertInto('lab_files')
@@ -96,7 +120,14 @@ export function findProfileBySignature(db: Db, crewId: string, signature: string
 /** Save (or rename and remap) the crew's profile for a header signature. */
 export function upsertProfile(
   db: Db,
-  row: { crewId: string; name: string; signature: string; mapping: Record<string, string>; sheetName?: string | null; createdBy: string },
+  row: {
+    crewId: string;
+    name: string;
+    signature: string;
+    mapping: Record<string, string>;
+    sheetName?: string | null;
+    createdBy: string;
+  },
 ) {
   return db
     .insertInto('lab_profiles')
@@ -109,7 +140,9 @@ export function upsertProfile(
       created_by: row.createdBy,
     })
     .onConflict((oc) =>
-      oc.columns(['crew_id', 'header_signature']).doUpdateSet({ name: row.name, mapping: JSON.stringify(row.mapping), sheet_name: row.sheetName ?? null }),
+      oc
+        .columns(['crew_id', 'header_signature'])
+        .doUpdateSet({ name: row.name, mapping: JSON.stringify(row.mapping), sheet_name: row.sheetName ?? null }),
     )
     .returning(['id', 'name'])
     .executeTakeFirstOrThrow();
@@ -143,7 +176,11 @@ export async function findSamplesByCodes(db: Db, crewId: string, codes: readonly
       'samples.drawn_on',
       'samples.state',
       'machines.name as machine_name',
-      eb.selectFrom('readings').select(sql<number>`count(*)::int`.as('n')).whereRef('readings.sample_id', '=', 'samples.id').as('reading_count'),
+      eb
+        .selectFrom('readings')
+        .select(sql<number>`count(*)::int`.as('n'))
+        .whereRef('readings.sample_id', '=', 'samples.id')
+        .as('reading_count'),
     ])
     .where('samples.crew_id', '=', crewId)
     .where('machines.crew_id', '=', crewId)
@@ -156,7 +193,15 @@ export async function findCodesWrittenBy(db: Db, importId: string): Promise<Set<
   const rows = await db
     .selectFrom('samples')
     .select('bottle_code_norm')
-    .where((eb) => eb.exists(eb.selectFrom('readings').select('readings.sample_id').whereRef('readings.sample_id', '=', 'samples.id').where('readings.lab_import_id', '=', importId)))
+    .where((eb) =>
+      eb.exists(
+        eb
+          .selectFrom('readings')
+          .select('readings.sample_id')
+          .whereRef('readings.sample_id', '=', 'samples.id')
+          .where('readings.lab_import_id', '=', importId),
+      ),
+    )
     .execute();
   return new Set(rows.map((r) => r.bottle_code_norm));
 }
@@ -177,8 +222,16 @@ export async function findLatestOdometer(db: Db, machineId: string): Promise<num
   const row = await db
     .selectFrom('machines')
     .select((eb) => [
-      eb.selectFrom('samples').select(sql<number>`max(odometer)`.as('m')).where('samples.machine_id', '=', machineId).as('sample_odo'),
-      eb.selectFrom('oil_changes').select(sql<number>`max(odometer)`.as('m')).where('oil_changes.machine_id', '=', machineId).as('change_odo'),
+      eb
+        .selectFrom('samples')
+        .select(sql<number>`max(odometer)`.as('m'))
+        .where('samples.machine_id', '=', machineId)
+        .as('sample_odo'),
+      eb
+        .selectFrom('oil_changes')
+        .select(sql<number>`max(odometer)`.as('m'))
+        .where('oil_changes.machine_id', '=', machineId)
+        .as('change_odo'),
     ])
     .where('id', '=', machineId)
     .executeTakeFirst();
@@ -188,7 +241,15 @@ export async function findLatestOdometer(db: Db, machineId: string): Promise<num
 /** Create a sample for a lab row whose bottle was never registered on a drain card. */
 export function insertSampleForRow(
   db: Db,
-  row: { crewId: string; machineId: string; bottleCode: string; bottleCodeNorm: string; drawnOn: string; odometer: number; createdBy: string },
+  row: {
+    crewId: string;
+    machineId: string;
+    bottleCode: string;
+    bottleCodeNorm: string;
+    drawnOn: string;
+    odometer: number;
+    createdBy: string;
+  },
 ) {
   return db
     .insertInto('samples')

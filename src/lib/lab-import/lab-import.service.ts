@@ -9,12 +9,7 @@ import type { SamplePoint } from '../analysis';
 import type { MeasurandCode } from '../analysis/measurands';
 import type { Database } from '../db/database';
 import { readLabFileBytes } from '../lab-csv/lab-xlsx';
-import {
-  MAX_LAB_FILE_BYTES,
-  parseLabCsv,
-  type LabCsvIssue,
-  type LabCsvMappingTarget,
-} from '../lab-csv/lab-csv';
+import { MAX_LAB_FILE_BYTES, parseLabCsv, type LabCsvIssue, type LabCsvMappingTarget } from '../lab-csv/lab-csv';
 import { checkCrewQuota } from '../storage-quota/storage-quota';
 import { sumCrewStorageBytes } from '../storage-quota/storage-quota.repository';
 import { CODE_ALPHABET, explainIssuedCode, hasValidCheckSymbol, ISSUED_DATA_LENGTH } from '../samples/bottle-code';
@@ -39,7 +34,12 @@ import { isUuid } from '../ids';
 import { queueImportAlerts } from '../alerts/alerts.service';
 import { recomputeChangedSamples } from '../findings/findings.service';
 import { recordSampleStates } from '../samples/sample-lifecycle';
-import { findNewOilBottles, findNewOilCodesWrittenBy, splitNewOilRows, writeNewOilResults } from '../new-oil/new-oil.service';
+import {
+  findNewOilBottles,
+  findNewOilCodesWrittenBy,
+  splitNewOilRows,
+  writeNewOilResults,
+} from '../new-oil/new-oil.service';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
@@ -69,23 +69,43 @@ export interface StoredLabFile {
  */
 export async function storeLabFile(
   db: Db,
-  input: { crewId: string; userId: string | null; fileName: string; bytes: Uint8Array; inboundMailId?: string; quotaBytes?: number },
+  input: {
+    crewId: string;
+    userId: string | null;
+    fileName: string;
+    bytes: Uint8Array;
+    inboundMailId?: string;
+    quotaBytes?: number;
+  },
 ): Promise<Result<StoredLabFile>> {
   if (input.bytes.byteLength > MAX_LAB_FILE_BYTES) {
     const mib = (input.bytes.byteLength / (1024 * 1024)).toFixed(1);
-    return refuse(413, 'file_too_large', `"${cleanFileName(input.fileName)}" is ${mib} MiB; lab files up to 5 MiB are accepted. Split the report into smaller files.`);
+    return refuse(
+      413,
+      'file_too_large',
+      `"${cleanFileName(input.fileName)}" is ${mib} MiB; lab files up to 5 MiB are accepted. Split the report into smaller files.`,
+    );
   }
   const decoded = await readLabFileBytes(input.bytes);
   if ('error' in decoded) {
     const status = decoded.error.code === 'empty-file' ? 400 : 415;
-    return refuse(status, decoded.error.code.replace(/-/g, '_'), `"${cleanFileName(input.fileName)}": ${decoded.error.message}`);
+    return refuse(
+      status,
+      decoded.error.code.replace(/-/g, '_'),
+      `"${cleanFileName(input.fileName)}": ${decoded.error.message}`,
+    );
   }
   const lines = countLines(decoded.text);
-  if (lines > MAX_LAB_FILE_LINES) return refuse(413, 'too_many_lines', tooManyLinesMessage(cleanFileName(input.fileName), lines));
+  if (lines > MAX_LAB_FILE_LINES)
+    return refuse(413, 'too_many_lines', tooManyLinesMessage(cleanFileName(input.fileName), lines));
   const sha256 = computeFileHash(input.bytes);
   const existing = await repo.findLabFileByHash(db, input.crewId, sha256);
   if (existing) return answerExisting(existing);
-  const overQuota = checkCrewQuota(await sumCrewStorageBytes(db, input.crewId), input.bytes.byteLength, input.quotaBytes);
+  const overQuota = checkCrewQuota(
+    await sumCrewStorageBytes(db, input.crewId),
+    input.bytes.byteLength,
+    input.quotaBytes,
+  );
   if (overQuota) return refuse(413, 'quota_exceeded', overQuota);
   const inserted = await repo.insertLabFile(db, {
     crewId: input.crewId,
@@ -102,10 +122,20 @@ export async function storeLabFile(
   return answerExisting(winner);
 }
 
-function answerExisting(file: { id: string; file_name: string; import_id: string | null; confirmed_at: Date | null }): Result<StoredLabFile> {
+function answerExisting(file: {
+  id: string;
+  file_name: string;
+  import_id: string | null;
+  confirmed_at: Date | null;
+}): Result<StoredLabFile> {
   if (file.import_id) {
     const on = file.confirmed_at ? ` on ${file.confirmed_at.toISOString().slice(0, 10)}` : '';
-    return refuse(409, 'already_imported', `This file was already imported${on} (as "${file.file_name}"); nothing new was written.`, { labFileId: file.id });
+    return refuse(
+      409,
+      'already_imported',
+      `This file was already imported${on} (as "${file.file_name}"); nothing new was written.`,
+      { labFileId: file.id },
+    );
   }
   return succeed({ labFileId: file.id, status: 'already-uploaded' });
 }
@@ -145,9 +175,17 @@ function looksIssued(norm: string): boolean {
   return norm.length === ISSUED_DATA_LENGTH + 1 && [...norm].every((ch) => CODE_ALPHABET.includes(ch));
 }
 
-function describeDecision(match: RowMatch, decision: RowDecision | null, errors: number, machineIds: ReadonlySet<string>, bottle: string, at: string): string | null {
+function describeDecision(
+  match: RowMatch,
+  decision: RowDecision | null,
+  errors: number,
+  machineIds: ReadonlySet<string>,
+  bottle: string,
+  at: string,
+): string | null {
   if (decision?.action === 'skip') return null;
-  if (errors > 0) return `${at}: fix the ${errors === 1 ? 'error' : `${errors} errors`} in this row in the lab file and upload it again, or skip the row.`;
+  if (errors > 0)
+    return `${at}: fix the ${errors === 1 ? 'error' : `${errors} errors`} in this row in the lab file and upload it again, or skip the row.`;
   switch (match.kind) {
     case 'matched':
       if (decision === null || decision.action === 'write' || decision.action === 'replace') return null;
@@ -157,7 +195,9 @@ function describeDecision(match: RowMatch, decision: RowDecision | null, errors:
       return `${at}: the sample with bottle "${bottle}" (${match.machineName}, ${match.drawnOn}) already has ${match.existing} results. Choose "replace" to write these and keep the old values in its history, or skip the row.`;
     case 'unknown':
       if (decision?.action === 'create') {
-        return machineIds.has(decision.machineId) ? null : `${at}: the machine chosen for bottle "${bottle}" is not one of this crew's machines; pick another or skip the row.`;
+        return machineIds.has(decision.machineId)
+          ? null
+          : `${at}: the machine chosen for bottle "${bottle}" is not one of this crew's machines; pick another or skip the row.`;
       }
       return `${at}: no sample of this crew has bottle code "${bottle}". Create the sample on one of your machines, or skip the row.`;
   }
@@ -175,7 +215,9 @@ export async function previewLabImport(
   if (!content) return refuse(404, 'not_found', 'No such lab file in this crew.');
   // A workbook is read on the sheet a profile of the crew names, else on its first sheet with a lab header.
   const sheetNames = await repo.listProfileSheetNames(db, input.crewId);
-  const decoded = await readLabFileBytes(new Uint8Array(content.buffer, content.byteOffset, content.byteLength), { sheetNames });
+  const decoded = await readLabFileBytes(new Uint8Array(content.buffer, content.byteOffset, content.byteLength), {
+    sheetNames,
+  });
   if ('error' in decoded) return refuse(415, decoded.error.code.replace(/-/g, '_'), decoded.error.message);
   // Files stored before the cap existed are held to it too.
   const lines = countLines(decoded.text);
@@ -184,7 +226,13 @@ export async function previewLabImport(
   const signature = computeHeaderSignature(readHeaders(decoded.text));
   const profileRow = await repo.findProfileBySignature(db, input.crewId, signature);
   const profile: LabProfile | null = profileRow
-    ? { id: profileRow.id, name: profileRow.name, headerSignature: profileRow.header_signature, mapping: profileRow.mapping as Record<string, LabCsvMappingTarget>, sheetName: profileRow.sheet_name }
+    ? {
+        id: profileRow.id,
+        name: profileRow.name,
+        headerSignature: profileRow.header_signature,
+        mapping: profileRow.mapping as Record<string, LabCsvMappingTarget>,
+        sheetName: profileRow.sheet_name,
+      }
     : null;
   const parsed = parseLabCsv(decoded.text, profile ? { mapping: profile.mapping } : {});
   const bottleHeader = parsed.columns.find((c) => c.kind === 'bottle')?.header ?? 'Bottle';
@@ -195,7 +243,11 @@ export async function previewLabImport(
     repo.findMachinesForImport(db, input.crewId),
   ]);
   const byCode = new Map(samples.map((s) => [s.bottle_code_norm, s]));
-  const newOilBottles = await findNewOilBottles(db, input.crewId, norms.filter((n) => !byCode.has(n)));
+  const newOilBottles = await findNewOilBottles(
+    db,
+    input.crewId,
+    norms.filter((n) => !byCode.has(n)),
+  );
   // An imported file is shown as it was written: which rows went in, which were skipped.
   const writtenCodes = fileRow.import_id ? await repo.findCodesWrittenBy(db, fileRow.import_id) : null;
   const machineIds = new Set(machines.map((m) => m.id));
@@ -204,7 +256,12 @@ export async function previewLabImport(
   const rowLines = new Set(parsed.rows.map((r) => r.line));
   const fileIssues: LabCsvIssue[] = [];
   for (const issue of parsed.errors) {
-    if (issue.row !== null && rowLines.has(issue.row) && issue.code !== 'unknown-column' && issue.code !== 'lines-skipped') {
+    if (
+      issue.row !== null &&
+      rowLines.has(issue.row) &&
+      issue.code !== 'unknown-column' &&
+      issue.code !== 'lines-skipped'
+    ) {
       const list = rowIssues.get(issue.row) ?? [];
       list.push(issue);
       rowIssues.set(issue.row, list);
@@ -222,18 +279,33 @@ export async function previewLabImport(
     if (sample && sample.issued_code && !hasValidCheckSymbol(norm)) {
       match = { kind: 'unknown', codeProblem: explainIssuedCode(norm) };
     } else if (sample) {
-      const base = { sampleId: sample.id, machineId: sample.machine_id, machineName: sample.machine_name, drawnOn: sample.drawn_on };
-      match = (sample.reading_count ?? 0) > 0 ? { kind: 'has-results', ...base, existing: sample.reading_count ?? 0 } : { kind: 'matched', ...base };
+      const base = {
+        sampleId: sample.id,
+        machineId: sample.machine_id,
+        machineName: sample.machine_name,
+        drawnOn: sample.drawn_on,
+      };
+      match =
+        (sample.reading_count ?? 0) > 0
+          ? { kind: 'has-results', ...base, existing: sample.reading_count ?? 0 }
+          : { kind: 'matched', ...base };
     } else {
       match = { kind: 'unknown', codeProblem: looksIssued(norm) ? explainIssuedCode(norm) : null };
     }
     const warnings = issues.filter((x) => x.severity === 'warning');
     if (match.kind === 'unknown' && match.codeProblem) {
-      warnings.push({ severity: 'warning', code: 'missing-bottle-code', row: r.line, column: bottleHeader, message: `${at}: "${r.bottle.raw}" looks like a Sumpwise bottle code, but ${match.codeProblem.charAt(0).toLowerCase()}${match.codeProblem.slice(1)}` });
+      warnings.push({
+        severity: 'warning',
+        code: 'missing-bottle-code',
+        row: r.line,
+        column: bottleHeader,
+        message: `${at}: "${r.bottle.raw}" looks like a Sumpwise bottle code, but ${match.codeProblem.charAt(0).toLowerCase()}${match.codeProblem.slice(1)}`,
+      });
     }
     const errors = issues.filter((x) => x.severity === 'error');
     const chosen = input.decisions?.[String(r.line)] ?? null;
-    const decision: RowDecision | null = chosen ?? (match.kind === 'matched' && errors.length === 0 ? { action: 'write' } : null);
+    const decision: RowDecision | null =
+      chosen ?? (match.kind === 'matched' && errors.length === 0 ? { action: 'write' } : null);
     return {
       line: r.line,
       bottle: r.bottle.raw,
@@ -250,7 +322,11 @@ export async function previewLabImport(
     };
   });
 
-  const { rows, newOilRows } = splitNewOilRows(allRows, newOilBottles, fileRow.import_id ? await findNewOilCodesWrittenBy(db, fileRow.import_id) : null);
+  const { rows, newOilRows } = splitNewOilRows(
+    allRows,
+    newOilBottles,
+    fileRow.import_id ? await findNewOilCodesWrittenBy(db, fileRow.import_id) : null,
+  );
   const blockingFileIssues = fileIssues.filter((x) => x.severity === 'error');
   let ready = 0;
   let skipped = 0;
@@ -277,7 +353,8 @@ export async function previewLabImport(
       newOilRows,
       machines,
       counts: { rows: rows.length + newOilRows.length, ready, skipped, blocked, readings },
-      canConfirm: fileRow.import_id === null && blockingFileIssues.length === 0 && blocked === 0 && ready + newOilRows.length > 0,
+      canConfirm:
+        fileRow.import_id === null && blockingFileIssues.length === 0 && blocked === 0 && ready + newOilRows.length > 0,
     },
   };
 }
@@ -285,7 +362,13 @@ export async function previewLabImport(
 /** Save the crew's lab profile for a file's header (name + one target per header) and return it. */
 export async function saveLabProfile(
   db: Db,
-  input: { crewId: string; userId: string; labFileId: string; name: string; targets: Record<number, LabCsvMappingTarget> },
+  input: {
+    crewId: string;
+    userId: string;
+    labFileId: string;
+    name: string;
+    targets: Record<number, LabCsvMappingTarget>;
+  },
 ): Promise<Result<{ profileId: string; name: string }>> {
   const preview = await previewLabImport(db, { crewId: input.crewId, labFileId: input.labFileId });
   if (!preview.ok) return preview;
@@ -297,10 +380,13 @@ export async function saveLabProfile(
     mapping[column.header] = target;
     if (target === 'ignore') return;
     const other = seen.get(target);
-    if (other !== undefined) fields[`col.${index}`] = `Column "${column.header}" and column "${other}" are both mapped to ${target}; map one of them to "ignore".`;
+    if (other !== undefined)
+      fields[`col.${index}`] =
+        `Column "${column.header}" and column "${other}" are both mapped to ${target}; map one of them to "ignore".`;
     else seen.set(target, column.header);
   });
-  if (!Object.values(mapping).includes('bottle')) fields._ = 'Map one column to "Bottle code", or no row can be matched to a sample.';
+  if (!Object.values(mapping).includes('bottle'))
+    fields._ = 'Map one column to "Bottle code", or no row can be matched to a sample.';
   if (Object.keys(fields).length > 0) return refuse(400, 'invalid_mapping', 'The lab profile needs attention.', fields);
   const saved = await repo.upsertProfile(db, {
     crewId: input.crewId,
@@ -336,7 +422,8 @@ export async function confirmLabImport(
       const previewed = await previewLabImport(trx, input);
       if (!previewed.ok) return previewed;
       const preview = previewed.value;
-      if (preview.file.importId) return refuse(409, 'already_imported', 'This file was already imported; nothing new was written.');
+      if (preview.file.importId)
+        return refuse(409, 'already_imported', 'This file was already imported; nothing new was written.');
       if (!preview.canConfirm) return refuseUnready(preview);
 
       const writes = preview.rows.filter((r) => r.decision !== null && r.decision.action !== 'skip');
@@ -374,7 +461,10 @@ export async function confirmLabImport(
         created += 1;
       }
 
-      const replacedIds = writes.filter((r) => r.decision?.action === 'replace').map((r) => sampleOf.get(r.line)?.sampleId).filter((id): id is string => id !== undefined);
+      const replacedIds = writes
+        .filter((r) => r.decision?.action === 'replace')
+        .map((r) => sampleOf.get(r.line)?.sampleId)
+        .filter((id): id is string => id !== undefined);
       await repo.moveReadingsToHistory(trx, replacedIds, imported.id);
 
       // Column arrays straight from the rows: no object per reading, for files of many thousand rows.
@@ -395,11 +485,23 @@ export async function confirmLabImport(
       }
       await repo.insertReadings(trx, columns, imported.id);
       // Before any findings: a new-oil reference in the same file is what this file's samples are judged against.
-      const newOilReferencesWritten = await writeNewOilResults(trx, input.crewId, preview.newOilRows, imported.id, new Date().toISOString().slice(0, 10));
+      const newOilReferencesWritten = await writeNewOilResults(
+        trx,
+        input.crewId,
+        preview.newOilRows,
+        imported.id,
+        new Date().toISOString().slice(0, 10),
+      );
       await hooks.afterReadings?.(trx);
 
       const sampleIds = [...new Set([...sampleOf.values()].map((s) => s.sampleId))];
-      await recordSampleStates(trx, sampleIds, 'results_in', input.userId, `Lab results imported from "${preview.file.fileName}".`);
+      await recordSampleStates(
+        trx,
+        sampleIds,
+        'results_in',
+        input.userId,
+        `Lab results imported from "${preview.file.fileName}".`,
+      );
 
       // Findings of every changed sample's machine, then of the young same-engine peers (one shared path with reviews).
       const findingsWritten = await recomputeChangedSamples(trx, sampleOf.values(), known);
@@ -430,7 +532,8 @@ export async function confirmLabImport(
 
 function refuseUnready(preview: ImportPreview): Refusal {
   const fields: Record<string, string> = {};
-  for (const issue of preview.fileIssues) if (issue.severity === 'error') fields[issue.row === null ? 'file' : `line.${issue.row}`] ??= issue.message;
+  for (const issue of preview.fileIssues)
+    if (issue.severity === 'error') fields[issue.row === null ? 'file' : `line.${issue.row}`] ??= issue.message;
   for (const row of preview.rows) {
     if (row.needs === null) continue;
     const firstError = row.errors[0];
@@ -439,5 +542,10 @@ function refuseUnready(preview: ImportPreview): Refusal {
   for (const row of preview.newOilRows) if (row.errors[0]) fields[`row.${row.line}`] = row.errors[0].message;
   const n = Object.keys(fields).length;
   if (n === 0) return refuse(422, 'nothing_to_import', 'Every row is skipped, so there is nothing to write.');
-  return refuse(422, 'rows_need_attention', `Nothing was written: ${n} ${n === 1 ? 'problem needs' : 'problems need'} attention first.`, fields);
+  return refuse(
+    422,
+    'rows_need_attention',
+    `Nothing was written: ${n} ${n === 1 ? 'problem needs' : 'problems need'} attention first.`,
+    fields,
+  );
 }

@@ -7,7 +7,13 @@ import { MEASURAND_CODES, type MeasurandCode } from '../analysis/measurands';
 import type { LabCsvColumn, LabCsvIssue, LabCsvMappingTarget, LabReadings } from '../lab-csv/lab-csv';
 
 /** What a column can be mapped to in a lab profile. */
-export const MAPPING_TARGETS: readonly LabCsvMappingTarget[] = ['bottle', 'sampled', 'reported', 'ignore', ...MEASURAND_CODES];
+export const MAPPING_TARGETS: readonly LabCsvMappingTarget[] = [
+  'bottle',
+  'sampled',
+  'reported',
+  'ignore',
+  ...MEASURAND_CODES,
+];
 
 export const mappingTargetSchema = z.enum(MAPPING_TARGETS as [LabCsvMappingTarget, ...LabCsvMappingTarget[]]);
 
@@ -41,10 +47,7 @@ export interface LabFile {
  * create the sample on a machine (unknown bottle), or leave the row out.
  */
 export type RowDecision =
-  | { action: 'write' }
-  | { action: 'replace' }
-  | { action: 'skip' }
-  | { action: 'create'; machineId: string };
+  { action: 'write' } | { action: 'replace' } | { action: 'skip' } | { action: 'create'; machineId: string };
 
 /** How a row of the file stands against the crew's samples. */
 export type RowMatch =
@@ -167,13 +170,39 @@ export function describeMappingTarget(target: LabCsvMappingTarget): string {
 }
 
 const MEASURAND_LABELS: Partial<Record<MeasurandCode, string>> = {
-  Fe: 'Fe · iron', Al: 'Al · aluminium', Cr: 'Cr · chromium', Cu: 'Cu · copper', Pb: 'Pb · lead', Sn: 'Sn · tin',
-  Ni: 'Ni · nickel', Ag: 'Ag · silver', Ti: 'Ti · titanium', V: 'V · vanadium', Mn: 'Mn · manganese',
-  Si: 'Si · silicon', Na: 'Na · sodium', K: 'K · potassium', B: 'B · boron', Mo: 'Mo · molybdenum', Zn: 'Zn · zinc',
-  P: 'P · phosphorus', Ca: 'Ca · calcium', Mg: 'Mg · magnesium', Ba: 'Ba · barium', S: 'S · sulfur',
-  KV40: 'Viscosity 40 °C (mm²/s)', KV100: 'Viscosity 100 °C (mm²/s)', VI: 'Viscosity index',
-  SUS210: 'Saybolt seconds 210 °F', FLASH: 'Flash point °C', FUEL: 'Fuel dilution %', WATER: 'Water %',
-  GLYCOL: 'Glycol (coolant)', INSOL: 'Insolubles %', TBN: 'TBN (mg KOH/g)', TAN: 'TAN (mg KOH/g)',
+  Fe: 'Fe · iron',
+  Al: 'Al · aluminium',
+  Cr: 'Cr · chromium',
+  Cu: 'Cu · copper',
+  Pb: 'Pb · lead',
+  Sn: 'Sn · tin',
+  Ni: 'Ni · nickel',
+  Ag: 'Ag · silver',
+  Ti: 'Ti · titanium',
+  V: 'V · vanadium',
+  Mn: 'Mn · manganese',
+  Si: 'Si · silicon',
+  Na: 'Na · sodium',
+  K: 'K · potassium',
+  B: 'B · boron',
+  Mo: 'Mo · molybdenum',
+  Zn: 'Zn · zinc',
+  P: 'P · phosphorus',
+  Ca: 'Ca · calcium',
+  Mg: 'Mg · magnesium',
+  Ba: 'Ba · barium',
+  S: 'S · sulfur',
+  KV40: 'Viscosity 40 °C (mm²/s)',
+  KV100: 'Viscosity 100 °C (mm²/s)',
+  VI: 'Viscosity index',
+  SUS210: 'Saybolt seconds 210 °F',
+  FLASH: 'Flash point °C',
+  FUEL: 'Fuel dilution %',
+  WATER: 'Water %',
+  GLYCOL: 'Glycol (coolant)',
+  INSOL: 'Insolubles %',
+  TBN: 'TBN (mg KOH/g)',
+  TAN: 'TAN (mg KOH/g)',
 };
 
 /** The header signature a lab profile is keyed by: each header normalised (NFKC, trimmed, lower case), joined. */
@@ -221,7 +250,11 @@ export function deservesLook(r: PreviewRow): boolean {
  * worth a look, then ready rows (left out by the 'attention' filter), `limit` in all. Once the listed rows are
  * decided, the next blocking ones take their place.
  */
-export function selectPreviewRows(rows: readonly PreviewRow[], filter: PreviewRowFilter, limit = PREVIEW_ROW_LIMIT): {
+export function selectPreviewRows(
+  rows: readonly PreviewRow[],
+  filter: PreviewRowFilter,
+  limit = PREVIEW_ROW_LIMIT,
+): {
   shown: PreviewRow[];
   /** Rows that need attention (blocking or worth a look). */
   attention: number;

@@ -28,15 +28,28 @@ export interface LabMailJobOptions {
 export async function registerLabMailJobs(boss: PgBoss, options: LabMailJobOptions): Promise<JobRegistration> {
   const log = options.log ?? ((line: string) => console.log(line));
   // `short`: at most one run waits; a run processes every waiting message, so a burst needs one.
-  await boss.createQueue(LAB_MAIL_QUEUE, { name: LAB_MAIL_QUEUE, policy: 'short', retryLimit: 3, retryDelay: 10, retryBackoff: true, expireInSeconds: 15 * 60 });
+  await boss.createQueue(LAB_MAIL_QUEUE, {
+    name: LAB_MAIL_QUEUE,
+    policy: 'short',
+    retryLimit: 3,
+    retryDelay: 10,
+    retryBackoff: true,
+    expireInSeconds: 15 * 60,
+  });
   return registerWakeableJob(boss, {
     name: LAB_MAIL_QUEUE,
-    ...(options.listenConnectionString ? { listen: { connectionString: options.listenConnectionString, channel: INBOUND_MAIL_CHANNEL } } : {}),
+    ...(options.listenConnectionString
+      ? { listen: { connectionString: options.listenConnectionString, channel: INBOUND_MAIL_CHANNEL } }
+      : {}),
     tickSeconds: options.tickSeconds ?? 15,
     pollingIntervalSeconds: options.pollingIntervalSeconds ?? 2,
     log,
     async run() {
-      const report = await processInboundMails(options.db, { ...(options.env ? { env: options.env } : {}), ...(options.hooks ? { hooks: options.hooks } : {}), log });
+      const report = await processInboundMails(options.db, {
+        ...(options.env ? { env: options.env } : {}),
+        ...(options.hooks ? { hooks: options.hooks } : {}),
+        log,
+      });
       // A full run (50 messages) means more may be waiting.
       return { result: report, moreWaiting: report.processed + report.setAside >= 50 };
     },

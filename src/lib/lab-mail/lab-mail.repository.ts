@@ -13,7 +13,11 @@ export function findImportAddress(db: Db, crewId: string) {
 
 /** Insert the crew's first token; an existing one is kept (two first views at once agree). */
 export async function insertImportAddress(db: Db, crewId: string, token: string): Promise<void> {
-  await db.insertInto('import_addresses').values({ crew_id: crewId, token }).onConflict((oc) => oc.column('crew_id').doNothing()).execute();
+  await db
+    .insertInto('import_addresses')
+    .values({ crew_id: crewId, token })
+    .onConflict((oc) => oc.column('crew_id').doNothing())
+    .execute();
 }
 
 export async function replaceImportToken(db: Db, crewId: string, token: string, userId: string): Promise<void> {
@@ -34,7 +38,12 @@ export function findCrewByToken(db: Db, token: string) {
 }
 
 export async function listSenders(db: Db, crewId: string): Promise<string[]> {
-  const rows = await db.selectFrom('import_address_senders').select('address').where('crew_id', '=', crewId).orderBy('address').execute();
+  const rows = await db
+    .selectFrom('import_address_senders')
+    .select('address')
+    .where('crew_id', '=', crewId)
+    .orderBy('address')
+    .execute();
   return rows.map((r) => r.address);
 }
 
@@ -49,7 +58,11 @@ export async function insertSender(db: Db, crewId: string, address: string, user
 }
 
 export async function deleteSender(db: Db, crewId: string, address: string): Promise<boolean> {
-  const result = await db.deleteFrom('import_address_senders').where('crew_id', '=', crewId).where('address', '=', address).executeTakeFirst();
+  const result = await db
+    .deleteFrom('import_address_senders')
+    .where('crew_id', '=', crewId)
+    .where('address', '=', address)
+    .executeTakeFirst();
   return Number(result.numDeletedRows) > 0;
 }
 
@@ -57,8 +70,15 @@ export async function deleteSender(db: Db, crewId: string, address: string): Pro
 export async function insertInboundMail(
   db: Db,
   row: {
-    via: 'smtp' | 'webhook'; envelopeFrom: string | null; recipient: string; crewId: string | null; raw: Buffer | null;
-    rawSha256: string | null; byteSize: number; status: InboundMailStatus; reason: string | null;
+    via: 'smtp' | 'webhook';
+    envelopeFrom: string | null;
+    recipient: string;
+    crewId: string | null;
+    raw: Buffer | null;
+    rawSha256: string | null;
+    byteSize: number;
+    status: InboundMailStatus;
+    reason: string | null;
   },
 ): Promise<{ id: string } | null> {
   const inserted = await db
@@ -100,7 +120,13 @@ export function lockNextReceivedMail(trx: Transaction<Database>) {
 export async function finishInboundMail(
   db: Db,
   id: string,
-  row: { status: InboundMailStatus; reason: string | null; fromAddress: string | null; subject: string | null; labFileIds: string[] },
+  row: {
+    status: InboundMailStatus;
+    reason: string | null;
+    fromAddress: string | null;
+    subject: string | null;
+    labFileIds: string[];
+  },
 ): Promise<void> {
   await db
     .updateTable('inbound_mails')
@@ -120,7 +146,17 @@ export async function finishInboundMail(
 export function listInboundMailsOfCrew(db: Db, crewId: string, limit = 20) {
   return db
     .selectFrom('inbound_mails')
-    .select(['id', 'received_at', 'status', 'reason', 'from_address', 'envelope_from', 'subject', 'lab_file_ids', 'byte_size'])
+    .select([
+      'id',
+      'received_at',
+      'status',
+      'reason',
+      'from_address',
+      'envelope_from',
+      'subject',
+      'lab_file_ids',
+      'byte_size',
+    ])
     .where('crew_id', '=', crewId)
     .orderBy('received_at', 'desc')
     .limit(limit)

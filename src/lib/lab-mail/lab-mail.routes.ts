@@ -28,9 +28,18 @@ function back(query: string): Response {
 export async function handleImportAddressPost(db: Kysely<Database>, ctx: AddressRouteContext): Promise<Response> {
   const html = wantsPage(ctx.request);
   const { user, crew } = ctx.locals;
-  if (!user || !crew) return html ? new Response(null, { status: 303, headers: { location: '/sign-in?next=%2Fimports' } }) : jsonError(401, 'unauthorised', 'Sign in to manage the import address.');
+  if (!user || !crew)
+    return html
+      ? new Response(null, { status: 303, headers: { location: '/sign-in?next=%2Fimports' } })
+      : jsonError(401, 'unauthorised', 'Sign in to manage the import address.');
   if (!canManageImportAddress(crew)) {
-    return jsonError(403, 'forbidden', canImportLabReport(crew) ? "Only the crew's lead changes the import address and its lab list." : "Only the crew's lead changes the import address.");
+    return jsonError(
+      403,
+      'forbidden',
+      canImportLabReport(crew)
+        ? "Only the crew's lead changes the import address and its lab list."
+        : "Only the crew's lead changes the import address.",
+    );
   }
   const form = await readForm(ctx.request, 4 * 1024);
   if (!form.ok) return form.response;
@@ -38,15 +47,30 @@ export async function handleImportAddressPost(db: Kysely<Database>, ctx: Address
   if (!parsed.success) {
     const fields = fieldErrorsFrom(parsed.error);
     const message = fields.sender ?? 'Choose an action: replace the address, or add or remove a lab address.';
-    return html ? back(`address_error=${encodeURIComponent(message)}`) : jsonError(400, 'invalid_input', message, fields);
+    return html
+      ? back(`address_error=${encodeURIComponent(message)}`)
+      : jsonError(400, 'invalid_input', message, fields);
   }
   const input = parsed.data;
   const result =
     input.action === 'rotate'
-      ? await rotateImportAddress(db, { crewId: crew.crewId, userId: user.id, ip: ctx.ip, domain: ctx.config.INBOUND_MAIL_DOMAIN })
-      : await changeSender(db, { crewId: crew.crewId, userId: user.id, ip: ctx.ip, sender: input.sender, add: input.action === 'add-sender' });
+      ? await rotateImportAddress(db, {
+          crewId: crew.crewId,
+          userId: user.id,
+          ip: ctx.ip,
+          domain: ctx.config.INBOUND_MAIL_DOMAIN,
+        })
+      : await changeSender(db, {
+          crewId: crew.crewId,
+          userId: user.id,
+          ip: ctx.ip,
+          sender: input.sender,
+          add: input.action === 'add-sender',
+        });
   if (!result.ok) return html ? back(`address_error=${encodeURIComponent(result.message)}`) : refusalJson(result);
-  return html ? back(`address_done=${encodeURIComponent(result.value.message)}`) : jsonOk({ message: result.value.message });
+  return html
+    ? back(`address_done=${encodeURIComponent(result.value.message)}`)
+    : jsonOk({ message: result.value.message });
 }
 
 /**
@@ -63,21 +87,46 @@ export async function handleInboundWebhook(
   const secret = config.INBOUND_MAIL_SECRET;
   if (!secret) return jsonError(404, 'not_found', 'No such endpoint.');
   const type = (request.headers.get('content-type') ?? '').split(';')[0]?.trim().toLowerCase();
-  if (type !== 'message/rfc822') return jsonError(415, 'unsupported_media_type', 'Send the raw message as message/rfc822.');
+  if (type !== 'message/rfc822')
+    return jsonError(415, 'unsupported_media_type', 'Send the raw message as message/rfc822.');
   const body = await readBodyBytes(request, MAX_INBOUND_MAIL_BYTES, MAX_INBOUND_MAIL_BYTES + 1024 * 1024);
-  if (!body.ok) return jsonError(413, 'message_too_large', `The message is larger than ${MAX_INBOUND_MAIL_BYTES / (1024 * 1024)} MiB and was refused.`);
+  if (!body.ok)
+    return jsonError(
+      413,
+      'message_too_large',
+      `The message is larger than ${MAX_INBOUND_MAIL_BYTES / (1024 * 1024)} MiB and was refused.`,
+    );
   const h = (name: string) => request.headers.get(name);
-  const problem = checkInboundWebhook(secret, { timestamp: h(WEBHOOK_HEADERS.timestamp), recipient: h(WEBHOOK_HEADERS.recipient), signature: h(WEBHOOK_HEADERS.signature) }, body.bytes, nowSeconds);
+  const problem = checkInboundWebhook(
+    secret,
+    {
+      timestamp: h(WEBHOOK_HEADERS.timestamp),
+      recipient: h(WEBHOOK_HEADERS.recipient),
+      signature: h(WEBHOOK_HEADERS.signature),
+    },
+    body.bytes,
+    nowSeconds,
+  );
   if (problem) return jsonError(401, 'unauthorised', `The request is not signed: ${problem}.`);
   const recipient = (h(WEBHOOK_HEADERS.recipient) ?? '').slice(0, 320);
   const envelopeFrom = h(WEBHOOK_HEADERS.envelopeFrom)?.slice(0, 320) ?? null;
-  const outcome = await receiveInboundMail(db, { via: 'webhook', envelopeFrom, recipient, raw: Buffer.from(body.bytes), domain: config.INBOUND_MAIL_DOMAIN });
+  const outcome = await receiveInboundMail(db, {
+    via: 'webhook',
+    envelopeFrom,
+    recipient,
+    raw: Buffer.from(body.bytes),
+    domain: config.INBOUND_MAIL_DOMAIN,
+  });
   switch (outcome.status) {
     case 'received':
       return jsonOk({ status: 'received', id: outcome.id }, 202);
     case 'duplicate':
       return jsonOk({ status: 'duplicate' }, 200);
     case 'refused':
-      return jsonError(outcome.smtpCode === 552 ? 413 : 404, outcome.smtpCode === 552 ? 'message_too_large' : 'unknown_address', outcome.reason);
+      return jsonError(
+        outcome.smtpCode === 552 ? 413 : 404,
+        outcome.smtpCode === 552 ? 'message_too_large' : 'unknown_address',
+        outcome.reason,
+      );
   }
 }

@@ -28,8 +28,15 @@ import { refuse, succeed, type Result } from '../http/result';
 import { storeLabFile } from '../lab-import/lab-import.service';
 import { composeLabReportArrived } from './lab-mail-notice';
 import {
-  findMimeProblem, formatImportAddress, generateImportToken, INBOUND_REASONS, isLabAttachment, isSenderAllowed,
-  MAX_INBOUND_MAIL_BYTES, nameAttachment, parseImportAddress,
+  findMimeProblem,
+  formatImportAddress,
+  generateImportToken,
+  INBOUND_REASONS,
+  isLabAttachment,
+  isSenderAllowed,
+  MAX_INBOUND_MAIL_BYTES,
+  nameAttachment,
+  parseImportAddress,
 } from './lab-mail';
 import * as repo from './lab-mail.repository';
 
@@ -49,19 +56,33 @@ export async function getImportAddress(db: Db, crewId: string, domain: string): 
     row = await repo.findImportAddress(db, crewId);
   }
   if (!row) throw new Error('import address could not be created');
-  return { address: formatImportAddress(row.token, domain), rotatedAt: row.rotated_at, senders: await repo.listSenders(db, crewId) };
+  return {
+    address: formatImportAddress(row.token, domain),
+    rotatedAt: row.rotated_at,
+    senders: await repo.listSenders(db, crewId),
+  };
 }
 
 /** A change to the import address answers with a sentence for the lead. */
 export type ImportAddressChange = Result<{ message: string }>;
 
 /** Replace the crew's token (the old address stops working at once), in the audit log. */
-export async function rotateImportAddress(db: Kysely<Database>, input: { crewId: string; userId: string; ip: string | null; domain: string }): Promise<ImportAddressChange> {
+export async function rotateImportAddress(
+  db: Kysely<Database>,
+  input: { crewId: string; userId: string; ip: string | null; domain: string },
+): Promise<ImportAddressChange> {
   return db.transaction().execute(async (trx) => {
     await getImportAddress(trx, input.crewId, input.domain);
     await repo.replaceImportToken(trx, input.crewId, generateImportToken(), input.userId);
-    await recordAuditEvent(trx, { kind: 'import_address_rotated', crewId: input.crewId, actorUserId: input.userId, ip: input.ip });
-    return succeed({ message: 'The import address was replaced. Give the new one to your labs; mail to the old one is now refused.' });
+    await recordAuditEvent(trx, {
+      kind: 'import_address_rotated',
+      crewId: input.crewId,
+      actorUserId: input.userId,
+      ip: input.ip,
+    });
+    return succeed({
+      message: 'The import address was replaced. Give the new one to your labs; mail to the old one is now refused.',
+    });
   });
 }
 
@@ -71,14 +92,24 @@ export async function changeSender(
   input: { crewId: string; userId: string; ip: string | null; sender: string; add: boolean },
 ): Promise<ImportAddressChange> {
   return db.transaction().execute(async (trx) => {
-    const changed = input.add ? await repo.insertSender(trx, input.crewId, input.sender, input.userId) : await repo.deleteSender(trx, input.crewId, input.sender);
+    const changed = input.add
+      ? await repo.insertSender(trx, input.crewId, input.sender, input.userId)
+      : await repo.deleteSender(trx, input.crewId, input.sender);
     if (!changed) {
       return input.add
         ? refuse(409, 'invalid_input', `${input.sender} is already on the list.`, { sender: 'already on the list' })
         : refuse(400, 'invalid_input', `${input.sender} is not on the list.`, { sender: 'not on the list' });
     }
-    await recordAuditEvent(trx, { kind: input.add ? 'import_sender_added' : 'import_sender_removed', crewId: input.crewId, actorUserId: input.userId, ip: input.ip, detail: { sender: input.sender } });
-    return succeed({ message: input.add ? `Mail from ${input.sender} is now imported.` : `${input.sender} was removed from the list.` });
+    await recordAuditEvent(trx, {
+      kind: input.add ? 'import_sender_added' : 'import_sender_removed',
+      crewId: input.crewId,
+      actorUserId: input.userId,
+      ip: input.ip,
+      detail: { sender: input.sender },
+    });
+    return succeed({
+      message: input.add ? `Mail from ${input.sender} is now imported.` : `${input.sender} was removed from the list.`,
+    });
   });
 }
 
@@ -90,7 +121,15 @@ export type ReceiveOutcome =
 /** Step 1 of the top of this file: store a message for an import address, or refuse it with a logged reason. */
 export async function receiveInboundMail(
   db: Db,
-  input: { via: 'smtp' | 'webhook'; envelopeFrom: string | null; recipient: string; raw: Buffer; domain: string; byteSize?: number; log?: (line: string) => void },
+  input: {
+    via: 'smtp' | 'webhook';
+    envelopeFrom: string | null;
+    recipient: string;
+    raw: Buffer;
+    domain: string;
+    byteSize?: number;
+    log?: (line: string) => void;
+  },
 ): Promise<ReceiveOutcome> {
   // The relay stops keeping bytes past the limit; it passes the size it counted.
   const size = input.byteSize ?? input.raw.byteLength;
@@ -105,12 +144,26 @@ export async function receiveInboundMail(
   }
   if (size > MAX_INBOUND_MAIL_BYTES) {
     const reason = INBOUND_REASONS.tooLarge(size);
-    await repo.insertInboundMail(db, { ...base, crewId: crew.crew_id, raw: null, rawSha256: null, status: 'refused', reason });
+    await repo.insertInboundMail(db, {
+      ...base,
+      crewId: crew.crew_id,
+      raw: null,
+      rawSha256: null,
+      status: 'refused',
+      reason,
+    });
     input.log?.(`[lab-mail] refused for crew ${crew.crew_id}: ${reason}`);
     return { status: 'refused', smtpCode: 552, reason };
   }
   const sha = createHash('sha256').update(input.raw).digest('hex');
-  const stored = await repo.insertInboundMail(db, { ...base, crewId: crew.crew_id, raw: input.raw, rawSha256: sha, status: 'received', reason: null });
+  const stored = await repo.insertInboundMail(db, {
+    ...base,
+    crewId: crew.crew_id,
+    raw: input.raw,
+    rawSha256: sha,
+    status: 'received',
+    reason: null,
+  });
   if (!stored) return { status: 'duplicate' };
   await repo.notifyInboundMail(db);
   return { status: 'received', id: stored.id };
@@ -144,7 +197,9 @@ export async function processInboundMails(
     if (outcome.status === 'processed') report.processed += 1;
     else report.setAside += 1;
     report.filesStored += outcome.stored;
-    options.log?.(`[lab-mail] ${outcome.status === 'processed' ? 'processed' : 'set aside'}: ${outcome.reason ?? `${outcome.stored} lab file(s) waiting for a confirm`}`);
+    options.log?.(
+      `[lab-mail] ${outcome.status === 'processed' ? 'processed' : 'set aside'}: ${outcome.reason ?? `${outcome.stored} lab file(s) waiting for a confirm`}`,
+    );
   }
   return report;
 }
@@ -157,9 +212,24 @@ interface ProcessOutcome {
 
 type LockedMail = NonNullable<Awaited<ReturnType<typeof repo.lockNextReceivedMail>>>;
 
-async function processOne(trx: Transaction<Database>, row: LockedMail, env: AlertEnv, hooks: ProcessHooks): Promise<ProcessOutcome> {
-  const finish = async (status: ProcessOutcome['status'], reason: string | null, extra: { from?: string | null; subject?: string | null; ids?: string[]; stored?: number } = {}) => {
-    await repo.finishInboundMail(trx, row.id, { status, reason, fromAddress: extra.from ?? null, subject: extra.subject ?? null, labFileIds: extra.ids ?? [] });
+async function processOne(
+  trx: Transaction<Database>,
+  row: LockedMail,
+  env: AlertEnv,
+  hooks: ProcessHooks,
+): Promise<ProcessOutcome> {
+  const finish = async (
+    status: ProcessOutcome['status'],
+    reason: string | null,
+    extra: { from?: string | null; subject?: string | null; ids?: string[]; stored?: number } = {},
+  ) => {
+    await repo.finishInboundMail(trx, row.id, {
+      status,
+      reason,
+      fromAddress: extra.from ?? null,
+      subject: extra.subject ?? null,
+      labFileIds: extra.ids ?? [],
+    });
     return { status, reason, stored: extra.stored ?? 0 };
   };
   if (!row.crew_id || !row.raw) return finish('set_aside', INBOUND_REASONS.malformed('nothing was stored'));
@@ -168,14 +238,23 @@ async function processOne(trx: Transaction<Database>, row: LockedMail, env: Aler
   if (problem) return finish('set_aside', INBOUND_REASONS.malformed(problem));
   let parsed: ParsedMail;
   try {
-    parsed = await simpleParser(raw, { skipHtmlToText: true, skipTextToHtml: true, skipTextLinks: true, skipImageLinks: true });
+    parsed = await simpleParser(raw, {
+      skipHtmlToText: true,
+      skipTextToHtml: true,
+      skipTextLinks: true,
+      skipImageLinks: true,
+    });
   } catch (error) {
-    return finish('set_aside', INBOUND_REASONS.malformed(error instanceof Error ? error.message.slice(0, 200) : 'unreadable'));
+    return finish(
+      'set_aside',
+      INBOUND_REASONS.malformed(error instanceof Error ? error.message.slice(0, 200) : 'unreadable'),
+    );
   }
   const from = parsed.from?.value[0]?.address ?? null;
   const subject = parsed.subject ?? null;
   const senders = await repo.listSenders(trx, row.crew_id);
-  if (!isSenderAllowed(senders, from)) return finish('set_aside', INBOUND_REASONS.senderNotAllowed(from), { from, subject });
+  if (!isSenderAllowed(senders, from))
+    return finish('set_aside', INBOUND_REASONS.senderNotAllowed(from), { from, subject });
 
   const labAttachments = parsed.attachments.filter((a) => isLabAttachment(a));
   if (labAttachments.length === 0) {
@@ -205,12 +284,24 @@ async function processOne(trx: Transaction<Database>, row: LockedMail, env: Aler
   await hooks.afterStore?.(trx);
   if (ids.length === 0) return finish('set_aside', INBOUND_REASONS.allRefused(problems), { from, subject });
   if (fresh.length > 0) await noticeMechanics(trx, env, row.crew_id, row.id, fresh, from);
-  const note = problems.length > 0 ? `Not every attachment was kept: ${problems.join(' ')}` : fresh.length === 0 ? 'The same files were received before; nothing new was stored.' : null;
+  const note =
+    problems.length > 0
+      ? `Not every attachment was kept: ${problems.join(' ')}`
+      : fresh.length === 0
+        ? 'The same files were received before; nothing new was stored.'
+        : null;
   return finish('processed', note, { from, subject, ids, stored: fresh.length });
 }
 
 /** One notice per mechanic and lead, by their preferences, with a link to each waiting preview. */
-async function noticeMechanics(trx: Transaction<Database>, env: AlertEnv, crewId: string, inboundId: string, files: readonly { id: string; fileName: string }[], from: string | null): Promise<void> {
+async function noticeMechanics(
+  trx: Transaction<Database>,
+  env: AlertEnv,
+  crewId: string,
+  inboundId: string,
+  files: readonly { id: string; fileName: string }[],
+  from: string | null,
+): Promise<void> {
   const crewName = (await findCrewName(trx, crewId)) ?? 'your crew';
   const recipients = await listCrewRecipients(trx, crewId, ['mechanic', 'lead']);
   const content = composeLabReportArrived({
@@ -218,7 +309,11 @@ async function noticeMechanics(trx: Transaction<Database>, env: AlertEnv, crewId
     sender: from,
     files: files.map((f) => ({ fileName: f.fileName, url: `${env.publicUrl}/imports/${f.id}` })),
   });
-  const alerts: AlertForRecipient[] = recipients.map((recipient) => ({ recipient, dedupeKey: `lab-mail:${inboundId}:${recipient.user_id}`, content }));
+  const alerts: AlertForRecipient[] = recipients.map((recipient) => ({
+    recipient,
+    dedupeKey: `lab-mail:${inboundId}:${recipient.user_id}`,
+    content,
+  }));
   await deliverAlerts(trx, env, { crewId, crewName, kind: 'lab_report_arrived', alerts });
 }
 

@@ -81,7 +81,11 @@ export function isSenderAllowed(allowList: readonly string[], sender: string | n
 /** Attachment types that are lab files: by name, or by declared type when the name says nothing. */
 const LAB_EXTENSIONS = /\.(csv|tsv|txt|xlsx)$/i;
 const LAB_TYPES = new Set([
-  'text/csv', 'text/tab-separated-values', 'text/plain', 'application/csv', 'application/vnd.ms-excel',
+  'text/csv',
+  'text/tab-separated-values',
+  'text/plain',
+  'application/csv',
+  'application/vnd.ms-excel',
   'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
 ]);
 
@@ -100,17 +104,26 @@ export function isLabAttachment(a: AttachmentLike): boolean {
 /** The name a mailed attachment is stored under: its own, or one made from its type. */
 export function nameAttachment(a: AttachmentLike, index: number): string {
   if (a.filename && a.filename.trim() !== '') return a.filename;
-  const ext = a.contentType.includes('spreadsheetml') ? 'xlsx' : a.contentType.includes('tab-separated') ? 'tsv' : a.contentType === 'text/plain' ? 'txt' : 'csv';
+  const ext = a.contentType.includes('spreadsheetml')
+    ? 'xlsx'
+    : a.contentType.includes('tab-separated')
+      ? 'tsv'
+      : a.contentType === 'text/plain'
+        ? 'txt'
+        : 'csv';
   return `lab-report-${index + 1}.${ext}`;
 }
 
 /** The sentences of a message set aside or refused, shown on the lab import page and kept in the log. */
 export const INBOUND_REASONS = {
-  unknownAddress: (recipient: string) => `No crew has the import address ${recipient} (it may have been replaced); the message was refused.`,
-  tooLarge: (bytes: number) => `The message is ${(bytes / (1024 * 1024)).toFixed(1)} MiB; messages up to ${MAX_INBOUND_MAIL_BYTES / (1024 * 1024)} MiB are accepted, so it was refused.`,
+  unknownAddress: (recipient: string) =>
+    `No crew has the import address ${recipient} (it may have been replaced); the message was refused.`,
+  tooLarge: (bytes: number) =>
+    `The message is ${(bytes / (1024 * 1024)).toFixed(1)} MiB; messages up to ${MAX_INBOUND_MAIL_BYTES / (1024 * 1024)} MiB are accepted, so it was refused.`,
   senderNotAllowed: (sender: string | null) =>
     `Sent from ${sender ?? 'an address that could not be read'}, which is not on the crew's list of lab addresses, so it was kept aside and nothing was imported. Add the address on the lab import page if the lab really sends from it.`,
-  malformed: (why: string) => `The message could not be read as e-mail (${why}), so it was kept aside and nothing was imported.`,
+  malformed: (why: string) =>
+    `The message could not be read as e-mail (${why}), so it was kept aside and nothing was imported.`,
   noAttachment: (others: readonly string[]) =>
     `The message has no CSV, TSV, text or .xlsx attachment${others.length > 0 ? ` (only ${others.slice(0, 5).join(', ')})` : ''}, so there was nothing to import; it was kept aside.`,
   allRefused: (problems: readonly string[]) => `No attachment could be kept as a lab file: ${problems.join(' ')}`,
@@ -124,7 +137,8 @@ export function findMimeProblem(raw: Buffer): string | null {
   if (split === -1) return 'it has no header block followed by a blank line';
   const headers = head.slice(0, split);
   const lines = headers.split(/\r?\n/);
-  if (!lines.every((l) => /^[\x21-\x39\x3b-\x7e]+:/.test(l) || /^[ \t]/.test(l))) return 'a header line is not "Name: value"';
+  if (!lines.every((l) => /^[\x21-\x39\x3b-\x7e]+:/.test(l) || /^[ \t]/.test(l)))
+    return 'a header line is not "Name: value"';
   if (!/^(from|date|message-id):/im.test(headers)) return 'it has no From, Date or Message-ID header';
   const type = /^content-type:[ \t]*multipart\/[^\r\n]*(?:\r?\n[ \t][^\r\n]*)*/im.exec(headers)?.[0];
   if (type && !/boundary=/i.test(type)) return 'it says it has several parts but names no boundary between them';
@@ -159,7 +173,8 @@ export function checkInboundWebhook(
 ): string | null {
   const { timestamp, recipient, signature } = headers;
   if (!timestamp || !recipient || !signature) return 'the timestamp, recipient and signature headers are required';
-  if (!/^\d{1,12}$/.test(timestamp) || Math.abs(nowSeconds - Number(timestamp)) > WEBHOOK_TOLERANCE_SECONDS) return 'the timestamp is missing or more than 5 minutes off';
+  if (!/^\d{1,12}$/.test(timestamp) || Math.abs(nowSeconds - Number(timestamp)) > WEBHOOK_TOLERANCE_SECONDS)
+    return 'the timestamp is missing or more than 5 minutes off';
   const expected = Buffer.from(signInboundWebhook(secret, timestamp, recipient, body));
   const given = Buffer.from(signature.slice(0, 200));
   return expected.length === given.length && timingSafeEqual(expected, given) ? null : 'the signature does not match';

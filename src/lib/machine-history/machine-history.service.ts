@@ -7,7 +7,12 @@ import { toOilChange } from '../oil-changes/oil-changes';
 import { findOilChangesOfMachine } from '../oil-changes/oil-changes.repository';
 import { listWearPartDetails } from '../wear-parts/wear-parts.service';
 import { buildMachineHistory, HISTORY_MEASURANDS, type MachineHistoryView } from './machine-history';
-import { findHistoryCalls, findHistoryFindings, findHistoryReadings, findHistorySamples } from './machine-history.repository';
+import {
+  findHistoryCalls,
+  findHistoryFindings,
+  findHistoryReadings,
+  findHistorySamples,
+} from './machine-history.repository';
 
 /** The history view model of a machine already loaded for the actor (getMachine), printed today unless told. */
 export async function loadMachineHistory(
@@ -29,5 +34,15 @@ export async function loadMachineHistory(
     findHistoryFindings(db, ids),
     findHistoryCalls(db, crewId, ids),
   ]);
-  return buildMachineHistory({ machine, lengthUnit, oilChanges: changes.map((r) => toOilChange(r)), samples, readings, findings, calls, parts, printedOn });
+  return buildMachineHistory({
+    machine,
+    lengthUnit,
+    oilChanges: changes.map((r) => toOilChange(r)),
+    samples,
+    readings,
+    findings,
+    calls,
+    parts,
+    printedOn,
+  });
 }

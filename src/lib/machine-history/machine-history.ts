@@ -14,7 +14,18 @@ import { describeCallAuthor, type CallSource } from '../words/words';
 import type { WearPartDetail } from '../wear-parts/wear-parts.service';
 
 /** The readings the history table shows, in its column order. */
-export const HISTORY_MEASURANDS = ['Fe', 'Al', 'Cr', 'Cu', 'Pb', 'Si', 'Na', 'K', 'FUEL', 'KV100'] as const satisfies readonly MeasurandCode[];
+export const HISTORY_MEASURANDS = [
+  'Fe',
+  'Al',
+  'Cr',
+  'Cu',
+  'Pb',
+  'Si',
+  'Na',
+  'K',
+  'FUEL',
+  'KV100',
+] as const satisfies readonly MeasurandCode[];
 
 export interface HistorySample {
   id: string;
@@ -25,8 +36,19 @@ export interface HistorySample {
   saeGrade: string | null;
   state: SampleState;
 }
-export interface HistoryReading { sampleId: string; measurand: string; value: number; qualifier: string | null }
-export interface HistoryFinding { sampleId: string; measurand: string | null; level: Level; ruleId: string; sentence: string }
+export interface HistoryReading {
+  sampleId: string;
+  measurand: string;
+  value: number;
+  qualifier: string | null;
+}
+export interface HistoryFinding {
+  sampleId: string;
+  measurand: string | null;
+  level: Level;
+  ruleId: string;
+  sentence: string;
+}
 export interface HistoryCall {
   sampleId: string;
   call: IntervalCallKind;
@@ -60,13 +82,27 @@ export interface MachineHistoryView {
   measurands: readonly { code: string; name: string }[];
   oilChanges: { changedOn: string; odometer: string; grade: string; oil: string; filter: string; otherWork: string }[];
   samples: {
-    bottleCode: string; drawnOn: string; odometer: string; onOil: string; grade: string;
+    bottleCode: string;
+    drawnOn: string;
+    odometer: string;
+    onOil: string;
+    grade: string;
     /** The worst level of a sample with results; null while it waits for them (then `stateWords` says where it is). */
-    level: Level | null; stateWords: string; readings: string[]; call: { word: string; author: string } | null;
+    level: Level | null;
+    stateWords: string;
+    readings: string[];
+    call: { word: string; author: string } | null;
   }[];
   /** Whether any finding is stored at all (the empty state says every reading was steady). */
   hasFindings: boolean;
-  findings: { level: Level; ruleId: string; measurand: string; title: string; sentence: string; overrideNote: string | null }[];
+  findings: {
+    level: Level;
+    ruleId: string;
+    measurand: string;
+    title: string;
+    sentence: string;
+    overrideNote: string | null;
+  }[];
   parts: { name: string; newRange: string; serviceLimit: string; lastMeasured: string; lastOdometer: string }[];
 }
 
@@ -79,14 +115,22 @@ export function buildMachineHistory(input: MachineHistoryInput): MachineHistoryV
   const meter = m.meter;
   const findingsOf = (id: string) => input.findings.filter((f) => f.sampleId === id);
   const callOf = (id: string) => input.calls.find((c) => c.sampleId === id);
-  const worstOf = (id: string): Level => findingsOf(id).reduce<Level>((w, f) => (levelRank(f.level) > levelRank(w) ? f.level : w), 'steady');
+  const worstOf = (id: string): Level =>
+    findingsOf(id).reduce<Level>((w, f) => (levelRank(f.level) > levelRank(w) ? f.level : w), 'steady');
   const readingOf = (id: string, code: string) => {
     const r = input.readings.find((x) => x.sampleId === id && x.measurand === code);
     return r ? `${r.qualifier ?? ''}${Number(r.value.toFixed(2))}` : '';
   };
   const withResults = input.samples.filter(hasResults);
-  const facts = [m.modelYear, m.displacementCc ? `${m.displacementCc} cc` : null, m.engineLayout, `${m.cooling}-cooled`, m.sharedOil ? 'engine, gearbox and clutch share the oil' : null]
-    .filter(Boolean).join(' · ');
+  const facts = [
+    m.modelYear,
+    m.displacementCc ? `${m.displacementCc} cc` : null,
+    m.engineLayout,
+    `${m.cooling}-cooled`,
+    m.sharedOil ? 'engine, gearbox and clutch share the oil' : null,
+  ]
+    .filter(Boolean)
+    .join(' · ');
   return {
     machineId: m.id,
     machineName: m.name,
@@ -95,34 +139,61 @@ export function buildMachineHistory(input: MachineHistoryInput): MachineHistoryV
     summary: `${plural(withResults.length, 'sample')} with lab results, ${plural(input.oilChanges.length, 'oil change')}.`,
     printedOn: input.printedOn,
     measurands: HISTORY_MEASURANDS.map((code) => ({ code, name: getMeasurand(code).name })),
-    oilChanges: [...input.oilChanges].sort((a, b) => a.odometer - b.odometer).map((c) => ({
-      changedOn: c.changedOn, odometer: formatMeter(c.odometer, meter), grade: c.saeGrade, oil: c.oilProduct,
-      filter: c.filterChanged ? 'changed' : '—', otherWork: c.otherWork.join('; '),
-    })),
+    oilChanges: [...input.oilChanges]
+      .sort((a, b) => a.odometer - b.odometer)
+      .map((c) => ({
+        changedOn: c.changedOn,
+        odometer: formatMeter(c.odometer, meter),
+        grade: c.saeGrade,
+        oil: c.oilProduct,
+        filter: c.filterChanged ? 'changed' : '—',
+        otherWork: c.otherWork.join('; '),
+      })),
     samples: input.samples.map((s) => {
       const c = callOf(s.id);
       return {
-        bottleCode: s.bottleCode, drawnOn: s.drawnOn, odometer: formatMeter(s.odometer, meter),
-        onOil: s.distanceOnOil === null ? '—' : formatMeter(s.distanceOnOil, meter), grade: s.saeGrade ?? '—',
-        level: hasResults(s) ? worstOf(s.id) : null, stateWords: s.state.replace('_', ' '),
+        bottleCode: s.bottleCode,
+        drawnOn: s.drawnOn,
+        odometer: formatMeter(s.odometer, meter),
+        onOil: s.distanceOnOil === null ? '—' : formatMeter(s.distanceOnOil, meter),
+        grade: s.saeGrade ?? '—',
+        level: hasResults(s) ? worstOf(s.id) : null,
+        stateWords: s.state.replace('_', ' '),
         readings: HISTORY_MEASURANDS.map((k) => readingOf(s.id, k)),
-        call: c ? { word: CALL_DISPLAY[c.call].word, author: describeCallAuthor({ source: c.source, role: c.authorRole, name: c.authorName }) } : null,
+        call: c
+          ? {
+              word: CALL_DISPLAY[c.call].word,
+              author: describeCallAuthor({ source: c.source, role: c.authorRole, name: c.authorName }),
+            }
+          : null,
       };
     }),
     hasFindings: input.findings.length > 0,
     findings: withResults.flatMap((s) => {
       const c = callOf(s.id);
-      const overrideNote = c?.source === 'override' ? `Note with the call (${describeCallAuthor({ source: 'override', role: c.authorRole, name: c.authorName })}): ${c.note}` : null;
-      return findingsOf(s.id).sort((a, b) => levelRank(b.level) - levelRank(a.level)).map((f) => ({
-        level: f.level, ruleId: f.ruleId, measurand: f.measurand ?? '', title: `${s.drawnOn} · ${capitalise(describeFindingReason(f.ruleId, f.measurand))}`,
-        sentence: f.sentence, overrideNote,
-      }));
+      const overrideNote =
+        c?.source === 'override'
+          ? `Note with the call (${describeCallAuthor({ source: 'override', role: c.authorRole, name: c.authorName })}): ${c.note}`
+          : null;
+      return findingsOf(s.id)
+        .sort((a, b) => levelRank(b.level) - levelRank(a.level))
+        .map((f) => ({
+          level: f.level,
+          ruleId: f.ruleId,
+          measurand: f.measurand ?? '',
+          title: `${s.drawnOn} · ${capitalise(describeFindingReason(f.ruleId, f.measurand))}`,
+          sentence: f.sentence,
+          overrideNote,
+        }));
     }),
     parts: input.parts.map(({ part: p, measurements }) => {
       const last = measurements.at(-1);
       return {
-        name: p.name, newRange: `${formatLength(p.newMinMm, lengthUnit)} to ${formatLength(p.newMaxMm, lengthUnit)}`, serviceLimit: formatLength(p.serviceLimitMm, lengthUnit),
-        lastMeasured: last ? `${formatLength(last.summaryMm, lengthUnit)} on ${last.measuredOn}` : 'not measured', lastOdometer: last ? formatMeter(last.odometer, meter) : '',
+        name: p.name,
+        newRange: `${formatLength(p.newMinMm, lengthUnit)} to ${formatLength(p.newMaxMm, lengthUnit)}`,
+        serviceLimit: formatLength(p.serviceLimitMm, lengthUnit),
+        lastMeasured: last ? `${formatLength(last.summaryMm, lengthUnit)} on ${last.measuredOn}` : 'not measured',
+        lastOdometer: last ? formatMeter(last.odometer, meter) : '',
       };
     }),
   };

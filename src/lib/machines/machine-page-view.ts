@@ -5,7 +5,14 @@
 import type { WearForecast } from '../analysis/wear-forecast';
 import type { OilChange } from '../oil-changes/oil-changes';
 import { STATE_LABELS, type Sample } from '../samples/samples';
-import { formatLength, formatMeter, formatTemperature, fromStoredMeter, type LengthUnit, type TemperatureUnit } from '../units/units';
+import {
+  formatLength,
+  formatMeter,
+  formatTemperature,
+  fromStoredMeter,
+  type LengthUnit,
+  type TemperatureUnit,
+} from '../units/units';
 import { describeForecast, formatWholeMeter } from '../wear-parts/forecast-words';
 import type { WearMeasurement, WearPart } from '../wear-parts/wear-parts';
 import { COOLING_LABELS, LAYOUT_LABELS, type Machine } from './machines';
@@ -84,12 +91,26 @@ export function buildMachinePageView(input: MachinePageInput): MachinePageView {
     flash: flashOf(input),
     spec: describeMachineSpec(m),
     samples: input.samples.map((s) => ({
-      href: `/samples/${s.id}`, bottleCode: s.bottleCode, drawnOn: s.drawnOn, odometer: meter(s.odometer),
-      onOil: s.distanceOnOil !== null ? meter(s.distanceOnOil) : '—', state: STATE_LABELS[s.state],
+      href: `/samples/${s.id}`,
+      bottleCode: s.bottleCode,
+      drawnOn: s.drawnOn,
+      odometer: meter(s.odometer),
+      onOil: s.distanceOnOil !== null ? meter(s.distanceOnOil) : '—',
+      state: STATE_LABELS[s.state],
     })),
-    grades: m.recommendedGrades.map((g) => ({ grade: g.grade, temperatures: describeGradeTemperatures(g.minC, g.maxC, input.temperatureUnit) })),
+    grades: m.recommendedGrades.map((g) => ({
+      grade: g.grade,
+      temperatures: describeGradeTemperatures(g.minC, g.maxC, input.temperatureUnit),
+    })),
     longestInterval: `${m.maxIntervalStored !== null ? meter(m.maxIntervalStored) : '—'}${m.maxIntervalDays ? ` or ${m.maxIntervalDays} days` : ''}`,
-    oilNow: latest ? { grade: latest.saeGrade, product: latest.oilProduct ? `· ${latest.oilProduct}` : '', since: latest.changedOn, odometer: meter(latest.odometer) } : null,
+    oilNow: latest
+      ? {
+          grade: latest.saeGrade,
+          product: latest.oilProduct ? `· ${latest.oilProduct}` : '',
+          since: latest.changedOn,
+          odometer: meter(latest.odometer),
+        }
+      : null,
     recentChanges: input.oilChanges.slice(0, RECENT_CHANGES).map((c) => ({
       changedOn: c.changedOn,
       odometer: meter(c.odometer),
@@ -97,7 +118,10 @@ export function buildMachinePageView(input: MachinePageInput): MachinePageView {
       sinceWords: c.meterReplaced ? 'meter replaced' : 'first logged change',
       oil: `${c.saeGrade}${c.oilProduct ? ` · ${c.oilProduct}` : ''}${c.volumeL ? ` · ${c.volumeL} L` : ''} · filter ${c.filterChanged ? 'changed' : 'kept'}${c.topUpL > 0 ? ` · ${c.topUpL} L topped up before` : ''}`,
       otherWork: c.otherWork,
-      photos: c.photos.map((p) => ({ href: `/api/photos/${p.id}`, alt: p.caption || `Photo from the oil change on ${c.changedOn}` })),
+      photos: c.photos.map((p) => ({
+        href: `/api/photos/${p.id}`,
+        alt: p.caption || `Photo from the oil change on ${c.changedOn}`,
+      })),
     })),
     olderChanges: input.oilChanges.slice(RECENT_CHANGES).map((c) => ({
       changedOn: c.changedOn,

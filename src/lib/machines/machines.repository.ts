@@ -7,7 +7,11 @@ type Db = Kysely<Database> | Transaction<Database>;
 // Every machines query is scoped by crew id: another crew's machine id finds nothing.
 
 /** The crew's machines, newest first; archived ones only when asked. */
-export function findMachinesOfCrew(db: Db, crewId: string, options: { includeArchived?: boolean } = {}): Promise<MachineRow[]> {
+export function findMachinesOfCrew(
+  db: Db,
+  crewId: string,
+  options: { includeArchived?: boolean } = {},
+): Promise<MachineRow[]> {
   let q = db.selectFrom('machines').selectAll().where('crew_id', '=', crewId);
   if (!options.includeArchived) q = q.where('archived_at', 'is', null);
   return q.orderBy('archived_at', 'desc').orderBy('name').execute();
@@ -25,15 +29,34 @@ export function insertMachine(db: Db, row: NewMachineRow): Promise<MachineRow> {
 }
 
 /** Updates a crew's machine and returns the row. */
-export function updateMachineRow(db: Db, crewId: string, id: string, patch: MachineRowUpdate): Promise<MachineRow | undefined> {
-  return db.updateTable('machines').set({ ...patch, updated_at: new Date() }).where('crew_id', '=', crewId).where('id', '=', id).returningAll().executeTakeFirst();
+export function updateMachineRow(
+  db: Db,
+  crewId: string,
+  id: string,
+  patch: MachineRowUpdate,
+): Promise<MachineRow | undefined> {
+  return db
+    .updateTable('machines')
+    .set({ ...patch, updated_at: new Date() })
+    .where('crew_id', '=', crewId)
+    .where('id', '=', id)
+    .returningAll()
+    .executeTakeFirst();
 }
 
 /** How many samples and oil changes hang from a machine (a machine with records is archived, never deleted). */
 export async function countMachineRecords(db: Db, machineId: string): Promise<{ samples: number; oilChanges: number }> {
   const [s, o] = await Promise.all([
-    db.selectFrom('samples').select((eb) => eb.fn.countAll<number>().as('n')).where('machine_id', '=', machineId).executeTakeFirstOrThrow(),
-    db.selectFrom('oil_changes').select((eb) => eb.fn.countAll<number>().as('n')).where('machine_id', '=', machineId).executeTakeFirstOrThrow(),
+    db
+      .selectFrom('samples')
+      .select((eb) => eb.fn.countAll<number>().as('n'))
+      .where('machine_id', '=', machineId)
+      .executeTakeFirstOrThrow(),
+    db
+      .selectFrom('oil_changes')
+      .select((eb) => eb.fn.countAll<number>().as('n'))
+      .where('machine_id', '=', machineId)
+      .executeTakeFirstOrThrow(),
   ]);
   return { samples: Number(s.n), oilChanges: Number(o.n) };
 }
@@ -43,4 +66,3 @@ export async function deleteMachineRow(db: Db, crewId: string, id: string): Prom
   const r = await db.deleteFrom('machines').where('crew_id', '=', crewId).where('id', '=', id).executeTakeFirst();
   return Number(r.numDeletedRows) > 0;
 }
-

@@ -4,14 +4,23 @@ import { canCreateMachine, canEditMachine, canReadCrew } from '../auth/permissio
 import { toStoredMeter, type TemperatureUnit } from '../units/units';
 import { machineInputSchema, parseGradeRows, toMachine, type Machine } from './machines';
 import {
-  countMachineRecords, deleteMachineRow, findMachineOfCrew, findMachinesOfCrew, insertMachine, updateMachineRow,
+  countMachineRecords,
+  deleteMachineRow,
+  findMachineOfCrew,
+  findMachinesOfCrew,
+  insertMachine,
+  updateMachineRow,
 } from './machines.repository';
 import { refuse, refuseInvalid, refuseNotFound, succeed, type Result } from '~/lib/http/result';
 import type { Actor } from '~/lib/auth/types';
 import { formatCount } from '../words/words';
 
 /** The crew's machines for a member (archived ones too when asked). */
-export async function listMachines(db: Kysely<Database>, actor: Actor, options: { includeArchived?: boolean } = {}): Promise<Machine[]> {
+export async function listMachines(
+  db: Kysely<Database>,
+  actor: Actor,
+  options: { includeArchived?: boolean } = {},
+): Promise<Machine[]> {
   if (!canReadCrew(actor.membership)) return [];
   return (await findMachinesOfCrew(db, actor.membership.crewId, options)).map(toMachine);
 }
@@ -32,23 +41,37 @@ function validate(input: unknown, temperatureUnit: TemperatureUnit) {
   const parsed = machineInputSchema.safeParse(input);
   if (!parsed.success) return { ok: false as const, refusal: refuseInvalid(parsed.error) };
   const grades = parseGradeRows(parsed.data.grades, temperatureUnit);
-  if (!grades.ok) return { ok: false as const, refusal: refuse(400, 'invalid_input', 'Some fields need attention.', grades.fields) };
+  if (!grades.ok)
+    return { ok: false as const, refusal: refuse(400, 'invalid_input', 'Some fields need attention.', grades.fields) };
   const d = parsed.data;
   return {
     ok: true as const,
     values: {
-      name: d.name, model_year: d.modelYear ?? null, engine_layout: d.engineLayout, displacement_cc: d.displacementCc ?? null,
-      cooling: d.cooling, shared_oil: d.sharedOil, oil_capacity_l: d.oilCapacityL ?? null, meter: d.meter,
+      name: d.name,
+      model_year: d.modelYear ?? null,
+      engine_layout: d.engineLayout,
+      displacement_cc: d.displacementCc ?? null,
+      cooling: d.cooling,
+      shared_oil: d.sharedOil,
+      oil_capacity_l: d.oilCapacityL ?? null,
+      meter: d.meter,
       recommended_grades: JSON.stringify(grades.grades),
       max_interval_distance: d.maxInterval === undefined ? null : toStoredMeter(d.maxInterval, d.meter),
-      max_interval_days: d.maxIntervalDays ?? null, notes: d.notes,
+      max_interval_days: d.maxIntervalDays ?? null,
+      notes: d.notes,
     },
   };
 }
 
 /** Adds a machine owned by the actor; temperatures arrive in the actor's unit. */
-export async function createMachine(db: Kysely<Database>, actor: Actor, input: unknown, temperatureUnit: TemperatureUnit): Promise<Result<Machine>> {
-  if (!canCreateMachine(actor.membership)) return refuse(403, 'forbidden', 'Your role in this crew does not add machines.');
+export async function createMachine(
+  db: Kysely<Database>,
+  actor: Actor,
+  input: unknown,
+  temperatureUnit: TemperatureUnit,
+): Promise<Result<Machine>> {
+  if (!canCreateMachine(actor.membership))
+    return refuse(403, 'forbidden', 'Your role in this crew does not add machines.');
   const v = validate(input, temperatureUnit);
   if (!v.ok) return v.refusal;
   const row = await insertMachine(db, { ...v.values, crew_id: actor.membership.crewId, owner_user_id: actor.userId });
@@ -56,16 +79,25 @@ export async function createMachine(db: Kysely<Database>, actor: Actor, input: u
 }
 
 /** Changes a machine's details. Switching the meter unit is refused once readings exist (they would change meaning). */
-export async function updateMachine(db: Kysely<Database>, actor: Actor, id: string, input: unknown, temperatureUnit: TemperatureUnit): Promise<Result<Machine>> {
+export async function updateMachine(
+  db: Kysely<Database>,
+  actor: Actor,
+  id: string,
+  input: unknown,
+  temperatureUnit: TemperatureUnit,
+): Promise<Result<Machine>> {
   const found = await getMachine(db, actor, id);
   if (!found.ok) return found;
-  if (!canActorEdit(actor, found.value)) return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can change it.');
+  if (!canActorEdit(actor, found.value))
+    return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can change it.');
   const v = validate(input, temperatureUnit);
   if (!v.ok) return v.refusal;
   if (v.values.meter !== found.value.meter && (v.values.meter === 'h') !== (found.value.meter === 'h')) {
     const counts = await countMachineRecords(db, id);
     if (counts.oilChanges + counts.samples > 0) {
-      return refuse(400, 'invalid_input', 'Some fields need attention.', { meter: 'Hours and distances cannot be mixed once oil changes are logged.' });
+      return refuse(400, 'invalid_input', 'Some fields need attention.', {
+        meter: 'Hours and distances cannot be mixed once oil changes are logged.',
+      });
     }
   }
   const row = await updateMachineRow(db, actor.membership.crewId, id, v.values);
@@ -73,23 +105,38 @@ export async function updateMachine(db: Kysely<Database>, actor: Actor, id: stri
 }
 
 /** Archives (hides) or restores a machine; its records stay. */
-export async function setMachineArchived(db: Kysely<Database>, actor: Actor, id: string, archived: boolean): Promise<Result<Machine>> {
+export async function setMachineArchived(
+  db: Kysely<Database>,
+  actor: Actor,
+  id: string,
+  archived: boolean,
+): Promise<Result<Machine>> {
   const found = await getMachine(db, actor, id);
   if (!found.ok) return found;
-  if (!canActorEdit(actor, found.value)) return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can archive it.');
+  if (!canActorEdit(actor, found.value))
+    return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can archive it.');
   const row = await updateMachineRow(db, actor.membership.crewId, id, { archived_at: archived ? new Date() : null });
   return row ? succeed(toMachine(row)) : refuseNotFound('machine');
 }
 
 /** Deletes a machine only when no sample or oil change hangs from it; otherwise asks to archive instead. */
-export async function deleteMachine(db: Kysely<Database>, actor: Actor, id: string): Promise<Result<{ deleted: true }>> {
+export async function deleteMachine(
+  db: Kysely<Database>,
+  actor: Actor,
+  id: string,
+): Promise<Result<{ deleted: true }>> {
   const found = await getMachine(db, actor, id);
   if (!found.ok) return found;
-  if (!canActorEdit(actor, found.value)) return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can delete it.');
+  if (!canActorEdit(actor, found.value))
+    return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can delete it.');
   return db.transaction().execute(async (trx) => {
     const counts = await countMachineRecords(trx, id);
     if (counts.samples + counts.oilChanges > 0) {
-      return refuse(409, 'has_records', `This machine has ${formatCount(counts.oilChanges, 'oil change')} and ${formatCount(counts.samples, 'sample')}; archive it instead so its history stays.`);
+      return refuse(
+        409,
+        'has_records',
+        `This machine has ${formatCount(counts.oilChanges, 'oil change')} and ${formatCount(counts.samples, 'sample')}; archive it instead so its history stays.`,
+      );
     }
     await deleteMachineRow(trx, actor.membership.crewId, id);
     return succeed({ deleted: true as const });

@@ -14,7 +14,11 @@ export type Meter = (typeof METERS)[number];
 export const GRADE_ROWS = 4;
 
 export const LAYOUT_LABELS: Record<(typeof ENGINE_LAYOUTS)[number], string> = {
-  single: 'Single', twin: 'Twin', triple: 'Triple', four: 'Four', other: 'Other',
+  single: 'Single',
+  twin: 'Twin',
+  triple: 'Triple',
+  four: 'Four',
+  other: 'Other',
 };
 export const COOLING_LABELS: Record<(typeof COOLINGS)[number], string> = { air: 'Air', oil: 'Oil', liquid: 'Liquid' };
 export const METER_LABELS: Record<MeterUnit, string> = { mi: 'Miles (mi)', km: 'Kilometres (km)', h: 'Hour meter (h)' };
@@ -43,10 +47,21 @@ export interface Machine {
 /** Maps a machines row to the domain shape. */
 export function toMachine(row: MachineRow): Machine {
   return {
-    id: row.id, crewId: row.crew_id, ownerUserId: row.owner_user_id, name: row.name, modelYear: row.model_year,
-    engineLayout: row.engine_layout, displacementCc: row.displacement_cc, cooling: row.cooling, sharedOil: row.shared_oil,
-    oilCapacityL: row.oil_capacity_l, meter: row.meter, recommendedGrades: row.recommended_grades,
-    maxIntervalStored: row.max_interval_distance, maxIntervalDays: row.max_interval_days, notes: row.notes,
+    id: row.id,
+    crewId: row.crew_id,
+    ownerUserId: row.owner_user_id,
+    name: row.name,
+    modelYear: row.model_year,
+    engineLayout: row.engine_layout,
+    displacementCc: row.displacement_cc,
+    cooling: row.cooling,
+    sharedOil: row.shared_oil,
+    oilCapacityL: row.oil_capacity_l,
+    meter: row.meter,
+    recommendedGrades: row.recommended_grades,
+    maxIntervalStored: row.max_interval_distance,
+    maxIntervalDays: row.max_interval_days,
+    notes: row.notes,
     archivedAt: row.archived_at,
   };
 }
@@ -60,23 +75,57 @@ const gradeRowSchema = z.object({
 /** The machine form and the JSON body: temperatures in the user's unit, the interval in the meter's unit. */
 export const machineInputSchema = z.object({
   name: text(80, 'name').pipe(z.string().min(1, 'Give the machine a name, such as its nickname or model.')),
-  modelYear: optionalNumber('year').pipe(z.number().int('Enter a whole year.').min(1900, 'Enter a year from 1900 on.').max(new Date().getUTCFullYear() + 1, 'That year has not come yet.').optional()),
+  modelYear: optionalNumber('year').pipe(
+    z
+      .number()
+      .int('Enter a whole year.')
+      .min(1900, 'Enter a year from 1900 on.')
+      .max(new Date().getUTCFullYear() + 1, 'That year has not come yet.')
+      .optional(),
+  ),
   engineLayout: z.enum(ENGINE_LAYOUTS, { error: 'Choose the engine layout.' }),
-  displacementCc: optionalNumber('displacement').pipe(z.number().int('Enter whole cc.').min(20, 'Enter the displacement in cc (20–3000).').max(3000, 'Enter the displacement in cc (20–3000).').optional()),
+  displacementCc: optionalNumber('displacement').pipe(
+    z
+      .number()
+      .int('Enter whole cc.')
+      .min(20, 'Enter the displacement in cc (20–3000).')
+      .max(3000, 'Enter the displacement in cc (20–3000).')
+      .optional(),
+  ),
   cooling: z.enum(COOLINGS, { error: 'Choose how the engine is cooled.' }),
   sharedOil: checkbox,
-  oilCapacityL: optionalNumber('oil capacity').pipe(z.number().gt(0, 'The oil capacity must be more than 0 L.').lt(40, 'The oil capacity must be under 40 L.').optional()),
+  oilCapacityL: optionalNumber('oil capacity').pipe(
+    z
+      .number()
+      .gt(0, 'The oil capacity must be more than 0 L.')
+      .lt(40, 'The oil capacity must be under 40 L.')
+      .optional(),
+  ),
   meter: z.enum(METERS, { error: 'Choose miles, kilometres or an hour meter.' }),
   grades: z.array(gradeRowSchema).max(GRADE_ROWS).default([]),
-  maxInterval: optionalNumber('longest interval').pipe(z.number().gt(0, 'The longest interval must be more than 0.').max(100_000, 'That interval is longer than any engine allows.').optional()),
-  maxIntervalDays: optionalNumber('longest interval in days').pipe(z.number().int('Enter whole days.').min(1, 'Enter at least 1 day.').max(3650, 'Enter at most 3650 days.').optional()),
+  maxInterval: optionalNumber('longest interval').pipe(
+    z
+      .number()
+      .gt(0, 'The longest interval must be more than 0.')
+      .max(100_000, 'That interval is longer than any engine allows.')
+      .optional(),
+  ),
+  maxIntervalDays: optionalNumber('longest interval in days').pipe(
+    z
+      .number()
+      .int('Enter whole days.')
+      .min(1, 'Enter at least 1 day.')
+      .max(3650, 'Enter at most 3650 days.')
+      .optional(),
+  ),
   notes: text(2000, 'notes'),
 });
 export type MachineInput = z.infer<typeof machineInputSchema>;
 
 /** Grade rows as a manual gives them: grade, optional temperature band in the user's unit → stored °C. */
 export function parseGradeRows(
-  rows: MachineInput['grades'], unit: TemperatureUnit,
+  rows: MachineInput['grades'],
+  unit: TemperatureUnit,
 ): { ok: true; grades: RecommendedGrade[] } | { ok: false; fields: Record<string, string> } {
   const grades: RecommendedGrade[] = [];
   const fields: Record<string, string> = {};
@@ -116,11 +165,17 @@ export function collectMachineForm(form: Record<string, unknown>): Record<string
 /** The machine's values as the form shows them (for edit), in the user's temperature unit. */
 export function machineFormValues(m: Machine, unit: TemperatureUnit): Record<string, string> {
   const v: Record<string, string> = {
-    name: m.name, modelYear: m.modelYear?.toString() ?? '', engineLayout: m.engineLayout,
-    displacementCc: m.displacementCc?.toString() ?? '', cooling: m.cooling, sharedOil: m.sharedOil ? 'on' : '',
-    oilCapacityL: m.oilCapacityL?.toString() ?? '', meter: m.meter,
+    name: m.name,
+    modelYear: m.modelYear?.toString() ?? '',
+    engineLayout: m.engineLayout,
+    displacementCc: m.displacementCc?.toString() ?? '',
+    cooling: m.cooling,
+    sharedOil: m.sharedOil ? 'on' : '',
+    oilCapacityL: m.oilCapacityL?.toString() ?? '',
+    meter: m.meter,
     maxInterval: m.maxIntervalStored === null ? '' : String(Math.round(fromStoredMeter(m.maxIntervalStored, m.meter))),
-    maxIntervalDays: m.maxIntervalDays?.toString() ?? '', notes: m.notes,
+    maxIntervalDays: m.maxIntervalDays?.toString() ?? '',
+    notes: m.notes,
   };
   m.recommendedGrades.forEach((g, i) => {
     v[`grade_${i}`] = g.grade;

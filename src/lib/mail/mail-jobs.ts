@@ -33,18 +33,28 @@ export async function registerMailJobs(boss: PgBoss, options: MailJobOptions): P
   // `short`: at most one flush waits at a time, so a burst of notifications queues one flush, not many.
   // pg-boss's retry only covers a flush that failed on a database error; per-message retries live in the outbox.
   await boss.createQueue(MAIL_FLUSH_QUEUE, {
-    name: MAIL_FLUSH_QUEUE, policy: 'short', retryLimit: 3, retryDelay: 5, retryBackoff: true, expireInSeconds: 15 * 60,
+    name: MAIL_FLUSH_QUEUE,
+    policy: 'short',
+    retryLimit: 3,
+    retryDelay: 5,
+    retryBackoff: true,
+    expireInSeconds: 15 * 60,
   });
 
   return registerWakeableJob(boss, {
     name: MAIL_FLUSH_QUEUE,
-    ...(options.listenConnectionString ? { listen: { connectionString: options.listenConnectionString, channel: MAIL_OUTBOX_CHANNEL } } : {}),
+    ...(options.listenConnectionString
+      ? { listen: { connectionString: options.listenConnectionString, channel: MAIL_OUTBOX_CHANNEL } }
+      : {}),
     tickSeconds: options.tickSeconds ?? 15,
     pollingIntervalSeconds: options.pollingIntervalSeconds ?? 2,
     log,
     async run() {
       const report = await deliverDueMail(options.db, {
-        transport: options.transport, from: options.from, batchSize, ...(options.backoff ? { backoff: options.backoff } : {}),
+        transport: options.transport,
+        from: options.from,
+        batchSize,
+        ...(options.backoff ? { backoff: options.backoff } : {}),
       });
       if (report.sent + report.deferred + report.failed > 0) {
         log(`[mail] flush: ${report.sent} sent, ${report.deferred} deferred, ${report.failed} failed`);

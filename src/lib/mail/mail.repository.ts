@@ -10,8 +10,14 @@ export const MAIL_OUTBOX_CHANNEL = 'sumpwise_mail_outbox';
 export async function insertOutboxMail(
   db: Db,
   row: {
-    idempotency_key: string; kind: string; to_address: string; subject: string; text_body: string;
-    html_body: string; headers: Record<string, string>; message_id: string;
+    idempotency_key: string;
+    kind: string;
+    to_address: string;
+    subject: string;
+    text_body: string;
+    html_body: string;
+    headers: Record<string, string>;
+    message_id: string;
   },
 ): Promise<boolean> {
   const inserted = await db
@@ -54,7 +60,13 @@ export async function lockNextDueMail(trx: Transaction<Database>, dueBy: Date): 
 export async function markMailSent(trx: Transaction<Database>, id: string, relayResponse: string): Promise<void> {
   await trx
     .updateTable('mail_outbox')
-    .set({ sent_at: sql`now()`, last_attempt_at: sql`now()`, attempts: sql`attempts + 1`, relay_response: relayResponse, last_error: null })
+    .set({
+      sent_at: sql`now()`,
+      last_attempt_at: sql`now()`,
+      attempts: sql`attempts + 1`,
+      relay_response: relayResponse,
+      last_error: null,
+    })
     .where('id', '=', id)
     .execute();
 }
@@ -95,8 +107,15 @@ export async function findNextDueAt(db: Db): Promise<Date | null> {
 export async function insertDevMail(
   db: Db,
   row: {
-    message_id: string | null; envelope_from: string | null; envelope_to: string; from_header: string | null;
-    to_header: string | null; subject: string; text_body: string | null; html_body: string | null; raw: string;
+    message_id: string | null;
+    envelope_from: string | null;
+    envelope_to: string;
+    from_header: string | null;
+    to_header: string | null;
+    subject: string;
+    text_body: string | null;
+    html_body: string | null;
+    raw: string;
   },
 ): Promise<number> {
   const { id } = await db.insertInto('dev_mailbox').values(row).returning('id').executeTakeFirstOrThrow();

@@ -38,8 +38,23 @@
 import type { Kysely, Transaction } from 'kysely';
 import { getConfig } from '../config';
 import type { Database, MailOutboxRow } from '../db/database';
-import { DEFAULT_BACKOFF, computeRetryDelayMs, deriveMessageId, queuedMailSchema, type BackoffPolicy, type DeliveryReport, type QueuedMail } from './mail';
-import { insertOutboxMail, lockNextDueMail, markMailSent, notifyOutbox, readDatabaseNow, recordMailFailure } from './mail.repository';
+import {
+  DEFAULT_BACKOFF,
+  computeRetryDelayMs,
+  deriveMessageId,
+  queuedMailSchema,
+  type BackoffPolicy,
+  type DeliveryReport,
+  type QueuedMail,
+} from './mail';
+import {
+  insertOutboxMail,
+  lockNextDueMail,
+  markMailSent,
+  notifyOutbox,
+  readDatabaseNow,
+  recordMailFailure,
+} from './mail.repository';
 import type { MailTransport } from './transport';
 
 /** Writes a message to the outbox inside the caller's transaction; a repeated idempotency key is a no-op. */

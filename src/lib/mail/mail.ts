@@ -3,8 +3,19 @@ import { z } from 'zod';
 
 // Header names the sender sets itself; a caller overriding them could forge or break a message.
 const RESERVED_HEADERS = new Set([
-  'from', 'to', 'cc', 'bcc', 'subject', 'message-id', 'date', 'sender', 'reply-to', 'return-path',
-  'content-type', 'content-transfer-encoding', 'mime-version',
+  'from',
+  'to',
+  'cc',
+  'bcc',
+  'subject',
+  'message-id',
+  'date',
+  'sender',
+  'reply-to',
+  'return-path',
+  'content-type',
+  'content-transfer-encoding',
+  'mime-version',
 ]);
 
 // No CR or LF anywhere a header value goes: that is how header injection works.
@@ -22,7 +33,10 @@ export const queuedMailSchema = z.object({
   kind: z.string().regex(/^[a-z][a-z0-9_.-]{0,63}$/, 'lower-case word, e.g. verify_email'),
   headers: z
     .record(
-      z.string().regex(/^[A-Za-z][A-Za-z0-9-]{0,63}$/, 'header name').refine((n) => !RESERVED_HEADERS.has(n.toLowerCase()), 'reserved header'),
+      z
+        .string()
+        .regex(/^[A-Za-z][A-Za-z0-9-]{0,63}$/, 'header name')
+        .refine((n) => !RESERVED_HEADERS.has(n.toLowerCase()), 'reserved header'),
       singleLine.pipe(z.string().max(998)),
     )
     .optional(),

@@ -121,7 +121,12 @@ export function decodeBody(body: string, encoding: string | undefined, charset: 
 /** Quoted-printable (RFC 2045 §6.7): `=XX` is a byte, `=` at a line end is a soft break. */
 export function decodeQuotedPrintable(input: string): Uint8Array {
   // Trailing whitespace on a line was added in transport and is dropped (RFC 2045 §6.7 rule 3).
-  return decodeQpOctets(input.replace(/\r\n/g, '\n').replace(/[ \t]+$/gm, '').replace(/=\n/g, ''));
+  return decodeQpOctets(
+    input
+      .replace(/\r\n/g, '\n')
+      .replace(/[ \t]+$/gm, '')
+      .replace(/=\n/g, ''),
+  );
 }
 
 function decodeQpOctets(unwrapped: string): Uint8Array {
@@ -152,10 +157,7 @@ export function decodeEncodedWords(value: string): string {
   // Whitespace between two adjacent encoded words is not part of the text (RFC 2047 §6.2).
   const joined = value.replace(/(=\?[^?]+\?[QqBb]\?[^?]*\?=)\s+(?==\?)/g, '$1');
   return joined.replace(/=\?([^?]+)\?([QqBb])\?([^?]*)\?=/g, (_m, charset: string, kind: string, data: string) => {
-    const bytes =
-      kind.toUpperCase() === 'B'
-        ? Buffer.from(data, 'base64')
-        : decodeQpOctets(data.replace(/_/g, ' '));
+    const bytes = kind.toUpperCase() === 'B' ? Buffer.from(data, 'base64') : decodeQpOctets(data.replace(/_/g, ' '));
     return decodeCharset(bytes, charset);
   });
 }

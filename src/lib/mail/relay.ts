@@ -56,9 +56,14 @@ export async function startMailRelay(options: MailRelayOptions): Promise<Running
           ? session.envelope.rcptTo.map((r) => r.address).filter((a) => isImportDomain(a, options.inboundDomain ?? ''))
           : [];
         if (inbound.length > 0) {
-          void receiveLabMail(options, session.envelope.mailFrom ? session.envelope.mailFrom.address : null, inbound, Buffer.concat(chunks), size, stream.sizeExceeded === true).then(
-            (answer) => callback(answer.error, answer.message),
-          );
+          void receiveLabMail(
+            options,
+            session.envelope.mailFrom ? session.envelope.mailFrom.address : null,
+            inbound,
+            Buffer.concat(chunks),
+            size,
+            stream.sizeExceeded === true,
+          ).then((answer) => callback(answer.error, answer.message));
           return;
         }
         if (stream.sizeExceeded) {
@@ -80,12 +85,16 @@ export async function startMailRelay(options: MailRelayOptions): Promise<Running
           raw,
         }).then(
           (id) => {
-            options.log?.(`[mail-relay] #${id} to ${session.envelope.rcptTo.map((r) => r.address).join(', ')}: ${parsed.subject}`);
+            options.log?.(
+              `[mail-relay] #${id} to ${session.envelope.rcptTo.map((r) => r.address).join(', ')}: ${parsed.subject}`,
+            );
             callback(null, `queued as dev-${id}`);
           },
           // 451 is "try again later": the sender keeps the message rather than losing it.
           (error: unknown) => {
-            options.log?.(`[mail-relay] could not store a message: ${error instanceof Error ? error.message : String(error)}`);
+            options.log?.(
+              `[mail-relay] could not store a message: ${error instanceof Error ? error.message : String(error)}`,
+            );
             callback(Object.assign(new Error('local mailbox unavailable, try again later'), { responseCode: 451 }));
           },
         );
@@ -100,11 +109,13 @@ export async function startMailRelay(options: MailRelayOptions): Promise<Running
 
   const port = await new Promise<number>((resolve, reject) => {
     const onError = (error: NodeJS.ErrnoException) => {
-      reject(new Error(
-        error.code === 'EADDRINUSE'
-          ? `port ${options.port} on ${host} is already in use (another relay running?)`
-          : `cannot listen on ${host}:${options.port}: ${error.message}`,
-      ));
+      reject(
+        new Error(
+          error.code === 'EADDRINUSE'
+            ? `port ${options.port} on ${host} is already in use (another relay running?)`
+            : `cannot listen on ${host}:${options.port}: ${error.message}`,
+        ),
+      );
     };
     server.server.once('error', onError);
     server.listen(options.port, host, () => {
@@ -135,7 +146,13 @@ async function receiveLabMail(
     for (const recipient of recipients) {
       outcomes.push(
         await receiveInboundMail(options.db, {
-          via: 'smtp', envelopeFrom, recipient, raw, domain: options.inboundDomain ?? '', byteSize: tooLarge ? Math.max(size, (options.maxBytes ?? 0) + 1) : size, log: options.log,
+          via: 'smtp',
+          envelopeFrom,
+          recipient,
+          raw,
+          domain: options.inboundDomain ?? '',
+          byteSize: tooLarge ? Math.max(size, (options.maxBytes ?? 0) + 1) : size,
+          log: options.log,
         }),
       );
     }
@@ -149,5 +166,8 @@ async function receiveLabMail(
     return { error: Object.assign(new Error(refused.reason), { responseCode: refused.smtpCode }) };
   }
   options.log?.(`[mail-relay] lab mail to ${recipients.join(', ')}: ${outcomes.map((o) => o.status).join(', ')}`);
-  return { error: null, message: outcomes.every((o) => o.status === 'duplicate') ? 'already received' : 'stored for import' };
+  return {
+    error: null,
+    message: outcomes.every((o) => o.status === 'duplicate') ? 'already received' : 'stored for import',
+  };
 }

@@ -7,7 +7,17 @@ import type { Reading } from '../analysis/types';
 import { hasFigures, type NewOilReference } from './new-oil';
 import type { ProductInUse } from './new-oil.service';
 
-const UNITS: Partial<Record<MeasurandCode, string>> = { KV40: 'mm²/s', KV100: 'mm²/s', TBN: 'mg KOH/g', TAN: 'mg KOH/g', FLASH: '°C', FUEL: '%', WATER: '%', INSOL: '%', VI: '' };
+const UNITS: Partial<Record<MeasurandCode, string>> = {
+  KV40: 'mm²/s',
+  KV100: 'mm²/s',
+  TBN: 'mg KOH/g',
+  TAN: 'mg KOH/g',
+  FLASH: '°C',
+  FUEL: '%',
+  WATER: '%',
+  INSOL: '%',
+  VI: '',
+};
 
 /**
  * One reading of a reference as text: "KV100 14.2 mm²/s", "Zn 1,100 ppm", "B <1 ppm". Keeps two decimals below 100
@@ -27,7 +37,8 @@ export function describeReadings(readings: Partial<Record<MeasurandCode, Reading
 /** Where a reference stands, in words. */
 export function describeReferenceState(ref: NewOilReference): string {
   if (ref.source === 'data-sheet') return `Saved ${ref.updatedAt.toISOString().slice(0, 10)}`;
-  if (!hasFigures(ref)) return `Bottle ${ref.bottleCode} is at the lab: its results are written here when the lab’s file is imported.`;
+  if (!hasFigures(ref))
+    return `Bottle ${ref.bottleCode} is at the lab: its results are written here when the lab’s file is imported.`;
   return `Bottle ${ref.bottleCode}, results of ${ref.resultsOn ?? '—'}`;
 }
 
@@ -50,11 +61,29 @@ export interface ReferenceListItem {
  * The list page: every product with a reference or poured on a machine, those without figures first (they
  * need attention), then by name.
  */
-export function buildReferenceList(references: readonly NewOilReference[], products: readonly ProductInUse[]): ReferenceListItem[] {
+export function buildReferenceList(
+  references: readonly NewOilReference[],
+  products: readonly ProductInUse[],
+): ReferenceListItem[] {
   const byKey = new Map<string, ReferenceListItem>();
-  for (const p of products) byKey.set(p.productKey, { productKey: p.productKey, productName: p.productName, saeGrade: p.saeGrade, machines: p.machines, references: [], inUse: false });
+  for (const p of products)
+    byKey.set(p.productKey, {
+      productKey: p.productKey,
+      productName: p.productName,
+      saeGrade: p.saeGrade,
+      machines: p.machines,
+      references: [],
+      inUse: false,
+    });
   for (const r of references) {
-    const item = byKey.get(r.productKey) ?? { productKey: r.productKey, productName: r.productName, saeGrade: r.saeGrade, machines: 0, references: [], inUse: false };
+    const item = byKey.get(r.productKey) ?? {
+      productKey: r.productKey,
+      productName: r.productName,
+      saeGrade: r.saeGrade,
+      machines: 0,
+      references: [],
+      inUse: false,
+    };
     item.references.push(r);
     if (r.saeGrade && !item.saeGrade) item.saeGrade = r.saeGrade;
     byKey.set(r.productKey, item);
@@ -64,7 +93,11 @@ export function buildReferenceList(references: readonly NewOilReference[], produ
 }
 
 /** The address of the form for a product, prefilled. */
-export function newReferenceHref(productName: string, saeGrade = '', source: 'data-sheet' | 'lab' = 'data-sheet'): string {
+export function newReferenceHref(
+  productName: string,
+  saeGrade = '',
+  source: 'data-sheet' | 'lab' = 'data-sheet',
+): string {
   const q = new URLSearchParams({ source });
   if (productName) q.set('product', productName);
   if (saeGrade) q.set('grade', saeGrade);
@@ -73,7 +106,13 @@ export function newReferenceHref(productName: string, saeGrade = '', source: 'da
 
 /** A reference as the edit form's values. */
 export function referenceFormValues(ref: NewOilReference): Record<string, string> {
-  const out: Record<string, string> = { productName: ref.productName, saeGrade: ref.saeGrade, note: ref.note, bottleCode: ref.bottleCode ?? '' };
-  if (ref.source === 'data-sheet') for (const [code, r] of Object.entries(ref.readings)) if (code !== 'VI' && r) out[code] = String(r.value);
+  const out: Record<string, string> = {
+    productName: ref.productName,
+    saeGrade: ref.saeGrade,
+    note: ref.note,
+    bottleCode: ref.bottleCode ?? '',
+  };
+  if (ref.source === 'data-sheet')
+    for (const [code, r] of Object.entries(ref.readings)) if (code !== 'VI' && r) out[code] = String(r.value);
   return out;
 }

@@ -14,8 +14,13 @@ import { normaliseBottleCode } from '../samples/bottle-code';
 import type { LabReadings } from '../lab-csv/lab-csv';
 import type { PreviewRow } from '../lab-import/lab-import';
 import {
-  buildNewOilLookup, newOilInputSchema, normaliseProductName, readingsFromDataSheet, toNewOilReference,
-  type NewOilLookup, type NewOilReference,
+  buildNewOilLookup,
+  newOilInputSchema,
+  normaliseProductName,
+  readingsFromDataSheet,
+  toNewOilReference,
+  type NewOilLookup,
+  type NewOilReference,
 } from './new-oil';
 import * as repo from './new-oil.repository';
 
@@ -54,7 +59,15 @@ export async function listProductsInUse(db: Db, actor: Actor): Promise<ProductIn
   const byKey = new Map<string, ProductInUse & { machineIds: Set<string> }>();
   for (const r of rows) {
     const key = normaliseProductName(r.oil_product);
-    const entry = byKey.get(key) ?? { productKey: key, productName: r.oil_product.trim(), saeGrade: r.sae_grade, machines: 0, lastChangedOn: r.last_changed_on, references: references.filter((x) => x.productKey === key), machineIds: new Set<string>() };
+    const entry = byKey.get(key) ?? {
+      productKey: key,
+      productName: r.oil_product.trim(),
+      saeGrade: r.sae_grade,
+      machines: 0,
+      lastChangedOn: r.last_changed_on,
+      references: references.filter((x) => x.productKey === key),
+      machineIds: new Set<string>(),
+    };
     for (const id of r.machine_ids) entry.machineIds.add(id);
     entry.machines = entry.machineIds.size;
     if (r.last_changed_on > entry.lastChangedOn) entry.lastChangedOn = r.last_changed_on;
@@ -64,15 +77,32 @@ export async function listProductsInUse(db: Db, actor: Actor): Promise<ProductIn
 }
 
 /** What the machine page says about the oil in the engine: its product and that product's references. */
-export async function describeMachineOil(db: Db, actor: Actor, machineId: string): Promise<{ productName: string; saeGrade: string; references: NewOilReference[] } | null> {
+export async function describeMachineOil(
+  db: Db,
+  actor: Actor,
+  machineId: string,
+): Promise<{ productName: string; saeGrade: string; references: NewOilReference[] } | null> {
   if (!isUuid(machineId)) return null;
   const latest = await repo.findLatestProductOfMachine(db, actor.membership.crewId, machineId);
   if (!latest || latest.oil_product.trim() === '') return null;
-  const refs = await repo.findReferencesOfProduct(db, actor.membership.crewId, normaliseProductName(latest.oil_product));
-  return { productName: latest.oil_product.trim(), saeGrade: latest.sae_grade, references: refs.map(toNewOilReference) };
+  const refs = await repo.findReferencesOfProduct(
+    db,
+    actor.membership.crewId,
+    normaliseProductName(latest.oil_product),
+  );
+  return {
+    productName: latest.oil_product.trim(),
+    saeGrade: latest.sae_grade,
+    references: refs.map(toNewOilReference),
+  };
 }
 
-async function validate(db: Db, actor: Actor, input: unknown, exceptId: string | null): Promise<Result<repo.ReferenceValues>> {
+async function validate(
+  db: Db,
+  actor: Actor,
+  input: unknown,
+  exceptId: string | null,
+): Promise<Result<repo.ReferenceValues>> {
   const parsed = newOilInputSchema.safeParse(input);
   if (!parsed.success) return refuseInvalid(parsed.error);
   const d = parsed.data;
@@ -87,9 +117,10 @@ async function validate(db: Db, actor: Actor, input: unknown, exceptId: string |
   const productKey = normaliseProductName(d.productName);
   const clash = await repo.findClash(db, crewId, productKey, d.source, exceptId);
   if (clash) {
-    fields['productName'] = d.source === 'lab'
-      ? `“${clash.product_name}” already has a lab bottle of new oil registered; open it to change its bottle code.`
-      : `“${clash.product_name}” already has data-sheet figures; open them to change them.`;
+    fields['productName'] =
+      d.source === 'lab'
+        ? `“${clash.product_name}” already has a lab bottle of new oil registered; open it to change its bottle code.`
+        : `“${clash.product_name}” already has data-sheet figures; open them to change them.`;
   }
   let bottleCode: string | null = null;
   let bottleCodeNorm: string | null = null;
@@ -97,25 +128,51 @@ async function validate(db: Db, actor: Actor, input: unknown, exceptId: string |
     bottleCode = d.bottleCode;
     bottleCodeNorm = normaliseBottleCode(d.bottleCode);
     if (await repo.findSampleWithCode(db, crewId, bottleCodeNorm)) {
-      fields['bottleCode'] = `Bottle “${d.bottleCode}” is already a used-oil sample of this crew; the bottle of new oil needs a code of its own.`;
+      fields['bottleCode'] =
+        `Bottle “${d.bottleCode}” is already a used-oil sample of this crew; the bottle of new oil needs a code of its own.`;
     } else {
       const other = await repo.findBottleClash(db, crewId, bottleCodeNorm, exceptId);
-      if (other) fields['bottleCode'] = `Bottle “${d.bottleCode}” is already the new-oil bottle of “${other.product_name}”.`;
+      if (other)
+        fields['bottleCode'] = `Bottle “${d.bottleCode}” is already the new-oil bottle of “${other.product_name}”.`;
     }
   }
   if (Object.keys(fields).length > 0) return refuse(400, 'invalid_input', 'Some fields need attention.', fields);
-  const readings: Record<string, NewOilReadingJson> = d.source === 'data-sheet' ? { ...readingsFromDataSheet(d) } as Record<string, NewOilReadingJson> : {};
-  return succeed({ productName: d.productName.replace(/\s+/g, ' '), productKey, source: d.source, saeGrade, readings, bottleCode, bottleCodeNorm, note: d.note });
+  const readings: Record<string, NewOilReadingJson> =
+    d.source === 'data-sheet' ? ({ ...readingsFromDataSheet(d) } as Record<string, NewOilReadingJson>) : {};
+  return succeed({
+    productName: d.productName.replace(/\s+/g, ' '),
+    productKey,
+    source: d.source,
+    saeGrade,
+    readings,
+    bottleCode,
+    bottleCodeNorm,
+    note: d.note,
+  });
 }
 
 /** Records a new-oil reference of an oil product for the actor's crew. */
-export async function createNewOilReference(db: Kysely<Database>, actor: Actor, input: unknown): Promise<Result<NewOilReference>> {
+export async function createNewOilReference(
+  db: Kysely<Database>,
+  actor: Actor,
+  input: unknown,
+): Promise<Result<NewOilReference>> {
   if (!canRecordNewOilReference(actor.membership)) return refuse(403, 'forbidden', FORBIDDEN);
   return db.transaction().execute(async (trx) => {
     const v = await validate(trx, actor, input, null);
     if (!v.ok) return v;
     const row = await repo.insertReference(trx, actor.membership.crewId, actor.userId, v.value);
-    await recordAuditEvent(trx, { kind: 'new_oil_reference_saved', crewId: actor.membership.crewId, actorUserId: actor.userId, detail: { referenceId: row.id, product: row.product_name, source: row.source, figures: Object.keys(v.value.readings) } });
+    await recordAuditEvent(trx, {
+      kind: 'new_oil_reference_saved',
+      crewId: actor.membership.crewId,
+      actorUserId: actor.userId,
+      detail: {
+        referenceId: row.id,
+        product: row.product_name,
+        source: row.source,
+        figures: Object.keys(v.value.readings),
+      },
+    });
     return succeed(toNewOilReference(row));
   });
 }
@@ -124,30 +181,53 @@ export async function createNewOilReference(db: Kysely<Database>, actor: Actor, 
  * Changes a reference. Its source stays what it was. A lab reference whose bottle code changes loses its
  * results: they belonged to the old bottle, and the new bottle's come with the next import.
  */
-export async function updateNewOilReference(db: Kysely<Database>, actor: Actor, id: string, input: unknown): Promise<Result<NewOilReference>> {
+export async function updateNewOilReference(
+  db: Kysely<Database>,
+  actor: Actor,
+  id: string,
+  input: unknown,
+): Promise<Result<NewOilReference>> {
   if (!canRecordNewOilReference(actor.membership)) return refuse(403, 'forbidden', FORBIDDEN);
   const found = await getNewOilReference(db, actor, id);
   if (!found.ok) return found;
-  const body = typeof input === 'object' && input !== null ? { ...(input as Record<string, unknown>), source: found.value.source } : input;
+  const body =
+    typeof input === 'object' && input !== null
+      ? { ...(input as Record<string, unknown>), source: found.value.source }
+      : input;
   return db.transaction().execute(async (trx) => {
     const v = await validate(trx, actor, body, id);
     if (!v.ok) return v;
-    const clearResults = v.value.source === 'lab' && normaliseBottleCode(found.value.bottleCode ?? '') !== v.value.bottleCodeNorm;
+    const clearResults =
+      v.value.source === 'lab' && normaliseBottleCode(found.value.bottleCode ?? '') !== v.value.bottleCodeNorm;
     const row = await repo.updateReference(trx, actor.membership.crewId, id, v.value, clearResults);
     if (!row) return refuseNotFound('new-oil reference');
-    await recordAuditEvent(trx, { kind: 'new_oil_reference_saved', crewId: actor.membership.crewId, actorUserId: actor.userId, detail: { referenceId: id, product: row.product_name, source: row.source, resultsCleared: clearResults } });
+    await recordAuditEvent(trx, {
+      kind: 'new_oil_reference_saved',
+      crewId: actor.membership.crewId,
+      actorUserId: actor.userId,
+      detail: { referenceId: id, product: row.product_name, source: row.source, resultsCleared: clearResults },
+    });
     return succeed(toNewOilReference(row));
   });
 }
 
 /** Deletes a reference of the crew. */
-export async function deleteNewOilReference(db: Kysely<Database>, actor: Actor, id: string): Promise<Result<{ id: string }>> {
+export async function deleteNewOilReference(
+  db: Kysely<Database>,
+  actor: Actor,
+  id: string,
+): Promise<Result<{ id: string }>> {
   if (!canRecordNewOilReference(actor.membership)) return refuse(403, 'forbidden', FORBIDDEN);
   const found = await getNewOilReference(db, actor, id);
   if (!found.ok) return found;
   return db.transaction().execute(async (trx) => {
     if (!(await repo.deleteReference(trx, actor.membership.crewId, id))) return refuseNotFound('new-oil reference');
-    await recordAuditEvent(trx, { kind: 'new_oil_reference_deleted', crewId: actor.membership.crewId, actorUserId: actor.userId, detail: { referenceId: id, product: found.value.productName, source: found.value.source } });
+    await recordAuditEvent(trx, {
+      kind: 'new_oil_reference_deleted',
+      crewId: actor.membership.crewId,
+      actorUserId: actor.userId,
+      detail: { referenceId: id, product: found.value.productName, source: found.value.source },
+    });
     return succeed({ id });
   });
 }
@@ -190,8 +270,15 @@ export function splitNewOilRows(
       continue;
     }
     newOilRows.push({
-      line: r.line, bottle: r.bottle, bottleNorm: r.bottleNorm, ...bottle, readings: r.readings, sampled: r.sampled, reported: r.reported,
-      errors: r.errors, written: writtenCodes?.has(r.bottleNorm) ?? false,
+      line: r.line,
+      bottle: r.bottle,
+      bottleNorm: r.bottleNorm,
+      ...bottle,
+      readings: r.readings,
+      sampled: r.sampled,
+      reported: r.reported,
+      errors: r.errors,
+      written: writtenCodes?.has(r.bottleNorm) ?? false,
     });
   }
   return { rows: kept, newOilRows };
@@ -200,7 +287,12 @@ export function splitNewOilRows(
 /** The crew's new-oil bottles among a file's normalised codes, by code. */
 export async function findNewOilBottles(db: Db, crewId: string, codes: readonly string[]) {
   const rows = await repo.findReferenceBottles(db, crewId, [...new Set(codes)]);
-  return new Map(rows.map((r) => [r.bottle_code_norm!, { referenceId: r.id, productName: r.product_name, hasResults: r.lab_import_id !== null }]));
+  return new Map(
+    rows.map((r) => [
+      r.bottle_code_norm!,
+      { referenceId: r.id, productName: r.product_name, hasResults: r.lab_import_id !== null },
+    ]),
+  );
 }
 
 /** The reference bottles an import wrote, by normalised code (to show an imported file as it was written). */
@@ -209,10 +301,17 @@ export function findNewOilCodesWrittenBy(db: Db, importId: string): Promise<Set<
 }
 
 /** Writes the new-oil rows of a confirmed import into their references, inside the import's transaction. */
-export async function writeNewOilResults(trx: Db, crewId: string, rows: readonly NewOilImportRow[], importId: string, today: string): Promise<number> {
+export async function writeNewOilResults(
+  trx: Db,
+  crewId: string,
+  rows: readonly NewOilImportRow[],
+  importId: string,
+  today: string,
+): Promise<number> {
   for (const row of rows) {
     const readings: Record<string, NewOilReadingJson> = {};
-    for (const [code, r] of Object.entries(row.readings)) if (r) readings[code] = r.qualifier ? { value: r.value, qualifier: r.qualifier } : { value: r.value };
+    for (const [code, r] of Object.entries(row.readings))
+      if (r) readings[code] = r.qualifier ? { value: r.value, qualifier: r.qualifier } : { value: r.value };
     await repo.writeLabResults(trx, crewId, row.referenceId, readings, importId, row.sampled ?? row.reported ?? today);
   }
   return rows.length;

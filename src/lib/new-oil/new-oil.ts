@@ -45,11 +45,20 @@ export function toNewOilReference(row: NewOilReferenceRow): NewOilReference {
   const readings: Partial<Record<MeasurandCode, Reading>> = {};
   for (const [code, r] of Object.entries(row.readings ?? {})) {
     if (!isMeasurandCode(code) || typeof r?.value !== 'number') continue;
-    readings[code] = r.qualifier === '<' || r.qualifier === '>' ? { value: r.value, qualifier: r.qualifier } : { value: r.value };
+    readings[code] =
+      r.qualifier === '<' || r.qualifier === '>' ? { value: r.value, qualifier: r.qualifier } : { value: r.value };
   }
   return {
-    id: row.id, productName: row.product_name, productKey: row.product_key, source: row.source, saeGrade: row.sae_grade, readings,
-    bottleCode: row.bottle_code, resultsOn: row.results_on, note: row.note, updatedAt: row.updated_at,
+    id: row.id,
+    productName: row.product_name,
+    productKey: row.product_key,
+    source: row.source,
+    saeGrade: row.sae_grade,
+    readings,
+    bottleCode: row.bottle_code,
+    resultsOn: row.results_on,
+    note: row.note,
+    updatedAt: row.updated_at,
   };
 }
 
@@ -64,7 +73,17 @@ export function hasFigures(ref: Pick<NewOilReference, 'readings'>): boolean {
  * Figures a data sheet gives, in the form's order. Additives are the elements oils are blended with
  * (PRODUCT.md's additive set plus boron and sodium, which many motorcycle oils also carry).
  */
-export const DATA_SHEET_ADDITIVES = ['Ca', 'Mg', 'Zn', 'P', 'Mo', 'B', 'Na', 'Ba', 'S'] as const satisfies readonly MeasurandCode[];
+export const DATA_SHEET_ADDITIVES = [
+  'Ca',
+  'Mg',
+  'Zn',
+  'P',
+  'Mo',
+  'B',
+  'Na',
+  'Ba',
+  'S',
+] as const satisfies readonly MeasurandCode[];
 export const DATA_SHEET_CONDITION = ['KV100', 'KV40', 'TBN'] as const satisfies readonly MeasurandCode[];
 export const DATA_SHEET_FIELDS: readonly MeasurandCode[] = [...DATA_SHEET_CONDITION, ...DATA_SHEET_ADDITIVES];
 
@@ -75,15 +94,19 @@ export const DATA_SHEET_FIELDS: readonly MeasurandCode[] = [...DATA_SHEET_CONDIT
  * marine cylinder oils. Additives: no element of an engine oil's additive pack comes near 20,000 ppm (2 %).
  * Ceilings are common practice, no published source; they catch a slipped decimal point or unit.
  */
-export const FIGURE_RANGES: Record<(typeof DATA_SHEET_FIELDS)[number], { min: number; max: number; unit: string }> = Object.fromEntries(
-  DATA_SHEET_FIELDS.map((code) => [
-    code,
-    code === 'KV100' ? { min: 2, max: 100, unit: 'mm²/s' }
-      : code === 'KV40' ? { min: 2, max: 2000, unit: 'mm²/s' }
-        : code === 'TBN' ? { min: 0, max: 50, unit: 'mg KOH/g' }
-          : { min: 0, max: 20_000, unit: 'ppm' },
-  ]),
-) as Record<MeasurandCode, { min: number; max: number; unit: string }>;
+export const FIGURE_RANGES: Record<(typeof DATA_SHEET_FIELDS)[number], { min: number; max: number; unit: string }> =
+  Object.fromEntries(
+    DATA_SHEET_FIELDS.map((code) => [
+      code,
+      code === 'KV100'
+        ? { min: 2, max: 100, unit: 'mm²/s' }
+        : code === 'KV40'
+          ? { min: 2, max: 2000, unit: 'mm²/s' }
+          : code === 'TBN'
+            ? { min: 0, max: 50, unit: 'mg KOH/g' }
+            : { min: 0, max: 20_000, unit: 'ppm' },
+    ]),
+  ) as Record<MeasurandCode, { min: number; max: number; unit: string }>;
 
 /**
  * A figure from a form or JSON: '' is absent; a decimal comma is read as a point when it is the only
@@ -104,38 +127,60 @@ function figure(code: MeasurandCode) {
   const name = getMeasurand(code).name;
   return z.preprocess(
     readFigure,
-    z.number({ error: `${name} must be a number, such as ${code === 'KV100' ? '14.2' : code === 'KV40' ? '98' : code === 'TBN' ? '8.5' : '1100'}.` })
+    z
+      .number({
+        error: `${name} must be a number, such as ${code === 'KV100' ? '14.2' : code === 'KV40' ? '98' : code === 'TBN' ? '8.5' : '1100'}.`,
+      })
       .refine(Number.isFinite, `${name} must be a number.`)
       .refine((n) => n >= r.min, `${name} cannot be below ${r.min} ${r.unit}.`)
-      .refine((n) => n <= r.max, `${name} above ${r.max.toLocaleString('en-US')} ${r.unit} is not an engine oil's figure; check the unit and the decimal point.`)
+      .refine(
+        (n) => n <= r.max,
+        `${name} above ${r.max.toLocaleString('en-US')} ${r.unit} is not an engine oil's figure; check the unit and the decimal point.`,
+      )
       .optional(),
   );
 }
 
-const figuresShape = Object.fromEntries(DATA_SHEET_FIELDS.map((c) => [c, figure(c)])) as Record<MeasurandCode, ReturnType<typeof figure>>;
+const figuresShape = Object.fromEntries(DATA_SHEET_FIELDS.map((c) => [c, figure(c)])) as Record<
+  MeasurandCode,
+  ReturnType<typeof figure>
+>;
 
-const productName = text(120, 'oil product').pipe(z.string().min(1, 'Name the oil product as on the bottle, e.g. Tarnwell 10W-40 Semi-Synthetic.'));
+const productName = text(120, 'oil product').pipe(
+  z.string().min(1, 'Name the oil product as on the bottle, e.g. Tarnwell 10W-40 Semi-Synthetic.'),
+);
 const saeGradeText = text(20, 'SAE grade');
 const note = text(500, 'note');
 
 /** A data-sheet reference: the product, its grade, and the figures typed from its data sheet. */
-export const dataSheetInputSchema = z.object({
-  source: z.literal('data-sheet'),
-  productName,
-  saeGrade: saeGradeText,
-  note,
-  ...figuresShape,
-}).superRefine((v, ctx) => {
-  const given = DATA_SHEET_FIELDS.filter((c) => v[c] !== undefined);
-  if (given.length === 0) {
-    ctx.addIssue({ code: 'custom', path: ['KV100'], message: 'Enter at least one figure from the data sheet; the viscosity at 100 °C is the one the viscosity rule uses.' });
-  }
-  const kv40 = v.KV40;
-  const kv100 = v.KV100;
-  if (kv40 !== undefined && kv100 !== undefined && kv40 <= kv100) {
-    ctx.addIssue({ code: 'custom', path: ['KV40'], message: `The viscosity at 40 °C (${kv40}) must be higher than the one at 100 °C (${kv100}): oil thins as it warms. Check whether the two were swapped.` });
-  }
-});
+export const dataSheetInputSchema = z
+  .object({
+    source: z.literal('data-sheet'),
+    productName,
+    saeGrade: saeGradeText,
+    note,
+    ...figuresShape,
+  })
+  .superRefine((v, ctx) => {
+    const given = DATA_SHEET_FIELDS.filter((c) => v[c] !== undefined);
+    if (given.length === 0) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['KV100'],
+        message:
+          'Enter at least one figure from the data sheet; the viscosity at 100 °C is the one the viscosity rule uses.',
+      });
+    }
+    const kv40 = v.KV40;
+    const kv100 = v.KV100;
+    if (kv40 !== undefined && kv100 !== undefined && kv40 <= kv100) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['KV40'],
+        message: `The viscosity at 40 °C (${kv40}) must be higher than the one at 100 °C (${kv100}): oil thins as it warms. Check whether the two were swapped.`,
+      });
+    }
+  });
 
 /** A lab reference: the product, its grade and the code of the bottle of new oil sent to the lab. */
 export const labInputSchema = z.object({
@@ -143,7 +188,8 @@ export const labInputSchema = z.object({
   productName,
   saeGrade: saeGradeText,
   note,
-  bottleCode: text(64, 'bottle code').pipe(z.string().min(1, 'Enter the code on the bottle of new oil sent to the lab.'))
+  bottleCode: text(64, 'bottle code')
+    .pipe(z.string().min(1, 'Enter the code on the bottle of new oil sent to the lab.'))
     .refine((c) => normaliseBottleCode(c).length > 0, 'A bottle code needs letters or digits.'),
 });
 
@@ -154,7 +200,9 @@ export const newOilInputSchema = z.discriminatedUnion('source', [dataSheetInputS
 export type NewOilInput = z.infer<typeof newOilInputSchema>;
 
 /** The readings a data-sheet input stores; the viscosity index is worked out (ASTM D2270) when both viscosities are given. */
-export function readingsFromDataSheet(input: Extract<NewOilInput, { source: 'data-sheet' }>): Partial<Record<MeasurandCode, Reading>> {
+export function readingsFromDataSheet(
+  input: Extract<NewOilInput, { source: 'data-sheet' }>,
+): Partial<Record<MeasurandCode, Reading>> {
   const out: Partial<Record<MeasurandCode, Reading>> = {};
   for (const code of DATA_SHEET_FIELDS) {
     const v = input[code as keyof typeof input];
@@ -187,17 +235,22 @@ export type NewOilLookup = ReadonlyMap<string, NewOilForAnalysis>;
  * is the oil actually poured, measured the way the used samples are); a lab bottle without results yet does
  * not count. The KV100 comes from the chosen reference, else from the other one.
  */
-export function chooseNewOilForAnalysis(refs: readonly Pick<NewOilReference, 'source' | 'readings'>[]): NewOilForAnalysis | null {
+export function chooseNewOilForAnalysis(
+  refs: readonly Pick<NewOilReference, 'source' | 'readings'>[],
+): NewOilForAnalysis | null {
   const withFigures = refs.filter(hasFigures);
   const chosen = withFigures.find((r) => r.source === 'lab') ?? withFigures.find((r) => r.source === 'data-sheet');
   if (!chosen) return null;
   const kv100 = chosen.readings.KV100?.qualifier === undefined ? chosen.readings.KV100?.value : undefined;
-  const fallback = withFigures.find((r) => r !== chosen && r.readings.KV100 && r.readings.KV100.qualifier === undefined)?.readings.KV100?.value;
+  const fallback = withFigures.find((r) => r !== chosen && r.readings.KV100 && r.readings.KV100.qualifier === undefined)
+    ?.readings.KV100?.value;
   return { newOil: { source: chosen.source, readings: { ...chosen.readings } }, newOilKv100: kv100 ?? fallback };
 }
 
 /** The crew's references grouped by product key, as the engine will read them. */
-export function buildNewOilLookup(refs: readonly Pick<NewOilReference, 'productKey' | 'source' | 'readings'>[]): NewOilLookup {
+export function buildNewOilLookup(
+  refs: readonly Pick<NewOilReference, 'productKey' | 'source' | 'readings'>[],
+): NewOilLookup {
   const byKey = new Map<string, Pick<NewOilReference, 'source' | 'readings'>[]>();
   for (const r of refs) byKey.set(r.productKey, [...(byKey.get(r.productKey) ?? []), r]);
   const out = new Map<string, NewOilForAnalysis>();

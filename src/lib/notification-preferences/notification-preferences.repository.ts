@@ -19,7 +19,11 @@ export async function findDeliveries(db: Db, crewId: string, kind: NotificationK
 
 /** Every stored choice of one user. */
 export async function listUserPreferences(db: Db, userId: string) {
-  return db.selectFrom('notification_preferences').select(['crew_id', 'kind', 'delivery']).where('user_id', '=', userId).execute();
+  return db
+    .selectFrom('notification_preferences')
+    .select(['crew_id', 'kind', 'delivery'])
+    .where('user_id', '=', userId)
+    .execute();
 }
 
 /** The crews a user belongs to, with role, by name. */
@@ -34,10 +38,15 @@ export async function listUserCrews(db: Db, userId: string) {
 }
 
 /** Writes one choice (insert or replace). */
-export async function upsertPreference(db: Db, row: { userId: string; crewId: string; kind: NotificationKind; delivery: NotificationDelivery }) {
+export async function upsertPreference(
+  db: Db,
+  row: { userId: string; crewId: string; kind: NotificationKind; delivery: NotificationDelivery },
+) {
   await db
     .insertInto('notification_preferences')
     .values({ user_id: row.userId, crew_id: row.crewId, kind: row.kind, delivery: row.delivery })
-    .onConflict((oc) => oc.columns(['user_id', 'crew_id', 'kind']).doUpdateSet({ delivery: row.delivery, updated_at: new Date() }))
+    .onConflict((oc) =>
+      oc.columns(['user_id', 'crew_id', 'kind']).doUpdateSet({ delivery: row.delivery, updated_at: new Date() }),
+    )
     .execute();
 }

@@ -3,7 +3,12 @@ import type { Kysely, Transaction } from 'kysely';
 import type { Database, NotificationDelivery, NotificationKind, Role } from '../db/database';
 import { refuseNotFound, succeed, type Result } from '../http/result';
 import { DEFAULT_DELIVERY, NOTIFICATION_KINDS, type PreferenceChoice } from './notification-preferences';
-import { findDeliveries, listUserCrews, listUserPreferences, upsertPreference } from './notification-preferences.repository';
+import {
+  findDeliveries,
+  listUserCrews,
+  listUserPreferences,
+  upsertPreference,
+} from './notification-preferences.repository';
 
 type Db = Kysely<Database> | Transaction<Database>;
 
@@ -25,7 +30,12 @@ export async function loadUserPreferences(db: Db, userId: string): Promise<CrewP
 }
 
 /** How each user wants this kind of message from this crew. */
-export async function resolveDeliveries(db: Db, crewId: string, kind: NotificationKind, userIds: readonly string[]): Promise<Map<string, NotificationDelivery>> {
+export async function resolveDeliveries(
+  db: Db,
+  crewId: string,
+  kind: NotificationKind,
+  userIds: readonly string[],
+): Promise<Map<string, NotificationDelivery>> {
   const stored = await findDeliveries(db, crewId, kind, userIds);
   return new Map(userIds.map((id) => [id, stored.get(id) ?? DEFAULT_DELIVERY[kind]]));
 }
@@ -34,11 +44,16 @@ export async function resolveDeliveries(db: Db, crewId: string, kind: Notificati
  * Saves the user's choices in one transaction; a choice for a crew the user is not a member of is refused
  * (a forged form must not create rows for other crews) and, like any other crew's record, answers not found.
  */
-export async function saveUserPreferences(db: Kysely<Database>, userId: string, choices: readonly PreferenceChoice[]): Promise<Result<void>> {
+export async function saveUserPreferences(
+  db: Kysely<Database>,
+  userId: string,
+  choices: readonly PreferenceChoice[],
+): Promise<Result<void>> {
   return db.transaction().execute(async (trx) => {
     const crews = new Set((await listUserCrews(trx, userId)).map((c) => c.crew_id));
     if (choices.some((c) => !crews.has(c.crewId))) return refuseNotFound();
-    for (const c of choices) await upsertPreference(trx, { userId, crewId: c.crewId, kind: c.kind, delivery: c.delivery });
+    for (const c of choices)
+      await upsertPreference(trx, { userId, crewId: c.crewId, kind: c.kind, delivery: c.delivery });
     return succeed(undefined);
   });
 }

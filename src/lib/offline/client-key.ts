@@ -7,5 +7,8 @@ import { z } from 'zod';
  */
 export const clientKeySchema = z.preprocess(
   (v) => (v === '' ? undefined : v),
-  z.string().regex(/^[A-Za-z0-9_-]{8,64}$/, 'Not a valid card key.').optional(),
+  z
+    .string()
+    .regex(/^[A-Za-z0-9_-]{8,64}$/, 'Not a valid card key.')
+    .optional(),
 );

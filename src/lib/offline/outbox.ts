@@ -65,7 +65,11 @@ export function requestOf(item: OutboxItem): OutboxRequest {
     case 'drain-card':
       return { url: '/api/samples', json: { ...json, machineId: item.machineId }, multipart: false };
     case 'oil-change':
-      return { url: `/api/machines/${encodeURIComponent(item.machineId)}/oil-changes`, json, multipart: item.photos.length > 0 };
+      return {
+        url: `/api/machines/${encodeURIComponent(item.machineId)}/oil-changes`,
+        json,
+        multipart: item.photos.length > 0,
+      };
     case 'wear-reading':
       return { url: `/api/wear-parts/${encodeURIComponent(item.partId ?? '')}/measurements`, json, multipart: false };
   }
@@ -91,7 +95,12 @@ export function resultUrlOf(item: OutboxItem, body: unknown): string {
 export type SendVerdict =
   | { kind: 'sent'; url: string }
   | { kind: 'retry' }
-  | { kind: 'hold'; state: Exclude<OutboxState, 'waiting' | 'sending'>; message: string; fields?: Record<string, string> };
+  | {
+      kind: 'hold';
+      state: Exclude<OutboxState, 'waiting' | 'sending'>;
+      message: string;
+      fields?: Record<string, string>;
+    };
 
 const SIGN_IN = 'Your session has ended. Sign in again with the same account and it will be sent.';
 
@@ -110,7 +119,12 @@ export function judgeAnswer(item: OutboxItem, status: number | null, body: unkno
   const fields = b.error?.fields ?? {};
   // The sentence beside the field says most (e.g. which sample already has the bottle code).
   const first = Object.values(fields)[0];
-  return { kind: 'hold', state: 'refused', message: first && first !== message ? `${message} ${first}` : message, fields };
+  return {
+    kind: 'hold',
+    state: 'refused',
+    message: first && first !== message ? `${message} ${first}` : message,
+    fields,
+  };
 }
 
 /**
@@ -118,23 +132,40 @@ export function judgeAnswer(item: OutboxItem, status: number | null, body: unkno
  * out or another account: wait for sign-in. Another crew of the same rider: wait for a switch. A crew the
  * rider left: kept with a sentence, never sent elsewhere.
  */
-export function checkSession(item: OutboxItem, session: OutboxSession | null): { ok: true } | { ok: false; state: OutboxState; message: string } {
+export function checkSession(
+  item: OutboxItem,
+  session: OutboxSession | null,
+): { ok: true } | { ok: false; state: OutboxState; message: string } {
   if (!session) return { ok: false, state: 'sign-in', message: SIGN_IN };
   if (session.userId !== item.userId) {
-    return { ok: false, state: 'sign-in', message: 'Saved under another account. Sign in with that account to send it.' };
+    return {
+      ok: false,
+      state: 'sign-in',
+      message: 'Saved under another account. Sign in with that account to send it.',
+    };
   }
   if (!session.crews.some((c) => c.crewId === item.crewId)) {
-    return { ok: false, state: 'not-member', message: `You are no longer a member of ${item.crewName}, so this cannot be sent. Copy what you need, then discard it.` };
+    return {
+      ok: false,
+      state: 'not-member',
+      message: `You are no longer a member of ${item.crewName}, so this cannot be sent. Copy what you need, then discard it.`,
+    };
   }
   if (session.crewId !== item.crewId) {
-    return { ok: false, state: 'other-crew', message: `Saved in ${item.crewName}. Switch to that crew and it will be sent.` };
+    return {
+      ok: false,
+      state: 'other-crew',
+      message: `Saved in ${item.crewName}. Switch to that crew and it will be sent.`,
+    };
   }
   return { ok: true };
 }
 
 /** Items the outbox tries to send now: everything not refused and not left behind in a crew the rider left. */
 export function sendable(items: readonly OutboxItem[]): OutboxItem[] {
-  return items.filter((i) => i.state !== 'refused' && i.state !== 'not-member').sort((a, b) => a.savedAt.localeCompare(b.savedAt));
+  return items
+    .filter((i) => i.state !== 'refused' && i.state !== 'not-member')
+    .sort((a, b) => a.savedAt.localeCompare(b.savedAt));
 }
 
 /** The word, shape and tone each state is shown with (never colour alone). */
@@ -152,6 +183,7 @@ export function labelOf(kind: OutboxKind, fields: Record<string, string | string
   const f = (name: string) => String(fields[name] ?? '').trim();
   const at = `${f('odometer') || '?'}${unit ? ` ${unit}` : ''}`;
   if (kind === 'drain-card') return `Bottle ${f('bottleCode') || '(no code)'}, ${at}`;
-  if (kind === 'oil-change') return `${f('changedOn') || '(no date)'} at ${at}${f('saeGrade') ? `, ${f('saeGrade')}` : ''}`;
+  if (kind === 'oil-change')
+    return `${f('changedOn') || '(no date)'} at ${at}${f('saeGrade') ? `, ${f('saeGrade')}` : ''}`;
   return `${f('measuredOn') || '(no date)'} at ${at}`;
 }

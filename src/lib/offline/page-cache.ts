@@ -13,8 +13,10 @@ export const SAVED_COPY_ATTRIBUTE = 'data-saved-copy';
  */
 export function isCacheablePage(pathname: string): boolean {
   if (pathname === '/' || pathname === '/machines' || pathname === '/samples' || pathname === '/outbox') return true;
-  return /^\/machines\/[0-9a-f-]{36}(\/(drain-card|oil-change|history|wear-parts\/[0-9a-f-]{36}))?$/.test(pathname)
-    || /^\/samples\/[0-9a-f-]{36}(\/tag)?$/.test(pathname);
+  return (
+    /^\/machines\/[0-9a-f-]{36}(\/(drain-card|oil-change|history|wear-parts\/[0-9a-f-]{36}))?$/.test(pathname) ||
+    /^\/samples\/[0-9a-f-]{36}(\/tag)?$/.test(pathname)
+  );
 }
 
 /** Marks a saved page's HTML as a saved copy (the page script shows "offline: showing what was saved at …"). */
@@ -26,6 +28,8 @@ export function markSavedCopy(html: string, savedAt: string): string {
 /** The sentence a saved copy shows. */
 export function savedCopySentence(savedAt: string, locale?: string, timeZone?: string): string {
   const d = new Date(savedAt);
-  const when = Number.isNaN(d.getTime()) ? 'an earlier visit' : d.toLocaleString(locale ?? 'en-GB', { dateStyle: 'medium', timeStyle: 'short', timeZone });
+  const when = Number.isNaN(d.getTime())
+    ? 'an earlier visit'
+    : d.toLocaleString(locale ?? 'en-GB', { dateStyle: 'medium', timeStyle: 'short', timeZone });
   return `You are offline: showing what was saved at ${when}. What you save now is kept on this device and sent when the network returns.`;
 }

@@ -28,9 +28,19 @@ export interface OilChange {
 /** Maps a row to the domain shape (the distance is filled in by the list). */
 export function toOilChange(row: OilChangeRow, distanceSincePrevious: number | null = null): OilChange {
   return {
-    id: row.id, machineId: row.machine_id, changedOn: row.changed_on, odometer: row.odometer, meterReplaced: row.meter_replaced,
-    oilProduct: row.oil_product, saeGrade: row.sae_grade, volumeL: row.volume_l, filterChanged: row.filter_changed,
-    topUpL: row.top_up_l, otherWork: row.other_work, notes: row.notes, distanceSincePrevious,
+    id: row.id,
+    machineId: row.machine_id,
+    changedOn: row.changed_on,
+    odometer: row.odometer,
+    meterReplaced: row.meter_replaced,
+    oilProduct: row.oil_product,
+    saeGrade: row.sae_grade,
+    volumeL: row.volume_l,
+    filterChanged: row.filter_changed,
+    topUpL: row.top_up_l,
+    otherWork: row.other_work,
+    notes: row.notes,
+    distanceSincePrevious,
   };
 }
 
@@ -45,8 +55,9 @@ export function computeDistances(rowsOldestFirst: readonly OilChangeRow[]): OilC
 
 /** Other work done: one item per line in the form, or an array in JSON. */
 const otherWorkSchema = z.preprocess(
-  (v) => (typeof v === 'string' ? v.split(/\r?\n/) : v ?? []),
-  z.array(z.string().trim().max(200, 'Keep each item of other work under 200 characters.'))
+  (v) => (typeof v === 'string' ? v.split(/\r?\n/) : (v ?? [])),
+  z
+    .array(z.string().trim().max(200, 'Keep each item of other work under 200 characters.'))
     .transform((a) => a.filter((s) => s !== ''))
     .pipe(z.array(z.string()).max(20, 'List at most 20 items of other work.')),
 );
@@ -60,12 +71,19 @@ export const oilChangeInputSchema = z.object({
   meterReplaced: checkbox,
   oilProduct: text(120, 'oil product'),
   saeGrade: z.preprocess((v) => v ?? '', z.string()),
-  volumeL: optionalNumber('volume').pipe(z.number().gt(0, 'The volume must be more than 0 L.').lt(40, 'The volume must be under 40 L.').optional()),
+  volumeL: optionalNumber('volume').pipe(
+    z.number().gt(0, 'The volume must be more than 0 L.').lt(40, 'The volume must be under 40 L.').optional(),
+  ),
   filterChanged: checkbox,
-  topUpL: optionalNumber('top-up').pipe(z.number().min(0, 'The top-up cannot be negative.').lt(40, 'The top-up must be under 40 L.').optional()),
+  topUpL: optionalNumber('top-up').pipe(
+    z.number().min(0, 'The top-up cannot be negative.').lt(40, 'The top-up must be under 40 L.').optional(),
+  ),
   otherWork: otherWorkSchema,
   notes: text(2000, 'notes'),
-  photoIds: z.preprocess((v) => (typeof v === 'string' ? [v] : v ?? []), z.array(uuid).max(20, 'Attach at most 20 photos.')),
+  photoIds: z.preprocess(
+    (v) => (typeof v === 'string' ? [v] : (v ?? [])),
+    z.array(uuid).max(20, 'Attach at most 20 photos.'),
+  ),
   clientKey: clientKeySchema,
 });
 export type OilChangeInput = z.infer<typeof oilChangeInputSchema>;
@@ -74,7 +92,9 @@ export type OilChangeInput = z.infer<typeof oilChangeInputSchema>;
 export function explainAbsurdOdometer(stored: number, meter: MeterUnit): string | null {
   const ceiling = meter === 'h' ? ODOMETER_CEILING.h : ODOMETER_CEILING.distance;
   if (stored > ceiling) {
-    return meter === 'h' ? 'That is more engine hours than any machine runs; check the reading.' : 'That is further than any engine runs; check the reading.';
+    return meter === 'h'
+      ? 'That is more engine hours than any machine runs; check the reading.'
+      : 'That is further than any engine runs; check the reading.';
   }
   return null;
 }

@@ -18,7 +18,10 @@ export type SaeGradeResult = { ok: true; grade: string } | { ok: false; message:
 /** Parses a grade as typed ('10w40', 'SAE 10W-40', '30', '15W') into its J300 spelling, or says why not. */
 export function parseSaeGrade(input: string): SaeGradeResult {
   if (input.length > MAX_SAE_GRADE_TEXT) {
-    return { ok: false, message: `An SAE grade name is short, such as 10W-40; this entry has ${input.length} characters.` };
+    return {
+      ok: false,
+      message: `An SAE grade name is short, such as 10W-40; this entry has ${input.length} characters.`,
+    };
   }
   // Spaces go first, so the pattern has no two neighbouring quantifiers that match the same text (linear time).
   const text = input.toUpperCase().replace(/\s+/g, '').replace(/^SAE/, '');

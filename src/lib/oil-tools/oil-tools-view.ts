@@ -5,7 +5,14 @@
  */
 import type { RecommendedGrade } from '../db/database';
 import { toCelsius, type TemperatureUnit } from '../units/units';
-import { checkGradeSuitsRiding, readNumber, runGradeOf, runSaybolt, runViscosityAt, runViscosityIndex } from './oil-tools';
+import {
+  checkGradeSuitsRiding,
+  readNumber,
+  runGradeOf,
+  runSaybolt,
+  runViscosityAt,
+  runViscosityIndex,
+} from './oil-tools';
 
 /** A machine the suitability check can use. */
 export interface ToolMachine {
@@ -17,7 +24,14 @@ export interface ToolMachine {
 export type SuitsCheck =
   | { state: 'idle' }
   | { state: 'error'; fields: Record<string, string> }
-  | { state: 'ok'; machine: string; grade: string; lo: number; hi: number; result: ReturnType<typeof checkGradeSuitsRiding> };
+  | {
+      state: 'ok';
+      machine: string;
+      grade: string;
+      lo: number;
+      hi: number;
+      result: ReturnType<typeof checkGradeSuitsRiding>;
+    };
 
 /** Checks the "suits your riding" form: temperatures in the user's unit, the machine one of the crew's. */
 export function runSuitsCheck(p: URLSearchParams, unit: TemperatureUnit, machines: readonly ToolMachine[]): SuitsCheck {
@@ -31,9 +45,18 @@ export function runSuitsCheck(p: URLSearchParams, unit: TemperatureUnit, machine
   const hi = readNumber(p, 'high');
   if (typeof lo !== 'number') fields['low'] = 'Enter the coldest riding temperature as a number.';
   if (typeof hi !== 'number') fields['high'] = 'Enter the hottest riding temperature as a number.';
-  if (m && m.recommendedGrades.length === 0) fields['machine'] = 'This machine has no temperature chart from its manual yet; add it on the machine’s page.';
-  if (Object.keys(fields).length || !m || typeof lo !== 'number' || typeof hi !== 'number') return { state: 'error', fields };
-  return { state: 'ok', machine: m.name, grade: g, lo, hi, result: checkGradeSuitsRiding(m.recommendedGrades, g, toCelsius(lo, unit), toCelsius(hi, unit)) };
+  if (m && m.recommendedGrades.length === 0)
+    fields['machine'] = 'This machine has no temperature chart from its manual yet; add it on the machine’s page.';
+  if (Object.keys(fields).length || !m || typeof lo !== 'number' || typeof hi !== 'number')
+    return { state: 'error', fields };
+  return {
+    state: 'ok',
+    machine: m.name,
+    grade: g,
+    lo,
+    hi,
+    result: checkGradeSuitsRiding(m.recommendedGrades, g, toCelsius(lo, unit), toCelsius(hi, unit)),
+  };
 }
 
 /** Everything the oil tools page shows for one request. */
@@ -44,11 +67,20 @@ export function buildOilToolsView(p: URLSearchParams, unit: TemperatureUnit, mac
   const grade = runGradeOf(p);
   const suit = runSuitsCheck(p, unit, machines);
   return {
-    unit, deg: `°${unit}`, machines, selectedMachine: p.get('machine'), vi, sus, at, grade, suit,
+    unit,
+    deg: `°${unit}`,
+    machines,
+    selectedMachine: p.get('machine'),
+    vi,
+    sus,
+    at,
+    grade,
+    suit,
     /** The message beside a field of a tool whose answer was an error. */
-    errorOf: (r: { state: string; fields?: Record<string, string> }, field: string) => (r.state === 'error' ? r.fields?.[field] : undefined),
+    errorOf: (r: { state: string; fields?: Record<string, string> }, field: string) =>
+      r.state === 'error' ? r.fields?.[field] : undefined,
     /** The value a field is refilled with: only the tool that was sent keeps its values. */
-    valueOf: (name: string, tool: string) => (p.get('tool') === tool ? p.get(name) ?? '' : ''),
+    valueOf: (name: string, tool: string) => (p.get('tool') === tool ? (p.get(name) ?? '') : ''),
   };
 }
 

@@ -3,12 +3,20 @@
  * RangeErrors into messages beside the field. Pure: no database, no Astro.
  */
 import {
-  explainUnusualViscosityIndex, findGradeWindow, SAE_J300_MIN_HTHS, saeGradesOf, sayboltSeconds, viscosityAt, viscosityIndex, type SaeHighTempGrade,
+  explainUnusualViscosityIndex,
+  findGradeWindow,
+  SAE_J300_MIN_HTHS,
+  saeGradesOf,
+  sayboltSeconds,
+  viscosityAt,
+  viscosityIndex,
+  type SaeHighTempGrade,
 } from '~/lib/analysis';
 import type { RecommendedGrade } from '~/lib/db/database';
 import { fromCelsius, toCelsius, type TemperatureUnit } from '~/lib/units/units';
 
-export type ToolResult<T> = { state: 'idle' } | { state: 'ok'; value: T } | { state: 'error'; fields: Record<string, string>; message?: string };
+export type ToolResult<T> =
+  { state: 'idle' } | { state: 'ok'; value: T } | { state: 'error'; fields: Record<string, string>; message?: string };
 
 /** A number from a form field: '' is missing; a decimal comma is accepted. */
 export function readNumber(params: URLSearchParams, name: string): number | undefined | 'invalid' {
@@ -18,7 +26,10 @@ export function readNumber(params: URLSearchParams, name: string): number | unde
   return Number.isFinite(n) ? n : 'invalid';
 }
 
-function needNumbers(params: URLSearchParams, names: Record<string, string>): { values: Record<string, number> } | { fields: Record<string, string> } {
+function needNumbers(
+  params: URLSearchParams,
+  names: Record<string, string>,
+): { values: Record<string, number> } | { fields: Record<string, string> } {
   const values: Record<string, number> = {};
   const fields: Record<string, string> = {};
   for (const [name, label] of Object.entries(names)) {
@@ -62,9 +73,16 @@ export function runSaybolt(params: URLSearchParams, unit: TemperatureUnit): Tool
 }
 
 /** Viscosity at another temperature (ASTM D341) from KV40 and KV100; temperature in the user's unit. */
-export function runViscosityAt(params: URLSearchParams, unit: TemperatureUnit): ToolResult<{ kv: number; tempC: number }> {
+export function runViscosityAt(
+  params: URLSearchParams,
+  unit: TemperatureUnit,
+): ToolResult<{ kv: number; tempC: number }> {
   if (params.get('tool') !== 'at') return { state: 'idle' };
-  const r = needNumbers(params, { kv40: 'the viscosity at 40 °C', kv100: 'the viscosity at 100 °C', temp: 'the temperature' });
+  const r = needNumbers(params, {
+    kv40: 'the viscosity at 40 °C',
+    kv100: 'the viscosity at 100 °C',
+    temp: 'the temperature',
+  });
   if ('fields' in r) return { state: 'error', fields: r.fields };
   const tempC = toCelsius(r.values['temp']!, unit);
   try {
@@ -93,10 +111,12 @@ export function runGradeOf(params: URLSearchParams): ToolResult<GradeAnswer> {
   const kv100 = r.values['kv100']!;
   if (kv100 <= 0) return { state: 'error', fields: { kv100: 'A viscosity must be above zero.' } };
   const grades = saeGradesOf(kv100);
-  const overlap = grades.length > 1
-    ? `The viscosity at 100 °C alone cannot tell these apart. SAE J300 separates them by the high-temperature high-shear viscosity (HTHS) at 150 °C: at least ${grades.map((g) => `${SAE_J300_MIN_HTHS[g]!.toFixed(1)} mPa·s for SAE ${g}`).join(', ')}. The oil’s data sheet gives its HTHS.`
-    : null;
-  const label = grades.length > 1 ? `${grades.slice(0, -1).join(', ')} or ${grades[grades.length - 1]}` : grades.join('');
+  const overlap =
+    grades.length > 1
+      ? `The viscosity at 100 °C alone cannot tell these apart. SAE J300 separates them by the high-temperature high-shear viscosity (HTHS) at 150 °C: at least ${grades.map((g) => `${SAE_J300_MIN_HTHS[g]!.toFixed(1)} mPa·s for SAE ${g}`).join(', ')}. The oil’s data sheet gives its HTHS.`
+      : null;
+  const label =
+    grades.length > 1 ? `${grades.slice(0, -1).join(', ')} or ${grades[grades.length - 1]}` : grades.join('');
   return { state: 'ok', value: { kv100, grades, label, overlap } };
 }
 
@@ -119,7 +139,12 @@ function sameGrade(a: string, b: string): boolean {
  * Whether a grade suits riding between lowC and highC by the manual's chart: the rows of that grade must
  * together cover the whole range (rows may touch or overlap; a gap leaves part of the range uncovered).
  */
-export function checkGradeSuitsRiding(chart: readonly RecommendedGrade[], grade: string, lowC: number, highC: number): GradeSuitability {
+export function checkGradeSuitsRiding(
+  chart: readonly RecommendedGrade[],
+  grade: string,
+  lowC: number,
+  highC: number,
+): GradeSuitability {
   const [lo, hi] = lowC <= highC ? [lowC, highC] : [highC, lowC];
   const rows = chart.filter((r) => sameGrade(r.grade, grade)).sort((a, b) => a.minC - b.minC);
   if (lo === hi) {

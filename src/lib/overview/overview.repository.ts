@@ -49,7 +49,11 @@ const ORDER: Record<OverviewQuery['sort'], RawBuilder<unknown>> = {
 };
 
 /** One page of the crew overview. */
-export async function listOverviewPage(db: Kysely<Database>, crewId: string, query: OverviewQuery): Promise<OverviewPage> {
+export async function listOverviewPage(
+  db: Kysely<Database>,
+  crewId: string,
+  query: OverviewQuery,
+): Promise<OverviewPage> {
   const dir = query.dir === 'asc' ? sql.raw('asc') : sql.raw('desc');
   const nulls = sql.raw('nulls last');
   const offset = (query.page - 1) * OVERVIEW_PAGE_SIZE;
@@ -124,7 +128,12 @@ async function withoutJit<T>(db: Kysely<Database>, work: (trx: Kysely<Database>)
 }
 
 // An empty page beyond the end still needs the total to offer a way back.
-async function countFiltered(db: Kysely<Database>, crewId: string, query: OverviewQuery, offset: number): Promise<number> {
+async function countFiltered(
+  db: Kysely<Database>,
+  crewId: string,
+  query: OverviewQuery,
+  offset: number,
+): Promise<number> {
   if (offset === 0) return 0;
   const first = await listOverviewPage(db, crewId, { ...query, page: 1 });
   return first.total;
@@ -135,18 +144,31 @@ function toOverviewRow(r: RawRow): OverviewRow {
     machineId: r.machine_id,
     name: r.name,
     meter: r.meter,
-    lastSample: r.sample_id ? { id: r.sample_id, bottleCode: r.bottle_code ?? '', drawnOn: r.drawn_on ?? '', state: r.state ?? '' } : null,
+    lastSample: r.sample_id
+      ? { id: r.sample_id, bottleCode: r.bottle_code ?? '', drawnOn: r.drawn_on ?? '', state: r.state ?? '' }
+      : null,
     worst: r.sample_id ? levelOfRank(r.worst_rank ?? 0) : null,
     topFinding: r.top_rule ? { ruleId: r.top_rule, measurand: r.top_measurand, sentence: r.top_sentence ?? '' } : null,
     climbing: r.climbing ?? [],
     call: r.call
-      ? { kind: r.call, source: r.call_source ?? 'engine', authorRole: r.call_role, authorName: r.call_author, nextSampleOn: r.next_sample_on, nextSampleOdometer: r.next_sample_odometer === null ? null : Number(r.next_sample_odometer) }
+      ? {
+          kind: r.call,
+          source: r.call_source ?? 'engine',
+          authorRole: r.call_role,
+          authorName: r.call_author,
+          nextSampleOn: r.next_sample_on,
+          nextSampleOdometer: r.next_sample_odometer === null ? null : Number(r.next_sample_odometer),
+        }
       : null,
   };
 }
 
 /** One machine's row of the overview (the machine page summary), or undefined when not the crew's. */
-export async function findMachineOverview(db: Kysely<Database>, crewId: string, machineId: string): Promise<OverviewRow | undefined> {
+export async function findMachineOverview(
+  db: Kysely<Database>,
+  crewId: string,
+  machineId: string,
+): Promise<OverviewRow | undefined> {
   if (!isUuid(machineId)) return undefined;
   const page = await sql<RawRow>`
     select m.id as machine_id, m.name, m.meter, ls.id as sample_id, ls.bottle_code, ls.drawn_on::text as drawn_on, ls.state,
@@ -178,7 +200,10 @@ export async function findMachineOverview(db: Kysely<Database>, crewId: string, 
 }
 
 /** Odometer-against-date history of a machine (oil changes and samples), for the current-odometer estimate. */
-export async function listOdometerHistory(db: Kysely<Database>, machineIds: readonly string[]): Promise<Map<string, { date: string; odometer: number }[]>> {
+export async function listOdometerHistory(
+  db: Kysely<Database>,
+  machineIds: readonly string[],
+): Promise<Map<string, { date: string; odometer: number }[]>> {
   const out = new Map<string, { date: string; odometer: number }[]>();
   if (machineIds.length === 0) return out;
   const { rows } = await sql<{ machine_id: string; date: string; odometer: number }>`

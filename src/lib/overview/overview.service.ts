@@ -1,7 +1,12 @@
 /** Crew overview and the machine page summary: rows from the repository plus the next-sample-due estimate. */
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
-import { estimateCurrentOdometer, findSampleDue, type DueStatus, type OdometerEstimate } from '../home/odometer-estimate';
+import {
+  estimateCurrentOdometer,
+  findSampleDue,
+  type DueStatus,
+  type OdometerEstimate,
+} from '../home/odometer-estimate';
 import type { OverviewPage, OverviewQuery, OverviewRow } from './overview';
 import { findMachineOverview, listOdometerHistory, listOverviewPage } from './overview.repository';
 
@@ -21,11 +26,21 @@ export async function loadOverview(db: Kysely<Database>, crewId: string, query: 
 }
 
 /** The summary at the top of a machine page, or null when the machine is not the crew's. */
-export async function loadMachineSummary(db: Kysely<Database>, crewId: string, machineId: string, today = todayIso()): Promise<MachineSummary | null> {
+export async function loadMachineSummary(
+  db: Kysely<Database>,
+  crewId: string,
+  machineId: string,
+  today = todayIso(),
+): Promise<MachineSummary | null> {
   const row = await findMachineOverview(db, crewId, machineId);
   if (!row) return null;
   const history = (await listOdometerHistory(db, [machineId])).get(machineId) ?? [];
   const estimate = estimateCurrentOdometer(history, today);
-  const due = findSampleDue({ today, estimate, nextSampleOn: row.call?.nextSampleOn ?? null, nextSampleOdometer: row.call?.nextSampleOdometer ?? null });
+  const due = findSampleDue({
+    today,
+    estimate,
+    nextSampleOn: row.call?.nextSampleOn ?? null,
+    nextSampleOdometer: row.call?.nextSampleOdometer ?? null,
+  });
   return { ...row, estimate, due };
 }

@@ -21,10 +21,24 @@ export interface OverviewQuery {
   page: number;
 }
 
-export const DEFAULT_OVERVIEW_QUERY: OverviewQuery = { sort: 'level', dir: 'desc', level: null, call: null, climbing: false, q: '', page: 1 };
+export const DEFAULT_OVERVIEW_QUERY: OverviewQuery = {
+  sort: 'level',
+  dir: 'desc',
+  level: null,
+  call: null,
+  climbing: false,
+  q: '',
+  page: 1,
+};
 
 /** The direction a sort starts in: the worst level and the most recent sample first, names A to Z. */
-const NATURAL_DIR: Record<OverviewSort, SortDirection> = { name: 'asc', 'last-sample': 'desc', level: 'desc', call: 'asc', due: 'asc' };
+const NATURAL_DIR: Record<OverviewSort, SortDirection> = {
+  name: 'asc',
+  'last-sample': 'desc',
+  level: 'desc',
+  call: 'asc',
+  due: 'asc',
+};
 
 function pick<T extends string>(value: string | null, allowed: readonly T[]): T | undefined {
   return value !== null && (allowed as readonly string[]).includes(value) ? (value as T) : undefined;
@@ -91,7 +105,14 @@ export interface OverviewRow {
   /** The worst finding's rule and element, for a one-line reason. */
   topFinding: { ruleId: string; measurand: string | null; sentence: string } | null;
   climbing: string[];
-  call: { kind: IntervalCallKind; source: string; authorRole: Role | null; authorName: string | null; nextSampleOn: string | null; nextSampleOdometer: number | null } | null;
+  call: {
+    kind: IntervalCallKind;
+    source: string;
+    authorRole: Role | null;
+    authorName: string | null;
+    nextSampleOn: string | null;
+    nextSampleOdometer: number | null;
+  } | null;
 }
 
 export interface OverviewPage {

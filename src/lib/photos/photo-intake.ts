@@ -36,7 +36,9 @@ export async function stagePhoto(source: Readable, fileName: string, tempDir = o
   let byteSize = 0;
   let refused: PhotoRefusal | null = null;
   let handle: Awaited<ReturnType<typeof open>> | undefined;
-  const remove = async () => { await unlink(tempPath).catch(() => {}); };
+  const remove = async () => {
+    await unlink(tempPath).catch(() => {});
+  };
   try {
     try {
       handle = await open(tempPath, 'wx', 0o600);
@@ -82,7 +84,18 @@ export async function stagePhoto(source: Readable, fileName: string, tempDir = o
       await remove();
       return { ...refused, byteSize };
     }
-    return { ok: true, photo: { contentType: c.contentType, width: c.width, height: c.height, tempPath, sha256: hash.digest('hex'), byteSize, discard: remove } };
+    return {
+      ok: true,
+      photo: {
+        contentType: c.contentType,
+        width: c.width,
+        height: c.height,
+        tempPath,
+        sha256: hash.digest('hex'),
+        byteSize,
+        discard: remove,
+      },
+    };
   } catch (error) {
     await handle?.close().catch(() => {});
     await remove();

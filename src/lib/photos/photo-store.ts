@@ -33,8 +33,15 @@ const NO_ROOM = new Set(['ENOSPC', 'EDQUOT', 'EFBIG']);
  * be written (a read-only or missing folder, an object store that does not answer). Nothing is left behind.
  */
 export class PhotoStorageError extends Error {
-  constructor(readonly reason: 'full' | 'unavailable', readonly errno: string) {
-    super(reason === 'full' ? `The photo store has no room left (${errno}).` : `The photo store cannot be written (${errno}).`);
+  constructor(
+    readonly reason: 'full' | 'unavailable',
+    readonly errno: string,
+  ) {
+    super(
+      reason === 'full'
+        ? `The photo store has no room left (${errno}).`
+        : `The photo store cannot be written (${errno}).`,
+    );
     this.name = 'PhotoStorageError';
   }
 }

@@ -20,14 +20,31 @@ export function findPhotoOfCrews(db: Db, crewIds: readonly string[], id: string)
 /** Photos of an oil change. */
 export function findPhotosOfOilChanges(db: Db, crewId: string, oilChangeIds: readonly string[]): Promise<PhotoRow[]> {
   if (oilChangeIds.length === 0) return Promise.resolve([]);
-  return db.selectFrom('photos').selectAll().where('crew_id', '=', crewId).where('oil_change_id', 'in', oilChangeIds).orderBy('created_at').execute();
+  return db
+    .selectFrom('photos')
+    .selectAll()
+    .where('crew_id', '=', crewId)
+    .where('oil_change_id', 'in', oilChangeIds)
+    .orderBy('created_at')
+    .execute();
 }
 
 /** Attaches the actor's own loose photos to an oil change; returns how many were attached. */
-export async function attachPhotos(db: Db, crewId: string, userId: string, photoIds: readonly string[], oilChangeId: string): Promise<number> {
+export async function attachPhotos(
+  db: Db,
+  crewId: string,
+  userId: string,
+  photoIds: readonly string[],
+  oilChangeId: string,
+): Promise<number> {
   if (photoIds.length === 0) return 0;
-  const r = await db.updateTable('photos').set({ oil_change_id: oilChangeId })
-    .where('crew_id', '=', crewId).where('created_by', '=', userId).where('oil_change_id', 'is', null).where('id', 'in', photoIds)
+  const r = await db
+    .updateTable('photos')
+    .set({ oil_change_id: oilChangeId })
+    .where('crew_id', '=', crewId)
+    .where('created_by', '=', userId)
+    .where('oil_change_id', 'is', null)
+    .where('id', 'in', photoIds)
     .executeTakeFirst();
   return Number(r.numUpdatedRows);
 }

@@ -1,4 +1,11 @@
-import { DeleteObjectCommand, GetObjectCommand, HeadObjectCommand, PutObjectCommand, S3Client, S3ServiceException } from '@aws-sdk/client-s3';
+import {
+  DeleteObjectCommand,
+  GetObjectCommand,
+  HeadObjectCommand,
+  PutObjectCommand,
+  S3Client,
+  S3ServiceException,
+} from '@aws-sdk/client-s3';
 import { Readable } from 'node:stream';
 import { toStorageError, type PhotoStore, type StoredPhoto } from './photo-store';
 
@@ -19,7 +26,10 @@ export interface S3PhotoStoreSettings {
 const PREFIX = 'photos/';
 
 function isMissing(error: unknown): boolean {
-  return error instanceof S3ServiceException && (error.$metadata.httpStatusCode === 404 || error.name === 'NoSuchKey' || error.name === 'NotFound');
+  return (
+    error instanceof S3ServiceException &&
+    (error.$metadata.httpStatusCode === 404 || error.name === 'NoSuchKey' || error.name === 'NotFound')
+  );
 }
 
 /** A photo store on an S3-API bucket. */
@@ -58,7 +68,15 @@ export function createS3PhotoStore(settings: S3PhotoStoreSettings): PhotoStore {
         }
         // One PUT with a known length streams the body without buffering it; photos are at most 10 MB, well
         // under the 5 GB a single PUT takes (S3 API limits, from memory), so no multipart upload is needed.
-        await client.send(new PutObjectCommand({ Bucket, Key: PREFIX + key, Body: body, ContentLength: byteSize, ContentType: contentType }));
+        await client.send(
+          new PutObjectCommand({
+            Bucket,
+            Key: PREFIX + key,
+            Body: body,
+            ContentLength: byteSize,
+            ContentType: contentType,
+          }),
+        );
       } catch (error) {
         body.destroy();
         throw toStorageError(error);

@@ -16,23 +16,43 @@ import { sumCrewStorageBytes } from '../storage-quota/storage-quota.repository';
 
 type PhotoFields = Pick<PreparedPhoto, 'sha256' | 'contentType' | 'byteSize' | 'width' | 'height'>;
 
-function insertPhotoRow(db: Kysely<Database> | Transaction<Database>, actor: Actor, photo: PhotoFields, oilChangeId: string | null, caption: string): Promise<PhotoRow> {
+function insertPhotoRow(
+  db: Kysely<Database> | Transaction<Database>,
+  actor: Actor,
+  photo: PhotoFields,
+  oilChangeId: string | null,
+  caption: string,
+): Promise<PhotoRow> {
   return insertPhoto(db, {
-    crew_id: actor.membership.crewId, oil_change_id: oilChangeId, sha256: photo.sha256, content_type: photo.contentType,
-    byte_size: photo.byteSize, width: photo.width, height: photo.height, caption: caption.slice(0, 200), created_by: actor.userId,
+    crew_id: actor.membership.crewId,
+    oil_change_id: oilChangeId,
+    sha256: photo.sha256,
+    content_type: photo.contentType,
+    byte_size: photo.byteSize,
+    width: photo.width,
+    height: photo.height,
+    caption: caption.slice(0, 200),
+    created_by: actor.userId,
   });
 }
 
 /** Stores a checked photo held in memory (bytes by hash, then its row) in the actor's crew, optionally on an oil change. */
 export async function storePreparedPhoto(
-  db: Kysely<Database> | Transaction<Database>, actor: Actor, photo: PreparedPhoto, store: PhotoStore, oilChangeId: string | null = null, caption = '',
+  db: Kysely<Database> | Transaction<Database>,
+  actor: Actor,
+  photo: PreparedPhoto,
+  store: PhotoStore,
+  oilChangeId: string | null = null,
+  caption = '',
 ): Promise<PhotoRow> {
   await store.put(photoKey(photo.sha256), bodyOf(photo.bytes), photo.byteSize, photo.contentType);
   return insertPhotoRow(db, actor, photo, oilChangeId, caption);
 }
 
 function refusePhoto(r: PhotoRefusal) {
-  return refuse(r.code === 'too_large' ? 413 : r.code === 'not_an_image' ? 415 : 400, r.code, r.message, { file: r.message });
+  return refuse(r.code === 'too_large' ? 413 : r.code === 'not_an_image' ? 415 : 400, r.code, r.message, {
+    file: r.message,
+  });
 }
 
 /**
@@ -40,7 +60,12 @@ function refusePhoto(r: PhotoRefusal) {
  * bytes stream through a checked temp file into the store; the source is always read to its end.
  */
 export async function uploadPhoto(
-  db: Kysely<Database>, actor: Actor, source: Readable | Uint8Array, fileName: string, store: PhotoStore, quotaBytes = CREW_STORAGE_QUOTA_BYTES,
+  db: Kysely<Database>,
+  actor: Actor,
+  source: Readable | Uint8Array,
+  fileName: string,
+  store: PhotoStore,
+  quotaBytes = CREW_STORAGE_QUOTA_BYTES,
 ): Promise<Result<PhotoRow>> {
   const body = source instanceof Readable ? source : bodyOf(source);
   if (!canReadCrew(actor.membership) || actor.membership.role === 'mechanic') {
@@ -51,7 +76,11 @@ export async function uploadPhoto(
   if (!staged.ok) return refusePhoto(staged);
   const photo = staged.photo;
   try {
-    const overQuota = checkCrewQuota(await sumCrewStorageBytes(db, actor.membership.crewId), photo.byteSize, quotaBytes);
+    const overQuota = checkCrewQuota(
+      await sumCrewStorageBytes(db, actor.membership.crewId),
+      photo.byteSize,
+      quotaBytes,
+    );
     if (overQuota) return refuse(413, 'quota_exceeded', overQuota, { file: overQuota });
     // The bytes are stored before the row: a failed store write leaves neither.
     await store.put(photoKey(photo.sha256), createReadStream(photo.tempPath), photo.byteSize, photo.contentType);
@@ -62,7 +91,11 @@ export async function uploadPhoto(
 }
 
 /** A photo for a member of its crew; any other asker gets "not found". */
-export async function getPhotoForMember(db: Kysely<Database>, memberships: readonly CrewMembership[], id: string): Promise<Result<PhotoRow>> {
+export async function getPhotoForMember(
+  db: Kysely<Database>,
+  memberships: readonly CrewMembership[],
+  id: string,
+): Promise<Result<PhotoRow>> {
   const crews = memberships.filter((m) => canReadCrew(m)).map((m) => m.crewId);
   const row = await findPhotoOfCrews(db, crews, id);
   return row ? succeed(row) : refuseNotFound('photo');

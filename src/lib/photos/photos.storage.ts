@@ -71,7 +71,10 @@ export function createDiskPhotoStore(uploadDir: string): PhotoStore {
       }
     },
     async exists(key) {
-      return stat(keyPath(uploadDir, key)).then(() => true, () => false);
+      return stat(keyPath(uploadDir, key)).then(
+        () => true,
+        () => false,
+      );
     },
     async delete(key) {
       await unlink(keyPath(uploadDir, key)).catch((e: NodeJS.ErrnoException) => {

@@ -34,7 +34,8 @@ export function readImageSize(bytes: Uint8Array, type: ImageType): { width: numb
     if (type === 'image/gif') return { width: v.getUint16(6, true), height: v.getUint16(8, true) };
     if (type === 'image/webp') {
       const chunk = String.fromCharCode(...bytes.subarray(12, 16));
-      if (chunk === 'VP8X') return { width: 1 + (v.getUint32(24, true) & 0xffffff), height: 1 + (v.getUint32(27, true) & 0xffffff) };
+      if (chunk === 'VP8X')
+        return { width: 1 + (v.getUint32(24, true) & 0xffffff), height: 1 + (v.getUint32(27, true) & 0xffffff) };
       if (chunk === 'VP8 ') return { width: v.getUint16(26, true) & 0x3fff, height: v.getUint16(28, true) & 0x3fff };
       if (chunk === 'VP8L') {
         const bits = v.getUint32(21, true);
@@ -88,14 +89,26 @@ export const PHOTO_HEAD_BYTES = 256 * 1024;
  * Checks a photo's size and real type from its first bytes (`head`, at least the first PHOTO_HEAD_BYTES or the
  * whole file) and its full length; says in plain words why a file is refused.
  */
-export function checkPhoto(head: Uint8Array, byteSize: number, fileName = 'the file'): ({ ok: true } & PhotoFacts) | PhotoRefusal {
+export function checkPhoto(
+  head: Uint8Array,
+  byteSize: number,
+  fileName = 'the file',
+): ({ ok: true } & PhotoFacts) | PhotoRefusal {
   if (byteSize === 0) return { ok: false, code: 'empty', message: `${fileName} is empty.` };
   if (byteSize > PHOTO_MAX_BYTES) {
-    return { ok: false, code: 'too_large', message: `${fileName} is ${(byteSize / 1048576).toFixed(1)} MB; photos can be at most 10 MB each.` };
+    return {
+      ok: false,
+      code: 'too_large',
+      message: `${fileName} is ${(byteSize / 1048576).toFixed(1)} MB; photos can be at most 10 MB each.`,
+    };
   }
   const type = sniffImageType(head);
   if (!type) {
-    return { ok: false, code: 'not_an_image', message: `${fileName} is not a photo (JPEG, PNG, WebP, GIF, HEIC or AVIF), whatever its name says.` };
+    return {
+      ok: false,
+      code: 'not_an_image',
+      message: `${fileName} is not a photo (JPEG, PNG, WebP, GIF, HEIC or AVIF), whatever its name says.`,
+    };
   }
   const size = readImageSize(head, type);
   return { ok: true, contentType: type, width: size?.width ?? null, height: size?.height ?? null };
@@ -108,8 +121,12 @@ export function preparePhoto(bytes: Uint8Array, fileName = 'the file'): PhotoChe
   return {
     ok: true,
     photo: {
-      bytes, sha256: createHash('sha256').update(bytes).digest('hex'), contentType: c.contentType, byteSize: bytes.byteLength,
-      width: c.width, height: c.height,
+      bytes,
+      sha256: createHash('sha256').update(bytes).digest('hex'),
+      contentType: c.contentType,
+      byteSize: bytes.byteLength,
+      width: c.width,
+      height: c.height,
     },
   };
 }

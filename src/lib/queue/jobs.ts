@@ -35,10 +35,16 @@ export async function registerJobs(boss: PgBoss, deps: JobDependencies): Promise
       ...deps.mail,
     }),
   );
-  registrations.push(await (await import('../alerts/alert-jobs')).registerAlertJobs(boss, { db: deps.db, ...(deps.log ? { log: deps.log } : {}) }));
+  registrations.push(
+    await (
+      await import('../alerts/alert-jobs')
+    ).registerAlertJobs(boss, { db: deps.db, ...(deps.log ? { log: deps.log } : {}) }),
+  );
   // Lab reports that arrived by mail (stored raw by the relay or the webhook) become lab files here.
   registrations.push(
-    await (await import('../lab-mail/lab-mail-jobs')).registerLabMailJobs(boss, {
+    await (
+      await import('../lab-mail/lab-mail-jobs')
+    ).registerLabMailJobs(boss, {
       db: deps.db,
       listenConnectionString: deps.config.DATABASE_URL,
       ...(deps.log ? { log: deps.log } : {}),

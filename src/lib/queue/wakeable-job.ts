@@ -36,7 +36,9 @@ export async function registerWakeableJob<T>(boss: PgBoss, options: WakeableJobO
     if (moreWaiting) void trigger();
     return result;
   });
-  const listener = options.listen ? listenForChannel(options.listen.connectionString, options.listen.channel, () => void trigger(), options.log) : undefined;
+  const listener = options.listen
+    ? listenForChannel(options.listen.connectionString, options.listen.channel, () => void trigger(), options.log)
+    : undefined;
   const tick = setInterval(() => void trigger(), options.tickSeconds * 1000);
   tick.unref();
   // Catch up on whatever was written while no worker was running.
@@ -53,7 +55,12 @@ export async function registerWakeableJob<T>(boss: PgBoss, options: WakeableJobO
 }
 
 /** LISTENs on a channel (the outbox's, the inbound mail's) with its own connection, reconnecting after a lost connection. */
-export function listenForChannel(connectionString: string, channel: string, onNotify: () => void, log: (line: string) => void) {
+export function listenForChannel(
+  connectionString: string,
+  channel: string,
+  onNotify: () => void,
+  log: (line: string) => void,
+) {
   let client: pg.Client | undefined;
   let closed = false;
   let retry: NodeJS.Timeout | undefined;

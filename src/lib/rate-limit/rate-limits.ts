@@ -65,7 +65,8 @@ export interface RateLimits {
 const secondsFrom = (res: RateLimiterRes) => Math.max(1, Math.ceil(res.msBeforeNext / 1000));
 
 /** The stored key column holds 255 characters; a longer key (a 254-character e-mail and an address) is hashed. */
-const storedKey = (key: string) => (key.length <= 200 ? key : `sha256:${createHash('sha256').update(key).digest('hex')}`);
+const storedKey = (key: string) =>
+  key.length <= 200 ? key : `sha256:${createHash('sha256').update(key).digest('hex')}`;
 
 /** Builds the limiters; rules may be overridden (tests use smaller windows). */
 export function createRateLimits(pool: pg.Pool, rules: Record<LimitName, LimitRule> = LIMIT_RULES): RateLimits {
@@ -91,7 +92,8 @@ export function createRateLimits(pool: pg.Pool, rules: Record<LimitName, LimitRu
   return {
     async check(name, key) {
       const res = await limiter(name).get(storedKey(key));
-      if (res && res.consumedPoints >= rules[name].points) return { allowed: false, retryAfterSeconds: secondsFrom(res) };
+      if (res && res.consumedPoints >= rules[name].points)
+        return { allowed: false, retryAfterSeconds: secondsFrom(res) };
       return { allowed: true, retryAfterSeconds: 0 };
     },
     async consume(name, key) {

@@ -37,8 +37,12 @@ export function deriveSampleTarget(input: DueTargetInput): DueTarget | null {
   if (input.nextSampleOn !== null || input.nextSampleOdometer !== null) {
     return { nextSampleOn: input.nextSampleOn, nextSampleOdometer: input.nextSampleOdometer, source: 'call' };
   }
-  const nextSampleOn = input.lastChangeOn && input.maxIntervalDays ? addDays(input.lastChangeOn, input.maxIntervalDays) : null;
-  const nextSampleOdometer = input.lastChangeOdometer !== null && input.maxIntervalDistance !== null ? input.lastChangeOdometer + input.maxIntervalDistance : null;
+  const nextSampleOn =
+    input.lastChangeOn && input.maxIntervalDays ? addDays(input.lastChangeOn, input.maxIntervalDays) : null;
+  const nextSampleOdometer =
+    input.lastChangeOdometer !== null && input.maxIntervalDistance !== null
+      ? input.lastChangeOdometer + input.maxIntervalDistance
+      : null;
   if (nextSampleOn === null && nextSampleOdometer === null) return null;
   return { nextSampleOn, nextSampleOdometer, source: 'manufacturer' };
 }
@@ -47,8 +51,15 @@ export function deriveSampleTarget(input: DueTargetInput): DueTarget | null {
  * The dedupe key of a sample-due reminder: one per machine, target and recipient. The target is the due date
  * and/or the odometer, so a reminder fires once per target, and again only when a new call moves it.
  */
-export function buildSampleDueKey(machineId: string, target: Pick<DueTarget, 'nextSampleOn' | 'nextSampleOdometer'>, userId: string): string {
-  const parts = [target.nextSampleOn, target.nextSampleOdometer === null ? null : `${Math.round(target.nextSampleOdometer)}u`].filter((p): p is string => p !== null);
+export function buildSampleDueKey(
+  machineId: string,
+  target: Pick<DueTarget, 'nextSampleOn' | 'nextSampleOdometer'>,
+  userId: string,
+): string {
+  const parts = [
+    target.nextSampleOn,
+    target.nextSampleOdometer === null ? null : `${Math.round(target.nextSampleOdometer)}u`,
+  ].filter((p): p is string => p !== null);
   return `reminder:sample-due:${machineId}:${parts.join('+')}:${userId}`;
 }
 
@@ -63,13 +74,22 @@ export function buildInvitationKey(invitationId: string, userId: string): string
 }
 
 /** Whole days from `shippedOn` (YYYY-MM-DD) to `today`, and whether that reaches the limit. */
-export function checkShippedOverdue(shippedOn: string, today: string, days: number): { overdue: boolean; daysWaiting: number } {
+export function checkShippedOverdue(
+  shippedOn: string,
+  today: string,
+  days: number,
+): { overdue: boolean; daysWaiting: number } {
   const daysWaiting = countDaysBetween(shippedOn, today);
   return { overdue: daysWaiting >= days, daysWaiting };
 }
 
 /** Whether an invitation made at `createdAt` has waited at least `days` at `now` and is within the reminder horizon. */
-export function checkInvitationPending(createdAt: Date, now: Date, days: number, horizonDays: number): { pending: boolean; daysWaiting: number } {
+export function checkInvitationPending(
+  createdAt: Date,
+  now: Date,
+  days: number,
+  horizonDays: number,
+): { pending: boolean; daysWaiting: number } {
   const daysWaiting = Math.floor((now.getTime() - createdAt.getTime()) / 86_400_000);
   return { pending: daysWaiting >= days && daysWaiting <= horizonDays, daysWaiting };
 }

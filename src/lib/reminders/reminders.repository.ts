@@ -73,7 +73,14 @@ export async function listPendingInvitations(db: Db, createdAfter: Date, created
   return db
     .selectFrom('crew_invitations')
     .innerJoin('crews', 'crews.id', 'crew_invitations.crew_id')
-    .select(['crew_invitations.id', 'crew_invitations.crew_id', 'crews.name as crew_name', 'crew_invitations.email', 'crew_invitations.created_at', 'crew_invitations.expires_at'])
+    .select([
+      'crew_invitations.id',
+      'crew_invitations.crew_id',
+      'crews.name as crew_name',
+      'crew_invitations.email',
+      'crew_invitations.created_at',
+      'crew_invitations.expires_at',
+    ])
     .where('crew_invitations.accepted_at', 'is', null)
     .where('crew_invitations.revoked_at', 'is', null)
     .where('crew_invitations.created_at', '>=', createdAfter)

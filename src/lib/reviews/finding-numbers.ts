@@ -3,7 +3,15 @@
  * engine's parameter names. One table entry per rule; a rule or a figure this table does not know is left out
  * (with a pointer to the rule's page), so no code name ever reaches the screen.
  */
-import { BASELINE_BASIS, findRateBasis, getMeasurand, isMeasurandCode, type DistanceUnit, type MeasurandCode, type RuleId } from '../analysis';
+import {
+  BASELINE_BASIS,
+  findRateBasis,
+  getMeasurand,
+  isMeasurandCode,
+  type DistanceUnit,
+  type MeasurandCode,
+  type RuleId,
+} from '../analysis';
 
 /** A stored finding as the sample page reads it. */
 export interface FindingNumbersInput {
@@ -88,12 +96,16 @@ const DESCRIBE: Record<RuleId, Describe> = {
       );
     }
     if (rate && reported !== undefined && ctx.distanceOnOil) {
-      lines.push(`Judged per distance: the lab reported ${formatMeasurandFigure(code, reported)}, divided by the distance this oil had run.`);
+      lines.push(
+        `Judged per distance: the lab reported ${formatMeasurandFigure(code, reported)}, divided by the distance this oil had run.`,
+      );
     }
     if (count !== undefined) {
       lines.push(
         `The band comes from ${roundFigure(count)} earlier ${count === 1 ? 'sample' : 'samples'} of this engine` +
-          (sd !== undefined ? `, which vary by about ${roundFigure(sd)} either side of usual (one standard deviation).` : '.'),
+          (sd !== undefined
+            ? `, which vary by about ${roundFigure(sd)} either side of usual (one standard deviation).`
+            : '.'),
       );
     }
     return lines;
@@ -110,16 +122,24 @@ const DESCRIBE: Record<RuleId, Describe> = {
     const lines: string[] = [];
     if (start !== undefined && value !== undefined) {
       // A steep line fitted through low early readings can start below zero; no reading can.
-      lines.push(`The line through the last ${points !== undefined ? roundFigure(points) : 'few'} samples starts at ${start < 0 ? 'about ' : ''}${inBasis(code, Math.max(0, start), rate, ctx)}; this one ${roundFigure(value)}.`);
+      lines.push(
+        `The line through the last ${points !== undefined ? roundFigure(points) : 'few'} samples starts at ${start < 0 ? 'about ' : ''}${inBasis(code, Math.max(0, start), rate, ctx)}; this one ${roundFigure(value)}.`,
+      );
     }
     if (rise !== undefined) {
       lines.push(
         `Up about ${roundFigure(rise)} over that stretch` +
-          (slope !== undefined ? `, about ${roundFigure(slope * per)} more every ${per.toLocaleString('en-US')} ${ctx.distanceUnit} on the ${ctx.distanceUnit === 'h' ? 'hour meter' : 'odometer'}.` : '.'),
+          (slope !== undefined
+            ? `, about ${roundFigure(slope * per)} more every ${per.toLocaleString('en-US')} ${ctx.distanceUnit} on the ${ctx.distanceUnit === 'h' ? 'hour meter' : 'odometer'}.`
+            : '.'),
       );
     }
     if (stat !== undefined) {
-      lines.push(stat >= 999 ? 'The points lie on a straight rising line.' : `The climb stands about ${roundFigure(stat)} times clear of the lab's usual scatter.`);
+      lines.push(
+        stat >= 999
+          ? 'The points lie on a straight rising line.'
+          : `The climb stands about ${roundFigure(stat)} times clear of the lab's usual scatter.`,
+      );
     }
     return lines;
   },
@@ -128,7 +148,9 @@ const DESCRIBE: Record<RuleId, Describe> = {
     const limit = num(n, 'limit');
     const from = num(n, 'watchFrom');
     if (value === undefined || limit === undefined) return [];
-    return [`This one ${formatMeasurandFigure(code, value)}; worth watching from ${roundFigure(from ?? limit)}, fixed limit ${formatMeasurandFigure(code, limit)}.`];
+    return [
+      `This one ${formatMeasurandFigure(code, value)}; worth watching from ${roundFigure(from ?? limit)}, fixed limit ${formatMeasurandFigure(code, limit)}.`,
+    ];
   },
   'viscosity-grade': (_code, n) => {
     const value = num(n, 'value');
@@ -137,7 +159,9 @@ const DESCRIBE: Record<RuleId, Describe> = {
     const lowerMin = num(n, 'lowerGradeMin');
     const lines: string[] = [];
     if (value !== undefined && min !== undefined && max !== undefined) {
-      lines.push(`KV100 ${formatMeasurandFigure('KV100', value)}; the grade poured spans ${min.toFixed(1)} to under ${max.toFixed(1)} mm²/s at 100 °C.`);
+      lines.push(
+        `KV100 ${formatMeasurandFigure('KV100', value)}; the grade poured spans ${min.toFixed(1)} to under ${max.toFixed(1)} mm²/s at 100 °C.`,
+      );
     }
     if (lowerMin !== undefined) lines.push(`The next thinner grade starts at ${lowerMin.toFixed(1)} mm²/s.`);
     return lines;
@@ -150,7 +174,11 @@ const DESCRIBE: Record<RuleId, Describe> = {
     if (value === undefined || poured === undefined) return [];
     return [
       `KV100 ${formatMeasurandFigure('KV100', value)} against ${formatMeasurandFigure('KV100', poured)} as poured (from ${ownLevelSource(num(n, 'fromNewOilReference'))}).`,
-      ...(change !== undefined ? [`That is ${roundFigure(change)} % apart${limit !== undefined ? `; worth watching from ${roundFigure(limit)} % either way` : ''}.`] : []),
+      ...(change !== undefined
+        ? [
+            `That is ${roundFigure(change)} % apart${limit !== undefined ? `; worth watching from ${roundFigure(limit)} % either way` : ''}.`,
+          ]
+        : []),
     ];
   },
   'fuel-dilution': (_code, n) => {
@@ -158,13 +186,17 @@ const DESCRIBE: Record<RuleId, Describe> = {
     const watch = num(n, 'watchAbove');
     const limit = num(n, 'limit');
     if (value === undefined) return [];
-    return [`Fuel ${roundFigure(value)} % of the oil; worth watching above ${roundFigure(watch ?? 2)} %${limit !== undefined ? `, act from ${roundFigure(limit)} %` : ''}.`];
+    return [
+      `Fuel ${roundFigure(value)} % of the oil; worth watching above ${roundFigure(watch ?? 2)} %${limit !== undefined ? `, act from ${roundFigure(limit)} %` : ''}.`,
+    ];
   },
   'flash-point': (_code, n) => {
     const value = num(n, 'value');
     const ref = num(n, 'reference');
     if (value === undefined) return [];
-    return [`Flash point ${roundFigure(value)} °C${ref !== undefined ? `, against ${roundFigure(ref)} °C for this oil as poured or in its first samples` : ''}.`];
+    return [
+      `Flash point ${roundFigure(value)} °C${ref !== undefined ? `, against ${roundFigure(ref)} °C for this oil as poured or in its first samples` : ''}.`,
+    ];
   },
   'condition-trend': (code, n) => {
     const value = num(n, 'value');
@@ -184,11 +216,14 @@ const DESCRIBE: Record<RuleId, Describe> = {
       const v = num(n, code);
       if (v === undefined) continue;
       const own = num(n, `${code}Own`);
-      lines.push(`${nameOf(code)} ${formatMeasurandFigure(code, v)}${own !== undefined ? `, this oil's own level ${formatMeasurandFigure(code, own)}` : ''}.`);
+      lines.push(
+        `${nameOf(code)} ${formatMeasurandFigure(code, v)}${own !== undefined ? `, this oil's own level ${formatMeasurandFigure(code, own)}` : ''}.`,
+      );
     }
     const raised = num(n, 'raised');
     const count = ['No marker is', 'One marker is', 'Two markers are', 'All three markers are'];
-    if (raised !== undefined) lines.push(`${count[raised] ?? `${roundFigure(raised)} markers are`} clearly above the oil's own level.`);
+    if (raised !== undefined)
+      lines.push(`${count[raised] ?? `${roundFigure(raised)} markers are`} clearly above the oil's own level.`);
     return lines;
   },
   dirt: (_code, n) => {
@@ -198,9 +233,12 @@ const DESCRIBE: Record<RuleId, Describe> = {
     const alRise = num(n, 'alRise');
     const ratio = num(n, 'ratio');
     const lines: string[] = [];
-    if (si !== undefined && siRise !== undefined) lines.push(`Silicon ${formatMeasurandFigure('Si', si)}, up ${roundFigure(siRise)} on its usual level.`);
-    if (al !== undefined && alRise !== undefined) lines.push(`Aluminium ${formatMeasurandFigure('Al', al)}, up ${roundFigure(alRise)} on its usual level.`);
-    if (ratio !== undefined) lines.push(`Silicon rose about ${roundFigure(ratio)} times as much as aluminium, the proportion of dust.`);
+    if (si !== undefined && siRise !== undefined)
+      lines.push(`Silicon ${formatMeasurandFigure('Si', si)}, up ${roundFigure(siRise)} on its usual level.`);
+    if (al !== undefined && alRise !== undefined)
+      lines.push(`Aluminium ${formatMeasurandFigure('Al', al)}, up ${roundFigure(alRise)} on its usual level.`);
+    if (ratio !== undefined)
+      lines.push(`Silicon rose about ${roundFigure(ratio)} times as much as aluminium, the proportion of dust.`);
     return lines;
   },
   'additive-mismatch': (_code, n) => {
@@ -208,10 +246,15 @@ const DESCRIBE: Record<RuleId, Describe> = {
     for (const [key, v] of Object.entries(n)) {
       if (!isMeasurandCode(key) || typeof v !== 'number') continue;
       const was = num(n, `${key}EarlierMean`);
-      lines.push(`${nameOf(key)} ${formatMeasurandFigure(key, v)}${was !== undefined ? `, against ${formatMeasurandFigure(key, was)} before` : ''}.`);
+      lines.push(
+        `${nameOf(key)} ${formatMeasurandFigure(key, v)}${was !== undefined ? `, against ${formatMeasurandFigure(key, was)} before` : ''}.`,
+      );
     }
     const earlier = num(n, 'earlierSamples');
-    if (earlier !== undefined && earlier > 0) lines.push(`Compared with ${roundFigure(earlier)} earlier ${earlier === 1 ? 'sample' : 'samples'} of the same oil.`);
+    if (earlier !== undefined && earlier > 0)
+      lines.push(
+        `Compared with ${roundFigure(earlier)} earlier ${earlier === 1 ? 'sample' : 'samples'} of the same oil.`,
+      );
     return lines;
   },
   'clutch-friction': (_code, n) => {
@@ -244,7 +287,13 @@ export function describeFindingNumbers(finding: FindingNumbersInput, ctx: Findin
 }
 
 /** A stored baseline band in reported ppm: "usual 22 ppm, band up to 27, act from 31 · from 6 samples". */
-export function describeBandInPpm(band: { mean: number; watchAbove: number; actFrom: number; n: number; perDistance: boolean }): string {
+export function describeBandInPpm(band: {
+  mean: number;
+  watchAbove: number;
+  actFrom: number;
+  n: number;
+  perDistance: boolean;
+}): string {
   return (
     `usual ${roundFigure(band.mean)} ppm, band up to ${roundFigure(band.watchAbove)}, act from ${roundFigure(band.actFrom)} · ` +
     `from ${roundFigure(band.n)} ${band.n === 1 ? 'sample' : 'samples'}${band.perDistance ? ' (judged per distance)' : ''}`
@@ -255,6 +304,7 @@ export function describeBandInPpm(band: { mean: number; watchAbove: number; actF
 export function listFindingMeasurands(finding: FindingNumbersInput): MeasurandCode[] {
   const codes: MeasurandCode[] = [];
   if (finding.measurand && isMeasurandCode(finding.measurand)) codes.push(finding.measurand);
-  for (const key of Object.keys(finding.numbers ?? {})) if (isMeasurandCode(key) && !codes.includes(key)) codes.push(key);
+  for (const key of Object.keys(finding.numbers ?? {}))
+    if (isMeasurandCode(key) && !codes.includes(key)) codes.push(key);
   return codes;
 }

@@ -12,7 +12,15 @@ export async function findReviewSample(db: Db, crewId: string, sampleId: string)
   return db
     .selectFrom('samples')
     .innerJoin('machines', 'machines.id', 'samples.machine_id')
-    .select(['samples.id', 'samples.machine_id', 'samples.state', 'samples.odometer', 'samples.bottle_code', 'machines.meter', 'machines.name as machine_name'])
+    .select([
+      'samples.id',
+      'samples.machine_id',
+      'samples.state',
+      'samples.odometer',
+      'samples.bottle_code',
+      'machines.meter',
+      'machines.name as machine_name',
+    ])
     .where('samples.id', '=', sampleId)
     .where('samples.crew_id', '=', crewId)
     .executeTakeFirst();
@@ -24,9 +32,16 @@ export async function listCallHistory(db: Db, sampleId: string): Promise<CallHis
     .selectFrom('interval_calls')
     .leftJoin('users', 'users.id', 'interval_calls.made_by')
     .select([
-      'interval_calls.id', 'interval_calls.call', 'interval_calls.source', 'interval_calls.next_interval',
-      'interval_calls.next_sample_odometer', 'interval_calls.next_sample_on', 'interval_calls.reasons',
-      'interval_calls.note', 'interval_calls.created_at', 'users.display_name',
+      'interval_calls.id',
+      'interval_calls.call',
+      'interval_calls.source',
+      'interval_calls.next_interval',
+      'interval_calls.next_sample_odometer',
+      'interval_calls.next_sample_on',
+      'interval_calls.reasons',
+      'interval_calls.note',
+      'interval_calls.created_at',
+      'users.display_name',
     ])
     .where('interval_calls.sample_id', '=', sampleId)
     .orderBy('interval_calls.created_at', 'desc')
@@ -51,15 +66,32 @@ export async function listCallHistory(db: Db, sampleId: string): Promise<CallHis
 /** Insert one interval call row (a confirm or an override). */
 export async function insertIntervalCall(
   db: Db,
-  row: { sampleId: string; machineId: string; call: CallHistoryEntry['call']; source: 'confirmed' | 'override'; nextInterval: number | null;
-    nextSampleOdometer: number | null; nextSampleOn: string | null; reasons: string[]; note: string; madeBy: string },
+  row: {
+    sampleId: string;
+    machineId: string;
+    call: CallHistoryEntry['call'];
+    source: 'confirmed' | 'override';
+    nextInterval: number | null;
+    nextSampleOdometer: number | null;
+    nextSampleOn: string | null;
+    reasons: string[];
+    note: string;
+    madeBy: string;
+  },
 ): Promise<string> {
   const r = await db
     .insertInto('interval_calls')
     .values({
-      sample_id: row.sampleId, machine_id: row.machineId, call: row.call, source: row.source, next_interval: row.nextInterval,
-      next_sample_odometer: row.nextSampleOdometer, next_sample_on: row.nextSampleOn, reasons: JSON.stringify(row.reasons),
-      note: row.note, made_by: row.madeBy,
+      sample_id: row.sampleId,
+      machine_id: row.machineId,
+      call: row.call,
+      source: row.source,
+      next_interval: row.nextInterval,
+      next_sample_odometer: row.nextSampleOdometer,
+      next_sample_on: row.nextSampleOn,
+      reasons: JSON.stringify(row.reasons),
+      note: row.note,
+      made_by: row.madeBy,
     })
     .returning('id')
     .executeTakeFirstOrThrow();
@@ -71,33 +103,67 @@ export async function listReviewNotes(db: Db, crewId: string, sampleId: string):
   const rows = await db
     .selectFrom('review_notes')
     .innerJoin('users', 'users.id', 'review_notes.author_user_id')
-    .leftJoin('crew_members', (j) => j.onRef('crew_members.user_id', '=', 'review_notes.author_user_id').on('crew_members.crew_id', '=', crewId))
-    .select(['review_notes.id', 'review_notes.body', 'review_notes.created_at', 'users.display_name', 'crew_members.role'])
+    .leftJoin('crew_members', (j) =>
+      j.onRef('crew_members.user_id', '=', 'review_notes.author_user_id').on('crew_members.crew_id', '=', crewId),
+    )
+    .select([
+      'review_notes.id',
+      'review_notes.body',
+      'review_notes.created_at',
+      'users.display_name',
+      'crew_members.role',
+    ])
     .where('review_notes.sample_id', '=', sampleId)
     .orderBy('review_notes.created_at')
     .orderBy('review_notes.id')
     .execute();
-  return rows.map((r) => ({ id: r.id, body: r.body, authorName: r.display_name, authorRole: r.role, createdAt: r.created_at }));
+  return rows.map((r) => ({
+    id: r.id,
+    body: r.body,
+    authorName: r.display_name,
+    authorRole: r.role,
+    createdAt: r.created_at,
+  }));
 }
 
 /** Insert a review note. */
 export async function insertReviewNote(db: Db, sampleId: string, authorUserId: string, body: string): Promise<string> {
-  const r = await db.insertInto('review_notes').values({ sample_id: sampleId, author_user_id: authorUserId, body }).returning('id').executeTakeFirstOrThrow();
+  const r = await db
+    .insertInto('review_notes')
+    .values({ sample_id: sampleId, author_user_id: authorUserId, body })
+    .returning('id')
+    .executeTakeFirstOrThrow();
   return r.id;
 }
 
 /** Whether the crew's sample counts in its machine's baseline, with who changed that and why. */
-export async function findBaselineStatus(db: Db, crewId: string, sampleId: string): Promise<BaselineStatus | undefined> {
+export async function findBaselineStatus(
+  db: Db,
+  crewId: string,
+  sampleId: string,
+): Promise<BaselineStatus | undefined> {
   if (!isUuid(sampleId)) return undefined;
   const row = await db
     .selectFrom('samples')
     .leftJoin('users', 'users.id', 'samples.baseline_changed_by')
-    .select(['samples.in_baseline', 'samples.baseline_note', 'samples.break_in', 'samples.baseline_changed_at', 'users.display_name'])
+    .select([
+      'samples.in_baseline',
+      'samples.baseline_note',
+      'samples.break_in',
+      'samples.baseline_changed_at',
+      'users.display_name',
+    ])
     .where('samples.id', '=', sampleId)
     .where('samples.crew_id', '=', crewId)
     .executeTakeFirst();
   if (!row) return undefined;
-  return { inBaseline: row.in_baseline, note: row.baseline_note, breakIn: row.break_in, changedByName: row.display_name, changedAt: row.baseline_changed_at };
+  return {
+    inBaseline: row.in_baseline,
+    note: row.baseline_note,
+    breakIn: row.break_in,
+    changedByName: row.display_name,
+    changedAt: row.baseline_changed_at,
+  };
 }
 
 /** Takes a sample out of its machine's baseline or puts it back, with the reason and who did it. */
@@ -108,7 +174,13 @@ export async function updateSampleBaseline(
 ): Promise<void> {
   await db
     .updateTable('samples')
-    .set({ in_baseline: change.inBaseline, baseline_note: change.note, break_in: change.breakIn, baseline_changed_by: change.userId, baseline_changed_at: sql`now()` })
+    .set({
+      in_baseline: change.inBaseline,
+      baseline_note: change.note,
+      break_in: change.breakIn,
+      baseline_changed_by: change.userId,
+      baseline_changed_at: sql`now()`,
+    })
     .where('id', '=', sampleId)
     .execute();
 }
@@ -118,7 +190,19 @@ export async function listSampleBands(db: Db, sampleId: string) {
   if (!isUuid(sampleId)) return [];
   return db
     .selectFrom('baseline_bands')
-    .select(['measurand', 'basis', 'n', 'mean', 'lower_edge', 'watch_above', 'act_from', 'to_reported', 'source', 'source_label', 'source_machines'])
+    .select([
+      'measurand',
+      'basis',
+      'n',
+      'mean',
+      'lower_edge',
+      'watch_above',
+      'act_from',
+      'to_reported',
+      'source',
+      'source_label',
+      'source_machines',
+    ])
     .where('sample_id', '=', sampleId)
     .execute();
 }

@@ -8,7 +8,15 @@ import { toStoredMeter } from '../units/units';
 import type { BaselineChoice, CallDecision, CallHistoryEntry, ReviewNote } from './reviews';
 import { recordAuditEvent } from '../audit/audit.repository';
 import { recomputeFindings } from '../findings/findings.service';
-import { findBaselineStatus, findReviewSample, insertIntervalCall, updateSampleBaseline, insertReviewNote, listCallHistory, listReviewNotes } from './reviews.repository';
+import {
+  findBaselineStatus,
+  findReviewSample,
+  insertIntervalCall,
+  updateSampleBaseline,
+  insertReviewNote,
+  listCallHistory,
+  listReviewNotes,
+} from './reviews.repository';
 import { recordSampleState } from '../samples/sample-lifecycle';
 
 /** A member of the crew in question, or a signed-in user with no crew (who gets not found). */
@@ -25,11 +33,17 @@ export async function loadSampleReview(db: Kysely<Database>, crewId: string, sam
 }
 
 /** Adds a mechanic's or lead's note to a sample. */
-export async function addReviewNote(db: Kysely<Database>, actor: Actor, sampleId: string, body: string): Promise<Result<{ id: string }>> {
+export async function addReviewNote(
+  db: Kysely<Database>,
+  actor: Actor,
+  sampleId: string,
+  body: string,
+): Promise<Result<{ id: string }>> {
   if (!actor.membership) return notFound();
   const sample = await findReviewSample(db, actor.membership.crewId, sampleId);
   if (!sample) return notFound();
-  if (!canReviewSample(actor.membership)) return refuse(403, 'forbidden', 'Only a lead or a mechanic of the crew writes review notes.');
+  if (!canReviewSample(actor.membership))
+    return refuse(403, 'forbidden', 'Only a lead or a mechanic of the crew writes review notes.');
   const id = await insertReviewNote(db, sampleId, actor.userId, body);
   return succeed({ id });
 }
@@ -50,7 +64,8 @@ export async function decideIntervalCall(
   return db.transaction().execute(async (trx): Promise<Result<{ id: string; entry: CallHistoryEntry }>> => {
     const sample = await findReviewSample(trx, crewId, sampleId);
     if (!sample) return notFound();
-    if (!canReviewSample(membership)) return refuse(403, 'forbidden', 'Only a lead or a mechanic of the crew confirms or overrides a call.');
+    if (!canReviewSample(membership))
+      return refuse(403, 'forbidden', 'Only a lead or a mechanic of the crew confirms or overrides a call.');
     if (sample.state === 'drawn' || sample.state === 'shipped') {
       return refuse(409, 'no_results', 'This sample has no results yet, so there is no call to decide.');
     }
@@ -58,24 +73,53 @@ export async function decideIntervalCall(
     const current = history[0];
     let id: string;
     if (decision.action === 'confirm') {
-      if (!current) return refuse(409, 'no_call', 'There is no interval call to confirm yet; override it with your own call instead.');
+      if (!current)
+        return refuse(
+          409,
+          'no_call',
+          'There is no interval call to confirm yet; override it with your own call instead.',
+        );
       id = await insertIntervalCall(trx, {
-        sampleId, machineId: sample.machine_id, call: current.call, source: 'confirmed', nextInterval: current.nextInterval,
-        nextSampleOdometer: current.nextSampleOdometer, nextSampleOn: current.nextSampleOn, reasons: current.reasons,
-        note: decision.note, madeBy: actor.userId,
+        sampleId,
+        machineId: sample.machine_id,
+        call: current.call,
+        source: 'confirmed',
+        nextInterval: current.nextInterval,
+        nextSampleOdometer: current.nextSampleOdometer,
+        nextSampleOn: current.nextSampleOn,
+        reasons: current.reasons,
+        note: decision.note,
+        madeBy: actor.userId,
       });
     } else {
       const meter = sample.meter;
       id = await insertIntervalCall(trx, {
-        sampleId, machineId: sample.machine_id, call: decision.call, source: 'override',
-        nextInterval: decision.nextInterval !== undefined ? toStoredMeter(decision.nextInterval, meter) : current?.nextInterval ?? null,
-        nextSampleOdometer: decision.nextSampleOdometer !== undefined ? toStoredMeter(decision.nextSampleOdometer, meter) : current?.nextSampleOdometer ?? null,
+        sampleId,
+        machineId: sample.machine_id,
+        call: decision.call,
+        source: 'override',
+        nextInterval:
+          decision.nextInterval !== undefined
+            ? toStoredMeter(decision.nextInterval, meter)
+            : (current?.nextInterval ?? null),
+        nextSampleOdometer:
+          decision.nextSampleOdometer !== undefined
+            ? toStoredMeter(decision.nextSampleOdometer, meter)
+            : (current?.nextSampleOdometer ?? null),
         nextSampleOn: decision.nextSampleOn ?? current?.nextSampleOn ?? null,
-        reasons: [decision.note], note: decision.note, madeBy: actor.userId,
+        reasons: [decision.note],
+        note: decision.note,
+        madeBy: actor.userId,
       });
     }
     // A second decision on a reviewed sample keeps it reviewed, with no second event.
-    await recordSampleState(trx, sampleId, 'reviewed', actor.userId, decision.action === 'confirm' ? 'Interval call confirmed.' : 'Interval call overridden.');
+    await recordSampleState(
+      trx,
+      sampleId,
+      'reviewed',
+      actor.userId,
+      decision.action === 'confirm' ? 'Interval call confirmed.' : 'Interval call overridden.',
+    );
     const entry = (await listCallHistory(trx, sampleId)).find((c) => c.id === id)!;
     return succeed({ id, entry });
   });
@@ -97,15 +141,30 @@ export async function changeSampleBaseline(
     const sample = await findReviewSample(trx, membership.crewId, sampleId);
     if (!sample) return notFound();
     if (!canReviewSample(membership)) {
-      return refuse(403, 'forbidden', 'Only a lead or a mechanic of the crew takes samples out of the baseline or puts them back.');
+      return refuse(
+        403,
+        'forbidden',
+        'Only a lead or a mechanic of the crew takes samples out of the baseline or puts them back.',
+      );
     }
     const inBaseline = choice.action === 'include';
-    await updateSampleBaseline(trx, sampleId, { inBaseline, note: choice.reason, breakIn: !inBaseline && choice.breakIn, userId: actor.userId });
+    await updateSampleBaseline(trx, sampleId, {
+      inBaseline,
+      note: choice.reason,
+      breakIn: !inBaseline && choice.breakIn,
+      userId: actor.userId,
+    });
     await recordAuditEvent(trx, {
       kind: inBaseline ? 'baseline_restored' : 'baseline_excluded',
       crewId: membership.crewId,
       actorUserId: actor.userId,
-      detail: { sampleId, bottleCode: sample.bottle_code, machine: sample.machine_name, reason: choice.reason, breakIn: !inBaseline && choice.breakIn },
+      detail: {
+        sampleId,
+        bottleCode: sample.bottle_code,
+        machine: sample.machine_name,
+        reason: choice.reason,
+        breakIn: !inBaseline && choice.breakIn,
+      },
       ip: actor.ip ?? null,
     });
     const findingsWritten = await recomputeFindings(trx, sampleId);

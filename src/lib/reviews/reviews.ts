@@ -14,7 +14,11 @@ export const reviewNoteSchema = z.object({
 const optionalPositive = (what: string) =>
   z.preprocess(
     (v) => (v === '' || v === null || v === undefined ? undefined : typeof v === 'string' ? Number(v) : v),
-    z.number({ error: `Enter the ${what} as a number.` }).positive(`The ${what} must be above zero.`).max(10_000_000, `That ${what} is too large.`).optional(),
+    z
+      .number({ error: `Enter the ${what} as a number.` })
+      .positive(`The ${what} must be above zero.`)
+      .max(10_000_000, `That ${what} is too large.`)
+      .optional(),
   );
 
 /** Confirm the current call, or override it with a note (required) and, optionally, new figures. */
@@ -29,7 +33,10 @@ export const callDecisionSchema = z.discriminatedUnion('action', [
     nextSampleOdometer: optionalPositive('odometer for the next sample'),
     nextSampleOn: z.preprocess(
       (v) => (v === '' ? undefined : v),
-      z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Enter the date as YYYY-MM-DD.').optional(),
+      z
+        .string()
+        .regex(/^\d{4}-\d{2}-\d{2}$/, 'Enter the date as YYYY-MM-DD.')
+        .optional(),
     ),
   }),
 ]);
@@ -67,7 +74,10 @@ export const baselineChoiceSchema = z.object({
     .min(3, 'Say why, in a few words.')
     .max(500, 'Keep the reason under 500 characters.'),
   /** The first oil of a new or rebuilt engine (a checkbox: "on" when ticked). */
-  breakIn: z.preprocess((v) => v === true || v === 'on' || v === 'true', z.boolean()).optional().default(false),
+  breakIn: z
+    .preprocess((v) => v === true || v === 'on' || v === 'true', z.boolean())
+    .optional()
+    .default(false),
 });
 
 export type BaselineChoice = z.infer<typeof baselineChoiceSchema>;

@@ -10,7 +10,12 @@ export function buildSampleUrl(publicUrl: string, sampleId: string): string {
 
 /** The QR code of a URL as an inline SVG string (scales to any label size). */
 export function renderQrSvg(url: string): Promise<string> {
-  return QRCode.toString(url, { type: 'svg', errorCorrectionLevel: 'M', margin: 1, color: { dark: '#000000', light: '#ffffff' } });
+  return QRCode.toString(url, {
+    type: 'svg',
+    errorCorrectionLevel: 'M',
+    margin: 1,
+    color: { dark: '#000000', light: '#ffffff' },
+  });
 }
 
 /** The QR code of a URL as a PNG (for checks and for clients that cannot draw SVG). */

@@ -36,7 +36,13 @@ export async function recordSampleDrawn(trx: Db, sampleId: string, actorUserId: 
  * 'shipped', the note is also the sample's tracking note). The rows are locked first, so two moves of one
  * sample run one after the other. Returns the ids that moved; the others are left as they were.
  */
-export async function recordSampleStates(trx: Db, sampleIds: readonly string[], to: SampleState, actorUserId: string | null, note = ''): Promise<string[]> {
+export async function recordSampleStates(
+  trx: Db,
+  sampleIds: readonly string[],
+  to: SampleState,
+  actorUserId: string | null,
+  note = '',
+): Promise<string[]> {
   if (sampleIds.length === 0) return [];
   const current = await lockSampleStates(trx, sampleIds);
   const moving = current.filter((s) => canMoveSample(s.state, to)).map((s) => s.id);
@@ -47,6 +53,12 @@ export async function recordSampleStates(trx: Db, sampleIds: readonly string[], 
 }
 
 /** Moves one sample to `to` (see recordSampleStates); false when the move is not allowed or the sample is gone. */
-export async function recordSampleState(trx: Db, sampleId: string, to: SampleState, actorUserId: string | null, note = ''): Promise<boolean> {
+export async function recordSampleState(
+  trx: Db,
+  sampleId: string,
+  to: SampleState,
+  actorUserId: string | null,
+  note = '',
+): Promise<boolean> {
   return (await recordSampleStates(trx, [sampleId], to, actorUserId, note)).length === 1;
 }

@@ -6,7 +6,11 @@
 export const CREW_STORAGE_QUOTA_BYTES = 500 * 1024 * 1024;
 
 /** The refusal when a new file would take the crew past its quota, or null when it fits. */
-export function checkCrewQuota(usedBytes: number, addBytes: number, quotaBytes = CREW_STORAGE_QUOTA_BYTES): string | null {
+export function checkCrewQuota(
+  usedBytes: number,
+  addBytes: number,
+  quotaBytes = CREW_STORAGE_QUOTA_BYTES,
+): string | null {
   if (usedBytes + addBytes <= quotaBytes) return null;
   const mb = (n: number) => `${Math.round(n / (1024 * 1024)).toLocaleString('en-GB')} MB`;
   return `Your crew has used ${mb(usedBytes)} of its ${mb(quotaBytes)} for photos and lab files, so this file was not kept. Delete photos you no longer need, or ask us for more room.`;

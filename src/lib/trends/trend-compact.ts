@@ -141,7 +141,8 @@ export function expandTrendResponse(compact: CompactTrendResponse): TrendRespons
         const actFrom = band.actFrom[i];
         const n = band.n[i];
         const source = sources[band.source[i] ?? -1];
-        const hasBand = mean != null && lower != null && upper != null && actFrom != null && n != null && source !== undefined;
+        const hasBand =
+          mean != null && lower != null && upper != null && actFrom != null && n != null && source !== undefined;
         const halfWidth = hasBand ? upper - mean : 0;
         points.push({
           sampleId: samples.id[i]!,
@@ -154,7 +155,9 @@ export function expandTrendResponse(compact: CompactTrendResponse): TrendRespons
           reported: reported?.[i] ?? v,
           qualifier: qualifierAt.get(i) ?? null,
           level: COMPACT_LEVELS[level[i] ?? 0] ?? 'steady',
-          band: hasBand ? { lower, mean, upper, actFrom, n, source: source.source, sourceLabel: source.sourceLabel } : null,
+          band: hasBand
+            ? { lower, mean, upper, actFrom, n, source: source.source, sourceLabel: source.sourceLabel }
+            : null,
           fromBaseline: hasBand ? { delta: v - mean, spreads: halfWidth > 0 ? (v - mean) / halfWidth : 0 } : null,
           inBaseline: samples.inBaseline[i] === 1,
           baselineNote: samples.baselineNote[i] ?? null,

@@ -64,7 +64,15 @@ export interface TrendPoint {
   qualifier: '<' | '>' | null;
   level: Level;
   /** The band the rules used for this sample (from the previous in-control samples), or null while it is building. */
-  band: { lower: number; mean: number; upper: number; actFrom: number; n: number; source: 'own' | 'crew'; sourceLabel: string | null } | null;
+  band: {
+    lower: number;
+    mean: number;
+    upper: number;
+    actFrom: number;
+    n: number;
+    source: 'own' | 'crew';
+    sourceLabel: string | null;
+  } | null;
   /** value − band mean, and that as a share of the band's upper half-width (1 = at the watch edge), when a band exists. */
   fromBaseline: { delta: number; spreads: number } | null;
   /** False when the sample is kept out of the baseline; `baselineNote` says why. */
@@ -107,4 +115,3 @@ export const PICKER_GROUPS: readonly { group: MeasurandGroup; label: string }[] 
   { group: 'additive', label: 'Additives' },
   { group: 'condition', label: 'Oil condition' },
 ];
-

@@ -80,9 +80,16 @@ export async function listTrendSamples(
       distanceOnOilStored: s.distance_on_oil === null ? null : Number(s.distance_on_oil),
       grade: s.sae_grade,
       topUpL: Number(s.top_up_l),
-      oilVolumeL: s.volume_l !== null ? Number(s.volume_l) : machine.oil_capacity_l !== null ? Number(machine.oil_capacity_l) : null,
+      oilVolumeL:
+        s.volume_l !== null
+          ? Number(s.volume_l)
+          : machine.oil_capacity_l !== null
+            ? Number(machine.oil_capacity_l)
+            : null,
       inBaseline: s.in_baseline,
-      baselineNote: s.in_baseline ? null : s.baseline_note || (s.break_in ? 'Break-in oil.' : 'Kept out of the baseline.'),
+      baselineNote: s.in_baseline
+        ? null
+        : s.baseline_note || (s.break_in ? 'Break-in oil.' : 'Kept out of the baseline.'),
       readings: {},
       bands: {},
       levels: {},
@@ -90,14 +97,22 @@ export async function listTrendSamples(
   }
   for (const r of readings) {
     const row = byId.get(r.sample_id);
-    if (row && isMeasurandCode(r.measurand)) row.readings[r.measurand] = { value: Number(r.value), qualifier: r.qualifier };
+    if (row && isMeasurandCode(r.measurand))
+      row.readings[r.measurand] = { value: Number(r.value), qualifier: r.qualifier };
   }
   for (const b of bands) {
     const row = byId.get(b.sample_id);
     if (!row || !isMeasurandCode(b.measurand)) continue;
     row.bands[b.measurand] = {
-      basis: b.basis, n: b.n, mean: Number(b.mean), lower: Number(b.lower_edge), watchAbove: Number(b.watch_above),
-      actFrom: Number(b.act_from), toReported: Number(b.to_reported), source: b.source, sourceLabel: b.source_label,
+      basis: b.basis,
+      n: b.n,
+      mean: Number(b.mean),
+      lower: Number(b.lower_edge),
+      watchAbove: Number(b.watch_above),
+      actFrom: Number(b.act_from),
+      toReported: Number(b.to_reported),
+      source: b.source,
+      sourceLabel: b.source_label,
     };
   }
   for (const f of findings) {
@@ -127,7 +142,11 @@ export async function listLatestSampleFindings(
     .limit(1)
     .executeTakeFirst();
   if (!latest) return [];
-  const rows = await db.selectFrom('findings').select(['measurand', 'level', 'rule_id', 'numbers']).where('sample_id', '=', latest.id).execute();
+  const rows = await db
+    .selectFrom('findings')
+    .select(['measurand', 'level', 'rule_id', 'numbers'])
+    .where('sample_id', '=', latest.id)
+    .execute();
   return rows.map((r) => ({ measurand: r.measurand, level: r.level, ruleId: r.rule_id, numbers: r.numbers ?? {} }));
 }
 
@@ -141,4 +160,3 @@ export async function listTrendOilChanges(db: Kysely<Database>, machineId: strin
     .execute();
   return rows.map((r) => ({ changedOn: r.changed_on, odometerStored: Number(r.odometer), grade: r.sae_grade }));
 }
-

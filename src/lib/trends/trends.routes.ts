@@ -25,7 +25,8 @@ export async function answerTrendRequest(db: Kysely<Database>, ctx: TrendRouteCo
   if (!user) return jsonError(401, 'unauthenticated', 'Sign in to see this machine.');
   if (!canReadCrew(crew)) return jsonError(404, 'not_found', 'No such machine in this crew.');
   const parsed = trendQuerySchema.safeParse(Object.fromEntries(new URL(ctx.request.url).searchParams));
-  if (!parsed.success) return jsonError(400, 'invalid_input', 'The chart query needs attention.', fieldErrorsFrom(parsed.error));
+  if (!parsed.success)
+    return jsonError(400, 'invalid_input', 'The chart query needs attention.', fieldErrorsFrom(parsed.error));
   const data = await loadMachineTrends(db, crew.crewId, ctx.machineId, parsed.data);
   if (!data) return jsonError(404, 'not_found', 'No such machine in this crew.');
   return conditionalJson(ctx.request, compactTrendResponse(data));

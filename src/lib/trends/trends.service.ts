@@ -23,7 +23,8 @@ export async function loadMachineTrends(
     notes.push(
       'Rates are ppm per 1,000 of distance on the oil (per 100 h on an hour meter), corrected for top-up oil. The correction is an approximation.',
     );
-    if (series.some((s) => s.basis === 'ppm')) notes.push('Oil-condition figures have no rate and stay in their own unit.');
+    if (series.some((s) => s.basis === 'ppm'))
+      notes.push('Oil-condition figures have no rate and stay in their own unit.');
   }
   return {
     machine: { id: machine.id, name: machine.name, meter: machine.meter },

@@ -7,7 +7,15 @@ import { computeWearRate, getMeasurand, isMeasurandCode, type Level, type Measur
 import { levelRank } from '../levels';
 import { listFindingMeasurands } from '../reviews/finding-numbers';
 import { fromStoredMeter, type MeterUnit } from '../units/units';
-import type { GradeChangeMark, StoredBand, TrendBasis, TrendOilChangeRow, TrendPoint, TrendSampleRow, TrendSeries } from './trend-types';
+import type {
+  GradeChangeMark,
+  StoredBand,
+  TrendBasis,
+  TrendOilChangeRow,
+  TrendPoint,
+  TrendSampleRow,
+  TrendSeries,
+} from './trend-types';
 
 export * from './trend-types';
 
@@ -43,7 +51,14 @@ export const trendQuerySchema = z.object({
     .string()
     .trim()
     .min(1, 'Pick at least one element.')
-    .transform((s) => [...new Set(s.split(',').map((c) => c.trim()).filter(Boolean))])
+    .transform((s) => [
+      ...new Set(
+        s
+          .split(',')
+          .map((c) => c.trim())
+          .filter(Boolean),
+      ),
+    ])
     .pipe(
       z
         .array(z.string().refine(isMeasurandCode, { message: 'Unknown element or oil-condition code.' }))
@@ -71,10 +86,15 @@ export function canShowAsRate(code: MeasurandCode): boolean {
  * A stored band in the chart's basis: the engine judged some measurands as rates and some in ppm; the factor
  * between the two at this sample is the same one the engine used (distance on oil and the top-up correction).
  */
-function bandInBasis(band: StoredBand, basis: TrendBasis, ppmToRate: number | null): { lower: number; mean: number; upper: number; actFrom: number } | null {
+function bandInBasis(
+  band: StoredBand,
+  basis: TrendBasis,
+  ppmToRate: number | null,
+): { lower: number; mean: number; upper: number; actFrom: number } | null {
   let k: number;
   if (band.basis === basis) k = 1;
-  else if (band.basis === 'rate') k = band.toReported; // rate → reported ppm
+  else if (band.basis === 'rate')
+    k = band.toReported; // rate → reported ppm
   else if (ppmToRate === null) return null;
   else k = ppmToRate; // ppm → rate
   return { lower: band.lower * k, mean: band.mean * k, upper: band.watchAbove * k, actFrom: band.actFrom * k };
@@ -122,7 +142,9 @@ export function shapeTrendSeries(input: {
         qualifier: r.qualifier,
         level: s.levels[code] ?? 'steady',
         band: band && stored ? { ...band, n: stored.n, source: stored.source, sourceLabel: stored.sourceLabel } : null,
-        fromBaseline: band ? { delta: value - band.mean, spreads: halfWidth > 0 ? (value - band.mean) / halfWidth : 0 } : null,
+        fromBaseline: band
+          ? { delta: value - band.mean, spreads: halfWidth > 0 ? (value - band.mean) / halfWidth : 0 }
+          : null,
         inBaseline: s.inBaseline,
         baselineNote: s.inBaseline ? null : s.baselineNote,
       });
@@ -133,13 +155,20 @@ export function shapeTrendSeries(input: {
 
 /** Oil changes where the grade poured differs from the one before, for marks on the chart's axis. */
 export function findGradeChanges(changes: readonly TrendOilChangeRow[], meter: MeterUnit): GradeChangeMark[] {
-  const sorted = [...changes].sort((a, b) => a.odometerStored - b.odometerStored || a.changedOn.localeCompare(b.changedOn));
+  const sorted = [...changes].sort(
+    (a, b) => a.odometerStored - b.odometerStored || a.changedOn.localeCompare(b.changedOn),
+  );
   const marks: GradeChangeMark[] = [];
   for (let i = 1; i < sorted.length; i++) {
     const prev = sorted[i - 1]!;
     const cur = sorted[i]!;
     if (normaliseGrade(prev.grade) !== normaliseGrade(cur.grade)) {
-      marks.push({ date: cur.changedOn, odometer: fromStoredMeter(cur.odometerStored, meter), from: prev.grade, to: cur.grade });
+      marks.push({
+        date: cur.changedOn,
+        odometer: fromStoredMeter(cur.odometerStored, meter),
+        from: prev.grade,
+        to: cur.grade,
+      });
     }
   }
   return marks;

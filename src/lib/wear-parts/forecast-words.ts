@@ -26,7 +26,12 @@ export function isBrakePart(name: string): boolean {
   return /brake|\bpads?\b|\brotors?\b|caliper/i.test(name);
 }
 
-function describeReversals(reversals: readonly WearReversal[], part: ForecastPart, meter: MeterUnit, fmt: (v: number) => string): string {
+function describeReversals(
+  reversals: readonly WearReversal[],
+  part: ForecastPart,
+  meter: MeterUnit,
+  fmt: (v: number) => string,
+): string {
   if (reversals.length === 0) return '';
   const r = reversals[reversals.length - 1]!;
   const moved = part.limitDirection === 'min' ? 'thicker' : 'shorter';
@@ -47,7 +52,11 @@ export function describeForecast(
   const grows = part.limitDirection === 'max';
   switch (f.status) {
     case 'no-readings':
-      return { headline: 'No measurements yet', detail: 'Measure the part at the next service to start a forecast.', tone: 'steady' };
+      return {
+        headline: 'No measurements yet',
+        detail: 'Measure the part at the next service to start a forecast.',
+        tone: 'steady',
+      };
     case 'past-limit': {
       const since = f.firstPastAt < f.odometer ? ` (and already at ${n(f.firstPastAt, meter)})` : '';
       const where = `The reading at ${n(f.odometer, meter)}${since} is ${fmt(f.value)}, ${grows ? 'at or above' : 'at or below'} the service limit.`;
@@ -83,10 +92,14 @@ export function describeForecast(
         tone: f.reversals.length > 0 ? 'watch' : 'steady',
       };
     case 'forecast': {
-      const range = f.high === null ? `from about ${n(f.low, meter)} on — too few readings to say how late` : `somewhere between ${n(f.low, meter)} and ${n(f.high, meter)}`;
-      const how = f.method === 'resolution-corners'
-        ? `With one reading the range comes from where in the new range the part started and the measuring tool’s resolution; the line starts at ${fmt(f.start.value)}, the expected ${grows ? 'longest' : 'thinnest'} piece when new.`
-        : `From ${f.readings} readings and the expected ${grows ? 'longest' : 'thinnest'} new piece (${fmt(f.start.value)}); the range is a 95 % prediction interval of the fitted line.`;
+      const range =
+        f.high === null
+          ? `from about ${n(f.low, meter)} on — too few readings to say how late`
+          : `somewhere between ${n(f.low, meter)} and ${n(f.high, meter)}`;
+      const how =
+        f.method === 'resolution-corners'
+          ? `With one reading the range comes from where in the new range the part started and the measuring tool’s resolution; the line starts at ${fmt(f.start.value)}, the expected ${grows ? 'longest' : 'thinnest'} piece when new.`
+          : `From ${f.readings} readings and the expected ${grows ? 'longest' : 'thinnest'} new piece (${fmt(f.start.value)}); the range is a 95 % prediction interval of the fitted line.`;
       return {
         headline: `Service limit near ${n(f.limitAt, meter)}`,
         detail: `Likely ${range} (${f.sureness} range). ${how}${describeReversals(f.reversals, part, meter, fmt)}`,

@@ -3,7 +3,14 @@
  * size against the meter (geometry only, drawn by the page) and the measurements. Pure: no database, no Astro.
  */
 import type { WearForecast } from '../analysis/wear-forecast';
-import { formatLength, fromMillimetres, fromStoredMeter, toMillimetres, type LengthUnit, type MeterUnit } from '../units/units';
+import {
+  formatLength,
+  fromMillimetres,
+  fromStoredMeter,
+  toMillimetres,
+  type LengthUnit,
+  type MeterUnit,
+} from '../units/units';
 import { formatCount, meterLabel } from '../words/words';
 import { describeForecast, formatWholeMeter, type ForecastTone } from './forecast-words';
 import type { WearMeasurement, WearPart } from './wear-parts';
@@ -57,8 +64,12 @@ export function formatPieceSize(mm: number, unit: LengthUnit): string {
 export function buildWearChart(input: WearPartPageInput): WearChartView {
   const { part, meter, measurements, forecast, lengthUnit: L } = input;
   const { width: W, height: H, pad: P } = WEAR_CHART_BOX;
-  const xs = [fromStoredMeter(part.fittedOdometer, meter), ...measurements.map((x) => fromStoredMeter(x.odometer, meter))];
-  const xMax = Math.max(...xs, forecast.status === 'forecast' ? (forecast.high ?? forecast.limitAt * 1.2) : 0, 1) * 1.05;
+  const xs = [
+    fromStoredMeter(part.fittedOdometer, meter),
+    ...measurements.map((x) => fromStoredMeter(x.odometer, meter)),
+  ];
+  const xMax =
+    Math.max(...xs, forecast.status === 'forecast' ? (forecast.high ?? forecast.limitAt * 1.2) : 0, 1) * 1.05;
   const xMin = Math.min(...xs);
   const yTop = fromMillimetres(part.newMaxMm, L);
   const yBot = fromMillimetres(part.serviceLimitMm, L);
@@ -74,9 +85,17 @@ export function buildWearChart(input: WearPartPageInput): WearChartView {
   // The forecast's own first point (the expected worst new piece), converted from the manual's unit.
   const fit =
     forecast.status === 'forecast'
-      ? { x1: sx(xMin), y1: sy(fromMillimetres(toMillimetres(forecast.start.value, part.manualUnit), L)), x2: sx(forecast.limitAt), y2: limitY }
+      ? {
+          x1: sx(xMin),
+          y1: sy(fromMillimetres(toMillimetres(forecast.start.value, part.manualUnit), L)),
+          x2: sx(forecast.limitAt),
+          y2: limitY,
+        }
       : null;
-  const range = forecast.status === 'forecast' ? { x: sx(forecast.low), width: Math.max(2, sx(forecast.high ?? xMax) - sx(forecast.low)) } : null;
+  const range =
+    forecast.status === 'forecast'
+      ? { x: sx(forecast.low), width: Math.max(2, sx(forecast.high ?? xMax) - sx(forecast.low)) }
+      : null;
   return {
     ariaLabel: `${part.limitDirection === 'min' ? 'Thickness' : 'Length'} against ${meterLabel(meter).toLowerCase()}: ${formatCount(measurements.length, 'reading')}, limit ${formatLength(part.serviceLimitMm, L)}`,
     limitY,
@@ -84,7 +103,10 @@ export function buildWearChart(input: WearPartPageInput): WearChartView {
     newHeight: Math.max(1, sy(fromMillimetres(part.newMinMm, L)) - sy(yTop)),
     fit,
     range,
-    points: measurements.map((x) => ({ x: sx(fromStoredMeter(x.odometer, meter)), y: sy(fromMillimetres(x.summaryMm, L)) })),
+    points: measurements.map((x) => ({
+      x: sx(fromStoredMeter(x.odometer, meter)),
+      y: sy(fromMillimetres(x.summaryMm, L)),
+    })),
     xMinLabel: formatWholeMeter(xMin, meter),
     xMaxLabel: formatWholeMeter(xMax, meter),
   };

@@ -2,7 +2,12 @@
 import type { Meter, Role } from '../db/database';
 
 /** Nouns whose plural is not the noun plus "s". */
-const IRREGULAR: Record<string, string> = { finding: 'findings', child: 'children', person: 'people', analysis: 'analyses' };
+const IRREGULAR: Record<string, string> = {
+  finding: 'findings',
+  child: 'children',
+  person: 'people',
+  analysis: 'analyses',
+};
 
 /** English plural of a countable noun: "1 sample", "2 samples", "0 samples", "3 machines", "2 boxes". */
 export function pluralise(noun: string, n: number): string {
@@ -41,7 +46,11 @@ const ROLE_WORD: Record<Role, string> = { lead: 'lead', mechanic: 'mechanic', ri
  * Who made an interval call, worded one way on every screen: "made by the rules", "confirmed by Ada (lead)",
  * "changed by a mechanic". The role comes from the person's membership, never assumed.
  */
-export function describeCallAuthor(input: { source: CallSource | string; role?: Role | null; name?: string | null }): string {
+export function describeCallAuthor(input: {
+  source: CallSource | string;
+  role?: Role | null;
+  name?: string | null;
+}): string {
   if (input.source !== 'confirmed' && input.source !== 'override') return 'made by the rules';
   const verb = input.source === 'confirmed' ? 'confirmed' : 'changed';
   const role = input.role ? ROLE_WORD[input.role] : null;

@@ -6,4 +6,9 @@ import { handleImportAddressPost } from '~/lib/lab-mail/lab-mail.routes';
 
 /** POST (form) action=rotate | add-sender | remove-sender (+ sender): the crew's import address card. */
 export const POST: APIRoute = (context) =>
-  handleImportAddressPost(getDb(), { request: context.request, locals: context.locals, ip: clientIp(context), config: getConfig() });
+  handleImportAddressPost(getDb(), {
+    request: context.request,
+    locals: context.locals,
+    ip: clientIp(context),
+    config: getConfig(),
+  });

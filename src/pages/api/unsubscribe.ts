@@ -21,4 +21,7 @@ export const POST: APIRoute = async ({ request, url }) => {
 
 /** Sends a browser to the page that shows what the link stops and asks before doing it. */
 export const GET: APIRoute = ({ url }) =>
-  new Response(null, { status: 303, headers: { location: `/unsubscribe?token=${encodeURIComponent(url.searchParams.get('token') ?? '')}` } });
+  new Response(null, {
+    status: 303,
+    headers: { location: `/unsubscribe?token=${encodeURIComponent(url.searchParams.get('token') ?? '')}` },
+  });

@@ -20,14 +20,23 @@ export async function launchBrowser(): Promise<Browser> {
     executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
     headless: true,
     args: [
-      '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking',
-      '--disable-component-update', '--disable-sync', '--disable-dev-shm-usage',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+      '--disable-dev-shm-usage',
     ],
   });
 }
 
 /** A fresh context (own cookies) at a viewport size, with the base URL set. */
-export async function newContext(browser: Browser, viewport: { width: number; height: number } = PHONE): Promise<BrowserContext> {
+export async function newContext(
+  browser: Browser,
+  viewport: { width: number; height: number } = PHONE,
+): Promise<BrowserContext> {
   return browser.newContext({ viewport, baseURL: baseUrl(), deviceScaleFactor: 1 });
 }
 

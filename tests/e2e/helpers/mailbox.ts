@@ -3,7 +3,12 @@ import { sql, type Kysely } from 'kysely';
 import type { Database } from '~/lib/db/database';
 
 /** Waits until a message to `to` whose subject matches arrives; returns its mailbox id and text. */
-export async function waitForMail(db: Kysely<Database>, to: string, subject: RegExp, timeoutMs = 45_000): Promise<{ id: number; text: string }> {
+export async function waitForMail(
+  db: Kysely<Database>,
+  to: string,
+  subject: RegExp,
+  timeoutMs = 45_000,
+): Promise<{ id: number; text: string }> {
   const until = Date.now() + timeoutMs;
   while (Date.now() < until) {
     const { rows } = await sql<{ id: number; subject: string; text_body: string | null }>`

@@ -15,7 +15,10 @@ export interface RunningApp {
   smtpPort: number;
   env: NodeJS.ProcessEnv;
   /** Starts one more app server (its own supervisor) on `port` over the same database, object store and worker. */
-  startAnotherServer(port: number, appProcesses?: number): Promise<{ baseUrl: string; pid: number; stop(): Promise<void> }>;
+  startAnotherServer(
+    port: number,
+    appProcesses?: number,
+  ): Promise<{ baseUrl: string; pid: number; stop(): Promise<void> }>;
   stop(): Promise<void>;
   /** Kills and restarts only the app server (for fault tests). */
   restartServer(): Promise<void>;
@@ -31,7 +34,11 @@ export async function startApp(
   await migrateToLatest(databaseUrl, false);
   if (options.seed !== false) {
     const db = createDb(databaseUrl, { max: 2 });
-    try { await seedDemo(db); } finally { await db.destroy(); }
+    try {
+      await seedDemo(db);
+    } finally {
+      await db.destroy();
+    }
   }
   buildIfNeeded();
   const [port, smtpPort, s3Port] = [await freePort(), await freePort(), await freePort()];
@@ -59,10 +66,12 @@ export async function startApp(
   };
   const node = process.execPath;
   const children: ChildProcess[] = [];
-  if (existsSync(path.join(ROOT, 'scripts/mail-relay.ts'))) children.push(startService('mail', node, ['--import', 'tsx', 'scripts/mail-relay.ts'], env, true));
+  if (existsSync(path.join(ROOT, 'scripts/mail-relay.ts')))
+    children.push(startService('mail', node, ['--import', 'tsx', 'scripts/mail-relay.ts'], env, true));
   children.push(startService('object-store', node, ['--import', 'tsx', 'scripts/object-store.ts', objects], env, true));
   await waitFor(() => isPortOpen('127.0.0.1', s3Port), 30_000, 'the local object store');
-  if (existsSync(path.join(ROOT, 'scripts/worker.ts'))) children.push(startService('worker', node, ['--import', 'tsx', 'scripts/worker.ts'], env, true));
+  if (existsSync(path.join(ROOT, 'scripts/worker.ts')))
+    children.push(startService('worker', node, ['--import', 'tsx', 'scripts/worker.ts'], env, true));
   let server = startService('app', node, SERVE_ARGS, env, true);
   await waitFor(() => httpOk(`${baseUrl}/api/health`), 30_000, 'the app server');
   return {
@@ -71,7 +80,13 @@ export async function startApp(
     smtpPort,
     env,
     async startAnotherServer(otherPort, appProcesses = 1) {
-      const other = startService('app', node, SERVE_ARGS, { ...env, PORT: String(otherPort), APP_PROCESSES: String(appProcesses) }, true);
+      const other = startService(
+        'app',
+        node,
+        SERVE_ARGS,
+        { ...env, PORT: String(otherPort), APP_PROCESSES: String(appProcesses) },
+        true,
+      );
       const otherUrl = `http://127.0.0.1:${otherPort}`;
       await waitFor(() => httpOk(`${otherUrl}/api/health`), 30_000, 'the second app server');
       return { baseUrl: otherUrl, pid: other.pid!, stop: () => stopService(other) };

@@ -6,7 +6,10 @@ export async function signInAs(page: Page, email: string, password: string): Pro
   await page.goto('/sign-in');
   await page.getByLabel('E-mail address').fill(email);
   await page.getByLabel('Password').fill(password);
-  await Promise.all([page.waitForURL((u) => !u.pathname.startsWith('/sign-in')), page.getByRole('button', { name: 'Sign in' }).click()]);
+  await Promise.all([
+    page.waitForURL((u) => !u.pathname.startsWith('/sign-in')),
+    page.getByRole('button', { name: 'Sign in' }).click(),
+  ]);
 }
 
 /** Signs in with fetch and returns a Cookie header value ("sumpwise_session=…") for later requests. */

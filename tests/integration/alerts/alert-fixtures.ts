@@ -21,11 +21,27 @@ export async function makeAlertCrew(db: Kysely<Database>, name = 'Valley school'
   const otherCrew = await makeCrew(db, 'Other crew');
   const otherLead = await makeUser(db, { email: `other-lead-${otherCrew.id.slice(0, 6)}@other.example` });
   await addMember(db, otherCrew.id, otherLead.id, 'lead');
-  return { crewId: crew.id, crewName: crew.name, lead, mechanic, rider, otherRider, machineId: machine.id, otherCrewId: otherCrew.id, otherLead };
+  return {
+    crewId: crew.id,
+    crewName: crew.name,
+    lead,
+    mechanic,
+    rider,
+    otherRider,
+    machineId: machine.id,
+    otherCrewId: otherCrew.id,
+    otherLead,
+  };
 }
 
 /** Uploads and confirms a lab CSV as the given user; throws if refused. */
-export async function importCsv(db: Kysely<Database>, crewId: string, userId: string, csv: string, fileName = 'report.csv') {
+export async function importCsv(
+  db: Kysely<Database>,
+  crewId: string,
+  userId: string,
+  csv: string,
+  fileName = 'report.csv',
+) {
   const stored = await storeLabFile(db, { crewId, userId, fileName, bytes: bytesOf(csv) });
   if (!stored.ok) throw new Error(`upload refused: ${stored.message}`);
   const confirmed = await confirmLabImport(db, { crewId, userId, labFileId: stored.value.labFileId, decisions: {} });

@@ -11,8 +11,12 @@ import { openTestDb, truncateAll } from '../test-database';
 import { importCsv, makeAlertCrew, outboxByRecipient, tokenFromHeaders } from './alert-fixtures';
 
 const db = openTestDb();
-afterAll(async () => { await db.destroy(); });
-beforeEach(async () => { await truncateAll(db); });
+afterAll(async () => {
+  await db.destroy();
+});
+beforeEach(async () => {
+  await truncateAll(db);
+});
 
 // Invented figures. Al 60 ppm is above the default fixed limit of 20 ppm (DEFAULT_FIXED_LIMITS,
 // src/lib/analysis/rule-definitions.ts, from the Petro-Canada Lubricants Handbook): an act finding.
@@ -48,10 +52,19 @@ describe('import alerts', () => {
 
   test('several machines with findings in one import still make one message per recipient, each listing theirs', async () => {
     const c = await makeAlertCrew(db);
-    const second = await db.insertInto('machines').values({
-      crew_id: c.crewId, owner_user_id: c.otherRider.id, name: 'Fjord 690', engine_layout: 'single', cooling: 'liquid', meter: 'km',
-      recommended_grades: JSON.stringify([{ grade: '10W-40', minC: -10, maxC: 40 }]),
-    }).returning('id').executeTakeFirstOrThrow();
+    const second = await db
+      .insertInto('machines')
+      .values({
+        crew_id: c.crewId,
+        owner_user_id: c.otherRider.id,
+        name: 'Fjord 690',
+        engine_layout: 'single',
+        cooling: 'liquid',
+        meter: 'km',
+        recommended_grades: JSON.stringify([{ grade: '10W-40', minC: -10, maxC: 40 }]),
+      })
+      .returning('id')
+      .executeTakeFirstOrThrow();
     await makeSample(db, c.crewId, c.machineId, c.rider.id, 'SW-1');
     await makeSample(db, c.crewId, second.id, c.otherRider.id, 'SW-2');
     await importCsv(db, c.crewId, c.lead.id, `${HEADER}\nSW-1,2026-02-01,30,60,5,3\nSW-2,2026-02-01,150,3,5,3\n`);
@@ -80,19 +93,41 @@ describe('import alerts', () => {
   test('a rolled-back import queues nothing; confirming the same file twice queues nothing more', async () => {
     const c = await makeAlertCrew(db);
     await makeSample(db, c.crewId, c.machineId, c.rider.id, 'SW-1');
-    const stored = await storeLabFile(db, { crewId: c.crewId, userId: c.lead.id, fileName: 'a.csv', bytes: bytesOf(ACT_CSV) });
+    const stored = await storeLabFile(db, {
+      crewId: c.crewId,
+      userId: c.lead.id,
+      fileName: 'a.csv',
+      bytes: bytesOf(ACT_CSV),
+    });
     if (!stored.ok) throw new Error(stored.message);
-    await expect(db.transaction().execute(async (trx) => {
-      const r = await confirmLabImport(trx, { crewId: c.crewId, userId: c.lead.id, labFileId: stored.value.labFileId, decisions: {} });
-      expect(r.ok).toBe(true);
-      throw new Error('the caller failed after the import');
-    })).rejects.toThrow('the caller failed');
+    await expect(
+      db.transaction().execute(async (trx) => {
+        const r = await confirmLabImport(trx, {
+          crewId: c.crewId,
+          userId: c.lead.id,
+          labFileId: stored.value.labFileId,
+          decisions: {},
+        });
+        expect(r.ok).toBe(true);
+        throw new Error('the caller failed after the import');
+      }),
+    ).rejects.toThrow('the caller failed');
     expect(await db.selectFrom('mail_outbox').select('id').execute()).toHaveLength(0);
     expect(await db.selectFrom('alert_deliveries').select('dedupe_key').execute()).toHaveLength(0);
 
-    const first = await confirmLabImport(db, { crewId: c.crewId, userId: c.lead.id, labFileId: stored.value.labFileId, decisions: {} });
+    const first = await confirmLabImport(db, {
+      crewId: c.crewId,
+      userId: c.lead.id,
+      labFileId: stored.value.labFileId,
+      decisions: {},
+    });
     expect(first.ok).toBe(true);
-    const again = await confirmLabImport(db, { crewId: c.crewId, userId: c.lead.id, labFileId: stored.value.labFileId, decisions: {} });
+    const again = await confirmLabImport(db, {
+      crewId: c.crewId,
+      userId: c.lead.id,
+      labFileId: stored.value.labFileId,
+      decisions: {},
+    });
     expect(again.ok).toBe(false);
     expect(await db.selectFrom('mail_outbox').select('id').execute()).toHaveLength(3);
   });
@@ -106,7 +141,11 @@ describe('import alerts', () => {
     try {
       const report = await deliverDueMail(db, { transport, from: 'Sumpwise <no-reply@sumpwise.test>' });
       expect(report).toEqual({ sent: 3, deferred: 0, failed: 0 });
-      expect(await deliverDueMail(db, { transport, from: 'Sumpwise <no-reply@sumpwise.test>' })).toEqual({ sent: 0, deferred: 0, failed: 0 });
+      expect(await deliverDueMail(db, { transport, from: 'Sumpwise <no-reply@sumpwise.test>' })).toEqual({
+        sent: 0,
+        deferred: 0,
+        failed: 0,
+      });
     } finally {
       transport.close();
       await relay.close();
@@ -118,7 +157,9 @@ describe('import alerts', () => {
       expect(r.html_body).toContain('Act · Al');
       // Long header lines arrive folded (RFC 5322 §2.2.3); unfolded they are the header we set.
       const unfolded = r.raw.replace(/\r?\n[ \t]+/g, ' ');
-      expect(unfolded).toMatch(/^List-Unsubscribe: <http[^>]+\/api\/unsubscribe\?token=[A-Za-z0-9_-]+\.[A-Za-z0-9_-]+>\r?$/m);
+      expect(unfolded).toMatch(
+        /^List-Unsubscribe: <http[^>]+\/api\/unsubscribe\?token=[A-Za-z0-9_-]+\.[A-Za-z0-9_-]+>\r?$/m,
+      );
       expect(unfolded).toMatch(/^List-Unsubscribe-Post: List-Unsubscribe=One-Click\r?$/m);
     }
   });
@@ -137,15 +178,24 @@ describe('import alerts', () => {
     expect(await sendDailyDigests(db, { now })).toEqual({ queued: 1, deferred: 0 });
     const digests = await db.selectFrom('mail_outbox').selectAll().where('kind', '=', 'alert_digest').execute();
     expect(digests).toHaveLength(1);
-    expect(digests[0]).toMatchObject({ to_address: c.mechanic.email, idempotency_key: `digest:${c.mechanic.id}:2030-01-02` });
+    expect(digests[0]).toMatchObject({
+      to_address: c.mechanic.email,
+      idempotency_key: `digest:${c.mechanic.id}:2030-01-02`,
+    });
     expect(digests[0]!.text_body).toContain('Act · Al');
-    expect(verifyUnsubscribeToken(tokenFromHeaders(digests[0]!.headers), loadAlertEnv().secret)).toEqual({ userId: c.mechanic.id, crewId: null, kind: 'digest' });
+    expect(verifyUnsubscribeToken(tokenFromHeaders(digests[0]!.headers), loadAlertEnv().secret)).toEqual({
+      userId: c.mechanic.id,
+      crewId: null,
+      kind: 'digest',
+    });
     // The job running again the same day (a retry after a crash, a second worker) sends nothing more.
     expect(await sendDailyDigests(db, { now })).toEqual({ queued: 0, deferred: 0 });
-    expect(await db.selectFrom('mail_outbox').select('id').where('kind', '=', 'alert_digest').execute()).toHaveLength(1);
+    expect(await db.selectFrom('mail_outbox').select('id').where('kind', '=', 'alert_digest').execute()).toHaveLength(
+      1,
+    );
   });
 
-  test('a digest item filed after the day\'s digest went out waits for the next day', async () => {
+  test("a digest item filed after the day's digest went out waits for the next day", async () => {
     const c = await makeAlertCrew(db);
     await saveUserPreferences(db, c.rider.id, [{ crewId: c.crewId, kind: 'import_findings', delivery: 'digest' }]);
     await makeSample(db, c.crewId, c.machineId, c.rider.id, 'SW-1');
@@ -157,8 +207,23 @@ describe('import alerts', () => {
     // A second run on the same day sees the new item but may not reuse the day's key: it waits for the next day.
     expect(await sendDailyDigests(db, { now: new Date('2030-01-02T18:00:00Z') })).toEqual({ queued: 0, deferred: 1 });
     expect(await sendDailyDigests(db, { now: new Date('2030-01-03T06:30:00Z') })).toEqual({ queued: 1, deferred: 0 });
-    const keys = await db.selectFrom('mail_outbox').select('idempotency_key').where('kind', '=', 'alert_digest').orderBy('idempotency_key').execute();
-    expect(keys.map((k) => k.idempotency_key)).toEqual([`digest:${c.rider.id}:2030-01-02`, `digest:${c.rider.id}:2030-01-03`]);
-    expect(await db.selectFrom('mail_outbox').select('id').where('to_address', '=', c.rider.email).where('kind', '=', 'alert_digest').execute()).toHaveLength(2);
+    const keys = await db
+      .selectFrom('mail_outbox')
+      .select('idempotency_key')
+      .where('kind', '=', 'alert_digest')
+      .orderBy('idempotency_key')
+      .execute();
+    expect(keys.map((k) => k.idempotency_key)).toEqual([
+      `digest:${c.rider.id}:2030-01-02`,
+      `digest:${c.rider.id}:2030-01-03`,
+    ]);
+    expect(
+      await db
+        .selectFrom('mail_outbox')
+        .select('id')
+        .where('to_address', '=', c.rider.email)
+        .where('kind', '=', 'alert_digest')
+        .execute(),
+    ).toHaveLength(2);
   });
 });

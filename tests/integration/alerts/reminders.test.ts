@@ -12,25 +12,55 @@ import { makeAlertCrew, outboxByRecipient, tokenFromHeaders } from './alert-fixt
 // The reminder functions take `now`: these tests move a simulated clock instead of waiting for cron.
 const db = openTestDb();
 const env: AlertEnv = { publicUrl: 'https://sumpwise.test', secret: 'reminder-test-secret-of-at-least-32-chars' };
-afterAll(async () => { await db.destroy(); });
-beforeEach(async () => { await truncateAll(db); });
+afterAll(async () => {
+  await db.destroy();
+});
+beforeEach(async () => {
+  await truncateAll(db);
+});
 
 const at = (iso: string) => new Date(iso.length === 10 ? `${iso}T07:17:00Z` : iso);
-const countKind = async (kind: string) => (await db.selectFrom('mail_outbox').select('id').where('kind', '=', kind).execute()).length;
+const countKind = async (kind: string) =>
+  (await db.selectFrom('mail_outbox').select('id').where('kind', '=', kind).execute()).length;
 
 /** A sample with results and the engine's interval call naming the next sample. */
-async function giveIntervalCall(d: Kysely<Database>, c: { crewId: string; machineId: string; rider: { id: string } }, next: { on?: string; odometer?: number }) {
-  const s = await makeSample(d, c.crewId, c.machineId, c.rider.id, `IC-${Math.random().toString(36).slice(2, 7)}`, { drawnOn: '2026-01-10', odometer: 1000 });
+async function giveIntervalCall(
+  d: Kysely<Database>,
+  c: { crewId: string; machineId: string; rider: { id: string } },
+  next: { on?: string; odometer?: number },
+) {
+  const s = await makeSample(d, c.crewId, c.machineId, c.rider.id, `IC-${Math.random().toString(36).slice(2, 7)}`, {
+    drawnOn: '2026-01-10',
+    odometer: 1000,
+  });
   await d.updateTable('samples').set({ state: 'reviewed' }).where('id', '=', s.id).execute();
-  await d.insertInto('interval_calls').values({
-    sample_id: s.id, machine_id: c.machineId, call: 'hold', next_interval: 3000, next_sample_odometer: next.odometer ?? null,
-    next_sample_on: next.on ?? null, reasons: JSON.stringify(['invented']), source: 'engine', made_by: null,
-  }).execute();
+  await d
+    .insertInto('interval_calls')
+    .values({
+      sample_id: s.id,
+      machine_id: c.machineId,
+      call: 'hold',
+      next_interval: 3000,
+      next_sample_odometer: next.odometer ?? null,
+      next_sample_on: next.on ?? null,
+      reasons: JSON.stringify(['invented']),
+      source: 'engine',
+      made_by: null,
+    })
+    .execute();
 }
 
-async function shipSample(d: Kysely<Database>, c: { crewId: string; machineId: string; rider: { id: string } }, code: string, shippedAt: string) {
+async function shipSample(
+  d: Kysely<Database>,
+  c: { crewId: string; machineId: string; rider: { id: string } },
+  code: string,
+  shippedAt: string,
+) {
   const s = await makeSample(d, c.crewId, c.machineId, c.rider.id, code, { drawnOn: shippedAt.slice(0, 10) });
-  await d.insertInto('sample_events').values({ sample_id: s.id, state: 'shipped', actor_user_id: c.rider.id, at: new Date(shippedAt) }).execute();
+  await d
+    .insertInto('sample_events')
+    .values({ sample_id: s.id, state: 'shipped', actor_user_id: c.rider.id, at: new Date(shippedAt) })
+    .execute();
   return s.id;
 }
 
@@ -73,10 +103,22 @@ describe('next sample due', () => {
     const c = await makeAlertCrew(db);
     // Invented history: oil changed at 10,000 km on 1 January, a sample at 11,000 km on 1 February: about
     // 32.3 km a day. The manual's 3,000 km interval puts the next sample at 13,000 km, reached around 4 April.
-    await db.insertInto('oil_changes').values({
-      crew_id: c.crewId, machine_id: c.machineId, changed_on: '2026-01-01', odometer: 10_000, sae_grade: '10W-40', other_work: JSON.stringify([]), created_by: c.rider.id,
-    }).execute();
-    const s = await makeSample(db, c.crewId, c.machineId, c.rider.id, 'SW-ODO', { drawnOn: '2026-02-01', odometer: 11_000 });
+    await db
+      .insertInto('oil_changes')
+      .values({
+        crew_id: c.crewId,
+        machine_id: c.machineId,
+        changed_on: '2026-01-01',
+        odometer: 10_000,
+        sae_grade: '10W-40',
+        other_work: JSON.stringify([]),
+        created_by: c.rider.id,
+      })
+      .execute();
+    const s = await makeSample(db, c.crewId, c.machineId, c.rider.id, 'SW-ODO', {
+      drawnOn: '2026-02-01',
+      odometer: 11_000,
+    });
     await db.updateTable('samples').set({ state: 'reviewed' }).where('id', '=', s.id).execute();
 
     // 20 March: 11,000 + 47 days × 32.26 ≈ 12,516 km, short of 13,000.
@@ -95,10 +137,23 @@ describe('next sample due', () => {
     await giveIntervalCall(db, c, { on: '2026-06-01' });
     await shipSample(db, c, 'SW-ON-ITS-WAY', '2026-05-30T09:00:00Z');
     expect((await runReminders(db, { now: at('2026-06-02'), env })).sampleDue).toEqual({});
-    const archived = await makeMachine(db, c.crewId, c.rider.id, { name: 'Old 650', archived_at: new Date(), max_interval_days: 30 } as never);
-    await db.insertInto('oil_changes').values({
-      crew_id: c.crewId, machine_id: archived.id, changed_on: '2026-01-01', odometer: 500, sae_grade: '10W-40', other_work: JSON.stringify([]), created_by: c.rider.id,
-    }).execute();
+    const archived = await makeMachine(db, c.crewId, c.rider.id, {
+      name: 'Old 650',
+      archived_at: new Date(),
+      max_interval_days: 30,
+    } as never);
+    await db
+      .insertInto('oil_changes')
+      .values({
+        crew_id: c.crewId,
+        machine_id: archived.id,
+        changed_on: '2026-01-01',
+        odometer: 500,
+        sae_grade: '10W-40',
+        other_work: JSON.stringify([]),
+        created_by: c.rider.id,
+      })
+      .execute();
     await runReminders(db, { now: at('2026-06-02'), env });
     expect(await countKind('reminder_sample_due')).toBe(0);
   });
@@ -108,12 +163,16 @@ describe('shipped without results', () => {
   test('nothing at 20 days, one message to each recipient at 21, never again; results in stops it', async () => {
     const c = await makeAlertCrew(db);
     const sampleId = await shipSample(db, c, 'SW-LATE', '2026-03-01T15:00:00Z');
-    await shipSample(db, c, 'SW-BACK', '2026-03-01T15:00:00Z').then((id) => db.updateTable('samples').set({ state: 'results_in' }).where('id', '=', id).execute());
+    await shipSample(db, c, 'SW-BACK', '2026-03-01T15:00:00Z').then((id) =>
+      db.updateTable('samples').set({ state: 'results_in' }).where('id', '=', id).execute(),
+    );
     expect((await runReminders(db, { now: at('2026-03-21'), env })).shippedOverdue).toEqual({});
     expect((await runReminders(db, { now: at('2026-03-22'), env })).shippedOverdue).toEqual({ immediate: 3 });
     const byTo = await outboxByRecipient(db, 'reminder_shipped_overdue');
     expect(byTo.size).toBe(3);
-    expect(byTo.get(c.mechanic.email)![0]!.idempotency_key).toBe(`reminder:shipped-overdue:${sampleId}:${c.mechanic.id}`);
+    expect(byTo.get(c.mechanic.email)![0]!.idempotency_key).toBe(
+      `reminder:shipped-overdue:${sampleId}:${c.mechanic.id}`,
+    );
     expect(byTo.get(c.mechanic.email)![0]!.subject).toBe('No results yet: bottle SW-LATE of Ridge 450 (Valley school)');
     await runReminders(db, { now: at('2026-03-22'), env });
     await runReminders(db, { now: at('2026-04-30'), env });
@@ -122,20 +181,46 @@ describe('shipped without results', () => {
 });
 
 describe('invitation not accepted', () => {
-  test('the crew\'s leads hear once after 7 days; accepted or revoked invitations never', async () => {
+  test("the crew's leads hear once after 7 days; accepted or revoked invitations never", async () => {
     const c = await makeAlertCrew(db);
-    const secondLead = await db.insertInto('users').values({ id: 'second-lead', email: 'second-lead@valley.example', display_name: 'Second lead', password_hash: 'x', email_verified_at: new Date() }).returning('id').executeTakeFirstOrThrow();
+    const secondLead = await db
+      .insertInto('users')
+      .values({
+        id: 'second-lead',
+        email: 'second-lead@valley.example',
+        display_name: 'Second lead',
+        password_hash: 'x',
+        email_verified_at: new Date(),
+      })
+      .returning('id')
+      .executeTakeFirstOrThrow();
     await addMember(db, c.crewId, secondLead.id, 'lead');
-    const invite = async (email: string, over: Record<string, unknown> = {}) => db.insertInto('crew_invitations').values({
-      crew_id: c.crewId, email, role: 'rider', token_hash: `hash-${email}`, invited_by: c.lead.id,
-      expires_at: new Date('2026-03-15T10:00:00Z'), created_at: new Date('2026-03-01T10:00:00Z'), ...over,
-    } as never).returning('id').executeTakeFirstOrThrow();
+    const invite = async (email: string, over: Record<string, unknown> = {}) =>
+      db
+        .insertInto('crew_invitations')
+        .values({
+          crew_id: c.crewId,
+          email,
+          role: 'rider',
+          token_hash: `hash-${email}`,
+          invited_by: c.lead.id,
+          expires_at: new Date('2026-03-15T10:00:00Z'),
+          created_at: new Date('2026-03-01T10:00:00Z'),
+          ...over,
+        } as never)
+        .returning('id')
+        .executeTakeFirstOrThrow();
     const waiting = await invite('newcomer@example.test');
-    await invite('joined@example.test', { accepted_at: new Date('2026-03-02T10:00:00Z'), accepted_by: c.otherRider.id });
+    await invite('joined@example.test', {
+      accepted_at: new Date('2026-03-02T10:00:00Z'),
+      accepted_by: c.otherRider.id,
+    });
     await invite('revoked@example.test', { revoked_at: new Date('2026-03-02T10:00:00Z') });
 
     expect((await runReminders(db, { now: at('2026-03-08T09:59:00Z'), env })).invitationPending).toEqual({});
-    expect((await runReminders(db, { now: at('2026-03-08T10:00:00Z'), env })).invitationPending).toEqual({ immediate: 2 });
+    expect((await runReminders(db, { now: at('2026-03-08T10:00:00Z'), env })).invitationPending).toEqual({
+      immediate: 2,
+    });
     const byTo = await outboxByRecipient(db, 'reminder_invitation_pending');
     expect([...byTo.keys()].sort()).toEqual([c.lead.email, 'second-lead@valley.example'].sort());
     expect(byTo.get(c.lead.email)![0]!.idempotency_key).toBe(`reminder:invitation:${waiting.id}:${c.lead.id}`);
@@ -173,14 +258,22 @@ describe('unsubscribe', () => {
     await db.updateTable('samples').set({ state: 'shipped' }).where('bottle_code', '=', 'SW-LATE').execute();
     await runReminders(db, { now: at('2026-09-02'), env });
 
-    const rows = await db.selectFrom('mail_outbox').select(['to_address', 'kind', 'idempotency_key']).where('to_address', '=', c.rider.email).execute();
+    const rows = await db
+      .selectFrom('mail_outbox')
+      .select(['to_address', 'kind', 'idempotency_key'])
+      .where('to_address', '=', c.rider.email)
+      .execute();
     const riderDue = rows.filter((r) => r.kind === 'reminder_sample_due').map((r) => r.idempotency_key);
     // Valley school's second due date: not to the rider. Their own crew's machine: still.
     expect(riderDue).toEqual([first.idempotency_key, `reminder:sample-due:${ownMachine.id}:2026-09-01:${c.rider.id}`]);
     // Another kind from the same crew still reaches them.
     expect(rows.filter((r) => r.kind === 'reminder_shipped_overdue')).toHaveLength(1);
     // And the mechanic and lead still get Valley school's due reminder.
-    const valleyDue = await db.selectFrom('mail_outbox').select('to_address').where('idempotency_key', 'like', `reminder:sample-due:${c.machineId}:2026-09-01:%`).execute();
+    const valleyDue = await db
+      .selectFrom('mail_outbox')
+      .select('to_address')
+      .where('idempotency_key', 'like', `reminder:sample-due:${c.machineId}:2026-09-01:%`)
+      .execute();
     expect(valleyDue.map((r) => r.to_address).sort()).toEqual([c.lead.email, c.mechanic.email].sort());
   });
 

@@ -30,11 +30,23 @@ beforeAll(async () => {
   boss = await startJobQueue({ connectionString: TEST_DATABASE.url(), schema: SCHEMA, max: 3, onError: silent });
   registrations = [
     await registerMailJobs(boss, {
-      db, transport, from: 'Sumpwise <no-reply@sumpwise.test>', listenConnectionString: TEST_DATABASE.url(), log: silent,
-      tickSeconds: 0.3, pollingIntervalSeconds: 0.5, backoff: { baseMs: 100, maxMs: 300, maxAttempts: 1000 },
+      db,
+      transport,
+      from: 'Sumpwise <no-reply@sumpwise.test>',
+      listenConnectionString: TEST_DATABASE.url(),
+      log: silent,
+      tickSeconds: 0.3,
+      pollingIntervalSeconds: 0.5,
+      backoff: { baseMs: 100, maxMs: 300, maxAttempts: 1000 },
     }),
     // A simulated clock: the job reads it when it runs, as it reads the real one in production.
-    await registerAlertJobs(boss, { db, env, now: () => new Date('2026-03-22T07:17:00Z'), pollingIntervalSeconds: 0.5, log: silent }),
+    await registerAlertJobs(boss, {
+      db,
+      env,
+      now: () => new Date('2026-03-22T07:17:00Z'),
+      pollingIntervalSeconds: 0.5,
+      log: silent,
+    }),
   ];
 });
 afterAll(async () => {
@@ -43,9 +55,12 @@ afterAll(async () => {
   await relay.close();
   await db.destroy();
 });
-beforeEach(async () => { await truncateAll(db); });
+beforeEach(async () => {
+  await truncateAll(db);
+});
 
-const received = async (to: string) => (await db.selectFrom('dev_mailbox').select('id').where('envelope_to', '=', to).execute()).length;
+const received = async (to: string) =>
+  (await db.selectFrom('dev_mailbox').select('id').where('envelope_to', '=', to).execute()).length;
 
 describe('alert jobs in the worker', () => {
   test('the reminder and digest queues are on pg-boss schedules (cron in UTC)', async () => {
@@ -55,14 +70,26 @@ describe('alert jobs in the worker', () => {
     expect(byName.get(DIGEST_QUEUE)).toMatchObject({ cron: ALERT_SCHEDULES[DIGEST_QUEUE], timezone: 'UTC' });
   });
 
-  test('the worker\'s job index registers them too', async () => {
-    const other = await startJobQueue({ connectionString: TEST_DATABASE.url(), schema: `${SCHEMA}_index`, max: 2, onError: silent });
+  test("the worker's job index registers them too", async () => {
+    const other = await startJobQueue({
+      connectionString: TEST_DATABASE.url(),
+      schema: `${SCHEMA}_index`,
+      max: 2,
+      onError: silent,
+    });
     try {
-      const regs = await registerJobs(other, { db, transport, config: { DATABASE_URL: TEST_DATABASE.url(), MAIL_FROM: 'Sumpwise <no-reply@sumpwise.test>' }, log: silent });
+      const regs = await registerJobs(other, {
+        db,
+        transport,
+        config: { DATABASE_URL: TEST_DATABASE.url(), MAIL_FROM: 'Sumpwise <no-reply@sumpwise.test>' },
+        log: silent,
+      });
       try {
         expect(regs.map((r) => r.name)).toContain(`${REMINDERS_QUEUE}, ${DIGEST_QUEUE}`);
         // Every scheduled family of the worker: the alerts, and the hourly prune of spent rate-limit counters.
-        expect((await other.getSchedules()).map((s) => s.name).sort()).toEqual([DIGEST_QUEUE, REMINDERS_QUEUE, RATE_LIMIT_PRUNE_QUEUE].sort());
+        expect((await other.getSchedules()).map((s) => s.name).sort()).toEqual(
+          [DIGEST_QUEUE, REMINDERS_QUEUE, RATE_LIMIT_PRUNE_QUEUE].sort(),
+        );
       } finally {
         await stopJobQueue(other, regs, 5_000);
       }
@@ -74,7 +101,10 @@ describe('alert jobs in the worker', () => {
   test('with the relay down the reminders wait; when it returns each arrives once, and a re-run job adds nothing', async () => {
     const c = await makeAlertCrew(db);
     const s = await makeSample(db, c.crewId, c.machineId, c.rider.id, 'SW-LATE', { drawnOn: '2026-03-01' });
-    await db.insertInto('sample_events').values({ sample_id: s.id, state: 'shipped', actor_user_id: c.rider.id, at: new Date('2026-03-01T10:00:00Z') }).execute();
+    await db
+      .insertInto('sample_events')
+      .values({ sample_id: s.id, state: 'shipped', actor_user_id: c.rider.id, at: new Date('2026-03-01T10:00:00Z') })
+      .execute();
     const recipients = [c.rider.email, c.mechanic.email, c.lead.email];
 
     const port = relay.port;
@@ -82,10 +112,18 @@ describe('alert jobs in the worker', () => {
     try {
       // What the schedule does each hour: a job on the queue.
       await boss.send(REMINDERS_QUEUE, {});
-      await waitFor(async () => {
-        const rows = await db.selectFrom('mail_outbox').select('attempts').where('kind', '=', 'reminder_shipped_overdue').execute();
-        return rows.length === 3 && rows.every((r) => r.attempts >= 2);
-      }, 20_000, 'three reminders queued and failing against the stopped relay');
+      await waitFor(
+        async () => {
+          const rows = await db
+            .selectFrom('mail_outbox')
+            .select('attempts')
+            .where('kind', '=', 'reminder_shipped_overdue')
+            .execute();
+          return rows.length === 3 && rows.every((r) => r.attempts >= 2);
+        },
+        20_000,
+        'three reminders queued and failing against the stopped relay',
+      );
       const waiting = await db.selectFrom('mail_outbox').selectAll().execute();
       expect(waiting.every((r) => r.sent_at === null && r.failed_at === null)).toBe(true);
       // The job runs again while the relay is still down (the next hour): nothing new is queued.
@@ -95,14 +133,22 @@ describe('alert jobs in the worker', () => {
     } finally {
       relay = await startMailRelay({ db, port });
     }
-    await waitFor(async () => {
-      const counts = await Promise.all(recipients.map(received));
-      return counts.every((n) => n > 0);
-    }, 15_000, 'every reminder to arrive after the relay returned');
+    await waitFor(
+      async () => {
+        const counts = await Promise.all(recipients.map(received));
+        return counts.every((n) => n > 0);
+      },
+      15_000,
+      'every reminder to arrive after the relay returned',
+    );
     await boss.send(REMINDERS_QUEUE, {});
     await pause(1_500);
     for (const to of recipients) expect(await received(to), to).toBe(1);
-    const mail = await db.selectFrom('dev_mailbox').selectAll().where('envelope_to', '=', c.rider.email).executeTakeFirstOrThrow();
+    const mail = await db
+      .selectFrom('dev_mailbox')
+      .selectAll()
+      .where('envelope_to', '=', c.rider.email)
+      .executeTakeFirstOrThrow();
     expect(mail.subject).toBe('No results yet: bottle SW-LATE of Ridge 450 (Valley school)');
     expect(mail.text_body).toContain('https://sumpwise.test/unsubscribe?token=');
     expect(mail.html_body).toContain('<a href="https://sumpwise.test/unsubscribe?token=');

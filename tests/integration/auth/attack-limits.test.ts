@@ -14,8 +14,13 @@ import { deleteExpiredRateLimits } from '~/lib/rate-limit/rate-limits.repository
 
 const db = openTestDb();
 const { deps, pool }: { deps: AuthDeps; pool: pg.Pool } = makeAuthDeps(db);
-afterAll(async () => { await pool.end(); await db.destroy(); });
-beforeEach(async () => { await truncateAll(db); });
+afterAll(async () => {
+  await pool.end();
+  await db.destroy();
+});
+beforeEach(async () => {
+  await truncateAll(db);
+});
 
 // RFC 5737 documentation addresses: 192.0.2.0/24, 198.51.100.0/24, 203.0.113.0/24.
 const addressNo = (i: number) => `198.51.100.${i + 1}`;
@@ -45,25 +50,40 @@ describe('sign-in limits', () => {
 
   test("the owner's own browser is not locked out by an attack on the account", async () => {
     await account();
-    for (let i = 0; i < 12; i++) await signIn(deps, { email: 'owner@example.test', password: 'wrong' }, { ip: addressNo(i) });
-    const r = await signIn(deps, { email: 'owner@example.test', password: PASSWORD }, { ip: '203.0.113.5', knownDevice: true });
+    for (let i = 0; i < 12; i++)
+      await signIn(deps, { email: 'owner@example.test', password: 'wrong' }, { ip: addressNo(i) });
+    const r = await signIn(
+      deps,
+      { email: 'owner@example.test', password: PASSWORD },
+      { ip: '203.0.113.5', knownDevice: true },
+    );
     expect(r.ok).toBe(true);
   });
 
   test('the lock-out ends with its window', async () => {
-    const limits = createRateLimits(pool, { ...LIMIT_RULES, signInAccount: { keyPrefix: 'signin_acct', points: 2, duration: 1 } });
+    const limits = createRateLimits(pool, {
+      ...LIMIT_RULES,
+      signInAccount: { keyPrefix: 'signin_acct', points: 2, duration: 1 },
+    });
     const short = { ...deps, limits };
     await account();
-    for (let i = 0; i < 3; i++) await signIn(short, { email: 'owner@example.test', password: 'wrong' }, { ip: addressNo(i) });
-    expect(await signIn(short, { email: 'owner@example.test', password: PASSWORD }, { ip: addressNo(5) })).toMatchObject({ status: 429 });
+    for (let i = 0; i < 3; i++)
+      await signIn(short, { email: 'owner@example.test', password: 'wrong' }, { ip: addressNo(i) });
+    expect(
+      await signIn(short, { email: 'owner@example.test', password: PASSWORD }, { ip: addressNo(5) }),
+    ).toMatchObject({ status: 429 });
     await new Promise((r) => setTimeout(r, 1_100));
-    expect((await signIn(short, { email: 'owner@example.test', password: PASSWORD }, { ip: addressNo(5) })).ok).toBe(true);
+    expect((await signIn(short, { email: 'owner@example.test', password: PASSWORD }, { ip: addressNo(5) })).ok).toBe(
+      true,
+    );
   });
 
   test('twenty guesses at once from one address: no more than the five of the per-address limit are judged', async () => {
     await account();
     const results = await Promise.all(
-      Array.from({ length: 20 }, (_, i) => signIn(deps, { email: 'owner@example.test', password: `wrong-${i}` }, { ip: '203.0.113.9' })),
+      Array.from({ length: 20 }, (_, i) =>
+        signIn(deps, { email: 'owner@example.test', password: `wrong-${i}` }, { ip: '203.0.113.9' }),
+      ),
     );
     const judged = results.filter((r) => !r.ok && r.status === 401).length;
     // LIMIT_RULES.signInAccountIp: 5 per 5 minutes for one account from one address.
@@ -73,16 +93,28 @@ describe('sign-in limits', () => {
 
   test('a rate-limited attempt is in the audit log with its address', async () => {
     await account();
-    for (let i = 0; i < 7; i++) await signIn(deps, { email: 'owner@example.test', password: 'wrong' }, { ip: '203.0.113.9' });
-    const { rows } = await sql<{ ip: string | null; detail: { reason?: string } }>`select ip::text as ip, detail from audit_events where kind = 'sign_in_failed' order by at, id`.execute(db);
-    expect(rows.map((r) => r.detail.reason)).toEqual([...Array(5).fill('wrong_password'), 'rate_limited', 'rate_limited']);
+    for (let i = 0; i < 7; i++)
+      await signIn(deps, { email: 'owner@example.test', password: 'wrong' }, { ip: '203.0.113.9' });
+    const { rows } = await sql<{
+      ip: string | null;
+      detail: { reason?: string };
+    }>`select ip::text as ip, detail from audit_events where kind = 'sign_in_failed' order by at, id`.execute(db);
+    expect(rows.map((r) => r.detail.reason)).toEqual([
+      ...Array(5).fill('wrong_password'),
+      'rate_limited',
+      'rate_limited',
+    ]);
     expect(new Set(rows.map((r) => r.ip?.replace(/\/32$/, '')))).toEqual(new Set(['203.0.113.9']));
   });
 
   test('a successful sign-in gives back what it spent on the address', async () => {
     await account();
     for (let i = 0; i < 40; i++) {
-      const r = await signIn(deps, { email: 'owner@example.test', password: PASSWORD }, { ip: '203.0.113.77', knownDevice: true });
+      const r = await signIn(
+        deps,
+        { email: 'owner@example.test', password: PASSWORD },
+        { ip: '203.0.113.77', knownDevice: true },
+      );
       expect(r.ok).toBe(true);
     }
   });
@@ -115,9 +147,25 @@ describe('mail and password limits', () => {
     const r = await account();
     const session = await deps.lucia.createSession(r.userId, { current_crew_id: r.crewId });
     for (let i = 0; i < 5; i++) {
-      expect(await changePassword(deps, r.userId, session.id, { currentPassword: 'wrong', newPassword: 'another long password' }, { ip: null })).toMatchObject({ status: 400 });
+      expect(
+        await changePassword(
+          deps,
+          r.userId,
+          session.id,
+          { currentPassword: 'wrong', newPassword: 'another long password' },
+          { ip: null },
+        ),
+      ).toMatchObject({ status: 400 });
     }
-    expect(await changePassword(deps, r.userId, session.id, { currentPassword: PASSWORD, newPassword: 'another long password' }, { ip: null })).toMatchObject({ ok: false, status: 429 });
+    expect(
+      await changePassword(
+        deps,
+        r.userId,
+        session.id,
+        { currentPassword: PASSWORD, newPassword: 'another long password' },
+        { ip: null },
+      ),
+    ).toMatchObject({ ok: false, status: 429 });
   });
 });
 
@@ -127,7 +175,11 @@ describe('invitations', () => {
     const user = await makeUser(db, { email: `lead-${verified}@example.test` });
     if (!verified) await db.updateTable('users').set({ email_verified_at: null }).where('id', '=', user.id).execute();
     await addMember(db, crew.id, user.id, 'lead');
-    const actor: CrewActor = { userId: user.id, displayName: 'Lead', membership: await findMembership(db, crew.id, user.id) };
+    const actor: CrewActor = {
+      userId: user.id,
+      displayName: 'Lead',
+      membership: await findMembership(db, crew.id, user.id),
+    };
     return { crew, actor };
   }
 
@@ -139,11 +191,19 @@ describe('invitations', () => {
   });
 
   test('a crew sends at most its daily number of invitations', async () => {
-    const limits = createRateLimits(pool, { ...LIMIT_RULES, inviteCrew: { keyPrefix: 'invite_crew', points: 3, duration: 24 * 60 * 60 } });
+    const limits = createRateLimits(pool, {
+      ...LIMIT_RULES,
+      inviteCrew: { keyPrefix: 'invite_crew', points: 3, duration: 24 * 60 * 60 },
+    });
     const { actor } = await lead(true);
     const statuses: number[] = [];
     for (let i = 0; i < 4; i++) {
-      const r = await inviteMember({ ...deps, limits }, actor, { email: `p${i}@example.test`, role: 'rider' }, { ip: null });
+      const r = await inviteMember(
+        { ...deps, limits },
+        actor,
+        { email: `p${i}@example.test`, role: 'rider' },
+        { ip: null },
+      );
       statuses.push(r.ok ? 200 : r.status);
     }
     expect(statuses).toEqual([200, 200, 200, 429]);
@@ -153,7 +213,10 @@ describe('invitations', () => {
 
 describe('rate_limits housekeeping', () => {
   test('prune deletes counters whose window has ended and keeps live ones', async () => {
-    const limits = createRateLimits(pool, { ...LIMIT_RULES, signUpIp: { keyPrefix: 'signup_ip', points: 5, duration: 1 } });
+    const limits = createRateLimits(pool, {
+      ...LIMIT_RULES,
+      signUpIp: { keyPrefix: 'signup_ip', points: 5, duration: 1 },
+    });
     await limits.consume('signUpIp', 'old');
     await limits.consume('resetIp', 'live');
     await new Promise((r) => setTimeout(r, 1_100));

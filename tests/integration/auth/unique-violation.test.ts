@@ -8,8 +8,12 @@ import { openTestDb, truncateAll } from '../test-database';
 // expression (lower(email)), which has no constraint of its own.
 
 const db = openTestDb();
-afterAll(async () => { await db.destroy(); });
-beforeEach(async () => { await truncateAll(db); });
+afterAll(async () => {
+  await db.destroy();
+});
+beforeEach(async () => {
+  await truncateAll(db);
+});
 
 async function errorOf(work: () => Promise<unknown>): Promise<unknown> {
   try {
@@ -29,7 +33,12 @@ describe('uniqueViolation against PostgreSQL', () => {
   });
 
   test('another failure (a missing foreign row) is not a unique violation', async () => {
-    const error = await errorOf(() => db.insertInto('crew_members').values({ crew_id: '00000000-0000-4000-8000-000000000000', user_id: 'nobody', role: 'rider' }).execute());
+    const error = await errorOf(() =>
+      db
+        .insertInto('crew_members')
+        .values({ crew_id: '00000000-0000-4000-8000-000000000000', user_id: 'nobody', role: 'rider' })
+        .execute(),
+    );
     expect(uniqueViolation(error, 'users_email_lower_key')).toBe(false);
     expect((error as { code?: string }).code).toBe('23503'); // foreign_key_violation (PostgreSQL manual, Appendix A)
   });

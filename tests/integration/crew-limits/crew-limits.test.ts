@@ -23,16 +23,36 @@ beforeEach(async () => {
   const mech = await makeUser(db);
   await addMember(db, crewId, mech.id, 'mechanic');
   mechanicId = mech.id;
-  const s = await makeSample(db, crewId, c.machineId, leadId, 'LIM-1', { drawnOn: '2026-02-01', odometer: 1000, distanceOnOil: 1000 });
+  const s = await makeSample(db, crewId, c.machineId, leadId, 'LIM-1', {
+    drawnOn: '2026-02-01',
+    odometer: 1000,
+    distanceOnOil: 1000,
+  });
   sampleId = s.id;
   await db.updateTable('samples').set({ state: 'results_in' }).where('id', '=', sampleId).execute();
   // Iron 60 ppm: steady against the default limit of 100 ppm (watch from 80), act against a crew limit of 50.
-  await db.insertInto('readings').values([{ sample_id: sampleId, measurand: 'Fe', value: 60, qualifier: null, lab_import_id: null }]).execute();
+  await db
+    .insertInto('readings')
+    .values([{ sample_id: sampleId, measurand: 'Fe', value: 60, qualifier: null, lab_import_id: null }])
+    .execute();
 });
 
-const fixedLimitFindings = () => db.selectFrom('findings').select(['measurand', 'level']).where('sample_id', '=', sampleId).where('rule_id', '=', 'fixed-limit').execute();
-const limitRows = () => db.selectFrom('crew_limits').select(['measurand', 'act_at', 'updated_by']).where('crew_id', '=', crewId).execute();
-const auditRows = () => db.selectFrom('audit_events').select(['kind', 'detail', 'actor_user_id']).where('crew_id', '=', crewId).where('kind', '=', 'alert_limits_changed').execute();
+const fixedLimitFindings = () =>
+  db
+    .selectFrom('findings')
+    .select(['measurand', 'level'])
+    .where('sample_id', '=', sampleId)
+    .where('rule_id', '=', 'fixed-limit')
+    .execute();
+const limitRows = () =>
+  db.selectFrom('crew_limits').select(['measurand', 'act_at', 'updated_by']).where('crew_id', '=', crewId).execute();
+const auditRows = () =>
+  db
+    .selectFrom('audit_events')
+    .select(['kind', 'detail', 'actor_user_id'])
+    .where('crew_id', '=', crewId)
+    .where('kind', '=', 'alert_limits_changed')
+    .execute();
 
 describe('saveCrewLimits', () => {
   test('a lead lowers the iron limit: stored, audited, and the sample is judged again in the same save', async () => {
@@ -57,20 +77,30 @@ describe('saveCrewLimits', () => {
   });
 
   test('typing the default or saving the same figures changes nothing and records nothing', async () => {
-    expect(await saveCrewLimits(db, lead(), { Fe: 100, Si: 20 } as LimitValues, meta)).toEqual({ ok: true, value: { changed: 0, machinesJudged: 0 } });
+    expect(await saveCrewLimits(db, lead(), { Fe: 100, Si: 20 } as LimitValues, meta)).toEqual({
+      ok: true,
+      value: { changed: 0, machinesJudged: 0 },
+    });
     expect(await limitRows()).toEqual([]);
     expect(await auditRows()).toEqual([]);
   });
 
   test('a mechanic is refused and nothing is written', async () => {
-    const r = await saveCrewLimits(db, { userId: mechanicId, membership: { crewId, crewName: 'Valley school', role: 'mechanic' } }, { Fe: 50 } as LimitValues, meta);
+    const r = await saveCrewLimits(
+      db,
+      { userId: mechanicId, membership: { crewId, crewName: 'Valley school', role: 'mechanic' } },
+      { Fe: 50 } as LimitValues,
+      meta,
+    );
     expect(r).toMatchObject({ ok: false, status: 403 });
     expect(await limitRows()).toEqual([]);
     expect(await auditRows()).toEqual([]);
   });
 
   test('no membership answers not found', async () => {
-    expect(await saveCrewLimits(db, { userId: leadId, membership: null }, { Fe: 50 } as LimitValues, meta)).toMatchObject({ ok: false, status: 404 });
+    expect(
+      await saveCrewLimits(db, { userId: leadId, membership: null }, { Fe: 50 } as LimitValues, meta),
+    ).toMatchObject({ ok: false, status: 404 });
   });
 
   test('the KV100 change limit is stored under KV100 and read by the recompute', async () => {

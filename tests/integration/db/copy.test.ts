@@ -32,17 +32,30 @@ describe('copyRows', () => {
     const labels = ['tab\tand\nnewline', 'back\\slash \\N', 'ünïcödé — “quotes”', null];
     await expect(
       db.transaction().execute(async (trx) => {
-        await sql`create temporary table t_copy (id int primary key, label text, figure float8) on commit drop`.execute(trx);
-        const n = await copyRows(trx, 't_copy', ['id', 'label', 'figure'], labels.map((label, i) => [i, label, i === 3 ? null : i / 3]));
+        await sql`create temporary table t_copy (id int primary key, label text, figure float8) on commit drop`.execute(
+          trx,
+        );
+        const n = await copyRows(
+          trx,
+          't_copy',
+          ['id', 'label', 'figure'],
+          labels.map((label, i) => [i, label, i === 3 ? null : i / 3]),
+        );
         expect(n).toBe(4);
-        const rows = await sql<{ id: number; label: string | null; figure: number | null }>`select id, label, figure from t_copy order by id`.execute(trx);
+        const rows = await sql<{
+          id: number;
+          label: string | null;
+          figure: number | null;
+        }>`select id, label, figure from t_copy order by id`.execute(trx);
         expect(rows.rows).toEqual(labels.map((label, i) => ({ id: i, label, figure: i === 3 ? null : i / 3 })));
         await sql`create table copy_kept (id int)`.execute(trx);
         await copyRows(trx, 'copy_kept', ['id'], [[1], [2]]);
         throw new Error('roll back');
       }),
     ).rejects.toThrow('roll back');
-    const kept = await sql<{ n: number }>`select count(*)::int as n from pg_tables where tablename = 'copy_kept'`.execute(db);
+    const kept = await sql<{
+      n: number;
+    }>`select count(*)::int as n from pg_tables where tablename = 'copy_kept'`.execute(db);
     expect(kept.rows[0]!.n).toBe(0);
   });
 
@@ -60,9 +73,13 @@ describe('copyRows', () => {
   test('many rows stream through in chunks', async () => {
     const count = await db.transaction().execute(async (trx) => {
       await sql`create temporary table t_many (id int, label text) on commit drop`.execute(trx);
-      function* rows() { for (let i = 0; i < 50_000; i += 1) yield [i, `label ${i}`]; }
+      function* rows() {
+        for (let i = 0; i < 50_000; i += 1) yield [i, `label ${i}`];
+      }
       await copyRows(trx, 't_many', ['id', 'label'], rows());
-      return (await sql<{ n: number; s: number }>`select count(*)::int as n, sum(id)::float8 as s from t_many`.execute(trx)).rows[0]!;
+      return (
+        await sql<{ n: number; s: number }>`select count(*)::int as n, sum(id)::float8 as s from t_many`.execute(trx)
+      ).rows[0]!;
     });
     expect(count).toEqual({ n: 50_000, s: (49_999 * 50_000) / 2 });
   });

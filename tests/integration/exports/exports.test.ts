@@ -13,14 +13,25 @@ describe('readings export', () => {
     const c = await makeCrewWithRoles(db);
     const a = await c.machine({ name: '=Alder' });
     const b = await c.machine({ name: 'Birch' });
-    await addSamples(db, c.crew.id, a.id, c.rider.id, [{ drawnOn: '2026-01-01', odometer: 1000, readings: { Fe: 12, Al: 30 }, findings: [{ measurand: 'Al', level: 'act', ruleId: 'fixed-limit' }] }]);
+    await addSamples(db, c.crew.id, a.id, c.rider.id, [
+      {
+        drawnOn: '2026-01-01',
+        odometer: 1000,
+        readings: { Fe: 12, Al: 30 },
+        findings: [{ measurand: 'Al', level: 'act', ruleId: 'fixed-limit' }],
+      },
+    ]);
     await addSamples(db, c.crew.id, b.id, c.rider.id, [{ drawnOn: '2026-01-02', odometer: 500, readings: { Fe: 5 } }]);
     const other = await makeCrewWithRoles(db, 'Other');
-    await addSamples(db, other.crew.id, (await other.machine({ name: 'Other bike' })).id, other.rider.id, [{ drawnOn: '2026-01-01', odometer: 1, readings: { Fe: 99 } }]);
+    await addSamples(db, other.crew.id, (await other.machine({ name: 'Other bike' })).id, other.rider.id, [
+      { drawnOn: '2026-01-01', odometer: 1, readings: { Fe: 99 } },
+    ]);
 
     const all = await listExportReadings(db, c.crew.id);
     expect(all.map((r) => [r.machineName, r.measurand, r.value, r.level])).toEqual([
-      ['=Alder', 'Al', 30, 'act'], ['=Alder', 'Fe', 12, 'steady'], ['Birch', 'Fe', 5, 'steady'],
+      ['=Alder', 'Al', 30, 'act'],
+      ['=Alder', 'Fe', 12, 'steady'],
+      ['Birch', 'Fe', 5, 'steady'],
     ]);
     const one = await listExportReadings(db, c.crew.id, b.id);
     expect(one.map((r) => r.machineName)).toEqual(['Birch']);

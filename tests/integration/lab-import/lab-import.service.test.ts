@@ -6,12 +6,7 @@ import pg from 'pg';
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import type { Database } from '~/lib/db/database';
 import { MAX_LAB_FILE_BYTES } from '~/lib/lab-csv/lab-csv';
-import {
-  confirmLabImport,
-  previewLabImport,
-  saveLabProfile,
-  storeLabFile,
-} from '~/lib/lab-import/lab-import.service';
+import { confirmLabImport, previewLabImport, saveLabProfile, storeLabFile } from '~/lib/lab-import/lab-import.service';
 import { recomputeFindings } from '~/lib/findings/findings.service';
 import { computeCheckSymbol } from '~/lib/samples/bottle-code';
 import { openTestDb, TEST_DATABASE, truncateAll } from '../test-database';
@@ -21,8 +16,12 @@ const FIXTURES = path.resolve(__dirname, '../../fixtures/lab-csv');
 const fixture = (name: string) => new Uint8Array(readFileSync(path.join(FIXTURES, name)));
 
 const db: Kysely<Database> = openTestDb();
-afterAll(async () => { await db.destroy(); });
-beforeEach(async () => { await truncateAll(db); });
+afterAll(async () => {
+  await db.destroy();
+});
+beforeEach(async () => {
+  await truncateAll(db);
+});
 
 const HEADER = 'Bottle,Sampled,Fe,Al,Si,Cu';
 const csv = (...rows: string[]) => `${HEADER}\n${rows.join('\n')}\n`;
@@ -72,7 +71,9 @@ describe('storeLabFile: size and content checks, nothing written on refusal', ()
     const text = csv('SW-1,2026-02-01,30,5,9,3');
     const first = await storeLabFile(db, { crewId, userId, fileName: 'a.csv', bytes: bytesOf(text) });
     const again = await storeLabFile(db, { crewId, userId, fileName: 'b.csv', bytes: bytesOf(text) });
-    expect(first.ok && again.ok && again.value.labFileId === first.value.labFileId && again.value.status).toBe('already-uploaded');
+    expect(first.ok && again.ok && again.value.labFileId === first.value.labFileId && again.value.status).toBe(
+      'already-uploaded',
+    );
     if (!first.ok) return;
     const confirmed = await confirmLabImport(db, { crewId, userId, labFileId: first.value.labFileId, decisions: {} });
     expect(confirmed.ok).toBe(true);
@@ -112,7 +113,7 @@ describe('preview and matching', () => {
     expect(preview.value.canConfirm).toBe(true);
   });
 
-  test("a bottle of another crew is unknown, never matched, and cannot be written without a decision", async () => {
+  test('a bottle of another crew is unknown, never matched, and cannot be written without a decision', async () => {
     const mine = await makeImportCrew(db, 'Mine');
     const theirs = await makeImportCrew(db, 'Theirs');
     await makeSample(db, theirs.crewId, theirs.machineId, theirs.userId, 'SW-7777');
@@ -120,13 +121,24 @@ describe('preview and matching', () => {
     const preview = await previewLabImport(db, { crewId: mine.crewId, labFileId: id });
     if (!preview.ok) throw new Error(preview.message);
     expect(preview.value.rows[0]?.match.kind).toBe('unknown');
-    expect(preview.value.rows[0]?.needs).toMatch(/Line 2, column "Bottle": no sample of this crew has bottle code "SW-7777"/);
+    expect(preview.value.rows[0]?.needs).toMatch(
+      /Line 2, column "Bottle": no sample of this crew has bottle code "SW-7777"/,
+    );
     const before = await countImportRows(db);
-    const refused = await confirmLabImport(db, { crewId: mine.crewId, userId: mine.userId, labFileId: id, decisions: {} });
+    const refused = await confirmLabImport(db, {
+      crewId: mine.crewId,
+      userId: mine.userId,
+      labFileId: id,
+      decisions: {},
+    });
     expect(refused.ok).toBe(false);
     expect(await countImportRows(db)).toEqual(before);
     // The other crew's sample is untouched.
-    const theirSample = await db.selectFrom('samples').select('state').where('crew_id', '=', theirs.crewId).executeTakeFirstOrThrow();
+    const theirSample = await db
+      .selectFrom('samples')
+      .select('state')
+      .where('crew_id', '=', theirs.crewId)
+      .executeTakeFirstOrThrow();
     expect(theirSample.state).toBe('shipped');
   });
 
@@ -182,7 +194,7 @@ describe('preview and matching', () => {
     expect((await countImportRows(db)).lab_imports).toBe(0);
   });
 
-  test("a lab file of another crew answers not found (a forged file id)", async () => {
+  test('a lab file of another crew answers not found (a forged file id)', async () => {
     const a = await makeImportCrew(db, 'A');
     const b = await makeImportCrew(db, 'B');
     await makeSample(db, b.crewId, b.machineId, b.userId, 'SW-1');
@@ -201,25 +213,46 @@ describe('confirm', () => {
     const { crewId, userId, machineId } = await makeImportCrew(db);
     const codes = ['SW-1', 'SW-2', 'SW-3', 'SW-4'];
     for (const [i, code] of codes.entries()) {
-      await makeSample(db, crewId, machineId, userId, code, { drawnOn: `2026-0${i + 1}-10`, odometer: 1000 * (i + 1), distanceOnOil: 1000 });
+      await makeSample(db, crewId, machineId, userId, code, {
+        drawnOn: `2026-0${i + 1}-10`,
+        odometer: 1000 * (i + 1),
+        distanceOnOil: 1000,
+      });
     }
     // Invented figures: a steady start, then aluminium far above the fixed limit on the last sample.
-    const id = await upload(crewId, userId, csv(
-      'SW-1,2026-01-10,30,4,8,3',
-      'SW-2,2026-02-10,31,5,9,3',
-      'SW-3,2026-03-10,29,4,8,3',
-      'SW-4,2026-04-10,32,60,9,3',
-    ));
+    const id = await upload(
+      crewId,
+      userId,
+      csv(
+        'SW-1,2026-01-10,30,4,8,3',
+        'SW-2,2026-02-10,31,5,9,3',
+        'SW-3,2026-03-10,29,4,8,3',
+        'SW-4,2026-04-10,32,60,9,3',
+      ),
+    );
     const result = await confirmLabImport(db, { crewId, userId, labFileId: id, decisions: {} });
     if (!result.ok) throw new Error(result.message);
-    expect(result.value).toMatchObject({ samplesWritten: 4, readingsWritten: 16, samplesCreated: 0, samplesReplaced: 0 });
+    expect(result.value).toMatchObject({
+      samplesWritten: 4,
+      readingsWritten: 16,
+      samplesCreated: 0,
+      samplesReplaced: 0,
+    });
     const counts = await countImportRows(db);
     expect(counts).toMatchObject({ lab_imports: 1, readings: 16, sample_events: 4, results_in: 4, interval_calls: 4 });
-    const last = await db.selectFrom('samples').select('id').where('bottle_code', '=', 'SW-4').executeTakeFirstOrThrow();
+    const last = await db
+      .selectFrom('samples')
+      .select('id')
+      .where('bottle_code', '=', 'SW-4')
+      .executeTakeFirstOrThrow();
     const findings = await db.selectFrom('findings').selectAll().where('sample_id', '=', last.id).execute();
     // Al 60 ppm is above the default fixed limit of 20 ppm (DEFAULT_FIXED_LIMITS, src/lib/analysis/rule-definitions.ts).
     expect(findings.some((f) => f.measurand === 'Al' && f.level === 'act')).toBe(true);
-    const call = await db.selectFrom('interval_calls').selectAll().where('sample_id', '=', last.id).executeTakeFirstOrThrow();
+    const call = await db
+      .selectFrom('interval_calls')
+      .selectAll()
+      .where('sample_id', '=', last.id)
+      .executeTakeFirstOrThrow();
     expect(call).toMatchObject({ source: 'engine', call: 'shorten' });
   });
 
@@ -234,29 +267,61 @@ describe('confirm', () => {
     expect(refused.ok).toBe(false);
     if (!refused.ok) expect(refused.fields?.['row.2']).toMatch(/already has 4 results.*replace/);
     expect(await countImportRows(db)).toEqual(before);
-    const done = await confirmLabImport(db, { crewId, userId, labFileId: second, decisions: { '2': { action: 'replace' } } });
+    const done = await confirmLabImport(db, {
+      crewId,
+      userId,
+      labFileId: second,
+      decisions: { '2': { action: 'replace' } },
+    });
     if (!done.ok) throw new Error(done.message);
     expect(done.value.samplesReplaced).toBe(1);
-    const fe = await db.selectFrom('readings').select('value').where('sample_id', '=', sample.id).where('measurand', '=', 'Fe').executeTakeFirstOrThrow();
+    const fe = await db
+      .selectFrom('readings')
+      .select('value')
+      .where('sample_id', '=', sample.id)
+      .where('measurand', '=', 'Fe')
+      .executeTakeFirstOrThrow();
     expect(fe.value).toBe(44);
     const history = await db.selectFrom('reading_history').selectAll().where('sample_id', '=', sample.id).execute();
     expect(history).toHaveLength(4);
-    expect(history.find((h) => h.measurand === 'Fe')).toMatchObject({ value: 30, replaced_by_import: done.value.importId });
+    expect(history.find((h) => h.measurand === 'Fe')).toMatchObject({
+      value: 30,
+      replaced_by_import: done.value.importId,
+    });
   });
 
-  test('an unknown bottle can be created on a chosen machine of the crew, never on another crew\'s machine', async () => {
+  test("an unknown bottle can be created on a chosen machine of the crew, never on another crew's machine", async () => {
     const mine = await makeImportCrew(db, 'Mine');
     const theirs = await makeImportCrew(db, 'Theirs');
     const id = await upload(mine.crewId, mine.userId, csv('LAB-99,2026-02-01,30,5,9,3'));
-    const forged = await confirmLabImport(db, { crewId: mine.crewId, userId: mine.userId, labFileId: id, decisions: { '2': { action: 'create', machineId: theirs.machineId } } });
+    const forged = await confirmLabImport(db, {
+      crewId: mine.crewId,
+      userId: mine.userId,
+      labFileId: id,
+      decisions: { '2': { action: 'create', machineId: theirs.machineId } },
+    });
     expect(forged.ok).toBe(false);
     if (!forged.ok) expect(forged.fields?.['row.2']).toMatch(/not one of this crew's machines/);
     expect((await countImportRows(db)).samples).toBe(0);
-    const done = await confirmLabImport(db, { crewId: mine.crewId, userId: mine.userId, labFileId: id, decisions: { '2': { action: 'create', machineId: mine.machineId } } });
+    const done = await confirmLabImport(db, {
+      crewId: mine.crewId,
+      userId: mine.userId,
+      labFileId: id,
+      decisions: { '2': { action: 'create', machineId: mine.machineId } },
+    });
     if (!done.ok) throw new Error(done.message);
     expect(done.value.samplesCreated).toBe(1);
-    const created = await db.selectFrom('samples').selectAll().where('bottle_code_norm', '=', 'LAB99').executeTakeFirstOrThrow();
-    expect(created).toMatchObject({ crew_id: mine.crewId, machine_id: mine.machineId, state: 'results_in', drawn_on: '2026-02-01' });
+    const created = await db
+      .selectFrom('samples')
+      .selectAll()
+      .where('bottle_code_norm', '=', 'LAB99')
+      .executeTakeFirstOrThrow();
+    expect(created).toMatchObject({
+      crew_id: mine.crewId,
+      machine_id: mine.machineId,
+      state: 'results_in',
+      drawn_on: '2026-02-01',
+    });
   });
 
   test('a failure after the readings insert leaves no trace of the import', async () => {
@@ -280,7 +345,11 @@ describe('confirm', () => {
     ).rejects.toThrow('connection lost');
     expect(readingsSeenInside).toBe(8);
     expect(await countImportRows(db)).toEqual(before);
-    const sample = await db.selectFrom('samples').select('state').where('bottle_code', '=', 'SW-1').executeTakeFirstOrThrow();
+    const sample = await db
+      .selectFrom('samples')
+      .select('state')
+      .where('bottle_code', '=', 'SW-1')
+      .executeTakeFirstOrThrow();
     expect(sample.state).toBe('shipped');
   });
 
@@ -295,13 +364,17 @@ describe('confirm', () => {
     pool.on('error', () => {});
     const fragile = new Kysely<Database>({ dialect: new PostgresDialect({ pool }) });
     await expect(
-      confirmLabImport(fragile, { crewId, userId, labFileId: id, decisions: {} }, {
-        // The server ends this very backend, as a crash or restart would.
-        afterReadings: async (trx) => {
-          const { sql } = await import('kysely');
-          await sql`select pg_terminate_backend(pg_backend_pid())`.execute(trx as Kysely<Database>);
+      confirmLabImport(
+        fragile,
+        { crewId, userId, labFileId: id, decisions: {} },
+        {
+          // The server ends this very backend, as a crash or restart would.
+          afterReadings: async (trx) => {
+            const { sql } = await import('kysely');
+            await sql`select pg_terminate_backend(pg_backend_pid())`.execute(trx as Kysely<Database>);
+          },
         },
-      }),
+      ),
     ).rejects.toThrow();
     await fragile.destroy();
     expect(await countImportRows(db)).toEqual(before);
@@ -320,7 +393,13 @@ describe('lab profiles', () => {
     expect(before.value.canConfirm).toBe(false);
     const jar = before.value.columns.findIndex((c) => c.header === 'Jar');
     const alu = before.value.columns.findIndex((c) => c.header === 'Alu');
-    const saved = await saveLabProfile(db, { crewId, userId, labFileId: first, name: 'Jar lab', targets: { [jar]: 'bottle', [alu]: 'Al' } });
+    const saved = await saveLabProfile(db, {
+      crewId,
+      userId,
+      labFileId: first,
+      name: 'Jar lab',
+      targets: { [jar]: 'bottle', [alu]: 'Al' },
+    });
     expect(saved.ok).toBe(true);
     const second = await upload(crewId, userId, text('SW-2'));
     const preview = await previewLabImport(db, { crewId, labFileId: second });
@@ -346,31 +425,72 @@ describe('lab profiles', () => {
 describe('recomputeFindings', () => {
   test('recomputes one sample against the earlier accepted samples and is idempotent', async () => {
     const { crewId, userId, machineId } = await makeImportCrew(db);
-    for (let i = 1; i <= 4; i++) await makeSample(db, crewId, machineId, userId, `SW-${i}`, { drawnOn: `2026-0${i}-01`, odometer: i * 1000 });
-    const id = await upload(crewId, userId, csv('SW-1,,30,4,8,3', 'SW-2,,31,5,9,3', 'SW-3,,29,4,8,3', 'SW-4,,32,60,9,3'));
+    for (let i = 1; i <= 4; i++)
+      await makeSample(db, crewId, machineId, userId, `SW-${i}`, { drawnOn: `2026-0${i}-01`, odometer: i * 1000 });
+    const id = await upload(
+      crewId,
+      userId,
+      csv('SW-1,,30,4,8,3', 'SW-2,,31,5,9,3', 'SW-3,,29,4,8,3', 'SW-4,,32,60,9,3'),
+    );
     expect((await confirmLabImport(db, { crewId, userId, labFileId: id, decisions: {} })).ok).toBe(true);
-    const last = await db.selectFrom('samples').select('id').where('bottle_code', '=', 'SW-4').executeTakeFirstOrThrow();
-    const before = await db.selectFrom('findings').select(['rule_id', 'level', 'measurand']).where('sample_id', '=', last.id).orderBy('rule_id').execute();
+    const last = await db
+      .selectFrom('samples')
+      .select('id')
+      .where('bottle_code', '=', 'SW-4')
+      .executeTakeFirstOrThrow();
+    const before = await db
+      .selectFrom('findings')
+      .select(['rule_id', 'level', 'measurand'])
+      .where('sample_id', '=', last.id)
+      .orderBy('rule_id')
+      .execute();
     const n = await db.transaction().execute((trx) => recomputeFindings(trx, last.id));
-    const after = await db.selectFrom('findings').select(['rule_id', 'level', 'measurand']).where('sample_id', '=', last.id).orderBy('rule_id').execute();
+    const after = await db
+      .selectFrom('findings')
+      .select(['rule_id', 'level', 'measurand'])
+      .where('sample_id', '=', last.id)
+      .orderBy('rule_id')
+      .execute();
     expect(n).toBe(after.length);
     expect(after).toEqual(before);
-    expect(await db.selectFrom('interval_calls').selectAll().where('sample_id', '=', last.id).execute()).toHaveLength(1);
+    expect(await db.selectFrom('interval_calls').selectAll().where('sample_id', '=', last.id).execute()).toHaveLength(
+      1,
+    );
   });
 });
 
-describe('units: the engine works in the machine\'s own meter, the database in km', () => {
+describe("units: the engine works in the machine's own meter, the database in km", () => {
   test('a machine metered in miles gets its call in miles and stored in km', async () => {
     const { crewId, userId } = await makeImportCrew(db);
     // 3,000 mi maximum and 2,500 mi on this oil, stored as km (1 mi = 1.609344 km, exact, NIST SP 811).
-    const machine = await db.insertInto('machines').values({
-      crew_id: crewId, owner_user_id: userId, name: 'Mile bike', engine_layout: 'single', cooling: 'air', meter: 'mi',
-      recommended_grades: JSON.stringify([]), max_interval_distance: 3000 * 1.609344,
-    }).returning('id').executeTakeFirstOrThrow();
-    const sample = await makeSample(db, crewId, machine.id, userId, 'MI-1', { odometer: 10_000 * 1.609344, distanceOnOil: 2500 * 1.609344 });
-    await db.insertInto('readings').values({ sample_id: sample.id, measurand: 'Fe', value: 10, qualifier: null, lab_import_id: null }).execute();
+    const machine = await db
+      .insertInto('machines')
+      .values({
+        crew_id: crewId,
+        owner_user_id: userId,
+        name: 'Mile bike',
+        engine_layout: 'single',
+        cooling: 'air',
+        meter: 'mi',
+        recommended_grades: JSON.stringify([]),
+        max_interval_distance: 3000 * 1.609344,
+      })
+      .returning('id')
+      .executeTakeFirstOrThrow();
+    const sample = await makeSample(db, crewId, machine.id, userId, 'MI-1', {
+      odometer: 10_000 * 1.609344,
+      distanceOnOil: 2500 * 1.609344,
+    });
+    await db
+      .insertInto('readings')
+      .values({ sample_id: sample.id, measurand: 'Fe', value: 10, qualifier: null, lab_import_id: null })
+      .execute();
     await db.transaction().execute((trx) => recomputeFindings(trx, sample.id));
-    const call = await db.selectFrom('interval_calls').selectAll().where('sample_id', '=', sample.id).executeTakeFirstOrThrow();
+    const call = await db
+      .selectFrom('interval_calls')
+      .selectAll()
+      .where('sample_id', '=', sample.id)
+      .executeTakeFirstOrThrow();
     // Building baseline: hold at the 2,500 mi it ran (a multiple of the 100 mi step), due at 12,500 mi.
     expect(call.call).toBe('hold');
     expect(call.next_interval).toBeCloseTo(2500 * 1.609344, 6);

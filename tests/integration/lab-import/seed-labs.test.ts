@@ -9,7 +9,9 @@ import { makeSample } from './lab-import-fixtures';
 // The demo stories on factory-made machines and samples shaped like the machines seed's (eight samples each:
 // four to make a ready baseline, the story after it).
 const db: Kysely<Database> = openTestDb();
-afterAll(async () => { await db.destroy(); });
+afterAll(async () => {
+  await db.destroy();
+});
 
 const MACHINES = [
   { key: '450', name: 'Ridge 450', engine_layout: 'single', displacement_cc: 449, cooling: 'liquid' },
@@ -28,16 +30,36 @@ beforeAll(async () => {
   const lead = await makeUser(db);
   await addMember(db, school.id, lead.id, 'lead');
   await addMember(db, solo.id, lead.id, 'lead');
-  const all = [...MACHINES.map((m) => ({ ...m, crewId: school.id })), { key: 'solo', name: 'Heath 500', engine_layout: 'single', displacement_cc: 500, cooling: 'liquid', crewId: solo.id }];
+  const all = [
+    ...MACHINES.map((m) => ({ ...m, crewId: school.id })),
+    {
+      key: 'solo',
+      name: 'Heath 500',
+      engine_layout: 'single',
+      displacement_cc: 500,
+      cooling: 'liquid',
+      crewId: solo.id,
+    },
+  ];
   for (const m of all) {
     const { key, crewId, ...row } = m;
-    const machine = await makeMachine(db, crewId, lead.id, { ...row, meter: 'km', max_interval_distance: 6000 } as never);
+    const machine = await makeMachine(db, crewId, lead.id, {
+      ...row,
+      meter: 'km',
+      max_interval_distance: 6000,
+    } as never);
     ids[key] = machine.id;
     for (let i = 0; i < 8; i++) {
-      await makeSample(db, crewId, machine.id, lead.id, `${key}-${i + 1}`, { drawnOn: `${2024 + Math.floor(i / 6)}-${String((i % 6) * 2 + 1).padStart(2, '0')}-1${i}`, odometer: 3000 * (i + 1), distanceOnOil: 3000 });
+      await makeSample(db, crewId, machine.id, lead.id, `${key}-${i + 1}`, {
+        drawnOn: `${2024 + Math.floor(i / 6)}-${String((i % 6) * 2 + 1).padStart(2, '0')}-1${i}`,
+        odometer: 3000 * (i + 1),
+        distanceOnOil: 3000,
+      });
     }
   }
-  seeded = await db.transaction().execute((trx) => seedLabReports(trx, { crewIds: [school.id, solo.id], userId: lead.id }));
+  seeded = await db
+    .transaction()
+    .execute((trx) => seedLabReports(trx, { crewIds: [school.id, solo.id], userId: lead.id }));
 });
 
 async function lastSampleWithResults(machineKey: string) {
@@ -51,7 +73,11 @@ async function lastSampleWithResults(machineKey: string) {
 }
 
 async function findingsOf(sampleId: string) {
-  return db.selectFrom('findings').select(['rule_id', 'measurand', 'level']).where('sample_id', '=', sampleId).execute();
+  return db
+    .selectFrom('findings')
+    .select(['rule_id', 'measurand', 'level'])
+    .where('sample_id', '=', sampleId)
+    .execute();
 }
 
 describe('seedLabReports', () => {
@@ -59,9 +85,14 @@ describe('seedLabReports', () => {
     expect(seeded.samples).toBe(39);
     const files = await db.selectFrom('lab_files').select('file_name').execute();
     const names = files.map((f) => f.file_name).join(' ');
-    for (const lab of ['hollow-creek-oil-lab', 'thistlefen-tribology-bench', 'cinderpass-fluid-works']) expect(names).toContain(lab);
+    for (const lab of ['hollow-creek-oil-lab', 'thistlefen-tribology-bench', 'cinderpass-fluid-works'])
+      expect(names).toContain(lab);
     expect(await db.selectFrom('lab_imports').selectAll().execute()).toHaveLength(seeded.files);
-    const waiting = await db.selectFrom('samples').select(['machine_id', 'state']).where('state', '!=', 'results_in').execute();
+    const waiting = await db
+      .selectFrom('samples')
+      .select(['machine_id', 'state'])
+      .where('state', '!=', 'results_in')
+      .execute();
     expect(waiting).toEqual([{ machine_id: ids['650'], state: 'shipped' }]);
   });
 
@@ -76,7 +107,12 @@ describe('seedLabReports', () => {
   });
 
   test('690: a silicon spike flagged as dirt, then gone after the new air filter', async () => {
-    const samples = await db.selectFrom('samples').select('id').where('machine_id', '=', ids['690']!).orderBy('drawn_on').execute();
+    const samples = await db
+      .selectFrom('samples')
+      .select('id')
+      .where('machine_id', '=', ids['690']!)
+      .orderBy('drawn_on')
+      .execute();
     const spike = await findingsOf(samples.at(-3)!.id);
     expect(spike.some((f) => f.rule_id === 'dirt' && f.level === 'act')).toBe(true);
     const after = await findingsOf(samples.at(-1)!.id);
@@ -86,7 +122,11 @@ describe('seedLabReports', () => {
   test("the solo rider's bike earns a stretch", async () => {
     const sample = await lastSampleWithResults('solo');
     expect(await findingsOf(sample.id)).toEqual([]);
-    const call = await db.selectFrom('interval_calls').select(['call', 'source']).where('sample_id', '=', sample.id).executeTakeFirstOrThrow();
+    const call = await db
+      .selectFrom('interval_calls')
+      .select(['call', 'source'])
+      .where('sample_id', '=', sample.id)
+      .executeTakeFirstOrThrow();
     expect(call).toEqual({ call: 'stretch', source: 'engine' });
   });
 });

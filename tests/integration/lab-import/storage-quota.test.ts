@@ -5,8 +5,12 @@ import { storeLabFile } from '~/lib/lab-import/lab-import.service';
 import { sumCrewStorageBytes } from '~/lib/storage-quota/storage-quota.repository';
 
 const db = openTestDb();
-afterAll(async () => { await db.destroy(); });
-beforeEach(async () => { await truncateAll(db); });
+afterAll(async () => {
+  await db.destroy();
+});
+beforeEach(async () => {
+  await truncateAll(db);
+});
 
 const csv = (n: number) => new TextEncoder().encode(`Bottle,Fe\nQ-${n},${n}\n${'x,1\n'.repeat(200)}`);
 
@@ -17,11 +21,25 @@ describe('per-crew storage quota', () => {
     await addMember(db, crew.id, user.id, 'lead');
     await addMember(db, other.id, user.id, 'lead');
     const quotaBytes = 2 * csv(1).byteLength + 10;
-    for (const n of [1, 2]) expect((await storeLabFile(db, { crewId: crew.id, userId: user.id, fileName: `r${n}.csv`, bytes: csv(n), quotaBytes })).ok).toBe(true);
-    const third = await storeLabFile(db, { crewId: crew.id, userId: user.id, fileName: 'r3.csv', bytes: csv(3), quotaBytes });
+    for (const n of [1, 2])
+      expect(
+        (await storeLabFile(db, { crewId: crew.id, userId: user.id, fileName: `r${n}.csv`, bytes: csv(n), quotaBytes }))
+          .ok,
+      ).toBe(true);
+    const third = await storeLabFile(db, {
+      crewId: crew.id,
+      userId: user.id,
+      fileName: 'r3.csv',
+      bytes: csv(3),
+      quotaBytes,
+    });
     expect(third).toMatchObject({ ok: false, status: 413, code: 'quota_exceeded' });
-    expect(third.ok ? '' : third.message).toMatch(/^Your crew has used 0 MB of its 0 MB for photos and lab files, so this file was not kept\./);
+    expect(third.ok ? '' : third.message).toMatch(
+      /^Your crew has used 0 MB of its 0 MB for photos and lab files, so this file was not kept\./,
+    );
     expect(await sumCrewStorageBytes(db, crew.id)).toBe(2 * csv(1).byteLength);
-    expect((await storeLabFile(db, { crewId: other.id, userId: user.id, fileName: 'r3.csv', bytes: csv(3), quotaBytes })).ok).toBe(true);
+    expect(
+      (await storeLabFile(db, { crewId: other.id, userId: user.id, fileName: 'r3.csv', bytes: csv(3), quotaBytes })).ok,
+    ).toBe(true);
   });
 });

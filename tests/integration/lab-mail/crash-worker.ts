@@ -12,7 +12,9 @@ await processInboundMails(db, {
   env,
   hooks: {
     afterStore: async (trx) => {
-      const { rows } = await (await import('kysely')).sql<{ n: number }>`select count(*)::int as n from lab_files`.execute(trx);
+      const { rows } = await (
+        await import('kysely')
+      ).sql<{ n: number }>`select count(*)::int as n from lab_files`.execute(trx);
       // Proof for the test that the kill really came after storage: the files exist inside the transaction.
       process.stdout.write(`stored-in-transaction ${rows[0]?.n ?? 0}\n`);
       process.kill(process.pid, 'SIGKILL');

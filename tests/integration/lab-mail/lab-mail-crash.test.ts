@@ -25,7 +25,11 @@ beforeEach(async () => {
 
 function runCrashWorker(): Promise<{ signal: NodeJS.Signals | null; out: string }> {
   return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, ['--import', 'tsx', path.join(here, 'crash-worker.ts'), TEST_DATABASE.url()], { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
+    const child = spawn(
+      process.execPath,
+      ['--import', 'tsx', path.join(here, 'crash-worker.ts'), TEST_DATABASE.url()],
+      { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] },
+    );
     let out = '';
     child.stdout.on('data', (d: Buffer) => (out += d.toString()));
     child.stderr.on('data', (d: Buffer) => (out += d.toString()));
@@ -36,8 +40,20 @@ function runCrashWorker(): Promise<{ signal: NodeJS.Signals | null; out: string 
 
 test('a worker killed between receipt and storage loses nothing: the message is processed once after restart', async () => {
   const { crew, address } = await makeMailCrew(db);
-  const raw = await composeMail({ to: address, attachments: [{ filename: 'a.csv', content: LAB_CSV }, { filename: 'b.xlsx', content: await makeLabWorkbook() }] });
-  const received = await receiveInboundMail(db, { via: 'smtp', envelopeFrom: null, recipient: address, raw, domain: DOMAIN });
+  const raw = await composeMail({
+    to: address,
+    attachments: [
+      { filename: 'a.csv', content: LAB_CSV },
+      { filename: 'b.xlsx', content: await makeLabWorkbook() },
+    ],
+  });
+  const received = await receiveInboundMail(db, {
+    via: 'smtp',
+    envelopeFrom: null,
+    recipient: address,
+    raw,
+    domain: DOMAIN,
+  });
   expect(received.status).toBe('received');
 
   const crash = await runCrashWorker();
@@ -54,11 +70,20 @@ test('a worker killed between receipt and storage loses nothing: the message is 
   const boss = await startJobQueue({ connectionString: TEST_DATABASE.url(), schema, max: 3, onError: () => {} });
   const transport = createMailTransport('smtp://127.0.0.1:9');
   const registrations = await registerJobs(boss, {
-    db, transport, config: { DATABASE_URL: TEST_DATABASE.url(), MAIL_FROM: 'Sumpwise <no-reply@sumpwise.test>' }, log: () => {},
-    mail: { tickSeconds: 60 }, labMail: { tickSeconds: 0.3, pollingIntervalSeconds: 0.5, env },
+    db,
+    transport,
+    config: { DATABASE_URL: TEST_DATABASE.url(), MAIL_FROM: 'Sumpwise <no-reply@sumpwise.test>' },
+    log: () => {},
+    mail: { tickSeconds: 60 },
+    labMail: { tickSeconds: 0.3, pollingIntervalSeconds: 0.5, env },
   });
   try {
-    await waitFor(async () => (await db.selectFrom('inbound_mails').select('status').executeTakeFirstOrThrow()).status === 'processed', 15_000, 'the message to be processed');
+    await waitFor(
+      async () =>
+        (await db.selectFrom('inbound_mails').select('status').executeTakeFirstOrThrow()).status === 'processed',
+      15_000,
+      'the message to be processed',
+    );
     // More ticks run; none may process it again.
     await new Promise((r) => setTimeout(r, 1_500));
   } finally {

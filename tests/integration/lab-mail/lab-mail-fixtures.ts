@@ -9,7 +9,10 @@ import { getImportAddress } from '~/lib/lab-mail/lab-mail.service';
 import { addMember, makeCrew, makeUser } from '../factories';
 
 export const DOMAIN = 'import.sumpwise.test';
-export const env: AlertEnv = { publicUrl: 'https://sumpwise.test', secret: 'lab-mail-test-secret-of-at-least-32-chars' };
+export const env: AlertEnv = {
+  publicUrl: 'https://sumpwise.test',
+  secret: 'lab-mail-test-secret-of-at-least-32-chars',
+};
 export const LAB_SENDER = 'results@hollow-creek.example';
 
 /** A crew with a lead and a mechanic (both verified), and its import address. */
@@ -55,10 +58,16 @@ export function composeMail(parts: MailParts): Promise<Buffer> {
     date: new Date(Date.UTC(2026, 2, 20, 8, 0, 0)),
     attachments: parts.attachments ?? [],
   });
-  return new Promise((resolve, reject) => composer.compile().build((error, message) => (error ? reject(error) : resolve(message))));
+  return new Promise((resolve, reject) =>
+    composer.compile().build((error, message) => (error ? reject(error) : resolve(message))),
+  );
 }
 
 export async function countLabFiles(db: Kysely<Database>, crewId: string): Promise<number> {
-  const row = await db.selectFrom('lab_files').select((eb) => eb.fn.countAll<number>().as('n')).where('crew_id', '=', crewId).executeTakeFirstOrThrow();
+  const row = await db
+    .selectFrom('lab_files')
+    .select((eb) => eb.fn.countAll<number>().as('n'))
+    .where('crew_id', '=', crewId)
+    .executeTakeFirstOrThrow();
   return Number(row.n);
 }

@@ -22,7 +22,15 @@ const config = { INBOUND_MAIL_DOMAIN: DOMAIN, INBOUND_MAIL_SECRET: SECRET };
 const NOW = 1_790_000_000;
 
 function locals(userId: string, crewId: string, role: Role) {
-  const user: SessionUser = { id: userId, email: 'x@example.test', displayName: 'X', emailVerified: true, distanceUnit: 'km', lengthUnit: 'mm', temperatureUnit: 'C' };
+  const user: SessionUser = {
+    id: userId,
+    email: 'x@example.test',
+    displayName: 'X',
+    emailVerified: true,
+    distanceUnit: 'km',
+    lengthUnit: 'mm',
+    temperatureUnit: 'C',
+  };
   const crew: CrewMembership = { crewId, crewName: 'Mail crew', role };
   return { user, crew };
 }
@@ -39,13 +47,20 @@ describe('POST /api/import-address', () => {
   test('the lead replaces the address: the old one stops working, and the audit log says who did it', async () => {
     const { crew, lead } = await makeMailCrew(db);
     const before = await getImportAddress(db, crew.id, DOMAIN);
-    const res = await handleImportAddressPost(db, { request: formRequest('action=rotate'), locals: locals(lead.id, crew.id, 'lead'), ip: '192.0.2.7', config });
+    const res = await handleImportAddressPost(db, {
+      request: formRequest('action=rotate'),
+      locals: locals(lead.id, crew.id, 'lead'),
+      ip: '192.0.2.7',
+      config,
+    });
     expect(res.status).toBe(200);
     const after = await getImportAddress(db, crew.id, DOMAIN);
     expect(after.address).not.toBe(before.address);
     expect(after.address).toMatch(/^lab-[a-z2-7]{26}@import\.sumpwise\.test$/);
     const events = await db.selectFrom('audit_events').select(['kind', 'actor_user_id', 'crew_id', 'ip']).execute();
-    expect(events).toEqual([{ kind: 'import_address_rotated', actor_user_id: lead.id, crew_id: crew.id, ip: '192.0.2.7' }]);
+    expect(events).toEqual([
+      { kind: 'import_address_rotated', actor_user_id: lead.id, crew_id: crew.id, ip: '192.0.2.7' },
+    ]);
   });
 
   test.each([
@@ -54,29 +69,56 @@ describe('POST /api/import-address', () => {
   ] as const)('a %s cannot change it (%i)', async (role, status) => {
     const { crew, mechanic } = await makeMailCrew(db);
     const before = await getImportAddress(db, crew.id, DOMAIN);
-    const res = await handleImportAddressPost(db, { request: formRequest('action=rotate'), locals: locals(mechanic.id, crew.id, role), ip: null, config });
+    const res = await handleImportAddressPost(db, {
+      request: formRequest('action=rotate'),
+      locals: locals(mechanic.id, crew.id, role),
+      ip: null,
+      config,
+    });
     expect(res.status).toBe(status);
     expect((await getImportAddress(db, crew.id, DOMAIN)).address).toBe(before.address);
   });
 
   test('signed out: 401 for scripts, sign-in for a browser form', async () => {
-    const json = await handleImportAddressPost(db, { request: formRequest('action=rotate'), locals: { user: null, crew: null }, ip: null, config });
+    const json = await handleImportAddressPost(db, {
+      request: formRequest('action=rotate'),
+      locals: { user: null, crew: null },
+      ip: null,
+      config,
+    });
     expect(json.status).toBe(401);
-    const html = await handleImportAddressPost(db, { request: formRequest('action=rotate', true), locals: { user: null, crew: null }, ip: null, config });
+    const html = await handleImportAddressPost(db, {
+      request: formRequest('action=rotate', true),
+      locals: { user: null, crew: null },
+      ip: null,
+      config,
+    });
     expect(html.status).toBe(303);
     expect(html.headers.get('location')).toBe('/sign-in?next=%2Fimports');
   });
 
   test('adds and removes a lab address, normalised, once', async () => {
     const { crew, lead } = await makeMailCrew(db);
-    const ctx = (body: string) => ({ request: formRequest(body), locals: locals(lead.id, crew.id, 'lead'), ip: null, config });
-    expect((await handleImportAddressPost(db, ctx('action=add-sender&sender=%20Results%40Lab.Example%20'))).status).toBe(200);
+    const ctx = (body: string) => ({
+      request: formRequest(body),
+      locals: locals(lead.id, crew.id, 'lead'),
+      ip: null,
+      config,
+    });
+    expect(
+      (await handleImportAddressPost(db, ctx('action=add-sender&sender=%20Results%40Lab.Example%20'))).status,
+    ).toBe(200);
     expect((await getImportAddress(db, crew.id, DOMAIN)).senders).toEqual(['results@lab.example']);
     const again = await handleImportAddressPost(db, ctx('action=add-sender&sender=results%40lab.example'));
     expect(again.status).toBe(409);
-    expect((await handleImportAddressPost(db, ctx('action=remove-sender&sender=results%40lab.example'))).status).toBe(200);
+    expect((await handleImportAddressPost(db, ctx('action=remove-sender&sender=results%40lab.example'))).status).toBe(
+      200,
+    );
     expect((await getImportAddress(db, crew.id, DOMAIN)).senders).toEqual([]);
-    expect((await db.selectFrom('audit_events').select('kind').orderBy('id').execute()).map((e) => e.kind)).toEqual(['import_sender_added', 'import_sender_removed']);
+    expect((await db.selectFrom('audit_events').select('kind').orderBy('id').execute()).map((e) => e.kind)).toEqual([
+      'import_sender_added',
+      'import_sender_removed',
+    ]);
   });
 
   test.each([
@@ -87,7 +129,12 @@ describe('POST /api/import-address', () => {
   ])('refuses %s and writes nothing', async (_what, body, status) => {
     const { crew, lead } = await makeMailCrew(db);
     const before = await getImportAddress(db, crew.id, DOMAIN);
-    const res = await handleImportAddressPost(db, { request: formRequest(body), locals: locals(lead.id, crew.id, 'lead'), ip: null, config });
+    const res = await handleImportAddressPost(db, {
+      request: formRequest(body),
+      locals: locals(lead.id, crew.id, 'lead'),
+      ip: null,
+      config,
+    });
     expect(res.status).toBe(status);
     const after = await getImportAddress(db, crew.id, DOMAIN);
     expect(after).toEqual(before);
@@ -95,7 +142,11 @@ describe('POST /api/import-address', () => {
   });
 });
 
-async function webhookRequest(raw: Buffer, recipient: string, over: { secret?: string; timestamp?: number; type?: string; signature?: string } = {}): Promise<Request> {
+async function webhookRequest(
+  raw: Buffer,
+  recipient: string,
+  over: { secret?: string; timestamp?: number; type?: string; signature?: string } = {},
+): Promise<Request> {
   const ts = String(over.timestamp ?? NOW);
   return new Request('http://127.0.0.1/api/inbound-mail', {
     method: 'POST',
@@ -138,14 +189,24 @@ describe('POST /api/inbound-mail (webhook)', () => {
   test('a message for an unknown address is refused (404) and logged', async () => {
     await makeMailCrew(db);
     const to = `lab-${'z'.repeat(26)}@${DOMAIN}`;
-    const res = await handleInboundWebhook(db, await webhookRequest(Buffer.from('From: a@b.example\r\n\r\nx'), to), config, NOW);
+    const res = await handleInboundWebhook(
+      db,
+      await webhookRequest(Buffer.from('From: a@b.example\r\n\r\nx'), to),
+      config,
+      NOW,
+    );
     expect(res.status).toBe(404);
     expect(await db.selectFrom('inbound_mails').select('status').execute()).toEqual([{ status: 'refused' }]);
   });
 
   test('a body over 25 MiB is refused (413) without being stored', async () => {
     const { address } = await makeMailCrew(db);
-    const res = await handleInboundWebhook(db, await webhookRequest(Buffer.alloc(26 * 1024 * 1024, 'a'), address), config, NOW);
+    const res = await handleInboundWebhook(
+      db,
+      await webhookRequest(Buffer.alloc(26 * 1024 * 1024, 'a'), address),
+      config,
+      NOW,
+    );
     expect(res.status).toBe(413);
     expect(await db.selectFrom('inbound_mails').selectAll().execute()).toEqual([]);
   });
@@ -164,7 +225,12 @@ describe('POST /api/inbound-mail (webhook)', () => {
     });
     const request = new Request('http://127.0.0.1/api/inbound-mail', {
       method: 'POST',
-      headers: { 'content-type': 'message/rfc822', [WEBHOOK_HEADERS.timestamp]: String(NOW), [WEBHOOK_HEADERS.recipient]: address, [WEBHOOK_HEADERS.signature]: 'sha256=00' },
+      headers: {
+        'content-type': 'message/rfc822',
+        [WEBHOOK_HEADERS.timestamp]: String(NOW),
+        [WEBHOOK_HEADERS.recipient]: address,
+        [WEBHOOK_HEADERS.signature]: 'sha256=00',
+      },
       body: stream,
       duplex: 'half',
     } as RequestInit);
@@ -176,7 +242,12 @@ describe('POST /api/inbound-mail (webhook)', () => {
 
   test('without INBOUND_MAIL_SECRET the endpoint does not exist', async () => {
     const { address } = await makeMailCrew(db);
-    const res = await handleInboundWebhook(db, await webhookRequest(Buffer.from('x'), address), { INBOUND_MAIL_DOMAIN: DOMAIN }, NOW);
+    const res = await handleInboundWebhook(
+      db,
+      await webhookRequest(Buffer.from('x'), address),
+      { INBOUND_MAIL_DOMAIN: DOMAIN },
+      NOW,
+    );
     expect(res.status).toBe(404);
   });
 });

@@ -6,7 +6,16 @@ import { startMailRelay, type RunningMailRelay } from '~/lib/mail/relay';
 import { changeSender, processInboundMails } from '~/lib/lab-mail/lab-mail.service';
 import { MAX_INBOUND_MAIL_BYTES } from '~/lib/lab-mail/lab-mail';
 import { openTestDb, truncateAll } from '../test-database';
-import { composeMail, countLabFiles, DOMAIN, env, LAB_CSV, LAB_SENDER, makeLabWorkbook, makeMailCrew } from './lab-mail-fixtures';
+import {
+  composeMail,
+  countLabFiles,
+  DOMAIN,
+  env,
+  LAB_CSV,
+  LAB_SENDER,
+  makeLabWorkbook,
+  makeMailCrew,
+} from './lab-mail-fixtures';
 
 const db = openTestDb();
 let relay: RunningMailRelay;
@@ -24,7 +33,11 @@ beforeEach(async () => {
 });
 
 /** Deliver a raw message to the relay as a lab's mail server would; resolves to the relay's answer. */
-async function deliver(raw: Buffer, to: string, from = LAB_SENDER): Promise<{ ok: true; response: string } | { ok: false; code: number | undefined; message: string }> {
+async function deliver(
+  raw: Buffer,
+  to: string,
+  from = LAB_SENDER,
+): Promise<{ ok: true; response: string } | { ok: false; code: number | undefined; message: string }> {
   const transport = nodemailer.createTransport({ host: '127.0.0.1', port: relay.port, secure: false, ignoreTLS: true });
   try {
     const info = await transport.sendMail({ envelope: { from, to: [to] }, raw });
@@ -49,7 +62,11 @@ describe('lab mail through the local relay', () => {
       to: address,
       attachments: [
         { filename: 'results.csv', content: LAB_CSV, contentType: 'text/csv' },
-        { filename: 'results.xlsx', content: await makeLabWorkbook(), contentType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet' },
+        {
+          filename: 'results.xlsx',
+          content: await makeLabWorkbook(),
+          contentType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
+        },
         { filename: 'letter.pdf', content: Buffer.from('%PDF-1.4 not a lab file'), contentType: 'application/pdf' },
       ],
     });
@@ -93,7 +110,11 @@ describe('lab mail through the local relay', () => {
     expect(again.ok && again.response).toContain('already received');
     expect(await processInboundMails(db, { env })).toEqual({ processed: 0, setAside: 0, filesStored: 0 });
     // Resent with another Message-ID: a new message, but the same file is not stored or announced twice.
-    const resent = await composeMail({ to: address, messageId: '<fixed-2@hollow-creek.example>', attachments: [{ filename: 'results.csv', content: LAB_CSV }] });
+    const resent = await composeMail({
+      to: address,
+      messageId: '<fixed-2@hollow-creek.example>',
+      attachments: [{ filename: 'results.csv', content: LAB_CSV }],
+    });
     expect(await deliver(resent, address)).toMatchObject({ ok: true });
     expect(await processInboundMails(db, { env })).toEqual({ processed: 1, setAside: 0, filesStored: 0 });
     expect(await countLabFiles(db, crew.id)).toBe(1);
@@ -115,7 +136,11 @@ describe('lab mail through the local relay', () => {
   test('a sender off the allow-list is kept aside with a sentence and never imported', async () => {
     const { crew, lead, address } = await makeMailCrew(db);
     await changeSender(db, { crewId: crew.id, userId: lead.id, ip: null, sender: LAB_SENDER, add: true });
-    const raw = await composeMail({ from: 'someone@elsewhere.example', to: address, attachments: [{ filename: 'r.csv', content: LAB_CSV }] });
+    const raw = await composeMail({
+      from: 'someone@elsewhere.example',
+      to: address,
+      attachments: [{ filename: 'r.csv', content: LAB_CSV }],
+    });
     expect(await deliver(raw, address, 'someone@elsewhere.example')).toMatchObject({ ok: true });
     expect(await processInboundMails(db, { env })).toEqual({ processed: 0, setAside: 1, filesStored: 0 });
     const [row] = await inbound();
@@ -124,7 +149,11 @@ describe('lab mail through the local relay', () => {
     expect(await countLabFiles(db, crew.id)).toBe(0);
     expect(await db.selectFrom('mail_outbox').selectAll().execute()).toEqual([]);
     // The listed sender still gets through.
-    const good = await composeMail({ to: address, messageId: '<ok@x>', attachments: [{ filename: 'r.csv', content: LAB_CSV }] });
+    const good = await composeMail({
+      to: address,
+      messageId: '<ok@x>',
+      attachments: [{ filename: 'r.csv', content: LAB_CSV }],
+    });
     await deliver(good, address);
     expect(await processInboundMails(db, { env })).toEqual({ processed: 1, setAside: 0, filesStored: 1 });
   });
@@ -144,7 +173,10 @@ describe('lab mail through the local relay', () => {
 
   test.each([
     ['no header block', Buffer.from('just some bytes without any header\x00\x01')],
-    ['a multipart type without a boundary', Buffer.from('From: results@hollow-creek.example\r\nContent-Type: multipart/mixed\r\n\r\n--x\r\nbody\r\n')],
+    [
+      'a multipart type without a boundary',
+      Buffer.from('From: results@hollow-creek.example\r\nContent-Type: multipart/mixed\r\n\r\n--x\r\nbody\r\n'),
+    ],
     ['a header line that is not a header', Buffer.from('From: a@b.example\r\nthis is not a header\r\n\r\nbody')],
   ])('malformed MIME (%s) is kept aside with its reason', async (_what, raw) => {
     const { crew, address } = await makeMailCrew(db);
@@ -152,24 +184,38 @@ describe('lab mail through the local relay', () => {
     expect(await processInboundMails(db, { env })).toEqual({ processed: 0, setAside: 1, filesStored: 0 });
     const [row] = await inbound();
     expect(row?.status).toBe('set_aside');
-    expect(row?.reason).toMatch(/^The message could not be read as e-mail \(.+\), so it was kept aside and nothing was imported\.$/);
+    expect(row?.reason).toMatch(
+      /^The message could not be read as e-mail \(.+\), so it was kept aside and nothing was imported\.$/,
+    );
     expect(await countLabFiles(db, crew.id)).toBe(0);
   });
 
   test('a message without a lab attachment is kept aside, naming what it had', async () => {
     const { crew, address } = await makeMailCrew(db);
-    const raw = await composeMail({ to: address, attachments: [{ filename: 'photo.jpg', content: Buffer.from([0xff, 0xd8, 0xff, 0xe0]), contentType: 'image/jpeg' }] });
+    const raw = await composeMail({
+      to: address,
+      attachments: [
+        { filename: 'photo.jpg', content: Buffer.from([0xff, 0xd8, 0xff, 0xe0]), contentType: 'image/jpeg' },
+      ],
+    });
     await deliver(raw, address);
     await processInboundMails(db, { env });
     const [row] = await inbound();
     expect(row?.status).toBe('set_aside');
-    expect(row?.reason).toBe('The message has no CSV, TSV, text or .xlsx attachment (only "photo.jpg"), so there was nothing to import; it was kept aside.');
+    expect(row?.reason).toBe(
+      'The message has no CSV, TSV, text or .xlsx attachment (only "photo.jpg"), so there was nothing to import; it was kept aside.',
+    );
     expect(await countLabFiles(db, crew.id)).toBe(0);
   });
 
   test('an attachment that fails the upload checks is refused like an upload, with its words', async () => {
     const { crew, address } = await makeMailCrew(db);
-    const raw = await composeMail({ to: address, attachments: [{ filename: 'results.csv', content: Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 1, 2]) }] });
+    const raw = await composeMail({
+      to: address,
+      attachments: [
+        { filename: 'results.csv', content: Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 1, 2]) },
+      ],
+    });
     await deliver(raw, address);
     await processInboundMails(db, { env });
     const [row] = await inbound();

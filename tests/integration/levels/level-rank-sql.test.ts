@@ -9,14 +9,21 @@ afterAll(() => db.destroy());
 
 describe('levelRankSql', () => {
   // The database must rank a level exactly as the screens do, or the overview sorts one way and the cards another.
-  test.each(LEVELS.map((l) => [l, levelRank(l)] as const))('PostgreSQL ranks %s as %i, as levelRank does', async (level, rank) => {
-    const { rows } = await sql<{ rank: number }>`select ${levelRankSql('t.level')} as rank from (select ${level}::text as level) t`.execute(db);
-    expect(Number(rows[0]!.rank)).toBe(rank);
-  });
+  test.each(LEVELS.map((l) => [l, levelRank(l)] as const))(
+    'PostgreSQL ranks %s as %i, as levelRank does',
+    async (level, rank) => {
+      const { rows } = await sql<{
+        rank: number;
+      }>`select ${levelRankSql('t.level')} as rank from (select ${level}::text as level) t`.execute(db);
+      expect(Number(rows[0]!.rank)).toBe(rank);
+    },
+  );
 
   test('the worst of several levels is the max of their ranks', async () => {
     const { rows } = await sql<{ worst: number }>`
-      select max(${levelRankSql('t.level')}) as worst from (values ('watch'), ('steady'), ('act'), ('watch')) as t(level)`.execute(db);
+      select max(${levelRankSql('t.level')}) as worst from (values ('watch'), ('steady'), ('act'), ('watch')) as t(level)`.execute(
+      db,
+    );
     expect(Number(rows[0]!.worst)).toBe(2);
   });
 });
@@ -29,7 +36,9 @@ describe('callUrgencySql', () => {
     ['hold', 2],
     ['stretch', 3],
   ] as const)('PostgreSQL ranks %s as %i', async (call, rank) => {
-    const { rows } = await sql<{ rank: number }>`select ${callUrgencySql('t.call')} as rank from (select ${call}::text as call) t`.execute(db);
+    const { rows } = await sql<{
+      rank: number;
+    }>`select ${callUrgencySql('t.call')} as rank from (select ${call}::text as call) t`.execute(db);
     expect(Number(rows[0]!.rank)).toBe(rank);
     expect(CALLS_BY_URGENCY.indexOf(call)).toBe(rank);
   });

@@ -4,7 +4,12 @@ import { addActor, countRiderRows, makeActor, MACHINE_450 } from '../rider-fixtu
 import { collectMachineForm } from '~/lib/machines/machines';
 import { readFormObject } from '~/lib/http/result';
 import {
-  createMachine, deleteMachine, getMachine, listMachines, setMachineArchived, updateMachine,
+  createMachine,
+  deleteMachine,
+  getMachine,
+  listMachines,
+  setMachineArchived,
+  updateMachine,
 } from '~/lib/machines/machines.service';
 import { createOilChange, listOilChanges } from '~/lib/oil-changes/oil-changes.service';
 
@@ -74,10 +79,14 @@ describe('machines', () => {
     const other = await addActor(db, lead, 'rider');
     const made = await createMachine(db, rider, form(MACHINE_450), 'C');
     if (!made.ok) throw new Error('setup');
-    expect((await updateMachine(db, rider, made.value.id, form({ ...MACHINE_450, name: 'Renamed' }), 'C')).ok).toBe(true);
+    expect((await updateMachine(db, rider, made.value.id, form({ ...MACHINE_450, name: 'Renamed' }), 'C')).ok).toBe(
+      true,
+    );
     const denied = await updateMachine(db, other, made.value.id, form({ ...MACHINE_450, name: 'Nope' }), 'C');
     expect(denied.ok ? 200 : denied.status).toBe(403);
-    expect((await updateMachine(db, lead, made.value.id, form({ ...MACHINE_450, name: 'Lead edit' }), 'C')).ok).toBe(true);
+    expect((await updateMachine(db, lead, made.value.id, form({ ...MACHINE_450, name: 'Lead edit' }), 'C')).ok).toBe(
+      true,
+    );
   });
 
   test('a machine with records is archived, never deleted; an empty one may be deleted', async () => {

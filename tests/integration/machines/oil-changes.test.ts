@@ -18,14 +18,24 @@ async function setup() {
 }
 
 const change = (o: Record<string, unknown> = {}) => ({
-  changedOn: '2025-04-01', odometer: '12000', oilProduct: 'Valley Lube 4T', saeGrade: '10w50', volumeL: '1.2',
-  filterChanged: 'on', topUpL: '0.2', otherWork: 'Drain plug crush washer replaced\n\nValve clearances checked', notes: '', ...o,
+  changedOn: '2025-04-01',
+  odometer: '12000',
+  oilProduct: 'Valley Lube 4T',
+  saeGrade: '10w50',
+  volumeL: '1.2',
+  filterChanged: 'on',
+  topUpL: '0.2',
+  otherWork: 'Drain plug crush washer replaced\n\nValve clearances checked',
+  notes: '',
+  ...o,
 });
 
 describe('oil changes', () => {
   test('logged in the machine’s miles, stored in km, with the distance since the previous change', async () => {
     const { rider, machineId } = await setup();
-    expect((await createOilChange(db, rider, machineId, change({ changedOn: '2024-10-01', odometer: '9,000' }))).ok).toBe(true);
+    expect(
+      (await createOilChange(db, rider, machineId, change({ changedOn: '2024-10-01', odometer: '9,000' }))).ok,
+    ).toBe(true);
     const r = await createOilChange(db, rider, machineId, change());
     expect(r.ok).toBe(true);
     if (!r.ok) return;
@@ -41,12 +51,32 @@ describe('oil changes', () => {
 
   test.each([
     { name: 'negative odometer', over: { odometer: '-5' }, field: 'odometer', message: /cannot be negative/ },
-    { name: 'absurd odometer', over: { odometer: '5000000' }, field: 'odometer', message: /further than any engine runs/ },
-    { name: 'odometer that is not a number', over: { odometer: 'lots' }, field: 'odometer', message: /must be a number/ },
+    {
+      name: 'absurd odometer',
+      over: { odometer: '5000000' },
+      field: 'odometer',
+      message: /further than any engine runs/,
+    },
+    {
+      name: 'odometer that is not a number',
+      over: { odometer: 'lots' },
+      field: 'odometer',
+      message: /must be a number/,
+    },
     { name: 'missing odometer', over: { odometer: '' }, field: 'odometer', message: /Enter the odometer/ },
-    { name: 'grade that is not SAE', over: { saeGrade: '10W-45' }, field: 'saeGrade', message: /not an SAE high-temperature grade/ },
+    {
+      name: 'grade that is not SAE',
+      over: { saeGrade: '10W-45' },
+      field: 'saeGrade',
+      message: /not an SAE high-temperature grade/,
+    },
     { name: 'reversed grade', over: { saeGrade: '40W-10' }, field: 'saeGrade', message: /not an SAE winter grade/ },
-    { name: 'date in the future', over: { changedOn: '2999-01-01' }, field: 'changedOn', message: /cannot be in the future/ },
+    {
+      name: 'date in the future',
+      over: { changedOn: '2999-01-01' },
+      field: 'changedOn',
+      message: /cannot be in the future/,
+    },
     { name: 'absurd volume', over: { volumeL: '55' }, field: 'volumeL', message: /under 40 L/ },
   ])('$name is refused beside the field and writes nothing', async ({ over, field, message }) => {
     const { rider, machineId } = await setup();
@@ -61,9 +91,17 @@ describe('oil changes', () => {
     await createOilChange(db, rider, machineId, change({ changedOn: '2025-01-01', odometer: '12000' }));
     const lower = await createOilChange(db, rider, machineId, change({ changedOn: '2025-06-01', odometer: '300' }));
     expect(lower.ok).toBe(false);
-    if (!lower.ok) expect(lower.fields['odometer']).toMatch(/Lower than the reading at the oil change on 2025-01-01 \(12,000 mi\).*meter replaced/);
+    if (!lower.ok)
+      expect(lower.fields['odometer']).toMatch(
+        /Lower than the reading at the oil change on 2025-01-01 \(12,000 mi\).*meter replaced/,
+      );
     expect((await countRiderRows(db)).oil_changes).toBe(1);
-    const replaced = await createOilChange(db, rider, machineId, change({ changedOn: '2025-06-01', odometer: '300', meterReplaced: 'on' }));
+    const replaced = await createOilChange(
+      db,
+      rider,
+      machineId,
+      change({ changedOn: '2025-06-01', odometer: '300', meterReplaced: 'on' }),
+    );
     expect(replaced.ok).toBe(true);
     const list = await listOilChanges(db, rider, machineId);
     if (list.ok) expect(list.value[0]!.distanceSincePrevious).toBeNull();
@@ -79,7 +117,12 @@ describe('oil changes', () => {
 
   test('someone else’s photo id cannot be attached; the oil change is rolled back', async () => {
     const { rider, machineId } = await setup();
-    const r = await createOilChange(db, rider, machineId, change({ photoIds: ['6f1c2d3e-4b5a-4c6d-8e7f-0123456789ab'] }));
+    const r = await createOilChange(
+      db,
+      rider,
+      machineId,
+      change({ photoIds: ['6f1c2d3e-4b5a-4c6d-8e7f-0123456789ab'] }),
+    );
     expect(r.ok).toBe(false);
     if (!r.ok) expect(r.fields['photos']).toMatch(/could not be attached/);
     expect((await countRiderRows(db)).oil_changes).toBe(0);

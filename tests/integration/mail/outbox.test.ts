@@ -50,7 +50,12 @@ describe('queueMail', () => {
     });
     const rows = await db.selectFrom('mail_outbox').selectAll().execute();
     expect(rows).toHaveLength(1);
-    expect(rows[0]).toMatchObject({ idempotency_key: 'committed', kind: 'sample_reminder', attempts: 0, sent_at: null });
+    expect(rows[0]).toMatchObject({
+      idempotency_key: 'committed',
+      kind: 'sample_reminder',
+      attempts: 0,
+      sent_at: null,
+    });
   });
 
   test('the same idempotency key is queued once, even with different content', async () => {
@@ -91,7 +96,11 @@ describe('deliverDueMail', () => {
     await relay.close();
     try {
       for (let i = 0; i < 3; i++) {
-        expect(await deliverDueMail(db, { transport, from: FROM, backoff })).toEqual({ sent: 0, deferred: 1, failed: 0 });
+        expect(await deliverDueMail(db, { transport, from: FROM, backoff })).toEqual({
+          sent: 0,
+          deferred: 1,
+          failed: 0,
+        });
         await pause(120);
       }
       const waiting = await db.selectFrom('mail_outbox').selectAll().executeTakeFirstOrThrow();
@@ -100,9 +109,14 @@ describe('deliverDueMail', () => {
       expect(waiting.last_error).toMatch(/ECONNREFUSED|ESOCKET|connect/i);
       expect(waiting.next_attempt_at.getTime()).toBeGreaterThan(waiting.last_attempt_at!.getTime());
       // Not yet due again: an immediate flush leaves it alone (the backoff holds).
-      expect(await deliverDueMail(db, { transport, from: FROM, backoff: { ...backoff, baseMs: 60_000, maxMs: 60_000 } })).toEqual({ sent: 0, deferred: 1, failed: 0 });
+      expect(
+        await deliverDueMail(db, { transport, from: FROM, backoff: { ...backoff, baseMs: 60_000, maxMs: 60_000 } }),
+      ).toEqual({ sent: 0, deferred: 1, failed: 0 });
       expect(await deliverDueMail(db, { transport, from: FROM, backoff })).toEqual({ sent: 0, deferred: 0, failed: 0 });
-      await db.updateTable('mail_outbox').set({ next_attempt_at: new Date(Date.now() - 1000) }).execute();
+      await db
+        .updateTable('mail_outbox')
+        .set({ next_attempt_at: new Date(Date.now() - 1000) })
+        .execute();
     } finally {
       relay = await startMailRelay({ db, port });
     }
@@ -117,7 +131,9 @@ describe('deliverDueMail', () => {
   test('four flushes racing over twelve messages deliver each exactly once', async () => {
     const keys = Array.from({ length: 12 }, (_, i) => `race-${i}`);
     for (const k of keys) await queueTestMail(db, k);
-    const reports = await Promise.all(Array.from({ length: 4 }, () => deliverDueMail(db, { transport, from: FROM, backoff })));
+    const reports = await Promise.all(
+      Array.from({ length: 4 }, () => deliverDueMail(db, { transport, from: FROM, backoff })),
+    );
     expect(reports.reduce((n, r) => n + r.sent, 0)).toBe(12);
     for (const k of keys) expect(await countReceived(db, k)).toBe(1);
   });
@@ -131,20 +147,31 @@ describe('deliverDueMail', () => {
 
   test('a recipient the relay refuses for good (550) is marked failed, not retried', async () => {
     const refusing = new SMTPServer({
-      authOptional: true, disabledCommands: ['STARTTLS', 'AUTH'], logger: false,
+      authOptional: true,
+      disabledCommands: ['STARTTLS', 'AUTH'],
+      logger: false,
       onRcptTo(_address, _session, callback) {
         callback(Object.assign(new Error('no such mailbox'), { responseCode: 550 }));
       },
     });
     await new Promise<void>((resolve) => refusing.listen(0, '127.0.0.1', resolve));
-    const refusingTransport = createMailTransport(`smtp://127.0.0.1:${(refusing.server.address() as AddressInfo).port}`);
+    const refusingTransport = createMailTransport(
+      `smtp://127.0.0.1:${(refusing.server.address() as AddressInfo).port}`,
+    );
     try {
       await queueTestMail(db, 'refused');
-      expect(await deliverDueMail(db, { transport: refusingTransport, from: FROM, backoff })).toEqual({ sent: 0, deferred: 0, failed: 1 });
+      expect(await deliverDueMail(db, { transport: refusingTransport, from: FROM, backoff })).toEqual({
+        sent: 0,
+        deferred: 0,
+        failed: 1,
+      });
       const row = await db.selectFrom('mail_outbox').selectAll().executeTakeFirstOrThrow();
       expect(row.failed_at).toBeInstanceOf(Date);
       expect(row.last_error).toMatch(/550/);
-      await db.updateTable('mail_outbox').set({ next_attempt_at: new Date(Date.now() - 1000) }).execute();
+      await db
+        .updateTable('mail_outbox')
+        .set({ next_attempt_at: new Date(Date.now() - 1000) })
+        .execute();
       expect(await deliverDueMail(db, { transport, from: FROM, backoff })).toEqual({ sent: 0, deferred: 0, failed: 0 });
     } finally {
       refusingTransport.close();
@@ -158,8 +185,16 @@ describe('deliverDueMail', () => {
     await relay.close();
     try {
       const tight = { baseMs: 0, maxMs: 0, maxAttempts: 2 };
-      expect(await deliverDueMail(db, { transport, from: FROM, backoff: tight })).toEqual({ sent: 0, deferred: 1, failed: 0 });
-      expect(await deliverDueMail(db, { transport, from: FROM, backoff: tight })).toEqual({ sent: 0, deferred: 0, failed: 1 });
+      expect(await deliverDueMail(db, { transport, from: FROM, backoff: tight })).toEqual({
+        sent: 0,
+        deferred: 1,
+        failed: 0,
+      });
+      expect(await deliverDueMail(db, { transport, from: FROM, backoff: tight })).toEqual({
+        sent: 0,
+        deferred: 0,
+        failed: 1,
+      });
     } finally {
       relay = await startMailRelay({ db, port });
     }

@@ -76,7 +76,11 @@ describe('the worker (pg-boss mail.flush)', () => {
     ).rejects.toThrow('invitation failed');
     // A committed message queued after it shows the worker was running all along.
     await queueTestMail(db, 'worker-after-rollback');
-    await waitFor(async () => (await countReceived(db, 'worker-after-rollback')) === 1, 10_000, 'the committed message');
+    await waitFor(
+      async () => (await countReceived(db, 'worker-after-rollback')) === 1,
+      10_000,
+      'the committed message',
+    );
     await pause(600);
     expect(await countReceived(db, 'worker-rolled-back')).toBe(0);
   });
@@ -86,10 +90,14 @@ describe('the worker (pg-boss mail.flush)', () => {
     await relay.close();
     try {
       await queueTestMail(db, 'worker-outage');
-      await waitFor(async () => {
-        const row = await db.selectFrom('mail_outbox').select('attempts').executeTakeFirst();
-        return (row?.attempts ?? 0) >= 3;
-      }, 15_000, 'three failed attempts');
+      await waitFor(
+        async () => {
+          const row = await db.selectFrom('mail_outbox').select('attempts').executeTakeFirst();
+          return (row?.attempts ?? 0) >= 3;
+        },
+        15_000,
+        'three failed attempts',
+      );
       const waiting = await db.selectFrom('mail_outbox').selectAll().executeTakeFirstOrThrow();
       expect(waiting.sent_at).toBeNull();
       expect(waiting.failed_at).toBeNull();
@@ -97,7 +105,11 @@ describe('the worker (pg-boss mail.flush)', () => {
     } finally {
       relay = await startMailRelay({ db, port });
     }
-    await waitFor(async () => (await countReceived(db, 'worker-outage')) > 0, 10_000, 'delivery after the relay returned');
+    await waitFor(
+      async () => (await countReceived(db, 'worker-outage')) > 0,
+      10_000,
+      'delivery after the relay returned',
+    );
     await pause(1_500);
     expect(await countReceived(db, 'worker-outage')).toBe(1);
     const sent = await db.selectFrom('mail_outbox').selectAll().executeTakeFirstOrThrow();
@@ -113,10 +125,18 @@ describe('the worker (pg-boss mail.flush)', () => {
       await db.transaction().execute(async (trx) => {
         for (const k of keys) await queueMail(trx, testMail(k));
       });
-      await waitFor(async () => {
-        const row = await db.selectFrom('mail_outbox').select((eb) => eb.fn.countAll<number>().as('n')).where('sent_at', 'is not', null).executeTakeFirstOrThrow();
-        return Number(row.n) === keys.length;
-      }, 15_000, 'all twenty messages to be sent');
+      await waitFor(
+        async () => {
+          const row = await db
+            .selectFrom('mail_outbox')
+            .select((eb) => eb.fn.countAll<number>().as('n'))
+            .where('sent_at', 'is not', null)
+            .executeTakeFirstOrThrow();
+          return Number(row.n) === keys.length;
+        },
+        15_000,
+        'all twenty messages to be sent',
+      );
       await pause(1_000);
       for (const k of keys) expect(await countReceived(db, k), k).toBe(1);
     } finally {
@@ -133,16 +153,34 @@ describe('the worker (pg-boss mail.flush)', () => {
       await addMember(db, crew.id, lead.id, 'lead');
       await relay.close();
       const actor = { userId: lead.id, displayName: 'Lead', membership: await findMembership(db, crew.id, lead.id) };
-      const sent = await inviteMember(deps, actor, { email: 'mechanic@example.test', role: 'mechanic' }, { ip: '192.0.2.30' });
+      const sent = await inviteMember(
+        deps,
+        actor,
+        { email: 'mechanic@example.test', role: 'mechanic' },
+        { ip: '192.0.2.30' },
+      );
       expect(sent.ok).toBe(true);
-      await waitFor(async () => ((await db.selectFrom('mail_outbox').select('attempts').executeTakeFirst())?.attempts ?? 0) >= 2, 15_000, 'failed attempts while the relay is down');
-      const arrivedWhileDown = await db.selectFrom('dev_mailbox').selectAll().where('envelope_to', 'like', '%mechanic@example.test%').execute();
+      await waitFor(
+        async () => ((await db.selectFrom('mail_outbox').select('attempts').executeTakeFirst())?.attempts ?? 0) >= 2,
+        15_000,
+        'failed attempts while the relay is down',
+      );
+      const arrivedWhileDown = await db
+        .selectFrom('dev_mailbox')
+        .selectAll()
+        .where('envelope_to', 'like', '%mechanic@example.test%')
+        .execute();
       expect(arrivedWhileDown).toHaveLength(0);
     } finally {
       relay = await startMailRelay({ db, port });
       await pool.end();
     }
-    const received = () => db.selectFrom('dev_mailbox').select(['subject']).where('envelope_to', 'like', '%mechanic@example.test%').execute();
+    const received = () =>
+      db
+        .selectFrom('dev_mailbox')
+        .select(['subject'])
+        .where('envelope_to', 'like', '%mechanic@example.test%')
+        .execute();
     await waitFor(async () => (await received()).length > 0, 10_000, 'the invitation after the relay returned');
     await pause(1_500);
     const mail = await received();

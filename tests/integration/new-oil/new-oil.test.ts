@@ -2,7 +2,13 @@ import { sql } from 'kysely';
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import { confirmLabImport, previewLabImport, storeLabFile } from '~/lib/lab-import/lab-import.service';
 import {
-  createNewOilReference, deleteNewOilReference, describeMachineOil, listNewOilReferences, listProductsInUse, loadNewOilLookup, updateNewOilReference,
+  createNewOilReference,
+  deleteNewOilReference,
+  describeMachineOil,
+  listNewOilReferences,
+  listProductsInUse,
+  loadNewOilLookup,
+  updateNewOilReference,
 } from '~/lib/new-oil/new-oil.service';
 import type { Actor } from '~/lib/auth/types';
 import { openTestDb, truncateAll } from '../test-database';
@@ -16,24 +22,43 @@ afterAll(() => db.destroy());
 beforeEach(() => truncateAll(db));
 
 // Invented product; figures of a typical 10W-40 (SAE J300 window for 40: 12.5 to <16.3 mm²/s).
-const SHEET = { source: 'data-sheet', productName: 'Tarnwell 10W-40', saeGrade: '10w40', KV100: '16.0', KV40: '110', Zn: '1100', B: '150' };
+const SHEET = {
+  source: 'data-sheet',
+  productName: 'Tarnwell 10W-40',
+  saeGrade: '10w40',
+  KV100: '16.0',
+  KV40: '110',
+  Zn: '1100',
+  B: '150',
+};
 
 async function counts() {
-  const { rows } = await sql<{ refs: number; audit: number }>`select (select count(*)::int from new_oil_references) as refs,
+  const { rows } = await sql<{
+    refs: number;
+    audit: number;
+  }>`select (select count(*)::int from new_oil_references) as refs,
     (select count(*)::int from audit_events where kind like 'new_oil_reference_%') as audit`.execute(db);
   return rows[0]!;
 }
 
 describe('recording new-oil references', () => {
-  test.each(['rider', 'mechanic', 'lead'] as const)('a %s records data-sheet figures; the grade is spelt as J300 and the VI worked out', async (role) => {
-    const actor = await makeActor(db, role);
-    const r = await createNewOilReference(db, actor, SHEET);
-    if (!r.ok) throw new Error(JSON.stringify(r));
-    expect(r.value).toMatchObject({ productName: 'Tarnwell 10W-40', productKey: 'tarnwell 10w-40', source: 'data-sheet', saeGrade: '10W-40' });
-    expect(r.value.readings.KV100).toEqual({ value: 16 });
-    expect(r.value.readings.VI?.value).toBeGreaterThan(100);
-    expect(await counts()).toEqual({ refs: 1, audit: 1 });
-  });
+  test.each(['rider', 'mechanic', 'lead'] as const)(
+    'a %s records data-sheet figures; the grade is spelt as J300 and the VI worked out',
+    async (role) => {
+      const actor = await makeActor(db, role);
+      const r = await createNewOilReference(db, actor, SHEET);
+      if (!r.ok) throw new Error(JSON.stringify(r));
+      expect(r.value).toMatchObject({
+        productName: 'Tarnwell 10W-40',
+        productKey: 'tarnwell 10w-40',
+        source: 'data-sheet',
+        saeGrade: '10W-40',
+      });
+      expect(r.value.readings.KV100).toEqual({ value: 16 });
+      expect(r.value.readings.VI?.value).toBeGreaterThan(100);
+      expect(await counts()).toEqual({ refs: 1, audit: 1 });
+    },
+  );
 
   test.each([
     { name: 'swapped viscosities', over: { KV100: '110', KV40: '16' }, field: 'KV40' },
@@ -55,17 +80,31 @@ describe('recording new-oil references', () => {
     expect(again.ok).toBe(false);
     if (!again.ok) expect(again.fields.productName).toMatch(/already has data-sheet figures/);
     // A lab bottle of the same product is allowed beside the data sheet.
-    expect((await createNewOilReference(db, actor, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'NO-1' })).ok).toBe(true);
+    expect(
+      (await createNewOilReference(db, actor, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'NO-1' }))
+        .ok,
+    ).toBe(true);
   });
 
   test('a lab bottle cannot reuse a used-oil sample’s code or another bottle’s', async () => {
     const actor = await makeActor(db, 'lead');
     const machine = await makeMachine(db, actor.membership.crewId, actor.userId);
     await makeSample(db, actor.membership.crewId, machine.id, actor.userId, 'SW-9');
-    const clash = await createNewOilReference(db, actor, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'sw 9' });
+    const clash = await createNewOilReference(db, actor, {
+      source: 'lab',
+      productName: 'Tarnwell 10W-40',
+      bottleCode: 'sw 9',
+    });
     expect(!clash.ok && clash.fields.bottleCode).toMatch(/already a used-oil sample/);
-    expect((await createNewOilReference(db, actor, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'NO-1' })).ok).toBe(true);
-    const twice = await createNewOilReference(db, actor, { source: 'lab', productName: 'Quarrow 15W-50', bottleCode: 'no1' });
+    expect(
+      (await createNewOilReference(db, actor, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'NO-1' }))
+        .ok,
+    ).toBe(true);
+    const twice = await createNewOilReference(db, actor, {
+      source: 'lab',
+      productName: 'Quarrow 15W-50',
+      bottleCode: 'no1',
+    });
     expect(!twice.ok && twice.fields.bottleCode).toMatch(/already the new-oil bottle of “Tarnwell 10W-40”/);
   });
 
@@ -73,7 +112,14 @@ describe('recording new-oil references', () => {
     const lead = await makeActor(db, 'lead');
     const machine = await makeMachine(db, lead.membership.crewId, lead.userId);
     await createNewOilReference(db, lead, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'NO-55' });
-    const r = await registerDrainCard(db, lead, machine.id, { bottleCode: 'no 55', codeSource: 'kit', drawnOn: '2025-07-01', odometer: '1500', saeGrade: '10W-40', drawMethod: 'midstream' });
+    const r = await registerDrainCard(db, lead, machine.id, {
+      bottleCode: 'no 55',
+      codeSource: 'kit',
+      drawnOn: '2025-07-01',
+      odometer: '1500',
+      saeGrade: '10W-40',
+      drawMethod: 'midstream',
+    });
     expect(r.ok).toBe(false);
     if (!r.ok) expect(r.fields.bottleCode).toMatch(/bottle of new oil registered for “Tarnwell 10W-40”/);
     expect((await db.selectFrom('samples').select('id').execute()).length).toBe(0);
@@ -99,12 +145,30 @@ describe('recording new-oil references', () => {
     const actor = await makeActor(db, 'lead');
     const m1 = await makeMachine(db, actor.membership.crewId, actor.userId, { name: 'A' } as never);
     const m2 = await makeMachine(db, actor.membership.crewId, actor.userId, { name: 'B' } as never);
-    for (const [m, product, on] of [[m1.id, 'Tarnwell 10W-40', '2026-05-01'], [m2.id, 'tarnwell  10w-40', '2026-06-01'], [m2.id, 'Quarrow 15W-50', '2026-04-01']] as const) {
-      await db.insertInto('oil_changes').values({ crew_id: actor.membership.crewId, machine_id: m, changed_on: on, odometer: 1000, oil_product: product, sae_grade: '10W-40', created_by: actor.userId } as never).execute();
+    for (const [m, product, on] of [
+      [m1.id, 'Tarnwell 10W-40', '2026-05-01'],
+      [m2.id, 'tarnwell  10w-40', '2026-06-01'],
+      [m2.id, 'Quarrow 15W-50', '2026-04-01'],
+    ] as const) {
+      await db
+        .insertInto('oil_changes')
+        .values({
+          crew_id: actor.membership.crewId,
+          machine_id: m,
+          changed_on: on,
+          odometer: 1000,
+          oil_product: product,
+          sae_grade: '10W-40',
+          created_by: actor.userId,
+        } as never)
+        .execute();
     }
     await createNewOilReference(db, actor, SHEET);
     const products = await listProductsInUse(db, actor);
-    expect(products.map((p) => [p.productKey, p.machines, p.references.length])).toEqual([['tarnwell 10w-40', 2, 1], ['quarrow 15w-50', 1, 0]]);
+    expect(products.map((p) => [p.productKey, p.machines, p.references.length])).toEqual([
+      ['tarnwell 10w-40', 2, 1],
+      ['quarrow 15w-50', 1, 0],
+    ]);
     const oil = await describeMachineOil(db, actor, m2.id);
     expect(oil?.productName).toBe('tarnwell  10w-40');
     expect(oil?.references).toHaveLength(1);
@@ -116,7 +180,12 @@ describe('recording new-oil references', () => {
 const HEADER = 'Bottle,Sampled,Fe,Al,KV100';
 
 async function importFile(actor: Actor, text: string, name: string) {
-  const stored = await storeLabFile(db, { crewId: actor.membership.crewId, userId: actor.userId, fileName: name, bytes: bytesOf(text) });
+  const stored = await storeLabFile(db, {
+    crewId: actor.membership.crewId,
+    userId: actor.userId,
+    fileName: name,
+    bytes: bytesOf(text),
+  });
   if (!stored.ok) throw new Error(stored.message);
   return stored.value.labFileId;
 }
@@ -130,14 +199,24 @@ async function setupMachine() {
 }
 
 async function kvFindings(sampleId: string) {
-  return db.selectFrom('findings').select(['measurand', 'level', 'numbers', 'sentence']).where('sample_id', '=', sampleId).where('measurand', '=', 'KV100').execute();
+  return db
+    .selectFrom('findings')
+    .select(['measurand', 'level', 'numbers', 'sentence'])
+    .where('sample_id', '=', sampleId)
+    .where('measurand', '=', 'KV100')
+    .execute();
 }
 
 describe('the analysis reads the new-oil reference', () => {
   test('without a reference a thinned oil inside its grade raises no viscosity finding (control)', async () => {
     const { lead, sample } = await setupMachine();
     const id = await importFile(lead, `${HEADER}\nSW-1,2026-02-01,20,4,12.6\n`, 'control.csv');
-    const r = await confirmLabImport(db, { crewId: lead.membership.crewId, userId: lead.userId, labFileId: id, decisions: {} });
+    const r = await confirmLabImport(db, {
+      crewId: lead.membership.crewId,
+      userId: lead.userId,
+      labFileId: id,
+      decisions: {},
+    });
     if (!r.ok) throw new Error(r.message);
     expect(await kvFindings(sample.id)).toEqual([]);
   });
@@ -149,7 +228,12 @@ describe('the analysis reads the new-oil reference', () => {
     const lookup = await loadNewOilLookup(db, lead.membership.crewId);
     expect(lookup.get('tarnwell 10w-40')?.newOilKv100).toBe(16);
     const id = await importFile(lead, `${HEADER}\nSW-1,2026-02-01,20,4,12.6\n`, 'used.csv');
-    const r = await confirmLabImport(db, { crewId: lead.membership.crewId, userId: lead.userId, labFileId: id, decisions: {} });
+    const r = await confirmLabImport(db, {
+      crewId: lead.membership.crewId,
+      userId: lead.userId,
+      labFileId: id,
+      decisions: {},
+    });
     if (!r.ok) throw new Error(r.message);
     const f = await kvFindings(sample.id);
     expect(f).toHaveLength(1);
@@ -162,19 +246,39 @@ describe('the analysis reads the new-oil reference', () => {
   test('a lab bottle of new oil in the same file is written to its reference first, and the file’s samples are judged against it', async () => {
     const { lead, sample } = await setupMachine();
     const mechanic = await addActor(db, lead, 'mechanic');
-    const reg = await createNewOilReference(db, mechanic, { source: 'lab', productName: 'Tarnwell 10W-40', saeGrade: '10W-40', bottleCode: 'NEW-7' });
+    const reg = await createNewOilReference(db, mechanic, {
+      source: 'lab',
+      productName: 'Tarnwell 10W-40',
+      saeGrade: '10W-40',
+      bottleCode: 'NEW-7',
+    });
     if (!reg.ok) throw new Error(JSON.stringify(reg));
-    const id = await importFile(lead, `${HEADER}\nSW-1,2026-02-01,20,4,12.6\nnew 7,2026-01-20,1,0,16.2\n`, 'with-new.csv');
+    const id = await importFile(
+      lead,
+      `${HEADER}\nSW-1,2026-02-01,20,4,12.6\nnew 7,2026-01-20,1,0,16.2\n`,
+      'with-new.csv',
+    );
     const preview = await previewLabImport(db, { crewId: lead.membership.crewId, labFileId: id });
     if (!preview.ok) throw new Error(preview.message);
     expect(preview.value.rows.map((r) => r.bottle)).toEqual(['SW-1']);
-    expect(preview.value.newOilRows).toMatchObject([{ line: 3, referenceId: reg.value.id, productName: 'Tarnwell 10W-40', hasResults: false }]);
+    expect(preview.value.newOilRows).toMatchObject([
+      { line: 3, referenceId: reg.value.id, productName: 'Tarnwell 10W-40', hasResults: false },
+    ]);
     expect(preview.value.canConfirm).toBe(true);
 
-    const r = await confirmLabImport(db, { crewId: lead.membership.crewId, userId: lead.userId, labFileId: id, decisions: {} });
+    const r = await confirmLabImport(db, {
+      crewId: lead.membership.crewId,
+      userId: lead.userId,
+      labFileId: id,
+      decisions: {},
+    });
     if (!r.ok) throw new Error(r.message);
     expect(r.value).toMatchObject({ samplesWritten: 1, newOilReferencesWritten: 1 });
-    const stored = await db.selectFrom('new_oil_references').selectAll().where('id', '=', reg.value.id).executeTakeFirstOrThrow();
+    const stored = await db
+      .selectFrom('new_oil_references')
+      .selectAll()
+      .where('id', '=', reg.value.id)
+      .executeTakeFirstOrThrow();
     expect(stored.readings).toMatchObject({ KV100: { value: 16.2 }, Fe: { value: 1 } });
     expect(stored.results_on).toBe('2026-01-20');
     const f = await kvFindings(sample.id);
@@ -191,7 +295,12 @@ describe('the analysis reads the new-oil reference', () => {
     await createNewOilReference(db, other, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'NEW-8' });
     await createNewOilReference(db, lead, { source: 'lab', productName: 'Tarnwell 10W-40', bottleCode: 'NEW-9' });
     const id = await importFile(lead, `${HEADER}\nNEW-9,2026-01-20,1,0,16.2\n`, 'only-new.csv');
-    const r = await confirmLabImport(db, { crewId: lead.membership.crewId, userId: lead.userId, labFileId: id, decisions: {} });
+    const r = await confirmLabImport(db, {
+      crewId: lead.membership.crewId,
+      userId: lead.userId,
+      labFileId: id,
+      decisions: {},
+    });
     if (!r.ok) throw new Error(r.message);
     expect(r.value).toMatchObject({ samplesWritten: 0, newOilReferencesWritten: 1 });
     const id2 = await importFile(lead, `${HEADER}\nNEW-8,2026-01-20,1,0,16.2\n`, 'foreign.csv');

@@ -11,7 +11,12 @@ import { createMachine } from '~/lib/machines/machines.service';
 import { createOilChange } from '~/lib/oil-changes/oil-changes.service';
 import { hasValidCheckSymbol } from '~/lib/samples/bottle-code';
 import {
-  findSampleIdByBottleCode, issueBottleCode, registerDrainCard, reserveBottleCodes, RESERVED_BLOCK_SIZE, RESERVED_PER_RIDER,
+  findSampleIdByBottleCode,
+  issueBottleCode,
+  registerDrainCard,
+  reserveBottleCodes,
+  RESERVED_BLOCK_SIZE,
+  RESERVED_PER_RIDER,
 } from '~/lib/samples/samples.service';
 import { addWearMeasurement, createWearPart } from '~/lib/wear-parts/wear-parts.service';
 import { listPagesToKeep } from '~/lib/offline/offline.service';
@@ -74,7 +79,14 @@ describe('wear-part measurements with a client key', () => {
     const rider = await makeActor(db);
     const machineId = await machineOf(rider);
     // Friction plates of 2.9–3.1 mm new with a 2.6 mm limit: common practice, no published source.
-    const part = await createWearPart(db, rider, machineId, { name: 'Clutch plates', pieceCount: '8', newMin: '2.9', newMax: '3.1', serviceLimit: '2.6', unit: 'mm' });
+    const part = await createWearPart(db, rider, machineId, {
+      name: 'Clutch plates',
+      pieceCount: '8',
+      newMin: '2.9',
+      newMax: '3.1',
+      serviceLimit: '2.6',
+      unit: 'mm',
+    });
     if (!part.ok) throw new Error(JSON.stringify(part));
     const input = { measuredOn: '2025-05-01', odometer: '17000', unit: 'mm', summary: '2.95', clientKey: KEY };
     const results = await Promise.all([1, 2, 3].map(() => addWearMeasurement(db, rider, part.value.id, input)));
@@ -93,11 +105,21 @@ describe('bottle codes reserved for a device', () => {
     if (!first.ok) throw new Error(JSON.stringify(first));
     expect(first.value.codes).toHaveLength(RESERVED_BLOCK_SIZE);
     expect(first.value.codes.every((c) => c.length === 7 && hasValidCheckSymbol(c))).toBe(true);
-    expect((await reserveBottleCodes(db, rider, 'device-one-0001')).ok && (await reserveBottleCodes(db, rider, 'device-one-0001'))).toMatchObject({ value: { codes: first.value.codes } });
+    expect(
+      (await reserveBottleCodes(db, rider, 'device-one-0001')).ok &&
+        (await reserveBottleCodes(db, rider, 'device-one-0001')),
+    ).toMatchObject({ value: { codes: first.value.codes } });
     const used = first.value.codes[0]!;
-    const r = await registerDrainCard(db, rider, machineId, { bottleCode: used, codeSource: 'issued', drawnOn: '2025-07-01', odometer: '100' });
+    const r = await registerDrainCard(db, rider, machineId, {
+      bottleCode: used,
+      codeSource: 'issued',
+      drawnOn: '2025-07-01',
+      odometer: '100',
+    });
     expect(r.ok).toBe(true);
-    expect(await findSampleIdByBottleCode(db, rider, `${used.slice(0, 3)}-${used.slice(3)}`)).toBe(r.ok ? r.value.sample.id : null);
+    expect(await findSampleIdByBottleCode(db, rider, `${used.slice(0, 3)}-${used.slice(3)}`)).toBe(
+      r.ok ? r.value.sample.id : null,
+    );
     const topped = await reserveBottleCodes(db, rider, 'device-one-0001');
     if (!topped.ok) throw new Error('topped');
     expect(topped.value.codes).toHaveLength(RESERVED_BLOCK_SIZE);
@@ -109,7 +131,12 @@ describe('bottle codes reserved for a device', () => {
     const lead = await addActor(db, rider, 'lead');
     const stranger = await makeActor(db, 'rider', 'Other crew');
     const codes: string[] = [];
-    for (const [actor, device] of [[rider, 'device-a-0001'], [rider, 'device-b-0001'], [lead, 'device-c-0001'], [stranger, 'device-d-0001']] as const) {
+    for (const [actor, device] of [
+      [rider, 'device-a-0001'],
+      [rider, 'device-b-0001'],
+      [lead, 'device-c-0001'],
+      [stranger, 'device-d-0001'],
+    ] as const) {
       const r = await reserveBottleCodes(db, actor, device);
       if (!r.ok) throw new Error(JSON.stringify(r));
       codes.push(...r.value.codes);
@@ -121,8 +148,13 @@ describe('bottle codes reserved for a device', () => {
 
   test('a rider cannot hoard codes over many made-up devices; a mechanic gets none', async () => {
     const rider = await makeActor(db);
-    for (let i = 0; i < RESERVED_PER_RIDER / RESERVED_BLOCK_SIZE; i++) expect((await reserveBottleCodes(db, rider, `device-${i}-0001`)).ok).toBe(true);
-    expect(await reserveBottleCodes(db, rider, 'device-x-0001')).toMatchObject({ ok: false, status: 409, code: 'too_many_reserved' });
+    for (let i = 0; i < RESERVED_PER_RIDER / RESERVED_BLOCK_SIZE; i++)
+      expect((await reserveBottleCodes(db, rider, `device-${i}-0001`)).ok).toBe(true);
+    expect(await reserveBottleCodes(db, rider, 'device-x-0001')).toMatchObject({
+      ok: false,
+      status: 409,
+      code: 'too_many_reserved',
+    });
     const mechanic = await addActor(db, rider, 'mechanic');
     expect(await reserveBottleCodes(db, mechanic, 'device-m-0001')).toMatchObject({ ok: false, status: 403 });
   });
@@ -132,7 +164,14 @@ describe('pages a device keeps', () => {
   test('the garage pages of the machines the actor may write to; a mechanic keeps only reading pages', async () => {
     const rider = await makeActor(db);
     const machineId = await machineOf(rider);
-    expect(await listPagesToKeep(db, rider)).toEqual(['/', '/machines', '/outbox', `/machines/${machineId}`, `/machines/${machineId}/drain-card`, `/machines/${machineId}/oil-change`]);
+    expect(await listPagesToKeep(db, rider)).toEqual([
+      '/',
+      '/machines',
+      '/outbox',
+      `/machines/${machineId}`,
+      `/machines/${machineId}/drain-card`,
+      `/machines/${machineId}/oil-change`,
+    ]);
     const mechanic = await addActor(db, rider, 'mechanic');
     expect(await listPagesToKeep(db, mechanic)).toEqual(['/', '/machines', '/outbox', `/machines/${machineId}`]);
   });

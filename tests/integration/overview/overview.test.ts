@@ -16,24 +16,43 @@ beforeAll(async () => {
   await truncateAll(db);
   const c = await makeCrewWithRoles(db, 'Overview crew');
   crewId = c.crew.id;
-  const mk = async (name: string) => { const m = await c.machine({ name }); ids[name] = m.id; return m.id; };
+  const mk = async (name: string) => {
+    const m = await c.machine({ name });
+    ids[name] = m.id;
+    return m.id;
+  };
   await addSamples(db, crewId, await mk('Alder'), c.rider.id, [
     { drawnOn: '2026-01-01', odometer: 1000, findings: [{ measurand: 'Al', level: 'act', ruleId: 'baseline-jump' }] },
     // The latest sample decides: steady now.
     { drawnOn: '2026-03-01', odometer: 2000, call: { call: 'stretch', nextSampleOn: '2026-09-01' } },
   ]);
   await addSamples(db, crewId, await mk('Birch'), c.rider.id, [
-    { drawnOn: '2026-02-01', odometer: 5000, findings: [{ measurand: 'Al', level: 'watch', ruleId: 'climbing-trend' }, { measurand: 'Fe', level: 'watch', ruleId: 'climbing-trend' }], call: { call: 'shorten', nextSampleOn: '2026-02-20' } },
+    {
+      drawnOn: '2026-02-01',
+      odometer: 5000,
+      findings: [
+        { measurand: 'Al', level: 'watch', ruleId: 'climbing-trend' },
+        { measurand: 'Fe', level: 'watch', ruleId: 'climbing-trend' },
+      ],
+      call: { call: 'shorten', nextSampleOn: '2026-02-20' },
+    },
   ]);
   await addSamples(db, crewId, await mk('Cedar'), c.rider.id, [
-    { drawnOn: '2026-02-15', odometer: 7000, findings: [{ measurand: 'Na', level: 'act', ruleId: 'coolant-markers' }], call: { call: 'shorten', nextSampleOn: '2026-03-01' } },
+    {
+      drawnOn: '2026-02-15',
+      odometer: 7000,
+      findings: [{ measurand: 'Na', level: 'act', ruleId: 'coolant-markers' }],
+      call: { call: 'shorten', nextSampleOn: '2026-03-01' },
+    },
     { drawnOn: '2026-04-01', odometer: 7500, state: 'shipped' },
   ]);
   await mk('Dogwood');
   for (let i = 0; i < 116; i++) await c.machine({ name: `Plain ${String(i).padStart(3, '0')}` });
   const other = await makeCrewWithRoles(db, 'Other crew');
   otherCrewId = other.crew.id;
-  await addSamples(db, otherCrewId, (await other.machine({ name: 'Aaa other' })).id, other.rider.id, [{ drawnOn: '2026-01-01', odometer: 1, findings: [{ measurand: 'Fe', level: 'act', ruleId: 'fixed-limit' }] }]);
+  await addSamples(db, otherCrewId, (await other.machine({ name: 'Aaa other' })).id, other.rider.id, [
+    { drawnOn: '2026-01-01', odometer: 1, findings: [{ measurand: 'Fe', level: 'act', ruleId: 'fixed-limit' }] },
+  ]);
 }, 60_000);
 afterAll(() => db.destroy());
 
@@ -68,7 +87,12 @@ describe('loadOverview', () => {
 
   test('rows carry the last sample with results, climbing elements and the call', async () => {
     const page = await loadOverview(db, crewId, q({ q: 'Birch' }));
-    expect(page.rows[0]).toMatchObject({ worst: 'watch', climbing: ['Al', 'Fe'], call: { kind: 'shorten', source: 'engine', nextSampleOn: '2026-02-20' }, topFinding: { ruleId: 'climbing-trend' } });
+    expect(page.rows[0]).toMatchObject({
+      worst: 'watch',
+      climbing: ['Al', 'Fe'],
+      call: { kind: 'shorten', source: 'engine', nextSampleOn: '2026-02-20' },
+      topFinding: { ruleId: 'climbing-trend' },
+    });
     const cedar = (await loadOverview(db, crewId, q({ q: 'Cedar' }))).rows[0]!;
     expect(cedar.lastSample!.drawnOn).toBe('2026-02-15');
   });
@@ -91,13 +115,19 @@ describe('loadOverview', () => {
 describe('loadMachineSummary and the crew home', () => {
   test('summary: due by date from the latest call; another crew gets null', async () => {
     const s = await loadMachineSummary(db, crewId, ids['Birch']!, '2026-03-01');
-    expect(s).toMatchObject({ worst: 'watch', climbing: ['Al', 'Fe'], due: { due: true, reasons: ['date'], daysLeft: -9 } });
+    expect(s).toMatchObject({
+      worst: 'watch',
+      climbing: ['Al', 'Fe'],
+      due: { due: true, reasons: ['date'], daysLeft: -9 },
+    });
     await expect(loadMachineSummary(db, otherCrewId, ids['Birch']!, '2026-03-01')).resolves.toBeNull();
   });
 
   test('home: one card per machine with open findings, waiting results, shipped overdue after 21 days, and due machines', async () => {
     const home = await loadCrewHome(db, crewId, '2026-04-30');
-    expect(home.cards.filter((c) => c.worst === 'act').map((c) => [c.machineName, c.main.rule_id])).toEqual([['Cedar', 'coolant-markers']]);
+    expect(home.cards.filter((c) => c.worst === 'act').map((c) => [c.machineName, c.main.rule_id])).toEqual([
+      ['Cedar', 'coolant-markers'],
+    ]);
     expect(new Set(home.cards.map((c) => c.machineId)).size).toBe(home.cards.length);
     expect(home.waiting.map((s) => s.machine_name).sort()).toEqual(['Alder', 'Alder', 'Birch', 'Cedar']);
     // Cedar's bottle was drawn (and so at the latest shipped) on 2026-04-01: 29 days by 2026-04-30.

@@ -29,7 +29,14 @@ const tempDir = path.join(root, 'tmp');
 const savedTmp = process.env.TMPDIR;
 let fake: LocalObjectStore;
 const BUCKET = 'sumpwise-photos-test';
-const s3Settings = (endpoint: string) => ({ endpoint, region: 'us-east-1', bucket: BUCKET, accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER', forcePathStyle: true });
+const s3Settings = (endpoint: string) => ({
+  endpoint,
+  region: 'us-east-1',
+  bucket: BUCKET,
+  accessKeyId: 'S3RVER',
+  secretAccessKey: 'S3RVER',
+  forcePathStyle: true,
+});
 
 beforeAll(async () => {
   rmSync(tempDir, { recursive: true, force: true });
@@ -60,9 +67,11 @@ function noisyPng(side: number): Buffer {
 
 /** The bytes as a stream of 64 KB chunks, the way a request body arrives. */
 function chunked(bytes: Uint8Array, size = 64 * 1024): Readable {
-  return Readable.from((function* () {
-    for (let i = 0; i < bytes.byteLength; i += size) yield Buffer.from(bytes.subarray(i, i + size));
-  })());
+  return Readable.from(
+    (function* () {
+      for (let i = 0; i < bytes.byteLength; i += size) yield Buffer.from(bytes.subarray(i, i + size));
+    })(),
+  );
 }
 
 const sha256 = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
@@ -122,21 +131,47 @@ describe.each(stores)('photos in the $name store', ({ make }) => {
 
   test.each([
     // A forged name or browser type changes nothing: the first bytes decide (JPEG/PNG signatures, from memory of the formats).
-    { name: 'a text file named .jpg', bytes: () => new TextEncoder().encode('definitely not a photo, though the name says so\n'.repeat(4)), fileName: 'bolts.jpg', status: 415, message: /not a photo.*whatever its name says/ },
-    { name: 'an HTML page named .png (stopped after its first bytes)', bytes: () => new TextEncoder().encode('<!doctype html><script>alert(1)</script>'.repeat(50_000)), fileName: 'x.png', status: 415, message: /not a photo/ },
-    { name: 'a 40 MB upload with a JPEG signature', bytes: () => { const b = new Uint8Array(40 * 1024 * 1024); b.set([0xff, 0xd8, 0xff]); return b; }, fileName: 'huge.jpg', status: 413, message: /40\.0 MB; photos can be at most 10 MB/ },
+    {
+      name: 'a text file named .jpg',
+      bytes: () => new TextEncoder().encode('definitely not a photo, though the name says so\n'.repeat(4)),
+      fileName: 'bolts.jpg',
+      status: 415,
+      message: /not a photo.*whatever its name says/,
+    },
+    {
+      name: 'an HTML page named .png (stopped after its first bytes)',
+      bytes: () => new TextEncoder().encode('<!doctype html><script>alert(1)</script>'.repeat(50_000)),
+      fileName: 'x.png',
+      status: 415,
+      message: /not a photo/,
+    },
+    {
+      name: 'a 40 MB upload with a JPEG signature',
+      bytes: () => {
+        const b = new Uint8Array(40 * 1024 * 1024);
+        b.set([0xff, 0xd8, 0xff]);
+        return b;
+      },
+      fileName: 'huge.jpg',
+      status: 413,
+      message: /40\.0 MB; photos can be at most 10 MB/,
+    },
     { name: 'an empty file', bytes: () => new Uint8Array(0), fileName: 'empty.png', status: 400, message: /is empty/ },
-  ])('$name is refused with a clear message, and nothing is written anywhere', async ({ bytes, fileName, status, message }) => {
-    const store = make();
-    const rider = await makeActor(db);
-    const b = bytes();
-    const r = await uploadPhoto(db, rider, chunked(b), fileName, store);
-    expect(r.ok ? 200 : r.status).toBe(status);
-    if (!r.ok) expect(r.fields['file']).toMatch(message);
-    expect((await countRiderRows(db)).photos).toBe(0);
-    expect(await store.exists(photoKey(sha256(b)))).toBe(false);
-    expect(leftoverTempFiles()).toEqual([]);
-  }, 60_000);
+  ])(
+    '$name is refused with a clear message, and nothing is written anywhere',
+    async ({ bytes, fileName, status, message }) => {
+      const store = make();
+      const rider = await makeActor(db);
+      const b = bytes();
+      const r = await uploadPhoto(db, rider, chunked(b), fileName, store);
+      expect(r.ok ? 200 : r.status).toBe(status);
+      if (!r.ok) expect(r.fields['file']).toMatch(message);
+      expect((await countRiderRows(db)).photos).toBe(0);
+      expect(await store.exists(photoKey(sha256(b)))).toBe(false);
+      expect(leftoverTempFiles()).toEqual([]);
+    },
+    60_000,
+  );
 
   test('photos from a plain form post are stored with the oil change in one transaction', async () => {
     const store = make();
@@ -145,7 +180,13 @@ describe.each(stores)('photos in the $name store', ({ make }) => {
     if (!m.ok) throw new Error('setup');
     const prepared = preparePhoto(pngBytes(5, 5), 'x.png');
     if (!prepared.ok) throw new Error('prepare');
-    const oc = await createOilChange(db, rider, m.value.id, { changedOn: '2025-01-01', odometer: '100', saeGrade: '10W-40' }, { newPhotos: [prepared.photo], photoStore: store });
+    const oc = await createOilChange(
+      db,
+      rider,
+      m.value.id,
+      { changedOn: '2025-01-01', odometer: '100', saeGrade: '10W-40' },
+      { newPhotos: [prepared.photo], photoStore: store },
+    );
     expect(oc.ok).toBe(true);
     expect((await countRiderRows(db)).photos).toBe(1);
     expect(await store.exists(photoKey(prepared.photo.sha256))).toBe(true);
@@ -156,7 +197,10 @@ describe('photos, whatever the store', () => {
   test('an object store that does not answer: a storage error, no photo row, no temp file', async () => {
     const closed = createS3PhotoStore(s3Settings(`http://127.0.0.1:${await freePort()}`));
     const rider = await makeActor(db);
-    await expect(uploadPhoto(db, rider, pngBytes(), 'a.png', closed)).rejects.toMatchObject({ name: 'PhotoStorageError', reason: 'unavailable' });
+    await expect(uploadPhoto(db, rider, pngBytes(), 'a.png', closed)).rejects.toMatchObject({
+      name: 'PhotoStorageError',
+      reason: 'unavailable',
+    });
     expect((await countRiderRows(db)).photos).toBe(0);
     expect(leftoverTempFiles()).toEqual([]);
   });
@@ -176,7 +220,12 @@ describe('photos, whatever the store', () => {
     if (!m.ok) throw new Error('setup');
     const p = await uploadPhoto(db, rider, pngBytes(), 'a.png', store);
     if (!p.ok) throw new Error('upload');
-    const oc = await createOilChange(db, rider, m.value.id, { changedOn: '2025-01-01', odometer: '100', saeGrade: '10W-40', photoIds: [p.value.id] });
+    const oc = await createOilChange(db, rider, m.value.id, {
+      changedOn: '2025-01-01',
+      odometer: '100',
+      saeGrade: '10W-40',
+      photoIds: [p.value.id],
+    });
     expect(oc.ok).toBe(true);
     const list = await listOilChanges(db, rider, m.value.id);
     if (!list.ok) throw new Error('list');
@@ -185,7 +234,12 @@ describe('photos, whatever the store', () => {
     const denied = await getPhotoForMember(db, [stranger.membership], p.value.id);
     expect(denied.ok ? 200 : denied.status).toBe(404);
     // Used once, it cannot be attached to a second oil change.
-    const again = await createOilChange(db, rider, m.value.id, { changedOn: '2025-02-01', odometer: '200', saeGrade: '10W-40', photoIds: [p.value.id] });
+    const again = await createOilChange(db, rider, m.value.id, {
+      changedOn: '2025-02-01',
+      odometer: '200',
+      saeGrade: '10W-40',
+      photoIds: [p.value.id],
+    });
     expect(again.ok).toBe(false);
   });
 
@@ -209,7 +263,13 @@ describe('photos, whatever the store', () => {
     const prepared = preparePhoto(pngBytes(5, 5), 'x.png');
     if (!prepared.ok) throw new Error('prepare');
     const quotaBytes = prepared.photo.byteSize - 1;
-    const oc = await createOilChange(db, rider, m.value.id, { changedOn: '2025-01-01', odometer: '100', saeGrade: '10W-40' }, { newPhotos: [prepared.photo], photoStore: store, quotaBytes });
+    const oc = await createOilChange(
+      db,
+      rider,
+      m.value.id,
+      { changedOn: '2025-01-01', odometer: '100', saeGrade: '10W-40' },
+      { newPhotos: [prepared.photo], photoStore: store, quotaBytes },
+    );
     expect(oc).toMatchObject({ ok: false, status: 413, code: 'quota_exceeded' });
     expect(oc.ok ? '' : oc.fields?.photos).toMatch(/for photos and lab files, so this file was not kept/);
     expect(await countRiderRows(db)).toMatchObject({ photos: 0, oil_changes: 0 });

@@ -12,7 +12,13 @@ async function setup(state: 'results_in' | 'shipped' = 'results_in', withCall = 
   const c = await makeCrewWithRoles(db);
   const machine = await c.machine({ meter: 'mi' });
   const [sampleId] = await addSamples(db, c.crew.id, machine.id, c.rider.id, [
-    { drawnOn: '2026-01-01', odometer: 1000, state, readings: { Fe: 10 }, ...(withCall ? { call: { call: 'shorten' as const, nextSampleOn: '2026-02-01', nextSampleOdometer: 1500 } } : {}) },
+    {
+      drawnOn: '2026-01-01',
+      odometer: 1000,
+      state,
+      readings: { Fe: 10 },
+      ...(withCall ? { call: { call: 'shorten' as const, nextSampleOn: '2026-02-01', nextSampleOdometer: 1500 } } : {}),
+    },
   ]);
   return { c, machine, sampleId: sampleId! };
 }
@@ -20,7 +26,10 @@ async function setup(state: 'results_in' | 'shipped' = 'results_in', withCall = 
 describe('decideIntervalCall', () => {
   test('a mechanic confirms: the engine call is copied as theirs and the sample becomes reviewed', async () => {
     const { c, sampleId } = await setup();
-    const r = await decideIntervalCall(db, { userId: c.mechanic.id, membership: c.m('mechanic') }, sampleId, { action: 'confirm', note: '' });
+    const r = await decideIntervalCall(db, { userId: c.mechanic.id, membership: c.m('mechanic') }, sampleId, {
+      action: 'confirm',
+      note: '',
+    });
     expect(r.ok).toBe(true);
     const review = await loadSampleReview(db, c.crew.id, sampleId);
     expect(review!.calls.map((x) => [x.source, x.call, x.nextSampleOdometer, x.nextSampleOn])).toEqual([
@@ -30,13 +39,23 @@ describe('decideIntervalCall', () => {
     expect(review!.current!.madeByName).toBe('Mech');
     const s = await db.selectFrom('samples').select('state').where('id', '=', sampleId).executeTakeFirstOrThrow();
     expect(s.state).toBe('reviewed');
-    const events = await db.selectFrom('sample_events').select(['state', 'actor_user_id']).where('sample_id', '=', sampleId).execute();
+    const events = await db
+      .selectFrom('sample_events')
+      .select(['state', 'actor_user_id'])
+      .where('sample_id', '=', sampleId)
+      .execute();
     expect(events).toEqual([{ state: 'reviewed', actor_user_id: c.mechanic.id }]);
   });
 
   test('a lead overrides with a note; figures in the machine’s miles are stored in km', async () => {
     const { c, sampleId } = await setup();
-    const decision = callDecisionSchema.parse({ action: 'override', call: 'stretch', note: 'New filter fitted', nextInterval: '1000', nextSampleOn: '' });
+    const decision = callDecisionSchema.parse({
+      action: 'override',
+      call: 'stretch',
+      note: 'New filter fitted',
+      nextInterval: '1000',
+      nextSampleOn: '',
+    });
     const r = await decideIntervalCall(db, { userId: c.lead.id, membership: c.m('lead') }, sampleId, decision);
     expect(r.ok).toBe(true);
     const review = await loadSampleReview(db, c.crew.id, sampleId);
@@ -48,21 +67,29 @@ describe('decideIntervalCall', () => {
     expect(review!.current!.nextSampleOn).toBe('2026-02-01');
   });
 
-  test.each([
-    ['a rider', 'rider', 'forbidden'],
-  ] as const)('%s may not decide', async (_n, role, code) => {
+  test.each([['a rider', 'rider', 'forbidden']] as const)('%s may not decide', async (_n, role, code) => {
     const { c, sampleId } = await setup();
-    const r = await decideIntervalCall(db, { userId: c.rider.id, membership: c.m(role) }, sampleId, { action: 'confirm', note: '' });
+    const r = await decideIntervalCall(db, { userId: c.rider.id, membership: c.m(role) }, sampleId, {
+      action: 'confirm',
+      note: '',
+    });
     expect(r).toMatchObject({ ok: false, code });
-    await expect(db.selectFrom('interval_calls').select('id').where('source', '!=', 'engine').execute()).resolves.toEqual([]);
+    await expect(
+      db.selectFrom('interval_calls').select('id').where('source', '!=', 'engine').execute(),
+    ).resolves.toEqual([]);
   });
 
   test('another crew’s mechanic gets not found and writes nothing', async () => {
     const { sampleId } = await setup();
     const other = await makeCrewWithRoles(db, 'Other');
-    const r = await decideIntervalCall(db, { userId: other.mechanic.id, membership: other.m('mechanic') }, sampleId, { action: 'confirm', note: '' });
+    const r = await decideIntervalCall(db, { userId: other.mechanic.id, membership: other.m('mechanic') }, sampleId, {
+      action: 'confirm',
+      note: '',
+    });
     expect(r).toMatchObject({ ok: false, code: 'not_found' });
-    await expect(db.selectFrom('interval_calls').select('id').where('source', '!=', 'engine').execute()).resolves.toEqual([]);
+    await expect(
+      db.selectFrom('interval_calls').select('id').where('source', '!=', 'engine').execute(),
+    ).resolves.toEqual([]);
   });
 
   test.each([
@@ -70,7 +97,10 @@ describe('decideIntervalCall', () => {
     ['nothing to confirm', 'results_in', false, 'no_call'],
   ] as const)('confirm refused: %s', async (_n, state, withCall, code) => {
     const { c, sampleId } = await setup(state, withCall);
-    const r = await decideIntervalCall(db, { userId: c.mechanic.id, membership: c.m('mechanic') }, sampleId, { action: 'confirm', note: '' });
+    const r = await decideIntervalCall(db, { userId: c.mechanic.id, membership: c.m('mechanic') }, sampleId, {
+      action: 'confirm',
+      note: '',
+    });
     expect(r).toMatchObject({ ok: false, code });
   });
 
@@ -98,6 +128,8 @@ describe('addReviewNote', () => {
     const r = await addReviewNote(db, { userId: user.id, membership: c.m(role) }, sampleId, 'Valve clearances checked');
     expect(r.ok).toBe(allowed);
     const review = await loadSampleReview(db, c.crew.id, sampleId);
-    expect(review!.notes.map((n) => [n.body, n.authorRole])).toEqual(allowed ? [['Valve clearances checked', role]] : []);
+    expect(review!.notes.map((n) => [n.body, n.authorRole])).toEqual(
+      allowed ? [['Valve clearances checked', role]] : [],
+    );
   });
 });

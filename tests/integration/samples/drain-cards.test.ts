@@ -8,7 +8,12 @@ import { createMachine } from '~/lib/machines/machines.service';
 import { createOilChange } from '~/lib/oil-changes/oil-changes.service';
 import { computeCheckSymbol } from '~/lib/samples/bottle-code';
 import {
-  getSampleDetail, issueBottleCode, listSamplesByState, markSampleShipped, prefillDrainCard, registerDrainCard,
+  getSampleDetail,
+  issueBottleCode,
+  listSamplesByState,
+  markSampleShipped,
+  prefillDrainCard,
+  registerDrainCard,
 } from '~/lib/samples/samples.service';
 import { recordSampleState } from '~/lib/samples/sample-lifecycle';
 
@@ -20,14 +25,32 @@ async function setup(actor?: Actor) {
   const rider = actor ?? (await makeActor(db));
   const m = await createMachine(db, rider, collectMachineForm(readFormObject(new URLSearchParams(MACHINE_450))), 'C');
   if (!m.ok) throw new Error('setup');
-  await createOilChange(db, rider, m.value.id, { changedOn: '2025-01-10', odometer: '9000', saeGrade: '10W-40', oilProduct: 'Old oil' });
-  await createOilChange(db, rider, m.value.id, { changedOn: '2025-04-01', odometer: '12000', saeGrade: '10W-50', oilProduct: 'Valley Lube 4T', volumeL: '1.2' });
+  await createOilChange(db, rider, m.value.id, {
+    changedOn: '2025-01-10',
+    odometer: '9000',
+    saeGrade: '10W-40',
+    oilProduct: 'Old oil',
+  });
+  await createOilChange(db, rider, m.value.id, {
+    changedOn: '2025-04-01',
+    odometer: '12000',
+    saeGrade: '10W-50',
+    oilProduct: 'Valley Lube 4T',
+    volumeL: '1.2',
+  });
   return { rider, machineId: m.value.id };
 }
 
 const card = (o: Record<string, unknown> = {}) => ({
-  bottleCode: 'vl-20931', codeSource: 'kit', drawnOn: '2025-07-01', odometer: '14,500', topUpL: '0.1', saeGrade: '10W-50',
-  oilProduct: 'Valley Lube 4T', drawMethod: 'midstream', ...o,
+  bottleCode: 'vl-20931',
+  codeSource: 'kit',
+  drawnOn: '2025-07-01',
+  odometer: '14,500',
+  topUpL: '0.1',
+  saeGrade: '10W-50',
+  oilProduct: 'Valley Lube 4T',
+  drawMethod: 'midstream',
+  ...o,
 });
 
 describe('drain cards', () => {
@@ -56,7 +79,12 @@ describe('drain cards', () => {
   test('a Sumpwise-issued code passes its check; a mistyped one is refused and writes nothing', async () => {
     const { rider, machineId } = await setup();
     const code = await issueBottleCode(db, rider);
-    const ok = await registerDrainCard(db, rider, machineId, card({ bottleCode: `${code.slice(0, 3)}-${code.slice(3)}`, codeSource: 'issued' }));
+    const ok = await registerDrainCard(
+      db,
+      rider,
+      machineId,
+      card({ bottleCode: `${code.slice(0, 3)}-${code.slice(3)}`, codeSource: 'issued' }),
+    );
     expect(ok.ok).toBe(true);
     const data = 'K7MQ4X';
     const good = data + computeCheckSymbol(data);
@@ -69,13 +97,55 @@ describe('drain cards', () => {
   });
 
   test.each([
-    { name: 'duplicate bottle code (other spelling)', over: { bottleCode: 'VL 20931' }, field: 'bottleCode', status: 409, message: /already on a sample of Gravel 450 drawn on 2025-07-01/ },
-    { name: 'negative odometer', over: { odometer: '-1' }, field: 'odometer', status: 400, message: /cannot be negative/ },
-    { name: 'absurd odometer', over: { odometer: '99999999' }, field: 'odometer', status: 400, message: /further than any engine/ },
-    { name: 'odometer below the oil change', over: { odometer: '100', drawnOn: '2025-07-02' }, field: 'odometer', status: 400, message: /Lower than at the oil change/ },
-    { name: 'grade that is not SAE', over: { saeGrade: '10W-45' }, field: 'saeGrade', status: 400, message: /not an SAE/ },
-    { name: 'bottle code with odd characters', over: { bottleCode: '#!' }, field: 'bottleCode', status: 400, message: /letters and digits/ },
-    { name: 'unknown draw method', over: { drawMethod: 'bucket' }, field: 'drawMethod', status: 400, message: /how the sample was drawn/ },
+    {
+      name: 'duplicate bottle code (other spelling)',
+      over: { bottleCode: 'VL 20931' },
+      field: 'bottleCode',
+      status: 409,
+      message: /already on a sample of Gravel 450 drawn on 2025-07-01/,
+    },
+    {
+      name: 'negative odometer',
+      over: { odometer: '-1' },
+      field: 'odometer',
+      status: 400,
+      message: /cannot be negative/,
+    },
+    {
+      name: 'absurd odometer',
+      over: { odometer: '99999999' },
+      field: 'odometer',
+      status: 400,
+      message: /further than any engine/,
+    },
+    {
+      name: 'odometer below the oil change',
+      over: { odometer: '100', drawnOn: '2025-07-02' },
+      field: 'odometer',
+      status: 400,
+      message: /Lower than at the oil change/,
+    },
+    {
+      name: 'grade that is not SAE',
+      over: { saeGrade: '10W-45' },
+      field: 'saeGrade',
+      status: 400,
+      message: /not an SAE/,
+    },
+    {
+      name: 'bottle code with odd characters',
+      over: { bottleCode: '#!' },
+      field: 'bottleCode',
+      status: 400,
+      message: /letters and digits/,
+    },
+    {
+      name: 'unknown draw method',
+      over: { drawMethod: 'bucket' },
+      field: 'drawMethod',
+      status: 400,
+      message: /how the sample was drawn/,
+    },
   ])('$name is refused and writes nothing', async ({ over, field, status, message }) => {
     const { rider, machineId } = await setup();
     const first = await registerDrainCard(db, rider, machineId, card());
@@ -134,7 +204,12 @@ describe('sample states', () => {
     expect(await db.transaction().execute((t) => recordSampleState(t, id, 'reviewed', mech.userId))).toBe(true);
     const d = await getSampleDetail(db, rider, id);
     if (!d.ok) throw new Error('detail');
-    expect(d.value.events.map((e) => [e.state, e.actor_name !== null])).toEqual([['drawn', true], ['shipped', true], ['results_in', false], ['reviewed', true]]);
+    expect(d.value.events.map((e) => [e.state, e.actor_name !== null])).toEqual([
+      ['drawn', true],
+      ['shipped', true],
+      ['results_in', false],
+      ['reviewed', true],
+    ]);
     expect(d.value.events.every((e) => e.at instanceof Date)).toBe(true);
     const list = await listSamplesByState(db, rider);
     expect(list.counts).toEqual({ drawn: 0, shipped: 0, results_in: 0, reviewed: 1 });

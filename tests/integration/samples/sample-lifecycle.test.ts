@@ -19,9 +19,18 @@ async function importReport(crewId: string, userId: string, fe: number, decision
   if (!done.ok) throw new Error(done.message);
 }
 
-const stateOf = async (id: string) => (await db.selectFrom('samples').select('state').where('id', '=', id).executeTakeFirstOrThrow()).state;
+const stateOf = async (id: string) =>
+  (await db.selectFrom('samples').select('state').where('id', '=', id).executeTakeFirstOrThrow()).state;
 const eventsOf = async (id: string) =>
-  (await db.selectFrom('sample_events').select(['state']).where('sample_id', '=', id).orderBy('at').orderBy('id').execute()).map((e) => e.state);
+  (
+    await db
+      .selectFrom('sample_events')
+      .select(['state'])
+      .where('sample_id', '=', id)
+      .orderBy('at')
+      .orderBy('id')
+      .execute()
+  ).map((e) => e.state);
 
 describe('one sample lifecycle through the import, the review and a replaced report', () => {
   test('shipped → results in (import) → reviewed (review) → results in again (a replaced report needs a new review)', async () => {
@@ -45,9 +54,13 @@ describe('one sample lifecycle through the import, the review and a replaced rep
     const shipped = await makeSample(db, crewId, machineId, userId, 'SW-1');
     const other = await makeSample(db, crewId, machineId, userId, 'SW-2');
     expect(await db.transaction().execute((t) => recordSampleState(t, other.id, 'reviewed', userId))).toBe(false);
-    const moved = await db.transaction().execute((t) => recordSampleStates(t, [shipped.id, other.id], 'results_in', userId, 'Lab results imported.'));
+    const moved = await db
+      .transaction()
+      .execute((t) => recordSampleStates(t, [shipped.id, other.id], 'results_in', userId, 'Lab results imported.'));
     expect(moved.sort()).toEqual([shipped.id, other.id].sort());
-    const again = await db.transaction().execute((t) => recordSampleStates(t, [shipped.id, other.id], 'shipped', userId));
+    const again = await db
+      .transaction()
+      .execute((t) => recordSampleStates(t, [shipped.id, other.id], 'shipped', userId));
     expect(again).toEqual([]);
     expect(await eventsOf(shipped.id)).toEqual(['results_in']);
   });

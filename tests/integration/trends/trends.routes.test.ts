@@ -17,12 +17,24 @@ const BUDGET_BYTES = 40 * 1024;
 
 function localsOf(userId: string, crewId: string): { user: SessionUser; crew: CrewMembership } {
   return {
-    user: { id: userId, email: 'x@example.test', displayName: 'X', emailVerified: true, distanceUnit: 'km', lengthUnit: 'mm', temperatureUnit: 'C' },
+    user: {
+      id: userId,
+      email: 'x@example.test',
+      displayName: 'X',
+      emailVerified: true,
+      distanceUnit: 'km',
+      lengthUnit: 'mm',
+      temperatureUnit: 'C',
+    },
     crew: { crewId, crewName: 'Valley school', role: 'rider' },
   };
 }
 
-function request(machineId: string, headers: Record<string, string> = {}, query = 'measurands=Fe,Al,Si&basis=ppm&x=odometer'): Request {
+function request(
+  machineId: string,
+  headers: Record<string, string> = {},
+  query = 'measurands=Fe,Al,Si&basis=ppm&x=odometer',
+): Request {
   return new Request(`http://127.0.0.1/api/trends/${machineId}?${query}`, { headers });
 }
 
@@ -31,35 +43,78 @@ async function machineWithHistory(count: number) {
   const c = await makeCrewWithRoles(db);
   const machine = await c.machine({ meter: 'km' });
   // Invented figures with a lab-like scatter: whole ppm for Al and Si, one decimal for Fe.
-  const ids = await addSamples(db, c.crew.id, machine.id, c.rider.id, Array.from({ length: count }, (_, i) => ({
-    drawnOn: new Date(Date.UTC(2016, 0, 1) + i * 14 * 86_400_000).toISOString().slice(0, 10),
-    odometer: 1000 + i * 1500,
-    readings: { Fe: Math.round((20 + 8 * Math.sin(i)) * 10) / 10, Al: 3 + (i % 4), Si: 6 + (i % 5) },
-  })));
+  const ids = await addSamples(
+    db,
+    c.crew.id,
+    machine.id,
+    c.rider.id,
+    Array.from({ length: count }, (_, i) => ({
+      drawnOn: new Date(Date.UTC(2016, 0, 1) + i * 14 * 86_400_000).toISOString().slice(0, 10),
+      odometer: 1000 + i * 1500,
+      readings: { Fe: Math.round((20 + 8 * Math.sin(i)) * 10) / 10, Al: 3 + (i % 4), Si: 6 + (i % 5) },
+    })),
+  );
   const bands: Insertable<BaselineBandsTable>[] = [];
   ids.forEach((sampleId, i) => {
     if (i < 4) return;
-    for (const [measurand, mean] of [['Fe', 20.137], ['Al', 4.513], ['Si', 8.071]] as const) {
+    for (const [measurand, mean] of [
+      ['Fe', 20.137],
+      ['Al', 4.513],
+      ['Si', 8.071],
+    ] as const) {
       const spread = mean * (0.11 + (i % 7) / 100);
-      bands.push({ sample_id: sampleId, measurand, basis: 'ppm', n: Math.min(i, 10), mean: mean + i / 97, lower_edge: mean - spread * 2.1, watch_above: mean + spread * 2.1, act_from: mean + spread * 3.7, to_reported: 1, source: i < 8 ? 'crew' : 'own', source_label: i < 8 ? 'from the crew’s other 450 cc liquid-cooled singles' : null, source_machines: i < 8 ? 3 : null });
+      bands.push({
+        sample_id: sampleId,
+        measurand,
+        basis: 'ppm',
+        n: Math.min(i, 10),
+        mean: mean + i / 97,
+        lower_edge: mean - spread * 2.1,
+        watch_above: mean + spread * 2.1,
+        act_from: mean + spread * 3.7,
+        to_reported: 1,
+        source: i < 8 ? 'crew' : 'own',
+        source_label: i < 8 ? 'from the crew’s other 450 cc liquid-cooled singles' : null,
+        source_machines: i < 8 ? 3 : null,
+      });
     }
   });
   if (bands.length) await db.insertInto('baseline_bands').values(bands).execute();
   const watched = ids.filter((_, i) => i % 10 === 9);
-  if (watched.length) await db.insertInto('findings').values(watched.map((sample_id) => ({ sample_id, measurand: 'Al', level: 'watch' as const, rule_id: 'baseline-jump', numbers: '{}', sentence: 'Invented finding.' }))).execute();
+  if (watched.length)
+    await db
+      .insertInto('findings')
+      .values(
+        watched.map((sample_id) => ({
+          sample_id,
+          measurand: 'Al',
+          level: 'watch' as const,
+          rule_id: 'baseline-jump',
+          numbers: '{}',
+          sentence: 'Invented finding.',
+        })),
+      )
+      .execute();
   return { c, machine, ids };
 }
 
 async function compactOf(res: Response): Promise<CompactTrendResponse> {
   const bytes = new Uint8Array(await res.arrayBuffer());
-  const text = res.headers.get('content-encoding') === 'gzip' ? gunzipSync(bytes).toString('utf8') : new TextDecoder().decode(bytes);
+  const text =
+    res.headers.get('content-encoding') === 'gzip'
+      ? gunzipSync(bytes).toString('utf8')
+      : new TextDecoder().decode(bytes);
   return JSON.parse(text) as CompactTrendResponse;
 }
 
 describe('GET /api/trends/[machineId]', () => {
   test('three elements × 200 samples answer under 40 KB gzipped, as numbers the chart expands to every point', async () => {
     const { c, machine } = await machineWithHistory(200);
-    const res = await answerTrendRequest(db, { request: request(machine.id, { 'accept-encoding': 'gzip, deflate, br' }), machineId: machine.id, locals: localsOf(c.rider.id, c.crew.id) });
+    const res = await answerTrendRequest(db, {
+      request: request(machine.id, { 'accept-encoding': 'gzip, deflate, br' }),
+      machineId: machine.id,
+      locals: localsOf(c.rider.id, c.crew.id),
+    });
     expect(res.status).toBe(200);
     expect(res.headers.get('content-encoding')).toBe('gzip');
     expect(res.headers.get('vary')).toMatch(/Accept-Encoding/);
@@ -76,7 +131,11 @@ describe('GET /api/trends/[machineId]', () => {
     expect(al.points[50]!.band?.source).toBe('own');
     expect(al.points[50]!.band?.mean).toBeCloseTo(4.513 + 50 / 97, 4);
     // Without gzip the same answer is sent as plain JSON.
-    const plain = await answerTrendRequest(db, { request: request(machine.id), machineId: machine.id, locals: localsOf(c.rider.id, c.crew.id) });
+    const plain = await answerTrendRequest(db, {
+      request: request(machine.id),
+      machineId: machine.id,
+      locals: localsOf(c.rider.id, c.crew.id),
+    });
     expect(plain.headers.get('content-encoding')).toBeNull();
     expect(await compactOf(plain)).toEqual(compact);
   });
@@ -89,16 +148,33 @@ describe('GET /api/trends/[machineId]', () => {
     expect(etag).toMatch(/^W\/"[A-Za-z0-9_-]+"$/);
     expect(first.headers.get('cache-control')).toBe('private, no-cache');
 
-    const again = await answerTrendRequest(db, { request: request(machine.id, { 'if-none-match': etag }), machineId: machine.id, locals });
+    const again = await answerTrendRequest(db, {
+      request: request(machine.id, { 'if-none-match': etag }),
+      machineId: machine.id,
+      locals,
+    });
     expect(again.status).toBe(304);
     expect(await again.text()).toBe('');
     expect(again.headers.get('etag')).toBe(etag);
     // The tag is weak: the gzipped answer carries the same one, and a list with it matches too.
-    const listed = await answerTrendRequest(db, { request: request(machine.id, { 'if-none-match': `"other", ${etag}`, 'accept-encoding': 'gzip' }), machineId: machine.id, locals });
+    const listed = await answerTrendRequest(db, {
+      request: request(machine.id, { 'if-none-match': `"other", ${etag}`, 'accept-encoding': 'gzip' }),
+      machineId: machine.id,
+      locals,
+    });
     expect(listed.status).toBe(304);
 
-    await db.updateTable('readings').set({ value: 99 }).where('sample_id', '=', ids[11]!).where('measurand', '=', 'Fe').execute();
-    const changed = await answerTrendRequest(db, { request: request(machine.id, { 'if-none-match': etag }), machineId: machine.id, locals });
+    await db
+      .updateTable('readings')
+      .set({ value: 99 })
+      .where('sample_id', '=', ids[11]!)
+      .where('measurand', '=', 'Fe')
+      .execute();
+    const changed = await answerTrendRequest(db, {
+      request: request(machine.id, { 'if-none-match': etag }),
+      machineId: machine.id,
+      locals,
+    });
     expect(changed.status).toBe(200);
     expect(changed.headers.get('etag')).not.toBe(etag);
     expect((await compactOf(changed)).series[0]!.value[11]).toBe(99);
@@ -111,7 +187,11 @@ describe('GET /api/trends/[machineId]', () => {
     ['garbage', '\u0000,,,;;'],
   ])('If-None-Match with %s answers 200 with the data', async (_, header) => {
     const { c, machine } = await machineWithHistory(5);
-    const res = await answerTrendRequest(db, { request: request(machine.id, { 'if-none-match': header.replace(/\u0000/g, '') }), machineId: machine.id, locals: localsOf(c.rider.id, c.crew.id) });
+    const res = await answerTrendRequest(db, {
+      request: request(machine.id, { 'if-none-match': header.replace(/\u0000/g, '') }),
+      machineId: machine.id,
+      locals: localsOf(c.rider.id, c.crew.id),
+    });
     expect(res.status).toBe(200);
     expect((await compactOf(res)).samples.id).toHaveLength(5);
   });
@@ -119,10 +199,18 @@ describe('GET /api/trends/[machineId]', () => {
   test('another crew’s machine is 404, with or without its entity tag', async () => {
     const { c, machine } = await machineWithHistory(5);
     const other = await makeCrewWithRoles(db, 'Other');
-    const own = await answerTrendRequest(db, { request: request(machine.id), machineId: machine.id, locals: localsOf(c.rider.id, c.crew.id) });
+    const own = await answerTrendRequest(db, {
+      request: request(machine.id),
+      machineId: machine.id,
+      locals: localsOf(c.rider.id, c.crew.id),
+    });
     const etag = own.headers.get('etag')!;
     for (const headers of [{}, { 'if-none-match': etag }, { 'if-none-match': '*' }] as Record<string, string>[]) {
-      const res = await answerTrendRequest(db, { request: request(machine.id, headers), machineId: machine.id, locals: localsOf(other.rider.id, other.crew.id) });
+      const res = await answerTrendRequest(db, {
+        request: request(machine.id, headers),
+        machineId: machine.id,
+        locals: localsOf(other.rider.id, other.crew.id),
+      });
       expect(res.status).toBe(404);
       expect(res.headers.get('etag')).toBeNull();
     }
@@ -134,7 +222,11 @@ describe('GET /api/trends/[machineId]', () => {
     ['100 KB of other keys', `measurands=Fe&${'junk=1&'.repeat(14_700)}`],
   ])('a 100 KB query string (%s) answers 400 with a message or ignores the rest', async (_, query) => {
     const { c, machine } = await machineWithHistory(3);
-    const res = await answerTrendRequest(db, { request: request(machine.id, {}, query), machineId: machine.id, locals: localsOf(c.rider.id, c.crew.id) });
+    const res = await answerTrendRequest(db, {
+      request: request(machine.id, {}, query),
+      machineId: machine.id,
+      locals: localsOf(c.rider.id, c.crew.id),
+    });
     if (query.startsWith('measurands=Fe&')) {
       // Unknown keys change nothing: the chart's own query is answered.
       expect(res.status).toBe(200);

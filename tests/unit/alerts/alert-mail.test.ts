@@ -1,7 +1,13 @@
 import { describe, expect, test } from 'vitest';
 import {
-  buildUnsubscribeHeaders, composeImportFindingsAlert, composeInvitationPendingAlert, composeSampleDueAlert, composeShippedOverdueAlert,
-  fitSubject, renderAlertMail, renderDigestMail,
+  buildUnsubscribeHeaders,
+  composeImportFindingsAlert,
+  composeInvitationPendingAlert,
+  composeSampleDueAlert,
+  composeShippedOverdueAlert,
+  fitSubject,
+  renderAlertMail,
+  renderDigestMail,
 } from '~/lib/alerts/alert-mail';
 
 // Invented demo figures and names throughout.
@@ -20,15 +26,30 @@ const importAlert = composeImportFindingsAlert({
     {
       name: 'Ridge 450',
       url: `${BASE}/machines/m1`,
-      samples: [{
-        bottleCode: 'SW-4', drawnOn: '2026-04-10', url: `${BASE}/samples/s4`,
-        findings: [
-          { level: 'watch', measurand: 'Si', sentence: 'Silicon is above the band: check the air filter.' },
-          { level: 'act', measurand: 'Al', sentence: 'Aluminium is at the fixed limit: pistons or bores.' },
-        ],
-      }],
+      samples: [
+        {
+          bottleCode: 'SW-4',
+          drawnOn: '2026-04-10',
+          url: `${BASE}/samples/s4`,
+          findings: [
+            { level: 'watch', measurand: 'Si', sentence: 'Silicon is above the band: check the air filter.' },
+            { level: 'act', measurand: 'Al', sentence: 'Aluminium is at the fixed limit: pistons or bores.' },
+          ],
+        },
+      ],
     },
-    { name: 'Fjord <690>', url: `${BASE}/machines/m2`, samples: [{ bottleCode: 'SW-9', drawnOn: '2026-04-11', url: `${BASE}/samples/s9`, findings: [{ level: 'watch', measurand: null, sentence: 'Fuel dilution is raised.' }] }] },
+    {
+      name: 'Fjord <690>',
+      url: `${BASE}/machines/m2`,
+      samples: [
+        {
+          bottleCode: 'SW-9',
+          drawnOn: '2026-04-11',
+          url: `${BASE}/samples/s9`,
+          findings: [{ level: 'watch', measurand: null, sentence: 'Fuel dilution is raised.' }],
+        },
+      ],
+    },
   ],
 });
 
@@ -38,12 +59,37 @@ describe('composeImportFindingsAlert', () => {
     expect(importAlert.intro).toContain('1 at act and 2 at watch on 2 machines');
     expect(importAlert.intro).toMatch(/advice/);
     const texts = importAlert.lines.map((l) => l.text);
-    expect(texts.findIndex((t) => t.startsWith('Act · Al'))).toBeLessThan(texts.findIndex((t) => t.startsWith('Watch · Si')));
-    expect(importAlert.lines.filter((l) => l.url).map((l) => l.url)).toEqual([`${BASE}/machines/m1`, `${BASE}/samples/s4`, `${BASE}/machines/m2`, `${BASE}/samples/s9`]);
+    expect(texts.findIndex((t) => t.startsWith('Act · Al'))).toBeLessThan(
+      texts.findIndex((t) => t.startsWith('Watch · Si')),
+    );
+    expect(importAlert.lines.filter((l) => l.url).map((l) => l.url)).toEqual([
+      `${BASE}/machines/m1`,
+      `${BASE}/samples/s4`,
+      `${BASE}/machines/m2`,
+      `${BASE}/samples/s9`,
+    ]);
   });
 
   test('watch only says watch', () => {
-    const watchOnly = composeImportFindingsAlert({ crewName: 'C', fileName: 'f.csv', homeUrl: `${BASE}/`, machines: [{ name: 'M', url: `${BASE}/machines/m`, samples: [{ bottleCode: 'B', drawnOn: '2026-01-01', url: `${BASE}/samples/s`, findings: [{ level: 'watch', measurand: 'Fe', sentence: 's' }] }] }] });
+    const watchOnly = composeImportFindingsAlert({
+      crewName: 'C',
+      fileName: 'f.csv',
+      homeUrl: `${BASE}/`,
+      machines: [
+        {
+          name: 'M',
+          url: `${BASE}/machines/m`,
+          samples: [
+            {
+              bottleCode: 'B',
+              drawnOn: '2026-01-01',
+              url: `${BASE}/samples/s`,
+              findings: [{ level: 'watch', measurand: 'Fe', sentence: 's' }],
+            },
+          ],
+        },
+      ],
+    });
     expect(watchOnly.subject.startsWith('Watch:')).toBe(true);
     expect(watchOnly.title).toBe('Lab results to keep an eye on');
   });
@@ -54,14 +100,26 @@ describe('renderAlertMail', () => {
 
   test('the text version has every address alone on its line', () => {
     const lines = mail.text.split('\n');
-    for (const url of [`${BASE}/machines/m1`, `${BASE}/samples/s9`, links.unsubscribeUrl, links.preferencesUrl, `${BASE}/`]) {
+    for (const url of [
+      `${BASE}/machines/m1`,
+      `${BASE}/samples/s9`,
+      links.unsubscribeUrl,
+      links.preferencesUrl,
+      `${BASE}/`,
+    ]) {
       expect(lines, url).toContain(url);
     }
     expect(mail.text).toContain('Fjord <690>');
   });
 
   test('the HTML links every address once, escapes names, and has no images', () => {
-    for (const url of [`${BASE}/machines/m1`, `${BASE}/machines/m2`, `${BASE}/samples/s4`, links.unsubscribeUrl, links.preferencesUrl]) {
+    for (const url of [
+      `${BASE}/machines/m1`,
+      `${BASE}/machines/m2`,
+      `${BASE}/samples/s4`,
+      links.unsubscribeUrl,
+      links.preferencesUrl,
+    ]) {
       expect(mail.html.split(`<a href="${url}"`).length - 1, url).toBe(1);
     }
     // /machines/m1 must not be linked inside a longer address that starts with it.
@@ -81,12 +139,23 @@ describe('renderAlertMail', () => {
 describe('reminders', () => {
   test.each([
     ['by date', ['date'] as const, 'the next sample was due on 2026-05-01'],
-    ['by odometer (mi machine, stored km)', ['odometer'] as const, 'the next sample is due at 3,107 mi and, from its recent riding, it is probably near 3,169 mi now'],
+    [
+      'by odometer (mi machine, stored km)',
+      ['odometer'] as const,
+      'the next sample is due at 3,107 mi and, from its recent riding, it is probably near 3,169 mi now',
+    ],
   ])('sample due %s', (_name, reasons, phrase) => {
     // 5000 km = 3,106.86 mi and 5100 km = 3,169.0 mi (1 mi = 1.609344 km exactly, NIST SP 811 B.8).
     const a = composeSampleDueAlert({
-      crewName: 'Valley school', machineName: 'Ridge 450', machineUrl: `${BASE}/machines/m1`, drainCardUrl: `${BASE}/machines/m1/drain-card`,
-      meter: 'mi', reasons: [...reasons], nextSampleOn: '2026-05-01', nextSampleOdometer: 5000, estimatedOdometer: 5100,
+      crewName: 'Valley school',
+      machineName: 'Ridge 450',
+      machineUrl: `${BASE}/machines/m1`,
+      drainCardUrl: `${BASE}/machines/m1/drain-card`,
+      meter: 'mi',
+      reasons: [...reasons],
+      nextSampleOn: '2026-05-01',
+      nextSampleOdometer: 5000,
+      estimatedOdometer: 5100,
     });
     expect(a.intro).toContain(phrase);
     expect(a.action.url).toBe(`${BASE}/machines/m1/drain-card`);
@@ -94,7 +163,14 @@ describe('reminders', () => {
   });
 
   test('shipped overdue names the bottle and the days', () => {
-    const a = composeShippedOverdueAlert({ crewName: 'Valley school', machineName: 'Ridge 450', bottleCode: 'SW-7', shippedOn: '2026-03-01', days: 21, sampleUrl: `${BASE}/samples/s7` });
+    const a = composeShippedOverdueAlert({
+      crewName: 'Valley school',
+      machineName: 'Ridge 450',
+      bottleCode: 'SW-7',
+      shippedOn: '2026-03-01',
+      days: 21,
+      sampleUrl: `${BASE}/samples/s7`,
+    });
     expect(a.subject).toBe('No results yet: bottle SW-7 of Ridge 450 (Valley school)');
     expect(a.title).toBe('Bottle SW-7: no results after 21 days');
   });
@@ -103,7 +179,14 @@ describe('reminders', () => {
     [false, /spam folder/],
     [true, /expired/],
   ])('invitation pending (expired %s)', (expired, phrase) => {
-    const a = composeInvitationPendingAlert({ crewName: 'Valley school', email: 'new@example.test', invitedOn: '2026-03-01', days: 7, crewUrl: `${BASE}/crews/c1`, expired });
+    const a = composeInvitationPendingAlert({
+      crewName: 'Valley school',
+      email: 'new@example.test',
+      invitedOn: '2026-03-01',
+      days: 7,
+      crewUrl: `${BASE}/crews/c1`,
+      expired,
+    });
     expect(a.lines[0]!.text).toMatch(phrase);
     expect(a.intro).toContain('after 7 days');
   });
@@ -111,14 +194,22 @@ describe('reminders', () => {
 
 describe('renderDigestMail', () => {
   test('groups entries by crew in one message with one unsubscribe link', () => {
-    const mail = renderDigestMail({
-      day: '2026-04-12', homeUrl: `${BASE}/`,
-      entries: [
-        { crewName: 'Valley school', title: 'Ridge 450: next sample due', lines: [{ text: 'Ridge 450', url: `${BASE}/machines/m1` }] },
-        { crewName: 'Own bikes', title: 'Bottle SW-7: no results after 21 days', lines: [{ text: 'Ask the lab.' }] },
-        { crewName: 'Valley school', title: 'Lab results need a look', lines: [{ text: 'Act · Al' }] },
-      ],
-    }, { ...links, unsubscribeWhat: 'the daily digest' });
+    const mail = renderDigestMail(
+      {
+        day: '2026-04-12',
+        homeUrl: `${BASE}/`,
+        entries: [
+          {
+            crewName: 'Valley school',
+            title: 'Ridge 450: next sample due',
+            lines: [{ text: 'Ridge 450', url: `${BASE}/machines/m1` }],
+          },
+          { crewName: 'Own bikes', title: 'Bottle SW-7: no results after 21 days', lines: [{ text: 'Ask the lab.' }] },
+          { crewName: 'Valley school', title: 'Lab results need a look', lines: [{ text: 'Act · Al' }] },
+        ],
+      },
+      { ...links, unsubscribeWhat: 'the daily digest' },
+    );
     expect(mail.subject).toBe('Sumpwise digest 2026-04-12: 3 items');
     expect(mail.text.indexOf('— Valley school —')).toBeLessThan(mail.text.indexOf('— Own bikes —'));
     expect(mail.text.split('— Valley school —').length - 1).toBe(1);

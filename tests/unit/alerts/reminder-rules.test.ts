@@ -1,11 +1,17 @@
 import { describe, expect, test } from 'vitest';
 import {
-  INVITATION_PENDING_DAYS, SHIPPED_OVERDUE_DAYS, addDays, buildSampleDueKey, checkInvitationPending, checkShippedOverdue, deriveSampleTarget,
+  INVITATION_PENDING_DAYS,
+  SHIPPED_OVERDUE_DAYS,
+  addDays,
+  buildSampleDueKey,
+  checkInvitationPending,
+  checkShippedOverdue,
+  deriveSampleTarget,
 } from '~/lib/reminders/reminder-rules';
 
 // The 21 and 7 days are product rules, no published source.
 describe('reminder thresholds', () => {
-  test('are the issue\'s 21 and 7 days', () => {
+  test("are the issue's 21 and 7 days", () => {
     expect(SHIPPED_OVERDUE_DAYS).toBe(21);
     expect(INVITATION_PENDING_DAYS).toBe(7);
   });
@@ -28,20 +34,57 @@ describe('reminder thresholds', () => {
     ['30 days', '2026-03-31T10:00:00Z', true, 30],
     ['31 days (beyond the horizon)', '2026-04-01T10:00:00Z', false, 31],
   ])('an invitation after %s: pending %s', (_name, now, pending, days) => {
-    expect(checkInvitationPending(made, new Date(now), INVITATION_PENDING_DAYS, 30)).toEqual({ pending, daysWaiting: days });
+    expect(checkInvitationPending(made, new Date(now), INVITATION_PENDING_DAYS, 30)).toEqual({
+      pending,
+      daysWaiting: days,
+    });
   });
 });
 
 describe('deriveSampleTarget', () => {
-  const none = { nextSampleOn: null, nextSampleOdometer: null, lastChangeOn: null, lastChangeOdometer: null, maxIntervalDays: null, maxIntervalDistance: null };
+  const none = {
+    nextSampleOn: null,
+    nextSampleOdometer: null,
+    lastChangeOn: null,
+    lastChangeOdometer: null,
+    maxIntervalDays: null,
+    maxIntervalDistance: null,
+  };
   test.each([
-    ['the interval call wins', { ...none, nextSampleOn: '2026-06-01', nextSampleOdometer: 4000, lastChangeOn: '2026-01-01', lastChangeOdometer: 1000, maxIntervalDays: 365, maxIntervalDistance: 6000 },
-      { nextSampleOn: '2026-06-01', nextSampleOdometer: 4000, source: 'call' }],
-    ['a call with only an odometer', { ...none, nextSampleOdometer: 4000 }, { nextSampleOn: null, nextSampleOdometer: 4000, source: 'call' }],
-    ['the manual\'s interval from the last oil change', { ...none, lastChangeOn: '2026-01-01', lastChangeOdometer: 1000, maxIntervalDays: 180, maxIntervalDistance: 5000 },
-      { nextSampleOn: '2026-06-30', nextSampleOdometer: 6000, source: 'manufacturer' }],
-    ['only a distance interval', { ...none, lastChangeOn: '2026-01-01', lastChangeOdometer: 1000, maxIntervalDistance: 5000 },
-      { nextSampleOn: null, nextSampleOdometer: 6000, source: 'manufacturer' }],
+    [
+      'the interval call wins',
+      {
+        ...none,
+        nextSampleOn: '2026-06-01',
+        nextSampleOdometer: 4000,
+        lastChangeOn: '2026-01-01',
+        lastChangeOdometer: 1000,
+        maxIntervalDays: 365,
+        maxIntervalDistance: 6000,
+      },
+      { nextSampleOn: '2026-06-01', nextSampleOdometer: 4000, source: 'call' },
+    ],
+    [
+      'a call with only an odometer',
+      { ...none, nextSampleOdometer: 4000 },
+      { nextSampleOn: null, nextSampleOdometer: 4000, source: 'call' },
+    ],
+    [
+      "the manual's interval from the last oil change",
+      {
+        ...none,
+        lastChangeOn: '2026-01-01',
+        lastChangeOdometer: 1000,
+        maxIntervalDays: 180,
+        maxIntervalDistance: 5000,
+      },
+      { nextSampleOn: '2026-06-30', nextSampleOdometer: 6000, source: 'manufacturer' },
+    ],
+    [
+      'only a distance interval',
+      { ...none, lastChangeOn: '2026-01-01', lastChangeOdometer: 1000, maxIntervalDistance: 5000 },
+      { nextSampleOn: null, nextSampleOdometer: 6000, source: 'manufacturer' },
+    ],
     ['nothing to go on', none, null],
   ])('%s', (_name, input, expected) => {
     expect(deriveSampleTarget(input)).toEqual(expected);

@@ -9,7 +9,9 @@ const freshDir = () => mkdtempSync(path.join(tmpdir(), 'sumpwise-secret-'));
 describe('readAppSecret', () => {
   test('APP_SECRET wins and no file is written', () => {
     const file = path.join(freshDir(), 'app-secret');
-    expect(readAppSecret('a-configured-secret-of-32-characters-x', file)).toBe('a-configured-secret-of-32-characters-x');
+    expect(readAppSecret('a-configured-secret-of-32-characters-x', file)).toBe(
+      'a-configured-secret-of-32-characters-x',
+    );
     expect(() => statSync(file)).toThrow(/ENOENT/);
   });
 
@@ -36,6 +38,8 @@ describe('readAppSecret', () => {
   });
 
   test('two generated secrets differ', () => {
-    expect(readAppSecret(undefined, path.join(freshDir(), 's'))).not.toBe(readAppSecret(undefined, path.join(freshDir(), 's')));
+    expect(readAppSecret(undefined, path.join(freshDir(), 's'))).not.toBe(
+      readAppSecret(undefined, path.join(freshDir(), 's')),
+    );
   });
 });

@@ -54,7 +54,13 @@ describe('computeTrendFit against NIST StRD linear regression', () => {
 describe('computeBaselineBand (prediction limits for small n)', () => {
   // Check values: t quantiles from the NIST/SEMATECH e-Handbook of Statistical Methods, table 1.3.6.7.2
   // (upper critical values of Student's t): t(0.99; 3) = 4.541, t(0.999; 3) = 10.215.
-  const settings = { minSamples: 3, window: 10, watchAlpha: 0.01, actAlpha: 0.001, floorAt: (level: number) => Math.hypot(0.5, 0.12 * level) };
+  const settings = {
+    minSamples: 3,
+    window: 10,
+    watchAlpha: 0.01,
+    actAlpha: 0.001,
+    floorAt: (level: number) => Math.hypot(0.5, 0.12 * level),
+  };
 
   test.each([
     { previous: [], n: 0 },
@@ -111,7 +117,12 @@ describe('computeBaselineBand (prediction limits for small n)', () => {
 describe('computeTrendFit slope standard error', () => {
   test('matches the textbook formula on a small set', () => {
     // y = 1, 3, 2, 5 at x = 0..3: slope 1.1, intercept 1.1, SSE 2.7, Sxx 5 (worked by hand); se = √(SSE/(n−2)/Sxx).
-    const fit = computeTrendFit([[0, 1], [1, 3], [2, 2], [3, 5]]);
+    const fit = computeTrendFit([
+      [0, 1],
+      [1, 3],
+      [2, 2],
+      [3, 5],
+    ]);
     expect(fit.slope).toBeCloseTo(1.1, 12);
     expect(fit.slopeSe).toBeCloseTo(Math.sqrt(2.7 / 2 / 5), 12);
   });

@@ -6,14 +6,25 @@
 import { describe, expect, test } from 'vitest';
 import { analyseSample } from '~/lib/analysis/analyse-sample';
 import { computeBaselineBand } from '~/lib/analysis/baseline';
-import { crewReferenceLabel, describeEngine, isSameEngine, type EngineDescription } from '~/lib/analysis/crew-reference';
+import {
+  crewReferenceLabel,
+  describeEngine,
+  isSameEngine,
+  type EngineDescription,
+} from '~/lib/analysis/crew-reference';
 import { replayHistory } from '~/lib/analysis/interval-call';
 import { BASELINE_JUMP, CREW_REFERENCE, SIMULATED_RATES, labScatterAt } from '~/lib/analysis/rule-definitions';
 import type { CrewReferenceSample, MachineProfile, SamplePoint } from '~/lib/analysis/types';
 import { makeSample } from './sample-builder';
 import { runCrewSimulation, simulateCrew } from './simulated-machines';
 
-const SINGLE_450: EngineDescription = { layout: 'single', displacementCc: 450, cooling: 'liquid', sharedOil: true, distanceUnit: 'km' };
+const SINGLE_450: EngineDescription = {
+  layout: 'single',
+  displacementCc: 450,
+  cooling: 'liquid',
+  sharedOil: true,
+  distanceUnit: 'km',
+};
 const LABEL = "from the crew's other 450 cc liquid-cooled singles";
 
 describe('isSameEngine', () => {
@@ -50,7 +61,12 @@ describe('isSameEngine', () => {
 });
 
 /** Peer samples: `machines` machines, `each` samples apiece, iron `fe` ppm after 3,000 km, dated before the new machine. */
-function peers(machines: number, each: number, fe: (m: number, i: number) => number, extra: Partial<CrewReferenceSample> = {}): CrewReferenceSample[] {
+function peers(
+  machines: number,
+  each: number,
+  fe: (m: number, i: number) => number,
+  extra: Partial<CrewReferenceSample> = {},
+): CrewReferenceSample[] {
   const out: CrewReferenceSample[] = [];
   for (let m = 0; m < machines; m++) {
     for (let i = 0; i < each; i++) {
@@ -62,7 +78,11 @@ function peers(machines: number, each: number, fe: (m: number, i: number) => num
 }
 
 const withReference = (samples: readonly CrewReferenceSample[]): MachineProfile => ({
-  cooling: 'liquid', distanceUnit: 'km', maxIntervalDistance: 6000, sharedOil: true, crewReference: { label: LABEL, samples },
+  cooling: 'liquid',
+  distanceUnit: 'km',
+  maxIntervalDistance: 6000,
+  sharedOil: true,
+  crewReference: { label: LABEL, samples },
 });
 
 describe('the crew reference band', () => {
@@ -75,7 +95,11 @@ describe('the crew reference band', () => {
     [3, 'ready', 'crew'],
     [5, 'ready', 'crew'],
   ] as const)('with %i other machines: %s, %s', (machines, status, source) => {
-    const analysis = analyseSample({ machine: withReference(peers(machines, 4, feOf)), history: [], sample: makeSample(0, { Fe: 14, Al: 3 }) });
+    const analysis = analyseSample({
+      machine: withReference(peers(machines, 4, feOf)),
+      history: [],
+      sample: makeSample(0, { Fe: 14, Al: 3 }),
+    });
     expect(analysis.bands.Fe?.status).toBe(status);
     expect(analysis.bands.Fe?.source).toBe(source);
     expect(analysis.crewReference?.machines).toBe(source === 'crew' ? Math.min(machines, 10) : undefined);
@@ -83,13 +107,23 @@ describe('the crew reference band', () => {
 
   test('is built with the same rules as an own band: rates per distance, the last `window` values, the same multiples', () => {
     const reference = peers(4, 4, feOf);
-    const band = analyseSample({ machine: withReference(reference), history: [], sample: makeSample(0, { Fe: 14, Al: 3 }) }).bands.Fe!;
+    const band = analyseSample({
+      machine: withReference(reference),
+      history: [],
+      sample: makeSample(0, { Fe: 14, Al: 3 }),
+    }).bands.Fe!;
     const p = BASELINE_JUMP.params;
     // Every peer sample ran 3,000 km: the rate is ppm · 1,000 / 3,000, and the floor scales the same way.
-    const expected = computeBaselineBand(reference.map((s) => (s.readings.Fe!.value * 1000) / 3000), {
-      minSamples: p.minSamples, window: p.window, watchAlpha: p.watchAlpha, actAlpha: p.actAlpha,
-      floorAt: (level) => (labScatterAt((level * 3000) / 1000) * 1000) / 3000,
-    });
+    const expected = computeBaselineBand(
+      reference.map((s) => (s.readings.Fe!.value * 1000) / 3000),
+      {
+        minSamples: p.minSamples,
+        window: p.window,
+        watchAlpha: p.watchAlpha,
+        actAlpha: p.actAlpha,
+        floorAt: (level) => (labScatterAt((level * 3000) / 1000) * 1000) / 3000,
+      },
+    );
     expect(band).toMatchObject({ ...expected, basis: 'rate', source: 'crew', crew: { label: LABEL, machines: 4 } });
     expect(band.sampleIds).toEqual(reference.slice(-p.window).map((s) => s.id));
   });
@@ -97,7 +131,9 @@ describe('the crew reference band', () => {
   test("the machine's own band takes over once it is ready", () => {
     const own = [0, 1, 2, 3].map((i) => makeSample(i, { Fe: 13 + (i % 2), Al: 3 }));
     const machine = withReference(peers(4, 4, feOf));
-    const sources = replayHistory({ machine, samples: [...own, makeSample(4, { Fe: 14, Al: 3 })] }).map((r) => r.analysis.bands.Fe?.source);
+    const sources = replayHistory({ machine, samples: [...own, makeSample(4, { Fe: 14, Al: 3 })] }).map(
+      (r) => r.analysis.bands.Fe?.source,
+    );
     expect(sources).toEqual(['crew', 'crew', 'crew', 'crew', 'own']);
   });
 
@@ -108,12 +144,20 @@ describe('the crew reference band', () => {
     ['at a far different oil age (1,000 km against 3,000)', (s) => ({ ...s, distanceOnOil: 1000 })],
   ])('leaves out peer samples %s', (_name, change) => {
     const reference = peers(3, 4, feOf).map((s) => (typeof change === 'function' ? change(s) : { ...s, ...change }));
-    const band = analyseSample({ machine: withReference(reference), history: [], sample: makeSample(0, { Fe: 14, Al: 3 }) }).bands.Fe!;
+    const band = analyseSample({
+      machine: withReference(reference),
+      history: [],
+      sample: makeSample(0, { Fe: 14, Al: 3 }),
+    }).bands.Fe!;
     expect(band).toMatchObject({ status: 'building', source: 'own' });
   });
 
   test('a reading above it names the crew reference in the finding', () => {
-    const analysis = analyseSample({ machine: withReference(peers(3, 4, feOf)), history: [], sample: makeSample(0, { Fe: 60, Al: 3 }) });
+    const analysis = analyseSample({
+      machine: withReference(peers(3, 4, feOf)),
+      history: [],
+      sample: makeSample(0, { Fe: 60, Al: 3 }),
+    });
     const jump = analysis.findings.find((f) => f.ruleId === 'baseline-jump' && f.measurands[0] === 'Fe');
     expect(jump?.level).toBe('act');
     expect(jump?.sentence).toContain(`the crew reference band (${LABEL})`);
@@ -127,7 +171,10 @@ describe('no stretch on a crew reference', () => {
     makeSample(i, { Fe: 13, Al: 3, KV100: 13.5, FUEL: 0.5, WATER: 0.05, TBN: 7, TAN: 2 });
 
   test('steady samples judged on a crew reference hold, and say whose band and why', () => {
-    const replayed = replayHistory({ machine: withReference(peers(4, 6, (m, i) => 12 + m + (i % 3))), samples: [0, 1, 2, 3].map(steady) });
+    const replayed = replayHistory({
+      machine: withReference(peers(4, 6, (m, i) => 12 + m + (i % 3))),
+      samples: [0, 1, 2, 3].map(steady),
+    });
     for (const r of replayed) {
       expect(r.analysis.worst).toBe('steady');
       expect(r.analysis.crewReference?.label).toBe(LABEL);
@@ -157,7 +204,11 @@ describe('simulated crews (seeded)', () => {
     // The reference was really used: about the first minSamples of twelve samples of each new machine.
     expect(figures.crewJudgedSamplesPercent).toBeGreaterThan(20);
     // The rules page states what this measures.
-    expect(figures).toMatchObject({ crews: 300, newAnyShortenPercent: SIMULATED_RATES.crewNewAnyShortenPercent, newAnyActPercent: SIMULATED_RATES.crewNewAnyActPercent });
+    expect(figures).toMatchObject({
+      crews: 300,
+      newAnyShortenPercent: SIMULATED_RATES.crewNewAnyShortenPercent,
+      newAnyActPercent: SIMULATED_RATES.crewNewAnyActPercent,
+    });
   }, 120_000);
 
   test('with the fewest machines a reference allows (three), the budget holds too', () => {

@@ -10,11 +10,26 @@ import type { MachineProfile, SamplePoint } from '~/lib/analysis/types';
 import { AIR_SINGLE, LIQUID_TWIN, makeHistory, makeSample } from './sample-builder';
 
 type Readings = Partial<Record<MeasurandCode, number>>;
-const base: Readings = { Fe: 20, Al: 4, Cu: 3, Si: 6, Na: 4, K: 1, B: 3, Zn: 1000, P: 900, Ca: 2000, KV100: 13.8, FUEL: 0.5, WATER: 0.02 };
-const tag = (j: ReturnType<typeof judgeHistory>[number]) => j.findings.map((f) => `${f.ruleId}:${f.measurands.join('+')}:${f.level}`).sort();
+const base: Readings = {
+  Fe: 20,
+  Al: 4,
+  Cu: 3,
+  Si: 6,
+  Na: 4,
+  K: 1,
+  B: 3,
+  Zn: 1000,
+  P: 900,
+  Ca: 2000,
+  KV100: 13.8,
+  FUEL: 0.5,
+  WATER: 0.02,
+};
+const tag = (j: ReturnType<typeof judgeHistory>[number]) =>
+  j.findings.map((f) => `${f.ruleId}:${f.measurands.join('+')}:${f.level}`).sort();
 
 describe('baselines come from in-control samples', () => {
-  test('an act sample stays out of its measurand\'s band, so a repeat of the spike still reads act', () => {
+  test("an act sample stays out of its measurand's band, so a repeat of the spike still reads act", () => {
     const sets = [...Array.from({ length: 5 }, () => base), { ...base, Al: 14 }, base, { ...base, Al: 14 }];
     const judged = judgeHistory({ machine: AIR_SINGLE, samples: makeHistory(sets) });
     expect(tag(judged[5]!)).toContain('baseline-jump:Al:act');
@@ -28,7 +43,10 @@ describe('baselines come from in-control samples', () => {
     // With the break-in sample out, the band holds only the four 20 ppm samples: 60 ppm is past its act edge
     // (20 + t(0.9995; 3) · √1.25 · 2.45 ≈ 55 ppm). With it in, the band is far wider and 60 ppm reads nothing.
     expect(tag(judged[5]!)).toContain('baseline-jump:Fe:act');
-    const withIt = judgeHistory({ machine: AIR_SINGLE, samples: makeHistory([{ ...base, Fe: 60 }, base, base, base, base, { ...base, Fe: 60 }]) });
+    const withIt = judgeHistory({
+      machine: AIR_SINGLE,
+      samples: makeHistory([{ ...base, Fe: 60 }, base, base, base, base, { ...base, Fe: 60 }]),
+    });
     expect(tag(withIt[5]!).some((t) => t.startsWith('baseline-jump:Fe'))).toBe(false);
   });
 
@@ -51,11 +69,13 @@ describe('stretch only on enough data, judged on a ready baseline', () => {
   });
 });
 
-describe('the oil\'s own signals', () => {
+describe("the oil's own signals", () => {
   test('a borate oil on an air-cooled engine raises no coolant finding (common practice: borate additives)', () => {
     const borate = { ...base, B: 140 };
     const judged = judgeHistory({ machine: AIR_SINGLE, samples: makeHistory(Array.from({ length: 6 }, () => borate)) });
-    expect(judged.flatMap((j) => j.findings).filter((f) => f.ruleId === 'coolant-markers' || f.measurands.includes('B'))).toEqual([]);
+    expect(
+      judged.flatMap((j) => j.findings).filter((f) => f.ruleId === 'coolant-markers' || f.measurands.includes('B')),
+    ).toEqual([]);
     expect(judged.every((j) => j.call !== 'shorten' && j.call !== 'fix-first')).toBe(true);
   });
 
@@ -77,7 +97,7 @@ describe('the oil\'s own signals', () => {
     expect(['fix-first', 'hold']).toContain(last.call);
   });
 
-  test('potassium 40 ppm on a liquid-cooled engine\'s first sample is at least watch (common practice)', () => {
+  test("potassium 40 ppm on a liquid-cooled engine's first sample is at least watch (common practice)", () => {
     const first = judgeHistory({ machine: LIQUID_TWIN, samples: [makeSample(0, { ...base, K: 40 })] })[0]!;
     expect(first.findings.find((f) => f.ruleId === 'coolant-markers')?.level).toBe('watch');
     expect(first.call).toBe('fix-first');
@@ -108,18 +128,27 @@ describe('the oil\'s own signals', () => {
     expect(judged[4]!.findings.find((f) => f.ruleId === 'flash-point')?.level).toBe('act');
     expect(judged[4]!.findings.find((f) => f.ruleId === 'flash-point')?.sentence).toMatch(/fuel/);
     // With a fuel figure the fuel rule speaks instead.
-    const withFuel = judgeHistory({ machine: AIR_SINGLE, samples: makeHistory([base, { ...base, FLASH: 165 }]) }).at(-1)!;
+    const withFuel = judgeHistory({ machine: AIR_SINGLE, samples: makeHistory([base, { ...base, FLASH: 165 }]) }).at(
+      -1,
+    )!;
     expect(withFuel.findings.some((f) => f.ruleId === 'flash-point')).toBe(false);
   });
 
   test('copper falling from one oil change to the next with lead and tin quiet is leaching, not wear (common practice)', () => {
-    const newEngine = [{ ...base, Cu: 60, Pb: 1, Sn: 1 }, { ...base, Cu: 38, Pb: 1, Sn: 1 }, { ...base, Cu: 22, Pb: 1, Sn: 1 }];
+    const newEngine = [
+      { ...base, Cu: 60, Pb: 1, Sn: 1 },
+      { ...base, Cu: 38, Pb: 1, Sn: 1 },
+      { ...base, Cu: 22, Pb: 1, Sn: 1 },
+    ];
     const judged = judgeHistory({ machine: AIR_SINGLE, samples: makeHistory(newEngine) });
     expect(judged[0]!.findings.some((f) => f.measurands[0] === 'Cu')).toBe(true);
     expect(judged[1]!.findings.filter((f) => f.measurands[0] === 'Cu')).toEqual([]);
     expect(judged[2]!.findings.filter((f) => f.measurands[0] === 'Cu')).toEqual([]);
     // With tin rising alongside, falling copper is still read as wear.
-    const withTin = judgeHistory({ machine: AIR_SINGLE, samples: makeHistory([newEngine[0]!, { ...newEngine[1]!, Sn: 9 }]) });
+    const withTin = judgeHistory({
+      machine: AIR_SINGLE,
+      samples: makeHistory([newEngine[0]!, { ...newEngine[1]!, Sn: 9 }]),
+    });
     expect(withTin[1]!.findings.some((f) => f.measurands[0] === 'Cu')).toBe(true);
   });
 
@@ -131,7 +160,10 @@ describe('the oil\'s own signals', () => {
     expect(f.sentence).toMatch(/clutch/);
     expect(f.sentence).toMatch(/slip/);
     // Not on an engine whose clutch is dry or has its own oil.
-    expect(judgeHistory({ machine: { ...AIR_SINGLE, sharedOil: false }, samples: makeHistory([{ ...base, Mo: 450 }]) })[0]!.findings).toEqual([]);
+    expect(
+      judgeHistory({ machine: { ...AIR_SINGLE, sharedOil: false }, samples: makeHistory([{ ...base, Mo: 450 }]) })[0]!
+        .findings,
+    ).toEqual([]);
   });
 
   test.each([
@@ -151,10 +183,16 @@ describe('the oil\'s own signals', () => {
   });
 
   test('dirt is silicon and aluminium rising in the proportion of dust; silicon alone is not', () => {
-    const dusty = judgeHistory({ machine: AIR_SINGLE, samples: makeHistory([base, base, base, base, { ...base, Si: 40, Al: 10 }]) }).at(-1)!;
+    const dusty = judgeHistory({
+      machine: AIR_SINGLE,
+      samples: makeHistory([base, base, base, base, { ...base, Si: 40, Al: 10 }]),
+    }).at(-1)!;
     expect(dusty.findings.some((f) => f.ruleId === 'dirt')).toBe(true);
     expect(dusty.call).toBe('fix-first');
-    const sealant = judgeHistory({ machine: AIR_SINGLE, samples: makeHistory([base, base, base, base, { ...base, Si: 40 }]) }).at(-1)!;
+    const sealant = judgeHistory({
+      machine: AIR_SINGLE,
+      samples: makeHistory([base, base, base, base, { ...base, Si: 40 }]),
+    }).at(-1)!;
     expect(sealant.findings.some((f) => f.ruleId === 'dirt')).toBe(false);
   });
 });

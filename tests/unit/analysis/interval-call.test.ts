@@ -6,7 +6,15 @@ import type { MachineProfile } from '~/lib/analysis/types';
 import { AIR_SINGLE, LIQUID_TWIN, makeHistory, makeSample } from './sample-builder';
 
 // A steady sample that reports what a stretch needs: wear metals, viscosity, fuel and water.
-const steadySet: Partial<Record<MeasurandCode, number>> = { Fe: 20, Al: 4, Cu: 3, Si: 6, KV100: 13.5, FUEL: 0.5, WATER: 0.02 };
+const steadySet: Partial<Record<MeasurandCode, number>> = {
+  Fe: 20,
+  Al: 4,
+  Cu: 3,
+  Si: 6,
+  KV100: 13.5,
+  FUEL: 0.5,
+  WATER: 0.02,
+};
 const steadyHistory = makeHistory(Array.from({ length: 6 }, () => steadySet));
 
 function callFor(machine: MachineProfile, history = steadyHistory, readings = steadySet, extra = {}) {
@@ -61,9 +69,13 @@ describe('makeIntervalCall', () => {
 
   test('the regular interval is the median of the last three completed oil changes', () => {
     const samples = [2000, 3000, 4000, 3500].map((d, i, all) =>
-      makeSample(i, steadySet, { distanceOnOil: d, odometer: all.slice(0, i + 1).reduce((a, b) => a + b, 0) }));
+      makeSample(i, steadySet, { distanceOnOil: d, odometer: all.slice(0, i + 1).reduce((a, b) => a + b, 0) }),
+    );
     // Oil starts at 0, 2000, 5000, 9000: completed oil changes 2000, 3000, 4000 → median of the last three 3000.
-    expect(findRegularInterval(AIR_SINGLE, samples.slice(0, -1), samples.at(-1)!)).toEqual({ value: 3000, source: 'completed-oil-changes' });
+    expect(findRegularInterval(AIR_SINGLE, samples.slice(0, -1), samples.at(-1)!)).toEqual({
+      value: 3000,
+      source: 'completed-oil-changes',
+    });
   });
 
   test('other watch findings hold', () => {
@@ -107,8 +119,15 @@ describe('makeIntervalCall', () => {
     ['TAN up', { TAN: 4.5 }, /TAN is up/],
   ] as const)('%s blocks a stretch', (_name, worn, why) => {
     const newOil = { source: 'data-sheet' as const, readings: { TBN: { value: 8 }, TAN: { value: 2 } } };
-    const history = makeHistory(Array.from({ length: 6 }, () => ({ ...steadySet, TBN: 7, TAN: 2.2 })), { newOil });
-    const c = makeIntervalCall({ machine: AIR_SINGLE, history, sample: makeSample(6, { ...steadySet, TBN: 7, TAN: 2.2, ...worn }, { newOil }) });
+    const history = makeHistory(
+      Array.from({ length: 6 }, () => ({ ...steadySet, TBN: 7, TAN: 2.2 })),
+      { newOil },
+    );
+    const c = makeIntervalCall({
+      machine: AIR_SINGLE,
+      history,
+      sample: makeSample(6, { ...steadySet, TBN: 7, TAN: 2.2, ...worn }, { newOil }),
+    });
     expect(c.call).toBe('hold');
     expect(c.reasons.join(' ')).toMatch(why);
   });
@@ -128,7 +147,13 @@ describe('makeIntervalCall', () => {
 
   test('no stretch right after a shorten until a sample at the shortened interval confirms it', () => {
     // Sample 5 acts on iron (shorten to 1,500); the rider keeps running 3,000: steady, but no stretch.
-    const sets = [...Array.from({ length: 5 }, () => steadySet), { ...steadySet, Fe: 120 }, steadySet, steadySet, steadySet];
+    const sets = [
+      ...Array.from({ length: 5 }, () => steadySet),
+      { ...steadySet, Fe: 120 },
+      steadySet,
+      steadySet,
+      steadySet,
+    ];
     const judged = judgeHistory({ machine: AIR_SINGLE, samples: makeHistory(sets) });
     expect(judged[5]!.call).toBe('shorten');
     expect(judged.slice(6).map((j) => j.call)).toEqual(['hold', 'hold', 'hold']);
@@ -136,7 +161,11 @@ describe('makeIntervalCall', () => {
 
   test('hour-meter machines round to 5 h', () => {
     const machine: MachineProfile = { cooling: 'liquid', distanceUnit: 'h', maxIntervalDistance: 100 };
-    const history = makeHistory(Array.from({ length: 6 }, () => steadySet), {}, 37);
+    const history = makeHistory(
+      Array.from({ length: 6 }, () => steadySet),
+      {},
+      37,
+    );
     const c = makeIntervalCall({ machine, history, sample: makeSample(6, steadySet, {}, 37) });
     expect(c.call).toBe('stretch');
     expect(c.nextIntervalDistance).toBe(40); // 37 × 1.2 = 44.4, rounded down to 40
@@ -155,12 +184,18 @@ describe('makeIntervalCall', () => {
     // 14 days after the results, not after the draw (2024-02-24), so never already past.
     expect(c.nextSampleDue.date).toBe('2024-05-04');
     // Results that came back on the day still count from the draw.
-    expect(callFor(AIR_SINGLE, steadyHistory, { ...steadySet, Fe: 120 }, { resultsOn: '2024-02-24' }).nextSampleDue.date).toBe('2024-03-09');
+    expect(
+      callFor(AIR_SINGLE, steadyHistory, { ...steadySet, Fe: 120 }, { resultsOn: '2024-02-24' }).nextSampleDue.date,
+    ).toBe('2024-03-09');
   });
 
   test('with no interval to go on it still answers, with no interval and a reason', () => {
     const machine: MachineProfile = { cooling: 'air', distanceUnit: 'km' };
-    const c = makeIntervalCall({ machine, history: [], sample: makeSample(0, steadySet, { distanceOnOil: Number.NaN }) });
+    const c = makeIntervalCall({
+      machine,
+      history: [],
+      sample: makeSample(0, steadySet, { distanceOnOil: Number.NaN }),
+    });
     expect(c.call).toBe('hold');
     expect(c.nextIntervalDistance).toBeNull();
     expect(c.reasons.join(' ')).toMatch(/cannot be set yet/);

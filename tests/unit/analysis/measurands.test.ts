@@ -13,7 +13,30 @@ describe('measurand catalogue', () => {
   test('holds every element of ASTM D5185 exactly once', () => {
     // ASTM D5185 element list (as quoted in the issue): Al, Ba, B, Ca, Cr, Cu, Fe, Pb, Mg, Mn, Mo, Ni, P, K,
     // Si, Ag, Na, S, Sn, Ti, V, Zn.
-    const d5185 = ['Al', 'Ba', 'B', 'Ca', 'Cr', 'Cu', 'Fe', 'Pb', 'Mg', 'Mn', 'Mo', 'Ni', 'P', 'K', 'Si', 'Ag', 'Na', 'S', 'Sn', 'Ti', 'V', 'Zn'];
+    const d5185 = [
+      'Al',
+      'Ba',
+      'B',
+      'Ca',
+      'Cr',
+      'Cu',
+      'Fe',
+      'Pb',
+      'Mg',
+      'Mn',
+      'Mo',
+      'Ni',
+      'P',
+      'K',
+      'Si',
+      'Ag',
+      'Na',
+      'S',
+      'Sn',
+      'Ti',
+      'V',
+      'Zn',
+    ];
     expect([...ELEMENT_CODES].sort()).toEqual([...d5185].sort());
   });
 

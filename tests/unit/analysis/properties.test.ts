@@ -13,9 +13,24 @@ const UP_CODES = MEASURANDS.filter((m) => m.concern === 'up').map((m) => m.code)
 
 // Clustered ranges so bands, trends and limits are actually crossed: most readings present, most values small.
 const RANGES: [MeasurandCode, number, number][] = [
-  ['Fe', 0, 120], ['Al', 0, 30], ['Cu', 0, 30], ['Cr', 0, 12], ['Pb', 0, 30], ['Sn', 0, 12], ['Si', 0, 30],
-  ['Na', 0, 80], ['K', 0, 30], ['B', 0, 30], ['Zn', 500, 1500], ['P', 500, 1300], ['KV100', 8, 18],
-  ['FUEL', 0, 7], ['WATER', 0, 0.15], ['GLYCOL', 0, 1], ['INSOL', 0, 2], ['TAN', 0, 5],
+  ['Fe', 0, 120],
+  ['Al', 0, 30],
+  ['Cu', 0, 30],
+  ['Cr', 0, 12],
+  ['Pb', 0, 30],
+  ['Sn', 0, 12],
+  ['Si', 0, 30],
+  ['Na', 0, 80],
+  ['K', 0, 30],
+  ['B', 0, 30],
+  ['Zn', 500, 1500],
+  ['P', 500, 1300],
+  ['KV100', 8, 18],
+  ['FUEL', 0, 7],
+  ['WATER', 0, 0.15],
+  ['GLYCOL', 0, 1],
+  ['INSOL', 0, 2],
+  ['TAN', 0, 5],
 ];
 const RAISED_CODES = RANGES.map(([code]) => code).filter((code) => UP_CODES.includes(code));
 // Uniform over [min, max]: fc.double leans towards the ends of its range, which would starve the middle.
@@ -35,9 +50,7 @@ function readingsAround(bases: (number | undefined)[]): fc.Arbitrary<SamplePoint
     return readings;
   });
 }
-const basesArb = fc.tuple(
-  ...RANGES.map(([, min, max]) => fc.option(uniform(min, max), { nil: undefined, freq: 6 })),
-);
+const basesArb = fc.tuple(...RANGES.map(([, min, max]) => fc.option(uniform(min, max), { nil: undefined, freq: 6 })));
 
 const machineArb: fc.Arbitrary<MachineProfile> = fc.record({
   cooling: fc.constantFrom('air', 'oil', 'liquid', 'liquid'),
@@ -86,8 +99,18 @@ describe('properties (fast-check)', () => {
           const usual = s.current[code]?.value ?? top / 2;
           const beforeValue = nearUsual ? usual * (0.8 + 0.6 * where) : where * top;
           const afterValue = beforeValue + (nearUsual ? 0.5 * usual * raise : raise * top);
-          const before = buildSample(history.length, { ...s.current, [code]: { value: beforeValue } }, s.interval, s.product);
-          const after = buildSample(history.length, { ...s.current, [code]: { value: afterValue } }, s.interval, s.product);
+          const before = buildSample(
+            history.length,
+            { ...s.current, [code]: { value: beforeValue } },
+            s.interval,
+            s.product,
+          );
+          const after = buildSample(
+            history.length,
+            { ...s.current, [code]: { value: afterValue } },
+            s.interval,
+            s.product,
+          );
           const lb = analyseSample({ machine: s.machine, history, sample: before }).readingLevels[code] ?? 'steady';
           const la = analyseSample({ machine: s.machine, history, sample: after }).readingLevels[code] ?? 'steady';
           expect(RANK[la]).toBeGreaterThanOrEqual(RANK[lb]);
@@ -109,9 +132,18 @@ describe('properties (fast-check)', () => {
           const scale = 1e-9 * Math.max(1, ...values.map((v) => Math.abs(v * k)));
           expect(Math.abs(scaled.mean - b.mean * k)).toBeLessThanOrEqual(scale);
           expect(Math.abs(scaled.sd - b.sd * k)).toBeLessThanOrEqual(scale);
-          const settings = { minSamples: 3, window: 10, watchAlpha: 0.01, actAlpha: 0.0005, floorAt: (level: number) => 0.1 * level };
+          const settings = {
+            minSamples: 3,
+            window: 10,
+            watchAlpha: 0.01,
+            actAlpha: 0.0005,
+            floorAt: (level: number) => 0.1 * level,
+          };
           const band = computeBaselineBand(values, settings);
-          const scaledBand = computeBaselineBand(values.map((v) => v * k), settings);
+          const scaledBand = computeBaselineBand(
+            values.map((v) => v * k),
+            settings,
+          );
           if (band.status === 'ready' && scaledBand.status === 'ready') {
             const tol = 1e-8 * Math.max(1, ...values.map((v) => Math.abs(v * k)));
             expect(Math.abs(scaledBand.watchAbove - band.watchAbove * k)).toBeLessThanOrEqual(tol);
@@ -159,7 +191,12 @@ describe('properties (fast-check)', () => {
       product: fc.constantFrom('Valley Trail 10W-40', 'Ridge Synth 15W-50'),
     }),
   );
-  function buildHistory(h: { readings: SamplePoint['readings'][]; intervals: number[]; labDays: number[]; product: string }): SamplePoint[] {
+  function buildHistory(h: {
+    readings: SamplePoint['readings'][];
+    intervals: number[];
+    labDays: number[];
+    product: string;
+  }): SamplePoint[] {
     let odometer = 0;
     return h.readings.map((readings, i) => {
       odometer += h.intervals[i]!;
@@ -174,7 +211,8 @@ describe('properties (fast-check)', () => {
       fc.property(historyArb, (h) => {
         for (const r of replayHistory({ machine: h.machine, samples: buildHistory(h) })) {
           if (r.call.call !== 'stretch') continue;
-          if (h.machine.maxIntervalDistance !== undefined) expect(r.call.nextIntervalDistance!).toBeLessThanOrEqual(h.machine.maxIntervalDistance);
+          if (h.machine.maxIntervalDistance !== undefined)
+            expect(r.call.nextIntervalDistance!).toBeLessThanOrEqual(h.machine.maxIntervalDistance);
           expect(r.call.nextIntervalDistance!).toBeLessThanOrEqual(r.call.basis.ceiling!);
         }
       }),
@@ -216,7 +254,13 @@ describe('properties (fast-check)', () => {
         const judged = judgeHistory({ machine: h.machine, samples });
         const replayed = replayHistory({ machine: h.machine, samples });
         expect(judged.map((j) => [j.sampleId, j.call, j.worst, j.nextIntervalDistance, j.findings.length])).toEqual(
-          replayed.map((r) => [r.sampleId, r.call.call, r.analysis.worst, r.call.nextIntervalDistance, r.analysis.findings.length]),
+          replayed.map((r) => [
+            r.sampleId,
+            r.call.call,
+            r.analysis.worst,
+            r.call.nextIntervalDistance,
+            r.analysis.findings.length,
+          ]),
         );
       }),
       { numRuns: 50 },

@@ -24,8 +24,21 @@ describe('RULE_DEFINITIONS', () => {
     const ids = RULE_DEFINITIONS.map((r) => r.id);
     expect(new Set(ids).size).toBe(ids.length);
     expect(ids).toEqual([
-      'baseline-jump', 'climbing-trend', 'fixed-limit', 'viscosity-grade', 'viscosity-change', 'fuel-dilution', 'flash-point',
-      'condition-trend', 'coolant-markers', 'dirt', 'additive-mismatch', 'clutch-friction', 'copper-leaching', 'crew-reference', 'interval-call',
+      'baseline-jump',
+      'climbing-trend',
+      'fixed-limit',
+      'viscosity-grade',
+      'viscosity-change',
+      'fuel-dilution',
+      'flash-point',
+      'condition-trend',
+      'coolant-markers',
+      'dirt',
+      'additive-mismatch',
+      'clutch-friction',
+      'copper-leaching',
+      'crew-reference',
+      'interval-call',
     ]);
     // Prediction limits designed for 1 % (watch) and 0.05 % (act) false alarms per in-control reading.
     expect(BASELINE_JUMP.params).toMatchObject({ watchAlpha: 0.01, actAlpha: 0.0005, minSamples: 4 });
@@ -39,7 +52,17 @@ describe('RULE_DEFINITIONS', () => {
     // Petro-Canada Lubricants Handbook (2004): Fe 100, Cr 10, Cu 20, Sn 10, Al 20, Pb 25, B 20, Si 20 ppm;
     // KV100 ±15 % of new oil; fuel 5 %; water 0.1 %.
     expect(DEFAULT_FIXED_LIMITS).toEqual({
-      Fe: 100, Cr: 10, Cu: 20, Sn: 10, Al: 20, Pb: 25, B: 20, Si: 20, kv100ChangePercent: 15, fuelPercent: 5, waterPercent: 0.1,
+      Fe: 100,
+      Cr: 10,
+      Cu: 20,
+      Sn: 10,
+      Al: 20,
+      Pb: 25,
+      B: 20,
+      Si: 20,
+      kv100ChangePercent: 15,
+      fuelPercent: 5,
+      waterPercent: 0.1,
     });
   });
 });
@@ -77,7 +100,9 @@ describe('baseline-jump (per distance, prediction limits)', () => {
     const long = makeSample(5, { Fe: 40 }, { distanceOnOil: 6000, odometer: 21000 });
     const short = makeSample(5, { Fe: 30 }, { distanceOnOil: 1500, odometer: 16500 });
     expect(analyseSample({ machine: AIR_SINGLE, history, sample: long }).findings).toEqual([]);
-    expect(analyseSample({ machine: AIR_SINGLE, history, sample: short }).findings.map((f) => `${f.ruleId}:${f.level}`)).toContain('baseline-jump:act');
+    expect(
+      analyseSample({ machine: AIR_SINGLE, history, sample: short }).findings.map((f) => `${f.ruleId}:${f.level}`),
+    ).toContain('baseline-jump:act');
   });
 
   test('a perfectly flat history does not alarm on a 1 ppm change (lab-scatter floor)', () => {
@@ -87,7 +112,11 @@ describe('baseline-jump (per distance, prediction limits)', () => {
 
   test('with fewer than four in-control samples the baseline is building and it stays silent', () => {
     expect(levelsOf('baseline-jump', [{ Fe: 5 }, { Fe: 5 }, { Fe: 5 }], { Fe: 90 })).toEqual([]);
-    const analysis = analyseSample({ machine: AIR_SINGLE, history: makeHistory([{ Fe: 5 }, { Fe: 5 }, { Fe: 5 }]), sample: makeSample(3, { Fe: 90 }) });
+    const analysis = analyseSample({
+      machine: AIR_SINGLE,
+      history: makeHistory([{ Fe: 5 }, { Fe: 5 }, { Fe: 5 }]),
+      sample: makeSample(3, { Fe: 90 }),
+    });
     expect(analysis.baselineStatus).toBe('building');
     expect(analysis.bands.Fe).toMatchObject({ status: 'building', n: 3, needed: 4 });
   });
@@ -99,7 +128,7 @@ describe('baseline-jump (per distance, prediction limits)', () => {
     expect(analyseSample({ machine: AIR_SINGLE, history, sample }).findings).toEqual([]);
   });
 
-  test('boron on an air-cooled engine is the oil\'s own additive: at most watch, and never a coolant sentence', () => {
+  test("boron on an air-cooled engine is the oil's own additive: at most watch, and never a coolant sentence", () => {
     const history = [{ B: 40 }, { B: 42 }, { B: 38 }, { B: 41 }];
     const a = analyseSample({ machine: AIR_SINGLE, history: makeHistory(history), sample: makeSample(4, { B: 140 }) });
     // The band and the additive rule both read it as an oil mix-up, at watch.
@@ -133,7 +162,8 @@ describe('climbing-trend (against the odometer, beyond lab scatter)', () => {
 
   test('lengthening intervals at constant wear is not a climb (rates, not ppm)', () => {
     const samples = [3000, 3400, 3800, 4200, 4600].map((d, i) =>
-      makeSample(i, { Fe: (20 * d) / 3000 }, { distanceOnOil: d, odometer: 10000 + i * 5000 }));
+      makeSample(i, { Fe: (20 * d) / 3000 }, { distanceOnOil: d, odometer: 10000 + i * 5000 }),
+    );
     const a = analyseSample({ machine: AIR_SINGLE, history: samples.slice(0, -1), sample: samples.at(-1)! });
     expect(a.findings).toEqual([]);
   });
@@ -174,7 +204,14 @@ describe('viscosity-change (against the oil as poured)', () => {
     { kv: 16.2, expected: ['KV100:watch'] },
     { kv: 10.5, expected: ['KV100:act'] },
   ])('KV100 $kv against 14.0 from the data sheet gives $expected', ({ kv, expected }) => {
-    expect(levelsOf('viscosity-change', [], { KV100: kv }, { extra: { newOil: { source: 'data-sheet', readings: { KV100: { value: 14.0 } } } } })).toEqual(expected);
+    expect(
+      levelsOf(
+        'viscosity-change',
+        [],
+        { KV100: kv },
+        { extra: { newOil: { source: 'data-sheet', readings: { KV100: { value: 14.0 } } } } },
+      ),
+    ).toEqual(expected);
   });
 
   test('the older newOilKv100 still serves, and without either the first samples of that oil do and the sentence says so', () => {
@@ -215,7 +252,7 @@ describe('fuel-dilution', () => {
   });
 });
 
-describe('coolant-markers (liquid-cooled, against the oil\'s own level)', () => {
+describe("coolant-markers (liquid-cooled, against the oil's own level)", () => {
   test.each([
     // Rises over the oil's own level (common practice, no published source): Na 25, K 10, B 15; K alone 20.
     { machine: LIQUID_TWIN, readings: { Na: 40, K: 15 }, expected: ['Na+K:watch'] },
@@ -228,26 +265,47 @@ describe('coolant-markers (liquid-cooled, against the oil\'s own level)', () => 
     { machine: LIQUID_TWIN, readings: { GLYCOL: 1 }, expected: ['GLYCOL:act'] },
     { machine: AIR_SINGLE, readings: { Na: 120, K: 45, GLYCOL: 1 }, expected: [] },
   ] as const)('$readings on $machine.cooling gives $expected', ({ machine, readings, expected }) => {
-    const history = [{ Na: 4, K: 0.5, B: 3 }, { Na: 4, K: 0.5, B: 3 }];
+    const history = [
+      { Na: 4, K: 0.5, B: 3 },
+      { Na: 4, K: 0.5, B: 3 },
+    ];
     expect(levelsOf('coolant-markers', history, readings, { machine })).toEqual(expected);
   });
 
   test('a borate oil on the liquid-cooled twin is its own level, not coolant; potassium rising with it is', () => {
-    const borate = [{ Na: 5, K: 1, B: 120 }, { Na: 6, K: 1, B: 118 }, { Na: 5, K: 1, B: 122 }, { Na: 5, K: 1, B: 119 }];
+    const borate = [
+      { Na: 5, K: 1, B: 120 },
+      { Na: 6, K: 1, B: 118 },
+      { Na: 5, K: 1, B: 122 },
+      { Na: 5, K: 1, B: 119 },
+    ];
     expect(levelsOf('coolant-markers', borate, { Na: 6, K: 1, B: 125 }, { machine: LIQUID_TWIN })).toEqual([]);
-    expect(levelsOf('coolant-markers', borate, { Na: 6, K: 24, B: 125 }, { machine: LIQUID_TWIN })).toEqual(['K:watch']);
-    expect(levelsOf('coolant-markers', borate, { Na: 40, K: 24, B: 125 }, { machine: LIQUID_TWIN })).toEqual(['Na+K:act']);
+    expect(levelsOf('coolant-markers', borate, { Na: 6, K: 24, B: 125 }, { machine: LIQUID_TWIN })).toEqual([
+      'K:watch',
+    ]);
+    expect(levelsOf('coolant-markers', borate, { Na: 40, K: 24, B: 125 }, { machine: LIQUID_TWIN })).toEqual([
+      'Na+K:act',
+    ]);
   });
 
-  test('a recorded new-oil reference sets the oil\'s own level', () => {
+  test("a recorded new-oil reference sets the oil's own level", () => {
     const newOil = { source: 'lab' as const, readings: { B: { value: 150 }, Na: { value: 80 } } };
-    expect(levelsOf('coolant-markers', [], { B: 155, Na: 85 }, { machine: LIQUID_TWIN, extra: { newOil } })).toEqual([]);
-    expect(levelsOf('coolant-markers', [], { B: 172, Na: 110 }, { machine: LIQUID_TWIN, extra: { newOil } })).toEqual(['Na+B:watch']);
+    expect(levelsOf('coolant-markers', [], { B: 155, Na: 85 }, { machine: LIQUID_TWIN, extra: { newOil } })).toEqual(
+      [],
+    );
+    expect(levelsOf('coolant-markers', [], { B: 172, Na: 110 }, { machine: LIQUID_TWIN, extra: { newOil } })).toEqual([
+      'Na+B:watch',
+    ]);
   });
 });
 
 describe('dirt (silicon and aluminium in the proportion of dust)', () => {
-  const usual = [{ Si: 8, Al: 4 }, { Si: 9, Al: 4 }, { Si: 8, Al: 5 }, { Si: 9, Al: 4 }];
+  const usual = [
+    { Si: 8, Al: 4 },
+    { Si: 9, Al: 4 },
+    { Si: 8, Al: 5 },
+    { Si: 9, Al: 4 },
+  ];
   test.each([
     // Si up 40, Al up 5 over usual: 8 to 1, dust; Si at its fixed limit → act.
     { readings: { Si: 48, Al: 9 }, expected: ['Si+Al:act'] },
@@ -263,19 +321,31 @@ describe('dirt (silicon and aluminium in the proportion of dust)', () => {
 });
 
 describe('additive-mismatch', () => {
-  const sameOil = [{ Zn: 1000, P: 900, Ca: 2000 }, { Zn: 1010, P: 910, Ca: 1980 }, { Zn: 990, P: 905, Ca: 2010 }];
+  const sameOil = [
+    { Zn: 1000, P: 900, Ca: 2000 },
+    { Zn: 1010, P: 910, Ca: 1980 },
+    { Zn: 990, P: 905, Ca: 2010 },
+  ];
   test.each([
     { current: { Zn: 1005, P: 880, Ca: 1950 }, extra: {}, expected: [] },
     { current: { Zn: 600, P: 550, Ca: 2000 }, extra: {}, expected: ['Zn+P:watch'] },
     { current: { Zn: 600, P: 550, Ca: 2000 }, extra: { oilProduct: 'Other Oil 15W-50' }, expected: [] },
-    { current: { Zn: 600, P: 550, Ca: 2000 }, extra: { oilProduct: '  valley trail   10w-40 ' }, expected: ['Zn+P:watch'] },
+    {
+      current: { Zn: 600, P: 550, Ca: 2000 },
+      extra: { oilProduct: '  valley trail   10w-40 ' },
+      expected: ['Zn+P:watch'],
+    },
   ])('$current ($extra) gives $expected', ({ current, extra, expected }) => {
     expect(levelsOf('additive-mismatch', sameOil, current, { extra })).toEqual(expected);
   });
 
   test('a new-oil reference is the level to match when recorded', () => {
     const newOil = { source: 'lab' as const, readings: { Zn: { value: 1600 }, P: { value: 1500 } } };
-    const f = analyseSample({ machine: AIR_SINGLE, history: makeHistory(sameOil), sample: makeSample(3, { Zn: 1000, P: 900 }, { newOil }) }).findings;
+    const f = analyseSample({
+      machine: AIR_SINGLE,
+      history: makeHistory(sameOil),
+      sample: makeSample(3, { Zn: 1000, P: 900 }, { newOil }),
+    }).findings;
     expect(f.map((x) => `${x.ruleId}:${x.measurands.join('+')}`)).toEqual(['additive-mismatch:Zn+P']);
     expect(f[0]!.sentence).toMatch(/new-oil reference/);
   });

@@ -3,7 +3,12 @@ import type { MeasurandCode } from '~/lib/analysis/measurands';
 import type { MachineProfile, SamplePoint } from '~/lib/analysis/types';
 
 export const AIR_SINGLE: MachineProfile = { cooling: 'air', distanceUnit: 'km', maxIntervalDistance: 6000 };
-export const LIQUID_TWIN: MachineProfile = { cooling: 'liquid', distanceUnit: 'km', maxIntervalDistance: 10000, maxIntervalDays: 365 };
+export const LIQUID_TWIN: MachineProfile = {
+  cooling: 'liquid',
+  distanceUnit: 'km',
+  maxIntervalDistance: 10000,
+  maxIntervalDays: 365,
+};
 
 const START = Date.parse('2023-03-01T00:00:00Z');
 
@@ -29,6 +34,10 @@ export function makeSample(
 }
 
 /** A history from a list of reading sets, oldest first. */
-export function makeHistory(sets: Partial<Record<MeasurandCode, number>>[], extra: Partial<SamplePoint> = {}, interval = 3000): SamplePoint[] {
+export function makeHistory(
+  sets: Partial<Record<MeasurandCode, number>>[],
+  extra: Partial<SamplePoint> = {},
+  interval = 3000,
+): SamplePoint[] {
   return sets.map((readings, i) => makeSample(i, readings, extra, interval));
 }

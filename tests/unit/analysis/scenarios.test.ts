@@ -18,7 +18,25 @@ function run(machine: MachineProfile, sets: Readings[], extras: Partial<SamplePo
   return { analysis, call, findings };
 }
 
-const common = { Fe: 18, Cu: 4, Cr: 1, Pb: 2, Sn: 1, Ni: 1, Zn: 1100, P: 950, Ca: 2100, Mg: 20, Mo: 60, Na: 4, K: 1, B: 3, KV100: 14.1, FUEL: 0.5, WATER: 0.02 };
+const common = {
+  Fe: 18,
+  Cu: 4,
+  Cr: 1,
+  Pb: 2,
+  Sn: 1,
+  Ni: 1,
+  Zn: 1100,
+  P: 950,
+  Ca: 2100,
+  Mg: 20,
+  Mo: 60,
+  Na: 4,
+  K: 1,
+  B: 3,
+  KV100: 14.1,
+  FUEL: 0.5,
+  WATER: 0.02,
+};
 
 describe('scenario: aluminium climbing on the 450 single', () => {
   const machine: MachineProfile = { cooling: 'liquid', distanceUnit: 'km', maxIntervalDistance: 5000 };
@@ -53,12 +71,7 @@ describe('scenario: a silicon spike after a dusty week and its recovery after a 
 
   test('the dusty week: dirt, silicon over its limit and aluminium out of its band, act — fix the cause first', () => {
     const { findings, call, analysis } = run(machine, [...before, dusty]);
-    expect(findings).toEqual([
-      'baseline-jump:Al:act',
-      'baseline-jump:Si:act',
-      'dirt:Si+Al:act',
-      'fixed-limit:Si:act',
-    ]);
+    expect(findings).toEqual(['baseline-jump:Al:act', 'baseline-jump:Si:act', 'dirt:Si+Al:act', 'fixed-limit:Si:act']);
     expect(analysis.findings.find((f) => f.ruleId === 'dirt')?.sentence).toMatch(/air filter/);
     expect(call.call).toBe('fix-first');
     expect(call.nextIntervalDistance).toBe(3000);
@@ -74,11 +87,16 @@ describe('scenario: a silicon spike after a dusty week and its recovery after a 
 });
 
 describe('scenario: coolant markers on the 1,200 cc liquid-cooled twin', () => {
-  const machine: MachineProfile = { cooling: 'liquid', distanceUnit: 'mi', maxIntervalDistance: 6000, maxIntervalDays: 365 };
+  const machine: MachineProfile = {
+    cooling: 'liquid',
+    distanceUnit: 'mi',
+    maxIntervalDistance: 6000,
+    maxIntervalDays: 365,
+  };
   const steady = [0, 1, 2, 3].map(() => ({ ...common, Si: 6, Al: 3 }));
   const leaking = { ...common, Si: 6, Al: 3, Na: 38, K: 14, B: 9 };
 
-  test('Na and K up well past the oil\'s own level: coolant markers act, fix first', () => {
+  test("Na and K up well past the oil's own level: coolant markers act, fix first", () => {
     const { findings, call } = run(machine, [...steady, leaking]);
     expect(findings).toEqual([
       'baseline-jump:B:watch',
@@ -102,15 +120,21 @@ describe('scenario: fuel dilution from short winter trips on the air-cooled 650 
   const summer = [0, 1, 2, 3].map(() => ({ ...common, Si: 6, Al: 3 }));
 
   test('first winter sample: fuel 3.5 % and the oil thinned out of its 40 grade (13.5 % under new, inside ±15 %), watch and hold', () => {
-    const { findings, call } = run(machine, [...summer, { ...common, Si: 6, Al: 3, FUEL: 3.5, KV100: 12.2 }], [{}, {}, {}, {}, { newOilKv100: 14.1 }]);
+    const { findings, call } = run(
+      machine,
+      [...summer, { ...common, Si: 6, Al: 3, FUEL: 3.5, KV100: 12.2 }],
+      [{}, {}, {}, {}, { newOilKv100: 14.1 }],
+    );
     expect(findings).toEqual(['fuel-dilution:FUEL:watch', 'viscosity-grade:KV100:watch']);
     expect(call.call).toBe('hold');
   });
 
   test('deeper into winter: fuel 5.5 %, act and shorten', () => {
-    const { findings, call } = run(machine, [...summer, { ...common, Si: 6, Al: 3, FUEL: 3.5 }, { ...common, Si: 6, Al: 3, FUEL: 5.5, KV100: 11.2 }], [
-      {}, {}, {}, {}, {}, { newOilKv100: 14.1 },
-    ]);
+    const { findings, call } = run(
+      machine,
+      [...summer, { ...common, Si: 6, Al: 3, FUEL: 3.5 }, { ...common, Si: 6, Al: 3, FUEL: 5.5, KV100: 11.2 }],
+      [{}, {}, {}, {}, {}, { newOilKv100: 14.1 }],
+    );
     // KV100 11.2 is 20.6 % under new: watch on the ±15 % rule (act only from 25 % or below the SAE 30 window).
     expect(findings).toEqual(['fuel-dilution:FUEL:act', 'viscosity-change:KV100:watch', 'viscosity-grade:KV100:watch']);
     expect(call.call).toBe('shorten');
@@ -121,7 +145,12 @@ describe('scenario: a stable engine earns "stretch"', () => {
   test('seven steady samples (a ready band of four, then three steady on it): stretch by 20 %, within the manufacturer maximum', () => {
     const machine: MachineProfile = { cooling: 'oil', distanceUnit: 'mi', maxIntervalDistance: 6000 };
     const fe = [17, 19, 18, 20, 18, 19, 18];
-    const { findings, call, analysis } = run(machine, fe.map((f) => ({ ...common, Fe: f, Si: 6, Al: 3 })), [], 4000);
+    const { findings, call, analysis } = run(
+      machine,
+      fe.map((f) => ({ ...common, Fe: f, Si: 6, Al: 3 })),
+      [],
+      4000,
+    );
     expect(findings).toEqual([]);
     expect(analysis.baselineStatus).toBe('ready');
     expect(call.call).toBe('stretch');

@@ -64,7 +64,11 @@ export const ENGINE_SPREAD = 0.25;
 export const CHANGE_FROM_SAMPLE = 8;
 
 /** One simulated machine of a scenario, from its own seed. */
-export function simulateMachine(seed: number, scenario: Scenario, options: { oilSeed?: number; engineSeed?: number } = {}): SimulatedMachine {
+export function simulateMachine(
+  seed: number,
+  scenario: Scenario,
+  options: { oilSeed?: number; engineSeed?: number } = {},
+): SimulatedMachine {
   const random = makeRandom(seed);
   const normal = makeNormal(random);
   const between = (a: number, b: number) => a + (b - a) * random();
@@ -73,19 +77,40 @@ export function simulateMachine(seed: number, scenario: Scenario, options: { oil
   const pace = between(30, 80);
   const cooling = random() < 0.5 ? 'air' : 'liquid';
   const rates: Partial<Record<MeasurandCode, number>> = {
-    Fe: between(3, 8), Al: between(0.5, 1.5), Cr: between(0.1, 0.4), Cu: between(0.5, 2), Pb: between(0.2, 0.8),
-    Sn: between(0, 0.2), Ni: between(0, 0.2), Si: between(0.5, 1.5),
+    Fe: between(3, 8),
+    Al: between(0.5, 1.5),
+    Cr: between(0.1, 0.4),
+    Cu: between(0.5, 2),
+    Pb: between(0.2, 0.8),
+    Sn: between(0, 0.2),
+    Ni: between(0, 0.2),
+    Si: between(0.5, 1.5),
   };
   const own: Partial<Record<MeasurandCode, number>> = {
-    Si: 3, Na: between(2, 6), K: 0, B: between(2, 60), Mo: between(0, 80), Zn: between(900, 1200), P: between(800, 1000),
-    Ca: between(1800, 2600), Mg: between(10, 30),
+    Si: 3,
+    Na: between(2, 6),
+    K: 0,
+    B: between(2, 60),
+    Mo: between(0, 80),
+    Zn: between(900, 1200),
+    P: between(800, 1000),
+    Ca: between(1800, 2600),
+    Mg: between(10, 30),
   };
   // Machines of one crew pouring one product share its additive pack: drawn from the oil's own seed, after the
   // machine's own draws so a machine without it is the same machine as before.
   if (options.oilSeed !== undefined) {
     const oilRandom = makeRandom(options.oilSeed);
     const pick = (a: number, b: number) => a + (b - a) * oilRandom();
-    Object.assign(own, { Na: pick(2, 6), B: pick(2, 60), Mo: pick(0, 80), Zn: pick(900, 1200), P: pick(800, 1000), Ca: pick(1800, 2600), Mg: pick(10, 30) });
+    Object.assign(own, {
+      Na: pick(2, 6),
+      B: pick(2, 60),
+      Mo: pick(0, 80),
+      Zn: pick(900, 1200),
+      P: pick(800, 1000),
+      Ca: pick(1800, 2600),
+      Mg: pick(10, 30),
+    });
   }
   // Machines of one engine wear alike: the engine's rates are drawn once from its seed over the same ranges, and
   // each machine sits within ±ENGINE_SPREAD of them (riding and care; the size is from memory, no published source).
@@ -93,9 +118,17 @@ export function simulateMachine(seed: number, scenario: Scenario, options: { oil
     const engineRandom = makeRandom(options.engineSeed);
     const pick = (a: number, b: number) => a + (b - a) * engineRandom();
     const engine: Partial<Record<MeasurandCode, number>> = {
-      Fe: pick(3, 8), Al: pick(0.5, 1.5), Cr: pick(0.1, 0.4), Cu: pick(0.5, 2), Pb: pick(0.2, 0.8), Sn: pick(0, 0.2), Ni: pick(0, 0.2), Si: pick(0.5, 1.5),
+      Fe: pick(3, 8),
+      Al: pick(0.5, 1.5),
+      Cr: pick(0.1, 0.4),
+      Cu: pick(0.5, 2),
+      Pb: pick(0.2, 0.8),
+      Sn: pick(0, 0.2),
+      Ni: pick(0, 0.2),
+      Si: pick(0.5, 1.5),
     };
-    for (const code of Object.keys(engine) as MeasurandCode[]) rates[code] = engine[code]! * (1 + ENGINE_SPREAD * (2 * random() - 1));
+    for (const code of Object.keys(engine) as MeasurandCode[])
+      rates[code] = engine[code]! * (1 + ENGINE_SPREAD * (2 * random() - 1));
   }
   const shear = between(0.03, 0.06);
   const fuel = between(0.3, 0.9);
@@ -113,11 +146,31 @@ export function simulateMachine(seed: number, scenario: Scenario, options: { oil
     odometer += distance;
     day += Math.round(distance / pace) * DAY_MS;
     const factor = (code: MeasurandCode) =>
-      i >= CHANGE_FROM_SAMPLE && ((scenario === 'iron-x2' && code === 'Fe') || (scenario === 'aluminium-x3' && code === 'Al'))
-        ? scenario === 'iron-x2' ? 2 : 3
+      i >= CHANGE_FROM_SAMPLE &&
+      ((scenario === 'iron-x2' && code === 'Fe') || (scenario === 'aluminium-x3' && code === 'Al'))
+        ? scenario === 'iron-x2'
+          ? 2
+          : 3
         : 1;
     const readings: SamplePoint['readings'] = {};
-    for (const code of ['Fe', 'Al', 'Cr', 'Cu', 'Pb', 'Sn', 'Ni', 'Si', 'Na', 'K', 'B', 'Mo', 'Zn', 'P', 'Ca', 'Mg'] as MeasurandCode[]) {
+    for (const code of [
+      'Fe',
+      'Al',
+      'Cr',
+      'Cu',
+      'Pb',
+      'Sn',
+      'Ni',
+      'Si',
+      'Na',
+      'K',
+      'B',
+      'Mo',
+      'Zn',
+      'P',
+      'Ca',
+      'Mg',
+    ] as MeasurandCode[]) {
       const truth = ((rates[code] ?? 0) * factor(code) * distance) / 1000 + (own[code] ?? 0);
       readings[code] = lab(truth, ['Mo', 'Zn', 'P', 'Ca', 'Mg'].includes(code));
     }
@@ -207,7 +260,11 @@ const SHIFT_DAYS = 1000;
  * there to build a reference. Peers are judged on their own first; their act readings stay out of the reference,
  * as production keeps them out.
  */
-export function simulateCrew(seed: number, peers: number, replay: typeof import('~/lib/analysis/interval-call').replayHistory) {
+export function simulateCrew(
+  seed: number,
+  peers: number,
+  replay: typeof import('~/lib/analysis/interval-call').replayHistory,
+) {
   const cooling = makeRandom(seed)() < 0.5 ? ('air' as const) : ('liquid' as const);
   const reference: CrewReferenceSample[] = [];
   for (let p = 0; p < peers; p++) {
@@ -215,20 +272,35 @@ export function simulateCrew(seed: number, peers: number, replay: typeof import(
     const machine = { ...peer.machine, cooling };
     const judged = replay({ machine, samples: peer.samples });
     peer.samples.forEach((s, i) => {
-      const acted = Object.entries(judged[i]!.analysis.readingLevels).filter(([, l]) => l === 'act').map(([c]) => c as MeasurandCode);
+      const acted = Object.entries(judged[i]!.analysis.readingLevels)
+        .filter(([, l]) => l === 'act')
+        .map(([c]) => c as MeasurandCode);
       reference.push({ ...s, id: `${s.id}-peer${p}`, machineId: `peer${p}`, outOfBaseline: new Set(acted) });
     });
   }
   reference.sort((a, b) => a.takenAt.localeCompare(b.takenAt));
   const fresh = simulateMachine(seed * 16 + 15, 'stable', { oilSeed: seed, engineSeed: seed + 1 });
   const later = (iso: string) => new Date(Date.parse(iso) + SHIFT_DAYS * DAY_MS).toISOString().slice(0, 10);
-  const samples = fresh.samples.map((s) => ({ ...s, takenAt: later(s.takenAt), resultsOn: s.resultsOn ? later(s.resultsOn) : undefined }));
-  const machine: MachineProfile = { ...fresh.machine, cooling, crewReference: { label: "from the crew's other simulated engines", samples: reference } };
+  const samples = fresh.samples.map((s) => ({
+    ...s,
+    takenAt: later(s.takenAt),
+    resultsOn: s.resultsOn ? later(s.resultsOn) : undefined,
+  }));
+  const machine: MachineProfile = {
+    ...fresh.machine,
+    cooling,
+    crewReference: { label: "from the crew's other simulated engines", samples: reference },
+  };
   return { machine, samples };
 }
 
 /** Runs `crews` simulated crews and counts the new machine's false alarms on a crew reference. */
-export function runCrewSimulation(replay: typeof import('~/lib/analysis/interval-call').replayHistory, crews = 300, peers = 4, seed = 20261203): CrewSimulationFigures {
+export function runCrewSimulation(
+  replay: typeof import('~/lib/analysis/interval-call').replayHistory,
+  crews = 300,
+  peers = 4,
+  seed = 20261203,
+): CrewSimulationFigures {
   let shorten = 0;
   let act = 0;
   let crewJudged = 0;
@@ -244,5 +316,11 @@ export function runCrewSimulation(replay: typeof import('~/lib/analysis/interval
     }
   }
   const pct = (n: number, of: number) => Math.round((1000 * n) / of) / 10;
-  return { crews, peers, newAnyShortenPercent: pct(shorten, crews), newAnyActPercent: pct(act, crews), crewJudgedSamplesPercent: pct(crewJudged, judged) };
+  return {
+    crews,
+    peers,
+    newAnyShortenPercent: pct(shorten, crews),
+    newAnyActPercent: pct(act, crews),
+    crewJudgedSamplesPercent: pct(crewJudged, judged),
+  };
 }

@@ -8,7 +8,13 @@
 import { describe, expect, test } from 'vitest';
 import { judgeHistory } from '~/lib/analysis/judge-history';
 import { SIMULATED_RATES } from '~/lib/analysis/rule-definitions';
-import { CHANGE_FROM_SAMPLE, SAMPLES_PER_MACHINE, makeRandom, runSimulation, simulateMachine } from './simulated-machines';
+import {
+  CHANGE_FROM_SAMPLE,
+  SAMPLES_PER_MACHINE,
+  makeRandom,
+  runSimulation,
+  simulateMachine,
+} from './simulated-machines';
 
 describe('simulated engines (seeded)', () => {
   const figures = runSimulation((m) => judgeHistory(m), SIMULATED_RATES.machines);
@@ -65,6 +71,8 @@ describe('the noise model itself', () => {
     const wearing = simulateMachine(21, 'aluminium-x3');
     const mean = (m: typeof stable, from: number, to: number) =>
       m.samples.slice(from, to).reduce((a, s) => a + s.readings.Al!.value / s.distanceOnOil, 0) / (to - from);
-    expect(mean(wearing, CHANGE_FROM_SAMPLE - 1, SAMPLES_PER_MACHINE)).toBeGreaterThan(2 * mean(stable, CHANGE_FROM_SAMPLE - 1, SAMPLES_PER_MACHINE));
+    expect(mean(wearing, CHANGE_FROM_SAMPLE - 1, SAMPLES_PER_MACHINE)).toBeGreaterThan(
+      2 * mean(stable, CHANGE_FROM_SAMPLE - 1, SAMPLES_PER_MACHINE),
+    );
   });
 });

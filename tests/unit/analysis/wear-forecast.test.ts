@@ -1,13 +1,24 @@
 import { describe, expect, test } from 'vitest';
-import { expectedStartSize, forecastWearLimit, tCritical95, type WearForecast, type WearForecastInput } from '~/lib/analysis/wear-forecast';
+import {
+  expectedStartSize,
+  forecastWearLimit,
+  tCritical95,
+  type WearForecast,
+  type WearForecastInput,
+} from '~/lib/analysis/wear-forecast';
 import { describeForecast, isBrakePart } from '~/lib/wear-parts/forecast-words';
 
 // Clutch friction plates: new 0.115–0.121 in, service limit 0.100 in, one reading of 0.110 in at 17,000 mi.
 // Common practice for that engine, no published source. A micrometer reading to 0.001 in (common practice,
 // no published source).
 const CLUTCH: WearForecastInput = {
-  newMin: 0.115, newMax: 0.121, serviceLimit: 0.1, limitDirection: 'min', fittedAt: 0,
-  readings: [{ odometer: 17_000, value: 0.11 }], resolution: 0.001,
+  newMin: 0.115,
+  newMax: 0.121,
+  serviceLimit: 0.1,
+  limitDirection: 'min',
+  fittedAt: 0,
+  readings: [{ odometer: 17_000, value: 0.11 }],
+  resolution: 0.001,
 };
 
 function expectForecast(f: ReturnType<typeof forecastWearLimit>) {
@@ -44,10 +55,16 @@ describe('forecastWearLimit: clutch plates with one reading', () => {
 
   test('the same part in millimetres gives the same odometer', () => {
     const mm = (v: number) => v * 25.4; // NIST SP 811 B.8: 1 in = 25.4 mm exactly
-    const f = expectForecast(forecastWearLimit({
-      ...CLUTCH, newMin: mm(0.115), newMax: mm(0.121), serviceLimit: mm(0.1), resolution: mm(0.001),
-      readings: [{ odometer: 17_000, value: mm(0.11) }],
-    }));
+    const f = expectForecast(
+      forecastWearLimit({
+        ...CLUTCH,
+        newMin: mm(0.115),
+        newMax: mm(0.121),
+        serviceLimit: mm(0.1),
+        resolution: mm(0.001),
+        readings: [{ odometer: 17_000, value: mm(0.11) }],
+      }),
+    );
     expect(f.limitAt).toBeCloseTo(38_250, 4);
   });
 });
@@ -58,10 +75,20 @@ describe('forecastWearLimit: several readings', () => {
     // Sxy = −300, slope −1.5e-4 mm per unit, intercept 3.01667 → limit at (3.01667 − 2)/1.5e-4 = 6,777.8.
     // Residual s = 0.0408 (1 df), t = 12.706: the band widens at t·s/√Sxx = 3.7e-4 > 1.5e-4 per unit, so
     // its upper edge never reaches the limit.
-    const f = expectForecast(forecastWearLimit({
-      newMin: 2.95, newMax: 3.05, serviceLimit: 2.0, limitDirection: 'min', fittedAt: 0, resolution: 0.01,
-      readings: [{ odometer: 1000, value: 2.9 }, { odometer: 2000, value: 2.7 }],
-    }));
+    const f = expectForecast(
+      forecastWearLimit({
+        newMin: 2.95,
+        newMax: 3.05,
+        serviceLimit: 2.0,
+        limitDirection: 'min',
+        fittedAt: 0,
+        resolution: 0.01,
+        readings: [
+          { odometer: 1000, value: 2.9 },
+          { odometer: 2000, value: 2.7 },
+        ],
+      }),
+    );
     expect(f.limitAt).toBeCloseTo(6777.78, 1);
     expect(f.method).toBe('prediction-interval');
     expect(f.high).toBeNull();
@@ -74,7 +101,10 @@ describe('forecastWearLimit: several readings', () => {
     const noise = [0.0004, -0.0003, 0.0002, -0.0004, 0.0003, -0.0002, 0.0001, -0.0001];
     const make = (k: number) => ({
       ...CLUTCH,
-      readings: Array.from({ length: k }, (_, i) => ({ odometer: 3000 * (i + 1), value: line(3000 * (i + 1)) + noise[i]! })),
+      readings: Array.from({ length: k }, (_, i) => ({
+        odometer: 3000 * (i + 1),
+        value: line(3000 * (i + 1)) + noise[i]!,
+      })),
     });
     const few = expectForecast(forecastWearLimit(make(3)));
     const many = expectForecast(forecastWearLimit(make(8)));
@@ -88,10 +118,17 @@ describe('forecastWearLimit: several readings', () => {
   });
 
   test('a part that grows towards a maximum (direction max) forecasts the same way', () => {
-    const f = expectForecast(forecastWearLimit({
-      newMin: 100, newMax: 100, serviceLimit: 103, limitDirection: 'max', fittedAt: 5000, resolution: 0.1,
-      readings: [{ odometer: 10_000, value: 101 }],
-    }));
+    const f = expectForecast(
+      forecastWearLimit({
+        newMin: 100,
+        newMax: 100,
+        serviceLimit: 103,
+        limitDirection: 'max',
+        fittedAt: 5000,
+        resolution: 0.1,
+        readings: [{ odometer: 10_000, value: 101 }],
+      }),
+    );
     // 1 unit per 5,000 → 3 units at 15,000 after fitting → 20,000.
     expect(f.limitAt).toBeCloseTo(20_000, 6);
   });
@@ -102,7 +139,11 @@ describe('forecastWearLimit: nothing to forecast', () => {
     { name: 'no readings', readings: [], status: 'no-readings' },
     { name: 'at the limit', readings: [{ odometer: 20_000, value: 0.1 }], status: 'past-limit' },
     { name: 'below the limit', readings: [{ odometer: 20_000, value: 0.098 }], status: 'past-limit' },
-    { name: 'thicker than the middle of new', readings: [{ odometer: 5000, value: 0.12 }], status: 'no-measurable-wear' },
+    {
+      name: 'thicker than the middle of new',
+      readings: [{ odometer: 5000, value: 0.12 }],
+      status: 'no-measurable-wear',
+    },
   ])('$name → $status', ({ readings, status }) => {
     expect(forecastWearLimit({ ...CLUTCH, readings }).status).toBe(status);
   });
@@ -116,8 +157,13 @@ describe('forecastWearLimit: nothing to forecast', () => {
 describe('tCritical95', () => {
   test.each([
     // NIST/SEMATECH e-Handbook 1.3.6.7.2, upper 0.025 critical values (from memory of the table).
-    { df: 1, t: 12.706 }, { df: 2, t: 4.303 }, { df: 5, t: 2.571 }, { df: 10, t: 2.228 }, { df: 30, t: 2.042 },
-    { df: 45, t: 2.021 }, { df: 500, t: 1.98 },
+    { df: 1, t: 12.706 },
+    { df: 2, t: 4.303 },
+    { df: 5, t: 2.571 },
+    { df: 10, t: 2.228 },
+    { df: 30, t: 2.042 },
+    { df: 45, t: 2.021 },
+    { df: 500, t: 1.98 },
   ])('df $df → $t', ({ df, t }) => {
     expect(tCritical95(df)).toBe(t);
   });
@@ -130,8 +176,12 @@ const MI_KM = 1.609344;
 function toMetric(input: WearForecastInput): WearForecastInput {
   return {
     ...input,
-    newMin: input.newMin * IN_MM, newMax: input.newMax * IN_MM, serviceLimit: input.serviceLimit * IN_MM, resolution: input.resolution * IN_MM,
-    fittedAt: input.fittedAt * MI_KM, readings: input.readings.map((r) => ({ odometer: r.odometer * MI_KM, value: r.value * IN_MM })),
+    newMin: input.newMin * IN_MM,
+    newMax: input.newMax * IN_MM,
+    serviceLimit: input.serviceLimit * IN_MM,
+    resolution: input.resolution * IN_MM,
+    fittedAt: input.fittedAt * MI_KM,
+    readings: input.readings.map((r) => ({ odometer: r.odometer * MI_KM, value: r.value * IN_MM })),
   };
 }
 const UNITS = [
@@ -158,7 +208,15 @@ describe.each(UNITS)('forecastWearLimit in $units', ({ convert, km, meter }) => 
   test('an unworn 8-plate pack (thinnest plate inside the new range) has no measurable wear and no odometer', () => {
     for (const value of [0.116, 0.115, 0.1145]) {
       // 0.1145 in is below the new minimum of 0.115 in by less than the 0.001 in the tool reads.
-      const f = forecastWearLimit(convert({ ...PACK, readings: [{ odometer: 9000, value }, { odometer: 12_000, value }] }));
+      const f = forecastWearLimit(
+        convert({
+          ...PACK,
+          readings: [
+            { odometer: 9000, value },
+            { odometer: 12_000, value },
+          ],
+        }),
+      );
       expect(f.status).toBe('no-measurable-wear');
       const words = describeForecast(f, meter, { name: 'Clutch friction plates', limitDirection: 'min' });
       expect(words.headline).toBe('No measurable wear yet');
@@ -184,7 +242,15 @@ describe.each(UNITS)('forecastWearLimit in $units', ({ convert, km, meter }) => 
   });
 
   test('the latest reading past the limit is reported as past it, with the first reading that was', () => {
-    const f = forecastWearLimit(convert({ ...PACK, readings: [{ odometer: 20_000, value: 0.099 }, { odometer: 22_000, value: 0.098 }] }));
+    const f = forecastWearLimit(
+      convert({
+        ...PACK,
+        readings: [
+          { odometer: 20_000, value: 0.099 },
+          { odometer: 22_000, value: 0.098 },
+        ],
+      }),
+    );
     expect(f.status).toBe('past-limit');
     if (f.status !== 'past-limit') return;
     expect(f.firstPastAt / km).toBeCloseTo(20_000, 6);
@@ -192,7 +258,15 @@ describe.each(UNITS)('forecastWearLimit in $units', ({ convert, km, meter }) => 
   });
 
   test('an earlier reading past the limit and a later one inside asks whether the part was replaced', () => {
-    const f = forecastWearLimit(convert({ ...PACK, readings: [{ odometer: 20_000, value: 0.099 }, { odometer: 24_000, value: 0.116 }] }));
+    const f = forecastWearLimit(
+      convert({
+        ...PACK,
+        readings: [
+          { odometer: 20_000, value: 0.099 },
+          { odometer: 24_000, value: 0.116 },
+        ],
+      }),
+    );
     expect(f.status).toBe('back-from-limit');
     const words = describeForecast(f, meter, { name: 'Clutch friction plates', limitDirection: 'min' });
     expect(words.headline).toBe('Was the part replaced?');
@@ -201,9 +275,16 @@ describe.each(UNITS)('forecastWearLimit in $units', ({ convert, km, meter }) => 
 
   test('non-monotone readings: the plate that got thicker is called out, and the odometer stays inside its range', () => {
     // 0.112 → 0.114 in is 0.002 in thicker, more than the 0.001 in the micrometer reads.
-    const f = forecastWearLimit(convert({ ...PACK, readings: [
-      { odometer: 5000, value: 0.112 }, { odometer: 10_000, value: 0.114 }, { odometer: 15_000, value: 0.108 },
-    ] }));
+    const f = forecastWearLimit(
+      convert({
+        ...PACK,
+        readings: [
+          { odometer: 5000, value: 0.112 },
+          { odometer: 10_000, value: 0.114 },
+          { odometer: 15_000, value: 0.108 },
+        ],
+      }),
+    );
     expect(f.status).toBe('forecast');
     if (f.status !== 'forecast') return;
     expect(f.reversals).toHaveLength(1);
@@ -217,14 +298,31 @@ describe.each(UNITS)('forecastWearLimit in $units', ({ convert, km, meter }) => 
   });
 
   test('a step of exactly the resolution is not called out', () => {
-    const f = forecastWearLimit(convert({ ...PACK, readings: [{ odometer: 5000, value: 0.111 }, { odometer: 10_000, value: 0.112 }, { odometer: 15_000, value: 0.108 }] }));
+    const f = forecastWearLimit(
+      convert({
+        ...PACK,
+        readings: [
+          { odometer: 5000, value: 0.111 },
+          { odometer: 10_000, value: 0.112 },
+          { odometer: 15_000, value: 0.108 },
+        ],
+      }),
+    );
     expect(f.status === 'forecast' && f.reversals).toEqual([]);
   });
 
   test('readings that cross before the latest one never put the headline before the latest reading', () => {
     // The fitted line through (0, 0.118), (10,000, 0.101), (20,000, 0.109) meets 0.100 in before 20,000 mi,
     // but the 20,000 mi reading is still 0.009 in short of the limit.
-    const f = forecastWearLimit(convert({ ...CLUTCH, readings: [{ odometer: 10_000, value: 0.101 }, { odometer: 20_000, value: 0.109 }] }));
+    const f = forecastWearLimit(
+      convert({
+        ...CLUTCH,
+        readings: [
+          { odometer: 10_000, value: 0.101 },
+          { odometer: 20_000, value: 0.109 },
+        ],
+      }),
+    );
     expect(f.status).toBe('forecast');
     if (f.status !== 'forecast') return;
     expect(f.limitAt).toBeGreaterThanOrEqual(20_000 * km - 1e-6);
@@ -237,8 +335,16 @@ describe.each(UNITS)('forecastWearLimit in $units', ({ convert, km, meter }) => 
 // chain, from memory); service limit 12.58 in (common practice for a service manual's 20-link limit, no
 // published source). The length grows towards its limit: a maximum.
 const CHAIN: WearForecastInput = {
-  newMin: 12.5, newMax: 12.5, serviceLimit: 12.58, limitDirection: 'max', fittedAt: 1000, resolution: 0.001,
-  readings: [{ odometer: 6000, value: 12.52 }, { odometer: 11_000, value: 12.54 }],
+  newMin: 12.5,
+  newMax: 12.5,
+  serviceLimit: 12.58,
+  limitDirection: 'max',
+  fittedAt: 1000,
+  resolution: 0.001,
+  readings: [
+    { odometer: 6000, value: 12.52 },
+    { odometer: 11_000, value: 12.54 },
+  ],
 };
 const chainPart = { name: 'Drive chain (20 links)', limitDirection: 'max' as const };
 
@@ -260,7 +366,12 @@ describe.each(UNITS)('a chain (limit is a maximum) in $units', ({ convert, km, m
   });
 
   test('a chain that got shorter is a replaced chain or a measuring slip', () => {
-    const f = forecastWearLimit(convert({ ...CHAIN, readings: [...CHAIN.readings, { odometer: 13_000, value: 12.53 }, { odometer: 16_000, value: 12.55 }] }));
+    const f = forecastWearLimit(
+      convert({
+        ...CHAIN,
+        readings: [...CHAIN.readings, { odometer: 13_000, value: 12.53 }, { odometer: 16_000, value: 12.55 }],
+      }),
+    );
     expect(f.status === 'forecast' && f.reversals.length).toBe(1);
     expect(describeForecast(f, meter, chainPart, inch).detail).toMatch(/is shorter than the one at/);
   });
@@ -295,10 +406,14 @@ describe('brake parts past the limit get a firm sentence', () => {
 describe('forecast words in both units', () => {
   test('odometers carry the machine’s unit', () => {
     const f = forecastWearLimit(PACK);
-    expect(describeForecast(f, 'mi', { name: 'Clutch', limitDirection: 'min' }).headline).toBe('Service limit near 47,000 mi');
+    expect(describeForecast(f, 'mi', { name: 'Clutch', limitDirection: 'min' }).headline).toBe(
+      'Service limit near 47,000 mi',
+    );
     const m = forecastWearLimit(toMetric(PACK));
     // 47,000 mi × 1.609344 = 75,639 km (NIST SP 811 B.8).
-    expect(describeForecast(m, 'km', { name: 'Clutch', limitDirection: 'min' }).headline).toBe('Service limit near 75,639 km');
+    expect(describeForecast(m, 'km', { name: 'Clutch', limitDirection: 'min' }).headline).toBe(
+      'Service limit near 75,639 km',
+    );
   });
 });
 
@@ -306,10 +421,13 @@ describe('forecast invariants over many invented readings (seeded)', () => {
   test('a forecast never starts before the latest reading and its headline lies inside its own range', () => {
     let seed = 12345;
     // A small linear congruential generator (Numerical Recipes constants) so the run is repeatable.
-    const rand = () => ((seed = (seed * 1664525 + 1013904223) % 2 ** 32) / 2 ** 32);
+    const rand = () => (seed = (seed * 1664525 + 1013904223) % 2 ** 32) / 2 ** 32;
     let forecasts = 0;
     for (let k = 0; k < 500; k++) {
-      const readings = Array.from({ length: 1 + Math.floor(rand() * 5) }, (_, i) => ({ odometer: 2000 * (i + 1) + rand() * 1500, value: 0.101 + rand() * 0.02 }));
+      const readings = Array.from({ length: 1 + Math.floor(rand() * 5) }, (_, i) => ({
+        odometer: 2000 * (i + 1) + rand() * 1500,
+        value: 0.101 + rand() * 0.02,
+      }));
       const f = forecastWearLimit({ ...PACK, readings });
       if (f.status !== 'forecast') continue;
       forecasts += 1;

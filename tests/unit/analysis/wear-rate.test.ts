@@ -33,9 +33,12 @@ describe('computeWearRate', () => {
     { t: 0, v: 3, factor: 1 },
     { t: 0.3, v: 0, factor: 1 },
     { t: 1e-9, v: 3, factor: 1 },
-  ])('top-up factor with $t L on $v L is $factor (no correction without a top-up or a sump volume)', ({ t, v, factor }) => {
-    expect(computeTopUpFactor(t, v)).toBeCloseTo(factor, 9);
-  });
+  ])(
+    'top-up factor with $t L on $v L is $factor (no correction without a top-up or a sump volume)',
+    ({ t, v, factor }) => {
+      expect(computeTopUpFactor(t, v)).toBeCloseTo(factor, 9);
+    },
+  );
 
   test('no correction without the fill volume, and no rate without distance', () => {
     expect(computeWearRate(40, 4000, 'km', { topUpVolume: 0.5 })?.correctedPpm).toBe(40);

@@ -4,7 +4,15 @@ import { signInSchema, signUpSchema } from '~/lib/auth/auth';
 import { hashToken, generateToken } from '~/lib/auth/tokens';
 import { parseJsonBody } from '~/lib/http/json';
 import { safeNextPath } from '~/lib/http/form';
-import { canEditMachine, canImportLabReport, canManageCrew, canReadCrew, canReviewSample, canCreateMachine, canEditLimits } from '~/lib/auth/permissions';
+import {
+  canEditMachine,
+  canImportLabReport,
+  canManageCrew,
+  canReadCrew,
+  canReviewSample,
+  canCreateMachine,
+  canEditLimits,
+} from '~/lib/auth/permissions';
 import type { Role } from '~/lib/db/database';
 
 describe('password rules (length only, no composition rules: NIST SP 800-63B §3.1.1.2)', () => {
@@ -33,7 +41,12 @@ describe('e-mail and body shape', () => {
   });
 
   test('a forged role or crew id in a sign-up body is refused, not ignored', () => {
-    const r = signUpSchema.safeParse({ email: 'a@example.test', password: 'long enough pw', role: 'lead', crewId: 'x' });
+    const r = signUpSchema.safeParse({
+      email: 'a@example.test',
+      password: 'long enough pw',
+      role: 'lead',
+      crewId: 'x',
+    });
     expect(r.success).toBe(false);
   });
 });
@@ -57,14 +70,33 @@ describe('tokens', () => {
 
 describe('parseJsonBody', () => {
   const schema = z.strictObject({ email: z.email(), role: z.enum(['lead', 'mechanic', 'rider']) });
-  const req = (body: string, type = 'application/json') => new Request('http://x.test/', { method: 'POST', body, headers: { 'content-type': type } });
+  const req = (body: string, type = 'application/json') =>
+    new Request('http://x.test/', { method: 'POST', body, headers: { 'content-type': type } });
 
   test.each([
-    ['oversized', req(JSON.stringify({ email: 'a@example.test', role: 'rider', pad: 'x'.repeat(20_000) })), 413, 'payload_too_large', {}],
+    [
+      'oversized',
+      req(JSON.stringify({ email: 'a@example.test', role: 'rider', pad: 'x'.repeat(20_000) })),
+      413,
+      'payload_too_large',
+      {},
+    ],
     ['not JSON content type', req('email=a', 'application/x-www-form-urlencoded'), 415, 'unsupported_media_type', {}],
     ['malformed JSON', req('{"email":'), 400, 'invalid_json', {}],
-    ['bad field', req(JSON.stringify({ email: 'nope', role: 'rider' })), 400, 'invalid_input', { email: expect.any(String) }],
-    ['forged extra key', req(JSON.stringify({ email: 'a@example.test', role: 'rider', crewId: 'other' })), 400, 'invalid_input', { crewId: 'is not accepted here' }],
+    [
+      'bad field',
+      req(JSON.stringify({ email: 'nope', role: 'rider' })),
+      400,
+      'invalid_input',
+      { email: expect.any(String) },
+    ],
+    [
+      'forged extra key',
+      req(JSON.stringify({ email: 'a@example.test', role: 'rider', crewId: 'other' })),
+      400,
+      'invalid_input',
+      { crewId: 'is not accepted here' },
+    ],
   ])('%s → %i %s', async (_name, request, status, code, fields) => {
     const r = await parseJsonBody(request, schema, 16 * 1024);
     expect(r.ok).toBe(false);
@@ -117,8 +149,14 @@ describe('permissions follow the role table of PRODUCT.md', () => {
     ['mechanic', true, false, false, true, true, false],
     ['rider', true, false, true, false, false, false],
   ] as const)('%s', (role, read, manage, create, importLab, review, limits) => {
-    expect([canReadCrew(m(role)), canManageCrew(m(role)), canCreateMachine(m(role)), canImportLabReport(m(role)), canReviewSample(m(role)), canEditLimits(m(role))])
-      .toEqual([read, manage, create, importLab, review, limits]);
+    expect([
+      canReadCrew(m(role)),
+      canManageCrew(m(role)),
+      canCreateMachine(m(role)),
+      canImportLabReport(m(role)),
+      canReviewSample(m(role)),
+      canEditLimits(m(role)),
+    ]).toEqual([read, manage, create, importLab, review, limits]);
   });
 
   test.each([
@@ -131,6 +169,10 @@ describe('permissions follow the role table of PRODUCT.md', () => {
   });
 
   test('no membership may do nothing', () => {
-    expect([canReadCrew(null), canManageCrew(null), canEditMachine(null, { ownerUserId: 'u1' }, 'u1')]).toEqual([false, false, false]);
+    expect([canReadCrew(null), canManageCrew(null), canEditMachine(null, { ownerUserId: 'u1' }, 'u1')]).toEqual([
+      false,
+      false,
+      false,
+    ]);
   });
 });

@@ -11,7 +11,8 @@ const SCANNED = ['src', 'scripts', 'migrations', 'tests'];
 const SOURCE = /\.(ts|tsx|mts|js|mjs|astro)$/;
 
 /** A static import, a re-export, a dynamic import or a require of lucia or an @lucia-auth package. */
-const LUCIA_IMPORT = /(?:\bfrom\s*|\bimport\s*\(\s*|\brequire\s*\(\s*|^\s*import\s*)['"](?:lucia|@lucia-auth\/[^'"]+)['"]/m;
+const LUCIA_IMPORT =
+  /(?:\bfrom\s*|\bimport\s*\(\s*|\brequire\s*\(\s*|^\s*import\s*)['"](?:lucia|@lucia-auth\/[^'"]+)['"]/m;
 
 function sourceFiles(dir: string): string[] {
   return readdirSync(join(ROOT, dir), { recursive: true, encoding: 'utf8' })

@@ -3,8 +3,20 @@ import type { AuditEvent } from '~/lib/audit/audit';
 import { buildCrewPageView, describeAuditDetail, describeAuditWho } from '~/lib/crews/crew-page-view';
 import { formatUtcMinute } from '~/lib/words/words';
 
-const ada = { userId: 'u1', displayName: 'Ada', email: 'ada@example.test', role: 'lead' as const, joinedAt: new Date('2026-01-01T00:00:00Z') };
-const ben = { userId: 'u2', displayName: 'Ben', email: 'ben@example.test', role: 'rider' as const, joinedAt: new Date('2026-01-02T00:00:00Z') };
+const ada = {
+  userId: 'u1',
+  displayName: 'Ada',
+  email: 'ada@example.test',
+  role: 'lead' as const,
+  joinedAt: new Date('2026-01-01T00:00:00Z'),
+};
+const ben = {
+  userId: 'u2',
+  displayName: 'Ben',
+  email: 'ben@example.test',
+  role: 'rider' as const,
+  joinedAt: new Date('2026-01-02T00:00:00Z'),
+};
 
 describe('crew page words', () => {
   // ISO 8601 date and time to the minute, with a space for the T (common practice on screens).
@@ -31,11 +43,36 @@ describe('crew page words', () => {
 
 describe('the crew page model', () => {
   test('a lead sees every member with a role choice, leaves as themselves, and reads the log', () => {
-    const audit: AuditEvent[] = [{ id: 1, kind: 'sign_in', at: new Date('2026-03-04T05:06:07Z'), actorName: 'Ada', subjectName: null, detail: {}, ip: null }];
-    const invitations = [{ id: 'i1', email: 'cy@example.test', role: 'mechanic' as const, expiresAt: new Date('2026-03-11T08:00:00Z'), createdAt: new Date() }];
+    const audit: AuditEvent[] = [
+      {
+        id: 1,
+        kind: 'sign_in',
+        at: new Date('2026-03-04T05:06:07Z'),
+        actorName: 'Ada',
+        subjectName: null,
+        detail: {},
+        ip: null,
+      },
+    ];
+    const invitations = [
+      {
+        id: 'i1',
+        email: 'cy@example.test',
+        role: 'mechanic' as const,
+        expiresAt: new Date('2026-03-11T08:00:00Z'),
+        createdAt: new Date(),
+      },
+    ];
     const v = buildCrewPageView({ userId: 'u1', role: 'lead', lead: true, members: [ada, ben], invitations, audit });
     expect(v).toMatchObject({ roleWord: 'lead', lead: true });
-    expect(v.members.map((m) => [m.label, m.roleLabel, m.removeLabel, m.roles.filter((r) => r.selected).map((r) => r.value)])).toEqual([
+    expect(
+      v.members.map((m) => [
+        m.label,
+        m.roleLabel,
+        m.removeLabel,
+        m.roles.filter((r) => r.selected).map((r) => r.value),
+      ]),
+    ).toEqual([
       ['Ada (you)', 'Lead', 'Leave crew', ['lead']],
       ['Ben', 'Rider', 'Remove', ['rider']],
     ]);
@@ -44,7 +81,14 @@ describe('the crew page model', () => {
   });
 
   test('a rider sees the members and nothing of a lead', () => {
-    const v = buildCrewPageView({ userId: 'u2', role: 'rider', lead: false, members: [ada, ben], invitations: [], audit: [] });
+    const v = buildCrewPageView({
+      userId: 'u2',
+      role: 'rider',
+      lead: false,
+      members: [ada, ben],
+      invitations: [],
+      audit: [],
+    });
     expect(v).toMatchObject({ roleWord: 'rider', lead: false, invitations: [], audit: [] });
     expect(v.members.map((m) => m.label)).toEqual(['Ada', 'Ben (you)']);
   });

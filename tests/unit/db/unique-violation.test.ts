@@ -8,7 +8,11 @@ describe('uniqueViolation', () => {
     ['23505 on another constraint', { code: '23505', constraint: 'users_pkey' }, false],
     ['23505 with no constraint field', { code: '23505' }, false],
     ['another code on the named constraint', { code: '23503', constraint: 'users_email_lower_key' }, false],
-    ['the name only in the message', new Error('duplicate key value violates unique constraint "users_email_lower_key"'), false],
+    [
+      'the name only in the message',
+      new Error('duplicate key value violates unique constraint "users_email_lower_key"'),
+      false,
+    ],
     ['null', null, false],
     ['a string', 'users_email_lower_key', false],
   ])('%s → %s', (_, error, expected) => {

@@ -4,18 +4,55 @@ import { buildHomeView, describeDue, describeHomeCard, describeMore, LIST_MAX } 
 import type { DueMachine } from '~/lib/home/home.service';
 import { CALL_DISPLAY } from '~/lib/levels';
 
-const progress = { machines: 1, machinesWithOilChange: 1, drainCards: 1, mechanicsOrInvites: 1, firstMachineId: 'm1', firstMachineWithOilChangeId: 'm1' };
+const progress = {
+  machines: 1,
+  machinesWithOilChange: 1,
+  drainCards: 1,
+  mechanicsOrInvites: 1,
+  firstMachineId: 'm1',
+  firstMachineWithOilChangeId: 'm1',
+};
 const empty = { drawn: [], overdue: [], waiting: [], cards: [], due: [], progress };
-const finding = { sample_id: 's1', bottle_code: 'K7MQ4XH', drawn_on: '2026-03-01', machine_id: 'm1', machine_name: 'Trail 450', level: 'act' as const, rule_id: 'fixed-limit', measurand: 'Fe', sentence: 'Iron at 120 ppm.' };
-const card: MachineCard = { machineId: 'm1', machineName: 'Trail 450', sampleId: 's1', bottleCode: 'K7MQ4XH', drawnOn: '2026-03-01', worst: 'act', main: finding, count: 3, call: 'shorten' };
+const finding = {
+  sample_id: 's1',
+  bottle_code: 'K7MQ4XH',
+  drawn_on: '2026-03-01',
+  machine_id: 'm1',
+  machine_name: 'Trail 450',
+  level: 'act' as const,
+  rule_id: 'fixed-limit',
+  measurand: 'Fe',
+  sentence: 'Iron at 120 ppm.',
+};
+const card: MachineCard = {
+  machineId: 'm1',
+  machineName: 'Trail 450',
+  sampleId: 's1',
+  bottleCode: 'K7MQ4XH',
+  drawnOn: '2026-03-01',
+  worst: 'act',
+  main: finding,
+  count: 3,
+  call: 'shorten',
+};
 const dueBase: DueMachine = {
-  id: 'm2', name: 'Road twin', meter: 'km', due: { due: true, reasons: ['date'], remaining: null, daysLeft: -3 }, estimate: null, target: 'call',
-  nextSampleOn: '2026-02-01', nextSampleOdometer: null, overdue: { days: 3, words: 'due 3 days ago' },
+  id: 'm2',
+  name: 'Road twin',
+  meter: 'km',
+  due: { due: true, reasons: ['date'], remaining: null, daysLeft: -3 },
+  estimate: null,
+  target: 'call',
+  nextSampleOn: '2026-02-01',
+  nextSampleOdometer: null,
+  overdue: { days: 3, words: 'due 3 days ago' },
 };
 
 describe('home lists', () => {
   test.each([
-    [0, ''], [LIST_MAX, ''], [LIST_MAX + 1, 'and 1 more'], [20, 'and 12 more'],
+    [0, ''],
+    [LIST_MAX, ''],
+    [LIST_MAX + 1, 'and 1 more'],
+    [20, 'and 12 more'],
   ])('%i entries: "%s"', (n, more) => expect(describeMore(n)).toBe(more));
 
   test.each([
@@ -27,19 +64,43 @@ describe('home lists', () => {
 
   test('a card names its reason, its call and its links', () => {
     expect(describeHomeCard(card)).toMatchObject({
-      machineHref: '/machines/m1', findingsHref: '/samples/s1#findings', sentence: 'Iron at 120 ppm.', call: CALL_DISPLAY.shorten, worst: 'act',
+      machineHref: '/machines/m1',
+      findingsHref: '/samples/s1#findings',
+      sentence: 'Iron at 120 ppm.',
+      call: CALL_DISPLAY.shorten,
+      worst: 'act',
     });
     expect(describeHomeCard({ ...card, call: null }).call).toBeNull();
   });
 
   test.each([
-    ['late by date', dueBase, { overdueWords: 'due 3 days ago', dueBy: 'Due by 2026-02-01. ', dueAt: null, fromManufacturer: false }],
-    ['due today, not yet late', { ...dueBase, overdue: { days: 0, words: 'due today' } }, { overdueWords: null, dueBy: 'Due by 2026-02-01. ' }],
+    [
+      'late by date',
+      dueBase,
+      { overdueWords: 'due 3 days ago', dueBy: 'Due by 2026-02-01. ', dueAt: null, fromManufacturer: false },
+    ],
+    [
+      'due today, not yet late',
+      { ...dueBase, overdue: { days: 0, words: 'due today' } },
+      { overdueWords: null, dueBy: 'Due by 2026-02-01. ' },
+    ],
     [
       'by the meter estimate, from the manual',
-      { ...dueBase, due: { due: true, reasons: ['odometer'], remaining: -50, daysLeft: null }, nextSampleOn: null, nextSampleOdometer: 12_000, overdue: null, target: 'manufacturer',
-        estimate: { odometer: 12_050, pacePerDay: 20, basis: 'pace', lastDate: '2026-02-01', lastOdometer: 11_500 } },
-      { overdueWords: null, dueBy: null, dueAt: 'Due at 12,000 km; from recent riding it is probably at about 12,050 km. ', fromManufacturer: true },
+      {
+        ...dueBase,
+        due: { due: true, reasons: ['odometer'], remaining: -50, daysLeft: null },
+        nextSampleOn: null,
+        nextSampleOdometer: 12_000,
+        overdue: null,
+        target: 'manufacturer',
+        estimate: { odometer: 12_050, pacePerDay: 20, basis: 'pace', lastDate: '2026-02-01', lastOdometer: 11_500 },
+      },
+      {
+        overdueWords: null,
+        dueBy: null,
+        dueAt: 'Due at 12,000 km; from recent riding it is probably at about 12,050 km. ',
+        fromManufacturer: true,
+      },
     ],
   ] as [string, DueMachine, object][])('%s', (_what, m, expected) => {
     expect(describeDue(m)).toMatchObject({ href: '/machines/m2', name: 'Road twin', ...expected });
@@ -52,22 +113,45 @@ describe('the crew home model', () => {
   });
 
   test('sample lists link the right page, say when, and stop at the list size', () => {
-    const drawn = Array.from({ length: LIST_MAX + 2 }, (_, i) => ({ id: `d${i}`, bottle_code: `B${i}`, machine_name: 'Trail 450', drawn_on: '2026-03-01' }));
-    const v = buildHomeView({
-      ...empty, drawn,
-      waiting: [{ id: 'w1', bottle_code: 'W1', machine_name: 'Road twin', drawn_on: '2026-02-20' }],
-      overdue: [{ id: 'o1', bottle_code: 'O1', machine_name: 'Road twin', shipped_on: '2026-01-02' }],
-    }, 'rider', 'c1');
+    const drawn = Array.from({ length: LIST_MAX + 2 }, (_, i) => ({
+      id: `d${i}`,
+      bottle_code: `B${i}`,
+      machine_name: 'Trail 450',
+      drawn_on: '2026-03-01',
+    }));
+    const v = buildHomeView(
+      {
+        ...empty,
+        drawn,
+        waiting: [{ id: 'w1', bottle_code: 'W1', machine_name: 'Road twin', drawn_on: '2026-02-20' }],
+        overdue: [{ id: 'o1', bottle_code: 'O1', machine_name: 'Road twin', shipped_on: '2026-01-02' }],
+      },
+      'rider',
+      'c1',
+    );
     expect(v.clear).toBe(false);
-    expect(v.waiting).toEqual([{ href: '/samples/w1#review', machineName: 'Road twin', bottleCode: 'W1', when: '2026-02-20' }]);
-    expect(v.overdue).toEqual([{ href: '/samples/o1', machineName: 'Road twin', bottleCode: 'O1', when: 'shipped 2026-01-02' }]);
+    expect(v.waiting).toEqual([
+      { href: '/samples/w1#review', machineName: 'Road twin', bottleCode: 'W1', when: '2026-02-20' },
+    ]);
+    expect(v.overdue).toEqual([
+      { href: '/samples/o1', machineName: 'Road twin', bottleCode: 'O1', when: 'shipped 2026-01-02' },
+    ]);
     expect(v.drawn).toHaveLength(LIST_MAX);
-    expect(v.drawn[0]).toEqual({ href: '/samples/d0', machineName: 'Trail 450', bottleCode: 'B0', when: 'drawn 2026-03-01' });
+    expect(v.drawn[0]).toEqual({
+      href: '/samples/d0',
+      machineName: 'Trail 450',
+      bottleCode: 'B0',
+      when: 'drawn 2026-03-01',
+    });
     expect(v.drawnMore).toBe('and 2 more');
   });
 
   test('a new crew gets its first steps', () => {
-    const v = buildHomeView({ ...empty, progress: { ...progress, machinesWithOilChange: 0, drainCards: 0 } }, 'lead', 'c1');
+    const v = buildHomeView(
+      { ...empty, progress: { ...progress, machinesWithOilChange: 0, drainCards: 0 } },
+      'lead',
+      'c1',
+    );
     expect(v.steps?.map((s) => s.key)).toEqual(['machine', 'oil-change', 'drain-card', 'invite']);
   });
 });

@@ -7,21 +7,84 @@ describe('estimateCurrentOdometer', () => {
   test.each([
     ['no history', [], '2026-06-01', null],
     // One reading: nothing to take a pace from, the last reading stands.
-    ['one reading', [{ date: '2026-01-01', odometer: 5000 }], '2026-06-01', { odometer: 5000, pacePerDay: 0, basis: 'last-known' }],
+    [
+      'one reading',
+      [{ date: '2026-01-01', odometer: 5000 }],
+      '2026-06-01',
+      { odometer: 5000, pacePerDay: 0, basis: 'last-known' },
+    ],
     // 10 km/day for 10 days, then 20 days since: 1100 + 200 = 1300.
-    ['steady pace', [{ date: '2026-01-01', odometer: 1000 }, { date: '2026-01-11', odometer: 1100 }], '2026-01-31', { odometer: 1300, pacePerDay: 10, basis: 'pace' }],
+    [
+      'steady pace',
+      [
+        { date: '2026-01-01', odometer: 1000 },
+        { date: '2026-01-11', odometer: 1100 },
+      ],
+      '2026-01-31',
+      { odometer: 1300, pacePerDay: 10, basis: 'pace' },
+    ],
     // Three points (days 0, 10, 20; km 0, 100, 400): slope = Sxy/Sxx = (−10·−166.7 + 0 + 10·233.3)/200 = 20 km/day; 10 days on: 400 + 200.
-    ['least squares over three', [{ date: '2026-01-01', odometer: 0 }, { date: '2026-01-11', odometer: 100 }, { date: '2026-01-21', odometer: 400 }], '2026-01-31', { odometer: 600, pacePerDay: 20, basis: 'pace' }],
+    [
+      'least squares over three',
+      [
+        { date: '2026-01-01', odometer: 0 },
+        { date: '2026-01-11', odometer: 100 },
+        { date: '2026-01-21', odometer: 400 },
+      ],
+      '2026-01-31',
+      { odometer: 600, pacePerDay: 20, basis: 'pace' },
+    ],
     // A reading older than the look-back is left out: only the last two count (5 km/day), 10 days on.
-    ['old readings dropped', [{ date: '2020-01-01', odometer: 0 }, { date: '2026-01-01', odometer: 9000 }, { date: '2026-01-21', odometer: 9100 }], '2026-01-31', { odometer: 9150, pacePerDay: 5, basis: 'pace' }],
+    [
+      'old readings dropped',
+      [
+        { date: '2020-01-01', odometer: 0 },
+        { date: '2026-01-01', odometer: 9000 },
+        { date: '2026-01-21', odometer: 9100 },
+      ],
+      '2026-01-31',
+      { odometer: 9150, pacePerDay: 5, basis: 'pace' },
+    ],
     // Two readings on one day: no pace.
-    ['same day', [{ date: '2026-01-01', odometer: 100 }, { date: '2026-01-01', odometer: 120 }], '2026-02-01', { odometer: 120, pacePerDay: 0, basis: 'last-known' }],
+    [
+      'same day',
+      [
+        { date: '2026-01-01', odometer: 100 },
+        { date: '2026-01-01', odometer: 120 },
+      ],
+      '2026-02-01',
+      { odometer: 120, pacePerDay: 0, basis: 'last-known' },
+    ],
     // A meter that reads lower later (typo, swapped clock): pace floored at 0, never below the last reading.
-    ['meter ran back', [{ date: '2026-01-01', odometer: 500 }, { date: '2026-01-11', odometer: 400 }], '2026-02-01', { odometer: 400, pacePerDay: 0, basis: 'last-known' }],
+    [
+      'meter ran back',
+      [
+        { date: '2026-01-01', odometer: 500 },
+        { date: '2026-01-11', odometer: 400 },
+      ],
+      '2026-02-01',
+      { odometer: 400, pacePerDay: 0, basis: 'last-known' },
+    ],
     // today before the last reading (clock skew): no negative extrapolation.
-    ['today before last', [{ date: '2026-01-01', odometer: 0 }, { date: '2026-01-11', odometer: 100 }], '2026-01-05', { odometer: 100, pacePerDay: 10, basis: 'pace' }],
+    [
+      'today before last',
+      [
+        { date: '2026-01-01', odometer: 0 },
+        { date: '2026-01-11', odometer: 100 },
+      ],
+      '2026-01-05',
+      { odometer: 100, pacePerDay: 10, basis: 'pace' },
+    ],
     // Unsorted input and ISO timestamps are fine.
-    ['unsorted', [{ date: '2026-01-11T08:00:00Z', odometer: 1100 }, { date: '2026-01-01', odometer: 1000 }], '2026-01-21', { odometer: 1200, pacePerDay: 10, basis: 'pace' }],
+    [
+      'unsorted',
+      [
+        { date: '2026-01-11T08:00:00Z', odometer: 1100 },
+        { date: '2026-01-01', odometer: 1000 },
+      ],
+      '2026-01-21',
+      { odometer: 1200, pacePerDay: 10, basis: 'pace' },
+    ],
   ])('%s', (_name, points, today, expected) => {
     const got = estimateCurrentOdometer(points, today);
     if (expected === null) return expect(got).toBeNull();
@@ -33,7 +96,13 @@ describe('estimateCurrentOdometer', () => {
 });
 
 describe('findSampleDue', () => {
-  const estimate = { odometer: 10_000, pacePerDay: 20, basis: 'pace' as const, lastDate: '2026-01-01', lastOdometer: 9000 };
+  const estimate = {
+    odometer: 10_000,
+    pacePerDay: 20,
+    basis: 'pace' as const,
+    lastDate: '2026-01-01',
+    lastOdometer: 9000,
+  };
   test.each([
     ['nothing to go by', {}, false, [], null, null],
     ['date passed', { nextSampleOn: '2026-03-01' }, true, ['date'], null, -31],
@@ -51,7 +120,11 @@ describe('findSampleDue', () => {
     expect(findSampleDue({ today: '2026-04-01', estimate: null, nextSampleOdometer: 1 }).due).toBe(false);
   });
 
-  test.each([['2026-01-01', '2026-01-22', 21], ['2024-02-28', '2024-03-01', 2], ['2026-01-02', '2026-01-01', -1]])('days from %s to %s: %i', (a, b, n) => {
+  test.each([
+    ['2026-01-01', '2026-01-22', 21],
+    ['2024-02-28', '2024-03-01', 2],
+    ['2026-01-02', '2026-01-01', -1],
+  ])('days from %s to %s: %i', (a, b, n) => {
     // 2024 is a leap year (Gregorian calendar rule), hence 2 days across the end of February.
     expect(countDaysBetween(a, b)).toBe(n);
   });

@@ -1,12 +1,26 @@
 import { describe, expect, test } from 'vitest';
-import { checkGradeSuitsRiding, readNumber, runGradeOf, runSaybolt, runViscosityAt, runViscosityIndex } from '~/lib/oil-tools/oil-tools';
+import {
+  checkGradeSuitsRiding,
+  readNumber,
+  runGradeOf,
+  runSaybolt,
+  runViscosityAt,
+  runViscosityIndex,
+} from '~/lib/oil-tools/oil-tools';
 
 // The oil tools' form layer (src/lib/oil-tools/oil-tools.ts); the calculators themselves are checked against
 // their standards in tests/unit/analysis/viscosity.test.ts. Here: reading fields, units and error placement.
 const q = (o: Record<string, string>) => new URLSearchParams(o);
 
 describe('readNumber', () => {
-  test.each([['13.5', 13.5], ['13,5', 13.5], [' 7 ', 7], ['', undefined], ['abc', 'invalid'], ['1e400', 'invalid']])('%j → %j', (raw, expected) => {
+  test.each([
+    ['13.5', 13.5],
+    ['13,5', 13.5],
+    [' 7 ', 7],
+    ['', undefined],
+    ['abc', 'invalid'],
+    ['1e400', 'invalid'],
+  ])('%j → %j', (raw, expected) => {
     expect(readNumber(q({ x: raw }), 'x')).toBe(expected);
   });
 });
@@ -14,8 +28,14 @@ describe('readNumber', () => {
 describe('viscosity index form', () => {
   test.each([
     // ASTM D2270 worked example (procedure A): KV40 73.3, KV100 8.86 → VI 92 (D2270 section 6 example, from memory).
-    [{ tool: 'vi', kv40: '73.3', kv100: '8.86' }, { state: 'ok', value: { vi: 92, warning: null } }],
-    [{ tool: 'vi', kv40: '', kv100: '8.86' }, { state: 'error', fields: { kv40: 'Enter the viscosity at 40 °C.' } }],
+    [
+      { tool: 'vi', kv40: '73.3', kv100: '8.86' },
+      { state: 'ok', value: { vi: 92, warning: null } },
+    ],
+    [
+      { tool: 'vi', kv40: '', kv100: '8.86' },
+      { state: 'error', fields: { kv40: 'Enter the viscosity at 40 °C.' } },
+    ],
     [{ tool: 'sus', kv40: '1', kv100: '1' }, { state: 'idle' }],
   ])('%j', (params, expected) => {
     expect(runViscosityIndex(q(params))).toEqual(expected);
@@ -23,7 +43,10 @@ describe('viscosity index form', () => {
 
   test('swapped viscosities (KV40 ≤ KV100) are refused on the KV40 field and nothing is computed', () => {
     const r = runViscosityIndex(q({ tool: 'vi', kv40: '8.86', kv100: '73.3' }));
-    expect(r).toEqual({ state: 'error', fields: { kv40: expect.stringMatching(/must be higher than the one at 100 °C/) } });
+    expect(r).toEqual({
+      state: 'error',
+      fields: { kv40: expect.stringMatching(/must be higher than the one at 100 °C/) },
+    });
   });
 
   test('a VI above 400 is answered with a warning beside it', () => {
@@ -75,16 +98,24 @@ describe('Saybolt and viscosity-at forms take the user’s temperature unit', ()
 describe('grade of a measured viscosity', () => {
   test.each([
     // SAE J300 KV100 windows: 40 is 12.5 to <16.3 mm²/s, 30 is 9.3 to <12.5.
-    ['14.2', '40'], ['12.5', '40'], ['12.49', '30'], ['30', null],
+    ['14.2', '40'],
+    ['12.5', '40'],
+    ['12.49', '30'],
+    ['30', null],
   ])('%s mm²/s → %j', (kv100, grade) => {
-    expect(runGradeOf(q({ tool: 'grade', kv100 }))).toEqual({ state: 'ok', value: { grades: grade ? [grade] : [], label: grade ?? '', overlap: null, kv100: Number(kv100) } });
+    expect(runGradeOf(q({ tool: 'grade', kv100 }))).toEqual({
+      state: 'ok',
+      value: { grades: grade ? [grade] : [], label: grade ?? '', overlap: null, kv100: Number(kv100) },
+    });
   });
   test('7.0 mm²/s fits SAE 12, 16 and 20 (J300 windows overlap) and the answer says HTHS decides', () => {
     const r = runGradeOf(q({ tool: 'grade', kv100: '7.0' }));
     expect(r.state === 'ok' && r.value.grades).toEqual(['12', '16', '20']);
     expect(r.state === 'ok' && r.value.label).toBe('12, 16 or 20');
     // J300 minimum HTHS at 150 °C: 12 → 2.0, 16 → 2.3, 20 → 2.6 mPa·s (from memory of the table).
-    expect(r.state === 'ok' && r.value.overlap).toMatch(/HTHS.*2\.0 mPa·s for SAE 12, 2\.3 mPa·s for SAE 16, 2\.6 mPa·s for SAE 20/);
+    expect(r.state === 'ok' && r.value.overlap).toMatch(
+      /HTHS.*2\.0 mPa·s for SAE 12, 2\.3 mPa·s for SAE 16, 2\.6 mPa·s for SAE 20/,
+    );
   });
   test('zero is refused', () => {
     expect(runGradeOf(q({ tool: 'grade', kv100: '0' })).state).toBe('error');
@@ -114,7 +145,10 @@ describe('checkGradeSuitsRiding', () => {
   });
 
   test('rows with a gap between them leave the gap uncovered', () => {
-    const gap = [{ grade: '10W-30', minC: -20, maxC: 0 }, { grade: '10W-30', minC: 10, maxC: 30 }];
+    const gap = [
+      { grade: '10W-30', minC: -20, maxC: 0 },
+      { grade: '10W-30', minC: 10, maxC: 30 },
+    ];
     expect(checkGradeSuitsRiding(gap, '10W-30', -5, 20).uncovered).toEqual([[0, 10]]);
   });
 });

@@ -23,13 +23,26 @@ describe('the client address a request counts under', () => {
   });
 
   test.each([
-    ['127.0.0.1', true], ['127.9.9.9', true], ['::1', true], ['[::1]', true], ['localhost', true],
-    ['0.0.0.0', false], ['::', false], ['192.0.2.1', false], ['example.test', false],
+    ['127.0.0.1', true],
+    ['127.9.9.9', true],
+    ['::1', true],
+    ['[::1]', true],
+    ['localhost', true],
+    ['0.0.0.0', false],
+    ['::', false],
+    ['192.0.2.1', false],
+    ['example.test', false],
   ])('loopback %s: %s', (host, loopback) => {
     expect(isLoopbackHost(host)).toBe(loopback);
   });
 
-  test.each([['1.2.3.4', '1.2.3.4'], [' 1.2.3.4 ', '1.2.3.4'], ['1.2.3', null], ['', null], [null, null]])('normaliseIp(%j) = %j', (v, out) => {
+  test.each([
+    ['1.2.3.4', '1.2.3.4'],
+    [' 1.2.3.4 ', '1.2.3.4'],
+    ['1.2.3', null],
+    ['', null],
+    [null, null],
+  ])('normaliseIp(%j) = %j', (v, out) => {
     expect(normaliseIp(v)).toBe(out);
   });
 });

@@ -65,7 +65,9 @@ describe('conditionalJson', () => {
 
   test('sends plain JSON when gzip is not accepted, and small bodies always plain', async () => {
     expect((await conditionalJson(req({}), data)).headers.get('content-encoding')).toBeNull();
-    expect((await conditionalJson(req({ 'accept-encoding': 'gzip' }), { a: 1 })).headers.get('content-encoding')).toBeNull();
+    expect(
+      (await conditionalJson(req({ 'accept-encoding': 'gzip' }), { a: 1 })).headers.get('content-encoding'),
+    ).toBeNull();
   });
 
   test('answers 304 without a body to its own tag', async () => {

@@ -50,12 +50,27 @@ describe('parseReadingCell', () => {
 
 describe('parseGlycolCell', () => {
   test.each([
-    ['positive', 1], ['Positive', 1], ['POS', 1], ['yes', 1], ['Y', 1], ['detected', 1], ['1', 1],
-    ['negative', 0], ['NEG', 0], ['no', 0], ['not detected', 0], ['ND', 0], ['0', 0],
+    ['positive', 1],
+    ['Positive', 1],
+    ['POS', 1],
+    ['yes', 1],
+    ['Y', 1],
+    ['detected', 1],
+    ['1', 1],
+    ['negative', 0],
+    ['NEG', 0],
+    ['no', 0],
+    ['not detected', 0],
+    ['ND', 0],
+    ['0', 0],
   ])('%j → %d', (cell, value) => {
     expect(parseGlycolCell(cell)).toEqual({ status: 'ok', value });
   });
-  test.each([['', 'missing'], ['maybe', 'problem'], ['=1', 'problem']])('%j → %s', (cell, status) => {
+  test.each([
+    ['', 'missing'],
+    ['maybe', 'problem'],
+    ['=1', 'problem'],
+  ])('%j → %s', (cell, status) => {
     expect(parseGlycolCell(cell).status).toBe(status);
   });
 });

@@ -5,7 +5,7 @@ import { isFormulaLikeCell, neutraliseCsvCell } from '~/lib/lab-csv/csv-cell';
 describe('neutraliseCsvCell', () => {
   test.each([
     ['=1+1', "'=1+1"],
-    ['+cmd|\' /C calc\'!A0', "'+cmd|' /C calc'!A0"],
+    ["+cmd|' /C calc'!A0", "'+cmd|' /C calc'!A0"],
     ['-2+3', "'-2+3"],
     ['@SUM(A1)', "'@SUM(A1)"],
     ['\t=1', "'\t=1"],

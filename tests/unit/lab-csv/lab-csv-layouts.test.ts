@@ -17,8 +17,12 @@ function toleranceFor(layout: LabCsvLayout, code: MeasurandCode): number {
 
 function expectSameReadings(layout: LabCsvLayout, parsed: LabReadings, written: LabReadings): void {
   // The Saybolt layout carries no insolubles column.
-  const writtenCodes = Object.keys(written).filter((c) => !(layout === 'units-row-saybolt' && c === 'INSOL')).sort();
-  const parsedCodes = Object.keys(parsed).filter((c) => !(layout === 'units-row-saybolt' && c === 'SUS210')).sort();
+  const writtenCodes = Object.keys(written)
+    .filter((c) => !(layout === 'units-row-saybolt' && c === 'INSOL'))
+    .sort();
+  const parsedCodes = Object.keys(parsed)
+    .filter((c) => !(layout === 'units-row-saybolt' && c === 'SUS210'))
+    .sort();
   expect(parsedCodes).toEqual(writtenCodes);
   for (const code of writtenCodes as MeasurandCode[]) {
     const want = written[code];
@@ -32,12 +36,27 @@ function expectSameReadings(layout: LabCsvLayout, parsed: LabReadings, written: 
 
 const EXAMPLE_ROWS: LabReportRow[] = [
   {
-    bottle: 'SW-1041', sampled: '2026-03-04', reported: '2026-03-11',
+    bottle: 'SW-1041',
+    sampled: '2026-03-04',
+    reported: '2026-03-11',
     readings: {
-      Fe: { value: 38 }, Al: { value: 6.5 }, Cr: { value: 1, qualifier: '<' }, Si: { value: 0, qualifier: '<' },
-      Na: { value: 1000, qualifier: '>' }, Ca: { value: 2345.5 }, Zn: { value: 123456.5 }, KV40: { value: 88.4 },
-      KV100: { value: 12.6 }, VI: { value: 141 }, TBN: { value: 7.2 }, TAN: { value: 2.05 }, FUEL: { value: 1.5 },
-      WATER: { value: 0.05 }, GLYCOL: { value: 0 }, FLASH: { value: 212 }, INSOL: { value: 0.4 },
+      Fe: { value: 38 },
+      Al: { value: 6.5 },
+      Cr: { value: 1, qualifier: '<' },
+      Si: { value: 0, qualifier: '<' },
+      Na: { value: 1000, qualifier: '>' },
+      Ca: { value: 2345.5 },
+      Zn: { value: 123456.5 },
+      KV40: { value: 88.4 },
+      KV100: { value: 12.6 },
+      VI: { value: 141 },
+      TBN: { value: 7.2 },
+      TAN: { value: 2.05 },
+      FUEL: { value: 1.5 },
+      WATER: { value: 0.05 },
+      GLYCOL: { value: 0 },
+      FLASH: { value: 212 },
+      INSOL: { value: 0.4 },
     },
   },
   { bottle: 'SW-1042', sampled: '2026-04-03', readings: { Fe: { value: 41 }, GLYCOL: { value: 1 } } },
@@ -85,13 +104,19 @@ describe('formatLabCsv round-trips through parseLabCsv', () => {
     fc.oneof(
       hundredths(max).map((value) => ({ value })),
       hundredths(max).map((value) => ({ value, qualifier: '<' as const })),
-      hundredths(max).filter((v) => v > 0).map((value) => ({ value, qualifier: '>' as const })),
+      hundredths(max)
+        .filter((v) => v > 0)
+        .map((value) => ({ value, qualifier: '>' as const })),
     );
   const readingsArb: fc.Arbitrary<LabReadings> = fc.record(
     {
       ...Object.fromEntries(ELEMENT_CODES.map((code) => [code, qualified(50_000)])),
-      KV40: hundredths(400).filter((v) => v >= 2).map((value) => ({ value })),
-      KV100: hundredths(40).filter((v) => v >= 2).map((value) => ({ value })),
+      KV40: hundredths(400)
+        .filter((v) => v >= 2)
+        .map((value) => ({ value })),
+      KV100: hundredths(40)
+        .filter((v) => v >= 2)
+        .map((value) => ({ value })),
       VI: fc.integer({ min: 0, max: 300 }).map((value) => ({ value })),
       TBN: qualified(20),
       TAN: qualified(10),
@@ -108,7 +133,14 @@ describe('formatLabCsv round-trips through parseLabCsv', () => {
     fc.assert(
       fc.property(
         bottleCodes,
-        fc.array(fc.record({ sampled: fc.option(isoDate, { nil: undefined }), reported: fc.option(isoDate, { nil: undefined }), readings: readingsArb }), { minLength: 12, maxLength: 12 }),
+        fc.array(
+          fc.record({
+            sampled: fc.option(isoDate, { nil: undefined }),
+            reported: fc.option(isoDate, { nil: undefined }),
+            readings: readingsArb,
+          }),
+          { minLength: 12, maxLength: 12 },
+        ),
         (codes, details) => {
           const rows: LabReportRow[] = codes.map((n, i) => {
             const d = details[i];
@@ -135,7 +167,9 @@ describe('formatLabCsv round-trips through parseLabCsv', () => {
 });
 
 describe('sample-data/labs: the demo lab reports read cleanly', () => {
-  const files = readdirSync(SAMPLE_LABS).filter((f) => /\.(csv|tsv)$/.test(f)).sort();
+  const files = readdirSync(SAMPLE_LABS)
+    .filter((f) => /\.(csv|tsv)$/.test(f))
+    .sort();
 
   test('there is one file per layout', () => {
     expect(files).toEqual(['cinderpass-fluid-works.tsv', 'hollow-creek-oil-lab.csv', 'thistlefen-tribology-bench.csv']);

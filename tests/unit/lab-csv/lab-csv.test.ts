@@ -201,61 +201,153 @@ describe('parseLabCsv: bad input gets an exact code, and the message names the l
 describe('parseLabCsv: good layouts', () => {
   test.each([
     {
-      fixture: 'good-comma-symbols.csv', delimiter: ',', decimalMark: '.', rowCount: 3,
-      first: { line: 2, bottle: { raw: 'SW-2001', normalised: 'SW2001' }, sampled: '2026-02-10', reported: '2026-02-17' },
+      fixture: 'good-comma-symbols.csv',
+      delimiter: ',',
+      decimalMark: '.',
+      rowCount: 3,
+      first: {
+        line: 2,
+        bottle: { raw: 'SW-2001', normalised: 'SW2001' },
+        sampled: '2026-02-10',
+        reported: '2026-02-17',
+      },
       readings: {
-        Fe: { value: 34 }, Al: { value: 5 }, Cr: { value: 1 }, Cu: { value: 12 }, Pb: { value: 2 }, Sn: { value: 1, qualifier: '<' },
-        Si: { value: 9 }, Na: { value: 3 }, K: { value: 1, qualifier: '<' }, B: { value: 41 }, Mo: { value: 62 }, Zn: { value: 1010 },
-        P: { value: 930 }, Ca: { value: 2350 }, Mg: { value: 18 }, KV40: { value: 92.1 }, KV100: { value: 13.4 }, VI: { value: 146 }, TBN: { value: 7.8 } },
+        Fe: { value: 34 },
+        Al: { value: 5 },
+        Cr: { value: 1 },
+        Cu: { value: 12 },
+        Pb: { value: 2 },
+        Sn: { value: 1, qualifier: '<' },
+        Si: { value: 9 },
+        Na: { value: 3 },
+        K: { value: 1, qualifier: '<' },
+        B: { value: 41 },
+        Mo: { value: 62 },
+        Zn: { value: 1010 },
+        P: { value: 930 },
+        Ca: { value: 2350 },
+        Mg: { value: 18 },
+        KV40: { value: 92.1 },
+        KV100: { value: 13.4 },
+        VI: { value: 146 },
+        TBN: { value: 7.8 },
+      },
     },
     {
-      fixture: 'good-semicolon-names-decimal-comma.csv', delimiter: ';', decimalMark: ',', rowCount: 2,
+      fixture: 'good-semicolon-names-decimal-comma.csv',
+      delimiter: ';',
+      decimalMark: ',',
+      rowCount: 2,
       first: { line: 2, bottle: { raw: 'SW-3101', normalised: 'SW3101' }, sampled: '2026-02-03' },
-      readings: { Fe: { value: 22.5 }, Al: { value: 4.1 }, Si: { value: 7 }, Na: { value: 2 }, K: { value: 1 }, Ca: { value: 1234.5 }, Zn: { value: 1012 }, KV100: { value: 13.1 }, FUEL: { value: 0.8 }, WATER: { value: 0.05 } },
+      readings: {
+        Fe: { value: 22.5 },
+        Al: { value: 4.1 },
+        Si: { value: 7 },
+        Na: { value: 2 },
+        K: { value: 1 },
+        Ca: { value: 1234.5 },
+        Zn: { value: 1012 },
+        KV100: { value: 13.1 },
+        FUEL: { value: 0.8 },
+        WATER: { value: 0.05 },
+      },
     },
     {
-      fixture: 'good-name-with-symbol.csv', delimiter: ',', decimalMark: '.', rowCount: 2,
+      fixture: 'good-name-with-symbol.csv',
+      delimiter: ',',
+      decimalMark: '.',
+      rowCount: 2,
       first: { line: 2, bottle: { raw: 'sw 5001', normalised: 'SW5001' }, sampled: '2026-01-05' },
-      readings: { Fe: { value: 17 }, Al: { value: 3 }, Cu: { value: 22 }, Si: { value: 6 }, S: { value: 2400 }, P: { value: 760 } },
+      readings: {
+        Fe: { value: 17 },
+        Al: { value: 3 },
+        Cu: { value: 22 },
+        Si: { value: 6 },
+        S: { value: 2400 },
+        P: { value: 760 },
+      },
     },
     {
-      fixture: 'good-units-in-headers.csv', delimiter: ',', decimalMark: '.', rowCount: 1,
+      fixture: 'good-units-in-headers.csv',
+      delimiter: ',',
+      decimalMark: '.',
+      rowCount: 1,
       first: { line: 2, bottle: { raw: 'SW-5101', normalised: 'SW5101' } },
       // Water 500 ppm = 0.05 %; flash 428 °F = (428 − 32) × 5/9 = 220 °C.
-      readings: { Fe: { value: 28 }, Al: { value: 4 }, Cu: { value: 6 }, Cr: { value: 1 }, Ni: { value: 1, qualifier: '<' }, KV40: { value: 91.5 }, KV100: { value: 13 }, WATER: { value: 0.05 }, FLASH: { value: 220 }, TBN: { value: 7.2 }, TAN: { value: 2.1 } },
+      readings: {
+        Fe: { value: 28 },
+        Al: { value: 4 },
+        Cu: { value: 6 },
+        Cr: { value: 1 },
+        Ni: { value: 1, qualifier: '<' },
+        KV40: { value: 91.5 },
+        KV100: { value: 13 },
+        WATER: { value: 0.05 },
+        FLASH: { value: 220 },
+        TBN: { value: 7.2 },
+        TAN: { value: 2.1 },
+      },
     },
     {
-      fixture: 'good-crlf-bom.csv', delimiter: ',', decimalMark: '.', rowCount: 2,
+      fixture: 'good-crlf-bom.csv',
+      delimiter: ',',
+      decimalMark: '.',
+      rowCount: 2,
       first: { line: 2, bottle: { raw: 'SW-5201', normalised: 'SW5201' } },
       readings: { Fe: { value: 10 }, Al: { value: 2 } },
     },
     {
-      fixture: 'good-quoted-fields.csv', delimiter: ',', decimalMark: '.', rowCount: 2,
+      fixture: 'good-quoted-fields.csv',
+      delimiter: ',',
+      decimalMark: '.',
+      rowCount: 2,
       first: { line: 2, bottle: { raw: 'SW-5301', normalised: 'SW5301' } },
       readings: { Ca: { value: 1234 }, Zn: { value: 1012.5 } },
     },
     {
-      fixture: 'good-detection-limits.csv', delimiter: ',', decimalMark: '.', rowCount: 2,
+      fixture: 'good-detection-limits.csv',
+      delimiter: ',',
+      decimalMark: '.',
+      rowCount: 2,
       first: { line: 2, bottle: { raw: 'SW-5401', normalised: 'SW5401' } },
-      readings: { Fe: { value: 1, qualifier: '<' }, Al: { value: 0, qualifier: '<' }, Cr: { value: 0, qualifier: '<' }, Si: { value: 0.5, qualifier: '<' }, Na: { value: 1000, qualifier: '>' }, Ca: { value: 2, qualifier: '<' } },
+      readings: {
+        Fe: { value: 1, qualifier: '<' },
+        Al: { value: 0, qualifier: '<' },
+        Cr: { value: 0, qualifier: '<' },
+        Si: { value: 0.5, qualifier: '<' },
+        Na: { value: 1000, qualifier: '>' },
+        Ca: { value: 2, qualifier: '<' },
+      },
     },
     {
-      fixture: 'good-tab-decimal-comma.tsv', delimiter: '\t', decimalMark: ',', rowCount: 1,
+      fixture: 'good-tab-decimal-comma.tsv',
+      delimiter: '\t',
+      decimalMark: ',',
+      rowCount: 1,
       first: { line: 2, bottle: { raw: 'SW-6101', normalised: 'SW6101' } },
       readings: { Fe: { value: 12.5 }, Al: { value: 3 }, KV100: { value: 13.2 } },
     },
     {
-      fixture: 'good-title-lines.csv', delimiter: ',', decimalMark: '.', rowCount: 1,
+      fixture: 'good-title-lines.csv',
+      delimiter: ',',
+      decimalMark: '.',
+      rowCount: 1,
       first: { line: 5, bottle: { raw: 'SW-6001', normalised: 'SW6001' } },
       readings: { Fe: { value: 9 }, Al: { value: 2 } },
     },
     {
-      fixture: 'latin1-micro-degree.csv', delimiter: ';', decimalMark: ',', rowCount: 1,
+      fixture: 'latin1-micro-degree.csv',
+      delimiter: ';',
+      decimalMark: ',',
+      rowCount: 1,
       first: { line: 2, bottle: { raw: 'SW-6201', normalised: 'SW6201' } },
       readings: { Fe: { value: 12 }, KV40: { value: 91.5 } },
     },
     {
-      fixture: 'utf16le-bom.csv', delimiter: '\t', decimalMark: '.', rowCount: 1,
+      fixture: 'utf16le-bom.csv',
+      delimiter: '\t',
+      decimalMark: '.',
+      rowCount: 1,
       first: { line: 2, bottle: { raw: 'SW-7501', normalised: 'SW7501' } },
       readings: { Fe: { value: 10 }, KV40: { value: 90.2 } },
     },
@@ -275,9 +367,18 @@ describe('parseLabCsv: good layouts', () => {
     expect(result.headerLine).toBe(2);
     expect(result.unitsLine).toBe(3);
     expect(result.columns.find((c) => c.header === 'Viscosity 210 °F')).toEqual({
-      index: 6, header: 'Viscosity 210 °F', kind: 'measurand', code: 'KV100', unit: 'SUS', conversion: 'SUS210→KV100',
+      index: 6,
+      header: 'Viscosity 210 °F',
+      kind: 'measurand',
+      code: 'KV100',
+      unit: 'SUS',
+      conversion: 'SUS210→KV100',
     });
-    expect(result.columns.find((c) => c.header === 'Flash Point')).toMatchObject({ code: 'FLASH', unit: '°F', conversion: '°F→°C' });
+    expect(result.columns.find((c) => c.header === 'Flash Point')).toMatchObject({
+      code: 'FLASH',
+      unit: '°F',
+      conversion: '°F→°C',
+    });
     const [first, second] = result.rows;
     // D2161 equation: 12.6 mm²/s → 68.669 SUS at 210 °F, and 10 mm²/s → 59.232 SUS at 210 °F (hand-computed).
     expect(first?.readings.SUS210).toEqual({ value: 68.67 });
@@ -318,7 +419,11 @@ describe('parseLabCsv: good layouts', () => {
     expect(errorsOf(result)).toEqual([]);
     expect(result.errors.filter((e) => e.code === 'unknown-column').map((e) => e.column)).toEqual(['Lab No', 'Notes']);
     expect(result.rows[0]?.other).toEqual({ 'Lab No': 'L-778812', Notes: '=SUM(A1:A9)' });
-    expect(result.errors.find((e) => e.code === 'formula-like-cell')).toMatchObject({ severity: 'warning', row: 2, column: 'Notes' });
+    expect(result.errors.find((e) => e.code === 'formula-like-cell')).toMatchObject({
+      severity: 'warning',
+      row: 2,
+      column: 'Notes',
+    });
     expect(result.columns.map((c) => c.kind)).toEqual(['bottle', 'unknown', 'measurand', 'unknown']);
   });
 });
@@ -381,7 +486,11 @@ describe('parseLabCsv: inline cases', () => {
     expect(errorsOf(result)).toEqual([]);
     expect(result.errors).toEqual([]);
     expect(result.columns.map((c) => c.kind)).toEqual(['bottle', 'sampled', 'ignored', 'measurand', 'ignored']);
-    expect(result.rows[0]).toMatchObject({ bottle: { raw: 'SW-1', normalised: 'SW1' }, sampled: '2026-04-03', other: {} });
+    expect(result.rows[0]).toMatchObject({
+      bottle: { raw: 'SW-1', normalised: 'SW1' },
+      sampled: '2026-04-03',
+      other: {},
+    });
     expect(result.rows[0]?.readings.KV100?.value).toBeCloseTo(10, 2);
   });
 
@@ -423,9 +532,7 @@ describe('parseLabCsv: inline cases', () => {
   test('a row with only blank readings is kept with a warning', () => {
     const result = parseLabCsv('Bottle,Fe,Al\nSW-1,,\n');
     expect(result.rows).toHaveLength(1);
-    expect(result.errors).toEqual([
-      expect.objectContaining({ severity: 'warning', code: 'no-readings', row: 2 }),
-    ]);
+    expect(result.errors).toEqual([expect.objectContaining({ severity: 'warning', code: 'no-readings', row: 2 })]);
   });
 
   test('an over-long bottle code is refused', () => {

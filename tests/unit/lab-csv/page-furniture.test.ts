@@ -21,7 +21,11 @@ describe('footers, repeated headers and blank separators', () => {
   test('are skipped, each kind with one note, and the bottles read as usual', () => {
     const result = parseLabCsv(FILE);
     expect(result.errors.filter((e) => e.severity === 'error')).toEqual([]);
-    expect(result.rows.map((r) => [r.line, r.bottle.raw, r.readings.Fe?.value])).toEqual([[3, 'PF-1', 12], [4, 'PF-2', 14], [9, 'PF-3', 9]]);
+    expect(result.rows.map((r) => [r.line, r.bottle.raw, r.readings.Fe?.value])).toEqual([
+      [3, 'PF-1', 12],
+      [4, 'PF-2', 14],
+      [9, 'PF-3', 9],
+    ]);
     const notes = result.errors.filter((e) => e.code === 'lines-skipped').map((e) => e.message);
     expect(notes).toEqual([
       'Line 7: the header row again (a page break); skipped, not read as a bottle.',

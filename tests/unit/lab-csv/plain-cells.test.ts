@@ -54,7 +54,10 @@ describe('parsePlainNumber', () => {
   });
 
   test('agrees with Number() and parseFloat() on every plain decimal, with either mark', () => {
-    const plain = fc.tuple(fc.stringMatching(/^\d{1,12}$/), fc.option(fc.stringMatching(/^\d{1,8}$/), { nil: undefined }));
+    const plain = fc.tuple(
+      fc.stringMatching(/^\d{1,12}$/),
+      fc.option(fc.stringMatching(/^\d{1,8}$/), { nil: undefined }),
+    );
     fc.assert(
       fc.property(plain, ([whole, fraction]) => {
         const pointed = fraction === undefined ? whole : `${whole}.${fraction}`;
@@ -91,7 +94,8 @@ describe('isBareNotDetected', () => {
   ] as const)('%j → %s', (cell, expected) => {
     expect(isBareNotDetected(cell)).toBe(expected);
     // Whatever the fast check accepts, the full reader reads as 0 below detection.
-    if (expected) expect(parseReadingCell(cell, '.')).toEqual({ status: 'ok', value: 0, qualifier: '<', belowDetection: true });
+    if (expected)
+      expect(parseReadingCell(cell, '.')).toEqual({ status: 'ok', value: 0, qualifier: '<', belowDetection: true });
   });
 });
 

@@ -36,7 +36,13 @@ describe('rowDecisionSchema', () => {
 
 describe('form fields', () => {
   test('row decisions by line, with a bad one named by its line', () => {
-    const form = new URLSearchParams({ 'row.2': 'skip', 'row.3': `create:${MACHINE}`, 'row.4': 'explode', 'row.5': '', other: 'x' });
+    const form = new URLSearchParams({
+      'row.2': 'skip',
+      'row.3': `create:${MACHINE}`,
+      'row.4': 'explode',
+      'row.5': '',
+      other: 'x',
+    });
     const { decisions, fields } = readDecisionFields(form);
     expect(decisions).toEqual({ 2: { action: 'skip' }, 3: { action: 'create', machineId: MACHINE } });
     expect(fields['row.4']).toMatch(/^Line 4:/);

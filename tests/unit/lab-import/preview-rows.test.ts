@@ -1,13 +1,27 @@
 import { describe, expect, test } from 'vitest';
-import { countLines, MAX_LAB_FILE_LINES, selectPreviewRows, tooManyLinesMessage, type PreviewRow } from '~/lib/lab-import/lab-import';
+import {
+  countLines,
+  MAX_LAB_FILE_LINES,
+  selectPreviewRows,
+  tooManyLinesMessage,
+  type PreviewRow,
+} from '~/lib/lab-import/lab-import';
 
 function row(line: number, kind: 'ready' | 'unknown' | 'decided-unknown' | 'warning'): PreviewRow {
   const matched = { kind: 'matched' as const, sampleId: 's', machineId: 'm', machineName: 'M', drawnOn: '2026-01-01' };
   return {
-    line, bottle: `B${line}`, bottleNorm: `B${line}`, sampled: null, reported: null, readings: {},
+    line,
+    bottle: `B${line}`,
+    bottleNorm: `B${line}`,
+    sampled: null,
+    reported: null,
+    readings: {},
     match: kind === 'ready' || kind === 'warning' ? matched : { kind: 'unknown', codeProblem: null },
     errors: [],
-    warnings: kind === 'warning' ? [{ severity: 'warning', code: 'missing-bottle-code', row: line, column: 'Bottle', message: 'w' }] : [],
+    warnings:
+      kind === 'warning'
+        ? [{ severity: 'warning', code: 'missing-bottle-code', row: line, column: 'Bottle', message: 'w' }]
+        : [],
     decision: kind === 'unknown' ? null : kind === 'decided-unknown' ? { action: 'skip' } : { action: 'write' },
     needs: kind === 'unknown' ? 'choose' : null,
     written: false,
@@ -30,20 +44,36 @@ describe('which preview rows are listed', () => {
     // Decided rows step back so the next undecided ones come forward.
     ['all', ['decided-unknown', 'decided-unknown', 'unknown', 'unknown'], [4, 5], 0, 0],
     ['all', ['unknown', 'unknown', 'unknown', 'ready'], [2, 3], 1, 1],
-  ] as const)('%s of %j with room for 2 → %j, %d blocking and %d ready not listed', (filter, kinds, lines, hiddenBlocking, hiddenReady) => {
-    const t = selectPreviewRows(kinds.map((k, i) => row(i + 2, k)), filter, 2);
-    expect(t.shown.map((r) => r.line)).toEqual(lines);
-    expect(t.hiddenBlocking).toBe(hiddenBlocking);
-    expect(t.hiddenReady).toBe(hiddenReady);
-  });
+  ] as const)(
+    '%s of %j with room for 2 → %j, %d blocking and %d ready not listed',
+    (filter, kinds, lines, hiddenBlocking, hiddenReady) => {
+      const t = selectPreviewRows(
+        kinds.map((k, i) => row(i + 2, k)),
+        filter,
+        2,
+      );
+      expect(t.shown.map((r) => r.line)).toEqual(lines);
+      expect(t.hiddenBlocking).toBe(hiddenBlocking);
+      expect(t.hiddenReady).toBe(hiddenReady);
+    },
+  );
 });
 
 describe('the line cap of a lab file', () => {
-  test.each([['', 0], ['a', 1], ['a\n', 1], ['a\nb', 2], ['a\nb\n', 2], ['\n\n', 2]])('countLines(%j) = %d', (text, n) => {
+  test.each([
+    ['', 0],
+    ['a', 1],
+    ['a\n', 1],
+    ['a\nb', 2],
+    ['a\nb\n', 2],
+    ['\n\n', 2],
+  ])('countLines(%j) = %d', (text, n) => {
     expect(countLines(text)).toBe(n);
   });
 
   test('the sentence names the file, its lines and the cap', () => {
-    expect(tooManyLinesMessage('big.csv', 260_001)).toBe(`"big.csv" has 260,001 lines; one lab file may hold at most ${MAX_LAB_FILE_LINES.toLocaleString('en-GB')}. Split the report into smaller files and upload each.`);
+    expect(tooManyLinesMessage('big.csv', 260_001)).toBe(
+      `"big.csv" has 260,001 lines; one lab file may hold at most ${MAX_LAB_FILE_LINES.toLocaleString('en-GB')}. Split the report into smaller files and upload each.`,
+    );
   });
 });

@@ -1,7 +1,15 @@
 import { describe, expect, test } from 'vitest';
 import {
-  checkInboundWebhook, findMimeProblem, formatImportAddress, generateImportToken, isLabAttachment, isSenderAllowed, nameAttachment,
-  parseImportAddress, senderInputSchema, signInboundWebhook,
+  checkInboundWebhook,
+  findMimeProblem,
+  formatImportAddress,
+  generateImportToken,
+  isLabAttachment,
+  isSenderAllowed,
+  nameAttachment,
+  parseImportAddress,
+  senderInputSchema,
+  signInboundWebhook,
 } from '~/lib/lab-mail/lab-mail';
 import { composeLabReportArrived } from '~/lib/lab-mail/lab-mail-notice';
 
@@ -45,9 +53,7 @@ describe('senders', () => {
     expect(isSenderAllowed(list, sender)).toBe(allowed);
   });
 
-  test.each([
-    [' Results@Lab.Example ', 'results@lab.example'],
-  ])('the allow-list keeps %j as %j', (input, kept) => {
+  test.each([[' Results@Lab.Example ', 'results@lab.example']])('the allow-list keeps %j as %j', (input, kept) => {
     expect(senderInputSchema.parse(input)).toBe(kept);
   });
 
@@ -74,7 +80,11 @@ describe('attachments', () => {
 
   test.each([
     [{ filename: 'r.csv', contentType: 'text/csv', size: 1 }, 0, 'r.csv'],
-    [{ contentType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet', size: 1 }, 1, 'lab-report-2.xlsx'],
+    [
+      { contentType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet', size: 1 },
+      1,
+      'lab-report-2.xlsx',
+    ],
     [{ contentType: 'text/tab-separated-values', size: 1 }, 0, 'lab-report-1.tsv'],
   ])('nameAttachment(%j, %i) = %j', (a, i, name) => {
     expect(nameAttachment(a, i)).toBe(name);
@@ -88,7 +98,10 @@ describe('MIME sanity', () => {
     ['', 'it is empty'],
     ['From: a@b.example\r\nno blank line at all', 'it has no header block followed by a blank line'],
     ['Subject: only\r\n\r\nbody', 'it has no From, Date or Message-ID header'],
-    ['From: a@b.example\r\nContent-Type: multipart/mixed\r\n\r\nx', 'it says it has several parts but names no boundary between them'],
+    [
+      'From: a@b.example\r\nContent-Type: multipart/mixed\r\n\r\nx',
+      'it says it has several parts but names no boundary between them',
+    ],
     ['From: a@b.example\r\nnot a header\r\n\r\nx', 'a header line is not "Name: value"'],
   ])('findMimeProblem(%j) = %j', (raw, problem) => {
     expect(findMimeProblem(Buffer.from(raw))).toBe(problem);
@@ -99,8 +112,13 @@ describe('the webhook signature', () => {
   const secret = 'a-secret-of-at-least-thirty-two-chars';
   const body = Buffer.from('From: a@b.example\r\n\r\nx');
   const now = 1_790_000_000;
-  const headers = (over: Partial<{ timestamp: string | null; recipient: string | null; signature: string | null }> = {}) => ({
-    timestamp: String(now), recipient: `lab-${TOKEN}@${DOMAIN}`, signature: signInboundWebhook(secret, String(now), `lab-${TOKEN}@${DOMAIN}`, body), ...over,
+  const headers = (
+    over: Partial<{ timestamp: string | null; recipient: string | null; signature: string | null }> = {},
+  ) => ({
+    timestamp: String(now),
+    recipient: `lab-${TOKEN}@${DOMAIN}`,
+    signature: signInboundWebhook(secret, String(now), `lab-${TOKEN}@${DOMAIN}`, body),
+    ...over,
   });
 
   test('is HMAC-SHA256 over timestamp, recipient and body', () => {
@@ -111,10 +129,28 @@ describe('the webhook signature', () => {
 
   test.each([
     ['another body', headers(), Buffer.from('changed'), now, 'the signature does not match'],
-    ['another recipient', headers({ recipient: `lab-${'b'.repeat(26)}@${DOMAIN}` }), body, now, 'the signature does not match'],
+    [
+      'another recipient',
+      headers({ recipient: `lab-${'b'.repeat(26)}@${DOMAIN}` }),
+      body,
+      now,
+      'the signature does not match',
+    ],
     ['a stale timestamp', headers(), body, now + 301, 'the timestamp is missing or more than 5 minutes off'],
-    ['no signature', headers({ signature: null }), body, now, 'the timestamp, recipient and signature headers are required'],
-    ['a non-numeric timestamp', headers({ timestamp: '12abc' }), body, now, 'the timestamp is missing or more than 5 minutes off'],
+    [
+      'no signature',
+      headers({ signature: null }),
+      body,
+      now,
+      'the timestamp, recipient and signature headers are required',
+    ],
+    [
+      'a non-numeric timestamp',
+      headers({ timestamp: '12abc' }),
+      body,
+      now,
+      'the timestamp is missing or more than 5 minutes off',
+    ],
   ])('refuses %s', (_what, h, b, at, why) => {
     expect(checkInboundWebhook(secret, h, b, at)).toBe(why);
   });
@@ -122,9 +158,23 @@ describe('the webhook signature', () => {
 
 describe('the notice', () => {
   test('names the sender and links every preview; nothing is written without a confirm', () => {
-    const notice = composeLabReportArrived({ crewName: 'Valley', sender: 'results@lab.example', files: [{ fileName: 'a.csv', url: 'https://s.test/imports/1' }, { fileName: 'b.xlsx', url: 'https://s.test/imports/2' }] });
-    expect(notice).toMatchObject({ kind: 'lab_report_arrived', subject: 'Lab report by mail: a.csv, b.xlsx (Valley)', title: '2 lab reports arrived by mail', action: { url: 'https://s.test/imports/1' } });
-    expect(notice.intro).toContain('Nothing is written to your samples until a mechanic or the lead checks the preview and confirms it.');
+    const notice = composeLabReportArrived({
+      crewName: 'Valley',
+      sender: 'results@lab.example',
+      files: [
+        { fileName: 'a.csv', url: 'https://s.test/imports/1' },
+        { fileName: 'b.xlsx', url: 'https://s.test/imports/2' },
+      ],
+    });
+    expect(notice).toMatchObject({
+      kind: 'lab_report_arrived',
+      subject: 'Lab report by mail: a.csv, b.xlsx (Valley)',
+      title: '2 lab reports arrived by mail',
+      action: { url: 'https://s.test/imports/1' },
+    });
+    expect(notice.intro).toContain(
+      'Nothing is written to your samples until a mechanic or the lead checks the preview and confirms it.',
+    );
     expect(notice.lines.map((l) => l.url)).toEqual(['https://s.test/imports/1', 'https://s.test/imports/2']);
   });
 });

@@ -27,7 +27,11 @@ describe('linkifyText', () => {
   ])('%j', (input, expected) => {
     expect(linkifyText(input)).toEqual(expected);
     // Nothing is lost or added: the segments put back together are the text.
-    expect(linkifyText(input).map((s) => s.value).join('')).toBe(input);
+    expect(
+      linkifyText(input)
+        .map((s) => s.value)
+        .join(''),
+    ).toBe(input);
   });
 });
 

@@ -35,8 +35,12 @@ describe('deriveMessageId', () => {
 
 describe('queuedMailSchema', () => {
   const ok = {
-    to: 'rider@example.test', subject: 'Confirm your e-mail', text: 't', html: '<p>t</p>',
-    idempotencyKey: 'verify:1', kind: 'verify_email',
+    to: 'rider@example.test',
+    subject: 'Confirm your e-mail',
+    text: 't',
+    html: '<p>t</p>',
+    idempotencyKey: 'verify:1',
+    kind: 'verify_email',
   };
   test.each([
     ['a valid message', ok, true],

@@ -1,7 +1,12 @@
 import nodemailer, { type SendMailOptions } from 'nodemailer';
 import { describe, expect, test } from 'vitest';
 import {
-  decodeBody, decodeEncodedWords, decodeQuotedPrintable, parseContentType, parseMime, splitMultipart,
+  decodeBody,
+  decodeEncodedWords,
+  decodeQuotedPrintable,
+  parseContentType,
+  parseMime,
+  splitMultipart,
 } from '~/lib/mail/mime';
 import { renderMailLayout } from '~/lib/mail/templates';
 
@@ -118,7 +123,11 @@ describe('parseMime on messages composed by nodemailer', () => {
 
   test('skips attachments and still finds both bodies', async () => {
     const raw = await composeWithNodemailer({
-      from: 'a@sumpwise.test', to: 'b@example.test', subject: 'With file', text: 'see file', html: '<p>see file</p>',
+      from: 'a@sumpwise.test',
+      to: 'b@example.test',
+      subject: 'With file',
+      text: 'see file',
+      html: '<p>see file</p>',
       attachments: [{ filename: 'readings.csv', content: 'Fe,Al\n12,3\n' }],
     });
     const parsed = parseMime(raw);

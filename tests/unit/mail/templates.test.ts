@@ -4,9 +4,13 @@ import { escapeHtml, renderMailLayout, type MailLayoutInput } from '~/lib/mail/t
 
 const require = createRequire(import.meta.url);
 // The palette the HTML must use comes from the design tokens, not from this test.
-const tailwind = require('../../../tailwind.config.cjs') as { theme: { extend: { colors: Record<string, string | Record<string, string>> } } };
+const tailwind = require('../../../tailwind.config.cjs') as {
+  theme: { extend: { colors: Record<string, string | Record<string, string>> } };
+};
 const palette = new Set(
-  Object.values(tailwind.theme.extend.colors).flatMap((v) => (typeof v === 'string' ? [v] : Object.values(v))).map((c) => c.toLowerCase()),
+  Object.values(tailwind.theme.extend.colors)
+    .flatMap((v) => (typeof v === 'string' ? [v] : Object.values(v)))
+    .map((c) => c.toLowerCase()),
 );
 
 // Invented demo wording.
@@ -74,14 +78,12 @@ describe('renderMailLayout', () => {
     expect(renderMailLayout(verify).text).toContain('You receive this because of your Sumpwise account.');
   });
 
-  test.each([
-    ['javascript:alert(1)'],
-    ['data:text/html,hi'],
-    ['/relative/path'],
-    ['not a url'],
-  ])('refuses an action address that is not http(s): %s', (url) => {
-    expect(() => renderMailLayout({ ...verify, action: { label: 'Go', url } })).toThrow(/url/);
-  });
+  test.each([['javascript:alert(1)'], ['data:text/html,hi'], ['/relative/path'], ['not a url']])(
+    'refuses an action address that is not http(s): %s',
+    (url) => {
+      expect(() => renderMailLayout({ ...verify, action: { label: 'Go', url } })).toThrow(/url/);
+    },
+  );
 });
 
 describe('escapeHtml', () => {

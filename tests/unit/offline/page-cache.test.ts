@@ -5,11 +5,26 @@ const ID = '33333333-3333-4333-8333-333333333333';
 
 describe('isCacheablePage: the garage side is kept, accounts and one-off links are not', () => {
   test.each([
-    ['/', true], ['/machines', true], ['/outbox', true], ['/samples', true],
-    [`/machines/${ID}`, true], [`/machines/${ID}/drain-card`, true], [`/machines/${ID}/oil-change`, true], [`/machines/${ID}/wear-parts/${ID}`, true],
-    [`/samples/${ID}`, true], [`/samples/${ID}/tag`, true],
-    ['/sign-in', false], ['/sign-out', false], ['/account', false], ['/reset-password', false], ['/invitations/abc', false],
-    ['/api/samples', false], ['/dev/mailbox', false], [`/machines/${ID}/edit`, false], ['/machines/new', false], ['/unsubscribe', false],
+    ['/', true],
+    ['/machines', true],
+    ['/outbox', true],
+    ['/samples', true],
+    [`/machines/${ID}`, true],
+    [`/machines/${ID}/drain-card`, true],
+    [`/machines/${ID}/oil-change`, true],
+    [`/machines/${ID}/wear-parts/${ID}`, true],
+    [`/samples/${ID}`, true],
+    [`/samples/${ID}/tag`, true],
+    ['/sign-in', false],
+    ['/sign-out', false],
+    ['/account', false],
+    ['/reset-password', false],
+    ['/invitations/abc', false],
+    ['/api/samples', false],
+    ['/dev/mailbox', false],
+    [`/machines/${ID}/edit`, false],
+    ['/machines/new', false],
+    ['/unsubscribe', false],
   ])('%s → %s', (path, kept) => {
     expect(isCacheablePage(path)).toBe(kept);
   });
@@ -17,8 +32,9 @@ describe('isCacheablePage: the garage side is kept, accounts and one-off links a
 
 describe('a saved copy says so', () => {
   test('the <html> element is marked with the time it was saved', () => {
-    expect(markSavedCopy('<!doctype html><html lang="en"><body>', '2026-12-02T06:30:00.000Z'))
-      .toBe(`<!doctype html><html ${SAVED_COPY_ATTRIBUTE}="2026-12-02T06:30:00.000Z" lang="en"><body>`);
+    expect(markSavedCopy('<!doctype html><html lang="en"><body>', '2026-12-02T06:30:00.000Z')).toBe(
+      `<!doctype html><html ${SAVED_COPY_ATTRIBUTE}="2026-12-02T06:30:00.000Z" lang="en"><body>`,
+    );
   });
 
   test('a forged time cannot break out of the attribute', () => {

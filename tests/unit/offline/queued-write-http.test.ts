@@ -20,7 +20,10 @@ describe('a queued write lands only in the crew it was written in', () => {
     ['a crew the rider left (or a forged id)', 'crew-z', A, 'not_a_member'],
     ['a 100 KB forged header', 'x'.repeat(100_000), A, 'not_a_member'],
   ])('%s', async (_name, header, crew, code) => {
-    const req = new Request('http://local/api/samples', { method: 'POST', headers: header === null ? {} : { [QUEUED_CREW_HEADER]: header } });
+    const req = new Request('http://local/api/samples', {
+      method: 'POST',
+      headers: header === null ? {} : { [QUEUED_CREW_HEADER]: header },
+    });
     const res = refuseQueuedWriteOfOtherCrew(req, crew, [A, B]);
     if (code === null) expect(res).toBeNull();
     else {
@@ -64,7 +67,14 @@ describe('an oil change posted with its photos', () => {
         else controller.enqueue(chunk);
       },
     });
-    const r = await readOilChangeUpload(new Request('http://local/', { method: 'POST', body, headers: { 'content-type': 'multipart/form-data; boundary=x' }, duplex: 'half' } as RequestInit));
+    const r = await readOilChangeUpload(
+      new Request('http://local/', {
+        method: 'POST',
+        body,
+        headers: { 'content-type': 'multipart/form-data; boundary=x' },
+        duplex: 'half',
+      } as RequestInit),
+    );
     expect(r).toMatchObject({ ok: false, status: 413 });
     // The reader drains at most 16 MiB past the cap (so the client can read the 413), then stops.
     expect(sent).toBeLessThan(OIL_CHANGE_UPLOAD_MAX_BYTES + 18 * chunk.length);

@@ -10,12 +10,25 @@ const q = (o: Record<string, string>) => new URLSearchParams(o);
 
 describe('runSuitsCheck', () => {
   test.each<[string, Record<string, string>, Record<string, string>]>([
-    ['unknown machine', { machine: 'other', grade: '10W-40', low: '0', high: '30' }, { machine: 'Pick one of your crew’s machines.' }],
-    ['no chart yet', { machine: 'm2', grade: '10W-40', low: '0', high: '30' }, { machine: 'This machine has no temperature chart from its manual yet; add it on the machine’s page.' }],
+    [
+      'unknown machine',
+      { machine: 'other', grade: '10W-40', low: '0', high: '30' },
+      { machine: 'Pick one of your crew’s machines.' },
+    ],
+    [
+      'no chart yet',
+      { machine: 'm2', grade: '10W-40', low: '0', high: '30' },
+      { machine: 'This machine has no temperature chart from its manual yet; add it on the machine’s page.' },
+    ],
     ['no grade', { machine: 'm1', grade: ' ', low: '0', high: '30' }, { grade: 'Enter the grade, such as 10W-40.' }],
-    ['temperatures not numbers', { machine: 'm1', grade: '10W-40', low: 'cold', high: '' }, {
-      low: 'Enter the coldest riding temperature as a number.', high: 'Enter the hottest riding temperature as a number.',
-    }],
+    [
+      'temperatures not numbers',
+      { machine: 'm1', grade: '10W-40', low: 'cold', high: '' },
+      {
+        low: 'Enter the coldest riding temperature as a number.',
+        high: 'Enter the hottest riding temperature as a number.',
+      },
+    ],
   ])('%s → the message beside the field', (_name, form, fields) => {
     expect(runSuitsCheck(q({ tool: 'suits', ...form }), 'C', machines)).toEqual({ state: 'error', fields });
   });
@@ -43,7 +56,11 @@ describe('buildOilToolsView', () => {
     expect(v.errorOf(v.at, 'kv100')).toBeUndefined();
   });
 
-  test.each<[number, number, string]>([[1234.567, 2, '1,234.57'], [12.3, 1, '12.3'], [5, 2, '5']])('formatToolFigure(%d, %d) → %s', (n, d, shown) => {
+  test.each<[number, number, string]>([
+    [1234.567, 2, '1,234.57'],
+    [12.3, 1, '12.3'],
+    [5, 2, '5'],
+  ])('formatToolFigure(%d, %d) → %s', (n, d, shown) => {
     expect(formatToolFigure(n, d)).toBe(shown);
   });
 });

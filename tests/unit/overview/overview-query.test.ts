@@ -7,11 +7,19 @@ describe('parseOverviewQuery', () => {
     ['sort=name', { ...DEFAULT_OVERVIEW_QUERY, sort: 'name', dir: 'asc' }, []],
     ['sort=last-sample', { ...DEFAULT_OVERVIEW_QUERY, sort: 'last-sample', dir: 'desc' }, []],
     ['sort=name&dir=desc', { ...DEFAULT_OVERVIEW_QUERY, sort: 'name', dir: 'desc' }, []],
-    ['level=act&call=shorten&climbing=1&q=%20Heron%20&page=3', { ...DEFAULT_OVERVIEW_QUERY, level: 'act', call: 'shorten', climbing: true, q: 'Heron', page: 3 }, []],
+    [
+      'level=act&call=shorten&climbing=1&q=%20Heron%20&page=3',
+      { ...DEFAULT_OVERVIEW_QUERY, level: 'act', call: 'shorten', climbing: true, q: 'Heron', page: 3 },
+      [],
+    ],
     ['level=none', { ...DEFAULT_OVERVIEW_QUERY, level: 'none' }, []],
     ['climbing=on', { ...DEFAULT_OVERVIEW_QUERY, climbing: true }, []],
     ['climbing=0', DEFAULT_OVERVIEW_QUERY, []],
-    ['sort=price&dir=up&level=red&call=later&climbing=maybe&page=0', DEFAULT_OVERVIEW_QUERY, ['sort', 'dir', 'level', 'call', 'climbing', 'page']],
+    [
+      'sort=price&dir=up&level=red&call=later&climbing=maybe&page=0',
+      DEFAULT_OVERVIEW_QUERY,
+      ['sort', 'dir', 'level', 'call', 'climbing', 'page'],
+    ],
     ['page=2.5', DEFAULT_OVERVIEW_QUERY, ['page']],
     ['page=-1', DEFAULT_OVERVIEW_QUERY, ['page']],
     ['level=', DEFAULT_OVERVIEW_QUERY, []],
@@ -28,7 +36,11 @@ describe('buildOverviewHref and toggleSort', () => {
     [q, {}, '/overview?level=watch'],
     [q, { page: 5 }, '/overview?level=watch&page=5'],
     [q, toggleSort(q, 'name'), '/overview?sort=name&level=watch'],
-    [{ ...q, sort: 'name' as const, dir: 'asc' as const }, toggleSort({ ...q, sort: 'name', dir: 'asc' }, 'name'), '/overview?sort=name&dir=desc&level=watch'],
+    [
+      { ...q, sort: 'name' as const, dir: 'asc' as const },
+      toggleSort({ ...q, sort: 'name', dir: 'asc' }, 'name'),
+      '/overview?sort=name&dir=desc&level=watch',
+    ],
     [q, toggleSort(q, 'level'), '/overview?dir=asc&level=watch'],
     [DEFAULT_OVERVIEW_QUERY, { q: 'Old Bruin', climbing: true }, '/overview?climbing=1&q=Old+Bruin'],
   ])('%j + %j → %s', (query, change, href) => {
@@ -36,7 +48,15 @@ describe('buildOverviewHref and toggleSort', () => {
   });
 
   test('every href parses back to the query it was built from', () => {
-    const built = { ...DEFAULT_OVERVIEW_QUERY, sort: 'due' as const, dir: 'desc' as const, call: 'hold' as const, climbing: true, q: 'a&b', page: 2 };
+    const built = {
+      ...DEFAULT_OVERVIEW_QUERY,
+      sort: 'due' as const,
+      dir: 'desc' as const,
+      call: 'hold' as const,
+      climbing: true,
+      q: 'a&b',
+      page: 2,
+    };
     const href = buildOverviewHref(built, { page: 2 });
     expect(parseOverviewQuery(new URL(href, 'http://x').searchParams).query).toEqual(built);
   });

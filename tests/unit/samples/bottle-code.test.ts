@@ -1,8 +1,14 @@
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
 import {
-  CODE_ALPHABET, ISSUED_DATA_LENGTH, computeCheckSymbol, explainIssuedCode, formatIssuedCode, generateIssuedCode,
-  hasValidCheckSymbol, normaliseBottleCode,
+  CODE_ALPHABET,
+  ISSUED_DATA_LENGTH,
+  computeCheckSymbol,
+  explainIssuedCode,
+  formatIssuedCode,
+  generateIssuedCode,
+  hasValidCheckSymbol,
+  normaliseBottleCode,
 } from '~/lib/samples/bottle-code';
 
 const A = CODE_ALPHABET;
@@ -87,7 +93,9 @@ describe('check symbol catches every single substitution and every adjacent swap
       for (const a of A) {
         for (const b of A) {
           if (a === b) continue;
-          const body = rnd[r++ % rnd.length]!.slice(0, ISSUED_DATA_LENGTH).map((i) => A[i]).join('');
+          const body = rnd[r++ % rnd.length]!.slice(0, ISSUED_DATA_LENGTH)
+            .map((i) => A[i])
+            .join('');
           // Substitution at p: put a at p in valid code, then replace by b.
           if (p < ISSUED_DATA_LENGTH) {
             const data = body.slice(0, p) + a + body.slice(p + 1);

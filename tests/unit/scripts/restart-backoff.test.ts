@@ -12,7 +12,10 @@ describe('nextRestart', () => {
     { before: 5, lived: 100, quickDeaths: 6, delayMs: 8_000 },
     { before: 6, lived: 100, quickDeaths: 7, delayMs: 10_000 },
     { before: 50, lived: 100, quickDeaths: 51, delayMs: 10_000 },
-  ])('after $before start-up deaths, one that lived $lived ms: $delayMs ms pause', ({ before, lived, quickDeaths, delayMs }) => {
-    expect(nextRestart(before, lived)).toEqual({ quickDeaths, delayMs });
-  });
+  ])(
+    'after $before start-up deaths, one that lived $lived ms: $delayMs ms pause',
+    ({ before, lived, quickDeaths, delayMs }) => {
+      expect(nextRestart(before, lived)).toEqual({ quickDeaths, delayMs });
+    },
+  );
 });

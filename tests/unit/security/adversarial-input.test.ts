@@ -28,7 +28,8 @@ function bestOfThree(run: () => unknown): number {
   return best;
 }
 
-const fill = (prefix: string, unit: string, suffix: string, size = KB100) => prefix + unit.repeat(Math.ceil((size - prefix.length - suffix.length) / unit.length)) + suffix;
+const fill = (prefix: string, unit: string, suffix: string, size = KB100) =>
+  prefix + unit.repeat(Math.ceil((size - prefix.length - suffix.length) / unit.length)) + suffix;
 
 // Prefixes that lead each pattern into its quantified parts, repeated units that those parts can share, and a
 // suffix that makes the match fail at the very end (the worst case for backtracking).
@@ -51,7 +52,10 @@ const SHAPES: ReadonlyArray<readonly [string, string, string, string]> = [
   ['slashes and backslashes', '/', '/\\', ''],
 ];
 
-const ADVERSARIAL: ReadonlyArray<readonly [string, string]> = SHAPES.map(([label, prefix, unit, suffix]) => [label, fill(prefix, unit, suffix)]);
+const ADVERSARIAL: ReadonlyArray<readonly [string, string]> = SHAPES.map(([label, prefix, unit, suffix]) => [
+  label,
+  fill(prefix, unit, suffix),
+]);
 
 const PARSERS: ReadonlyArray<readonly [string, (s: string) => unknown]> = [
   ['oil tools grade parser (findGradeWindow)', findGradeWindow],
@@ -70,17 +74,16 @@ const PARSERS: ReadonlyArray<readonly [string, (s: string) => unknown]> = [
 
 describe(`each parser answers a 100 KB adversarial string within ${BOUND_MS} ms`, () => {
   // Growing sizes, so a super-linear pattern fails on a small string instead of hanging on the largest.
-  test.each(PARSERS.flatMap(([name, parse]) => SHAPES.map(([label, ...shape]) => [name, label, parse, shape] as const)))(
-    '%s: %s',
-    (_name, _label, parse, [prefix, unit, suffix]) => {
-      for (const size of [1024, 8 * 1024, KB100]) {
-        const text = fill(prefix, unit, suffix, size);
-        expect(text.length).toBeGreaterThanOrEqual(size);
-        const ms = bestOfThree(() => parse(text));
-        expect(ms, `${size} characters took ${ms.toFixed(1)} ms`).toBeLessThan(BOUND_MS);
-      }
-    },
-  );
+  test.each(
+    PARSERS.flatMap(([name, parse]) => SHAPES.map(([label, ...shape]) => [name, label, parse, shape] as const)),
+  )('%s: %s', (_name, _label, parse, [prefix, unit, suffix]) => {
+    for (const size of [1024, 8 * 1024, KB100]) {
+      const text = fill(prefix, unit, suffix, size);
+      expect(text.length).toBeGreaterThanOrEqual(size);
+      const ms = bestOfThree(() => parse(text));
+      expect(ms, `${size} characters took ${ms.toFixed(1)} ms`).toBeLessThan(BOUND_MS);
+    }
+  });
 });
 
 describe('the answers to hostile input are clear refusals, not guesses', () => {
@@ -117,7 +120,47 @@ describe('the answers to hostile input are clear refusals, not guesses', () => {
 });
 
 // Strings built from the pieces the patterns care about, so the property explores their corners.
-const PIECES = [' ', '\t', '\n', '\r', '1', '0', '40', '100', 'W', 'w', '-', '–', '.', ',', '(', ')', '<', '>', 'nd', 'SAE', 'mm', '^2', '/s', 'cSt', '°C', 'deg', 'ppm', '"', ';', 'Bottle', 'Fe', 'apr', '2026', '\u00a0', '·', '/', '\\', '%2F', '='];
+const PIECES = [
+  ' ',
+  '\t',
+  '\n',
+  '\r',
+  '1',
+  '0',
+  '40',
+  '100',
+  'W',
+  'w',
+  '-',
+  '–',
+  '.',
+  ',',
+  '(',
+  ')',
+  '<',
+  '>',
+  'nd',
+  'SAE',
+  'mm',
+  '^2',
+  '/s',
+  'cSt',
+  '°C',
+  'deg',
+  'ppm',
+  '"',
+  ';',
+  'Bottle',
+  'Fe',
+  'apr',
+  '2026',
+  '\u00a0',
+  '·',
+  '/',
+  '\\',
+  '%2F',
+  '=',
+];
 const hostile = fc.oneof(
   fc.string({ maxLength: 400 }),
   fc.string({ unit: 'grapheme', maxLength: 200 }),
@@ -146,7 +189,12 @@ describe('any string gets an answer within the bound and nothing throws (fast-ch
   });
 
   test('the lab CSV reader returns a result with rows or clear errors, never throws, within 1 s per file', () => {
-    const csv = fc.array(fc.array(hostile, { maxLength: 8 }).map((cells) => cells.join(',')), { maxLength: 40 }).map((lines) => ['Bottle,Fe,Sampled', ...lines].join('\n'));
+    const csv = fc
+      .array(
+        fc.array(hostile, { maxLength: 8 }).map((cells) => cells.join(',')),
+        { maxLength: 40 },
+      )
+      .map((lines) => ['Bottle,Fe,Sampled', ...lines].join('\n'));
     fc.assert(
       fc.property(fc.oneof(csv, hostile), (text) => {
         const t = performance.now();
@@ -162,7 +210,10 @@ describe('any string gets an answer within the bound and nothing throws (fast-ch
 
   test('a 100 KB hostile header or cell through the whole lab CSV reader is answered within 1 s', () => {
     for (const [, text] of ADVERSARIAL) {
-      for (const file of [`Bottle,${text.replace(/[\n\r",]/g, ' ')}\nA1,1\n`, `Bottle,Fe\nA1,${text.replace(/[\n\r",]/g, ' ')}\n`]) {
+      for (const file of [
+        `Bottle,${text.replace(/[\n\r",]/g, ' ')}\nA1,1\n`,
+        `Bottle,Fe\nA1,${text.replace(/[\n\r",]/g, ' ')}\n`,
+      ]) {
         const t = performance.now();
         const result = parseLabCsv(file);
         expect(performance.now() - t).toBeLessThan(1_000);

@@ -1,15 +1,44 @@
 import { describe, expect, test } from 'vitest';
 import type { WearForecast } from '~/lib/analysis/wear-forecast';
 import { describeForecast } from '~/lib/wear-parts/forecast-words';
-import { buildWearChart, buildWearPartPageView, formatPieceSize, WEAR_CHART_BOX } from '~/lib/wear-parts/wear-part-page-view';
+import {
+  buildWearChart,
+  buildWearPartPageView,
+  formatPieceSize,
+  WEAR_CHART_BOX,
+} from '~/lib/wear-parts/wear-part-page-view';
 import type { WearMeasurement, WearPart } from '~/lib/wear-parts/wear-parts';
 
 const plates: WearPart = {
-  id: 'w1', machineId: 'm1', name: 'Clutch friction plates', pieceCount: 8, newMinMm: 2.9, newMaxMm: 3.1, serviceLimitMm: 2.6,
-  limitDirection: 'min', fittedOdometer: 0, manualUnit: 'mm', notes: '',
+  id: 'w1',
+  machineId: 'm1',
+  name: 'Clutch friction plates',
+  pieceCount: 8,
+  newMinMm: 2.9,
+  newMaxMm: 3.1,
+  serviceLimitMm: 2.6,
+  limitDirection: 'min',
+  fittedOdometer: 0,
+  manualUnit: 'mm',
+  notes: '',
 };
-const chain: WearPart = { ...plates, name: 'Chain, 20 links', pieceCount: 1, newMinMm: 317.5, newMaxMm: 318, serviceLimitMm: 323.9, limitDirection: 'max' };
-const reading = (odometer: number, summaryMm: number, piecesMm: number[] = []): WearMeasurement => ({ id: `r${odometer}`, measuredOn: '2026-03-01', odometer, piecesMm, summaryMm, note: '' });
+const chain: WearPart = {
+  ...plates,
+  name: 'Chain, 20 links',
+  pieceCount: 1,
+  newMinMm: 317.5,
+  newMaxMm: 318,
+  serviceLimitMm: 323.9,
+  limitDirection: 'max',
+};
+const reading = (odometer: number, summaryMm: number, piecesMm: number[] = []): WearMeasurement => ({
+  id: `r${odometer}`,
+  measuredOn: '2026-03-01',
+  odometer,
+  piecesMm,
+  summaryMm,
+  note: '',
+});
 const none: WearForecast = { status: 'no-readings' };
 
 describe('piece sizes', () => {
@@ -45,7 +74,13 @@ describe('the wear chart geometry', () => {
   const { width: W, height: H, pad: P } = WEAR_CHART_BOX;
 
   test('without a forecast: the limit below the new range, points inside the plot, no fitted line', () => {
-    const c = buildWearChart({ part: plates, meter: 'km', measurements: [reading(5_000, 2.85), reading(10_000, 2.8)], forecast: none, lengthUnit: 'mm' });
+    const c = buildWearChart({
+      part: plates,
+      meter: 'km',
+      measurements: [reading(5_000, 2.85), reading(10_000, 2.8)],
+      forecast: none,
+      lengthUnit: 'mm',
+    });
     expect(c.fit).toBeNull();
     expect(c.range).toBeNull();
     // y grows downwards: the new range's top is above the limit for a part that wears thinner.
@@ -64,10 +99,24 @@ describe('the wear chart geometry', () => {
 
   test('with a forecast: the fitted line ends on the limit at the forecast odometer, the range sits on the limit line', () => {
     const forecast: WearForecast = {
-      status: 'forecast', limitAt: 30_000, low: 25_000, high: 36_000, method: 'prediction-interval', readings: 2, ratePer1000: 0.01,
-      sureness: 'moderate', start: { odometer: 0, value: 3.0 }, reversals: [],
+      status: 'forecast',
+      limitAt: 30_000,
+      low: 25_000,
+      high: 36_000,
+      method: 'prediction-interval',
+      readings: 2,
+      ratePer1000: 0.01,
+      sureness: 'moderate',
+      start: { odometer: 0, value: 3.0 },
+      reversals: [],
     };
-    const c = buildWearChart({ part: plates, meter: 'km', measurements: [reading(10_000, 2.8)], forecast, lengthUnit: 'mm' });
+    const c = buildWearChart({
+      part: plates,
+      meter: 'km',
+      measurements: [reading(10_000, 2.8)],
+      forecast,
+      lengthUnit: 'mm',
+    });
     expect(c.fit?.y2).toBe(c.limitY);
     expect(c.fit!.x2).toBeGreaterThan(c.fit!.x1);
     expect(c.range!.width).toBeGreaterThan(2);

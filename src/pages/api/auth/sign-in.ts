@@ -9,7 +9,11 @@ import { refusalJson } from '~/lib/http/responses';
 export const POST: APIRoute = async (context) => {
   const body = await parseJsonBody(context.request, signInSchema);
   if (!body.ok) return body.response;
-  const result = await signIn(getAuthDeps(), body.data, { ip: clientIp(context), previousSessionId: context.locals.session?.id ?? null, knownDevice: isKnownDeviceFor(context.cookies, body.data.email) });
+  const result = await signIn(getAuthDeps(), body.data, {
+    ip: clientIp(context),
+    previousSessionId: context.locals.session?.id ?? null,
+    knownDevice: isKnownDeviceFor(context.cookies, body.data.email),
+  });
   if (!result.ok) return refusalJson(result);
   applySessionCookie(context.cookies, result.value.cookie);
   rememberKnownDevice(context.cookies, body.data.email);

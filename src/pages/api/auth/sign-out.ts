@@ -7,6 +7,9 @@ import { requireApiUser } from '~/lib/auth/guards';
 export const POST: APIRoute = async (context) => {
   const user = requireApiUser(context.locals);
   if (user instanceof Response) return user;
-  applySessionCookie(context.cookies, await signOut(getAuthDeps(), { id: context.locals.session!.id, userId: user.id }, { ip: clientIp(context) }));
+  applySessionCookie(
+    context.cookies,
+    await signOut(getAuthDeps(), { id: context.locals.session!.id, userId: user.id }, { ip: clientIp(context) }),
+  );
   return new Response(null, { status: 204 });
 };

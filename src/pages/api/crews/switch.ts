@@ -16,7 +16,12 @@ export const POST: APIRoute = async (context) => {
     if (!context.locals.user) return signInRedirect(new URL(safeNextPath(formText(body.form, 'next')), context.url));
     const parsed = switchCrewSchema.safeParse({ crewId: formText(body.form, 'crewId') });
     if (!parsed.success) return new Response('Choose a crew.', { status: 400 });
-    const result = await switchCrew(getAuthDeps().db, context.locals.session!.id, context.locals.user.id, parsed.data.crewId);
+    const result = await switchCrew(
+      getAuthDeps().db,
+      context.locals.session!.id,
+      context.locals.user.id,
+      parsed.data.crewId,
+    );
     if (!result.ok) return new Response(null, { status: 404 });
     return context.redirect(safeNextPath(formText(body.form, 'next')), 303);
   }

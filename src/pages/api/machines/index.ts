@@ -11,7 +11,9 @@ import { refusalJson } from '~/lib/http/responses';
 export const GET: APIRoute = async ({ locals, url }) => {
   const g = requireApiCrew(locals);
   if (g instanceof Response) return g;
-  return jsonOk({ machines: await listMachines(getDb(), actorFrom(g), { includeArchived: url.searchParams.get('archived') === '1' }) });
+  return jsonOk({
+    machines: await listMachines(getDb(), actorFrom(g), { includeArchived: url.searchParams.get('archived') === '1' }),
+  });
 };
 
 /** POST a machine (JSON; grade temperatures in the user's unit, the interval in the machine's meter unit). */

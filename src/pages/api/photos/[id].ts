@@ -24,16 +24,36 @@ export const GET: APIRoute = async ({ params, request, locals }) => {
     'content-disposition': 'inline',
   };
   const match = request.headers.get('if-none-match');
-  if (match && match.split(',').map((t) => t.trim().replace(/^W\//, '')).includes(etag)) return new Response(null, { status: 304, headers });
+  if (
+    match &&
+    match
+      .split(',')
+      .map((t) => t.trim().replace(/^W\//, ''))
+      .includes(etag)
+  )
+    return new Response(null, { status: 304, headers });
   let stored: Awaited<ReturnType<ReturnType<typeof getPhotoStore>['get']>>;
   try {
     stored = await getPhotoStore().get(photoKey(p.sha256));
   } catch (e) {
     if (!(e instanceof PhotoStorageError)) throw e;
     console.error(`[photos] photo not read: ${e.message}`);
-    return jsonError(503, 'storage_unavailable', 'The photo cannot be read right now. Try again later.', {}, { 'retry-after': '60' });
+    return jsonError(
+      503,
+      'storage_unavailable',
+      'The photo cannot be read right now. Try again later.',
+      {},
+      { 'retry-after': '60' },
+    );
   }
-  if (!stored) return refusalJson({ ok: false, status: 404, code: 'not_found', message: 'The photo file is missing.', fields: {} });
+  if (!stored)
+    return refusalJson({
+      ok: false,
+      status: 404,
+      code: 'not_found',
+      message: 'The photo file is missing.',
+      fields: {},
+    });
   const body = Readable.toWeb(stored.body) as ReadableStream<Uint8Array>;
   return new Response(body, { status: 200, headers: { ...headers, 'content-length': String(stored.byteSize) } });
 };

@@ -18,7 +18,11 @@ export function refuseSignedOut(request: Request, back: string, message: string)
 export type Body<T> = { ok: true; data: T; form: boolean } | { ok: false; response: Response };
 
 /** Reads a JSON or urlencoded body against a schema; a form's invalid input goes back to the page with its message. */
-export async function readReviewBody<S extends z.ZodType>(request: Request, schema: S, back: string): Promise<Body<z.infer<S>>> {
+export async function readReviewBody<S extends z.ZodType>(
+  request: Request,
+  schema: S,
+  back: string,
+): Promise<Body<z.infer<S>>> {
   const type = request.headers.get('content-type') ?? '';
   if (/^application\/json\b/i.test(type)) {
     const parsed = await parseJsonBody(request, schema);
@@ -30,7 +34,13 @@ export async function readReviewBody<S extends z.ZodType>(request: Request, sche
   const parsed = schema.safeParse(raw);
   if (!parsed.success) {
     const fields = fieldErrorsFrom(parsed.error);
-    return { ok: false, response: redirectBack(back, { review_error: Object.values(fields)[0] ?? 'Some fields need attention.', draft: String(raw['note'] ?? raw['body'] ?? '').slice(0, 1000) }) };
+    return {
+      ok: false,
+      response: redirectBack(back, {
+        review_error: Object.values(fields)[0] ?? 'Some fields need attention.',
+        draft: String(raw['note'] ?? raw['body'] ?? '').slice(0, 1000),
+      }),
+    };
   }
   return { ok: true, data: parsed.data, form: true };
 }
@@ -46,10 +56,18 @@ export function redirectBack(back: string, params: Record<string, string>): Resp
  * 404 page (never a trip back to that sample), and a role that may not review gets a plain refusal; what a
  * reviewer can fix (no results yet, no call) goes back to the panel with the message.
  */
-export async function failure(context: APIContext, form: boolean, back: string, status: number, code: string, message: string): Promise<Response> {
+export async function failure(
+  context: APIContext,
+  form: boolean,
+  back: string,
+  status: number,
+  code: string,
+  message: string,
+): Promise<Response> {
   if (!form) return jsonError(status, code, message);
   if (status === 404) return rewriteToNotFoundPage(context);
-  if (status === 403) return new Response(message, { status, headers: { 'content-type': 'text/plain; charset=utf-8' } });
+  if (status === 403)
+    return new Response(message, { status, headers: { 'content-type': 'text/plain; charset=utf-8' } });
   return redirectBack(back, { review_error: message });
 }
 

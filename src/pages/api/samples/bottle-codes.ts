@@ -11,7 +11,8 @@ import { actorFrom } from '~/lib/http/page-context';
 export const POST: APIRoute = async ({ locals }) => {
   const g = requireApiCrew(locals);
   if (g instanceof Response) return g;
-  if (!canCreateMachine(g.crew)) return jsonError(403, 'forbidden', 'Your role in this crew does not register samples.');
+  if (!canCreateMachine(g.crew))
+    return jsonError(403, 'forbidden', 'Your role in this crew does not register samples.');
   const code = await issueBottleCode(getDb(), actorFrom(g));
   return jsonOk({ code, display: formatIssuedCode(code) }, 201);
 };

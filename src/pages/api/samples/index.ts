@@ -15,7 +15,8 @@ export const GET: APIRoute = async ({ locals, url }) => {
   const g = requireApiCrew(locals);
   if (g instanceof Response) return g;
   const state = url.searchParams.get('state');
-  if (state && !SAMPLE_STATES.includes(state as SampleState)) return jsonError(400, 'invalid_input', 'Unknown state.', { state: `Use one of ${SAMPLE_STATES.join(', ')}.` });
+  if (state && !SAMPLE_STATES.includes(state as SampleState))
+    return jsonError(400, 'invalid_input', 'Unknown state.', { state: `Use one of ${SAMPLE_STATES.join(', ')}.` });
   return jsonOk(await listSamplesByState(getDb(), actorFrom(g), (state ?? undefined) as SampleState | undefined));
 };
 

@@ -18,5 +18,8 @@ export const POST: APIRoute = async ({ request, locals }) => {
   if (!body.ok) return body.response;
   const r = await reserveBottleCodes(getDb(), actorFrom(g), body.data.deviceKey);
   if (!r.ok) return refusalJson(r);
-  return jsonOk({ crewId: g.crew.crewId, codes: r.value.codes.map((code) => ({ code, display: formatIssuedCode(code) })) });
+  return jsonOk({
+    crewId: g.crew.crewId,
+    codes: r.value.codes.map((code) => ({ code, display: formatIssuedCode(code) })),
+  });
 };

@@ -15,7 +15,12 @@ export const POST: APIRoute = async (context) => {
   if (!crew.ok) return refusalJson(crew);
   const body = await parseJsonBody(context.request, inviteSchema);
   if (!body.ok) return body.response;
-  const result = await inviteMember(deps, { userId: user.id, displayName: user.displayName, membership: crew.value }, body.data, { ip: clientIp(context) });
+  const result = await inviteMember(
+    deps,
+    { userId: user.id, displayName: user.displayName, membership: crew.value },
+    body.data,
+    { ip: clientIp(context) },
+  );
   if (!result.ok) return refusalJson(result);
   return jsonOk({ invitationId: result.value.invitationId }, 201);
 };

@@ -16,7 +16,14 @@ export const GET: APIRoute = async ({ params, locals }) => {
   const g = requireApiCrew(locals);
   if (g instanceof Response) return g;
   const r = await listOilChanges(getDb(), actorFrom(g), params.id ?? '');
-  return r.ok ? jsonOk({ oilChanges: r.value.map((c) => ({ ...c, photos: c.photos.map((p) => ({ id: p.id, url: `/api/photos/${p.id}` })) })) }) : refusalJson(r);
+  return r.ok
+    ? jsonOk({
+        oilChanges: r.value.map((c) => ({
+          ...c,
+          photos: c.photos.map((p) => ({ id: p.id, url: `/api/photos/${p.id}` })),
+        })),
+      })
+    : refusalJson(r);
 };
 
 /**
@@ -33,7 +40,10 @@ export const POST: APIRoute = async ({ params, request, locals }) => {
   let photos: Parameters<typeof createOilChange>[4] = {};
   if (/^multipart\/form-data\b/i.test(request.headers.get('content-type') ?? '')) {
     const upload = await readOilChangeUpload(request);
-    if (!upload.ok) return jsonError(upload.status, upload.status === 413 ? 'too_large' : 'invalid_input', upload.message, { photos: upload.message });
+    if (!upload.ok)
+      return jsonError(upload.status, upload.status === 413 ? 'too_large' : 'invalid_input', upload.message, {
+        photos: upload.message,
+      });
     input = upload.input;
     photos = { newPhotos: upload.photos, photoStore: getPhotoStore() };
   } else {
@@ -49,6 +59,12 @@ export const POST: APIRoute = async ({ params, request, locals }) => {
   } catch (e) {
     if (!(e instanceof PhotoStorageError)) throw e;
     console.error(`[oil-change] photos not stored: ${e.message}`);
-    return jsonError(503, 'storage_unavailable', 'Nothing was saved: photos cannot be stored right now. It will be tried again.', {}, { 'retry-after': '60' });
+    return jsonError(
+      503,
+      'storage_unavailable',
+      'Nothing was saved: photos cannot be stored right now. It will be tried again.',
+      {},
+      { 'retry-after': '60' },
+    );
   }
 };

@@ -12,7 +12,12 @@ export const POST: APIRoute = async (context) => {
   if (!locals.user) return refuseSignedOut(request, back, 'Sign in to decide interval calls.');
   const body = await readReviewBody(request, callDecisionSchema, back);
   if (!body.ok) return body.response;
-  const result = await decideIntervalCall(getDb(), { userId: locals.user.id, membership: locals.crew }, sampleId, body.data);
+  const result = await decideIntervalCall(
+    getDb(),
+    { userId: locals.user.id, membership: locals.crew },
+    sampleId,
+    body.data,
+  );
   if (!result.ok) return failure(context, body.form, back, result.status, result.code, result.message);
   return success(body.form, back, body.data.action, result.value.entry);
 };

@@ -12,7 +12,12 @@ export const POST: APIRoute = async (context) => {
   if (!locals.user) return refuseSignedOut(request, back, 'Sign in to write review notes.');
   const body = await readReviewBody(request, reviewNoteSchema, back);
   if (!body.ok) return body.response;
-  const result = await addReviewNote(getDb(), { userId: locals.user.id, membership: locals.crew }, sampleId, body.data.body);
+  const result = await addReviewNote(
+    getDb(),
+    { userId: locals.user.id, membership: locals.crew },
+    sampleId,
+    body.data.body,
+  );
   if (!result.ok) return failure(context, body.form, back, result.status, result.code, result.message);
   return success(body.form, back, 'note', result.value);
 };

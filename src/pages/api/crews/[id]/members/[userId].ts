@@ -20,7 +20,9 @@ export const PATCH: APIRoute = async (context) => {
   if (actor instanceof Response) return actor;
   const body = await parseJsonBody(context.request, changeRoleSchema);
   if (!body.ok) return body.response;
-  const result = await changeMemberRole(getAuthDeps().db, actor, context.params.userId ?? '', body.data.role, { ip: clientIp(context) });
+  const result = await changeMemberRole(getAuthDeps().db, actor, context.params.userId ?? '', body.data.role, {
+    ip: clientIp(context),
+  });
   return result.ok ? new Response(null, { status: 204 }) : refusalJson(result);
 };
 
