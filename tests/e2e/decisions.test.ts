@@ -44,7 +44,8 @@ async function chartLevels(page: Page, href: string, code: string): Promise<stri
   // The island loads when it scrolls into view (client:visible).
   await page.locator('#wear-chart').scrollIntoViewIfNeeded();
   const table = page.locator(`[data-testid="wear-chart-table"] table[data-measurand="${code}"]`);
-  await table.waitFor({ state: 'visible', timeout: 15_000 });
+  // The tables sit folded under the chart: present, not shown.
+  await table.waitFor({ state: 'attached', timeout: 15_000 });
   return table.locator('tbody tr').evaluateAll((rows) => rows.map((r) => r.getAttribute('data-level') ?? ''));
 }
 

@@ -1,5 +1,4 @@
 /** The wear chart's data as tables, one per element: the accessible twin of the canvas. */
-import { useEffect, useState } from 'react';
 import type { Level } from '~/lib/levels';
 import type { TrendResponse } from '~/lib/trends/trend-types';
 import { LEVEL_COLOURS } from './chart-styles';
@@ -34,22 +33,14 @@ function LevelMark({ level }: { level: Level }) {
 /** One table per series with every point's figures. */
 export function TrendTable({ data }: { data: TrendResponse }) {
   const meter = data.machine.meter;
-  // Open beside the chart on wide screens; folded on a phone, where the tables would push everything down.
-  const [open, setOpen] = useState(true);
-  useEffect(() => {
-    if (window.matchMedia('(max-width: 767px)').matches) setOpen(false);
-  }, []);
+  // Folded at first on every screen: the chart tells the story, the tables are its readable twin on demand
+  // (screen readers reach them through the summary, which names what is inside).
   return (
-    <details
-      className="rounded-card border border-line bg-paper-raised p-3"
-      open={open}
-      onToggle={(e) => setOpen(e.currentTarget.open)}
-      data-testid="wear-chart-table"
-    >
+    <details className="rounded-card border border-line bg-paper-raised p-3" data-testid="wear-chart-table">
       <summary className="min-h-tap cursor-pointer font-semibold">The chart's data as tables</summary>
       {data.series.map((s) => (
         <div key={s.code} className="table-wrap mt-3">
-          <table className="data-table whitespace-nowrap" data-measurand={s.code}>
+          <table className="data-table" data-measurand={s.code}>
             <caption className="px-3 py-2 text-left font-semibold">
               {s.name} ({s.code}), {s.unit}
             </caption>
@@ -81,26 +72,34 @@ export function TrendTable({ data }: { data: TrendResponse }) {
               )}
               {s.points.map((p) => (
                 <tr key={p.sampleId} data-level={p.level}>
-                  <td>
+                  <td data-label="Bottle">
                     <a href={`/samples/${p.sampleId}`} className="font-mono">
                       {p.bottleCode}
                     </a>
                   </td>
-                  <td>{p.date}</td>
-                  <td className="num">{formatDistance(p.odometer, meter)}</td>
-                  <td className="num">{formatDistance(p.distanceOnOil, meter)}</td>
-                  <td>{p.grade ?? '—'}</td>
-                  <td className="num">
+                  <td data-label="Date" className="nowrap">
+                    {p.date}
+                  </td>
+                  <td data-label="Odometer" className="num">
+                    {formatDistance(p.odometer, meter)}
+                  </td>
+                  <td data-label="On oil" className="num">
+                    {formatDistance(p.distanceOnOil, meter)}
+                  </td>
+                  <td data-label="Grade" className="nowrap">
+                    {p.grade ?? '—'}
+                  </td>
+                  <td data-label="Value" className="num">
                     {s.basis === 'rate'
                       ? `${formatChartFigure(p.value)} (${formatReported(p)} ppm)`
                       : formatReported(p)}
                   </td>
-                  <td>
+                  <td data-label="Level">
                     <LevelMark level={p.level} />
                   </td>
-                  <td>{formatBand(p)}</td>
-                  <td>{formatFromBaseline(p)}</td>
-                  <td data-testid="in-baseline" data-in-baseline={String(p.inBaseline)}>
+                  <td data-label="Baseline band">{formatBand(p)}</td>
+                  <td data-label="From baseline">{formatFromBaseline(p)}</td>
+                  <td data-label="In baseline" data-testid="in-baseline" data-in-baseline={String(p.inBaseline)}>
                     {p.inBaseline ? 'Yes' : `No: ${p.baselineNote ?? 'kept out'}`}
                   </td>
                 </tr>

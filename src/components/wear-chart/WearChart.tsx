@@ -3,7 +3,7 @@
  * each line, level-shaped points, a tooltip with the sample's figures, grade changes on the axis, and the same
  * data as a table for keyboards and screen readers. Only the Chart.js pieces used are registered.
  */
-import { useEffect, useMemo, useState } from 'react';
+import { useEffect, useMemo, useRef, useState } from 'react';
 import {
   Chart as ChartJS,
   Filler,
@@ -22,7 +22,15 @@ import { MEASURANDS } from '~/lib/analysis/measurands';
 import { expandTrendResponse, type CompactTrendResponse } from '~/lib/trends/trend-compact';
 import { PICKER_GROUPS, type TrendAxis, type TrendBasis, type TrendResponse } from '~/lib/trends/trend-types';
 import { buildChartDatasets, buildGradeMarks, type XYPoint } from './chart-data';
-import { LEVEL_COLOURS, SERIES_COLOURS, pointRadiusFor, pointStyleFor, withAlpha } from './chart-styles';
+import {
+  LEVEL_COLOURS,
+  SERIES_COLOURS,
+  bandHatch,
+  bandSwatchStyle,
+  hatchAngleFor,
+  pointRadiusFor,
+  pointStyleFor,
+} from './chart-styles';
 import { formatBand, formatChartFigure, formatDistance, formatFromBaseline, formatReported, xToDate } from './format';
 import { TrendTable } from './TrendTable';
 
@@ -119,6 +127,13 @@ export default function WearChart({ machineId, initial }: Props) {
   }, [ready]);
   const chart = useMemo(() => (ready ? buildChart(ready) : null), [ready]);
   const empty = ready !== null && ready.series.every((s) => s.points.length === 0);
+  // The band colours as the drawn chart holds them (its band datasets' edges), for the key and its check.
+  const chartRef = useRef<ChartJS<'line', XYPoint[]> | null>(null);
+  const [bandColours, setBandColours] = useState<string[]>([]);
+  useEffect(() => {
+    const drawn = chartRef.current?.data.datasets ?? [];
+    setBandColours(drawn.filter((d) => d.label?.endsWith('baseline band')).map((d) => String(d.borderColor)));
+  }, [chart]);
 
   const named = (code: string) => MEASURANDS.find((m) => m.code === code)?.name ?? code;
 
@@ -220,9 +235,6 @@ export default function WearChart({ machineId, initial }: Props) {
     <div className="space-y-4" data-testid="wear-chart">
       <div aria-live="polite" className="min-h-[1.5rem]">
         {codes.length === 0 && <p>Pick at least one element to draw.</p>}
-        {codes.length > 0 && state.status === 'loading' && (
-          <p data-testid="wear-chart-loading">Loading the wear chart…</p>
-        )}
         {state.status === 'error' && (
           <div role="alert" className="rounded-card border-l-8 border-level-act bg-level-act-bg p-3">
             <p>The wear chart could not be loaded: {state.message}</p>
@@ -232,16 +244,34 @@ export default function WearChart({ machineId, initial }: Props) {
           </div>
         )}
         {empty && (
-          <p data-testid="wear-chart-empty">
-            No results for these elements yet. The chart fills in as lab results come in.
-          </p>
+          <div className="empty-state empty-state-compact" data-testid="wear-chart-empty">
+            <p>
+              <span className="font-semibold">No results for these elements yet.</span>{' '}
+              <span className="text-sm text-ink-soft">The chart fills in as lab results come in.</span>
+            </p>
+          </div>
         )}
       </div>
 
+      {/* The chart's box keeps its height while the readings load, so nothing under it jumps. */}
+      {codes.length > 0 && state.status === 'loading' && (
+        <div
+          className="flex h-72 w-full items-center justify-center rounded-card border border-dashed border-line md:h-96"
+          role="status"
+          data-testid="wear-chart-loading"
+        >
+          <p className="text-ink-soft">Loading the wear chart…</p>
+        </div>
+      )}
       {ready && chart && !empty && (
         <>
-          <figure className="relative h-72 w-full md:h-96" aria-label="Wear chart; the same data is in the table below">
+          <figure
+            className="relative h-72 w-full md:h-96"
+            aria-label="Wear chart; the same data is in the table below"
+            data-band-colours={bandColours.join(' ')}
+          >
             <Line
+              ref={chartRef}
               data={chart.data}
               options={chart.options}
               plugins={[gradeMarksPlugin(buildGradeMarks(ready))]}
@@ -272,20 +302,21 @@ function crewLabel(data: TrendResponse): string | undefined {
 function Legend({ data }: { data: TrendResponse }) {
   return (
     <ul className="flex flex-wrap gap-x-4 gap-y-1 text-sm" aria-label="Chart key">
-      {data.series.map((s, i) => (
-        <li key={s.code} className="flex items-center gap-2">
-          <span
-            aria-hidden="true"
-            className="inline-block h-1 w-6"
-            style={{ background: SERIES_COLOURS[i % SERIES_COLOURS.length] }}
-          />
-          {s.name} ({s.unit})
-        </li>
-      ))}
-      <li className="flex items-center gap-2">
-        <span aria-hidden="true" className="inline-block h-3 w-6 bg-steel-100" />
-        Baseline band
-      </li>
+      {data.series.map((s, i) => {
+        const colour = SERIES_COLOURS[i % SERIES_COLOURS.length]!;
+        return (
+          <li key={s.code} className="flex items-center gap-2">
+            <span aria-hidden="true" className="inline-block h-1 w-6" style={{ background: colour }} />
+            <span
+              aria-hidden="true"
+              className="inline-block h-3.5 w-6 border-y-2 border-dashed"
+              style={bandSwatchStyle(colour, hatchAngleFor(i))}
+              data-band-swatch={s.code}
+            />
+            {s.name} ({s.unit}) and its baseline band
+          </li>
+        );
+      })}
       {crewLabel(data) && (
         <li className="flex items-center gap-2" data-testid="crew-reference-legend">
           <span
@@ -325,25 +356,28 @@ function buildChart(data: TrendResponse): {
   const specs = buildChartDatasets(data, SERIES_COLOURS);
   const meter = data.machine.meter;
   const datasets: ChartDataset<'line', XYPoint[]>[] = specs.map((spec) => {
+    // The band: both edges outlined in the series colour (dashed, so an edge never reads as the readings' line)
+    // and a hatch between them, leaning the other way from its neighbour's, instead of stacked translucent fills.
     if (spec.kind === 'band-lower') {
       return {
         label: spec.label,
         data: spec.data,
-        borderWidth: 0,
+        borderWidth: 1.5,
+        borderDash: [4, 3],
+        borderColor: spec.colour,
         pointRadius: 0,
         pointHitRadius: 0,
         fill: false,
-        borderColor: 'transparent',
       };
     }
     if (spec.kind === 'band-upper') {
       return {
         label: spec.label,
         data: spec.data,
-        borderWidth: 1,
-        borderDash: [3, 3],
-        borderColor: withAlpha(spec.colour, 0.45),
-        backgroundColor: withAlpha(spec.colour, 0.12),
+        borderWidth: 1.5,
+        borderDash: [4, 3],
+        borderColor: spec.colour,
+        backgroundColor: bandHatch(spec.colour, hatchAngleFor(spec.seriesIndex)),
         pointRadius: 0,
         pointHitRadius: 0,
         fill: '-1',
@@ -407,7 +441,7 @@ function buildChart(data: TrendResponse): {
             const p = (item.raw as XYPoint).point;
             const s = data.series[Math.floor(item.datasetIndex / 3)]!;
             return [
-              `${s.name}: ${formatChartFigure(p.value)} ${s.unit}${s.basis === 'rate' ? ` (lab: ${formatReported(p)} ppm)` : p.qualifier ? ` (lab: ${formatReported(p)})` : ''} · ${p.level}`,
+              `${s.name}: ${formatChartFigure(p.value)} ${s.unit}${s.basis === 'rate' ? ` (lab: ${formatReported(p)} ppm)` : p.qualifier ? ` (lab: ${formatReported(p)})` : ''} · level: ${p.level}`,
               `Odometer ${formatDistance(p.odometer, meter)} · on oil ${formatDistance(p.distanceOnOil, meter)} · ${p.grade ?? 'grade not recorded'}`,
               `Baseline ${formatBand(p)} · ${formatFromBaseline(p)}`,
               ...(p.inBaseline ? [] : [`Kept out of the baseline: ${p.baselineNote ?? 'no reason given'}`]),

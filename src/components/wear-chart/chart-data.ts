@@ -16,6 +16,8 @@ export interface ChartDatasetSpec {
   label: string;
   data: XYPoint[];
   colour: string;
+  /** Position of the series among those drawn (its band's hatch direction follows it). */
+  seriesIndex: number;
   levels: Level[];
   /** True where the sample is kept out of the baseline (drawn hollow on the chart). */
   excluded: boolean[];
@@ -43,6 +45,7 @@ export function buildChartDatasets(data: TrendResponse, colours: readonly string
       label: `${s.code} baseline band (lower)`,
       data: lower,
       colour,
+      seriesIndex: i,
       levels: [],
       excluded: [],
     });
@@ -52,6 +55,7 @@ export function buildChartDatasets(data: TrendResponse, colours: readonly string
       label: `${s.code} baseline band`,
       data: upper,
       colour,
+      seriesIndex: i,
       levels: [],
       excluded: [],
     });
@@ -61,6 +65,7 @@ export function buildChartDatasets(data: TrendResponse, colours: readonly string
       label: `${s.code} (${s.unit})`,
       data: s.points.map((p) => ({ x: xOf(p, data.x), y: p.value, point: p })),
       colour,
+      seriesIndex: i,
       levels: s.points.map((p) => p.level),
       excluded: s.points.map((p) => !p.inBaseline),
     });
