@@ -4,11 +4,9 @@
  * JavaScript. After a good upload it goes to the file's preview.
  */
 import Uppy, { type Body, type Meta } from '@uppy/core';
-import Dashboard from '@uppy/react/dashboard';
+import { Uploader } from '~/components/ui/Uploader';
 import XHRUpload from '@uppy/xhr-upload';
 import { useEffect, useState } from 'react';
-import '@uppy/core/css/style.min.css';
-import '@uppy/dashboard/css/style.min.css';
 
 interface Props {
   endpoint: string;
@@ -94,11 +92,10 @@ export default function LabUpload({ endpoint, maxBytes, fallbackId }: Props) {
 
   return (
     <div data-testid="lab-upload-dashboard">
-      <Dashboard
+      <Uploader
         uppy={uppy}
         width="100%"
         height={320}
-        proudlyDisplayPoweredByUppy={false}
         hideProgressDetails={false}
         note="CSV, TSV, text or .xlsx export of the lab report, up to 5 MiB"
       />

@@ -5,9 +5,7 @@
 import { useEffect, useState } from 'react';
 import Uppy from '@uppy/core';
 import XHRUpload from '@uppy/xhr-upload';
-import Dashboard from '@uppy/react/dashboard';
-import '@uppy/core/css/style.min.css';
-import '@uppy/dashboard/css/style.min.css';
+import { Uploader } from '~/components/ui/Uploader';
 import type { OutboxPhoto } from '~/lib/offline/outbox';
 import { COLLECT_PHOTOS_EVENT, PHOTOS_KEPT_EVENT } from '../offline/offline-events';
 import { formatCount } from '~/lib/words/words';
@@ -65,11 +63,10 @@ export default function PhotoUploader({ fallbackInputId, maxFileBytes }: Props) 
 
   return (
     <div data-testid="photo-uploader">
-      <Dashboard
+      <Uploader
         uppy={uppy}
         height={300}
         width="100%"
-        proudlyDisplayPoweredByUppy={false}
         showNativePhotoCameraButton
         nativeCameraFacingMode="environment"
         note="Photos only, up to 10 MB each."
