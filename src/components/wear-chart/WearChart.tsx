@@ -328,7 +328,7 @@ function Legend({ data }: { data: TrendResponse }) {
       )}
       {(['steady', 'watch', 'act'] as const).map((l) => (
         <li key={l} className="flex items-center gap-1">
-          <svg width="12" height="12" viewBox="0 0 20 20" aria-hidden="true" fill={LEVEL_COLOURS[l]}>
+          <svg width="16" height="16" viewBox="0 0 20 20" aria-hidden="true" fill={LEVEL_COLOURS[l]}>
             {l === 'steady' && <circle cx="10" cy="10" r="7" />}
             {l === 'watch' && <path d="M10 1.5 18.5 10 10 18.5 1.5 10Z" />}
             {l === 'act' && <path d="M6.3 1.5h7.4l4.8 4.8v7.4l-4.8 4.8H6.3l-4.8-4.8V6.3Z" />}
