@@ -935,7 +935,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     for (const plan of measurands) {
       const cell = cells[plan.index] ?? '';
       if (plan.fast) {
-        // Plain numbers, "<1"/">1000" and a bare "ND" are read here without a regex, once per distinct text; anything
+        // Plain numbers, "<1"/">1000" and a bare "ND" are read here without a regex, one shared reading per value; anything
         // else, or a value out of bounds (for its message), goes through the full reader below.
         const reading = readings.get(cell);
         if (reading !== undefined && reading.value <= plan.bounds.max) {
