@@ -252,7 +252,10 @@ const SET_READING: Readonly<Record<MeasurandCode, ReadingSetter>> = {
   },
 };
 
-/** Distinct values kept per file and qualifier; past this a file of all-different figures just allocates (common practice, no published source). */
+/**
+ * Distinct values kept per file and qualifier; past this a file of all-different figures just allocates (common
+ * practice, no published source).
+ */
 const MAX_PLAIN_READINGS = 65_536;
 
 /**
@@ -935,8 +938,8 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     for (const plan of measurands) {
       const cell = cells[plan.index] ?? '';
       if (plan.fast) {
-        // Plain numbers, "<1"/">1000" and a bare "ND" are read here without a regex, one shared reading per value; anything
-        // else, or a value out of bounds (for its message), goes through the full reader below.
+        // Plain numbers, "<1"/">1000" and a bare "ND" are read here without a regex, one shared reading per value;
+        // anything else, or a value out of bounds (for its message), goes through the full reader below.
         const reading = readings.get(cell);
         if (reading !== undefined && reading.value <= plan.bounds.max) {
           plan.set(row.readings, reading);
