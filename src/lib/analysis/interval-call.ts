@@ -373,10 +373,11 @@ export function replayHistory(input: {
       analysis,
       previous: previous.slice(-HISTORY_TAIL),
     });
-    const acted = (Object.entries(analysis.readingLevels) as [MeasurandCode, Level][])
-      .filter(([, l]) => l === 'act')
-      .map(([c]) => c);
-    if (acted.length > 0) outOfBaseline.set(sample.id, new Set(acted));
+    let acted: Set<MeasurandCode> | undefined;
+    for (const code in analysis.readingLevels) {
+      if (analysis.readingLevels[code as MeasurandCode] === 'act') (acted ??= new Set()).add(code as MeasurandCode);
+    }
+    if (acted) outOfBaseline.set(sample.id, acted);
     previous.push({
       sampleId: sample.id,
       call: call.call,

@@ -4,7 +4,7 @@
  */
 import { formatFigure } from './figures';
 import { computeBaselineBand, computeTrendFit, type BaselineBand } from './baseline';
-import { getMeasurand, type MeasurandCode } from './measurands';
+import { MEASURAND_CODES, getMeasurand, type MeasurandCode } from './measurands';
 import {
   ADDITIVE_MISMATCH,
   BASELINE_BASIS,
@@ -20,7 +20,6 @@ import {
   FUEL_DILUTION,
   VISCOSITY_CHANGE,
   LAB_SCATTER,
-  isAdditiveSensitive,
   labScatterAt,
 } from './rule-definitions';
 import { probit } from 'simple-statistics';
@@ -116,9 +115,13 @@ export function isSameProduct(a: SamplePoint, b: SamplePoint): boolean {
   return !pa || !pb || pa === pb;
 }
 
+// Looked up for every measurand of every sample in a replay: sets, built once.
+const PPM_BASIS: ReadonlySet<string> = new Set(BASELINE_BASIS.ppm);
+const ADDITIVE_SENSITIVE: ReadonlySet<string> = new Set(BASELINE_BASIS.additiveSensitive);
+
 /** The basis a measurand is judged on for this sample: a rate when the oil's distance is known. */
 export function findJudgeBasis(code: MeasurandCode, sample: SamplePoint): JudgeBasis {
-  if ((BASELINE_BASIS.ppm as readonly string[]).includes(code)) return 'ppm';
+  if (PPM_BASIS.has(code)) return 'ppm';
   return Number.isFinite(sample.distanceOnOil) && sample.distanceOnOil > 0 ? 'rate' : 'ppm';
 }
 
@@ -153,39 +156,56 @@ export function readJudgedValue(
 }
 
 // Earlier samples' readings in a judged basis, computed once per sample: a replay reads each of them again for
-// every later sample's bands and trends. Keyed by sample, then measurand and basis (the machine never changes
-// within a replay; a different machine object starts a new entry).
-const JUDGED_OF = new WeakMap<SamplePoint, { machine: MachineProfile; values: Map<string, number | undefined> }>();
+// every later sample's bands and trends. Keyed by sample, then basis and measurand (the machine never changes
+// within a replay; a different machine object starts a new entry). Plain per-basis maps, so a look-up builds no key.
+interface JudgedValues {
+  machine: MachineProfile;
+  rate: Map<MeasurandCode, number | undefined>;
+  ppm: Map<MeasurandCode, number | undefined>;
+}
+const JUDGED_OF = new WeakMap<SamplePoint, JudgedValues>();
+function judgedValuesOf(s: SamplePoint, machine: MachineProfile): JudgedValues {
+  let entry = JUDGED_OF.get(s);
+  if (!entry || entry.machine !== machine) {
+    entry = { machine, rate: new Map(), ppm: new Map() };
+    JUDGED_OF.set(s, entry);
+  }
+  return entry;
+}
+function readJudgedFrom(
+  entry: JudgedValues,
+  s: SamplePoint,
+  code: MeasurandCode,
+  basis: JudgeBasis,
+): number | undefined {
+  const values = basis === 'rate' ? entry.rate : entry.ppm;
+  const known = values.get(code);
+  if (known !== undefined || values.has(code)) return known;
+  const v = readJudgedValue(s, code, basis, entry.machine, false);
+  values.set(code, v);
+  return v;
+}
 function readEarlierValue(
   s: SamplePoint,
   code: MeasurandCode,
   basis: JudgeBasis,
   machine: MachineProfile,
 ): number | undefined {
-  let entry = JUDGED_OF.get(s);
-  if (!entry || entry.machine !== machine) {
-    entry = { machine, values: new Map() };
-    JUDGED_OF.set(s, entry);
-  }
-  const key = basis === 'rate' ? `r${code}` : code;
-  if (entry.values.has(key)) return entry.values.get(key);
-  const v = readJudgedValue(s, code, basis, machine, false);
-  entry.values.set(key, v);
-  return v;
-}
-
-/** True when an earlier sample may serve as a baseline for `code` of the sample being judged. */
-function isInControl(ctx: Pick<RuleContext, 'outOfBaseline' | 'sample'>, s: SamplePoint, code: MeasurandCode): boolean {
-  if (s.baselineExcluded) return false;
-  if (ctx.outOfBaseline.get(s.id)?.has(code)) return false;
-  return !isAdditiveSensitive(code) || isSameProduct(s, ctx.sample);
+  return readJudgedFrom(judgedValuesOf(s, machine), s, code, basis);
 }
 
 /** True when an earlier sample may join a trend for `code` (not taken out by a mechanic; same oil for additives). */
 function isTrendPoint(ctx: Pick<RuleContext, 'sample'>, s: SamplePoint, code: MeasurandCode): boolean {
   if (s.baselineExcluded) return false;
-  return !(isAdditiveSensitive(code) || getMeasurand(code).group === 'condition') || isSameProduct(s, ctx.sample);
+  return !(ADDITIVE_SENSITIVE.has(code) || getMeasurand(code).group === 'condition') || isSameProduct(s, ctx.sample);
 }
+
+// The measurands that get a baseline band (the groups the baseline rule watches), decided once per code.
+const BANDED_CODES: ReadonlySet<string> = new Set(
+  MEASURAND_CODES.filter((code) =>
+    (BASELINE_JUMP.params.groups as readonly string[]).includes(getMeasurand(code).group),
+  ),
+);
 
 /**
  * The baseline band of every wear metal and contaminant the sample carries, each from the previous in-control
@@ -196,27 +216,54 @@ export function buildBaselineBands(
 ): Partial<Record<MeasurandCode, MeasurandBand>> {
   const p = BASELINE_JUMP.params;
   const per = findRateBasis(ctx.machine.distanceUnit);
+  const settings = { minSamples: p.minSamples, window: p.window, watchAlpha: p.watchAlpha, actAlpha: p.actAlpha };
   const bands: Partial<Record<MeasurandCode, MeasurandBand>> = {};
+  // Whether each earlier sample may serve as a baseline (not taken out by a mechanic, not act on the measurand,
+  // the same oil for additive-sensitive ones): looked up once per sample rather than once per measurand.
+  const n = ctx.history.length;
+  const entries: JudgedValues[] = new Array(n);
+  const usable: boolean[] = new Array(n);
+  const sameProduct: boolean[] = new Array(n);
+  const actedOn: (ReadonlySet<MeasurandCode> | undefined)[] = new Array(n);
+  for (let i = 0; i < n; i++) {
+    const s = ctx.history[i]!;
+    entries[i] = judgedValuesOf(s, ctx.machine);
+    usable[i] = !s.baselineExcluded;
+    sameProduct[i] = isSameProduct(s, ctx.sample);
+    actedOn[i] = ctx.outOfBaseline.size > 0 ? ctx.outOfBaseline.get(s.id) : undefined;
+  }
   for (const code of Object.keys(ctx.sample.readings) as MeasurandCode[]) {
-    if (!(p.groups as readonly string[]).includes(getMeasurand(code).group)) continue;
+    if (!BANDED_CODES.has(code)) continue;
     const basis = findJudgeBasis(code, ctx.sample);
+    const additive = ADDITIVE_SENSITIVE.has(code);
     const values: number[] = [];
     const ids: string[] = [];
     const distances: number[] = [];
-    for (let i = ctx.history.length - 1; i >= 0 && values.length < p.window; i--) {
+    // Newest first while collecting (push, not unshift), turned oldest first once at the end.
+    for (let i = n - 1; i >= 0 && values.length < p.window; i--) {
       const s = ctx.history[i]!;
-      if (!isInControl(ctx, s, code)) continue;
-      const v = readEarlierValue(s, code, basis, ctx.machine);
+      if (!usable[i] || actedOn[i]?.has(code) || (additive && !sameProduct[i])) continue;
+      const v = readJudgedFrom(entries[i]!, s, code, basis);
       if (v === undefined || !Number.isFinite(v)) continue;
-      values.unshift(v);
-      ids.unshift(s.id);
+      values.push(v);
+      ids.push(s.id);
       distances.push(s.distanceOnOil);
     }
-    const settings = { minSamples: p.minSamples, window: p.window, watchAlpha: p.watchAlpha, actAlpha: p.actAlpha };
+    values.reverse();
+    ids.reverse();
     const toReported = basisToReported(ctx.sample, basis, ctx.machine);
-    const band = computeBaselineBand(values, { ...settings, floorAt: rateFloor(basis, distances, per) });
+    // Settings and band written out as literals: object spread here (a 14-field band, 18 measurands, every
+    // sample of a replay) took most of the band time and much of the garbage.
+    const band = computeBaselineBand(values, {
+      minSamples: settings.minSamples,
+      window: settings.window,
+      watchAlpha: settings.watchAlpha,
+      actAlpha: settings.actAlpha,
+      floorAt: rateFloor(basis, distances, per),
+    });
     const crew = band.status === 'building' ? buildCrewBand(ctx, code, basis, settings, toReported) : undefined;
-    bands[code] = crew ?? { ...band, basis, sampleIds: ids, toReported, source: 'own' };
+    // The band is this loop's own fresh object: adding the fields keeps their order and copies nothing.
+    bands[code] = crew ?? Object.assign(band, { basis, sampleIds: ids, toReported, source: 'own' as const });
   }
   return bands;
 }
@@ -253,7 +300,7 @@ function buildCrewBand(
   for (let i = reference.samples.length - 1; i >= 0 && values.length < settings.window; i--) {
     const s = reference.samples[i]!;
     if (s.baselineExcluded || s.outOfBaseline?.has(code)) continue;
-    if (isAdditiveSensitive(code) && !isSameProduct(s, ctx.sample)) continue;
+    if (ADDITIVE_SENSITIVE.has(code) && !isSameProduct(s, ctx.sample)) continue;
     // Never a sample drawn after this one: a replay judges each sample as it was when its results arrived.
     if (Number.isFinite(drawn) && !(Date.parse(s.takenAt) <= drawn)) continue;
     if (Number.isFinite(age) && age > 0 && !(Math.abs(s.distanceOnOil - age) <= q.oilAgeFraction * age)) continue;
@@ -361,8 +408,10 @@ export function findClimbingTrends(ctx: RuleContext): Finding[] {
       const s = ctx.history[i]!;
       if (!isTrendPoint(ctx, s, code) || !Number.isFinite(s.odometer)) continue;
       const v = readEarlierValue(s, code, basis, ctx.machine);
-      if (v !== undefined && Number.isFinite(v)) points.unshift([s.odometer, v]);
+      if (v !== undefined && Number.isFinite(v)) points.push([s.odometer, v]);
     }
+    // Collected newest first (push, not unshift); the fit and the rules read them oldest first.
+    points.reverse();
     points.push([ctx.sample.odometer, current]);
     if (points.length < p.minPoints) continue;
     // After a spike the next reading falls back: the line may still slope up, but nothing is climbing now.
@@ -477,7 +526,7 @@ export function findOwnLevel(
   const values: number[] = [];
   for (const s of ctx.history) {
     if (values.length >= firstSamples) break;
-    if (s.baselineExcluded || !isSameProduct(s, ctx.sample) || !normaliseProduct(ctx.sample.oilProduct)) continue;
+    if (s.baselineExcluded || !isSameProduct(s, ctx.sample) || !productOf(ctx.sample)) continue;
     const v = readBaselineValue(s, code);
     if (v !== undefined) values.push(v);
   }
@@ -770,11 +819,11 @@ export function findDirtEntry(ctx: RuleContext): Finding[] {
 /** Rule additive-mismatch: additive elements that moved away from the oil's own levels. */
 export function findAdditiveMismatch(ctx: RuleContext): Finding[] {
   const p = ADDITIVE_MISMATCH.params;
-  const product = normaliseProduct(ctx.sample.oilProduct);
+  const product = productOf(ctx.sample);
   const reference = ctx.sample.newOil;
   if (!product && !reference) return [];
   const earlier = product
-    ? ctx.history.slice(-p.lookBack).filter((s) => !s.baselineExcluded && normaliseProduct(s.oilProduct) === product)
+    ? ctx.history.slice(-p.lookBack).filter((s) => !s.baselineExcluded && productOf(s) === product)
     : [];
   const moved: MeasurandCode[] = [];
   const numbers: Record<string, number> = { earlierSamples: earlier.length };

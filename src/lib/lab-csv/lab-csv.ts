@@ -252,32 +252,40 @@ const SET_READING: Readonly<Record<MeasurandCode, ReadingSetter>> = {
   },
 };
 
-/** Distinct cell texts kept per file; past this a file of all-different figures just allocates (common practice, no published source). */
+/**
+ * Distinct values kept per file and qualifier; past this a file of all-different figures just allocates (common
+ * practice, no published source).
+ */
 const MAX_PLAIN_READINGS = 65_536;
 
 /**
- * The readings of fast-path cells by their text, one frozen object per distinct text in a file. A lab's figures
- * repeat ("<1" in every clean column, whole ppm, one decimal), so a 10,000-row file reads a few thousand texts
- * instead of 270,000 cells and keeps as many objects; frozen, so no reader of the result can change one row's
+ * The readings of fast-path cells, one frozen object per distinct value (and qualifier) in a file. A lab's figures
+ * repeat ("<1" in every clean column, whole ppm, one decimal), so a 10,000-row file keeps a few thousand objects
+ * instead of 270,000; frozen, so no reader of the result can change one row's
  * reading through another's. `get` answers undefined for a text that is not plain (see plain-cells.ts).
  */
 class PlainReadings {
-  private readonly byText = new Map<string, LabReading | null>();
+  // Keyed by the value read, not by the cell's text: a number hashes without reading a fresh string's characters,
+  // and "12", "12.0" and "12,0" share one object. One map per qualifier.
+  private readonly plain = new Map<number, LabReading>();
+  private readonly below = new Map<number, LabReading>();
+  private readonly above = new Map<number, LabReading>();
 
   constructor(private readonly mark: DecimalMark) {}
 
   get(cell: string): LabReading | undefined {
-    const known = this.byText.get(cell);
-    if (known !== undefined) return known ?? undefined;
     const first = cell.charCodeAt(0);
     const notDetected = isBareNotDetected(cell);
     const qualifier: Qualifier | undefined = first === 60 || notDetected ? '<' : first === 62 ? '>' : undefined;
     const value = notDetected ? 0 : parsePlainNumber(cell, this.mark, qualifier === undefined ? 0 : 1);
-    const reading = Number.isNaN(value)
-      ? null
-      : Object.freeze(qualifier === undefined ? { value } : { value, qualifier });
-    if (this.byText.size < MAX_PLAIN_READINGS) this.byText.set(cell, reading);
-    return reading ?? undefined;
+    if (Number.isNaN(value)) return undefined;
+    const byValue = qualifier === undefined ? this.plain : qualifier === '<' ? this.below : this.above;
+    let reading = byValue.get(value);
+    if (reading === undefined) {
+      reading = Object.freeze(qualifier === undefined ? { value } : { value, qualifier });
+      if (byValue.size < MAX_PLAIN_READINGS) byValue.set(value, reading);
+    }
+    return reading;
   }
 }
 
@@ -930,8 +938,8 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     for (const plan of measurands) {
       const cell = cells[plan.index] ?? '';
       if (plan.fast) {
-        // Plain numbers, "<1"/">1000" and a bare "ND" are read here without a regex, once per distinct text; anything
-        // else, or a value out of bounds (for its message), goes through the full reader below.
+        // Plain numbers, "<1"/">1000" and a bare "ND" are read here without a regex, one shared reading per value;
+        // anything else, or a value out of bounds (for its message), goes through the full reader below.
         const reading = readings.get(cell);
         if (reading !== undefined && reading.value <= plan.bounds.max) {
           plan.set(row.readings, reading);

@@ -415,111 +415,28 @@ export async function confirmLabImport(
     db.isTransaction ? work(db as Transaction<Database>) : db.transaction().execute(work);
   try {
     return await inTransaction(async (trx) => {
-      if (isUuid(input.labFileId)) {
-        // One confirm at a time per file: a second one waits here and then sees the first one's import.
-        await repo.lockLabFile(trx, input.crewId, input.labFileId);
-      }
-      const previewed = await previewLabImport(trx, input);
-      if (!previewed.ok) return previewed;
-      const preview = previewed.value;
-      if (preview.file.importId)
-        return refuse(409, 'already_imported', 'This file was already imported; nothing new was written.');
-      if (!preview.canConfirm) return refuseUnready(preview);
+      // The preview, its rows and the reading columns live only inside writeConfirmedRows: by the time the
+      // machines are judged again (the longest step) they are garbage, so a big file's peak memory holds one of
+      // them, not both.
+      const written = await writeConfirmedRows(trx, input, hooks);
+      if (!written.ok) return written;
+      const { summary, changed, known, fileName } = written.value;
 
-      const writes = preview.rows.filter((r) => r.decision !== null && r.decision.action !== 'skip');
-      const readingsCount = writes.reduce((n, r) => n + Object.keys(r.readings).length, 0);
-      const imported = await repo.insertLabImport(trx, {
-        crewId: input.crewId,
-        labFileId: preview.file.id,
-        confirmedBy: input.userId,
-        samplesWritten: writes.length,
-        readingsWritten: readingsCount,
-      });
-
-      const sampleOf = new Map<number, { sampleId: string; machineId: string }>();
-      let created = 0;
-      const odometers = new Map<string, number>();
-      for (const row of writes) {
-        if (row.match.kind !== 'unknown') {
-          sampleOf.set(row.line, { sampleId: row.match.sampleId, machineId: row.match.machineId });
-          continue;
-        }
-        if (row.decision?.action !== 'create') continue;
-        const machineId = row.decision.machineId;
-        const odometer = odometers.get(machineId) ?? (await repo.findLatestOdometer(trx, machineId));
-        odometers.set(machineId, odometer);
-        const sample = await repo.insertSampleForRow(trx, {
-          crewId: input.crewId,
-          machineId,
-          bottleCode: row.bottle,
-          bottleCodeNorm: row.bottleNorm,
-          drawnOn: row.sampled ?? row.reported ?? new Date().toISOString().slice(0, 10),
-          odometer,
-          createdBy: input.userId,
-        });
-        sampleOf.set(row.line, { sampleId: sample.id, machineId });
-        created += 1;
-      }
-
-      const replacedIds = writes
-        .filter((r) => r.decision?.action === 'replace')
-        .map((r) => sampleOf.get(r.line)?.sampleId)
-        .filter((id): id is string => id !== undefined);
-      await repo.moveReadingsToHistory(trx, replacedIds, imported.id);
-
-      // Column arrays straight from the rows: no object per reading, for files of many thousand rows.
-      const columns: repo.ReadingColumns = { sampleIds: [], measurands: [], values: [], qualifiers: [] };
-      const known = new Map<string, SamplePoint['readings']>();
-      for (const row of writes) {
-        const target = sampleOf.get(row.line);
-        if (!target) continue;
-        known.set(target.sampleId, row.readings);
-        for (const measurand in row.readings) {
-          const reading = row.readings[measurand as MeasurandCode];
-          if (!reading) continue;
-          columns.sampleIds.push(target.sampleId);
-          columns.measurands.push(measurand);
-          columns.values.push(reading.value);
-          columns.qualifiers.push(reading.qualifier ?? null);
-        }
-      }
-      await repo.insertReadings(trx, columns, imported.id);
-      // Before any findings: a new-oil reference in the same file is what this file's samples are judged against.
-      const newOilReferencesWritten = await writeNewOilResults(
-        trx,
-        input.crewId,
-        preview.newOilRows,
-        imported.id,
-        new Date().toISOString().slice(0, 10),
-      );
-      await hooks.afterReadings?.(trx);
-
-      const sampleIds = [...new Set([...sampleOf.values()].map((s) => s.sampleId))];
       await recordSampleStates(
         trx,
-        sampleIds,
+        [...new Set(changed.map((s) => s.sampleId))],
         'results_in',
         input.userId,
-        `Lab results imported from "${preview.file.fileName}".`,
+        `Lab results imported from "${fileName}".`,
       );
 
       // Findings of every changed sample's machine, then of the young same-engine peers (one shared path with reviews).
-      const findingsWritten = await recomputeChangedSamples(trx, sampleOf.values(), known);
+      const findingsWritten = await recomputeChangedSamples(trx, changed, known);
       // Alert mails are queued in this transaction, so a rolled-back import sends nothing and a retry nothing twice.
-      await queueImportAlerts(trx, imported.id);
+      await queueImportAlerts(trx, summary.importId);
 
-      return {
-        ok: true as const,
-        value: {
-          importId: imported.id,
-          samplesWritten: writes.length,
-          readingsWritten: readingsCount,
-          samplesCreated: created,
-          samplesReplaced: replacedIds.length,
-          findingsWritten,
-          newOilReferencesWritten,
-        },
-      };
+      const { newOilReferencesWritten, ...counts } = summary;
+      return { ok: true as const, value: { ...counts, findingsWritten, newOilReferencesWritten } };
     });
   } catch (error) {
     // The unique lab_file_id of lab_imports: a confirm that raced another one for the same file.
@@ -528,6 +445,128 @@ export async function confirmLabImport(
     }
     throw error;
   }
+}
+
+/**
+ * The writing half of a confirm, in the caller's transaction: the preview again under the file's row lock, the
+ * import record, samples for unknown bottles, earlier results to history, the readings and new-oil results.
+ * Returns only what the judging half needs.
+ */
+async function writeConfirmedRows(
+  trx: Transaction<Database>,
+  input: { crewId: string; userId: string; labFileId: string; decisions: Record<string, RowDecision> },
+  hooks: ConfirmHooks,
+): Promise<
+  Result<{
+    summary: Omit<ImportSummary, 'findingsWritten'>;
+    changed: { sampleId: string; machineId: string }[];
+    known: Map<string, SamplePoint['readings']>;
+    fileName: string;
+  }>
+> {
+  if (isUuid(input.labFileId)) {
+    // One confirm at a time per file: a second one waits here and then sees the first one's import.
+    await repo.lockLabFile(trx, input.crewId, input.labFileId);
+  }
+  const previewed = await previewLabImport(trx, input);
+  if (!previewed.ok) return previewed;
+  const preview = previewed.value;
+  if (preview.file.importId)
+    return refuse(409, 'already_imported', 'This file was already imported; nothing new was written.');
+  if (!preview.canConfirm) return refuseUnready(preview);
+
+  const writes = preview.rows.filter((r) => r.decision !== null && r.decision.action !== 'skip');
+  const readingsCount = writes.reduce((n, r) => n + Object.keys(r.readings).length, 0);
+  const imported = await repo.insertLabImport(trx, {
+    crewId: input.crewId,
+    labFileId: preview.file.id,
+    confirmedBy: input.userId,
+    samplesWritten: writes.length,
+    readingsWritten: readingsCount,
+  });
+
+  const sampleOf = new Map<number, { sampleId: string; machineId: string }>();
+  let created = 0;
+  const odometers = new Map<string, number>();
+  for (const row of writes) {
+    if (row.match.kind !== 'unknown') {
+      sampleOf.set(row.line, { sampleId: row.match.sampleId, machineId: row.match.machineId });
+      continue;
+    }
+    if (row.decision?.action !== 'create') continue;
+    const machineId = row.decision.machineId;
+    const odometer = odometers.get(machineId) ?? (await repo.findLatestOdometer(trx, machineId));
+    odometers.set(machineId, odometer);
+    const sample = await repo.insertSampleForRow(trx, {
+      crewId: input.crewId,
+      machineId,
+      bottleCode: row.bottle,
+      bottleCodeNorm: row.bottleNorm,
+      drawnOn: row.sampled ?? row.reported ?? new Date().toISOString().slice(0, 10),
+      odometer,
+      createdBy: input.userId,
+    });
+    sampleOf.set(row.line, { sampleId: sample.id, machineId });
+    created += 1;
+  }
+
+  const replacedIds = writes
+    .filter((r) => r.decision?.action === 'replace')
+    .map((r) => sampleOf.get(r.line)?.sampleId)
+    .filter((id): id is string => id !== undefined);
+  await repo.moveReadingsToHistory(trx, replacedIds, imported.id);
+
+  const known = new Map<string, SamplePoint['readings']>();
+  await repo.insertReadings(trx, readingColumns(writes, sampleOf, known), imported.id);
+  // Before any findings: a new-oil reference in the same file is what this file's samples are judged against.
+  const newOilReferencesWritten = await writeNewOilResults(
+    trx,
+    input.crewId,
+    preview.newOilRows,
+    imported.id,
+    new Date().toISOString().slice(0, 10),
+  );
+  await hooks.afterReadings?.(trx);
+
+  return succeed({
+    summary: {
+      importId: imported.id,
+      samplesWritten: writes.length,
+      readingsWritten: readingsCount,
+      samplesCreated: created,
+      samplesReplaced: replacedIds.length,
+      newOilReferencesWritten,
+    },
+    changed: [...sampleOf.values()],
+    known,
+    fileName: preview.file.fileName,
+  });
+}
+
+/**
+ * Column arrays straight from the rows (no object per reading, for files of many thousand rows), noting each
+ * written sample's readings in `known` for the judging that follows.
+ */
+function readingColumns(
+  writes: readonly PreviewRow[],
+  sampleOf: ReadonlyMap<number, { sampleId: string }>,
+  known: Map<string, SamplePoint['readings']>,
+): repo.ReadingColumns {
+  const columns: repo.ReadingColumns = { sampleIds: [], measurands: [], values: [], qualifiers: [] };
+  for (const row of writes) {
+    const target = sampleOf.get(row.line);
+    if (!target) continue;
+    known.set(target.sampleId, row.readings);
+    for (const measurand in row.readings) {
+      const reading = row.readings[measurand as MeasurandCode];
+      if (!reading) continue;
+      columns.sampleIds.push(target.sampleId);
+      columns.measurands.push(measurand);
+      columns.values.push(reading.value);
+      columns.qualifiers.push(reading.qualifier ?? null);
+    }
+  }
+  return columns;
 }
 
 function refuseUnready(preview: ImportPreview): Refusal {
