@@ -18,8 +18,9 @@ export function wireDeviceZone(root: ParentNode = document): void {
   for (const button of root.querySelectorAll<HTMLButtonElement>('button[data-use-device-zone]')) {
     const select = document.getElementById(button.dataset.useDeviceZone ?? '');
     if (!(select instanceof HTMLSelectElement)) continue;
-    const offered = [...select.options].some((o) => o.value === zone);
-    button.hidden = !offered;
+    // The server's list may spell the zone otherwise; offer the device's spelling (the server checks it on save).
+    if (![...select.options].some((o) => o.value === zone)) select.add(new Option(zone.replaceAll('_', ' '), zone), 1);
+    button.hidden = false;
     button.textContent = `Use this device's zone (${zone})`;
     button.addEventListener('click', () => {
       select.value = zone;

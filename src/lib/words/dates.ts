@@ -42,10 +42,15 @@ export function isTimeZone(name: unknown): name is string {
   }
 }
 
-/** The zone names a user may choose from, UTC first, then the runtime's IANA list. */
-export function timeZoneChoices(): string[] {
-  const names = Intl.supportedValuesOf('timeZone');
-  return [DEFAULT_TIME_ZONE, ...names.filter((n) => n !== DEFAULT_TIME_ZONE)];
+/**
+ * The zone names a user may choose from: UTC first, then the runtime's IANA list, plus `current` when the list
+ * spells it otherwise (ICU lists some zones under their older names, "Asia/Calcutta" for "Asia/Kolkata", while a
+ * browser may report the newer one).
+ */
+export function timeZoneChoices(current?: string | null): string[] {
+  const names = Intl.supportedValuesOf('timeZone').filter((n) => n !== DEFAULT_TIME_ZONE);
+  const extra = current && current !== DEFAULT_TIME_ZONE && !names.includes(current) && isTimeZone(current);
+  return [DEFAULT_TIME_ZONE, ...(extra ? [current] : []), ...names];
 }
 
 /** A calendar day ("2026-12-02", a DATE without time) as "2 Dec 2026"; never shifted by a zone. */

@@ -59,6 +59,16 @@ describe('isTimeZone', () => {
     [42, false],
     [null, false],
   ])('%s → %s', (name, ok) => expect(isTimeZone(name)).toBe(ok));
+  test.each([
+    ['Asia/Kolkata', 'UTC'],
+    ['Europe/London', 'UTC'],
+    [null, 'UTC'],
+  ])('the list holds the current zone %s once, after %s', (current, first) => {
+    const choices = timeZoneChoices(current);
+    expect(choices[0]).toBe(first);
+    if (current) expect(choices.filter((z) => z === current)).toEqual([current]);
+    expect(new Set(choices).size).toBe(choices.length);
+  });
   test('every choice offered is accepted, UTC first', () => {
     const choices = timeZoneChoices();
     expect(choices[0]).toBe('UTC');
