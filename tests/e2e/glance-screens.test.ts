@@ -170,7 +170,7 @@ describe.each(SIZES)('a new crew at %s size', (name, viewport) => {
     await page.getByLabel('Name').fill(`First ${name}`);
     await page.getByLabel('Oil capacity (L)').fill('1.2');
     await page.getByLabel('Grade 1').fill('10W-40');
-    await page.getByLabel('Longest change interval (meter unit)').fill('3000');
+    await page.getByLabel('Longest change interval (in the unit of the meter chosen above)').fill('3000');
     await Promise.all([
       page.waitForURL(/\/machines\/[0-9a-f-]{36}\?added=1$/),
       page.getByRole('button', { name: 'Add machine' }).click(),

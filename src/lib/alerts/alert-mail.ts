@@ -7,7 +7,8 @@
  */
 import type { AlertLine, Level, Meter, NotificationKind } from '../db/database';
 import { byLevelWorstFirst, LEVEL_DISPLAY } from '../levels';
-import { escapeHtml, renderMailLayout } from '../mail/templates';
+import { WRAPPING_LINK_STYLE, escapeHtml, renderMailLayout } from '../mail/templates';
+import { formatDay } from '../words/dates';
 import { formatMeter } from '../units/units';
 import { formatCount } from '../words/words';
 
@@ -106,7 +107,7 @@ export function composeSampleDueAlert(input: {
 }): AlertContent {
   const why: string[] = [];
   if (input.reasons.includes('date') && input.nextSampleOn)
-    why.push(`the next sample was due on ${input.nextSampleOn}`);
+    why.push(`the next sample was due on ${formatDay(input.nextSampleOn)}`);
   if (input.reasons.includes('odometer') && input.nextSampleOdometer !== null) {
     const est =
       input.estimatedOdometer === null
@@ -142,7 +143,7 @@ export function composeShippedOverdueAlert(input: {
     kind: 'shipped_overdue',
     subject: fitSubject(`No results yet: bottle ${input.bottleCode} of ${input.machineName} (${input.crewName})`),
     title: `Bottle ${input.bottleCode}: no results after ${formatCount(input.days, 'day')}`,
-    intro: `The bottle from ${input.machineName} in ${input.crewName} was shipped on ${input.shippedOn} and no lab results have been imported since.`,
+    intro: `The bottle from ${input.machineName} in ${input.crewName} was shipped on ${formatDay(input.shippedOn)} and no lab results have been imported since.`,
     lines: [
       {
         text: 'Ask the lab whether it arrived, or import their results if they came by another route. A note on the sample keeps the crew in the picture.',
@@ -226,7 +227,7 @@ export function renderDigestMail(
   paragraphs.push(...footerParagraphs(links));
   const n = input.entries.length;
   const { text, html } = renderMailLayout({
-    title: `Your Sumpwise digest for ${input.day}`,
+    title: `Your Sumpwise digest for ${formatDay(input.day)}`,
     intro: `${n} ${n === 1 ? 'thing' : 'things'} from ${crews.join(', ')} since your last digest.`,
     paragraphs,
     action: { label: 'Open the crew home', url: input.homeUrl },
@@ -267,10 +268,7 @@ function linkifyParagraphs(html: string, urls: readonly string[]): string {
   // One pass, longest address first, so an address that starts another one is never linked inside it.
   const pattern = new RegExp(escaped.map((u) => u.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')).join('|'), 'g');
   return html.replace(/(<p\b[^>]*>)([^<]*)(<\/p>)/g, (_m, open: string, body: string, close: string) => {
-    const out = body.replace(
-      pattern,
-      (u) => `<a href="${u}" style="color:#1f4560;text-decoration:underline;">${u}</a>`,
-    );
+    const out = body.replace(pattern, (u) => `<a href="${u}" style="${WRAPPING_LINK_STYLE}">${u}</a>`);
     return `${open}${out.replace(/:\n/g, ': ')}${close}`;
   });
 }

@@ -24,7 +24,14 @@ export async function findUserById(db: Db, id: string) {
 /** Inserts a user. */
 export async function insertUser(
   db: Db,
-  v: { id: string; email: string; displayName: string; passwordHash: string; verified: boolean },
+  v: {
+    id: string;
+    email: string;
+    displayName: string;
+    passwordHash: string;
+    verified: boolean;
+    timeZone?: string | undefined;
+  },
 ): Promise<void> {
   await db
     .insertInto('users')
@@ -34,7 +41,18 @@ export async function insertUser(
       display_name: v.displayName,
       password_hash: v.passwordHash,
       email_verified_at: v.verified ? new Date() : null,
+      time_zone: v.timeZone ?? null,
     })
+    .execute();
+}
+
+/** Sets the zone a browser reported, only when the user has none yet (a choice made on the account page stays). */
+export async function setTimeZoneIfUnset(db: Db, userId: string, timeZone: string): Promise<void> {
+  await db
+    .updateTable('users')
+    .set({ time_zone: timeZone })
+    .where('id', '=', userId)
+    .where('time_zone', 'is', null)
     .execute();
 }
 
@@ -60,6 +78,7 @@ export async function updateUserSettings(
     distanceUnit: 'mi' | 'km';
     lengthUnit: 'in' | 'mm';
     temperatureUnit: 'F' | 'C';
+    timeZone?: string | undefined;
     displayName?: string | undefined;
   },
 ): Promise<void> {
@@ -69,6 +88,7 @@ export async function updateUserSettings(
       distance_unit: v.distanceUnit,
       length_unit: v.lengthUnit,
       temperature_unit: v.temperatureUnit,
+      ...(v.timeZone ? { time_zone: v.timeZone } : {}),
       ...(v.displayName ? { display_name: v.displayName } : {}),
     })
     .where('id', '=', userId)

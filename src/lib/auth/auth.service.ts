@@ -18,6 +18,7 @@ import {
   markEmailVerified,
   updatePasswordHash,
   updateUserSettings,
+  setTimeZoneIfUnset,
 } from './auth.repository';
 import type { ChangePasswordInput, SignInInput, SignUpInput, UnitsInput } from './auth';
 import { composePasswordResetEmail, composeVerificationEmail } from './emails';
@@ -99,7 +100,14 @@ export async function signUp(
   let outcome: Result<{ crewId: string; verificationToken: string | null }>;
   try {
     outcome = await deps.db.transaction().execute(async (trx) => {
-      await insertUser(trx, { id: userId, email: input.email, displayName, passwordHash, verified: false });
+      await insertUser(trx, {
+        id: userId,
+        email: input.email,
+        displayName,
+        passwordHash,
+        verified: false,
+        timeZone: input.timeZone,
+      });
       const ownCrewId = await insertCrew(trx, `${displayName}’s crew`);
       await insertMember(trx, ownCrewId, userId, 'lead');
       await recordAuditEvent(trx, { kind: 'sign_up', actorUserId: userId, subjectUserId: userId, ip: meta.ip });
@@ -195,6 +203,7 @@ export async function signIn(
   await deps.limits.refund('signInIp', ip);
   if (!meta.knownDevice) await deps.limits.refund('signInAccount', input.email);
   if (meta.previousSessionId) await deps.lucia.invalidateSession(meta.previousSessionId);
+  if (input.timeZone) await setTimeZoneIfUnset(deps.db, user.id, input.timeZone);
   const crews = await findMembershipsForUser(deps.db, user.id);
   const session = await deps.lucia.createSession(user.id, { current_crew_id: crews[0]?.crewId ?? null });
   await recordAuditEvent(deps.db, { kind: 'sign_in', actorUserId: user.id, subjectUserId: user.id, ip: meta.ip });

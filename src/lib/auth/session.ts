@@ -25,6 +25,7 @@ interface DatabaseUserAttributes {
   distance_unit: 'mi' | 'km';
   length_unit: 'in' | 'mm';
   temperature_unit: 'F' | 'C';
+  time_zone: string | null;
 }
 
 interface DatabaseSessionAttributes {
@@ -46,6 +47,7 @@ export function createLucia(pool: pg.Pool, options: { secure: boolean }) {
       distanceUnit: a.distance_unit,
       lengthUnit: a.length_unit,
       temperatureUnit: a.temperature_unit,
+      timeZone: a.time_zone,
     }),
     getSessionAttributes: (a) => ({ currentCrewId: a.current_crew_id }),
   });
@@ -113,6 +115,7 @@ export async function loadSession(
       distanceUnit: user.distanceUnit,
       lengthUnit: user.lengthUnit,
       temperatureUnit: user.temperatureUnit,
+      timeZone: user.timeZone,
     },
     session: { id: session.id, expiresAt: session.expiresAt, fresh: session.fresh },
     crews,

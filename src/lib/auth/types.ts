@@ -12,6 +12,8 @@ export interface SessionUser {
   distanceUnit: 'mi' | 'km';
   lengthUnit: 'in' | 'mm';
   temperatureUnit: 'F' | 'C';
+  /** IANA zone name times are shown in; null (or absent) until set, and screens then show UTC. */
+  timeZone?: string | null;
 }
 
 export interface SessionInfo {

@@ -4,7 +4,7 @@
  */
 import { AUDIT_LABELS, type AuditEvent } from '../audit/audit';
 import type { Role } from '../auth/types';
-import { formatUtcMinute } from '../words/words';
+import { formatMoment } from '../words/dates';
 import { ROLE_HINTS, ROLE_LABELS, ROLES, type CrewMember, type PendingInvitation } from './crews';
 
 export interface CrewPageInput {
@@ -15,6 +15,8 @@ export interface CrewPageInput {
   members: readonly CrewMember[];
   invitations: readonly PendingInvitation[];
   audit: readonly AuditEvent[];
+  /** The viewer's zone; times show in UTC without one. */
+  timeZone?: string | null;
 }
 
 export interface CrewPageView {
@@ -65,10 +67,10 @@ export function buildCrewPageView(input: CrewPageInput): CrewPageView {
     })),
     invitations: input.invitations.map((i) => ({
       id: i.id,
-      text: `${i.email} · ${ROLE_LABELS[i.role]} · until ${formatUtcMinute(i.expiresAt)} UTC`,
+      text: `${i.email} · ${ROLE_LABELS[i.role]} · until ${formatMoment(i.expiresAt, input.timeZone)}`,
     })),
     audit: input.audit.map((e) => ({
-      when: formatUtcMinute(e.at),
+      when: formatMoment(e.at, input.timeZone),
       event: AUDIT_LABELS[e.kind] ?? e.kind,
       who: describeAuditWho(e),
       detail: describeAuditDetail(e.detail),

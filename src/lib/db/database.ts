@@ -24,6 +24,8 @@ export interface UsersTable {
   distance_unit: Generated<'mi' | 'km'>;
   length_unit: Generated<'in' | 'mm'>;
   temperature_unit: Generated<'F' | 'C'>;
+  /** IANA zone name the user reads times in; null until a browser or the account page sets it. */
+  time_zone: string | null;
   created_at: Generated<Date>;
 }
 

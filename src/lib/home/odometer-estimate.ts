@@ -107,3 +107,27 @@ export function findSampleDue(input: DueInput): DueStatus {
 export function countDaysBetween(a: string, b: string): number {
   return dayNumber(b) - dayNumber(a);
 }
+
+/**
+ * How old the last reading may be for its pace to count as recent riding: a season (common practice, no published
+ * source). Past it, a bike laid up for winter would be offered a reading it never reached.
+ */
+export const PREFILL_MAX_STALE_DAYS = 90;
+
+/**
+ * The reading a drain card may offer before the rider looks at the meter: the estimate from recent riding, rounded
+ * to a whole unit, and only when it is past the latest oil change. The reading of an old oil change is never
+ * offered: a drain registered at or below it would be attached to the fill before (or refused), so without a recent
+ * pace to go on the field stays empty and the rider types what the meter says.
+ */
+export function drainCardOdometerPrefill(
+  estimate: OdometerEstimate | null,
+  latestChangeOdometer: number | null,
+  today: string,
+): number | null {
+  if (!estimate || estimate.basis !== 'pace') return null;
+  if (countDaysBetween(estimate.lastDate, today) > PREFILL_MAX_STALE_DAYS) return null;
+  const rounded = Math.round(estimate.odometer);
+  if (latestChangeOdometer !== null && rounded <= latestChangeOdometer) return null;
+  return rounded;
+}

@@ -4,7 +4,8 @@
  */
 import type { LabCsvColumn, LabReadings } from '../lab-csv/lab-csv';
 import { describeSayboltConvention } from '../lab-csv/saybolt';
-import { formatCount, formatUtcMinute } from '../words/words';
+import { formatCount } from '../words/words';
+import { formatDay, formatMoment } from '../words/dates';
 import {
   describeMappingTarget,
   findColumnTarget,
@@ -28,6 +29,8 @@ export interface PreviewViewInput {
   filter: PreviewRowFilter;
   /** The profile name the user typed, when a save was refused. */
   profileName?: string | undefined;
+  /** The viewer's zone; times show in UTC without one. */
+  timeZone?: string | null | undefined;
 }
 
 export interface Choice {
@@ -146,13 +149,13 @@ function sampleCell(r: PreviewRow, imported: boolean): SampleCell {
       : {
           kind: 'link',
           href: `/samples/${r.match.sampleId}`,
-          text: `${r.match.machineName} · drawn ${r.match.drawnOn}`,
+          text: `${r.match.machineName} · drawn ${formatDay(r.match.drawnOn)}`,
         };
   }
   if (r.match.kind === 'unknown') return { kind: 'unknown', text: 'Unknown bottle' };
   return {
     kind: 'text',
-    text: `${r.match.machineName} · drawn ${r.match.drawnOn}`,
+    text: `${r.match.machineName} · drawn ${formatDay(r.match.drawnOn)}`,
     existing: r.match.kind === 'has-results' ? r.match.existing : null,
   };
 }
@@ -219,7 +222,7 @@ export function buildPreviewView(input: PreviewViewInput): PreviewView {
     preview.newOilRows.length > 0 ? `, ${formatCount(preview.newOilRows.length, 'new-oil reference')}` : '';
   return {
     imported,
-    uploadedAt: formatUtcMinute(preview.file.uploadedAt),
+    uploadedAt: formatMoment(preview.file.uploadedAt, input.timeZone),
     writtenLinks: rows
       .flatMap((r) =>
         r.match.kind === 'unknown'
@@ -227,7 +230,7 @@ export function buildPreviewView(input: PreviewViewInput): PreviewView {
           : [
               {
                 href: `/samples/${r.match.sampleId}`,
-                text: `Bottle ${r.bottle} · ${r.match.machineName} · ${r.match.drawnOn}`,
+                text: `Bottle ${r.bottle} · ${r.match.machineName} · ${formatDay(r.match.drawnOn)}`,
               },
             ],
       )

@@ -120,6 +120,31 @@ export async function setMachineArchived(
 }
 
 /** Deletes a machine only when no sample or oil change hangs from it; otherwise asks to archive instead. */
+const DELETE_FORBIDDEN = 'Only the machine’s rider or a crew lead can delete it.';
+
+/** Why a machine with history cannot be deleted (null when it can): the same words the refusal uses. */
+function deletionBlockedBy(counts: { samples: number; oilChanges: number }): string | null {
+  if (counts.samples + counts.oilChanges === 0) return null;
+  return `This machine has ${formatCount(counts.oilChanges, 'oil change')} and ${formatCount(counts.samples, 'sample')}; archive it instead so its history stays.`;
+}
+
+/**
+ * Whether the actor could delete the machine now, and if not why, so the edit page can show a disabled button
+ * with its reason instead of a button that only refuses after the click.
+ */
+export async function describeMachineDeletion(
+  db: Kysely<Database>,
+  actor: Actor,
+  id: string,
+): Promise<Result<{ allowed: boolean; reason: string | null }>> {
+  const found = await getMachine(db, actor, id);
+  if (!found.ok) return found;
+  const reason = !canActorEdit(actor, found.value)
+    ? DELETE_FORBIDDEN
+    : deletionBlockedBy(await countMachineRecords(db, id));
+  return succeed({ allowed: reason === null, reason });
+}
+
 export async function deleteMachine(
   db: Kysely<Database>,
   actor: Actor,
@@ -127,17 +152,10 @@ export async function deleteMachine(
 ): Promise<Result<{ deleted: true }>> {
   const found = await getMachine(db, actor, id);
   if (!found.ok) return found;
-  if (!canActorEdit(actor, found.value))
-    return refuse(403, 'forbidden', 'Only the machine’s rider or a crew lead can delete it.');
+  if (!canActorEdit(actor, found.value)) return refuse(403, 'forbidden', DELETE_FORBIDDEN);
   return db.transaction().execute(async (trx) => {
-    const counts = await countMachineRecords(trx, id);
-    if (counts.samples + counts.oilChanges > 0) {
-      return refuse(
-        409,
-        'has_records',
-        `This machine has ${formatCount(counts.oilChanges, 'oil change')} and ${formatCount(counts.samples, 'sample')}; archive it instead so its history stays.`,
-      );
-    }
+    const reason = deletionBlockedBy(await countMachineRecords(trx, id));
+    if (reason) return refuse(409, 'has_records', reason);
     await deleteMachineRow(trx, actor.membership.crewId, id);
     return succeed({ deleted: true as const });
   });

@@ -31,6 +31,13 @@ const COLOURS = {
 
 const FONT = "'Atkinson Hyperlegible Next', Verdana, Arial, sans-serif";
 
+/**
+ * A link whose text is an address: it may break anywhere, so a 200-character unsubscribe address wraps inside a
+ * phone's 390 px instead of pushing the message sideways (break-all for clients that know only word-break,
+ * overflow-wrap for the rest; common practice, no published source).
+ */
+export const WRAPPING_LINK_STYLE = `color:${COLOURS.action};text-decoration:underline;word-break:break-all;overflow-wrap:anywhere;`;
+
 const DEFAULT_FOOTER =
   'You receive this because of your Sumpwise account. If you did not expect it, you can ignore it.';
 
@@ -75,7 +82,7 @@ function renderText(input: MailLayoutInput, footer: string): string {
 
 function renderHtml(input: MailLayoutInput, footer: string): string {
   const p = (text: string, extra = '') =>
-    `<p style="margin:0 0 16px 0;font-family:${FONT};font-size:16px;line-height:24px;color:${COLOURS.ink};${extra}">${escapeHtml(text)}</p>`;
+    `<p style="margin:0 0 16px 0;font-family:${FONT};font-size:16px;line-height:24px;color:${COLOURS.ink};overflow-wrap:anywhere;${extra}">${escapeHtml(text)}</p>`;
   const action = input.action
     ? `
           <table role="presentation" cellpadding="0" cellspacing="0" border="0" style="margin:8px 0 16px 0;">
@@ -86,7 +93,7 @@ function renderHtml(input: MailLayoutInput, footer: string): string {
             </tr>
           </table>
           ${p('If the button does not work, copy this address into your browser:', `font-size:14px;line-height:20px;color:${COLOURS.inkSoft};margin-bottom:4px;`)}
-          <p style="margin:0 0 16px 0;font-family:${FONT};font-size:14px;line-height:20px;word-break:break-all;"><a href="${escapeHtml(input.action.url)}" style="color:${COLOURS.accent};">${escapeHtml(input.action.url)}</a></p>`
+          <p style="margin:0 0 16px 0;font-family:${FONT};font-size:14px;line-height:20px;word-break:break-all;"><a href="${escapeHtml(input.action.url)}" style="color:${COLOURS.accent};word-break:break-all;overflow-wrap:anywhere;">${escapeHtml(input.action.url)}</a></p>`
     : '';
   return `<!doctype html>
 <html lang="en">

@@ -16,6 +16,8 @@ import { explainIssuedCode, generateIssuedCode, normaliseBottleCode } from './bo
 import { findNewOilBottles } from '../new-oil/new-oil.service';
 import { drainCardSchema, shipSchema, toSample, type Sample } from './samples';
 import { recordSampleDrawn, recordSampleState } from './sample-lifecycle';
+import { drainCardOdometerPrefill, estimateCurrentOdometer } from '../home/odometer-estimate';
+import { listOdometerHistory } from '../overview/overview.repository';
 import {
   countSamplesByState,
   findSampleByBottleCode,
@@ -34,23 +36,27 @@ type Db = Kysely<Database> | Transaction<Database>;
 /** What a drain card is prefilled with: the latest oil change's grade, product, volume and odometer. */
 export interface DrainCardPrefill {
   latest: OilChange | null;
+  /** The odometer is an estimate from recent riding (never the oil change's reading), or null. */
   values: { saeGrade: string; oilProduct: string; odometer: number | null; volumeL: number | null };
 }
 
-/** The prefill for a machine's drain card (the odometer in the stored unit). */
+/** The prefill for a machine's drain card (the odometer in the stored unit); `today` is YYYY-MM-DD. */
 export async function prefillDrainCard(
   db: Kysely<Database>,
   actor: Actor,
   machineId: string,
+  today = new Date().toISOString().slice(0, 10),
 ): Promise<DrainCardPrefill> {
   const row = await findLatestOilChange(db, actor.membership.crewId, machineId);
   const latest = row ? toOilChange(row) : null;
+  const history = (await listOdometerHistory(db, [machineId])).get(machineId) ?? [];
+  const odometer = drainCardOdometerPrefill(estimateCurrentOdometer(history, today), latest?.odometer ?? null, today);
   return {
     latest,
     values: {
       saeGrade: latest?.saeGrade ?? '',
       oilProduct: latest?.oilProduct ?? '',
-      odometer: latest?.odometer ?? null,
+      odometer,
       volumeL: latest?.volumeL ?? null,
     },
   };

@@ -60,8 +60,3 @@ export function describeCallAuthor(input: {
   if (role) return `${verb} by ${role === 'lead' ? 'the lead' : `a ${role}`}`;
   return `${verb} by a crew member`;
 }
-
-/** A moment to the minute in UTC, as screens and logs show it: "2026-03-04 05:06" (the caller adds "UTC"). */
-export function formatUtcMinute(d: Date): string {
-  return d.toISOString().slice(0, 16).replace('T', ' ');
-}

@@ -77,7 +77,7 @@ describe('next sample due', () => {
     const riderMail = byTo.get(c.rider.email)![0]!;
     expect(riderMail.idempotency_key).toBe(`reminder:sample-due:${c.machineId}:2026-06-01:${c.rider.id}`);
     expect(riderMail.subject).toBe('Sample due: Ridge 450 (Valley school)');
-    expect(riderMail.text_body).toContain('the next sample was due on 2026-06-01');
+    expect(riderMail.text_body).toContain('the next sample was due on 1 Jun 2026');
     expect(riderMail.text_body).toContain(`https://sumpwise.test/machines/${c.machineId}/drain-card`);
 
     // The same hour again (a retried job), and the days after: nothing more.

@@ -6,6 +6,7 @@ import { readFormObject } from '~/lib/http/result';
 import {
   createMachine,
   deleteMachine,
+  describeMachineDeletion,
   getMachine,
   listMachines,
   setMachineArchived,
@@ -97,6 +98,11 @@ describe('machines', () => {
     await createOilChange(db, rider, m.value.id, { changedOn: '2025-01-01', odometer: '1000', saeGrade: '10W-40' });
     const del = await deleteMachine(db, rider, m.value.id);
     expect(del.ok ? 200 : del.status).toBe(409);
+    // The edit page shows the same reason beside a disabled button, before anyone clicks.
+    const why = await describeMachineDeletion(db, rider, m.value.id);
+    expect(why.ok && why.value).toEqual({ allowed: false, reason: del.ok ? '' : del.message });
+    const free = await describeMachineDeletion(db, rider, empty.value.id);
+    expect(free.ok && free.value).toEqual({ allowed: true, reason: null });
     if (!del.ok) expect(del.message).toMatch(/archive it instead/);
     expect((await setMachineArchived(db, rider, m.value.id, true)).ok).toBe(true);
     expect((await listMachines(db, rider)).map((x) => x.name)).toEqual(['Spare']);

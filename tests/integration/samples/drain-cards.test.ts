@@ -58,7 +58,11 @@ describe('drain cards', () => {
     const { rider, machineId } = await setup();
     const pre = await prefillDrainCard(db, rider, machineId);
     expect(pre.values).toMatchObject({ saeGrade: '10W-50', oilProduct: 'Valley Lube 4T', volumeL: 1.2 });
-    expect(pre.values.odometer).toBeCloseTo(12000 * 1.609344, 6);
+    // The last reading is long past: no recent riding to estimate from, and never the oil change's own reading.
+    expect(pre.values.odometer).toBeNull();
+    // 20 days after the change: 12,000 mi plus the pace of the two changes (3,000 mi in 81 days) for 20 days.
+    const recent = await prefillDrainCard(db, rider, machineId, '2025-04-21');
+    expect(recent.values.odometer).toBe(Math.round((12000 + (3000 / 81) * 20) * 1.609344));
     const r = await registerDrainCard(db, rider, machineId, card());
     if (!r.ok) throw new Error(JSON.stringify(r));
     expect(r.value.sample.bottleCodeNorm).toBe('VL20931');

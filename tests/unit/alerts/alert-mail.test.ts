@@ -138,7 +138,7 @@ describe('renderAlertMail', () => {
 
 describe('reminders', () => {
   test.each([
-    ['by date', ['date'] as const, 'the next sample was due on 2026-05-01'],
+    ['by date', ['date'] as const, 'the next sample was due on 1 May 2026'],
     [
       'by odometer (mi machine, stored km)',
       ['odometer'] as const,

@@ -1,7 +1,6 @@
 import { describe, expect, test } from 'vitest';
 import type { AuditEvent } from '~/lib/audit/audit';
 import { buildCrewPageView, describeAuditDetail, describeAuditWho } from '~/lib/crews/crew-page-view';
-import { formatUtcMinute } from '~/lib/words/words';
 
 const ada = {
   userId: 'u1',
@@ -19,12 +18,24 @@ const ben = {
 };
 
 describe('crew page words', () => {
-  // ISO 8601 date and time to the minute, with a space for the T (common practice on screens).
+  // Invitation and audit times follow the viewer's zone (the formatter's own cases are in words/dates.test.ts).
   test.each([
-    ['2026-03-04T05:06:07Z', '2026-03-04 05:06'],
-    ['2026-03-04T07:06:07+02:00', '2026-03-04 05:06'],
-    ['2026-12-31T23:59:59.999Z', '2026-12-31 23:59'],
-  ])('%s shows as %s', (iso, text) => expect(formatUtcMinute(new Date(iso))).toBe(text));
+    [undefined, 'until 4 Mar 2026, 05:06', '4 Mar 2026, 05:06'],
+    ['Europe/Paris', 'until 4 Mar 2026, 06:06', '4 Mar 2026, 06:06'],
+  ])('times in zone %s', (timeZone, until, when) => {
+    const at = new Date('2026-03-04T05:06:07Z');
+    const view = buildCrewPageView({
+      userId: 'u1',
+      role: 'lead',
+      lead: true,
+      members: [],
+      invitations: [{ id: 'i1', email: 'c@example.test', role: 'rider', expiresAt: at, createdAt: at }],
+      audit: [{ id: 1, kind: 'crew_created', at, actorName: 'Ada', subjectName: null, detail: {}, ip: null }],
+      timeZone,
+    });
+    expect(view.invitations[0]!.text).toContain(until);
+    expect(view.audit[0]!.when).toBe(when);
+  });
 
   test.each([
     [{ actorName: 'Ada', subjectName: 'Ben' }, 'Ada → Ben'],
@@ -76,8 +87,8 @@ describe('the crew page model', () => {
       ['Ada (you)', 'Lead', 'Leave crew', ['lead']],
       ['Ben', 'Rider', 'Remove', ['rider']],
     ]);
-    expect(v.invitations).toEqual([{ id: 'i1', text: 'cy@example.test · Mechanic · until 2026-03-11 08:00 UTC' }]);
-    expect(v.audit).toEqual([{ when: '2026-03-04 05:06', event: 'Signed in', who: 'Ada', detail: '' }]);
+    expect(v.invitations).toEqual([{ id: 'i1', text: 'cy@example.test · Mechanic · until 11 Mar 2026, 08:00' }]);
+    expect(v.audit).toEqual([{ when: '4 Mar 2026, 05:06', event: 'Signed in', who: 'Ada', detail: '' }]);
   });
 
   test('a rider sees the members and nothing of a lead', () => {

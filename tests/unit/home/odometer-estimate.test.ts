@@ -1,5 +1,10 @@
 import { describe, expect, test } from 'vitest';
-import { countDaysBetween, estimateCurrentOdometer, findSampleDue } from '~/lib/home/odometer-estimate';
+import {
+  countDaysBetween,
+  drainCardOdometerPrefill,
+  estimateCurrentOdometer,
+  findSampleDue,
+} from '~/lib/home/odometer-estimate';
 
 // Invented riding histories; expected values worked by hand (least-squares slope = Sxy / Sxx).
 
@@ -127,5 +132,31 @@ describe('findSampleDue', () => {
   ])('days from %s to %s: %i', (a, b, n) => {
     // 2024 is a leap year (Gregorian calendar rule), hence 2 days across the end of February.
     expect(countDaysBetween(a, b)).toBe(n);
+  });
+});
+
+describe('drainCardOdometerPrefill (never the reading of an old oil change)', () => {
+  const est = (odometer: number, basis: 'pace' | 'last-known') => ({
+    odometer,
+    pacePerDay: basis === 'pace' ? 20 : 0,
+    basis,
+    lastDate: '2026-11-01',
+    lastOdometer: 12_000,
+  });
+  test.each([
+    ['no history', null, null, null],
+    ['only the oil change, no pace', est(12_000, 'last-known'), 12_000, null],
+    ['a pace past the change', est(12_620.4, 'pace'), 12_000, 12_620],
+    ['a pace that rounds onto the change', est(12_000.3, 'pace'), 12_000, null],
+    ['a pace below a change logged later', est(11_800, 'pace'), 12_000, null],
+    ['a pace and no oil change yet', est(4_321.6, 'pace'), null, 4_322],
+  ])('%s', (_name, estimate, change, expected) => {
+    expect(drainCardOdometerPrefill(estimate, change, '2026-12-01')).toBe(expected);
+  });
+  test.each([
+    ['2027-01-30', 12_620],
+    ['2027-01-31', null],
+  ])('the last reading 1 Nov 2026 is recent riding on %s: %s', (today, expected) => {
+    expect(drainCardOdometerPrefill(est(12_620, 'pace'), 12_000, today)).toBe(expected);
   });
 });

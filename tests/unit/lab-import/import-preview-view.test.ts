@@ -166,7 +166,7 @@ describe('the preview page model', () => {
     const v = buildPreviewView({ labFileId: 'f 1', preview: preview(), decisions: {}, fields: {}, filter: 'all' });
     expect(v).toMatchObject({
       imported: false,
-      uploadedAt: '2026-03-04 05:06',
+      uploadedAt: '4 Mar 2026, 05:06',
       profileName: 'march-results',
       profileOpen: false,
       filterHref: { all: '/imports/f%201#rows-h', attention: '/imports/f%201?rows=attention#rows-h' },
@@ -176,7 +176,7 @@ describe('the preview page model', () => {
     });
     expect(v.rows[0]).toMatchObject({
       line: 2,
-      sample: { kind: 'text', text: 'Trail 450 · drawn 2026-02-01', existing: null },
+      sample: { kind: 'text', text: 'Trail 450 · drawn 1 Feb 2026', existing: null },
       readings: '—',
       messagesId: null,
     });
@@ -221,10 +221,10 @@ describe('the preview page model', () => {
       imported: true,
       writtenRows: 1,
       notWrittenRows: 1,
-      writtenLinks: [{ href: '/samples/s1', text: 'Bottle SW-1 · Trail 450 · 2026-02-01' }],
+      writtenLinks: [{ href: '/samples/s1', text: 'Bottle SW-1 · Trail 450 · 1 Feb 2026' }],
     });
     expect(v.rows.map((x) => [x.sample, x.result, x.choices.length])).toEqual([
-      [{ kind: 'link', href: '/samples/s1', text: 'Trail 450 · drawn 2026-02-01' }, '✓ Written', 0],
+      [{ kind: 'link', href: '/samples/s1', text: 'Trail 450 · drawn 1 Feb 2026' }, '✓ Written', 0],
       [{ kind: 'none', text: 'No sample' }, '– Not written', 0],
     ]);
   });
