@@ -865,6 +865,40 @@ export const ROLE_MATRIX: MatrixRow[] = [
     note: 'the sample page’s form',
   },
 
+  // The review queue's one-step confirmation of steady calls (each crew confirms its own), and its undo.
+  {
+    route: '/api/reviews/steady-calls',
+    method: 'POST',
+    path: '/api/reviews/steady-calls',
+    json: {},
+    expect: { anonymous: 401, rider: 403, mechanic: 201, lead: 201, otherLead: 201 },
+    note: 'another crew’s lead confirms their own crew’s queue',
+  },
+  {
+    route: '/api/reviews/steady-calls',
+    method: 'POST',
+    path: '/api/reviews/steady-calls',
+    form: { confirm: 'steady' },
+    expect: { anonymous: 303, rider: 403, mechanic: 303, lead: 303, otherLead: 303 },
+    note: 'the home page’s form',
+  },
+  {
+    route: '/api/reviews/steady-calls/undo',
+    method: 'POST',
+    path: '/api/reviews/steady-calls/undo',
+    json: { callIds: [randomUUID()] },
+    expect: { anonymous: 401, rider: 403, mechanic: 404, lead: 404, otherLead: 404 },
+    note: 'no such confirmation of theirs',
+  },
+  {
+    route: '/api/reviews/steady-calls/undo',
+    method: 'POST',
+    path: '/api/reviews/steady-calls/undo',
+    form: { callIds: 'x'.repeat(100_000) },
+    expect: { anonymous: 303, rider: 413, mechanic: 413, lead: 413, otherLead: 413 },
+    note: 'a 100 KB field is refused before it is read',
+  },
+
   // The not-found page itself (rendered for unknown addresses and for other crews' records).
   { route: '/404', method: 'GET', path: '/404', expect: all(404) },
   {

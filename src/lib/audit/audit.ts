@@ -22,6 +22,8 @@ export const AUDIT_KINDS = [
   'baseline_excluded',
   'baseline_restored',
   'alert_limits_changed',
+  'steady_calls_confirmed',
+  'steady_calls_unconfirmed',
 ] as const;
 export type AuditKind = (typeof AUDIT_KINDS)[number];
 
@@ -70,4 +72,6 @@ export const AUDIT_LABELS: Record<AuditKind, string> = {
   baseline_excluded: 'Sample taken out of the baseline',
   baseline_restored: 'Sample put back in the baseline',
   alert_limits_changed: 'Alert limits changed',
+  steady_calls_confirmed: 'Steady calls confirmed in one step',
+  steady_calls_unconfirmed: 'Confirmation of steady calls undone',
 };

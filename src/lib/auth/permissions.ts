@@ -47,6 +47,14 @@ export function canReviewSample(m: CrewMembership | null): m is CrewMembership {
   return hasRole(m, ['lead', 'mechanic']);
 }
 
+/**
+ * Leads and mechanics confirm every steady hold or stretch call waiting for review in one step (and undo it):
+ * the same people who confirm one call, since each confirmation is the same review.
+ */
+export function canConfirmSteadyCalls(m: CrewMembership | null): m is CrewMembership {
+  return canReviewSample(m);
+}
+
 /** Leads edit the crew's fixed alert limits. */
 export function canEditLimits(m: CrewMembership | null): m is CrewMembership {
   return hasRole(m, ['lead']);

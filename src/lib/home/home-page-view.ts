@@ -4,11 +4,15 @@
  */
 import { capitalise, describeFindingReason } from '../analysis/finding-words';
 import type { Role } from '../auth/types';
-import { CALL_DISPLAY, type Level } from '../levels';
+import { canConfirmSteadyCalls } from '../auth/permissions';
+import { CALL_DISPLAY, type IntervalCallKind, type Level } from '../levels';
+import type { Verdict } from '../verdicts/verdicts';
 import { formatMeter } from '../units/units';
 import { formatCount } from '../words/words';
 import { firstSteps, type CrewProgress, type FirstStep, type MachineCard } from './home-cards';
 import type { DueMachine } from './home.service';
+import { isUuid } from '../ids';
+import { STEADY_BATCH_MAX } from '../reviews/reviews';
 
 /** How many entries each list shows before "and N more". */
 export const LIST_MAX = 8;
@@ -24,6 +28,10 @@ export interface CrewHomeInput {
   drawn: readonly (SampleListRow & { drawn_on: string })[];
   overdue: readonly (SampleListRow & { shipped_on: string })[];
   waiting: readonly (SampleListRow & { drawn_on: string })[];
+  /** The verdicts of the waiting samples, by sample id. */
+  waitingVerdicts?: ReadonlyMap<string, Verdict>;
+  /** Steady hold or stretch calls waiting for review: what one step confirms. */
+  steadyCount?: number;
   cards: readonly MachineCard[];
   due: readonly DueMachine[];
   progress: CrewProgress;
@@ -35,6 +43,9 @@ export interface SampleLink {
   bottleCode: string;
   /** "2026-03-01", "drawn 2026-03-01" or "shipped 2026-03-01". */
   when: string;
+  /** For samples with results: the level and the call. */
+  level?: Level;
+  call?: IntervalCallKind | null;
 }
 
 export interface HomeCardView {
@@ -58,6 +69,8 @@ export interface HomeView {
   cardsMore: string;
   waiting: SampleLink[];
   waitingMore: string;
+  /** "Confirm 12 steady calls", for a reviewer when there are any. */
+  steadyConfirm: { count: number; label: string } | null;
   due: {
     href: string;
     name: string;
@@ -128,8 +141,18 @@ export function buildHomeView(home: CrewHomeInput, role: Role, crewId: string): 
       home.waiting,
       (s) => `/samples/${s.id}#review`,
       (s) => s.drawn_on,
-    ),
+    ).map((link, i) => {
+      const v = home.waitingVerdicts?.get(home.waiting[i]!.id);
+      return v ? { ...link, level: v.level, call: v.call } : link;
+    }),
     waitingMore: describeMore(home.waiting.length),
+    steadyConfirm:
+      home.steadyCount && canConfirmSteadyCalls({ crewId, crewName: '', role })
+        ? {
+            count: Math.min(home.steadyCount, STEADY_BATCH_MAX),
+            label: `Confirm ${formatCount(Math.min(home.steadyCount, STEADY_BATCH_MAX), 'steady call')}`,
+          }
+        : null,
     due: home.due.map(describeDue),
     overdue: sampleLinks(
       home.overdue,
@@ -143,4 +166,34 @@ export function buildHomeView(home: CrewHomeInput, role: Role, crewId: string): 
     ),
     drawnMore: describeMore(home.drawn.length),
   };
+}
+
+/** What the review queue's notice says after a one-step confirmation, its undo, or a refusal. */
+export type QueueNotice =
+  { kind: 'confirmed'; words: string; undoIds: string } | { kind: 'undone' | 'error'; words: string } | null;
+
+const QUEUE_ERRORS: Record<string, string> = {
+  undo_expired: 'The time to undo has passed: open a sample to change its call.',
+  changed: 'A call was changed since, so nothing was undone: open that sample to change it.',
+  not_found: 'Nothing to undo.',
+};
+
+/**
+ * The notice from the query a one-step confirmation (or its undo) redirects to. Only counts, ids and known codes
+ * are read, so a crafted link cannot put words of its own on the page.
+ */
+export function buildQueueNotice(query: URLSearchParams): QueueNotice {
+  const count = (v: string | null) => (v && /^\d{1,4}$/.test(v) ? Number(v) : null);
+  const confirmed = count(query.get('steady_confirmed'));
+  if (confirmed !== null) {
+    const ids = (query.get('undo') ?? '').split(',').filter((id) => isUuid(id));
+    const words =
+      confirmed === 0 ? 'No steady calls were waiting.' : `Confirmed ${formatCount(confirmed, 'steady call')}.`;
+    return { kind: 'confirmed', words, undoIds: confirmed > 0 ? ids.slice(0, STEADY_BATCH_MAX).join(',') : '' };
+  }
+  const undone = count(query.get('steady_undone'));
+  if (undone !== null) return { kind: 'undone', words: `Undone: ${formatCount(undone, 'sample')} back to results in.` };
+  const error = query.get('steady_error');
+  if (error) return { kind: 'error', words: QUEUE_ERRORS[error] ?? 'That did not work; nothing was changed.' };
+  return null;
 }

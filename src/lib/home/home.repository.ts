@@ -5,7 +5,10 @@ import { levelRankSql } from '../levels.repository';
 import type { Meter } from '../machines/machines';
 import type { CrewProgress, OpenFinding } from './home-cards';
 
-/** Samples of the crew in a state, with machine name, oldest first (limited). */
+/**
+ * Samples of the crew in a state, with machine name (limited): drawn bottles oldest first (the longest waiting to
+ * ship), results waiting for review newest first (the freshest news about each engine).
+ */
 export async function listSamplesInState(
   db: Kysely<Database>,
   crewId: string,
@@ -24,7 +27,7 @@ export async function listSamplesInState(
     ])
     .where('samples.crew_id', '=', crewId)
     .where('samples.state', '=', state)
-    .orderBy('samples.drawn_on')
+    .orderBy('samples.drawn_on', state === 'results_in' ? 'desc' : 'asc')
     .limit(limit)
     .execute();
 }

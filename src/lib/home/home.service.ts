@@ -13,6 +13,7 @@ import {
 } from './home.repository';
 import { groupFindingsByMachine } from './home-cards';
 import { describeOverdue } from '../words/words';
+import { countSteadyReviewQueue, listSampleVerdicts } from '../verdicts/verdicts.repository';
 
 /** Shipped samples without results after this many days surface on the home page (a product rule, no published source). */
 export const SHIPPED_OVERDUE_DAYS = 21;
@@ -37,14 +38,20 @@ function addDays(iso: string, days: number): string {
 
 /** Everything on the crew home, for `today` (YYYY-MM-DD). */
 export async function loadCrewHome(db: Kysely<Database>, crewId: string, today: string) {
-  const [drawn, overdue, waiting, findings, machines, progress] = await Promise.all([
+  const [drawn, overdue, waiting, findings, machines, progress, steadyCount] = await Promise.all([
     listSamplesInState(db, crewId, 'drawn'),
     listOverdueShipments(db, crewId, addDays(today, -SHIPPED_OVERDUE_DAYS)),
     listSamplesInState(db, crewId, 'results_in'),
     listOpenFindings(db, crewId),
     listMachinesForDue(db, crewId),
     loadCrewProgress(db, crewId),
+    countSteadyReviewQueue(db, crewId),
   ]);
+  const waitingVerdicts = await listSampleVerdicts(
+    db,
+    crewId,
+    waiting.map((s) => s.id),
+  );
   const histories = await listOdometerHistory(
     db,
     machines.map((m) => m.id),
@@ -84,5 +91,5 @@ export async function loadCrewHome(db: Kysely<Database>, crewId: string, today: 
   // The longest overdue first; machines due by the meter estimate alone follow, by name.
   due.sort((a, b) => (b.overdue?.days ?? -1) - (a.overdue?.days ?? -1) || a.name.localeCompare(b.name));
   const cards = groupFindingsByMachine(findings, new Map(machines.map((m) => [m.id, m.call])));
-  return { drawn, overdue, waiting, cards, due, progress };
+  return { drawn, overdue, waiting, waitingVerdicts, steadyCount, cards, due, progress };
 }

@@ -15,7 +15,9 @@ import {
 } from '../units/units';
 import { describeForecast, formatWholeMeter } from '../wear-parts/forecast-words';
 import type { WearMeasurement, WearPart } from '../wear-parts/wear-parts';
-import { COOLING_LABELS, LAYOUT_LABELS, type Machine } from './machines';
+import { COOLING_LABELS, LAYOUT_LABELS, type Machine, type Meter } from './machines';
+import type { IntervalCallKind, Level } from '../levels';
+import { describeCallWithDistance, describeVerdictReason, type Verdict } from '../verdicts/verdicts';
 
 /** Recent oil changes are shown as cards; older ones fold into a table. */
 export const RECENT_CHANGES = 4;
@@ -27,6 +29,8 @@ export interface MachinePageInput {
   wearParts: readonly { part: WearPart; measurements: readonly WearMeasurement[]; forecast: WearForecast }[];
   temperatureUnit: TemperatureUnit;
   lengthUnit: LengthUnit;
+  /** The verdict of each sample with results, by sample id. */
+  verdicts?: ReadonlyMap<string, Verdict>;
   /** ?added or ?logged after a form. */
   added: boolean;
   logged: boolean;
@@ -46,7 +50,20 @@ export interface OilChangeCard {
 export interface MachinePageView {
   flash: string;
   spec: string;
-  samples: { href: string; bottleCode: string; drawnOn: string; odometer: string; onOil: string; state: string }[];
+  samples: {
+    href: string;
+    bottleCode: string;
+    drawnOn: string;
+    odometer: string;
+    onOil: string;
+    state: string;
+    level: Level | null;
+    call: IntervalCallKind | null;
+  }[];
+  /** At watch or act: the decision first, above everything else on the page. */
+  banner: VerdictBanner | null;
+  /** The page's one filled button, by state: review a flagged sample, log the first oil change, or the drain card. */
+  primary: 'review' | 'oil-change' | 'drain-card';
   grades: { grade: string; temperatures: string }[];
   longestInterval: string;
   oilNow: { grade: string; product: string; since: string; odometer: string } | null;
@@ -82,11 +99,44 @@ function flashOf(input: MachinePageInput): string {
   return input.logged ? 'Oil change logged.' : '';
 }
 
+/** The verdict banner of a machine page: level, reason, call with its distance, and the sample to review. */
+export interface VerdictBanner {
+  level: Level;
+  reason: string;
+  call: IntervalCallKind | null;
+  callText: string;
+  href: string;
+  action: string;
+}
+
+/**
+ * The banner for the machine's latest sample with results (samples newest first), when it is at watch or act;
+ * null when steady or without results.
+ */
+export function buildVerdictBanner(
+  samples: readonly Pick<Sample, 'id' | 'state'>[],
+  verdicts: ReadonlyMap<string, Verdict> | undefined,
+  meter: Meter,
+): VerdictBanner | null {
+  const latest = samples.find((s) => s.state === 'results_in' || s.state === 'reviewed');
+  const v = latest && verdicts?.get(latest.id);
+  if (!latest || !v || v.level === 'steady') return null;
+  return {
+    level: v.level,
+    reason: describeVerdictReason(v),
+    call: v.call,
+    callText: v.call ? describeCallWithDistance(v.call, v.nextInterval, meter) : 'No interval call yet',
+    href: `/samples/${latest.id}#review`,
+    action: latest.state === 'results_in' ? 'Review sample' : 'Open sample',
+  };
+}
+
 /** The machine page's model. */
 export function buildMachinePageView(input: MachinePageInput): MachinePageView {
   const m = input.machine;
   const meter = (v: number) => formatMeter(v, m.meter);
   const latest = input.oilChanges[0];
+  const banner = buildVerdictBanner(input.samples, input.verdicts, m.meter);
   return {
     flash: flashOf(input),
     spec: describeMachineSpec(m),
@@ -97,7 +147,12 @@ export function buildMachinePageView(input: MachinePageInput): MachinePageView {
       odometer: meter(s.odometer),
       onOil: s.distanceOnOil !== null ? meter(s.distanceOnOil) : '—',
       state: STATE_LABELS[s.state],
+      level: input.verdicts?.get(s.id)?.level ?? null,
+      call: input.verdicts?.get(s.id)?.call ?? null,
     })),
+    banner,
+    primary:
+      banner?.action === 'Review sample' ? 'review' : input.oilChanges.length === 0 ? 'oil-change' : 'drain-card',
     grades: m.recommendedGrades.map((g) => ({
       grade: g.grade,
       temperatures: describeGradeTemperatures(g.minC, g.maxC, input.temperatureUnit),

@@ -206,3 +206,38 @@ export async function listSampleBands(db: Db, sampleId: string) {
     .where('sample_id', '=', sampleId)
     .execute();
 }
+
+/**
+ * The reviewer's own confirmations among `callIds` on the crew's samples, with whether each was written within
+ * the last `withinSeconds` and is still its sample's current call.
+ */
+export async function findOwnConfirmations(
+  db: Db,
+  crewId: string,
+  userId: string,
+  callIds: readonly string[],
+  withinSeconds: number,
+): Promise<{ id: string; sample_id: string; fresh: boolean; current: boolean }[]> {
+  const ids = callIds.filter(isUuid);
+  if (ids.length === 0) return [];
+  const { rows } = await sql<{ id: string; sample_id: string; fresh: boolean; current: boolean }>`
+    select ic.id, ic.sample_id, ic.created_at > now() - make_interval(secs => ${withinSeconds}) as fresh,
+      ic.id = (
+        select x.id from interval_calls x where x.sample_id = ic.sample_id
+        order by x.created_at desc, case x.source when 'engine' then 0 else 1 end desc, x.id desc limit 1
+      ) as current
+    from interval_calls ic join samples s on s.id = ic.sample_id
+    where ic.id = any(${ids}::uuid[]) and s.crew_id = ${crewId} and ic.made_by = ${userId} and ic.source = 'confirmed'
+  `.execute(db);
+  return rows;
+}
+
+/** Deletes interval calls by id (the caller has checked whose they are). */
+export async function deleteIntervalCalls(db: Db, callIds: readonly string[]): Promise<number> {
+  if (callIds.length === 0) return 0;
+  const r = await db
+    .deleteFrom('interval_calls')
+    .where('id', 'in', [...callIds])
+    .executeTakeFirst();
+  return Number(r.numDeletedRows);
+}

@@ -1,11 +1,18 @@
 /** Review rules: who may write, confirm keeps the current call, override needs a note; each decision is one transaction. */
-import type { Kysely } from 'kysely';
-import { canReviewSample } from '../auth/permissions';
+import type { Kysely, Transaction } from 'kysely';
+import { canConfirmSteadyCalls, canReviewSample } from '../auth/permissions';
 import type { Actor as AuthActor, CrewMembership } from '../auth/types';
-import { refuse, succeed, type Result } from '../http/result';
+import { refuse, succeed, type Refusal, type Result } from '../http/result';
 import type { Database } from '../db/database';
 import { toStoredMeter } from '../units/units';
-import type { BaselineChoice, CallDecision, CallHistoryEntry, ReviewNote } from './reviews';
+import {
+  STEADY_BATCH_MAX,
+  UNDO_SECONDS,
+  type BaselineChoice,
+  type CallDecision,
+  type CallHistoryEntry,
+  type ReviewNote,
+} from './reviews';
 import { recordAuditEvent } from '../audit/audit.repository';
 import { recomputeFindings } from '../findings/findings.service';
 import {
@@ -16,8 +23,12 @@ import {
   insertReviewNote,
   listCallHistory,
   listReviewNotes,
+  deleteIntervalCalls,
+  findOwnConfirmations,
 } from './reviews.repository';
-import { recordSampleState } from '../samples/sample-lifecycle';
+import { recordSampleState, recordSampleStates } from '../samples/sample-lifecycle';
+import { lockSampleStates } from '../samples/samples.repository';
+import { listSteadyReviewQueue } from '../verdicts/verdicts.repository';
 
 /** A member of the crew in question, or a signed-in user with no crew (who gets not found). */
 type Actor = AuthActor<CrewMembership | null>;
@@ -59,9 +70,20 @@ export async function decideIntervalCall(
   decision: CallDecision,
 ): Promise<Result<{ id: string; entry: CallHistoryEntry }>> {
   if (!actor.membership) return notFound();
-  const crewId = actor.membership.crewId;
   const membership = actor.membership;
-  return db.transaction().execute(async (trx): Promise<Result<{ id: string; entry: CallHistoryEntry }>> => {
+  return db.transaction().execute((trx) => decideInTransaction(trx, { ...actor, membership }, sampleId, decision));
+}
+
+/** decideIntervalCall inside the caller's transaction: one review, the same whether alone or one of many. */
+async function decideInTransaction(
+  trx: Transaction<Database>,
+  actor: AuthActor<CrewMembership>,
+  sampleId: string,
+  decision: CallDecision,
+): Promise<Result<{ id: string; entry: CallHistoryEntry }>> {
+  const membership = actor.membership;
+  const crewId = membership.crewId;
+  {
     const sample = await findReviewSample(trx, crewId, sampleId);
     if (!sample) return notFound();
     if (!canReviewSample(membership))
@@ -122,7 +144,105 @@ export async function decideIntervalCall(
     );
     const entry = (await listCallHistory(trx, sampleId)).find((c) => c.id === id)!;
     return succeed({ id, entry });
-  });
+  }
+}
+
+// The server allows a little more than the notice shows, for the round trip of a click at the last second.
+const UNDO_GRACE_SECONDS = 5;
+
+/** A refusal thrown inside a transaction, so nothing of it is kept. */
+class RollBack extends Error {
+  constructor(readonly refusal: Refusal) {
+    super(refusal.message);
+  }
+}
+
+/**
+ * Confirms every steady hold or stretch call waiting for review, each exactly as one confirm (its own confirmed
+ * call and its sample reviewed, with the sample's event), in one transaction; logged in the crew's audit log.
+ * Returns the new calls' ids, which undoSteadyConfirmations takes back within UNDO_SECONDS.
+ */
+export async function confirmSteadyCalls(
+  db: Kysely<Database>,
+  actor: Actor,
+): Promise<Result<{ confirmed: number; callIds: string[]; sampleIds: string[] }>> {
+  if (!actor.membership) return notFound();
+  const membership = actor.membership;
+  if (!canConfirmSteadyCalls(membership))
+    return refuse(403, 'forbidden', 'Only a lead or a mechanic of the crew confirms interval calls.');
+  try {
+    return await db.transaction().execute(async (trx) => {
+      const queued = await listSteadyReviewQueue(trx, membership.crewId, STEADY_BATCH_MAX);
+      // Locked first: a second click (or a colleague's) waits, then finds these reviewed and leaves them.
+      const waiting = (await lockSampleStates(trx, queued)).filter((s) => s.state === 'results_in').map((s) => s.id);
+      const callIds: string[] = [];
+      for (const sampleId of waiting) {
+        const r = await decideInTransaction(trx, { ...actor, membership }, sampleId, { action: 'confirm', note: '' });
+        if (!r.ok) throw new RollBack(r);
+        callIds.push(r.value.id);
+      }
+      if (waiting.length > 0)
+        await recordAuditEvent(trx, {
+          kind: 'steady_calls_confirmed',
+          crewId: membership.crewId,
+          actorUserId: actor.userId,
+          detail: { count: waiting.length, sampleIds: waiting },
+        });
+      return succeed({ confirmed: waiting.length, callIds, sampleIds: waiting });
+    });
+  } catch (e) {
+    if (e instanceof RollBack) return e.refusal;
+    throw e;
+  }
+}
+
+/**
+ * Takes back the reviewer's own confirmations of one step, within UNDO_SECONDS: the confirmed calls go and the
+ * samples return to "results in" through the sample lifecycle, all or nothing, in one transaction.
+ */
+export async function undoSteadyConfirmations(
+  db: Kysely<Database>,
+  actor: Actor,
+  callIds: readonly string[],
+): Promise<Result<{ undone: number }>> {
+  if (!actor.membership) return notFound();
+  const membership = actor.membership;
+  if (!canConfirmSteadyCalls(membership))
+    return refuse(403, 'forbidden', 'Only a lead or a mechanic of the crew confirms interval calls.');
+  const ids = [...new Set(callIds)];
+  try {
+    return await db.transaction().execute(async (trx) => {
+      const found = await findOwnConfirmations(
+        trx,
+        membership.crewId,
+        actor.userId,
+        ids,
+        UNDO_SECONDS + UNDO_GRACE_SECONDS,
+      );
+      if (found.length !== ids.length)
+        throw new RollBack(refuse(404, 'not_found', 'No such confirmations of yours in this crew.'));
+      if (found.some((c) => !c.fresh))
+        throw new RollBack(
+          refuse(409, 'undo_expired', 'The time to undo has passed: open a sample to change its call.'),
+        );
+      if (found.some((c) => !c.current))
+        throw new RollBack(refuse(409, 'changed', 'A call was changed since; open that sample to change it.'));
+      const sampleIds = found.map((c) => c.sample_id);
+      await lockSampleStates(trx, sampleIds);
+      await deleteIntervalCalls(trx, ids);
+      await recordSampleStates(trx, sampleIds, 'results_in', actor.userId, 'Confirmation undone.');
+      await recordAuditEvent(trx, {
+        kind: 'steady_calls_unconfirmed',
+        crewId: membership.crewId,
+        actorUserId: actor.userId,
+        detail: { count: sampleIds.length, sampleIds },
+      });
+      return succeed({ undone: sampleIds.length });
+    });
+  } catch (e) {
+    if (e instanceof RollBack) return e.refusal;
+    throw e;
+  }
 }
 
 /**

@@ -90,3 +90,22 @@ export interface BaselineStatus {
   changedByName: string | null;
   changedAt: Date | null;
 }
+
+/** At most this many steady calls are confirmed in one step, so one click stays one short transaction. */
+export const STEADY_BATCH_MAX = 200;
+/** How long the notice offers to undo a confirmation of steady calls (common practice, no published source). */
+export const UNDO_SECONDS = 10;
+
+/** Confirm every steady call waiting: nothing to fill in (a form's button sends no fields that matter). */
+export const steadyConfirmSchema = z.object({});
+
+/** Undo one step's confirmations: the ids of the calls it wrote (a form sends them comma-separated). */
+export const steadyUndoSchema = z.object({
+  callIds: z.preprocess(
+    (v) => (typeof v === 'string' ? v.split(',').filter(Boolean) : v),
+    z
+      .array(z.uuid({ error: 'That undo link is not valid.' }), { error: 'That undo link is not valid.' })
+      .min(1, 'That undo link is not valid.')
+      .max(STEADY_BATCH_MAX, 'That undo link is not valid.'),
+  ),
+});

@@ -186,6 +186,8 @@ describe('the machine page model', () => {
         odometer: '10,000 km',
         onOil: '—',
         state: 'Results in',
+        level: null,
+        call: null,
       },
     ]);
     // 2.6 mm = 0.102 in, 2.8 mm = 0.110 in (1 in = 25.4 mm exactly, NIST SP 811 B.8).

@@ -75,3 +75,19 @@ export async function failure(
 export function success(form: boolean, back: string, saved: string, data: unknown): Response {
   return form ? redirectBack(back, { review_saved: saved }) : jsonOk(data, 201);
 }
+
+/** Where the home page's review queue answers a plain form: back to the queue with what happened in the query. */
+export function backToQueue(params: Record<string, string>): Response {
+  const q = new URLSearchParams(params).toString();
+  return new Response(null, { status: 303, headers: { location: `/?${q}#review-queue` } });
+}
+
+/** A refusal of the review queue's endpoints: JSON as usual; a form gets the 404 page, a plain 403, or the queue. */
+export async function queueFailure(
+  context: APIContext,
+  form: boolean,
+  r: { status: number; code: string; message: string },
+): Promise<Response> {
+  if (!form || r.status === 403 || r.status === 404) return failure(context, form, '/', r.status, r.code, r.message);
+  return backToQueue({ steady_error: r.code });
+}
