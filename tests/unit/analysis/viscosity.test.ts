@@ -55,7 +55,7 @@ describe('viscosityIndex (ASTM D2270)', () => {
     expect(lookupD2270LH(100).h).toBeCloseTo(0.1684 * 1e4 + 1185 - 97, 9);
   });
 
-  test('Table 1 grows row by row in KV100, L and H (a transcription slip would break this)', () => {
+  test('Table 1 grows row by row in KV100, L and H (a copying slip would break this)', () => {
     for (let i = 1; i < D2270_TABLE.length; i++) {
       const [y0, l0, h0] = D2270_TABLE[i - 1]!;
       const [y1, l1, h1] = D2270_TABLE[i]!;
