@@ -2,7 +2,7 @@ import { defineMiddleware } from 'astro:middleware';
 import { randomUUID } from 'node:crypto';
 import { securityHeaders } from './lib/http/security-headers';
 import { getDb } from './lib/db';
-import { getLucia, loadSession } from './lib/auth/session';
+import { getLucia, loadSession, mayClearStaleSessionCookie } from './lib/auth/session';
 import { isForbiddenCrossSiteWrite } from './lib/http/origin-check';
 import { getConfig } from './lib/config';
 import { databaseUnavailableResponse, isDatabaseUnavailable, logDatabaseUnavailable } from './lib/http/unavailable';
@@ -41,7 +41,9 @@ export const onRequest = defineMiddleware(async (context, next) => {
   }
   let loaded: Awaited<ReturnType<typeof loadSession>>;
   try {
-    loaded = await loadSession(getDb(), getLucia(), context.cookies);
+    loaded = await loadSession(getDb(), getLucia(), context.cookies, {
+      clearStale: mayClearStaleSessionCookie(context.request.headers),
+    });
   } catch (error) {
     // The health check must still answer while the database is down; other routes get the friendly 503.
     if (context.url.pathname === '/api/health') loaded = null;

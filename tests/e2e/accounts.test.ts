@@ -1,4 +1,5 @@
 // Accounts end to end in Chromium against the built server, and attacks on the account routes by plain fetch.
+import http from 'node:http';
 import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
 import type { Browser } from 'playwright-core';
 import type { Kysely } from 'kysely';
@@ -279,7 +280,7 @@ describe('attacks against the built server', () => {
     expect(await a.text()).not.toContain('Isolation 450');
   });
 
-  test('the session cookie is HttpOnly and SameSite=Lax, and sign-in rotates it', async () => {
+  test('the session cookie is HttpOnly and SameSite=Lax, sign-in rotates it, and a late background fetch cannot clear the new one', async () => {
     const email = `cookie-${run}@e2e.example`;
     await signUpByApi(email);
     const first = await postJson('/api/auth/sign-in', { email, password: 'a long enough password' });
@@ -300,5 +301,21 @@ describe('attacks against the built server', () => {
     expect(newCookie).not.toBe(oldCookie);
     expect((await fetch(`${baseUrl()}/api/auth/me`, { headers: { cookie: oldCookie } })).status).toBe(401);
     expect((await fetch(`${baseUrl()}/api/auth/me`, { headers: { cookie: newCookie } })).status).toBe(200);
+
+    // A page's background fetch that left with the old cookie must not clear the new one when it comes back
+    // late; a navigation (or a client without Fetch Metadata) with the old cookie still clears it.
+    // node:http, because Node's fetch always sends its own Sec-Fetch-Mode: cors.
+    const blankFrom = (headers: Record<string, string>) =>
+      new Promise<boolean>((resolve, reject) => {
+        http
+          .get(`${baseUrl()}/`, { headers: { cookie: oldCookie, ...headers } }, (res) => {
+            res.resume();
+            resolve((res.headers['set-cookie'] ?? []).some((c) => /^sumpwise_session=;/.test(c)));
+          })
+          .on('error', reject);
+      });
+    expect(await blankFrom({ 'sec-fetch-mode': 'cors', 'sec-fetch-dest': 'empty' })).toBe(false);
+    expect(await blankFrom({ 'sec-fetch-mode': 'navigate', 'sec-fetch-dest': 'document' })).toBe(true);
+    expect(await blankFrom({})).toBe(true);
   });
 });

@@ -84,20 +84,35 @@ export interface LoadedSession {
 }
 
 /**
- * Validates the session cookie (refreshing or clearing it as Lucia says) and resolves the crew the
- * session works in: the one it points at if the user is still a member, else their first crew.
+ * True when a request may clear a session cookie that no longer matches a session. Only navigations (and
+ * clients that send no Fetch Metadata, such as scripts) may: a page's background fetch that left with the
+ * old cookie can come back after a sign-in in the same browser has set the new one, and a blank cookie on
+ * that late answer would sign the rider out again (Fetch Metadata, W3C: Sec-Fetch-Mode "navigate").
+ */
+export function mayClearStaleSessionCookie(headers: Headers): boolean {
+  const mode = headers.get('sec-fetch-mode');
+  return mode === null || mode === 'navigate';
+}
+
+/**
+ * Validates the session cookie (refreshing it as Lucia says, clearing a stale one when `clearStale` allows)
+ * and resolves the crew the session works in: the one it points at if the user is still a member, else
+ * their first crew.
  */
 export async function loadSession(
   db: Kysely<Database>,
   lucia: AppLucia,
   cookies: AstroCookies,
+  options: { clearStale: boolean } = { clearStale: true },
 ): Promise<LoadedSession | null> {
   const sessionId = cookies.get(lucia.sessionCookieName)?.value ?? null;
   if (!sessionId) return null;
   const { session, user } = await lucia.validateSession(sessionId);
   if (!session || !user) {
-    const blank = lucia.createBlankSessionCookie();
-    cookies.set(blank.name, blank.value, blank.attributes);
+    if (options.clearStale) {
+      const blank = lucia.createBlankSessionCookie();
+      cookies.set(blank.name, blank.value, blank.attributes);
+    }
     return null;
   }
   if (session.fresh) {
