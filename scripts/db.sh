@@ -137,7 +137,16 @@ start() {
   fi
   # A server killed with -9 leaves postmaster.pid and the socket lock behind, and its PID can linger for
   # a moment as an unreaped process; wait for it to go, then the files are stale.
-  local lock pid
+  local lock pid other
+  # A live server on this data folder but another port (say, one a test run started) cannot be joined here:
+  # PostgreSQL allows one postmaster per data folder.
+  if [ -f "$DATA/postmaster.pid" ]; then
+    pid=$(head -1 "$DATA/postmaster.pid" 2>/dev/null | tr -d ' ' || true)
+    other=$(sed -n 4p "$DATA/postmaster.pid" 2>/dev/null | tr -d ' ' || true)
+    if [ -n "$pid" ] && pid_alive "$pid" && [ -n "$other" ] && [ "$other" != "$PORT" ]; then
+      die "this data folder ($DATA) is already served by PostgreSQL (pid $pid) on port $other; use SUMPWISE_PG_PORT=$other, or stop that server first: SUMPWISE_PG_PORT=$other bash scripts/db.sh stop"
+    fi
+  fi
   for lock in "$DATA/postmaster.pid" "$SOCK/.s.PGSQL.$PORT.lock"; do
     [ -f "$lock" ] || continue
     pid=$(head -1 "$lock" 2>/dev/null | tr -d ' ' || true)

@@ -104,4 +104,19 @@ describe('faults', () => {
     expect(new Set(seen.filter((s) => s !== 200 && s !== 503))).toEqual(new Set());
     expect(seen).toContain(503);
   });
+
+  test('starting the same data folder on another port says which server holds it, and leaves it running', async () => {
+    const port = process.env.SUMPWISE_PG_PORT!;
+    const other = String(await freePort());
+    const refused = await execFileAsync('bash', [dbSh, 'start'], {
+      env: { ...process.env, SUMPWISE_PG_PORT: other },
+    }).then(
+      () => null,
+      (error: { code?: number; stderr?: string }) => error,
+    );
+    expect(refused?.code).toBe(1);
+    expect(refused?.stderr).toContain('already served by PostgreSQL');
+    expect(refused?.stderr).toContain(`on port ${port}; use SUMPWISE_PG_PORT=${port}`);
+    expect(await healthStatus(app.baseUrl)).toBe(200);
+  });
 });
