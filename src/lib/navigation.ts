@@ -18,9 +18,9 @@ export const NAV_ITEMS: NavItem[] = [
   { href: '/overview', label: 'Overview', audience: 'signed-in' },
   { href: '/imports', label: 'Lab import', audience: 'signed-in' },
   { href: '/crews', label: 'Crew', audience: 'signed-in', inSignedInBar: false },
-  { href: '/account', label: 'Account', audience: 'signed-in' },
   { href: '/tools', label: 'Oil tools', audience: 'all' },
   { href: '/rules', label: 'How calls are made', audience: 'all', inSignedInBar: false },
+  { href: '/account', label: 'Account', audience: 'signed-in' },
   { href: '/sign-in', label: 'Sign in', audience: 'signed-out' },
   { href: '/sign-up', label: 'Sign up', audience: 'signed-out' },
 ];

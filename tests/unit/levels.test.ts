@@ -85,8 +85,8 @@ describe('navigation', () => {
   // The signed-in desktop bar fits one row at 1024 px: the crew page is reached by the crew's name beside the brand
   // and the rules page from the footer; the phone menu and a signed-out visitor's bar keep every item.
   test.each([
-    [true, 'menu', ['/', '/machines', '/samples', '/overview', '/imports', '/crews', '/account', '/tools', '/rules']],
-    [true, 'bar', ['/', '/machines', '/samples', '/overview', '/imports', '/account', '/tools']],
+    [true, 'menu', ['/', '/machines', '/samples', '/overview', '/imports', '/crews', '/tools', '/rules', '/account']],
+    [true, 'bar', ['/', '/machines', '/samples', '/overview', '/imports', '/tools', '/account']],
     [false, 'menu', ['/', '/tools', '/rules', '/sign-in', '/sign-up']],
     [false, 'bar', ['/', '/tools', '/rules', '/sign-in', '/sign-up']],
   ] as const)('signed in %s, %s', (signedIn, where, hrefs) => {
