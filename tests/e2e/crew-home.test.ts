@@ -20,7 +20,11 @@ function visiblePrimaries(page: Page): Promise<string[]> {
     );
 }
 
-async function signedIn(browser: Browser, key: Parameters<typeof account>[0], viewport: typeof PHONE | typeof DESKTOP) {
+async function signedIn(
+  browser: Browser,
+  key: Parameters<typeof account>[0],
+  viewport: { width: number; height: number },
+) {
   const context = await newContext(browser, viewport);
   const page = await context.newPage();
   const a = account(key);
@@ -141,6 +145,49 @@ describe('crew page, header and one primary button', () => {
     expect(overview[0]).toMatch(/^(Review|Findings of) /);
     await expect(page.getByRole('button', { name: 'Apply' }).getAttribute('class')).resolves.toContain('btn-secondary');
     await screenshot(page, `one-primary-overview-${name}`);
+    await context.close();
+  });
+
+  test('a lead of two crews: the other crew is listed with a switch, and the header’s crew menu switches too', async () => {
+    const context = await newContext(browser, DESKTOP);
+    const page = await context.newPage();
+    await page.goto('/sign-up');
+    await page.getByLabel('E-mail address').fill(`two-${run}@e2e.example`);
+    await page.getByLabel('Your name').fill('Rue Two');
+    await page.getByLabel('Password').fill('two crews one gearbox');
+    await Promise.all([
+      page.waitForURL(/\/\?welcome=1$/),
+      page.getByRole('button', { name: 'Create account' }).click(),
+    ]);
+    await page.goto('/crews');
+    await page.locator('[data-testid=new-crew] > summary').click();
+    await page.getByLabel('Crew name').fill(`School ${run}`);
+    await Promise.all([
+      page.waitForURL(/\/crews\/[0-9a-f-]{36}$/),
+      page.getByRole('button', { name: 'Create crew' }).click(),
+    ]);
+    await page.goto('/crews');
+    await expect(page.locator('h1').textContent()).resolves.toBe(`School ${run}`);
+    await expect(page.getByTestId('crew-list').textContent()).resolves.toContain('Rue Two’s crew');
+    expect(await visiblePrimaries(page)).toEqual(['Invite']);
+    await screenshot(page, 'crew-home-two-crews-desktop');
+    await Promise.all([page.waitForURL(/\/crews$/), page.getByRole('button', { name: 'Work in this crew' }).click()]);
+    await expect(page.locator('h1').textContent()).resolves.toBe('Rue Two’s crew');
+    // The header's crew menu: opens, Escape closes it, and its switch goes back to the school.
+    const summary = page.locator('header [data-testid=crew-switcher] > summary');
+    await summary.click();
+    await expect(page.getByLabel('Crew you are working in').first().isVisible()).resolves.toBe(true);
+    await page.keyboard.press('Escape');
+    await expect(page.getByLabel('Crew you are working in').first().isVisible()).resolves.toBe(false);
+    await summary.click();
+    await page.locator('#crew-switch').selectOption({ label: `School ${run} · lead` });
+    await Promise.all([
+      page.waitForURL(/\/crews$/),
+      page.locator('header [data-testid=crew-switcher]').getByRole('button', { name: 'Switch' }).click(),
+    ]);
+    await expect(page.locator('h1').textContent()).resolves.toBe(`School ${run}`);
+    const header = (await page.getByTestId('app-header').boundingBox())!;
+    expect(header.height).toBeLessThanOrEqual(72);
     await context.close();
   });
 
