@@ -61,9 +61,11 @@ describe.each(SIZES)('the demo crew at %s size', (name, viewport) => {
     for (const card of await cards.all()) {
       expect(await card.locator('[data-level] >> text=/Watch|Act/').count()).toBeGreaterThan(0);
       expect(await card.textContent()).toMatch(/Interval call: (Shorten|Hold|Stretch|Fix first)|No interval call yet/);
-      expect(await card.locator('a[href^="/samples/"]').count()).toBe(1);
+      // One link to the findings; the worst card alone also carries the home's one filled button.
+      expect(await card.locator('a[href^="/samples/"]:not(.btn-primary)').count()).toBe(1);
       expect(await card.locator('a[href^="/machines/"]').count()).toBeGreaterThan(0);
     }
+    expect(await cards.first().locator('.btn-primary').count()).toBe(1);
     // Overdue samples say how late and come first.
     const due = await page
       .getByTestId('home-due')
@@ -146,9 +148,18 @@ describe.each(SIZES)('a new crew at %s size', (name, viewport) => {
     await page.getByLabel('Your name').fill('Noa First');
     await page.getByLabel('Password').fill('first minutes gearbox');
     await Promise.all([
-      page.waitForURL(/\/account\?welcome=1$/),
+      page.waitForURL(/\/\?welcome=1$/),
       page.getByRole('button', { name: 'Create account' }).click(),
     ]);
+    // Sign-up lands on the first steps under one banner: where the confirmation link went.
+    expect(await page.locator('main [role=status], main [role=alert], main .note').count()).toBe(1);
+    await expect(page.getByTestId('form-info').textContent()).resolves.toContain(
+      `We sent a link to ${email} to confirm the address.`,
+    );
+    await expect(
+      page.locator('main .btn-primary').evaluateAll((els) => els.map((e) => e.textContent)),
+    ).resolves.toEqual(['Add a machine']);
+    await screenshot(page, `glance-signed-up-${name}`);
 
     await page.goto('/');
     await expect(page.getByTestId('home-clear').textContent()).resolves.toBe('Nothing waiting.');
@@ -159,6 +170,7 @@ describe.each(SIZES)('a new crew at %s size', (name, viewport) => {
       ['machine', 'no'],
       ['oil-change', 'no'],
       ['drain-card', 'no'],
+      ['import', 'no'],
       ['invite', 'no'],
     ]);
     expect(await page.getByTestId('home-findings').count()).toBe(0);

@@ -10,7 +10,7 @@ import {
   pickWorseLevel,
 } from '~/lib/levels';
 import { CALLS } from '~/lib/analysis/interval-call';
-import { navFor } from '~/lib/navigation';
+import { barNavFor, navFor } from '~/lib/navigation';
 
 describe('levels', () => {
   test('each level has its own word and its own shape, so colour is never the only cue', () => {
@@ -80,5 +80,18 @@ describe('navigation', () => {
   test('marks the current page, including nested paths', () => {
     expect(navFor('/', false).find((i) => i.href === '/')?.current).toBe(true);
     expect(navFor('/elsewhere', false).find((i) => i.href === '/')?.current).toBe(false);
+  });
+
+  // The signed-in desktop bar fits one row at 1024 px: the crew page is reached by the crew's name beside the brand
+  // and the rules page from the footer; the phone menu and a signed-out visitor's bar keep every item.
+  test.each([
+    [true, 'menu', ['/', '/machines', '/samples', '/overview', '/imports', '/crews', '/tools', '/rules', '/account']],
+    [true, 'bar', ['/', '/machines', '/samples', '/overview', '/imports', '/tools', '/account']],
+    [false, 'menu', ['/', '/tools', '/rules', '/sign-in', '/sign-up']],
+    [false, 'bar', ['/', '/tools', '/rules', '/sign-in', '/sign-up']],
+  ] as const)('signed in %s, %s', (signedIn, where, hrefs) => {
+    const items = where === 'menu' ? navFor('/crews/x', signedIn) : barNavFor('/crews/x', signedIn);
+    expect(items.map((i) => i.href)).toEqual(hrefs);
+    expect(items.filter((i) => i.current).map((i) => i.href)).toEqual(signedIn && where === 'menu' ? ['/crews'] : []);
   });
 });

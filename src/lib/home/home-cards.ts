@@ -1,5 +1,6 @@
 /** How the crew home groups its lists: one card per machine with findings, first steps for a new crew. Pure. */
 import type { IntervalCallKind, Level, Role } from '../db/database';
+import { canImportLabReport } from '../auth/permissions';
 import { levelRank } from '../levels';
 
 export interface OpenFinding {
@@ -71,6 +72,8 @@ export interface CrewProgress {
   machines: number;
   machinesWithOilChange: number;
   drainCards: number;
+  /** Samples with lab results in (reviewed or not). */
+  samplesWithResults: number;
   /** Mechanics in the crew plus invitations still open (not accepted, not withdrawn, not expired). */
   mechanicsOrInvites: number;
   /** The first machine, to link its oil-change and drain-card forms. */
@@ -79,7 +82,7 @@ export interface CrewProgress {
 }
 
 export interface FirstStep {
-  key: 'machine' | 'oil-change' | 'drain-card' | 'invite';
+  key: 'machine' | 'oil-change' | 'drain-card' | 'import' | 'invite';
   label: string;
   href: string;
   done: boolean;
@@ -87,10 +90,12 @@ export interface FirstStep {
 
 /**
  * The first steps a new crew takes, each ticked when done; null once the crew has a machine with a logged oil
- * change and a drain card (the home then shows only what needs doing). The invitation step is the lead's alone.
+ * change, a drain card and, for those who import, the lab's first results (the home then shows only what needs
+ * doing). The import step is for leads and mechanics, the invitation step is the lead's alone.
  */
 export function firstSteps(p: CrewProgress, role: Role, crewId: string): FirstStep[] | null {
-  if (p.machinesWithOilChange > 0 && p.drainCards > 0) return null;
+  const imports = canImportLabReport({ crewId, crewName: '', role });
+  if (p.machinesWithOilChange > 0 && p.drainCards > 0 && (p.samplesWithResults > 0 || !imports)) return null;
   const machineHref = (m: string | null, path: string) => (m ? `/machines/${m}/${path}` : '/machines/new');
   const steps: FirstStep[] = [
     { key: 'machine', label: 'Add a machine', href: '/machines/new', done: p.machines > 0 },
@@ -107,6 +112,13 @@ export function firstSteps(p: CrewProgress, role: Role, crewId: string): FirstSt
       done: p.drainCards > 0,
     },
   ];
+  if (imports)
+    steps.push({
+      key: 'import',
+      label: 'Import the lab’s results',
+      href: '/imports',
+      done: p.samplesWithResults > 0,
+    });
   if (role === 'lead')
     steps.push({
       key: 'invite',

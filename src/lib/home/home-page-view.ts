@@ -4,7 +4,7 @@
  */
 import { capitalise, describeFindingReason } from '../analysis/finding-words';
 import type { Role } from '../auth/types';
-import { canConfirmSteadyCalls } from '../auth/permissions';
+import { canConfirmSteadyCalls, canReviewSample } from '../auth/permissions';
 import { CALL_DISPLAY, type IntervalCallKind, type Level } from '../levels';
 import type { Verdict } from '../verdicts/verdicts';
 import { formatMeter } from '../units/units';
@@ -50,6 +50,7 @@ export interface SampleLink {
 
 export interface HomeCardView {
   machineId: string;
+  sampleId: string;
   machineName: string;
   machineHref: string;
   worst: Level;
@@ -61,8 +62,19 @@ export interface HomeCardView {
   bottleCode: string;
 }
 
+/**
+ * The home's one filled button, chosen by state: the worst machine when it is at act, else the one-step
+ * confirmation of steady calls, else the worst machine at watch, else a new crew's next first step.
+ */
+export type HomePrimary =
+  | { kind: 'card'; machineId: string; label: string; href: string }
+  | { kind: 'confirm-steady' }
+  | { kind: 'step'; key: FirstStep['key']; label: string; href: string }
+  | null;
+
 export interface HomeView {
   clear: boolean;
+  primary: HomePrimary;
   steps: FirstStep[] | null;
   cards: HomeCardView[];
   /** "and 3 more", or '' when every entry is listed. */
@@ -103,6 +115,7 @@ function sampleLinks<T extends SampleListRow>(
 export function describeHomeCard(c: MachineCard): HomeCardView {
   return {
     machineId: c.machineId,
+    sampleId: c.sampleId,
     machineName: c.machineName,
     machineHref: `/machines/${c.machineId}`,
     worst: c.worst,
@@ -130,8 +143,46 @@ export function describeDue(m: DueMachine): HomeView['due'][number] {
   };
 }
 
+/** The one filled button of the home (see HomePrimary). */
+export function chooseHomePrimary(
+  v: Pick<HomeView, 'cards' | 'steadyConfirm' | 'steps'>,
+  waitingIds: ReadonlySet<string>,
+  reviewer: boolean,
+): HomePrimary {
+  const worst = v.cards[0];
+  const card = (c: HomeCardView): HomePrimary =>
+    reviewer && waitingIds.has(c.sampleId)
+      ? { kind: 'card', machineId: c.machineId, label: 'Review this sample', href: `/samples/${c.sampleId}#review` }
+      : { kind: 'card', machineId: c.machineId, label: 'Read the findings', href: c.findingsHref };
+  if (worst?.worst === 'act') return card(worst);
+  if (v.steadyConfirm) return { kind: 'confirm-steady' };
+  if (worst) return card(worst);
+  const next = v.steps?.find((st) => !st.done);
+  return next ? { kind: 'step', key: next.key, label: next.label, href: next.href } : null;
+}
+
+/**
+ * The one banner a newcomer sees after sign-up: a welcome, and where the confirmation link went while the
+ * address is unconfirmed. Null without the sign-up's `welcome` flag.
+ */
+export function buildWelcomeNotice(
+  query: URLSearchParams,
+  user: { email: string; emailVerified: boolean },
+): string | null {
+  if (query.get('welcome') !== '1') return null;
+  return user.emailVerified
+    ? 'Welcome to Sumpwise.'
+    : `Welcome to Sumpwise. We sent a link to ${user.email} to confirm the address.`;
+}
+
 /** The crew home's model for a member of `role`. */
 export function buildHomeView(home: CrewHomeInput, role: Role, crewId: string): HomeView {
+  const view = buildHomeLists(home, role, crewId);
+  const reviewer = canReviewSample({ crewId, crewName: '', role });
+  return { ...view, primary: chooseHomePrimary(view, new Set(home.waiting.map((w) => w.id)), reviewer) };
+}
+
+function buildHomeLists(home: CrewHomeInput, role: Role, crewId: string): Omit<HomeView, 'primary'> {
   return {
     clear: home.drawn.length + home.overdue.length + home.waiting.length + home.cards.length + home.due.length === 0,
     steps: firstSteps(home.progress, role, crewId),

@@ -68,12 +68,13 @@ export async function listOpenFindings(db: Kysely<Database>, crewId: string, lim
   return rows;
 }
 
-/** How far a crew has come: machines, machines with an oil change, drain cards, mechanics and open invitations. */
+/** How far a crew has come: machines, oil changes, drain cards, samples with results, mechanics and invitations. */
 export async function loadCrewProgress(db: Kysely<Database>, crewId: string): Promise<CrewProgress> {
   const { rows } = await sql<{
     machines: string;
     with_change: string;
     drain_cards: string;
+    with_results: string;
     mechanics: string;
     first_machine: string | null;
     first_with_change: string | null;
@@ -83,6 +84,7 @@ export async function loadCrewProgress(db: Kysely<Database>, crewId: string): Pr
       (select count(*) from machines m where m.crew_id = ${crewId} and m.archived_at is null
          and exists (select 1 from oil_changes oc where oc.machine_id = m.id)) as with_change,
       (select count(*) from samples s where s.crew_id = ${crewId}) as drain_cards,
+      (select count(*) from samples s where s.crew_id = ${crewId} and s.state in ('results_in', 'reviewed')) as with_results,
       (select count(*) from crew_members cm where cm.crew_id = ${crewId} and cm.role = 'mechanic')
         + (select count(*) from crew_invitations ci where ci.crew_id = ${crewId} and ci.role = 'mechanic'
              and ci.accepted_at is null and ci.revoked_at is null and ci.expires_at > now()) as mechanics,
@@ -95,6 +97,7 @@ export async function loadCrewProgress(db: Kysely<Database>, crewId: string): Pr
     machines: Number(r.machines),
     machinesWithOilChange: Number(r.with_change),
     drainCards: Number(r.drain_cards),
+    samplesWithResults: Number(r.with_results),
     mechanicsOrInvites: Number(r.mechanics),
     firstMachineId: r.first_machine,
     firstMachineWithOilChangeId: r.first_with_change,

@@ -21,11 +21,12 @@ const ticks = async () =>
   firstSteps(await loadCrewProgress(db, crewId), 'lead', crewId)?.map((s) => [s.key, s.done]) ?? null;
 
 describe('loadCrewProgress and the first steps', () => {
-  test('each step is ticked by what the crew has done, and the list goes once a machine has an oil change and a drain card', async () => {
+  test('each step is ticked by what the crew has done, and the list goes once a machine has an oil change, a drain card and results', async () => {
     expect(await ticks()).toEqual([
       ['machine', false],
       ['oil-change', false],
       ['drain-card', false],
+      ['import', false],
       ['invite', false],
     ]);
 
@@ -34,6 +35,7 @@ describe('loadCrewProgress and the first steps', () => {
       ['machine', true],
       ['oil-change', false],
       ['drain-card', false],
+      ['import', false],
       ['invite', false],
     ]);
 
@@ -48,7 +50,7 @@ describe('loadCrewProgress and the first steps', () => {
         expires_at: sql`now() + interval '7 days'` as never,
       })
       .execute();
-    expect((await ticks())![3]).toEqual(['invite', true]);
+    expect((await ticks())![4]).toEqual(['invite', true]);
 
     await db
       .insertInto('oil_changes')
@@ -67,6 +69,7 @@ describe('loadCrewProgress and the first steps', () => {
       machines: 1,
       machinesWithOilChange: 1,
       drainCards: 0,
+      samplesWithResults: 0,
       firstMachineId: m.id,
       firstMachineWithOilChangeId: m.id,
     });
@@ -74,10 +77,15 @@ describe('loadCrewProgress and the first steps', () => {
       ['machine', true],
       ['oil-change', true],
       ['drain-card', false],
+      ['import', false],
       ['invite', true],
     ]);
 
-    await makeSample(db, crewId, m.id, leadId, 'FS-1');
+    // A drain card alone leaves the import step; the lab's first results end the list.
+    const sample = await makeSample(db, crewId, m.id, leadId, 'FS-1');
+    expect((await ticks())!.filter(([, done]) => !done)).toEqual([['import', false]]);
+    await db.updateTable('samples').set({ state: 'results_in' }).where('id', '=', sample.id).execute();
+    expect(await loadCrewProgress(db, crewId)).toMatchObject({ drainCards: 1, samplesWithResults: 1 });
     expect(await ticks()).toBeNull();
   });
 

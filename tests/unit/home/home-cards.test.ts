@@ -67,6 +67,7 @@ describe('firstSteps', () => {
     machines: 0,
     machinesWithOilChange: 0,
     drainCards: 0,
+    samplesWithResults: 0,
     mechanicsOrInvites: 0,
     firstMachineId: null,
     firstMachineWithOilChangeId: null,
@@ -82,6 +83,7 @@ describe('firstSteps', () => {
         ['machine', false],
         ['oil-change', false],
         ['drain-card', false],
+        ['import', false],
         ['invite', false],
       ],
     ],
@@ -103,6 +105,7 @@ describe('firstSteps', () => {
         ['machine', true],
         ['oil-change', false],
         ['drain-card', false],
+        ['import', false],
         ['invite', false],
       ],
     ],
@@ -121,6 +124,7 @@ describe('firstSteps', () => {
         ['machine', true],
         ['oil-change', true],
         ['drain-card', false],
+        ['import', false],
         ['invite', true],
       ],
     ],
@@ -132,6 +136,7 @@ describe('firstSteps', () => {
         ['machine', true],
         ['oil-change', false],
         ['drain-card', true],
+        ['import', false],
       ],
     ],
   ] as const)('%s', (_name, progress, role, expected) => {
@@ -144,6 +149,7 @@ describe('firstSteps', () => {
       '/machines/new',
       '/machines/m1/oil-change',
       '/machines/m1/drain-card',
+      '/imports',
       '/crews/c1#invite-h',
     ]);
     expect(
@@ -153,20 +159,23 @@ describe('firstSteps', () => {
     ).toEqual(['/machines/new', '/machines/new']);
   });
 
-  test('gone once a machine has an oil change and a drain card', () => {
-    expect(
-      firstSteps(
-        {
-          ...none,
-          machines: 1,
-          machinesWithOilChange: 1,
-          drainCards: 1,
-          firstMachineId: 'm1',
-          firstMachineWithOilChangeId: 'm1',
-        },
-        'lead',
-        'c1',
-      ),
-    ).toBeNull();
+  const drained = {
+    ...none,
+    machines: 1,
+    machinesWithOilChange: 1,
+    drainCards: 1,
+    firstMachineId: 'm1',
+    firstMachineWithOilChangeId: 'm1',
+  };
+  test.each([
+    ['lead, results not in yet: the import step is left', drained, 'lead', false],
+    ['lead, results in', { ...drained, samplesWithResults: 1 }, 'lead', true],
+    ['mechanic, results in', { ...drained, samplesWithResults: 1 }, 'mechanic', true],
+    // A rider does not import, so the steps end with the drain card.
+    ['rider, results not in yet', drained, 'rider', true],
+  ] as const)('gone once an oil change, a drain card and (for importers) results are in: %s', (_l, p, role, gone) => {
+    const steps = firstSteps(p, role, 'c1');
+    expect(steps === null).toBe(gone);
+    if (steps) expect(steps.filter((s) => !s.done).map((s) => s.key)).toEqual(['import', 'invite']);
   });
 });

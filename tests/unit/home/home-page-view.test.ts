@@ -1,6 +1,13 @@
 import { describe, expect, test } from 'vitest';
 import type { MachineCard } from '~/lib/home/home-cards';
-import { buildHomeView, describeDue, describeHomeCard, describeMore, LIST_MAX } from '~/lib/home/home-page-view';
+import {
+  buildHomeView,
+  buildWelcomeNotice,
+  describeDue,
+  describeHomeCard,
+  describeMore,
+  LIST_MAX,
+} from '~/lib/home/home-page-view';
 import type { DueMachine } from '~/lib/home/home.service';
 import { CALL_DISPLAY } from '~/lib/levels';
 
@@ -8,6 +15,7 @@ const progress = {
   machines: 1,
   machinesWithOilChange: 1,
   drainCards: 1,
+  samplesWithResults: 1,
   mechanicsOrInvites: 1,
   firstMachineId: 'm1',
   firstMachineWithOilChangeId: 'm1',
@@ -152,6 +160,79 @@ describe('the crew home model', () => {
       'lead',
       'c1',
     );
-    expect(v.steps?.map((s) => s.key)).toEqual(['machine', 'oil-change', 'drain-card', 'invite']);
+    expect(v.steps?.map((s) => s.key)).toEqual(['machine', 'oil-change', 'drain-card', 'import', 'invite']);
+  });
+});
+
+describe('one filled button on the home, chosen by state', () => {
+  const watchCard: MachineCard = {
+    ...card,
+    machineId: 'm2',
+    sampleId: 's2',
+    worst: 'watch',
+    main: { ...finding, level: 'watch' },
+  };
+  const waiting = (id: string) => ({ id, bottle_code: 'B', machine_name: 'M', drawn_on: '2026-03-01' });
+  const fresh = { ...progress, machines: 0, machinesWithOilChange: 0, drainCards: 0, samplesWithResults: 0 };
+  test.each([
+    // name, input, role, expected primary
+    [
+      'an act machine waiting for review beats the steady confirmation',
+      { ...empty, cards: [card], waiting: [waiting('s1')], steadyCount: 4 },
+      'mechanic',
+      { kind: 'card', machineId: 'm1', label: 'Review this sample', href: '/samples/s1#review' },
+    ],
+    [
+      'an act machine already reviewed: its findings',
+      { ...empty, cards: [card], steadyCount: 4 },
+      'lead',
+      { kind: 'card', machineId: 'm1', label: 'Read the findings', href: '/samples/s1#findings' },
+    ],
+    [
+      'a rider is not offered a review',
+      { ...empty, cards: [card], waiting: [waiting('s1')] },
+      'rider',
+      { kind: 'card', machineId: 'm1', label: 'Read the findings', href: '/samples/s1#findings' },
+    ],
+    [
+      'steady calls waiting and nothing at act',
+      { ...empty, cards: [watchCard], steadyCount: 2 },
+      'lead',
+      { kind: 'confirm-steady' },
+    ],
+    [
+      'only a watch machine',
+      { ...empty, cards: [watchCard], waiting: [waiting('s2')] },
+      'lead',
+      { kind: 'card', machineId: 'm2', label: 'Review this sample', href: '/samples/s2#review' },
+    ],
+    [
+      'a new crew: its next first step',
+      { ...empty, progress: fresh },
+      'lead',
+      { kind: 'step', key: 'machine', label: 'Add a machine', href: '/machines/new' },
+    ],
+    ['nothing to do', empty, 'lead', null],
+  ] as const)('%s', (_name, home, role, primary) => {
+    expect(
+      buildHomeView({ ...home, cards: [...home.cards] } as Parameters<typeof buildHomeView>[0], role, 'c1').primary,
+    ).toEqual(primary);
+  });
+
+  test('the steady confirmation is only for those who confirm calls', () => {
+    const v = buildHomeView({ ...empty, steadyCount: 3 }, 'rider', 'c1');
+    expect(v.steadyConfirm).toBeNull();
+    expect(v.primary).toBeNull();
+  });
+});
+
+describe('the banner after sign-up', () => {
+  test.each([
+    ['welcome=1', false, 'Welcome to Sumpwise. We sent a link to ada@example.test to confirm the address.'],
+    ['welcome=1', true, 'Welcome to Sumpwise.'],
+    ['', false, null],
+    ['welcome=<b>x</b>', false, null],
+  ])('?%s, confirmed %s', (query, emailVerified, words) => {
+    expect(buildWelcomeNotice(new URLSearchParams(query), { email: 'ada@example.test', emailVerified })).toBe(words);
   });
 });
