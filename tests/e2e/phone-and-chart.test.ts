@@ -372,7 +372,7 @@ describe('phone-first shell and a readable chart band', () => {
     ['phone', PHONE],
     ['desktop', DESKTOP],
   ] as const)(
-    'screens with dates, %s: samples, machine, home, imports and a sample, for looking at',
+    'screens with dates, %s: samples, machine, home, imports, samples, overview and history, for looking at',
     async (label, size) => {
       const context = await newContext(browser, size);
       const page = await context.newPage();
@@ -380,14 +380,25 @@ describe('phone-first shell and a readable chart band', () => {
       await page.goto(`/machines/${actMachineId}`);
       const sampleHref = await page.locator('[data-testid="machine-samples"] tbody a').first().getAttribute('href');
       expect(sampleHref).toMatch(/^\/samples\//);
+      // A shipped bottle's page keeps its drain details and history open: their dates show.
+      await page.goto('/samples?state=shipped');
+      const shippedHref = await page.locator('[data-testid="samples-shipped"] tbody a').first().getAttribute('href');
       for (const [name, at] of [
         ['samples', '/samples'],
         ['machine', `/machines/${actMachineId}`],
         ['home', '/'],
         ['imports', '/imports'],
         ['sample', sampleHref!],
+        ['sample-shipped', shippedHref!],
+        ['overview', '/overview'],
+        ['history', `/machines/${actMachineId}/history`],
       ] as const) {
         await page.goto(at);
+        if (name === 'machine') {
+          // The chart loads when it comes into view.
+          await page.locator('#wear-chart').scrollIntoViewIfNeeded();
+          await page.locator('[data-testid="wear-chart"] canvas').waitFor({ state: 'visible', timeout: 15_000 });
+        }
         // No page of these shows a date the old way, in a table or outside one. A lab file's name keeps its own
         // ISO day ("…-2026-02-08.csv"): only a date standing alone counts.
         const isoShown = await page.evaluate(() => {
