@@ -416,6 +416,14 @@ describe('phone-first shell and a readable chart band', () => {
         });
         expect(isoShown, name).toEqual([]);
         await screenshot(page, `dates-${name}-${label}`);
+        if (name === 'machine') {
+          // The chart across dates: its axis and table say days in words too.
+          await page.getByRole('radio', { name: 'Date' }).check();
+          await page.locator('[data-testid="wear-chart"] canvas').waitFor({ state: 'visible', timeout: 15_000 });
+          await page
+            .locator('#wear-chart')
+            .screenshot({ path: path.join(SCREENSHOT_DIR, `dates-chart-by-date-${label}.png`) });
+        }
       }
       await context.close();
     },
