@@ -78,7 +78,8 @@ export interface HomeView {
     href: string;
     name: string;
     overdueWords: string | null;
-    dueBy: string | null;
+    /** The ISO day the next sample is due by, when a date is a reason (the page writes "Due by 1 Feb 2026."). */
+    dueOn: string | null;
     dueAt: string | null;
     fromManufacturer: boolean;
   }[];
@@ -133,7 +134,7 @@ export function describeDue(m: DueMachine): HomeView['due'][number] {
     href: `/machines/${m.id}`,
     name: m.name,
     overdueWords: m.overdue && m.overdue.days > 0 ? m.overdue.words : null,
-    dueBy: m.due.reasons.includes('date') && m.nextSampleOn ? `Due by ${formatDay(m.nextSampleOn)}. ` : null,
+    dueOn: m.due.reasons.includes('date') && m.nextSampleOn ? m.nextSampleOn.slice(0, 10) : null,
     dueAt: byOdometer
       ? `Due at ${formatMeter(m.nextSampleOdometer!, m.meter)}; from recent riding it is probably at about ${formatMeter(m.estimate!.odometer, m.meter)}. `
       : null,

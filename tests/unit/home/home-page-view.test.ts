@@ -77,12 +77,12 @@ describe('home lists', () => {
     [
       'late by date',
       dueBase,
-      { overdueWords: 'due 3 days ago', dueBy: 'Due by 1 Feb 2026. ', dueAt: null, fromManufacturer: false },
+      { overdueWords: 'due 3 days ago', dueOn: '2026-02-01', dueAt: null, fromManufacturer: false },
     ],
     [
       'due today, not yet late',
       { ...dueBase, overdue: { days: 0, words: 'due today' } },
-      { overdueWords: null, dueBy: 'Due by 1 Feb 2026. ' },
+      { overdueWords: null, dueOn: '2026-02-01' },
     ],
     [
       'by the meter estimate, from the manual',
@@ -97,7 +97,7 @@ describe('home lists', () => {
       },
       {
         overdueWords: null,
-        dueBy: null,
+        dueOn: null,
         dueAt: 'Due at 12,000 km; from recent riding it is probably at about 12,050 km. ',
         fromManufacturer: true,
       },
