@@ -269,7 +269,7 @@ describe('new-oil reference in Chromium', () => {
     expect(await page.getByTestId('new-oil-rows').textContent()).toContain('Written to the reference');
     await page.goto(referenceUrl);
     const figures = await page.getByTestId('new-oil-figures').textContent();
-    expect(figures).toContain(`Bottle ${bottle}, results of 2026-11-20`);
+    expect(figures).toContain(`Bottle ${bottle}, results of 20 Nov 2026`);
     expect(figures).toContain('KV100 18.4 mm²/s');
     await page.setViewportSize(PHONE);
     await screenshot(page, 'new-oil-08-lab-reference-phone');

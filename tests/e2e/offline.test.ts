@@ -174,6 +174,8 @@ describe('the garage without signal', () => {
     expect(await page.getByTestId('offline-tag').textContent()).toContain(
       `${issuedCode.slice(0, 3)}-${issuedCode.slice(3)}`,
     );
+    // The tag made on the device writes the day as the server's tag does ("Drawn 2 Dec 2026").
+    expect(await page.getByTestId('offline-tag').textContent()).toMatch(/Drawn \d{1,2} [A-Z][a-z]{2} \d{4}\b/);
     await screenshot(page, 'offline-02-tag-from-device');
     await page.getByRole('button', { name: 'Register sample' }).click();
     await page.getByTestId('offline-form-status').getByText('Saved on this device').waitFor();
@@ -200,6 +202,13 @@ describe('the garage without signal', () => {
     expect(await page.getByTestId('outbox-list').textContent()).toMatch(
       /Drain card · Shed 690[\s\S]*Bottle [\s\S]*Oil change · Shed 690[\s\S]*5,200 km, 10W-40 · 1 photo/,
     );
+    // When each was saved, in the one format ("Saved 2 Dec 2026, 14:05 in …"), with its moment machine-readable.
+    const saved = await items
+      .first()
+      .locator('time')
+      .evaluate((t) => [t.textContent, t.getAttribute('datetime')]);
+    expect(saved[0]).toMatch(/^\d{1,2} [A-Z][a-z]{2} \d{4}, \d{2}:\d{2}$/);
+    expect(Number.isNaN(Date.parse(saved[1] ?? ''))).toBe(false);
     expect(await items.evaluateAll((els) => els.map((e) => e.getAttribute('data-state')))).toEqual([
       'waiting',
       'waiting',

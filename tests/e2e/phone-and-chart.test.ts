@@ -8,19 +8,21 @@ import type { Browser, Page } from 'playwright-core';
 import { DEMO_ACCOUNTS } from '../../sample-data/seed-accounts';
 import { createDb } from '~/lib/db/db';
 import path from 'node:path';
-import { DESKTOP, PHONE, SCREENSHOT_DIR, launchBrowser, newContext, screenshot } from './helpers/browser';
+import { DESKTOP, PHONE, SCREENSHOT_DIR, baseUrl, launchBrowser, newContext, screenshot } from './helpers/browser';
 import { seriousViolations } from './helpers/axe';
 import { signInAs } from './helpers/sign-in';
 
 const lead = DEMO_ACCOUNTS.find((a) => a.key === 'lead')!;
 
 /**
- * Dates (2026-03-02), bottle codes (SW-1041) and SAE grades (10W-40) in data-table cells that the browser laid
- * out on more than one line: each match's text range must sit on one line box.
+ * Dates (2 Mar 2026, 2 Mar 2026, 14:05, or an ISO 2026-03-02 in a file name), bottle codes (SW-1041) and SAE
+ * grades (10W-40) in data-table cells that the browser laid out on more than one line: each match's text range
+ * must sit on one line box.
  */
 async function brokenTokens(page: Page): Promise<string[]> {
   return page.evaluate(() => {
-    const TOKEN = /\b(\d{4}-\d{2}-\d{2}|[A-Z]{2,}-\d{2,}|\d{1,2}W-\d{2})\b/g;
+    const TOKEN =
+      /\b(\d{1,2} [A-Z][a-z]{2} \d{4}(, \d{2}:\d{2})?|\d{4}-\d{2}-\d{2}|[A-Z]{2,}-\d{2,}|\d{1,2}W-\d{2})\b/g;
     const out: string[] = [];
     for (const cell of Array.from(document.querySelectorAll('table.data-table :is(td, th)'))) {
       if ((cell as HTMLElement).offsetParent === null) continue;
@@ -41,6 +43,32 @@ async function brokenTokens(page: Page): Promise<string[]> {
               `${m[0]} on ${tops.size} lines in “${cell.getAttribute('data-label') ?? ''}”: ${text.slice(0, 60)}`,
             );
         }
+      }
+    }
+    return out;
+  });
+}
+
+/**
+ * Dates a person reads in data-table cells that are not in the one format: an ISO day outside a file name, or a
+ * <time> without a machine-readable datetime.
+ */
+async function datesOutOfFormat(page: Page): Promise<string[]> {
+  return page.evaluate(() => {
+    const out: string[] = [];
+    for (const cell of Array.from(document.querySelectorAll('table.data-table :is(td, th)'))) {
+      if ((cell as HTMLElement).offsetParent === null) continue;
+      const walker = document.createTreeWalker(cell, NodeFilter.SHOW_TEXT);
+      for (let node = walker.nextNode(); node; node = walker.nextNode()) {
+        // A lab file keeps the name it was uploaded with, ISO days and all.
+        if (node.parentElement?.closest('a[href^="/imports/"]')) continue;
+        if (/(?<![\w-])\d{4}-\d{2}-\d{2}(?![\w-])/.test(node.textContent ?? ''))
+          out.push(`ISO text: ${node.textContent}`);
+      }
+      for (const t of Array.from(cell.querySelectorAll('time'))) {
+        const dt = t.getAttribute('datetime') ?? '';
+        if (!/^\d{4}-\d{2}-\d{2}/.test(dt) || !/^\d{1,2} [A-Z][a-z]{2} \d{4}/.test(t.textContent ?? ''))
+          out.push(`time "${t.textContent}" datetime="${dt}"`);
       }
     }
     return out;
@@ -188,6 +216,8 @@ describe('phone-first shell and a readable chart band', () => {
         const cells = await page.locator('table.data-table td').count();
         expect(cells, path).toBeGreaterThan(0);
         expect(await brokenTokens(page), path).toEqual([]);
+        expect(await datesOutOfFormat(page), path).toEqual([]);
+        expect(await page.locator('table.data-table time[datetime]').count(), path).toBeGreaterThan(0);
         if (label === 'phone') {
           // Every visible body cell of a card table names its column, and no card is wider than the screen.
           const unlabelled = await page.evaluate(
@@ -287,6 +317,114 @@ describe('phone-first shell and a readable chart band', () => {
       await page
         .locator('#wear-chart')
         .screenshot({ path: path.join(SCREENSHOT_DIR, `phone-and-chart-chart-${label}.png`) });
+      await context.close();
+    },
+  );
+  test('scripts off, phone: a samples table cell carries its column label as a card line, and dates read as words', async () => {
+    // Sign in with scripts on, then read the page in a context that runs none.
+    const signedIn = await newContext(browser, PHONE);
+    await signInAs(await signedIn.newPage(), lead.email, lead.password);
+    const storageState = await signedIn.storageState();
+    await signedIn.close();
+    const context = await browser.newContext({
+      viewport: PHONE,
+      baseURL: baseUrl(),
+      deviceScaleFactor: 1,
+      javaScriptEnabled: false,
+      storageState,
+    });
+    const page = await context.newPage();
+    await page.goto('/samples');
+    const table = page.locator('table.data-table').first();
+    const drawn = table.locator('tbody tr').first().locator('td[data-label="Drawn"]');
+    await expect(drawn.count()).resolves.toBe(1);
+    // The label is drawn by CSS from the attribute, beside the value, with the heading row out of sight.
+    const look = await drawn.evaluate((td) => {
+      const before = getComputedStyle(td, '::before');
+      const head = td.closest('table')!.tHead!.getBoundingClientRect();
+      return {
+        label: before.content,
+        labelShown: before.display !== 'none' && before.visibility !== 'hidden',
+        cellDisplay: getComputedStyle(td).display,
+        headHeight: head.height,
+        time: td.querySelector('time')?.textContent ?? '',
+        datetime: td.querySelector('time')?.getAttribute('datetime') ?? '',
+      };
+    });
+    expect(look.label).toBe('"Drawn"');
+    expect(look.labelShown).toBe(true);
+    expect(look.cellDisplay).toBe('block');
+    expect(look.headHeight).toBeLessThanOrEqual(1);
+    expect(look.time).toMatch(/^\d{1,2} (Jan|Feb|Mar|Apr|May|Jun|Jul|Aug|Sep|Oct|Nov|Dec) \d{4}$/);
+    expect(look.datetime).toMatch(/^\d{4}-\d{2}-\d{2}$/);
+    // Every visible body cell of every card table on the page names its column.
+    const unlabelled = await page
+      .locator('table.data-table:not(.table-keep) > tbody > tr > td:not([colspan])')
+      .evaluateAll(
+        (tds) => tds.filter((td) => (td as HTMLElement).offsetParent !== null && !td.hasAttribute('data-label')).length,
+      );
+    expect(unlabelled).toBe(0);
+    await screenshot(page, 'phone-and-chart-samples-no-script-phone');
+    await context.close();
+  });
+
+  test.each([
+    ['phone', PHONE],
+    ['desktop', DESKTOP],
+  ] as const)(
+    'screens with dates, %s: samples, machine, home, imports, samples, overview and history, for looking at',
+    async (label, size) => {
+      const context = await newContext(browser, size);
+      const page = await context.newPage();
+      await signInAs(page, lead.email, lead.password);
+      await page.goto(`/machines/${actMachineId}`);
+      const sampleHref = await page.locator('[data-testid="machine-samples"] tbody a').first().getAttribute('href');
+      expect(sampleHref).toMatch(/^\/samples\//);
+      // A shipped bottle's page keeps its drain details and history open: their dates show.
+      await page.goto('/samples?state=shipped');
+      const shippedHref = await page.locator('[data-testid="samples-shipped"] tbody a').first().getAttribute('href');
+      for (const [name, at] of [
+        ['samples', '/samples'],
+        ['machine', `/machines/${actMachineId}`],
+        ['home', '/'],
+        ['imports', '/imports'],
+        ['sample', sampleHref!],
+        ['sample-shipped', shippedHref!],
+        ['overview', '/overview'],
+        ['history', `/machines/${actMachineId}/history`],
+      ] as const) {
+        await page.goto(at);
+        if (name === 'machine') {
+          // The chart loads when it comes into view.
+          await page.locator('#wear-chart').scrollIntoViewIfNeeded();
+          await page.locator('[data-testid="wear-chart"] canvas').waitFor({ state: 'visible', timeout: 15_000 });
+        }
+        // No page of these shows a date the old way, in a table or outside one. A lab file's name keeps its own
+        // ISO day ("…-2026-02-08.csv"): only a date standing alone counts.
+        const isoShown = await page.evaluate(() => {
+          const main = document.querySelector('main')!;
+          const walker = document.createTreeWalker(main, NodeFilter.SHOW_TEXT);
+          const out: string[] = [];
+          for (let node = walker.nextNode(); node; node = walker.nextNode()) {
+            const el = node.parentElement;
+            if (!el || el.closest('a[href^="/imports/"], script, style, [hidden]') || el.offsetParent === null)
+              continue;
+            if (/(?<![\w-])\d{4}-\d{2}-\d{2}(?![\w-])/.test(node.textContent ?? ''))
+              out.push((node.textContent ?? '').trim().slice(0, 80));
+          }
+          return out;
+        });
+        expect(isoShown, name).toEqual([]);
+        await screenshot(page, `dates-${name}-${label}`);
+        if (name === 'machine') {
+          // The chart across dates: its axis and table say days in words too.
+          await page.getByRole('radio', { name: 'Date' }).check();
+          await page.locator('[data-testid="wear-chart"] canvas').waitFor({ state: 'visible', timeout: 15_000 });
+          await page
+            .locator('#wear-chart')
+            .screenshot({ path: path.join(SCREENSHOT_DIR, `dates-chart-by-date-${label}.png`) });
+        }
+      }
       await context.close();
     },
   );

@@ -11,6 +11,7 @@ import OutboxList from './OutboxList';
 import { getOutboxItem, putOutboxItem, removeOutboxItem } from './outbox-store';
 import { flushOutbox, requestBackgroundSync } from './outbox-sync';
 import { formatCount } from '~/lib/words/words';
+import { formatDay } from '~/lib/words/dates';
 
 interface Props {
   kind: OutboxKind;
@@ -20,6 +21,8 @@ interface Props {
   partId?: string;
   /** The machine's meter unit (mi, km, h), for the label in the list. */
   unit: string;
+  /** The reader's time zone, for the times in the outbox list. */
+  timeZone?: string | null;
 }
 
 const SUCCESS_QUERY: Record<OutboxKind, string> = {
@@ -85,7 +88,7 @@ function showFieldErrors(form: HTMLFormElement, fields: Record<string, string>):
   }
 }
 
-export default function OfflineForm({ kind, formId, machineId, machineName, partId, unit }: Props) {
+export default function OfflineForm({ kind, formId, machineId, machineName, partId, unit, timeZone }: Props) {
   const [status, setStatus] = useState('');
   const [editing, setEditing] = useState<OutboxItem | null>(null);
   const [tagCode, setTagCode] = useState<string | null>(null);
@@ -258,7 +261,7 @@ export default function OfflineForm({ kind, formId, machineId, machineName, part
         {status}
       </p>
       {tagCode && <OfflineTag code={tagCode} formId={formId} machineName={machineName} unit={unit} />}
-      <OutboxList kind={kind} />
+      <OutboxList kind={kind} timeZone={timeZone} />
     </div>
   );
 }
@@ -318,7 +321,7 @@ function OfflineTag({
             <p className="font-mono text-2xl font-bold tracking-wider">{code}</p>
             <p>{machineName}</p>
             <p className="text-sm">
-              Drawn {details['drawnOn'] ?? ''}
+              Drawn {formatDay(details['drawnOn'] ?? '')}
               {details['odometer'] ? ` at ${details['odometer']} ${unit}` : ''}
               {details['saeGrade'] ? ` · ${details['saeGrade']}` : ''}
             </p>

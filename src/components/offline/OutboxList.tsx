@@ -5,6 +5,7 @@ import { STATE_LOOK, editUrlOf, type OutboxItem, type OutboxKind } from '~/lib/o
 import { listOutbox, onOutboxChange, removeOutboxItem } from './outbox-store';
 import { flushOutbox, type FlushReport } from './outbox-sync';
 import { formatCount } from '~/lib/words/words';
+import { formatMoment, runtimeTimeZone } from '~/lib/words/dates';
 import type { Level } from '~/lib/levels';
 
 interface Props {
@@ -12,6 +13,8 @@ interface Props {
   kind?: OutboxKind;
   /** Show the heading and the empty state (the full page), or nothing when empty (beside a form). */
   full?: boolean;
+  /** The reader's time zone (the account's); this device's when absent. */
+  timeZone?: string | null;
 }
 
 const TONE: Record<Level, string> = {
@@ -26,12 +29,13 @@ const KIND_WORD: Record<OutboxKind, string> = {
   'wear-reading': 'Wear-part measurement',
 };
 
-function formatTime(iso: string): string {
-  const d = new Date(iso);
-  return Number.isNaN(d.getTime()) ? '' : d.toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' });
+/** When an entry was saved, in the reader's zone (the account's when the page passes it, else this device's). */
+function formatTime(iso: string, timeZone: string): string {
+  return formatMoment(new Date(iso), timeZone);
 }
 
-export default function OutboxList({ kind, full = false }: Props) {
+export default function OutboxList({ kind, full = false, timeZone }: Props) {
+  const zone = timeZone || runtimeTimeZone();
   const [items, setItems] = useState<OutboxItem[] | null>(null);
   const [online, setOnline] = useState(true);
   const [status, setStatus] = useState('');
@@ -138,9 +142,13 @@ export default function OutboxList({ kind, full = false }: Props) {
                   {item.photos.length > 0 ? ` · ${formatCount(item.photos.length, 'photo')}` : ''}
                 </p>
                 <p className="text-xs text-ink-soft">
-                  Saved {formatTime(item.savedAt)} in {item.crewName}
+                  Saved{' '}
+                  <time dateTime={item.savedAt} className="whitespace-nowrap">
+                    {formatTime(item.savedAt, zone)}
+                  </time>{' '}
+                  in {item.crewName}
                   {item.attempts > 0 && item.lastTriedAt
-                    ? ` · tried ${item.attempts}×, last ${formatTime(item.lastTriedAt)}`
+                    ? ` · tried ${item.attempts}×, last ${formatTime(item.lastTriedAt, zone)}`
                     : ''}
                 </p>
                 {item.message && (

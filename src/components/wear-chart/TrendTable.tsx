@@ -3,6 +3,7 @@ import type { Level } from '~/lib/levels';
 import type { TrendResponse } from '~/lib/trends/trend-types';
 import { LEVEL_COLOURS } from './chart-styles';
 import { formatBand, formatChartFigure, formatDistance, formatFromBaseline, formatReported } from './format';
+import { formatDay } from '~/lib/words/dates';
 
 const SHAPES: Record<Level, string> = {
   steady: '<circle cx="10" cy="10" r="7" />',
@@ -77,8 +78,10 @@ export function TrendTable({ data }: { data: TrendResponse }) {
                       {p.bottleCode}
                     </a>
                   </td>
-                  <td data-label="Date" className="nowrap">
-                    {p.date}
+                  <td data-label="Date">
+                    <time dateTime={p.date.slice(0, 10)} className="nowrap">
+                      {formatDay(p.date)}
+                    </time>
                   </td>
                   <td data-label="Odometer" className="num">
                     {formatDistance(p.odometer, meter)}

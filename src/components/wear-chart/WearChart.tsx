@@ -31,7 +31,15 @@ import {
   pointRadiusFor,
   pointStyleFor,
 } from './chart-styles';
-import { formatBand, formatChartFigure, formatDistance, formatFromBaseline, formatReported, xToDate } from './format';
+import {
+  formatBand,
+  formatChartFigure,
+  formatDistance,
+  formatFromBaseline,
+  formatDateTick,
+  formatReported,
+} from './format';
+import { formatDay } from '~/lib/words/dates';
 import { TrendTable } from './TrendTable';
 
 ChartJS.register(LineController, LineElement, PointElement, LinearScale, Filler, Tooltip);
@@ -412,7 +420,7 @@ function buildChart(data: TrendResponse): {
         type: 'linear',
         title: { display: true, text: data.x === 'date' ? 'Date drawn' : `Odometer (${meter})` },
         ticks: {
-          callback: (v) => (data.x === 'date' ? xToDate(Number(v)) : Number(v).toLocaleString('en-US')),
+          callback: (v) => (data.x === 'date' ? formatDateTick(Number(v)) : Number(v).toLocaleString('en-US')),
           maxRotation: 0,
           autoSkip: true,
         },
@@ -435,7 +443,7 @@ function buildChart(data: TrendResponse): {
         callbacks: {
           title: (items: TooltipItem<'line'>[]) => {
             const p = (items[0]?.raw as XYPoint | undefined)?.point;
-            return p ? `Bottle ${p.bottleCode} · ${p.date}` : '';
+            return p ? `Bottle ${p.bottleCode} · ${formatDay(p.date)}` : '';
           },
           label: (item: TooltipItem<'line'>) => {
             const p = (item.raw as XYPoint).point;

@@ -1,6 +1,7 @@
 /** Number and label formatting shared by the wear chart and its table. */
 import { formatFigure } from '~/lib/analysis/figures';
 import type { TrendPoint } from '~/lib/trends/trend-types';
+import { formatDay } from '~/lib/words/dates';
 
 /** A figure as the chart and its table show it: the engine's rounding, with thousands separators. */
 export function formatChartFigure(v: number): string {
@@ -41,4 +42,9 @@ export function dateToX(date: string): number {
 /** YYYY-MM-DD of an epoch-millisecond tick. */
 export function xToDate(ms: number): string {
   return new Date(ms).toISOString().slice(0, 10);
+}
+
+/** An axis tick by date as people read it ("3 Nov 2026"): the tick is a UTC midnight, so no zone shifts it. */
+export function formatDateTick(ms: number): string {
+  return Number.isFinite(ms) ? formatDay(xToDate(ms)) : '';
 }

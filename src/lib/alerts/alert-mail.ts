@@ -77,7 +77,7 @@ export function composeImportFindingsAlert(input: {
       const ordered = [...s.findings].sort((a, b) => byLevelWorstFirst(a.level, b.level));
       for (const f of ordered) {
         lines.push({
-          text: `${LEVEL_DISPLAY[f.level].word}${f.measurand ? ` · ${f.measurand}` : ''} (bottle ${s.bottleCode}, drawn ${s.drawnOn}): ${f.sentence}`,
+          text: `${LEVEL_DISPLAY[f.level].word}${f.measurand ? ` · ${f.measurand}` : ''} (bottle ${s.bottleCode}, drawn ${formatDay(s.drawnOn)}): ${f.sentence}`,
         });
       }
       lines.push({ text: `Sample ${s.bottleCode}, readings and findings`, url: s.url });
@@ -166,7 +166,7 @@ export function composeInvitationPendingAlert(input: {
     kind: 'invitation_pending',
     subject: fitSubject(`Invitation to ${input.crewName} not accepted yet: ${input.email}`),
     title: 'An invitation is still waiting',
-    intro: `${input.email} was invited to ${input.crewName} on ${input.invitedOn} and has not accepted after ${formatCount(input.days, 'day')}.`,
+    intro: `${input.email} was invited to ${input.crewName} on ${formatDay(input.invitedOn)} and has not accepted after ${formatCount(input.days, 'day')}.`,
     lines: [
       {
         text: input.expired

@@ -9,6 +9,7 @@ import { CALL_DISPLAY, type IntervalCallKind, type Level } from '../levels';
 import type { Verdict } from '../verdicts/verdicts';
 import { formatMeter } from '../units/units';
 import { formatCount } from '../words/words';
+import { formatDay } from '../words/dates';
 import { firstSteps, type CrewProgress, type FirstStep, type MachineCard } from './home-cards';
 import type { DueMachine } from './home.service';
 import { isUuid } from '../ids';
@@ -41,8 +42,10 @@ export interface SampleLink {
   href: string;
   machineName: string;
   bottleCode: string;
-  /** "2026-03-01", "drawn 2026-03-01" or "shipped 2026-03-01". */
+  /** "1 Mar 2026", "drawn 1 Mar 2026" or "shipped 1 Mar 2026". */
   when: string;
+  /** The day of `when` as ISO, for the datetime attribute. */
+  whenOn: string;
   /** For samples with results: the level and the call. */
   level?: Level;
   call?: IntervalCallKind | null;
@@ -87,7 +90,8 @@ export interface HomeView {
     href: string;
     name: string;
     overdueWords: string | null;
-    dueBy: string | null;
+    /** The ISO day the next sample is due by, when a date is a reason (the page writes "Due by 1 Feb 2026."). */
+    dueOn: string | null;
     dueAt: string | null;
     fromManufacturer: boolean;
   }[];
@@ -104,11 +108,19 @@ export function describeMore(n: number): string {
 function sampleLinks<T extends SampleListRow>(
   rows: readonly T[],
   href: (r: T) => string,
-  when: (r: T) => string,
+  when: (r: T) => { words: string; on: string },
 ): SampleLink[] {
-  return rows
-    .slice(0, LIST_MAX)
-    .map((r) => ({ href: href(r), machineName: r.machine_name, bottleCode: r.bottle_code, when: when(r) }));
+  return rows.slice(0, LIST_MAX).map((r) => {
+    const { words, on } = when(r);
+    const day = formatDay(on);
+    return {
+      href: href(r),
+      machineName: r.machine_name,
+      bottleCode: r.bottle_code,
+      when: words ? `${words} ${day}` : day,
+      whenOn: on.slice(0, 10),
+    };
+  });
 }
 
 /** A machine card in words: the worst finding's reason and sentence, the interval call, the link to all findings. */
@@ -135,7 +147,7 @@ export function describeDue(m: DueMachine): HomeView['due'][number] {
     href: `/machines/${m.id}`,
     name: m.name,
     overdueWords: m.overdue && m.overdue.days > 0 ? m.overdue.words : null,
-    dueBy: m.due.reasons.includes('date') && m.nextSampleOn ? `Due by ${m.nextSampleOn}. ` : null,
+    dueOn: m.due.reasons.includes('date') && m.nextSampleOn ? m.nextSampleOn.slice(0, 10) : null,
     dueAt: byOdometer
       ? `Due at ${formatMeter(m.nextSampleOdometer!, m.meter)}; from recent riding it is probably at about ${formatMeter(m.estimate!.odometer, m.meter)}. `
       : null,
@@ -191,7 +203,7 @@ function buildHomeLists(home: CrewHomeInput, role: Role, crewId: string): Omit<H
     waiting: sampleLinks(
       home.waiting,
       (s) => `/samples/${s.id}#review`,
-      (s) => s.drawn_on,
+      (s) => ({ words: '', on: s.drawn_on }),
     ).map((link, i) => {
       const v = home.waitingVerdicts?.get(home.waiting[i]!.id);
       return v ? { ...link, level: v.level, call: v.call } : link;
@@ -208,12 +220,12 @@ function buildHomeLists(home: CrewHomeInput, role: Role, crewId: string): Omit<H
     overdue: sampleLinks(
       home.overdue,
       (s) => `/samples/${s.id}`,
-      (s) => `shipped ${s.shipped_on}`,
+      (s) => ({ words: 'shipped', on: s.shipped_on }),
     ),
     drawn: sampleLinks(
       home.drawn,
       (s) => `/samples/${s.id}`,
-      (s) => `drawn ${s.drawn_on}`,
+      (s) => ({ words: 'drawn', on: s.drawn_on }),
     ),
     drawnMore: describeMore(home.drawn.length),
   };

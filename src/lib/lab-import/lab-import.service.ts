@@ -31,6 +31,7 @@ import {
 import * as repo from './lab-import.repository';
 import { refuse, succeed, type Refusal, type Result } from '../http/result';
 import { isUuid } from '../ids';
+import { formatDay, formatMomentDay } from '../words/dates';
 import { queueImportAlerts } from '../alerts/alerts.service';
 import { recomputeChangedSamples } from '../findings/findings.service';
 import { recordSampleStates } from '../samples/sample-lifecycle';
@@ -129,7 +130,8 @@ function answerExisting(file: {
   confirmed_at: Date | null;
 }): Result<StoredLabFile> {
   if (file.import_id) {
-    const on = file.confirmed_at ? ` on ${file.confirmed_at.toISOString().slice(0, 10)}` : '';
+    // A refusal knows no reader's zone: the day is the UTC one, and says so.
+    const on = file.confirmed_at ? ` on ${formatMomentDay(file.confirmed_at, 'UTC')} (UTC)` : '';
     return refuse(
       409,
       'already_imported',
@@ -192,7 +194,7 @@ function describeDecision(
       return `${at}: bottle "${bottle}" is already registered on ${match.machineName}; write it there or skip the row.`;
     case 'has-results':
       if (decision?.action === 'replace') return null;
-      return `${at}: the sample with bottle "${bottle}" (${match.machineName}, ${match.drawnOn}) already has ${match.existing} results. Choose "replace" to write these and keep the old values in its history, or skip the row.`;
+      return `${at}: the sample with bottle "${bottle}" (${match.machineName}, ${formatDay(match.drawnOn)}) already has ${match.existing} results. Choose "replace" to write these and keep the old values in its history, or skip the row.`;
     case 'unknown':
       if (decision?.action === 'create') {
         return machineIds.has(decision.machineId)

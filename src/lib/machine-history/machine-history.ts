@@ -11,6 +11,7 @@ import type { Machine } from '../machines/machines';
 import type { OilChange } from '../oil-changes/oil-changes';
 import { formatLength, formatMeter, type MeterUnit } from '../units/units';
 import { describeCallAuthor, type CallSource } from '../words/words';
+import { formatDay } from '../words/dates';
 import type { WearPartDetail } from '../wear-parts/wear-parts.service';
 
 /** The readings the history table shows, in its column order. */
@@ -181,7 +182,7 @@ export function buildMachineHistory(input: MachineHistoryInput): MachineHistoryV
           level: f.level,
           ruleId: f.ruleId,
           measurand: f.measurand ?? '',
-          title: `${s.drawnOn} · ${capitalise(describeFindingReason(f.ruleId, f.measurand))}`,
+          title: `${formatDay(s.drawnOn)} · ${capitalise(describeFindingReason(f.ruleId, f.measurand))}`,
           sentence: f.sentence,
           overrideNote,
         }));
@@ -192,7 +193,9 @@ export function buildMachineHistory(input: MachineHistoryInput): MachineHistoryV
         name: p.name,
         newRange: `${formatLength(p.newMinMm, lengthUnit)} to ${formatLength(p.newMaxMm, lengthUnit)}`,
         serviceLimit: formatLength(p.serviceLimitMm, lengthUnit),
-        lastMeasured: last ? `${formatLength(last.summaryMm, lengthUnit)} on ${last.measuredOn}` : 'not measured',
+        lastMeasured: last
+          ? `${formatLength(last.summaryMm, lengthUnit)} on ${formatDay(last.measuredOn)}`
+          : 'not measured',
         lastOdometer: last ? formatMeter(last.odometer, meter) : '',
       };
     }),

@@ -17,6 +17,7 @@ import { describeForecast, formatWholeMeter } from '../wear-parts/forecast-words
 import type { WearMeasurement, WearPart } from '../wear-parts/wear-parts';
 import { COOLING_LABELS, LAYOUT_LABELS, type Machine, type Meter } from './machines';
 import type { IntervalCallKind, Level } from '../levels';
+import { formatDay } from '../words/dates';
 import { describeCallWithDistance, describeVerdictReason, type Verdict } from '../verdicts/verdicts';
 
 /** Recent oil changes are shown as cards; older ones fold into a table. */
@@ -37,6 +38,7 @@ export interface MachinePageInput {
 }
 
 export interface OilChangeCard {
+  /** ISO days here and below stay machine-readable: the page writes them for people (components/ui/Day.astro). */
   changedOn: string;
   odometer: string;
   /** "+1,200 km since the previous change" (as the figure) or the words for a first or meter-swap change. */
@@ -175,7 +177,7 @@ export function buildMachinePageView(input: MachinePageInput): MachinePageView {
       otherWork: c.otherWork,
       photos: c.photos.map((p) => ({
         href: `/api/photos/${p.id}`,
-        alt: p.caption || `Photo from the oil change on ${c.changedOn}`,
+        alt: p.caption || `Photo from the oil change on ${formatDay(c.changedOn)}`,
       })),
     })),
     olderChanges: input.oilChanges.slice(RECENT_CHANGES).map((c) => ({

@@ -6,6 +6,7 @@ import { getMeasurand, MEASURAND_CODES, type MeasurandCode } from '../analysis/m
 import type { Reading } from '../analysis/types';
 import { hasFigures, type NewOilReference } from './new-oil';
 import type { ProductInUse } from './new-oil.service';
+import { formatDay, formatMomentDay } from '../words/dates';
 
 const UNITS: Partial<Record<MeasurandCode, string>> = {
   KV40: 'mm²/s',
@@ -34,12 +35,12 @@ export function describeReadings(readings: Partial<Record<MeasurandCode, Reading
   return MEASURAND_CODES.flatMap((c) => (readings[c] ? [formatReferenceReading(c, readings[c]!)] : [])).join(' · ');
 }
 
-/** Where a reference stands, in words. */
-export function describeReferenceState(ref: NewOilReference): string {
-  if (ref.source === 'data-sheet') return `Saved ${ref.updatedAt.toISOString().slice(0, 10)}`;
+/** Where a reference stands, in words; when it was saved is the day in the reader's `timeZone`. */
+export function describeReferenceState(ref: NewOilReference, timeZone: string | null | undefined): string {
+  if (ref.source === 'data-sheet') return `Saved ${formatMomentDay(ref.updatedAt, timeZone)}`;
   if (!hasFigures(ref))
     return `Bottle ${ref.bottleCode} is at the lab: its results are written here when the lab’s file is imported.`;
-  return `Bottle ${ref.bottleCode}, results of ${ref.resultsOn ?? '—'}`;
+  return `Bottle ${ref.bottleCode}, results of ${ref.resultsOn ? formatDay(ref.resultsOn) : '—'}`;
 }
 
 /** The sentence shown where a product has no reference with figures. */

@@ -1,6 +1,8 @@
 // Which pages the service worker keeps a copy of, and how a saved copy says it is one. Pure functions,
 // shared by the service worker, the pages and the tests.
 
+import { formatMoment, runtimeTimeZone } from '../words/dates';
+
 export const PAGE_CACHE = 'sumpwise-pages';
 /** Set on each kept copy: when it was saved. */
 export const SAVED_AT_HEADER = 'x-sumpwise-saved-at';
@@ -26,10 +28,8 @@ export function markSavedCopy(html: string, savedAt: string): string {
 }
 
 /** The sentence a saved copy shows. */
-export function savedCopySentence(savedAt: string, locale?: string, timeZone?: string): string {
+export function savedCopySentence(savedAt: string, timeZone: string = runtimeTimeZone()): string {
   const d = new Date(savedAt);
-  const when = Number.isNaN(d.getTime())
-    ? 'an earlier visit'
-    : d.toLocaleString(locale ?? 'en-GB', { dateStyle: 'medium', timeStyle: 'short', timeZone });
+  const when = Number.isNaN(d.getTime()) ? 'an earlier visit' : formatMoment(d, timeZone);
   return `You are offline: showing what was saved at ${when}. What you save now is kept on this device and sent when the network returns.`;
 }

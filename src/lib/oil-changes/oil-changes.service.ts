@@ -26,6 +26,7 @@ import {
 import { parseSaeGrade } from './sae-grade';
 import { checkCrewQuota } from '../storage-quota/storage-quota';
 import { sumCrewStorageBytes } from '../storage-quota/storage-quota.repository';
+import { formatDay } from '../words/dates';
 
 /** A machine's oil changes, newest first, each with the distance since the one before and its photos. */
 export async function listOilChanges(
@@ -102,13 +103,13 @@ export async function createOilChange(
         const before = await findOilChangeBefore(trx, crewId, machineId, d.changedOn);
         if (before && odometer < before.odometer - 1e-9) {
           return refuse(400, 'invalid_input', 'Some fields need attention.', {
-            odometer: `Lower than the reading at the oil change on ${before.changed_on} (${formatMeter(before.odometer, machine.meter)}). If the odometer or hour meter was replaced, tick “meter replaced”.`,
+            odometer: `Lower than the reading at the oil change on ${formatDay(before.changed_on)} (${formatMeter(before.odometer, machine.meter)}). If the odometer or hour meter was replaced, tick “meter replaced”.`,
           });
         }
         const after = await findOilChangeAfter(trx, crewId, machineId, d.changedOn);
         if (after && !after.meter_replaced && odometer > after.odometer + 1e-9) {
           return refuse(400, 'invalid_input', 'Some fields need attention.', {
-            odometer: `Higher than the reading at the later oil change on ${after.changed_on} (${formatMeter(after.odometer, machine.meter)}).`,
+            odometer: `Higher than the reading at the later oil change on ${formatDay(after.changed_on)} (${formatMeter(after.odometer, machine.meter)}).`,
           });
         }
       }

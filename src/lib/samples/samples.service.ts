@@ -18,6 +18,7 @@ import { drainCardSchema, shipSchema, toSample, type Sample } from './samples';
 import { recordSampleDrawn, recordSampleState } from './sample-lifecycle';
 import { drainCardOdometerPrefill, estimateCurrentOdometer } from '../home/odometer-estimate';
 import { listOdometerHistory } from '../overview/overview.repository';
+import { formatDay } from '../words/dates';
 import {
   countSamplesByState,
   findSampleByBottleCode,
@@ -183,7 +184,7 @@ export async function registerDrainCard(
   const firstOnDay = changes.filter((c) => c.changedOn <= d.drawnOn).at(-1);
   if (!change && firstOnDay && firstOnDay.odometer > odometer && !firstOnDay.meterReplaced) {
     return refuse(400, 'invalid_input', 'Some fields need attention.', {
-      odometer: `Lower than at the oil change on ${firstOnDay.changedOn} (${formatMeter(firstOnDay.odometer, machine.meter)}).`,
+      odometer: `Lower than at the oil change on ${formatDay(firstOnDay.changedOn)} (${formatMeter(firstOnDay.odometer, machine.meter)}).`,
     });
   }
   const distanceOnOil = change ? odometer - change.odometer : null;
@@ -193,7 +194,7 @@ export async function registerDrainCard(
       const taken = await findSampleByBottleCode(trx, crewId, norm);
       if (taken) {
         return refuse(409, 'duplicate_bottle_code', 'That bottle code is already used.', {
-          bottleCode: `Bottle code ${d.bottleCode} is already on a sample of ${taken.machine_name} drawn on ${taken.drawn_on}. Each bottle needs its own code.`,
+          bottleCode: `Bottle code ${d.bottleCode} is already on a sample of ${taken.machine_name} drawn on ${formatDay(taken.drawn_on)}. Each bottle needs its own code.`,
         });
       }
       const newOilBottle = (await findNewOilBottles(trx, crewId, [norm])).get(norm);

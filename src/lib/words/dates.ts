@@ -76,3 +76,12 @@ export function formatMoment(at: Date, timeZone: string | null | undefined): str
 export function formatMomentDay(at: Date, timeZone: string | null | undefined): string {
   return formatMoment(at, timeZone).split(',')[0] ?? '';
 }
+
+/** The zone this runtime reports (a browser's is the device's), or UTC when it reports none. */
+export function runtimeTimeZone(): string {
+  try {
+    return Intl.DateTimeFormat().resolvedOptions().timeZone || DEFAULT_TIME_ZONE;
+  } catch {
+    return DEFAULT_TIME_ZONE;
+  }
+}

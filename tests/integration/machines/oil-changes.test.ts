@@ -93,7 +93,7 @@ describe('oil changes', () => {
     expect(lower.ok).toBe(false);
     if (!lower.ok)
       expect(lower.fields['odometer']).toMatch(
-        /Lower than the reading at the oil change on 2025-01-01 \(12,000 mi\).*meter replaced/,
+        /Lower than the reading at the oil change on 1 Jan 2025 \(12,000 mi\).*meter replaced/,
       );
     expect((await countRiderRows(db)).oil_changes).toBe(1);
     const replaced = await createOilChange(

@@ -106,7 +106,7 @@ describe('drain cards', () => {
       over: { bottleCode: 'VL 20931' },
       field: 'bottleCode',
       status: 409,
-      message: /already on a sample of Gravel 450 drawn on 2025-07-01/,
+      message: /already on a sample of Gravel 450 drawn on 1 Jul 2025/,
     },
     {
       name: 'negative odometer',

@@ -68,6 +68,9 @@ describe('composeImportFindingsAlert', () => {
       `${BASE}/machines/m2`,
       `${BASE}/samples/s9`,
     ]);
+    expect(texts).toContain(
+      'Act · Al (bottle SW-4, drawn 10 Apr 2026): Aluminium is at the fixed limit: pistons or bores.',
+    );
   });
 
   test('watch only says watch', () => {
@@ -188,7 +191,7 @@ describe('reminders', () => {
       expired,
     });
     expect(a.lines[0]!.text).toMatch(phrase);
-    expect(a.intro).toContain('after 7 days');
+    expect(a.intro).toContain('on 1 Mar 2026 and has not accepted after 7 days');
   });
 });
 

@@ -85,12 +85,12 @@ describe('home lists', () => {
     [
       'late by date',
       dueBase,
-      { overdueWords: 'due 3 days ago', dueBy: 'Due by 2026-02-01. ', dueAt: null, fromManufacturer: false },
+      { overdueWords: 'due 3 days ago', dueOn: '2026-02-01', dueAt: null, fromManufacturer: false },
     ],
     [
       'due today, not yet late',
       { ...dueBase, overdue: { days: 0, words: 'due today' } },
-      { overdueWords: null, dueBy: 'Due by 2026-02-01. ' },
+      { overdueWords: null, dueOn: '2026-02-01' },
     ],
     [
       'by the meter estimate, from the manual',
@@ -105,7 +105,7 @@ describe('home lists', () => {
       },
       {
         overdueWords: null,
-        dueBy: null,
+        dueOn: null,
         dueAt: 'Due at 12,000 km; from recent riding it is probably at about 12,050 km. ',
         fromManufacturer: true,
       },
@@ -139,17 +139,30 @@ describe('the crew home model', () => {
     );
     expect(v.clear).toBe(false);
     expect(v.waiting).toEqual([
-      { href: '/samples/w1#review', machineName: 'Road twin', bottleCode: 'W1', when: '2026-02-20' },
+      {
+        href: '/samples/w1#review',
+        machineName: 'Road twin',
+        bottleCode: 'W1',
+        when: '20 Feb 2026',
+        whenOn: '2026-02-20',
+      },
     ]);
     expect(v.overdue).toEqual([
-      { href: '/samples/o1', machineName: 'Road twin', bottleCode: 'O1', when: 'shipped 2026-01-02' },
+      {
+        href: '/samples/o1',
+        machineName: 'Road twin',
+        bottleCode: 'O1',
+        when: 'shipped 2 Jan 2026',
+        whenOn: '2026-01-02',
+      },
     ]);
     expect(v.drawn).toHaveLength(LIST_MAX);
     expect(v.drawn[0]).toEqual({
       href: '/samples/d0',
       machineName: 'Trail 450',
       bottleCode: 'B0',
-      when: 'drawn 2026-03-01',
+      when: 'drawn 1 Mar 2026',
+      whenOn: '2026-03-01',
     });
     expect(v.drawnMore).toBe('and 2 more');
   });

@@ -129,10 +129,10 @@ describe('buildMachineHistory', () => {
         ],
       }),
     );
-    expect(v.findings.map((f) => [f.title.slice(0, 10), f.level])).toEqual([
-      ['2026-01-10', 'watch'],
-      ['2026-02-10', 'act'],
-      ['2026-02-10', 'watch'],
+    expect(v.findings.map((f) => [f.title.split(' · ')[0], f.level])).toEqual([
+      ['10 Jan 2026', 'watch'],
+      ['10 Feb 2026', 'act'],
+      ['10 Feb 2026', 'watch'],
     ]);
     expect(v.hasFindings).toBe(true);
     expect(buildMachineHistory(input({})).hasFindings).toBe(false);

@@ -128,7 +128,7 @@ describe('the machine page model', () => {
       sinceWords: 'first logged change',
       oil: '10W-40 · Shop oil · 1.2 L · filter changed · 0.2 L topped up before',
       otherWork: ['chain'],
-      photos: [{ href: '/api/photos/p1', alt: 'Photo from the oil change on 2026-09-01' }],
+      photos: [{ href: '/api/photos/p1', alt: 'Photo from the oil change on 1 Sep 2026' }],
     });
     expect(v.oilNow).toEqual({ grade: '10W-40', product: '· Shop oil', since: '2026-09-01', odometer: '10,000 km' });
     expect(v.olderChanges).toEqual([

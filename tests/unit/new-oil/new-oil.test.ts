@@ -264,17 +264,24 @@ describe('new-oil screens', () => {
 });
 
 describe('describeReferenceState', () => {
+  // Saved at 10:00 UTC on 30 Nov: Pacific/Kiritimati is UTC+14 all year (IANA tz database), so there it is
+  // already 1 Dec; America/Los_Angeles (UTC−8 in November) is still on 30 Nov.
   test.each([
-    [ref({}), 'Saved 2026-11-30'],
+    [ref({}), 'UTC', 'Saved 30 Nov 2026'],
+    [ref({}), 'Pacific/Kiritimati', 'Saved 1 Dec 2026'],
+    [ref({}), 'America/Los_Angeles', 'Saved 30 Nov 2026'],
+    [ref({}), null, 'Saved 30 Nov 2026'],
     [
       ref({ source: 'lab', bottleCode: 'NO-1' }),
+      'UTC',
       'Bottle NO-1 is at the lab: its results are written here when the lab’s file is imported.',
     ],
     [
       ref({ source: 'lab', bottleCode: 'NO-1', resultsOn: '2026-11-20', readings: { KV100: { value: 14 } } }),
-      'Bottle NO-1, results of 2026-11-20',
+      'Pacific/Kiritimati',
+      'Bottle NO-1, results of 20 Nov 2026',
     ],
-  ])('%#', (r, text) => {
-    expect(describeReferenceState(r)).toBe(text);
+  ])('%# in %s', (r, zone, text) => {
+    expect(describeReferenceState(r, zone)).toBe(text);
   });
 });

@@ -46,6 +46,6 @@ describe('a saved copy says so', () => {
     ['2026-12-02T06:30:00.000Z', /^You are offline: showing what was saved at 2 Dec 2026, 06:30\./],
     ['not a time', /^You are offline: showing what was saved at an earlier visit\./],
   ])('sentence for %s', (at, sentence) => {
-    expect(savedCopySentence(at, 'en-GB', 'UTC')).toMatch(sentence);
+    expect(savedCopySentence(at, 'UTC')).toMatch(sentence);
   });
 });
