@@ -79,7 +79,7 @@ export function findSampleEvents(db: Db, sampleId: string) {
       'sample_events.state',
       'sample_events.note',
       'sample_events.at',
-      'users.display_name as actor_name',
+      'users.display_name as actorName',
     ])
     .where('sample_events.sample_id', '=', sampleId)
     .orderBy('sample_events.at')

@@ -70,7 +70,7 @@ describe('drain cards', () => {
     const detail = await getSampleDetail(db, rider, r.value.sample.id);
     if (!detail.ok) throw new Error('detail');
     expect(detail.value.events.map((e) => e.state)).toEqual(['drawn']);
-    expect(detail.value.events[0]!.actor_name).toBe('Test Rider');
+    expect(detail.value.events[0]!.actorName).toBe('Test Rider');
   });
 
   test('a sample at the very reading of the last change belongs to the oil that change drained', async () => {
@@ -208,7 +208,7 @@ describe('sample states', () => {
     expect(await db.transaction().execute((t) => recordSampleState(t, id, 'reviewed', mech.userId))).toBe(true);
     const d = await getSampleDetail(db, rider, id);
     if (!d.ok) throw new Error('detail');
-    expect(d.value.events.map((e) => [e.state, e.actor_name !== null])).toEqual([
+    expect(d.value.events.map((e) => [e.state, e.actorName !== null])).toEqual([
       ['drawn', true],
       ['shipped', true],
       ['results_in', false],
