@@ -65,8 +65,11 @@ describe('decision first', () => {
     await page.goto('/');
     const queue = '[data-testid="home-waiting"] li';
     for (const w of await levelWords(page, queue)) expect(w).toMatch(LEVEL_WORDS);
-    const dates = await page.locator(`${queue} a > span:last-child`).allTextContents();
+    const dates = await page
+      .locator(`${queue} a > time`)
+      .evaluateAll((els) => els.map((e) => e.getAttribute('datetime') ?? ''));
     expect(dates.length).toBeGreaterThan(0);
+    for (const d of dates) expect(d).toMatch(/^\d{4}-\d{2}-\d{2}/);
     expect(dates).toEqual([...dates].sort().reverse());
     await screenshot(page, `decision-home-${name}`);
 
