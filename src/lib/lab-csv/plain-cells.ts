@@ -48,6 +48,46 @@ export function parsePlainNumber(cell: string, mark: DecimalMark, from = 0): num
   return decimals > 0 ? mantissa / EXACT_POWERS_OF_TEN[decimals]! : mantissa;
 }
 
+/** Largest digits-as-integer a plain-number key holds, so that key × 4 stays a small integer (V8's Smi, 2^30). */
+const MAX_KEY_MANTISSA = 2 ** 24;
+
+/**
+ * The same cells as parsePlainNumber, answered as a small integer key instead of a number: the digits read as an
+ * integer times 16, plus the count of decimals. Equal keys mean equal values, and no floating-point number is made
+ * (a fractional double is a fresh heap object in V8, and 270,000 of them are garbage). -1 when the cell is not plain
+ * or its digits are too many for a key; parsePlainNumber then reads it.
+ */
+export function plainNumberKey(cell: string, mark: DecimalMark, from = 0): number {
+  const end = cell.length;
+  if (from >= end) return -1;
+  const markCode = mark === '.' ? 46 : 44;
+  let mantissa = 0;
+  let digits = 0;
+  let decimals = -1;
+  for (let i = from; i < end; i += 1) {
+    const c = cell.charCodeAt(i);
+    if (c >= 48 && c <= 57) {
+      mantissa = mantissa * 10 + (c - 48);
+      digits += 1;
+      // Past these, parsePlainNumber hands the cell to Number(): the key would not be its twin.
+      if (mantissa >= MAX_KEY_MANTISSA || digits > MAX_EXACT_DIGITS) return -1;
+      if (decimals >= 0) decimals += 1;
+    } else if (c === markCode && decimals === -1 && i > from && i < end - 1) {
+      decimals = 0;
+    } else {
+      return -1;
+    }
+  }
+  return mantissa * 16 + (decimals > 0 ? decimals : 0);
+}
+
+/** The value of a plainNumberKey: exactly what parsePlainNumber gives for the same cell. */
+export function plainKeyValue(key: number): number {
+  const decimals = key % 16;
+  const mantissa = (key - decimals) / 16;
+  return decimals > 0 ? mantissa / EXACT_POWERS_OF_TEN[decimals]! : mantissa;
+}
+
 /** "ND" or "nd" alone: not detected, without a limit (read as 0 with qualifier "<", like the full reader). */
 export function isBareNotDetected(cell: string): boolean {
   return cell.length === 2 && (cell === 'ND' || cell === 'nd' || cell === 'Nd' || cell === 'nD');
