@@ -24,6 +24,82 @@ export interface CsvGrid {
   isBlank(r: number): boolean;
   /** 1-based line of the file where row `r` starts (a quoted field may span lines). */
   lineOf(r: number): number;
+  /**
+   * Row `r` as a view of where its cells lie, read without making a string per cell. The view is reused: it is
+   * valid until the next call to `view`. Undefined when there is no such row.
+   */
+  view(r: number): RowView | undefined;
+}
+
+/**
+ * The cells of one row as ranges of a source text: cell i is `source(i).slice(start(i), end(i))`. Cells past the
+ * last are empty, as `cells[i] ?? ''` reads them.
+ */
+export interface RowView {
+  readonly length: number;
+  cell(i: number): string;
+  source(i: number): string;
+  start(i: number): number;
+  end(i: number): number;
+  /** True when cell i holds more than white space. */
+  isFilled(i: number): boolean;
+}
+
+/** True when `text` from `start` to `end` holds a character other than white space (String.prototype.trim's set). */
+export function hasTextBetween(text: string, start: number, end: number): boolean {
+  for (let i = start; i < end; i += 1) {
+    const c = text.charCodeAt(i);
+    // Printable ASCII other than the space is filled; anything else is asked of the white-space class.
+    if ((c > 32 && c < 127) || !WHITE_SPACE.test(text[i]!)) return true;
+  }
+  return false;
+}
+
+/** A view over cells already split. */
+class ArrayRowView implements RowView {
+  cells: readonly string[] = [];
+  get length(): number {
+    return this.cells.length;
+  }
+  cell(i: number): string {
+    return this.cells[i] ?? '';
+  }
+  source(i: number): string {
+    return this.cells[i] ?? '';
+  }
+  start(): number {
+    return 0;
+  }
+  end(i: number): number {
+    return this.cells[i]?.length ?? 0;
+  }
+  isFilled(i: number): boolean {
+    const cell = this.cells[i];
+    return cell !== undefined && hasTextBetween(cell, 0, cell.length);
+  }
+}
+
+/** A view over one line of a quote-free text: where each cell starts, and the delimiter after it. */
+class LineRowView implements RowView {
+  length = 0;
+  /** starts[i] is where cell i begins; starts[i + 1] - 1 where it ends (one past the end for the last). */
+  starts = new Int32Array(64);
+  constructor(private readonly body: string) {}
+  cell(i: number): string {
+    return i < this.length ? this.body.slice(this.starts[i], this.starts[i + 1]! - 1) : '';
+  }
+  source(): string {
+    return this.body;
+  }
+  start(i: number): number {
+    return i < this.length ? this.starts[i]! : 0;
+  }
+  end(i: number): number {
+    return i < this.length ? this.starts[i + 1]! - 1 : 0;
+  }
+  isFilled(i: number): boolean {
+    return i < this.length && hasTextBetween(this.body, this.starts[i]!, this.starts[i + 1]! - 1);
+  }
 }
 
 export interface CsvGridResult {
@@ -35,6 +111,8 @@ export interface CsvGridResult {
 
 export type CsvSplitter = 'auto' | 'papaparse';
 
+const WHITE_SPACE = /\s/;
+
 /** True when every cell is empty or white space (String.prototype.trim's set, which /\s/ matches exactly). */
 function cellsBlank(cells: readonly string[]): boolean {
   for (const cell of cells) if (cell.length > 0 && cell.trim() !== '') return false;
@@ -43,7 +121,14 @@ function cellsBlank(cells: readonly string[]): boolean {
 
 /** A grid over rows already split (papaparse's output, or a pivoted long-format file). */
 export function arrayGrid(rows: readonly (readonly string[])[], lines?: readonly number[]): CsvGrid {
+  const view = new ArrayRowView();
   return {
+    view: (r) => {
+      const cells = rows[r];
+      if (!cells) return undefined;
+      view.cells = cells;
+      return view;
+    },
     length: rows.length,
     row: (r) => rows[r],
     isBlank: (r) => {
@@ -54,14 +139,14 @@ export function arrayGrid(rows: readonly (readonly string[])[], lines?: readonly
   };
 }
 
-const WHITE_SPACE = /\s/;
-
 /** Rows that are the lines of a text without quote characters, split at `delimiter` on demand. */
 class LineGrid implements CsvGrid {
   readonly length: number;
   private readonly starts: number[] = [];
   private lastIndex = -1;
   private lastCells: string[] = [];
+  private readonly rowView: LineRowView;
+  private viewIndex = -1;
 
   constructor(
     private readonly body: string,
@@ -71,6 +156,34 @@ class LineGrid implements CsvGrid {
     this.starts.push(0);
     for (let i = body.indexOf('\n'); i !== -1; i = body.indexOf('\n', i + 1)) this.starts.push(i + 1);
     this.length = this.starts.length;
+    this.rowView = new LineRowView(body);
+  }
+
+  view(r: number): RowView | undefined {
+    if (r < 0 || r >= this.length) return undefined;
+    const view = this.rowView;
+    if (r === this.viewIndex) return view;
+    this.viewIndex = r;
+    const delimiter = this.delimiter;
+    const end = this.end(r);
+    let count = 0;
+    let at = this.starts[r]!;
+    for (;;) {
+      if (count + 2 > view.starts.length) {
+        const grown = new Int32Array(view.starts.length * 2);
+        grown.set(view.starts);
+        view.starts = grown;
+      }
+      view.starts[count] = at;
+      count += 1;
+      const next = this.body.indexOf(delimiter, at);
+      if (next === -1 || next >= end) break;
+      at = next + 1;
+    }
+    // One past the last cell's end, as if a delimiter followed it.
+    view.starts[count] = end + 1;
+    view.length = count;
+    return view;
   }
 
   private end(r: number): number {
@@ -92,9 +205,7 @@ class LineGrid implements CsvGrid {
     const delimiter = this.delimiter.charCodeAt(0);
     for (let i = this.starts[r]!, end = this.end(r); i < end; i += 1) {
       const c = this.body.charCodeAt(i);
-      if (c === delimiter) continue;
-      // Printable ASCII other than the space is filled; anything else is asked of the white-space class.
-      if ((c > 32 && c < 127) || !WHITE_SPACE.test(this.body[i]!)) return false;
+      if (c !== delimiter && hasTextBetween(this.body, i, i + 1)) return false;
     }
     return true;
   }

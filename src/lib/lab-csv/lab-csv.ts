@@ -279,12 +279,13 @@ class PlainReadings {
 
   constructor(private readonly mark: DecimalMark) {}
 
-  get(cell: string): LabReading | undefined {
-    const first = cell.charCodeAt(0);
-    const notDetected = isBareNotDetected(cell);
+  /** The reading of the cell `text.slice(start, end)`, read in place. */
+  get(text: string, start: number, end: number): LabReading | undefined {
+    const first = start < end ? text.charCodeAt(start) : -1;
+    const notDetected = isBareNotDetected(text, start, end);
     const qualifier: Qualifier | undefined = first === 60 || notDetected ? '<' : first === 62 ? '>' : undefined;
-    const from = qualifier === undefined ? 0 : 1;
-    const key = notDetected ? 0 : plainNumberKey(cell, this.mark, from);
+    const from = qualifier === undefined ? start : start + 1;
+    const key = notDetected ? 0 : plainNumberKey(text, this.mark, from, end);
     if (key >= 0) {
       const keyed = key * 4 + (qualifier === undefined ? 0 : qualifier === '<' ? 1 : 2);
       const known = this.byKey.get(keyed);
@@ -293,7 +294,7 @@ class PlainReadings {
       if (this.byKey.size < MAX_PLAIN_READINGS) this.byKey.set(keyed, reading);
       return reading;
     }
-    const value = notDetected ? 0 : parsePlainNumber(cell, this.mark, from);
+    const value = notDetected ? 0 : parsePlainNumber(text, this.mark, from, end);
     return Number.isNaN(value) ? undefined : this.byValue(value, qualifier);
   }
 
@@ -838,6 +839,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
   const bottleLines = new Map<string, number>();
   const pendingDates = new Map<number, PendingDate[]>();
   const width = headerCells.length;
+  const dateColumns = [sampledColumn, reportedColumn].filter((c) => c !== undefined);
 
   for (let r = firstDataRow; r < grid.length; r += 1) {
     if (furniture) {
@@ -845,23 +847,29 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       if (verdict === 'skip-next-too') r += 1;
       if (verdict !== 'read') continue;
     } else if (grid.isBlank(r)) continue;
-    let cells = grid.row(r);
+    // The row's cells as ranges of the text: a plain number is read where it lies, never copied out.
+    const cells = grid.view(r);
     if (!cells) continue;
     const line = grid.lineOf(r);
     if (brokenRows.has(r)) continue;
-    if (cells.length > width && cells.slice(width).every((c) => c.trim() === '')) cells = cells.slice(0, width);
-    if (cells.length !== width) {
+    let cellCount = cells.length;
+    if (cellCount > width) {
+      let trailingBlank = true;
+      for (let i = width; i < cellCount && trailingBlank; i += 1) trailingBlank = !cells.isFilled(i);
+      if (trailingBlank) cellCount = width;
+    }
+    if (cellCount !== width) {
       issues.push({
         severity: 'error',
         code: 'ragged-row',
         row: line,
-        column: cells.length > width ? (columns[width - 1]?.header ?? null) : (columns[cells.length]?.header ?? null),
-        message: `Line ${line} has ${cells.length} cells but the header has ${width}, so its values cannot be matched to columns (from column "${(cells.length > width ? columns[width - 1] : columns[cells.length])?.header ?? '?'}" on). In a comma file, a decimal comma such as 12,5 splits a cell in two.`,
+        column: cellCount > width ? (columns[width - 1]?.header ?? null) : (columns[cellCount]?.header ?? null),
+        message: `Line ${line} has ${cellCount} cells but the header has ${width}, so its values cannot be matched to columns (from column "${(cellCount > width ? columns[width - 1] : columns[cellCount])?.header ?? '?'}" on). In a comma file, a decimal comma such as 12,5 splits a cell in two.`,
       });
       continue;
     }
 
-    const bottleRaw = (cells[bottleColumn.index] ?? '').trim();
+    const bottleRaw = cells.cell(bottleColumn.index).trim();
     if (bottleRaw === '') {
       issues.push({
         severity: 'error',
@@ -911,10 +919,9 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       bottleLines.set(normalised, line);
     }
 
-    for (const dateColumn of [sampledColumn, reportedColumn]) {
-      if (!dateColumn) continue;
+    for (const dateColumn of dateColumns) {
       const field = dateColumn.kind === 'sampled' ? 'sampled' : 'reported';
-      const raw = cells[dateColumn.index] ?? '';
+      const raw = cells.cell(dateColumn.index);
       const isoDay = readIsoDay(raw);
       if (isoDay !== null) {
         row[field] = isoDay;
@@ -945,17 +952,18 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
 
     let readingCount = 0;
     for (const plan of measurands) {
-      const cell = cells[plan.index] ?? '';
       if (plan.fast) {
         // Plain numbers, "<1"/">1000" and a bare "ND" are read here without a regex, one shared reading per value;
         // anything else, or a value out of bounds (for its message), goes through the full reader below.
-        const reading = readings.get(cell);
+        const i = plan.index;
+        const reading = readings.get(cells.source(i), cells.start(i), cells.end(i));
         if (reading !== undefined && reading.value <= plan.bounds.max) {
           plan.set(row.readings, reading);
           readingCount += 1;
           continue;
         }
       }
+      const cell = cells.cell(plan.index);
       const parsedCell = plan.read(cell);
       if (parsedCell.status === 'missing') continue;
       if (parsedCell.status === 'problem') {
@@ -1004,7 +1012,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     }
 
     for (const column of otherColumns) {
-      const raw = (cells[column.index] ?? '').trim();
+      const raw = cells.cell(column.index).trim();
       if (raw === '') continue;
       row.other[column.header] = raw;
       if (isFormulaLikeCell(raw)) {

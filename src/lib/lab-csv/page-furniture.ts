@@ -3,7 +3,7 @@
  * 3"), the header row repeated at the top of each printed page (with its units row), and blank separator
  * lines. They are found before the rows are read, skipped, and each kind is named in one note.
  */
-import type { CsvGrid } from './csv-grid';
+import type { CsvGrid, RowView } from './csv-grid';
 import type { LabCsvIssue } from './lab-csv';
 
 /** Words that open or fill a footer line, in English and the dictionary's languages (common usage). */
@@ -77,6 +77,40 @@ function repeatsFoldedHeader(cells: readonly string[], folded: readonly { index:
   return true;
 }
 
+/** fold(view.cell(i)) === folded, without making the cell's string when it is printable ASCII (fold lower-cases it). */
+function foldsTo(view: RowView, i: number, folded: string): boolean {
+  const text = view.source(i);
+  const start = view.start(i);
+  const end = view.end(i);
+  if (end - start !== folded.length) {
+    // A different length can still fold equal when the cell is not plain ASCII (NFKC, squeezed spaces).
+    for (let k = start; k < end; k += 1) {
+      const c = text.charCodeAt(k);
+      if (c <= 32 || c >= 127) return fold(view.cell(i)) === folded;
+    }
+    return false;
+  }
+  for (let k = start; k < end; k += 1) {
+    const c = text.charCodeAt(k);
+    if (c <= 32 || c >= 127) return fold(view.cell(i)) === folded;
+    // ASCII lower case: what toLowerCase does to A–Z, and nothing else in this range.
+    if ((c >= 65 && c <= 90 ? c + 32 : c) !== folded.charCodeAt(k - start)) return false;
+  }
+  return true;
+}
+
+/** repeatsFoldedHeader over a row view. */
+function viewRepeatsFoldedHeader(view: RowView, folded: readonly { index: number; folded: string }[]): boolean {
+  const total = folded.length;
+  if (total < 2) return false;
+  const allowedMisses = total - Math.ceil((total * 2) / 3);
+  let misses = 0;
+  for (const { index, folded: h } of folded) {
+    if (!foldsTo(view, index, h) && ++misses > allowedMisses) return false;
+  }
+  return true;
+}
+
 /** True when a row is a footer line: one or two filled cells reading like a sentence or a page mark. */
 export function isFooterRow(cells: readonly string[], width: number): boolean {
   if (countFilledCells(cells, 3) > 2) return false;
@@ -127,13 +161,17 @@ export class PageFurnitureScanner {
       this.blanks.push(...this.pendingBlanks);
       this.pendingBlanks = [];
     }
-    const cells = grid.row(r) ?? [];
-    if (repeatsFoldedHeader(cells, this.foldedHeader)) {
+    const view = grid.view(r);
+    if (!view) return 'skip';
+    if (viewRepeatsFoldedHeader(view, this.foldedHeader)) {
       this.headers.push(line);
       const next = grid.row(r + 1);
       return next && !grid.isBlank(r + 1) && this.isUnitsRow(next) ? 'skip-next-too' : 'skip';
     }
-    if (isFooterRow(cells, this.headerCells.length)) {
+    // A footer has one or two filled cells: a row of readings is passed over without making its cells.
+    let filledCells = 0;
+    for (let i = 0; i < view.length && filledCells < 3; i += 1) if (view.isFilled(i)) filledCells += 1;
+    if (filledCells <= 2 && isFooterRow(grid.row(r) ?? [], this.headerCells.length)) {
       this.footers.push(line);
       return 'skip';
     }

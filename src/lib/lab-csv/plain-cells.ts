@@ -14,7 +14,7 @@ const EXACT_POWERS_OF_TEN = Array.from({ length: 23 }, (_, i) => 10 ** i);
 const MAX_EXACT_DIGITS = 15;
 
 /**
- * A plain unsigned number from `from` to the end of `cell`: digits, then optionally `mark` and at least one
+ * A plain unsigned number from `from` to `end` of `cell` (its end unless told): digits, then optionally `mark` and at least one
  * digit. Returns the same value as Number() on the cell written with a point, or NaN when the cell is not of
  * that form (blank, spaces, signs, exponents, grouping, qualifiers, words).
  *
@@ -22,8 +22,7 @@ const MAX_EXACT_DIGITS = 15;
  * correctly rounded operation, so the result is the double nearest the decimal, as Number() gives (Clinger's
  * fast path, "How to read floating point numbers accurately", 1990). Longer cells go to Number() itself.
  */
-export function parsePlainNumber(cell: string, mark: DecimalMark, from = 0): number {
-  const end = cell.length;
+export function parsePlainNumber(cell: string, mark: DecimalMark, from = 0, end = cell.length): number {
   if (from >= end) return Number.NaN;
   const markCode = mark === '.' ? 46 : 44;
   let mantissa = 0;
@@ -42,7 +41,7 @@ export function parsePlainNumber(cell: string, mark: DecimalMark, from = 0): num
     }
   }
   if (digits > MAX_EXACT_DIGITS) {
-    const text = from === 0 ? cell : cell.slice(from);
+    const text = from === 0 && end === cell.length ? cell : cell.slice(from, end);
     return Number(mark === '.' ? text : text.replace(',', '.'));
   }
   return decimals > 0 ? mantissa / EXACT_POWERS_OF_TEN[decimals]! : mantissa;
@@ -57,8 +56,7 @@ const MAX_KEY_MANTISSA = 2 ** 24;
  * (a fractional double is a fresh heap object in V8, and 270,000 of them are garbage). -1 when the cell is not plain
  * or its digits are too many for a key; parsePlainNumber then reads it.
  */
-export function plainNumberKey(cell: string, mark: DecimalMark, from = 0): number {
-  const end = cell.length;
+export function plainNumberKey(cell: string, mark: DecimalMark, from = 0, end = cell.length): number {
   if (from >= end) return -1;
   const markCode = mark === '.' ? 46 : 44;
   let mantissa = 0;
@@ -89,8 +87,8 @@ export function plainKeyValue(key: number): number {
 }
 
 /** "ND" or "nd" alone: not detected, without a limit (read as 0 with qualifier "<", like the full reader). */
-export function isBareNotDetected(cell: string): boolean {
-  return cell.length === 2 && (cell === 'ND' || cell === 'nd' || cell === 'Nd' || cell === 'nD');
+export function isBareNotDetected(cell: string, from = 0, end = cell.length): boolean {
+  return end - from === 2 && (cell.charCodeAt(from) | 32) === 110 && (cell.charCodeAt(from + 1) | 32) === 100;
 }
 
 function twoDigits(cell: string, at: number): number {

@@ -69,6 +69,16 @@ const EDGE_CASES: { name: string; text: string; lines: boolean }[] = [
     text: 'Bottle,Sampled,Test,Result,Unit\nL-1,2026-04-03,Iron,12,ppm\nL-1,2026-04-03,Copper,3,ppm\n',
     lines: true,
   },
+  {
+    name: 'repeated header in other case, non-ASCII header',
+    text: 'Bottle;Sampled;Fe;Viskosität 40 °C\nA-1;2026-04-03;12;98,1\nBOTTLE;sampled;FE;VISKOSITÄT  40 °C\nA-2;2026-04-04;14;97,9\n',
+    lines: true,
+  },
+  {
+    name: 'numbers at the edges of the quick reader',
+    text: `${HEADER}\nA-1,2026-04-03,0000000000000000012.5,12345678901234567,>1000,nD,1.\nA-2,2026-04-04,.5,1e3,0.0000000000000000001,16777216.5,-2\n`,
+    lines: true,
+  },
   { name: 'header only', text: `${HEADER}\n`, lines: true },
   { name: 'no bottle column, furniture', text: 'Fe,Cu\n12,3\n\nPage 1 of 1\n', lines: true },
   { name: 'quoted field with a comma', text: `${HEADER}\n"A-1",2026-04-03,"1,234",3,1,8,13.1\n`, lines: false },
