@@ -213,22 +213,27 @@ describe('GET /api/trends/[machineId]', () => {
   test.each([
     [
       'a new reading',
-      async (ids: string[]) =>
-        void (await db.insertInto('readings').values({ sample_id: ids[3]!, measurand: 'Cu', value: 4 }).execute()),
+      async (ids: string[]): Promise<void> => {
+        await db.insertInto('readings').values({ sample_id: ids[3]!, measurand: 'Cu', value: 4 }).execute();
+      },
     ],
     [
       'a finding that changes level',
-      async (ids: string[]) =>
-        void (await db.updateTable('findings').set({ level: 'act' }).where('sample_id', '=', ids[9]!).execute()),
+      async (ids: string[]): Promise<void> => {
+        await db.updateTable('findings').set({ level: 'act' }).where('sample_id', '=', ids[9]!).execute();
+      },
     ],
     [
       'a band removed',
-      async (ids: string[]) => void (await db.deleteFrom('baseline_bands').where('sample_id', '=', ids[11]!).execute()),
+      async (ids: string[]): Promise<void> => {
+        await db.deleteFrom('baseline_bands').where('sample_id', '=', ids[11]!).execute();
+      },
     ],
     [
       'a sample reviewed',
-      async (ids: string[]) =>
-        void (await db.updateTable('samples').set({ state: 'reviewed' }).where('id', '=', ids[2]!).execute()),
+      async (ids: string[]): Promise<void> => {
+        await db.updateTable('samples').set({ state: 'reviewed' }).where('id', '=', ids[2]!).execute();
+      },
     ],
   ] as const)('%s gives a new tag and a 200 with the data', async (_, change) => {
     const { c, machine, ids } = await machineWithHistory(12);
