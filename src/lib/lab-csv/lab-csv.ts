@@ -260,6 +260,9 @@ const SET_READING: Readonly<Record<MeasurandCode, ReadingSetter>> = {
  */
 const MAX_PLAIN_READINGS = 65_536;
 
+/** Keys held in PlainReadings' array: 2^20 slots (4 MB at most), enough for one-decimal figures up to 6,553.5. */
+const SMALL_KEYS = 2 ** 20;
+
 /**
  * The readings of fast-path cells, one frozen object per distinct value (and qualifier) in a file. A lab's figures
  * repeat ("<1" in every clean column, whole ppm, one decimal), so a 10,000-row file keeps a few thousand objects
@@ -275,7 +278,10 @@ class PlainReadings {
 
   // Cells seen before, by plainNumberKey and qualifier: a small-integer key finds the shared reading without
   // making a number. A miss goes on to the maps by value, so "12" and "12.0" still share one reading.
+  // Small keys (whole ppm and one-decimal figures up to a few thousand) index an array, which answers faster than a
+  // map; the table grows by doubling up to SMALL_KEYS slots. Larger keys go to the map.
   private readonly byKey = new Map<number, LabReading>();
+  private small: (LabReading | undefined)[] = [];
 
   constructor(private readonly mark: DecimalMark) {}
 
@@ -288,14 +294,30 @@ class PlainReadings {
     const key = notDetected ? 0 : plainNumberKey(text, this.mark, from, end);
     if (key >= 0) {
       const keyed = key * 4 + (qualifier === undefined ? 0 : qualifier === '<' ? 1 : 2);
-      const known = this.byKey.get(keyed);
-      if (known !== undefined) return known;
+      if (keyed < this.small.length) {
+        const known = this.small[keyed];
+        if (known !== undefined) return known;
+      } else if (keyed >= SMALL_KEYS) {
+        const known = this.byKey.get(keyed);
+        if (known !== undefined) return known;
+      }
       const reading = this.byValue(plainKeyValue(key), qualifier);
-      if (this.byKey.size < MAX_PLAIN_READINGS) this.byKey.set(keyed, reading);
+      if (keyed < SMALL_KEYS) {
+        if (keyed >= this.small.length) this.growSmall(keyed);
+        this.small[keyed] = reading;
+      } else if (this.byKey.size < MAX_PLAIN_READINGS) this.byKey.set(keyed, reading);
       return reading;
     }
     const value = notDetected ? 0 : parsePlainNumber(text, this.mark, from, end);
     return Number.isNaN(value) ? undefined : this.byValue(value, qualifier);
+  }
+
+  private growSmall(keyed: number): void {
+    let size = Math.max(1024, this.small.length);
+    while (size <= keyed) size *= 2;
+    const grown = new Array<LabReading | undefined>(Math.min(size, SMALL_KEYS)).fill(undefined);
+    for (let i = 0; i < this.small.length; i += 1) grown[i] = this.small[i];
+    this.small = grown;
   }
 
   private byValue(value: number, qualifier: Qualifier | undefined): LabReading {
