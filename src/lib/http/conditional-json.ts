@@ -54,26 +54,43 @@ export function acceptsGzip(header: string | null): boolean {
   return named !== null ? named > 0 : star !== null && star > 0;
 }
 
+const CACHE_CONTROL = 'private, no-cache';
+const VARY = 'Accept-Encoding, Cookie';
+
+/**
+ * 304 Not Modified with no body when the request's If-None-Match names `etag`, else null. For an endpoint that can
+ * tell its answer's tag before building the answer (see `conditionalJson`'s `etag`).
+ */
+export function notModified(request: Request, etag: string): Response | null {
+  if (!ifNoneMatchMatches(request.headers.get('if-none-match'), etag)) return null;
+  return new Response(null, { status: 304, headers: { 'cache-control': CACHE_CONTROL, vary: VARY, etag } });
+}
+
+/**
+ * A weak entity tag from the parts an answer is made of (a data fingerprint, the query, the answer's format),
+ * rather than from the answer itself, so that it can be checked before the answer is built.
+ */
+export function entityTagFromParts(parts: readonly string[]): string {
+  return `W/"${createHash('sha256').update(parts.join('\u0000')).digest('base64url').slice(0, 32)}"`;
+}
+
 /**
  * A JSON answer with an entity tag: 304 with no body when the request's If-None-Match already names it, else
  * 200 with the body, gzipped when accepted. Private and revalidated on every use: the answer depends on the
  * signed-in crew, so no shared cache may keep it, and the browser asks each time (cheaply, when unchanged).
+ * The tag is of the body unless `etag` gives one made from what the body was built from (entityTagFromParts).
  */
-export async function conditionalJson(request: Request, data: unknown): Promise<Response> {
+export async function conditionalJson(request: Request, data: unknown, etag?: string): Promise<Response> {
   const body = JSON.stringify(data);
-  const etag = entityTagOf(body);
+  const tag = etag ?? entityTagOf(body);
   const headers: Record<string, string> = {
     'content-type': 'application/json; charset=utf-8',
-    'cache-control': 'private, no-cache',
-    vary: 'Accept-Encoding, Cookie',
-    etag,
+    'cache-control': CACHE_CONTROL,
+    vary: VARY,
+    etag: tag,
   };
-  if (ifNoneMatchMatches(request.headers.get('if-none-match'), etag)) {
-    return new Response(null, {
-      status: 304,
-      headers: { 'cache-control': headers['cache-control']!, vary: headers.vary!, etag },
-    });
-  }
+  const unchanged = notModified(request, tag);
+  if (unchanged) return unchanged;
   if (body.length >= MIN_GZIP_BYTES && acceptsGzip(request.headers.get('accept-encoding'))) {
     const compressed = await gzipAsync(Buffer.from(body, 'utf8'));
     return new Response(new Uint8Array(compressed), {

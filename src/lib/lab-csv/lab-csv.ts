@@ -4,7 +4,6 @@
  * what to write; this module only reads.
  */
 import { MAX_BOTTLE_CODE_TEXT, normaliseBottleCode } from '../samples/bottle-code';
-import Papa from 'papaparse';
 import { ELEMENT_CODES, isMeasurandCode, type MeasurandCode } from '../analysis/measurands';
 import {
   evidenceOfDateOrder,
@@ -27,7 +26,8 @@ import {
   type RecognisedHeader,
 } from './column-recognition';
 import { isFormulaLikeCell } from './csv-cell';
-import { isBareNotDetected, parsePlainNumber, readIsoDay } from './plain-cells';
+import { arrayGrid, readCsvGrid, type CsvGrid, type CsvSplitter } from './csv-grid';
+import { isBareNotDetected, parsePlainNumber, plainKeyValue, plainNumberKey, readIsoDay } from './plain-cells';
 import {
   DAY_FIRST_LANGUAGES,
   detectHeaderLanguages,
@@ -36,7 +36,7 @@ import {
   readLocalGlycolWord,
 } from './header-dictionary';
 import { detectLongFormat, pivotLongFormat, rewordPivotIssues, type PivotResult } from './long-format';
-import { findPageFurniture } from './page-furniture';
+import { findPageFurniture, PageFurnitureScanner } from './page-furniture';
 import { convertSayboltToKinematic } from './saybolt';
 
 export { decodeLabFile, MAX_LAB_FILE_BYTES } from './decode-lab-file';
@@ -122,6 +122,8 @@ export interface ParseLabCsvOptions {
   mapping?: Record<string, LabCsvMappingTarget>;
   /** Settles day/month order for dates like 03/04/2026 when the file cannot. */
   dateOrder?: DateOrder;
+  /** 'papaparse' splits every file with papaparse; 'auto' (the default) splits a file without quotes by lines. */
+  splitter?: CsvSplitter;
 }
 
 export interface LabCsvResult {
@@ -258,6 +260,9 @@ const SET_READING: Readonly<Record<MeasurandCode, ReadingSetter>> = {
  */
 const MAX_PLAIN_READINGS = 65_536;
 
+/** Keys held in PlainReadings' array: 2^20 slots (4 MB at most), enough for one-decimal figures up to 6,553.5. */
+const SMALL_KEYS = 2 ** 20;
+
 /**
  * The readings of fast-path cells, one frozen object per distinct value (and qualifier) in a file. A lab's figures
  * repeat ("<1" in every clean column, whole ppm, one decimal), so a 10,000-row file keeps a few thousand objects
@@ -271,14 +276,51 @@ class PlainReadings {
   private readonly below = new Map<number, LabReading>();
   private readonly above = new Map<number, LabReading>();
 
+  // Cells seen before, by plainNumberKey and qualifier: a small-integer key finds the shared reading without
+  // making a number. A miss goes on to the maps by value, so "12" and "12.0" still share one reading.
+  // Small keys (whole ppm and one-decimal figures up to a few thousand) index an array, which answers faster than a
+  // map; the table grows by doubling up to SMALL_KEYS slots. Larger keys go to the map.
+  private readonly byKey = new Map<number, LabReading>();
+  private small: (LabReading | undefined)[] = [];
+
   constructor(private readonly mark: DecimalMark) {}
 
-  get(cell: string): LabReading | undefined {
-    const first = cell.charCodeAt(0);
-    const notDetected = isBareNotDetected(cell);
+  /** The reading of the cell `text.slice(start, end)`, read in place. */
+  get(text: string, start: number, end: number): LabReading | undefined {
+    const first = start < end ? text.charCodeAt(start) : -1;
+    const notDetected = isBareNotDetected(text, start, end);
     const qualifier: Qualifier | undefined = first === 60 || notDetected ? '<' : first === 62 ? '>' : undefined;
-    const value = notDetected ? 0 : parsePlainNumber(cell, this.mark, qualifier === undefined ? 0 : 1);
-    if (Number.isNaN(value)) return undefined;
+    const from = qualifier === undefined ? start : start + 1;
+    const key = notDetected ? 0 : plainNumberKey(text, this.mark, from, end);
+    if (key >= 0) {
+      const keyed = key * 4 + (qualifier === undefined ? 0 : qualifier === '<' ? 1 : 2);
+      if (keyed < this.small.length) {
+        const known = this.small[keyed];
+        if (known !== undefined) return known;
+      } else if (keyed >= SMALL_KEYS) {
+        const known = this.byKey.get(keyed);
+        if (known !== undefined) return known;
+      }
+      const reading = this.byValue(plainKeyValue(key), qualifier);
+      if (keyed < SMALL_KEYS) {
+        if (keyed >= this.small.length) this.growSmall(keyed);
+        this.small[keyed] = reading;
+      } else if (this.byKey.size < MAX_PLAIN_READINGS) this.byKey.set(keyed, reading);
+      return reading;
+    }
+    const value = notDetected ? 0 : parsePlainNumber(text, this.mark, from, end);
+    return Number.isNaN(value) ? undefined : this.byValue(value, qualifier);
+  }
+
+  private growSmall(keyed: number): void {
+    let size = Math.max(1024, this.small.length);
+    while (size <= keyed) size *= 2;
+    const grown = new Array<LabReading | undefined>(Math.min(size, SMALL_KEYS)).fill(undefined);
+    for (let i = 0; i < this.small.length; i += 1) grown[i] = this.small[i];
+    this.small = grown;
+  }
+
+  private byValue(value: number, qualifier: Qualifier | undefined): LabReading {
     const byValue = qualifier === undefined ? this.plain : qualifier === '<' ? this.below : this.above;
     let reading = byValue.get(value);
     if (reading === undefined) {
@@ -445,16 +487,16 @@ function detectDelimiter(lines: readonly string[]): ',' | ';' | '\t' {
 /** Decide the decimal mark from the numbers themselves; see parseLabCsv's doc for the rule. */
 function detectDecimalMark(
   delimiter: ',' | ';' | '\t',
-  data: readonly string[][],
+  grid: CsvGrid,
   start: number,
   preferComma = false,
 ): DecimalMark {
   if (delimiter === ',') return '.';
   let commaEvidence = false;
   let pointEvidence = false;
-  const limit = Math.min(data.length, start + 200);
+  const limit = Math.min(grid.length, start + 200);
   for (let r = start; r < limit; r += 1) {
-    const row = data[r] ?? [];
+    const row = grid.row(r) ?? [];
     for (const raw of row) {
       const cell = raw.trim();
       if (cell.length > 24 || !/^[<>≤≥]?\s*[\d.,\s]+$/.test(cell)) continue;
@@ -677,29 +719,13 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     sepLine?.[1] === ',' || sepLine?.[1] === ';' || sepLine?.[1] === '\t'
       ? sepLine[1]
       : detectDelimiter(firstLines.slice(sepLine ? 1 : 0));
-  const parsed = Papa.parse<string[]>(body, { delimiter, newline: '\n', skipEmptyLines: false });
-  let data = parsed.data;
-
-  // 1-based line where each parsed row starts; a quoted field may span lines.
-  let lineOf = new Array<number>(data.length);
-  const mayHaveQuotedNewlines = body.includes('"');
-  let nextLine = 1;
-  for (let r = 0; r < data.length; r += 1) {
-    lineOf[r] = nextLine;
-    nextLine += 1;
-    if (mayHaveQuotedNewlines) {
-      for (const cell of data[r] ?? []) {
-        for (let i = cell.indexOf('\n'); i !== -1; i = cell.indexOf('\n', i + 1)) nextLine += 1;
-      }
-    }
-  }
-  const isBlank = (row: readonly string[] | undefined): boolean => !row || row.every((c) => c.trim() === '');
+  const { grid: rowsRead, errors: splitErrors } = readCsvGrid(body, delimiter, options.splitter);
+  let grid = rowsRead;
 
   const brokenRows = new Set<number>();
-  for (const e of parsed.errors) {
-    if (e.row === undefined || e.row === null) continue;
+  for (const e of splitErrors) {
     brokenRows.add(e.row);
-    const line = lineOf[e.row] ?? e.row + 1;
+    const line = grid.lineOf(e.row);
     issues.push({
       severity: 'error',
       code: 'malformed-csv',
@@ -716,9 +742,9 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
   const mappedHeaders = new Set(Object.keys(options.mapping ?? {}).map(normaliseMappingKey));
   let headerRow = -1;
   let fallbackRow = -1;
-  for (let r = 0, seen = 0; r < data.length && seen < 10; r += 1) {
-    const row = data[r];
-    if (isBlank(row) || !row) continue;
+  for (let r = 0, seen = 0; r < grid.length && seen < 10; r += 1) {
+    const row = grid.row(r);
+    if (grid.isBlank(r) || !row) continue;
     seen += 1;
     if (fallbackRow === -1) fallbackRow = r;
     const meaningful = row.filter(
@@ -730,10 +756,10 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     }
   }
   if (headerRow === -1) headerRow = fallbackRow;
-  let headerCells = data[headerRow] ?? [];
-  const headerLine = lineOf[headerRow] ?? 1;
+  let headerCells = grid.row(headerRow) ?? [];
+  const headerLine = headerRow === -1 ? 1 : grid.lineOf(headerRow);
   if (headerRow !== fallbackRow) {
-    const firstSkipped = lineOf[fallbackRow] ?? 1;
+    const firstSkipped = fallbackRow === -1 ? 1 : grid.lineOf(fallbackRow);
     issues.push({
       severity: 'warning',
       code: 'lines-skipped',
@@ -745,27 +771,23 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
 
   // A units row sits right under the header: every filled cell is a unit ("ppm", "cSt", "SUS", "%").
   let firstDataRow = headerRow + 1;
-  let unitsCells: string[] | null = null;
+  let unitsCells: readonly string[] | null = null;
   let unitsLine: number | null = null;
-  const candidate = data[firstDataRow];
-  if (candidate && !isBlank(candidate)) {
+  const candidate = grid.row(firstDataRow);
+  if (candidate && !grid.isBlank(firstDataRow)) {
     if (filledUnitsRow(candidate)) {
       unitsCells = candidate;
-      unitsLine = lineOf[firstDataRow] ?? null;
+      unitsLine = grid.lineOf(firstDataRow);
       firstDataRow += 1;
     }
   }
 
-  // Footers, headers repeated at page breaks and blank separator lines are skipped with a note.
-  const furniture = findPageFurniture({
-    data,
-    firstDataRow,
-    headerCells,
-    lineOf,
-    isUnitsRow: (cells) => filledUnitsRow(cells),
-  });
-  issues.push(...furniture.notes);
-  let skipRows: ReadonlySet<number> = furniture.skip;
+  // Footers, headers repeated at page breaks and blank separator lines are skipped with a note. A wide file meets
+  // them in the loop over its rows below (each row split once); their notes go here, ahead of the rows' issues.
+  const furnitureAt = issues.length;
+  const furnitureInput = { grid, firstDataRow, headerCells, isUnitsRow: filledUnitsRow };
+  const addFurnitureNotes = (notes: readonly LabCsvIssue[]): void => void issues.splice(furnitureAt, 0, ...notes);
+  let furniture: PageFurnitureScanner | null = new PageFurnitureScanner(headerCells, filledUnitsRow);
   const languages = detectHeaderLanguages(headerCells);
   const dayFirstLanguage = languages.find((l) => DAY_FIRST_LANGUAGES.has(l));
 
@@ -778,28 +800,31 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     ),
   );
   if (long) {
+    // A long file is read whole: its rows are grouped by bottle before any is read.
+    const { skip, notes } = findPageFurniture(furnitureInput);
+    addFurnitureNotes(notes);
+    furniture = null;
+    const allRows = Array.from({ length: grid.length }, (_, r) => [...(grid.row(r) ?? [])]);
     pivot = pivotLongFormat({
       plan: long,
       headerCells,
-      data,
+      data: allRows,
       firstDataRow,
-      lineOf,
+      lineOf: Array.from({ length: grid.length }, (_, r) => grid.lineOf(r)),
       headerLine,
-      skip: new Set([...skipRows, ...brokenRows]),
+      skip: new Set([...skip, ...brokenRows]),
       normaliseBottle: normaliseBottleCode,
     });
     issues.push(...pivot.issues);
-    data = pivot.grid;
-    lineOf = pivot.lines;
+    grid = arrayGrid(pivot.grid, pivot.lines);
     headerCells = pivot.grid[0] ?? [];
     unitsCells = pivot.units;
     firstDataRow = 1;
-    skipRows = new Set();
     brokenRows.clear();
   }
   const issuesBeforeRows = issues.length;
 
-  const decimalMark = detectDecimalMark(delimiter, data, firstDataRow, dayFirstLanguage !== undefined);
+  const decimalMark = detectDecimalMark(delimiter, grid, firstDataRow, dayFirstLanguage !== undefined);
   const { columns, measurands } = planColumns(headerCells, unitsCells, options, decimalMark, headerLine, issues);
   const bottleColumn = columns.find((c) => c.kind === 'bottle');
   const sampledColumn = columns.find((c) => c.kind === 'sampled');
@@ -807,7 +832,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
   const otherColumns = columns.filter((c) => c.kind === 'unknown');
 
   let dataRowCount = 0;
-  for (let r = firstDataRow; r < data.length; r += 1) if (!isBlank(data[r])) dataRowCount += 1;
+  for (let r = firstDataRow; r < grid.length; r += 1) if (!grid.isBlank(r)) dataRowCount += 1;
   if (dataRowCount === 0) {
     issues.push({
       severity: 'error',
@@ -816,6 +841,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       column: null,
       message: `Line ${headerLine} is a header row, but no rows of readings follow it. Export the report again with its results.`,
     });
+    if (furniture) addFurnitureNotes(findPageFurniture(furnitureInput).notes);
     return { ...result([], columns, delimiter, decimalMark, headerLine, unitsLine), layout: pivot ? 'long' : 'wide' };
   }
   if (!bottleColumn) {
@@ -826,6 +852,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       column: null,
       message: `Line ${headerLine} (the header) has no bottle code column, so no row can be matched to a sample. Columns found: ${columns.map((c) => `"${c.header}"`).join(', ')}. Name the column "Bottle" or map it in the lab profile.`,
     });
+    if (furniture) addFurnitureNotes(findPageFurniture(furnitureInput).notes);
     return result([], columns, delimiter, decimalMark, headerLine, unitsLine);
   }
 
@@ -834,25 +861,37 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
   const bottleLines = new Map<string, number>();
   const pendingDates = new Map<number, PendingDate[]>();
   const width = headerCells.length;
+  const dateColumns = [sampledColumn, reportedColumn].filter((c) => c !== undefined);
 
-  for (let r = firstDataRow; r < data.length; r += 1) {
-    let cells = data[r];
-    if (!cells || isBlank(cells) || skipRows.has(r)) continue;
-    const line = lineOf[r] ?? r + 1;
+  for (let r = firstDataRow; r < grid.length; r += 1) {
+    if (furniture) {
+      const verdict = furniture.visit(grid, r);
+      if (verdict === 'skip-next-too') r += 1;
+      if (verdict !== 'read') continue;
+    } else if (grid.isBlank(r)) continue;
+    // The row's cells as ranges of the text: a plain number is read where it lies, never copied out.
+    const cells = grid.view(r);
+    if (!cells) continue;
+    const line = grid.lineOf(r);
     if (brokenRows.has(r)) continue;
-    if (cells.length > width && cells.slice(width).every((c) => c.trim() === '')) cells = cells.slice(0, width);
-    if (cells.length !== width) {
+    let cellCount = cells.length;
+    if (cellCount > width) {
+      let trailingBlank = true;
+      for (let i = width; i < cellCount && trailingBlank; i += 1) trailingBlank = !cells.isFilled(i);
+      if (trailingBlank) cellCount = width;
+    }
+    if (cellCount !== width) {
       issues.push({
         severity: 'error',
         code: 'ragged-row',
         row: line,
-        column: cells.length > width ? (columns[width - 1]?.header ?? null) : (columns[cells.length]?.header ?? null),
-        message: `Line ${line} has ${cells.length} cells but the header has ${width}, so its values cannot be matched to columns (from column "${(cells.length > width ? columns[width - 1] : columns[cells.length])?.header ?? '?'}" on). In a comma file, a decimal comma such as 12,5 splits a cell in two.`,
+        column: cellCount > width ? (columns[width - 1]?.header ?? null) : (columns[cellCount]?.header ?? null),
+        message: `Line ${line} has ${cellCount} cells but the header has ${width}, so its values cannot be matched to columns (from column "${(cellCount > width ? columns[width - 1] : columns[cellCount])?.header ?? '?'}" on). In a comma file, a decimal comma such as 12,5 splits a cell in two.`,
       });
       continue;
     }
 
-    const bottleRaw = (cells[bottleColumn.index] ?? '').trim();
+    const bottleRaw = cells.cell(bottleColumn.index).trim();
     if (bottleRaw === '') {
       issues.push({
         severity: 'error',
@@ -902,10 +941,9 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       bottleLines.set(normalised, line);
     }
 
-    for (const dateColumn of [sampledColumn, reportedColumn]) {
-      if (!dateColumn) continue;
+    for (const dateColumn of dateColumns) {
       const field = dateColumn.kind === 'sampled' ? 'sampled' : 'reported';
-      const raw = cells[dateColumn.index] ?? '';
+      const raw = cells.cell(dateColumn.index);
       const isoDay = readIsoDay(raw);
       if (isoDay !== null) {
         row[field] = isoDay;
@@ -936,17 +974,18 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
 
     let readingCount = 0;
     for (const plan of measurands) {
-      const cell = cells[plan.index] ?? '';
       if (plan.fast) {
         // Plain numbers, "<1"/">1000" and a bare "ND" are read here without a regex, one shared reading per value;
         // anything else, or a value out of bounds (for its message), goes through the full reader below.
-        const reading = readings.get(cell);
+        const i = plan.index;
+        const reading = readings.get(cells.source(i), cells.start(i), cells.end(i));
         if (reading !== undefined && reading.value <= plan.bounds.max) {
           plan.set(row.readings, reading);
           readingCount += 1;
           continue;
         }
       }
+      const cell = cells.cell(plan.index);
       const parsedCell = plan.read(cell);
       if (parsedCell.status === 'missing') continue;
       if (parsedCell.status === 'problem') {
@@ -995,7 +1034,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     }
 
     for (const column of otherColumns) {
-      const raw = (cells[column.index] ?? '').trim();
+      const raw = cells.cell(column.index).trim();
       if (raw === '') continue;
       row.other[column.header] = raw;
       if (isFormulaLikeCell(raw)) {
@@ -1033,6 +1072,7 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
       message: `${where(headerLine, column.header)}: this column has no header but holds values. They are kept as text and not read as readings; a lab profile can map it.`,
     });
   }
+  if (furniture) addFurnitureNotes(furniture.notes());
   settleDates(pendingDates, columns, options.dateOrder, issues, dayFirstLanguage);
   if (pivot) rewordPivotIssues(issues, issuesBeforeRows, pivot, headerLine);
   return { ...result(rows, columns, delimiter, decimalMark, headerLine, unitsLine), layout: pivot ? 'long' : 'wide' };

@@ -1,5 +1,5 @@
 /** Queries behind the wear chart: one machine's samples with results, their readings and stored findings. */
-import type { Kysely } from 'kysely';
+import { sql, type Kysely } from 'kysely';
 import { isMeasurandCode, type MeasurandCode } from '../analysis';
 import type { Database, Level, MachineRow } from '../db/database';
 import { levelRank } from '../levels';
@@ -159,4 +159,37 @@ export async function listTrendOilChanges(db: Kysely<Database>, machineId: strin
     .orderBy('odometer')
     .execute();
   return rows.map((r) => ({ changedOn: r.changed_on, odometerStored: Number(r.odometer), grade: r.sae_grade }));
+}
+
+/**
+ * A fingerprint of everything the wear chart reads for one machine of the crew, without reading it: per table, the
+ * count of the machine's rows and the sum of their xmin (the id of the transaction that last wrote each row, which
+ * PostgreSQL keeps on every row version). An insert or delete changes the count, an update gives its row a new
+ * xmin, so any committed write changes the fingerprint; the chart's own four queries are not run. Undefined when
+ * the machine is not the crew's.
+ */
+export async function findTrendDataFingerprint(
+  db: Kysely<Database>,
+  crewId: string,
+  machineId: string,
+): Promise<string | undefined> {
+  if (!isUuid(machineId)) return undefined;
+  const result = await sql<{ fingerprint: string | null }>`
+    with machine as (
+      select id, xmin::text as x from machines where id = ${machineId} and crew_id = ${crewId}
+    ), machine_samples as (
+      select s.id, s.xmin from samples s join machine on s.machine_id = machine.id
+    )
+    select (select x from machine)
+      || '|' || (select count(*) || ':' || coalesce(sum(xmin::text::bigint), 0) from machine_samples)
+      || '|' || (select count(*) || ':' || coalesce(sum(r.xmin::text::bigint), 0)
+                 from readings r where r.sample_id in (select id from machine_samples))
+      || '|' || (select count(*) || ':' || coalesce(sum(f.xmin::text::bigint), 0)
+                 from findings f where f.sample_id in (select id from machine_samples))
+      || '|' || (select count(*) || ':' || coalesce(sum(b.xmin::text::bigint), 0)
+                 from baseline_bands b where b.sample_id in (select id from machine_samples))
+      || '|' || (select count(*) || ':' || coalesce(sum(o.xmin::text::bigint), 0)
+                 from oil_changes o where o.machine_id in (select id from machine)) as fingerprint
+  `.execute(db);
+  return result.rows[0]?.fingerprint ?? undefined;
 }

@@ -1,17 +1,17 @@
 /**
  * The request side of the wear chart's endpoint, kept out of the route file so tests can call it with a real
- * database and a plain Request: session and permission, the query, one service call, and the compact answer
- * with its entity tag (304 when the client holds the same answer) and gzip when accepted.
+ * database and a plain Request: session and permission, the query, the entity tag (304 when the client holds the
+ * same answer, before it is built), one service call, and the compact answer gzipped when accepted.
  */
 import type { Kysely } from 'kysely';
 import { canReadCrew } from '../auth/permissions';
 import type { CrewMembership, SessionUser } from '../auth/types';
 import type { Database } from '../db/database';
-import { conditionalJson } from '../http/conditional-json';
+import { conditionalJson, notModified } from '../http/conditional-json';
 import { fieldErrorsFrom, jsonError } from '../http/json';
 import { compactTrendResponse } from './trend-compact';
 import { trendQuerySchema } from './trends';
-import { loadMachineTrends } from './trends.service';
+import { findTrendEntityTag, loadMachineTrends } from './trends.service';
 
 export interface TrendRouteContext {
   request: Request;
@@ -27,7 +27,12 @@ export async function answerTrendRequest(db: Kysely<Database>, ctx: TrendRouteCo
   const parsed = trendQuerySchema.safeParse(Object.fromEntries(new URL(ctx.request.url).searchParams));
   if (!parsed.success)
     return jsonError(400, 'invalid_input', 'The chart query needs attention.', fieldErrorsFrom(parsed.error));
+  // The tag comes first, from a fingerprint of the machine's rows: an unchanged chart answers 304 without being
+  // built. Taken before the answer, a write in between can only make the tag older than the answer, never newer.
+  const etag = await findTrendEntityTag(db, crew.crewId, ctx.machineId, parsed.data);
+  const unchanged = etag === null ? null : notModified(ctx.request, etag);
+  if (unchanged) return unchanged;
   const data = await loadMachineTrends(db, crew.crewId, ctx.machineId, parsed.data);
   if (!data) return jsonError(404, 'not_found', 'No such machine in this crew.');
-  return conditionalJson(ctx.request, compactTrendResponse(data));
+  return conditionalJson(ctx.request, compactTrendResponse(data), etag ?? undefined);
 }

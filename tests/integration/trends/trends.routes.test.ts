@@ -180,6 +180,110 @@ describe('GET /api/trends/[machineId]', () => {
     expect((await compactOf(changed)).series[0]!.value[11]).toBe(99);
   });
 
+  test('an unchanged machine answers 304 after one query, before the answer is built', async () => {
+    const { c, machine } = await machineWithHistory(20);
+    const locals = localsOf(c.rider.id, c.crew.id);
+    const first = await answerTrendRequest(db, { request: request(machine.id), machineId: machine.id, locals });
+    const etag = first.headers.get('etag')!;
+    // Every query the route sends goes through this plugin: the 304 path sends the fingerprint query only.
+    const sent: string[] = [];
+    const counted = db.withPlugin({
+      transformQuery: (args) => {
+        sent.push(args.node.kind);
+        return args.node;
+      },
+      transformResult: async (args) => args.result,
+    });
+    const again = await answerTrendRequest(counted, {
+      request: request(machine.id, { 'if-none-match': etag }),
+      machineId: machine.id,
+      locals,
+    });
+    expect(again.status).toBe(304);
+    expect(again.headers.get('etag')).toBe(etag);
+    expect(sent).toHaveLength(1);
+    sent.length = 0;
+    const fresh = await answerTrendRequest(counted, { request: request(machine.id), machineId: machine.id, locals });
+    expect(fresh.status).toBe(200);
+    expect(fresh.headers.get('etag')).toBe(etag);
+    // The fingerprint, then the chart's own queries (machine, samples, oil changes, readings, findings, bands).
+    expect(sent.length).toBeGreaterThan(4);
+  });
+
+  test.each([
+    [
+      'a new reading',
+      async (ids: string[]): Promise<void> => {
+        await db.insertInto('readings').values({ sample_id: ids[3]!, measurand: 'Cu', value: 4 }).execute();
+      },
+    ],
+    [
+      'a finding that changes level',
+      async (ids: string[]): Promise<void> => {
+        await db.updateTable('findings').set({ level: 'act' }).where('sample_id', '=', ids[9]!).execute();
+      },
+    ],
+    [
+      'a band removed',
+      async (ids: string[]): Promise<void> => {
+        await db.deleteFrom('baseline_bands').where('sample_id', '=', ids[11]!).execute();
+      },
+    ],
+    [
+      'a sample reviewed',
+      async (ids: string[]): Promise<void> => {
+        await db.updateTable('samples').set({ state: 'reviewed' }).where('id', '=', ids[2]!).execute();
+      },
+    ],
+  ] as const)('%s gives a new tag and a 200 with the data', async (_, change) => {
+    const { c, machine, ids } = await machineWithHistory(12);
+    const locals = localsOf(c.rider.id, c.crew.id);
+    const first = await answerTrendRequest(db, { request: request(machine.id), machineId: machine.id, locals });
+    const etag = first.headers.get('etag')!;
+    await change(ids);
+    const after = await answerTrendRequest(db, {
+      request: request(machine.id, { 'if-none-match': etag }),
+      machineId: machine.id,
+      locals,
+    });
+    expect(after.status).toBe(200);
+    expect(after.headers.get('etag')).not.toBe(etag);
+    expect((await compactOf(after)).samples.id).toHaveLength(12);
+  });
+
+  test('a changed machine setting, an oil change or another query gives another tag', async () => {
+    const { c, machine } = await machineWithHistory(6);
+    const locals = localsOf(c.rider.id, c.crew.id);
+    const tagOf = async (query?: string): Promise<string> =>
+      (
+        await answerTrendRequest(db, { request: request(machine.id, {}, query), machineId: machine.id, locals })
+      ).headers.get('etag')!;
+    const tags = [await tagOf()];
+    tags.push(await tagOf('measurands=Fe,Al&basis=ppm&x=odometer'));
+    tags.push(await tagOf('measurands=Fe,Al,Si&basis=rate&x=odometer'));
+    await db.updateTable('machines').set({ meter: 'mi' }).where('id', '=', machine.id).execute();
+    tags.push(await tagOf());
+    await db
+      .insertInto('oil_changes')
+      .values({
+        crew_id: c.crew.id,
+        machine_id: machine.id,
+        changed_on: '2026-01-02',
+        odometer: 99_000,
+        sae_grade: '15W-50',
+        volume_l: 3.1,
+        other_work: JSON.stringify([]),
+        created_by: c.rider.id,
+      })
+      .execute();
+    tags.push(await tagOf());
+    expect(new Set(tags).size).toBe(tags.length);
+    // The person asking does not enter the answer (units are the machine's), so another rider of the crew, or the
+    // same one after changing their own units, gets the same tag for the same data.
+    await db.updateTable('users').set({ distance_unit: 'mi' }).where('id', '=', c.rider.id).execute();
+    expect(await tagOf()).toBe(tags.at(-1));
+  });
+
   test.each([
     ['a forged tag', '"AAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAA"'],
     ['an unquoted tag', 'W/abc'],

@@ -1,7 +1,13 @@
 import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';
 import { parseReadingCell } from '~/lib/lab-csv/cell-values';
-import { isBareNotDetected, parsePlainNumber, readIsoDay } from '~/lib/lab-csv/plain-cells';
+import {
+  isBareNotDetected,
+  parsePlainNumber,
+  plainKeyValue,
+  plainNumberKey,
+  readIsoDay,
+} from '~/lib/lab-csv/plain-cells';
 import { parseLabCsv } from '~/lib/lab-csv/lab-csv';
 
 // The reference for every plain cell is JavaScript's own Number() (ECMA-262, StringToNumber), on the cell written
@@ -76,6 +82,44 @@ describe('parsePlainNumber', () => {
         const fast = parsePlainNumber(cell, mark);
         if (Number.isNaN(fast)) return;
         expect(parseReadingCell(cell, mark)).toEqual({ status: 'ok', value: fast });
+      }),
+      { numRuns: 2000 },
+    );
+  });
+});
+
+// The key is parsePlainNumber's twin: where it answers, its value is the same number; a key of -1 leaves the cell
+// to parsePlainNumber.
+describe('plainNumberKey', () => {
+  test.each([
+    // [cell, mark, from, end, key or -1]
+    ['12', '.', 0, 2, 12 * 16],
+    ['12.0', '.', 0, 4, 120 * 16 + 1],
+    ['12,05', ',', 0, 5, 1205 * 16 + 2],
+    ['<1', '.', 1, 2, 16],
+    ['x,12.5,y', '.', 2, 6, 125 * 16 + 1],
+    ['12.', '.', 0, 3, -1],
+    ['.5', '.', 0, 2, -1],
+    ['1e3', '.', 0, 3, -1],
+    ['', '.', 0, 0, -1],
+    ['16777216', '.', 0, 8, -1], // 2^24: past the key's integer range, read by parsePlainNumber
+    ['0000000000000001', '.', 0, 16, -1], // 16 digits: parsePlainNumber hands these to Number()
+  ] as const)('%j (%s, %i–%i) → %i', (cell, mark, from, end, key) => {
+    expect(plainNumberKey(cell, mark, from, end)).toBe(key);
+    if (key >= 0) expect(plainKeyValue(key)).toBe(parsePlainNumber(cell, mark, from, end));
+  });
+
+  test('answers with the value of parsePlainNumber for every plain decimal', () => {
+    const plain = fc.tuple(
+      fc.stringMatching(/^\d{1,8}$/),
+      fc.option(fc.stringMatching(/^\d{1,7}$/), { nil: undefined }),
+    );
+    fc.assert(
+      fc.property(plain, fc.constantFrom('.', ',') as fc.Arbitrary<'.' | ','>, ([whole, fraction], mark) => {
+        const cell = fraction === undefined ? whole : `${whole}${mark}${fraction}`;
+        const key = plainNumberKey(cell, mark);
+        if (key === -1) expect(Number(`${whole}${fraction ?? ''}`)).toBeGreaterThanOrEqual(2 ** 24);
+        else expect(plainKeyValue(key)).toBe(parsePlainNumber(cell, mark));
       }),
       { numRuns: 2000 },
     );
