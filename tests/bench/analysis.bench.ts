@@ -16,72 +16,11 @@ import {
 } from '~/lib/analysis/index';
 // mulberry32, seeded, so every run measures the same invented history.
 import { makeRandom } from '../unit/analysis/simulated-machines';
+import { ELEMENT_CODES } from '~/lib/analysis/measurands';
+import { TYPICAL_USED_OIL } from './typical-oil';
 
 const SAMPLES = 500;
-const CODES: MeasurandCode[] = [
-  'Fe',
-  'Al',
-  'Cr',
-  'Cu',
-  'Pb',
-  'Sn',
-  'Ni',
-  'Ag',
-  'Ti',
-  'V',
-  'Mn',
-  'Si',
-  'Na',
-  'K',
-  'B',
-  'Mo',
-  'Zn',
-  'P',
-  'Ca',
-  'Mg',
-  'Ba',
-  'S',
-  'KV40',
-  'KV100',
-  'VI',
-  'SUS210',
-  'FLASH',
-  'FUEL',
-  'WATER',
-  'INSOL',
-];
-const TYPICAL: Record<string, number> = {
-  Fe: 20,
-  Al: 4,
-  Cr: 1,
-  Cu: 5,
-  Pb: 2,
-  Sn: 1,
-  Ni: 1,
-  Ag: 0.5,
-  Ti: 0.5,
-  V: 0.5,
-  Mn: 1,
-  Si: 7,
-  Na: 5,
-  K: 2,
-  B: 4,
-  Mo: 60,
-  Zn: 1100,
-  P: 950,
-  Ca: 2100,
-  Mg: 20,
-  Ba: 1,
-  S: 2500,
-  KV40: 100,
-  KV100: 14,
-  VI: 145,
-  SUS210: 75,
-  FLASH: 220,
-  FUEL: 0.6,
-  WATER: 0.02,
-  INSOL: 0.3,
-};
+const CODES: MeasurandCode[] = [...ELEMENT_CODES, 'KV40', 'KV100', 'VI', 'SUS210', 'FLASH', 'FUEL', 'WATER', 'INSOL'];
 
 function buildMachineHistory(): SamplePoint[] {
   const random = makeRandom(20240501);
@@ -89,7 +28,7 @@ function buildMachineHistory(): SamplePoint[] {
   for (let i = 0; i < SAMPLES; i++) {
     const readings: SamplePoint['readings'] = {};
     for (const code of CODES) {
-      const typical = TYPICAL[code]!;
+      const typical = TYPICAL_USED_OIL[code]!;
       // ±15 % scatter, an occasional excursion so some rules fire.
       const excursion = random() < 0.03 ? 2.5 : 1;
       readings[code] = { value: Number((typical * excursion * (0.85 + 0.3 * random())).toFixed(3)) };

@@ -8,6 +8,7 @@ import type { Database } from '~/lib/db/database';
 import { startApp } from '../e2e/helpers/server';
 // mulberry32: the same invented history on every run.
 import { makeRandom } from '../unit/analysis/simulated-machines';
+import { TYPICAL_USED_OIL } from './typical-oil';
 
 export interface BenchApp {
   baseUrl: string;
@@ -33,38 +34,10 @@ export async function openBenchApp(dbName: string): Promise<BenchApp> {
   };
 }
 
-const TYPICAL: Record<string, number> = {
-  Fe: 20,
-  Al: 4,
-  Cr: 1,
-  Cu: 5,
-  Pb: 2,
-  Sn: 1,
-  Ni: 1,
-  Ag: 0.5,
-  Ti: 0.5,
-  V: 0.5,
-  Mn: 1,
-  Si: 7,
-  Na: 5,
-  K: 2,
-  B: 4,
-  Mo: 60,
-  Zn: 1100,
-  P: 950,
-  Ca: 2100,
-  Mg: 20,
-  Ba: 1,
-  S: 2500,
-  KV40: 100,
-  KV100: 14,
-  VI: 145,
-  FLASH: 220,
-  FUEL: 0.6,
-  WATER: 0.02,
-  TBN: 7,
-  TAN: 2,
-};
+// The measurands each bench sample carries (30 readings).
+const TYPICAL = Object.fromEntries(
+  Object.entries(TYPICAL_USED_OIL).filter(([code]) => code !== 'SUS210' && code !== 'INSOL'),
+);
 
 /** A mechanic of a new crew with a machine of `samples` samples (30 readings each, a finding on every tenth) and a session cookie. */
 export async function seedBenchMachine(
