@@ -195,6 +195,9 @@ describe('the content security policy holds in Chromium', () => {
         console.error(`Content Security Policy violation: ${e.violatedDirective} blocked ${e.blockedURI}`),
       );
     });
+    // The offline page warmer (covered by offline.test.ts) fetches a dozen garage pages one by one after sign-in;
+    // on a busy machine that keeps the network from going idle for longer than a page load may wait here.
+    await context.route('**/api/offline/pages', (route) => route.fulfill({ status: 503, body: '' }));
     const page = await context.newPage();
     const out = await visit(page, ['/sign-in', '/sign-up', '/forgot-password', '/rules']);
     await signInAs(page, lead.email, lead.password);

@@ -19,7 +19,8 @@ import {
   RESERVED_PER_RIDER,
 } from '~/lib/samples/samples.service';
 import { addWearMeasurement, createWearPart } from '~/lib/wear-parts/wear-parts.service';
-import { listPagesToKeep } from '~/lib/offline/offline.service';
+import { listPagesToKeep, MACHINES_KEPT_OFFLINE } from '~/lib/offline/offline.service';
+import { makeMachine } from '../factories';
 
 const db = openTestDb();
 afterAll(() => db.destroy());
@@ -174,5 +175,36 @@ describe('pages a device keeps', () => {
     ]);
     const mechanic = await addActor(db, rider, 'mechanic');
     expect(await listPagesToKeep(db, mechanic)).toEqual(['/', '/machines', '/outbox', `/machines/${machineId}`]);
+  });
+
+  test('a large crew keeps a bounded set of machines, the rider’s own first', async () => {
+    const lead = await makeActor(db, 'lead');
+    const others = [];
+    for (let i = 0; i < MACHINES_KEPT_OFFLINE + 3; i++)
+      others.push(
+        await makeMachine(db, lead.membership.crewId, lead.userId, { name: `A${String(i).padStart(2, '0')}` }),
+      );
+    const rider = await addActor(db, lead, 'rider');
+    // Named to sort last in the crew's list, so only the own-first rule can bring it in.
+    const own = await makeMachine(db, lead.membership.crewId, rider.userId, { name: 'Zz own' });
+
+    const riderPages = await listPagesToKeep(db, rider);
+    const machineIds = (pages: string[]) => new Set(pages.map((p) => p.split('/')[2]).filter(Boolean));
+    expect(machineIds(riderPages).size).toBe(MACHINES_KEPT_OFFLINE);
+    expect(riderPages.slice(0, 6)).toEqual([
+      '/',
+      '/machines',
+      '/outbox',
+      `/machines/${own.id}`,
+      `/machines/${own.id}/drain-card`,
+      `/machines/${own.id}/oil-change`,
+    ]);
+    // The others the rider can only read: their page, no forms.
+    expect(riderPages.length).toBe(3 + 3 + (MACHINES_KEPT_OFFLINE - 1));
+
+    const leadPages = await listPagesToKeep(db, lead);
+    expect(machineIds(leadPages).size).toBe(MACHINES_KEPT_OFFLINE);
+    expect(leadPages.length).toBe(3 + 3 * MACHINES_KEPT_OFFLINE);
+    expect(others.length).toBeGreaterThan(MACHINES_KEPT_OFFLINE);
   });
 });
