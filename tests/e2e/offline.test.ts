@@ -398,4 +398,36 @@ describe('the garage without signal', () => {
       await browser.close();
     }
   });
+
+  test('a device refused more bottle codes lets go of the answer, so the page goes quiet', async () => {
+    // Fill the rider's allowance from other devices: the next device is answered 409 (too many held).
+    for (let i = 0; i < 6; i++)
+      await api(cookie, 'POST', '/api/samples/reserved-codes', { deviceKey: `filler-${stamp}-${i}` });
+    expect((await api(cookie, 'POST', '/api/samples/reserved-codes', { deviceKey: `probe-${stamp}` })).status).toBe(
+      409,
+    );
+    const browser = await launchBrowser();
+    try {
+      const ctx = await browser.newContext({ viewport: PHONE, baseURL: baseUrl() });
+      const p = await ctx.newPage();
+      const answers: number[] = [];
+      const open = new Set<unknown>();
+      p.on('request', (r) => {
+        if (r.url().endsWith('/api/samples/reserved-codes')) open.add(r);
+      });
+      p.on('requestfinished', (r) => open.delete(r));
+      p.on('requestfailed', (r) => open.delete(r));
+      p.on('response', (r) => {
+        if (r.url().endsWith('/api/samples/reserved-codes')) answers.push(r.status());
+      });
+      await signInAs(p, email, PASSWORD);
+      // An unread refusal kept its request open and the network never went quiet (the browser's connection held).
+      await p.goto('/', { waitUntil: 'networkidle', timeout: 20_000 });
+      expect(answers).toContain(409);
+      expect(open.size).toBe(0);
+      await ctx.close();
+    } finally {
+      await browser.close();
+    }
+  });
 });

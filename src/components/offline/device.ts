@@ -3,6 +3,7 @@
 // as it is put on a card, so it is never handed out twice from this device (the server never reserves a
 // code twice across devices).
 import { createStore, get, set, update } from 'idb-keyval';
+import { discardBody } from './discard-body';
 
 const store = createStore('sumpwise-device', 'values');
 
@@ -40,7 +41,7 @@ export async function refreshCodeBlock(userId: string, crewId: string): Promise<
         await set(blockKey(userId, crewId), block, store);
         return block;
       }
-    }
+    } else discardBody(res);
   } catch {
     // Offline: use what is kept.
   }

@@ -6,6 +6,7 @@ import { registerSW } from 'virtual:pwa-register';
 import { PAGE_CACHE, SAVED_AT_HEADER, SAVED_COPY_ATTRIBUTE, savedCopySentence } from '~/lib/offline/page-cache';
 import { labelOf, type OutboxItem } from '~/lib/offline/outbox';
 import { readCodeBlock, refreshCodeBlock } from './device';
+import { discardBody } from './discard-body';
 import { listOutbox, onOutboxChange, putOutboxItem } from './outbox-store';
 import { flushOutbox } from './outbox-sync';
 
@@ -92,19 +93,17 @@ async function warmPages(): Promise<void> {
     headers: { accept: 'application/json' },
     credentials: 'same-origin',
   });
-  if (!res.ok) return;
+  if (!res.ok) return discardBody(res);
   const { crewId, pages } = (await res.json()) as { crewId: string; pages: string[] };
   if (crewId !== session.crewId) return;
   const cache = await caches.open(PAGE_CACHE);
   for (const url of pages) {
     const page = await fetch(url, { credentials: 'same-origin', headers: { accept: 'text/html' } }).catch(() => null);
-    if (
-      !page ||
-      page.status !== 200 ||
-      page.redirected ||
-      !(page.headers.get('content-type') ?? '').includes('text/html')
-    )
+    if (!page) continue;
+    if (page.status !== 200 || page.redirected || !(page.headers.get('content-type') ?? '').includes('text/html')) {
+      discardBody(page);
       continue;
+    }
     const headers = new Headers(page.headers);
     headers.set(SAVED_AT_HEADER, new Date().toISOString());
     await cache.put(url, new Response(await page.blob(), { status: 200, headers }));

@@ -10,6 +10,7 @@ import {
   type OutboxSession,
 } from '../../lib/offline/outbox';
 import { listOutbox, putOutboxItem, removeOutboxItem } from './outbox-store';
+import { discardBody } from './discard-body';
 
 export const SYNC_TAG = 'sumpwise-outbox';
 const CREW_HEADER = 'x-sumpwise-crew';
@@ -31,6 +32,7 @@ export async function readSession(fetchImpl: typeof fetch = fetch): Promise<Outb
   } catch {
     return 'offline';
   }
+  if (!res.ok) discardBody(res);
   if (res.status === 401) return null;
   if (!res.ok) return 'offline';
   const body = (await res.json()) as {
