@@ -3,9 +3,8 @@ import type { Database } from '../db/database';
 import { canActorEdit, getMachine } from '../machines/machines.service';
 import { refuse, refuseInvalid, succeed, type FieldErrors, type Result } from '~/lib/http/result';
 import type { Actor } from '~/lib/auth/types';
-import type { PreparedPhoto } from '../photos/photos';
 import { attachPhotos, findPhotosOfOilChanges, type PhotoRow } from '../photos/photos.repository';
-import { storePreparedPhoto } from '../photos/photos.service';
+import { storeCheckedPhoto, type CheckedPhoto } from '../photos/photos.service';
 import type { PhotoStore } from '../photos/photo-store';
 import { formatMeter, toStoredMeter } from '../units/units';
 import {
@@ -70,7 +69,7 @@ export async function createOilChange(
   actor: Actor,
   machineId: string,
   input: unknown,
-  options: { newPhotos?: PreparedPhoto[]; photoStore?: PhotoStore; quotaBytes?: number } = {},
+  options: { newPhotos?: CheckedPhoto[]; photoStore?: PhotoStore; quotaBytes?: number } = {},
 ): Promise<Result<OilChange & { repeated: boolean }>> {
   const m = await getMachine(db, actor, machineId);
   if (!m.ok) return m;
@@ -137,7 +136,7 @@ export async function createOilChange(
       }
       for (const p of options.newPhotos ?? []) {
         if (!options.photoStore) throw new Error('photoStore is required to store photos.');
-        await storePreparedPhoto(trx, actor, p, options.photoStore, row.id);
+        await storeCheckedPhoto(trx, actor, p, options.photoStore, row.id);
       }
       return succeed({ ...toOilChange(row), repeated: false });
     })

@@ -36,16 +36,23 @@ function insertPhotoRow(
   });
 }
 
-/** Stores a checked photo held in memory (bytes by hash, then its row) in the actor's crew, optionally on an oil change. */
-export async function storePreparedPhoto(
+/** A checked photo ready to store: its facts and its bytes, in a temp file (an upload) or in memory. */
+export type CheckedPhoto = PhotoFields & ({ tempPath: string } | { bytes: Uint8Array });
+
+/**
+ * Stores a checked photo (bytes by hash, then its row) in the actor's crew, optionally on an oil change. The
+ * bytes are stored before the row: a failed store write leaves neither.
+ */
+export async function storeCheckedPhoto(
   db: Kysely<Database> | Transaction<Database>,
   actor: Actor,
-  photo: PreparedPhoto,
+  photo: CheckedPhoto,
   store: PhotoStore,
   oilChangeId: string | null = null,
   caption = '',
 ): Promise<PhotoRow> {
-  await store.put(photoKey(photo.sha256), bodyOf(photo.bytes), photo.byteSize, photo.contentType);
+  const body = 'tempPath' in photo ? createReadStream(photo.tempPath) : bodyOf(photo.bytes);
+  await store.put(photoKey(photo.sha256), body, photo.byteSize, photo.contentType);
   return insertPhotoRow(db, actor, photo, oilChangeId, caption);
 }
 
@@ -82,9 +89,7 @@ export async function uploadPhoto(
       quotaBytes,
     );
     if (overQuota) return refuse(413, 'quota_exceeded', overQuota, { file: overQuota });
-    // The bytes are stored before the row: a failed store write leaves neither.
-    await store.put(photoKey(photo.sha256), createReadStream(photo.tempPath), photo.byteSize, photo.contentType);
-    return succeed(await insertPhotoRow(db, actor, photo, null, ''));
+    return succeed(await storeCheckedPhoto(db, actor, photo, store));
   } finally {
     await photo.discard();
   }

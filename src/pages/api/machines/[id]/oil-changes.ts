@@ -6,7 +6,7 @@ import { jsonError, jsonOk, parseJsonBody } from '~/lib/http/json';
 import { refuseQueuedWriteOfOtherCrew } from '~/lib/http/queued-write';
 import { actorFrom } from '~/lib/http/page-context';
 import { refusalJson } from '~/lib/http/responses';
-import { readOilChangeUpload } from '~/lib/oil-changes/oil-change-upload';
+import { withOilChangeUpload } from '~/lib/oil-changes/oil-change-upload';
 import { createOilChange, listOilChanges } from '~/lib/oil-changes/oil-changes.service';
 import { PhotoStorageError } from '~/lib/photos/photos.storage';
 import { getPhotoStore } from '~/lib/photos/photo-stores';
@@ -36,26 +36,27 @@ export const POST: APIRoute = async ({ params, request, locals }) => {
   if (g instanceof Response) return g;
   const otherCrew = refuseQueuedWriteOfOtherCrew(request, g.crew, locals.crews);
   if (otherCrew) return otherCrew;
-  let input: unknown;
-  let photos: Parameters<typeof createOilChange>[4] = {};
-  if (/^multipart\/form-data\b/i.test(request.headers.get('content-type') ?? '')) {
-    const upload = await readOilChangeUpload(request);
-    if (!upload.ok)
-      return jsonError(upload.status, upload.status === 413 ? 'too_large' : 'invalid_input', upload.message, {
-        photos: upload.message,
-      });
-    input = upload.input;
-    photos = { newPhotos: upload.photos, photoStore: getPhotoStore() };
-  } else {
+  const save = (input: unknown, photos: Parameters<typeof createOilChange>[4] = {}) =>
+    createOilChange(getDb(), actorFrom(g), params.id ?? '', input, photos).then((r) => {
+      if (!r.ok) return refusalJson(r);
+      const { repeated, ...oilChange } = r.value;
+      return jsonOk({ oilChange, repeated }, repeated ? 200 : 201);
+    });
+  try {
+    if (/^multipart\/form-data\b/i.test(request.headers.get('content-type') ?? '')) {
+      return await withOilChangeUpload(request, (upload) =>
+        upload.ok
+          ? save(upload.input, { newPhotos: upload.photos, photoStore: getPhotoStore() })
+          : Promise.resolve(
+              jsonError(upload.status, upload.status === 413 ? 'too_large' : 'invalid_input', upload.message, {
+                photos: upload.message,
+              }),
+            ),
+      );
+    }
     const body = await parseJsonBody(request, z.looseObject({}));
     if (!body.ok) return body.response;
-    input = body.data;
-  }
-  try {
-    const r = await createOilChange(getDb(), actorFrom(g), params.id ?? '', input, photos);
-    if (!r.ok) return refusalJson(r);
-    const { repeated, ...oilChange } = r.value;
-    return jsonOk({ oilChange, repeated }, repeated ? 200 : 201);
+    return await save(body.data);
   } catch (e) {
     if (!(e instanceof PhotoStorageError)) throw e;
     console.error(`[oil-change] photos not stored: ${e.message}`);
