@@ -212,20 +212,22 @@ export interface FindingInsert {
 export async function replaceFindings(
   db: Db,
   sampleIds: readonly string[],
-  rows: readonly FindingInsert[],
-): Promise<void> {
-  if (sampleIds.length === 0) return;
+  rows: Iterable<FindingInsert>,
+): Promise<number> {
+  if (sampleIds.length === 0) return 0;
   await db
     .deleteFrom('findings')
     .where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`)
     .execute();
-  await insertFindings(db, rows);
+  return insertFindings(db, rows);
 }
 
-/** The one statement that writes findings: COPY on the caller's connection (inside its transaction). */
-export async function insertFindings(db: Db, rows: readonly FindingInsert[]): Promise<number> {
-  if (rows.length === 0) return 0;
-  await copyRows(
+/**
+ * The one statement that writes findings: COPY on the caller's connection (inside its transaction). The rows may
+ * be a generator, read once as they are sent. Returns how many were written.
+ */
+export async function insertFindings(db: Db, rows: Iterable<FindingInsert>): Promise<number> {
+  return copyRows(
     db,
     'findings',
     ['sample_id', 'measurand', 'level', 'rule_id', 'numbers', 'sentence'],
@@ -233,7 +235,6 @@ export async function insertFindings(db: Db, rows: readonly FindingInsert[]): Pr
       for (const f of rows) yield [f.sampleId, f.measurand, f.level, f.ruleId, JSON.stringify(f.numbers), f.sentence];
     })(),
   );
-  return rows.length;
 }
 
 export interface IntervalCallInsert {
@@ -281,13 +282,12 @@ export interface BandInsert extends StoredBand {
 }
 
 /** Replace the stored baseline bands of these samples (the bands the rules used). */
-export async function replaceBands(db: Db, sampleIds: readonly string[], rows: readonly BandInsert[]): Promise<void> {
+export async function replaceBands(db: Db, sampleIds: readonly string[], rows: Iterable<BandInsert>): Promise<void> {
   if (sampleIds.length === 0) return;
   await db
     .deleteFrom('baseline_bands')
     .where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`)
     .execute();
-  if (rows.length === 0) return;
   // As many bands as readings: COPY, like the readings.
   await copyRows(
     db,

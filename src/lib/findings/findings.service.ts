@@ -220,26 +220,36 @@ export async function recomputeMachineFindings(
     attachNewOil(toSamplePoint(s, readingsBySample.get(s.id) ?? {}, machineRow.oil_capacity_l, meter), newOil),
   );
   machine.crewReference = await loadCrewReference(trx, machineRow);
-  const replayed = replayHistory({ machine, samples: points, limits });
-  const findings: repo.FindingInsert[] = [];
-  const calls: repo.IntervalCallInsert[] = [];
-  const bands: repo.BandInsert[] = [];
-  const recomputed: string[] = [];
-  for (const { sampleId, analysis, call } of replayed.slice(firstChanged)) {
-    recomputed.push(sampleId);
-    for (const f of analysis.findings) {
-      findings.push({
+  const replayed = replayHistory({ machine, samples: points, limits }).slice(firstChanged);
+  const recomputed = replayed.map((r) => r.sampleId);
+  // The rows are made as COPY sends them, not held as arrays beside the replay they come from.
+  const written = await repo.replaceFindings(trx, recomputed, findingRows(replayed));
+  await repo.replaceEngineCalls(trx, recomputed, [...callRows(replayed, machineId, meter)]);
+  await repo.replaceBands(trx, recomputed, bandRows(replayed));
+  if (stale) await repo.markMachineJudged(trx, machineId, ENGINE_VERSION);
+  return written;
+}
+
+type Replayed = ReturnType<typeof replayHistory>;
+
+function* findingRows(replayed: Replayed): Generator<repo.FindingInsert> {
+  for (const { sampleId, analysis } of replayed)
+    for (const f of analysis.findings)
+      yield {
         sampleId,
         measurand: f.measurands[0] ?? null,
         level: f.level,
         ruleId: f.ruleId,
         numbers: f.numbers,
         sentence: f.sentence,
-      });
-    }
+      };
+}
+
+function* bandRows(replayed: Replayed): Generator<repo.BandInsert> {
+  for (const { sampleId, analysis } of replayed)
     for (const [measurand, band] of Object.entries(analysis.bands)) {
       if (!band || band.status !== 'ready') continue;
-      bands.push({
+      yield {
         sampleId,
         measurand,
         basis: band.basis,
@@ -252,9 +262,13 @@ export async function recomputeMachineFindings(
         watchAbove: band.watchAbove,
         actFrom: band.actFrom,
         toReported: band.toReported,
-      });
+      };
     }
-    calls.push({
+}
+
+function* callRows(replayed: Replayed, machineId: string, meter: MeterUnit): Generator<repo.IntervalCallInsert> {
+  for (const { sampleId, call } of replayed)
+    yield {
       sampleId,
       machineId,
       call: call.call,
@@ -269,13 +283,7 @@ export async function recomputeMachineFindings(
           : null,
       nextSampleOn: call.nextSampleDue.date ?? null,
       reasons: call.reasons,
-    });
-  }
-  await repo.replaceFindings(trx, recomputed, findings);
-  await repo.replaceEngineCalls(trx, recomputed, calls);
-  await repo.replaceBands(trx, recomputed, bands);
-  if (stale) await repo.markMachineJudged(trx, machineId, ENGINE_VERSION);
-  return findings.length;
+    };
 }
 
 /**
@@ -311,12 +319,13 @@ export interface ChangedSample {
 /**
  * Judge the machines of changed samples again (each from its first changed sample on) and then the young
  * same-engine peers whose crew references they change, in the caller's transaction. `known` holds readings already
- * in memory by sample id (the lab import's). Returns the number of findings stored for those machines.
+ * in memory by sample id (the lab import's); a machine's entries are dropped from it once the machine is judged,
+ * so a big import holds fewer of them as it goes. Returns the number of findings stored for those machines.
  */
 export async function recomputeChangedSamples(
   trx: Db,
   changed: Iterable<ChangedSample>,
-  known: ReadonlyMap<string, SamplePoint['readings']> = new Map(),
+  known: Map<string, SamplePoint['readings']> = new Map(),
 ): Promise<number> {
   const byMachine = new Map<string, Set<string>>();
   for (const { sampleId, machineId } of changed) {
@@ -325,7 +334,10 @@ export async function recomputeChangedSamples(
     byMachine.set(machineId, set);
   }
   let written = 0;
-  for (const [machineId, ids] of byMachine) written += await recomputeMachineFindings(trx, machineId, ids, known);
+  for (const [machineId, ids] of byMachine) {
+    written += await recomputeMachineFindings(trx, machineId, ids, known);
+    for (const id of ids) known.delete(id);
+  }
   // Their crew references changed with these samples: judge the young machines of the same engines again.
   await rejudgeEnginePeers(trx, new Set(byMachine.keys()));
   return written;
