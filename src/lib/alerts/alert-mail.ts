@@ -58,7 +58,18 @@ export interface ImportMachineInput {
   samples: { bottleCode: string; drawnOn: string; url: string; findings: ImportFindingInput[] }[];
 }
 
-/** The mail after a lab import: every machine of the recipient's with findings at watch or act, act first. */
+/**
+ * How much of a big import one mail spells out: the newest samples of each machine and the first machines
+ * (their pages hold the rest). A mail a phone can scroll, whatever the file's size (common practice, no
+ * published source).
+ */
+export const IMPORT_ALERT_SAMPLES_PER_MACHINE = 3;
+export const IMPORT_ALERT_MACHINES = 20;
+
+/**
+ * The mail after a lab import: the recipient's machines with findings at watch or act, each with its newest
+ * samples' findings (act first); the counts in the opening line cover everything.
+ */
 export function composeImportFindingsAlert(input: {
   crewName: string;
   fileName: string;
@@ -68,12 +79,22 @@ export function composeImportFindingsAlert(input: {
   const all = input.machines.flatMap((m) => m.samples.flatMap((s) => s.findings));
   const acts = all.filter((f) => f.level === 'act').length;
   const watches = all.length - acts;
-  const counted = [acts ? `${acts} at act` : '', watches ? `${watches} at watch` : ''].filter(Boolean).join(' and ');
+  const counted = [
+    acts ? `${acts.toLocaleString('en-GB')} at act` : '',
+    watches ? `${watches.toLocaleString('en-GB')} at watch` : '',
+  ]
+    .filter(Boolean)
+    .join(' and ');
   const machineNames = input.machines.map((m) => m.name);
   const lines: AlertLine[] = [];
-  for (const m of input.machines) {
+  for (const m of input.machines.slice(0, IMPORT_ALERT_MACHINES)) {
     lines.push({ text: `${m.name}`, url: m.url });
-    for (const s of m.samples) {
+    const earlier = m.samples.length - IMPORT_ALERT_SAMPLES_PER_MACHINE;
+    if (earlier > 0)
+      lines.push({
+        text: `${formatCount(earlier, 'earlier sample')} of this import also ${earlier === 1 ? 'has' : 'have'} findings; the machine page shows them all.`,
+      });
+    for (const s of m.samples.slice(Math.max(0, earlier))) {
       const ordered = [...s.findings].sort((a, b) => byLevelWorstFirst(a.level, b.level));
       for (const f of ordered) {
         lines.push({
@@ -83,6 +104,12 @@ export function composeImportFindingsAlert(input: {
       lines.push({ text: `Sample ${s.bottleCode}, readings and findings`, url: s.url });
     }
   }
+  const moreMachines = input.machines.length - IMPORT_ALERT_MACHINES;
+  if (moreMachines > 0)
+    lines.push({
+      text: `${formatCount(moreMachines, 'more machine')} of this import ${moreMachines === 1 ? 'has' : 'have'} findings; the crew home lists them.`,
+      url: input.homeUrl,
+    });
   return {
     kind: 'import_findings',
     subject: fitSubject(`${acts ? 'Act' : 'Watch'}: lab results for ${machineNames.join(', ')} (${input.crewName})`),

@@ -153,6 +153,7 @@ export async function queueImportAlerts(
   if (rows.length === 0) return [];
 
   const machines = new Map<string, { owner: string; input: ImportMachineInput }>();
+  const samples = new Map<string, ImportMachineInput['samples'][number]>();
   for (const r of rows) {
     let m = machines.get(r.machine_id);
     if (!m) {
@@ -162,7 +163,7 @@ export async function queueImportAlerts(
       };
       machines.set(r.machine_id, m);
     }
-    let s = m.input.samples.find((x) => x.url.endsWith(`/${r.sample_id}`));
+    let s = samples.get(r.sample_id);
     if (!s) {
       s = {
         bottleCode: r.bottle_code,
@@ -170,6 +171,7 @@ export async function queueImportAlerts(
         url: `${env.publicUrl}/samples/${r.sample_id}`,
         findings: [],
       };
+      samples.set(r.sample_id, s);
       m.input.samples.push(s);
     }
     s.findings.push({ level: r.level, measurand: r.measurand, sentence: r.sentence });

@@ -3,6 +3,8 @@ import {
   buildUnsubscribeHeaders,
   composeImportFindingsAlert,
   composeInvitationPendingAlert,
+  IMPORT_ALERT_MACHINES,
+  IMPORT_ALERT_SAMPLES_PER_MACHINE,
   composeSampleDueAlert,
   composeShippedOverdueAlert,
   fitSubject,
@@ -96,6 +98,55 @@ describe('composeImportFindingsAlert', () => {
     expect(watchOnly.subject.startsWith('Watch:')).toBe(true);
     expect(watchOnly.title).toBe('Lab results to keep an eye on');
   });
+
+  /** `machines` machines of `samples` samples each (oldest first, as the import lists them), one act finding each. */
+  const bigImport = (machines: number, samples: number) =>
+    composeImportFindingsAlert({
+      crewName: 'C',
+      fileName: 'year.csv',
+      homeUrl: `${BASE}/`,
+      machines: Array.from({ length: machines }, (_, m) => ({
+        name: `M${m}`,
+        url: `${BASE}/machines/m${m}`,
+        samples: Array.from({ length: samples }, (_, i) => ({
+          bottleCode: `B${m}-${i}`,
+          drawnOn: new Date(Date.UTC(2025, 0, 1 + i)).toISOString().slice(0, 10),
+          url: `${BASE}/samples/s${m}-${i}`,
+          findings: [{ level: 'act' as const, measurand: 'Fe', sentence: 'Iron is at act.' }],
+        })),
+      })),
+    });
+
+  test.each([
+    // machines, samples each, machines listed, samples listed per machine, "earlier" lines, "more machines" line
+    [1, 1, 1, 1, 0, false],
+    [1, IMPORT_ALERT_SAMPLES_PER_MACHINE, 1, IMPORT_ALERT_SAMPLES_PER_MACHINE, 0, false],
+    [1, 25, 1, IMPORT_ALERT_SAMPLES_PER_MACHINE, 1, false],
+    [IMPORT_ALERT_MACHINES, 2, IMPORT_ALERT_MACHINES, 2, 0, false],
+    [
+      IMPORT_ALERT_MACHINES + 5,
+      500,
+      IMPORT_ALERT_MACHINES,
+      IMPORT_ALERT_SAMPLES_PER_MACHINE,
+      IMPORT_ALERT_MACHINES,
+      true,
+    ],
+  ])(
+    '%i machines × %i samples: %i machines and %i samples each spelled out',
+    (machines, samples, listedMachines, listedSamples, earlierLines, moreLine) => {
+      const alert = bigImport(machines, samples);
+      const texts = alert.lines.map((l) => l.text);
+      // The counts cover the whole import.
+      expect(alert.intro).toContain(`${(machines * samples).toLocaleString('en-GB')} at act`);
+      expect(alert.lines.filter((l) => l.url?.includes('/machines/'))).toHaveLength(listedMachines);
+      expect(alert.lines.filter((l) => l.url?.includes('/samples/'))).toHaveLength(listedMachines * listedSamples);
+      expect(texts.filter((t) => / earlier samples? of this import also/.test(t))).toHaveLength(earlierLines);
+      expect(texts.some((t) => /more machines? of this import/.test(t))).toBe(moreLine);
+      // The newest samples are the ones shown.
+      if (samples > IMPORT_ALERT_SAMPLES_PER_MACHINE)
+        expect(texts).toContain(`Sample B0-${samples - 1}, readings and findings`);
+    },
+  );
 });
 
 describe('renderAlertMail', () => {
