@@ -105,6 +105,8 @@ function summarise(t: Tally, seconds: number) {
     '429': t.s429,
     '5xx': t.s5xx,
     perSecond: r1(sorted.length / seconds),
+    /** Answers the riders wanted (2xx): a refusal is cheap, so counting it would flatter a run that refuses. */
+    okPerSecond: r1(t.s2xx / seconds),
     p50Ms: r1(quantile(sorted, 0.5)),
     p95Ms: r1(quantile(sorted, 0.95)),
     p99Ms: r1(quantile(sorted, 0.99)),
@@ -226,7 +228,9 @@ async function runLoad(processes: number) {
             ...req,
             method: 'POST',
             path: '/api/auth/sign-in',
-            headers: { 'content-type': 'application/json', origin },
+            // Each rider from an address of its own, like the other requests: fifty riders behind one address
+            // would run into the per-address sign-in limit, and the refused ones would load nothing.
+            headers: { 'content-type': 'application/json', origin, 'x-forwarded-for': addressOf(ctx.n ?? 0) },
             body: JSON.stringify({ email: `load-${ctx.n}@bench.example`, password: PASSWORD }),
           }));
         case 'home':
@@ -358,7 +362,7 @@ const cores = os.cpus().length;
 const one = await runLoad(1);
 const all = await runLoad(cores);
 const r2 = (v: number) => Math.round(v * 100) / 100;
-const scaling = r2(all.overall.perSecond / one.overall.perSecond);
+const scaling = r2(all.overall.okPerSecond / one.overall.okPerSecond);
 console.log(
   JSON.stringify({
     bench: 'load',
@@ -370,7 +374,7 @@ console.log(
     summary: [
       {
         what: `mixed load, ${CONNECTIONS} connections, 1 app process`,
-        result: `${one.overall.perSecond} req/s, p95 ${one.overall.p95Ms} ms, ${one.serverErrors} × 5xx`,
+        result: `${one.overall.okPerSecond} answered/s (${one.overall.perSecond} req/s with ${one.overall['4xx']} × 4xx), p95 ${one.overall.p95Ms} ms, ${one.serverErrors} × 5xx`,
         floor: `GET /api/health ${one.floor.perSecond} req/s`,
         ratio: one.ratiosToFloor.throughput,
         limit: '0 × 5xx',
@@ -378,8 +382,8 @@ console.log(
       },
       {
         what: `mixed load, ${CONNECTIONS} connections, ${cores} app processes`,
-        result: `${all.overall.perSecond} req/s, p95 ${all.overall.p95Ms} ms, ${all.serverErrors} × 5xx`,
-        floor: `1 process ${one.overall.perSecond} req/s`,
+        result: `${all.overall.okPerSecond} answered/s (${all.overall.perSecond} req/s with ${all.overall['4xx']} × 4xx), p95 ${all.overall.p95Ms} ms, ${all.serverErrors} × 5xx`,
+        floor: `1 process ${one.overall.okPerSecond} answered/s`,
         ratio: scaling,
         limit: cores >= 2 ? '≥ 1.6 ×, 0 × 5xx' : '0 × 5xx',
         ok: all.serverErrors === 0 && (cores < 2 || scaling >= 1.6),
