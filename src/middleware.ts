@@ -5,7 +5,12 @@ import { getDb } from './lib/db';
 import { getLucia, loadSession, mayClearStaleSessionCookie } from './lib/auth/session';
 import { isForbiddenCrossSiteWrite } from './lib/http/origin-check';
 import { getConfig } from './lib/config';
-import { databaseUnavailableResponse, isDatabaseUnavailable, logDatabaseUnavailable } from './lib/http/unavailable';
+import {
+  databaseUnavailableResponse,
+  isClientAbort,
+  isDatabaseUnavailable,
+  logDatabaseUnavailable,
+} from './lib/http/unavailable';
 
 /** Writes that carry their own proof (a signed token) and are POSTed by mail providers' servers. */
 const ORIGIN_EXEMPT_PATHS = ['/api/unsubscribe'];
@@ -62,6 +67,10 @@ export const onRequest = defineMiddleware(async (context, next) => {
   try {
     response = withSecurityHeaders(await next());
   } catch (error) {
+    // The client left while its body was on the way (a phone that navigated away mid-upload): nobody reads
+    // this answer, and it is not an outage to log.
+    if (isClientAbort(error))
+      return withSecurityHeaders(new Response('The request was cut off before it arrived whole.', { status: 400 }));
     // The database went away between the session and the page's own queries.
     if (!isDatabaseUnavailable(error)) throw error;
     logDatabaseUnavailable('request', error instanceof Error ? error.message : String(error));

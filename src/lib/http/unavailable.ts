@@ -22,8 +22,18 @@ const UNREACHABLE_CODES = new Set([
   '57P03',
 ]);
 
-/** True when an error means the database is unreachable rather than a bug. */
+/**
+ * True when the error is the client going away while its request body was being read (Node's http server
+ * fails the body with "aborted", code ECONNRESET): the client's doing, not the database's, though the code is
+ * the same as a dropped database socket's.
+ */
+export function isClientAbort(error: unknown): boolean {
+  return error instanceof Error && error.message === 'aborted' && (error as { code?: unknown }).code === 'ECONNRESET';
+}
+
+/** True when an error means the database is unreachable rather than a bug or a client that went away. */
 export function isDatabaseUnavailable(error: unknown): boolean {
+  if (isClientAbort(error)) return false;
   for (let e: unknown = error, depth = 0; e && depth < 4; e = (e as { cause?: unknown }).cause, depth++) {
     const code = (e as { code?: unknown }).code;
     if (typeof code === 'string' && UNREACHABLE_CODES.has(code)) return true;
