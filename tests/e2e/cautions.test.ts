@@ -1,18 +1,11 @@
-import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { DESKTOP, PHONE, launchBrowser, newContext, screenshot } from './helpers/browser';
+import { describe, expect, test } from 'vitest';
+import { DESKTOP, PHONE, newContext, screenshot, useBrowser } from './helpers/browser';
 import { signInAs } from './helpers/sign-in';
 
 // The pages that invite removing covers, lifting the bike and measuring brake parts carry the safety cautions,
 // brakes included; the caution style is kept for safety and never borrows a level colour.
 describe('safety cautions where the work can hurt', () => {
-  let browser: Browser;
-  beforeAll(async () => {
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-  });
+  const browser = useBrowser();
 
   test.each([
     ['phone', PHONE],
@@ -20,7 +13,7 @@ describe('safety cautions where the work can hurt', () => {
   ])(
     'oil-change, wear-part and new wear-part pages show the cautions with a brake line (%s)',
     async (name, viewport) => {
-      const context = await newContext(browser, viewport);
+      const context = await newContext(browser(), viewport);
       const page = await context.newPage();
       await signInAs(page, 'isla.lead@larchwood.example', 'demo-larchwood-lead');
       await page.goto('/machines');

@@ -1,9 +1,9 @@
 // The crew page opens on the current crew, the desktop header keeps to one row, and the home and the overview each
 // offer one filled button, in Chromium on the seeded demo at phone and desktop size.
-import { afterAll, beforeAll, describe, expect, test } from 'vitest';
+import { describe, expect, test } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { DEMO_ACCOUNTS } from '../../sample-data/seed-accounts';
-import { DESKTOP, PHONE, launchBrowser, newContext, screenshot, SCREENSHOT_DIR } from './helpers/browser';
+import { DESKTOP, PHONE, newContext, screenshot, SCREENSHOT_DIR, useBrowser } from './helpers/browser';
 import { signInAs } from './helpers/sign-in';
 import { seriousViolations } from './helpers/axe';
 import path from 'node:path';
@@ -42,13 +42,7 @@ async function signUp(page: Page, from: string, email: string, lands: RegExp, na
 }
 
 describe('crew page, header and one primary button', () => {
-  let browser: Browser;
-  beforeAll(async () => {
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-  });
+  const browser = useBrowser();
 
   test.each([
     ['phone', PHONE],
@@ -56,7 +50,7 @@ describe('crew page, header and one primary button', () => {
   ] as const)(
     '%s: a lead’s crew page opens on the crew, with one Invite button to the invitation form',
     async (name, size) => {
-      const { context, page } = await signedIn(browser, 'lead', size);
+      const { context, page } = await signedIn(browser(), 'lead', size);
       const crewName = await page.locator('body').getAttribute('data-crew-name');
       await page.goto('/crews');
       await expect(page.locator('h1').textContent()).resolves.toBe(crewName);
@@ -86,7 +80,7 @@ describe('crew page, header and one primary button', () => {
     ['mechanic', 'Mechanic'],
     ['riderA', 'Rider'],
   ] as const)('a %s sees the members read-only, with no Invite button and no invitations', async (key, word) => {
-    const { context, page } = await signedIn(browser, key, PHONE);
+    const { context, page } = await signedIn(browser(), key, PHONE);
     await page.goto('/crews');
     await expect(page.getByTestId('crew-members').textContent()).resolves.toContain(account('lead').email);
     await expect(page.locator('main').textContent()).resolves.toContain(`You are ${word.toLowerCase()} here`);
@@ -100,7 +94,7 @@ describe('crew page, header and one primary button', () => {
   });
 
   test('a rider on their own: the crew page says only they are in it, and offers the Invite button', async () => {
-    const { context, page } = await signedIn(browser, 'solo', DESKTOP);
+    const { context, page } = await signedIn(browser(), 'solo', DESKTOP);
     await page.goto('/crews');
     await expect(page.getByTestId('empty-state').textContent()).resolves.toContain('Only you so far');
     expect(await page.getByTestId('crew-members').count()).toBe(0);
@@ -114,7 +108,7 @@ describe('crew page, header and one primary button', () => {
     ['1024', { width: 1024, height: 768 }, 72],
     ['390', PHONE, 64],
   ] as const)('the demo lead’s header at %s px is one row', async (label, size, most) => {
-    const { context, page } = await signedIn(browser, 'lead', size);
+    const { context, page } = await signedIn(browser(), 'lead', size);
     await page.goto('/overview');
     const header = (await page.getByTestId('app-header').boundingBox())!;
     expect(header.height).toBeLessThanOrEqual(most);
@@ -142,7 +136,7 @@ describe('crew page, header and one primary button', () => {
     ['phone', PHONE],
     ['desktop', DESKTOP],
   ] as const)('%s: the demo lead’s home and overview each show exactly one filled button', async (name, size) => {
-    const { context, page } = await signedIn(browser, 'lead', size);
+    const { context, page } = await signedIn(browser(), 'lead', size);
     await page.goto('/');
     const home = await visiblePrimaries(page);
     expect(home, JSON.stringify(home)).toHaveLength(1);
@@ -158,7 +152,7 @@ describe('crew page, header and one primary button', () => {
   });
 
   test('a lead of two crews: the other crew is listed with a switch, and the header’s crew menu switches too', async () => {
-    const context = await newContext(browser, DESKTOP);
+    const context = await newContext(browser(), DESKTOP);
     const page = await context.newPage();
     await signUp(page, '/sign-up', `two-${run}@e2e.example`, /\/\?welcome=1$/, 'Rue Two');
     await page.goto('/crews');
@@ -194,7 +188,7 @@ describe('crew page, header and one primary button', () => {
   });
 
   test('sign-up with somewhere to go still goes there', async () => {
-    const context = await newContext(browser, PHONE);
+    const context = await newContext(browser(), PHONE);
     const page = await context.newPage();
     await signUp(page, '/sign-up?next=%2Ftools', `next-${run}@e2e.example`, /\/tools$/);
     expect(await page.getByTestId('form-info').count()).toBe(0);

@@ -2,10 +2,10 @@
 // each machine or sample with results, an act machine's page opens on a verdict banner with the call and a
 // review button above the wear chart, and a mechanic confirms every steady call waiting in one step (one review
 // per sample) and undoes it within the seconds offered.
-import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
+import { describe, expect, test } from 'vitest';
+import type { Page } from 'playwright-core';
 import { DEMO_ACCOUNTS } from '../../sample-data/seed-accounts';
-import { DESKTOP, PHONE, launchBrowser, newContext, screenshot } from './helpers/browser';
+import { DESKTOP, PHONE, newContext, screenshot, useBrowser } from './helpers/browser';
 import { signInAs } from './helpers/sign-in';
 import { seriousViolations } from './helpers/axe';
 
@@ -21,19 +21,13 @@ async function levelWords(page: Page, rows: string): Promise<string[]> {
 }
 
 describe('decision first', () => {
-  let browser: Browser;
-  beforeAll(async () => {
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-  });
+  const browser = useBrowser();
 
   test.each([
     ['phone', PHONE],
     ['desktop', DESKTOP],
   ])('at %s size every list leads with the level, and an act machine with its verdict', async (name, viewport) => {
-    const context = await newContext(browser, viewport);
+    const context = await newContext(browser(), viewport);
     const page = await context.newPage();
     const errors: string[] = [];
     page.on('pageerror', (e) => errors.push(e.message));
@@ -112,7 +106,7 @@ describe('decision first', () => {
     ['phone', PHONE],
     ['desktop', DESKTOP],
   ])('at %s size a mechanic confirms every steady call in one step, then undoes it', async (name, viewport) => {
-    const context = await newContext(browser, viewport);
+    const context = await newContext(browser(), viewport);
     const page = await context.newPage();
     await signInAs(page, mechanic.email, mechanic.password);
     await page.goto('/');
@@ -151,7 +145,7 @@ describe('decision first', () => {
   });
 
   test('the endpoints refuse forged origins, foreign ids and oversized bodies, and write nothing', async () => {
-    const context = await newContext(browser, DESKTOP);
+    const context = await newContext(browser(), DESKTOP);
     const page = await context.newPage();
     await signInAs(page, mechanic.email, mechanic.password);
     const forged = await page.request.post('/api/reviews/steady-calls', {

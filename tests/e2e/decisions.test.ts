@@ -4,7 +4,7 @@
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { DEMO_ACCOUNTS } from '../../sample-data/seed-accounts';
-import { DESKTOP, PHONE, launchBrowser, newContext, screenshot } from './helpers/browser';
+import { DESKTOP, PHONE, launchBrowser, newContext, screenshot, useBrowser } from './helpers/browser';
 import { signInAs } from './helpers/sign-in';
 
 const account = (key: string) => {
@@ -50,19 +50,13 @@ async function chartLevels(page: Page, href: string, code: string): Promise<stri
 }
 
 describe('decisions: a mechanic overrides a call and a rider sees it', () => {
-  let browser: Browser;
-  beforeAll(async () => {
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-  });
+  const browser = useBrowser();
 
   test.each([
     ['phone', PHONE, 'hold'],
     ['desktop', DESKTOP, 'shorten'],
   ] as const)('at %s size', async (name, viewport, newCall) => {
-    const mech = await signedIn(browser, 'mechanic', viewport);
+    const mech = await signedIn(browser(), 'mechanic', viewport);
     const { page } = mech;
 
     // 1. Home: one card per machine with open findings, the act ones linking to their sample.
@@ -127,7 +121,7 @@ describe('decisions: a mechanic overrides a call and a rider sees it', () => {
     await mech.context.close();
 
     // 5. A rider of the crew sees the new call, with the note, and no review forms.
-    const rider = await signedIn(browser, 'riderA', viewport);
+    const rider = await signedIn(browser(), 'riderA', viewport);
     await rider.page.goto(sampleUrl);
     const seen = rider.page.getByTestId('current-call');
     await expect(seen.getAttribute('data-call')).resolves.toBe(newCall);
@@ -145,7 +139,7 @@ describe('decisions: a mechanic overrides a call and a rider sees it', () => {
   });
 
   test('an override without a note is refused and writes nothing', async () => {
-    const mech = await signedIn(browser, 'mechanic', DESKTOP);
+    const mech = await signedIn(browser(), 'mechanic', DESKTOP);
     await mech.page.goto('/overview');
     const sampleHref = await mech.page
       .locator('tr[data-machine="Heron"] td a[href^="/samples/"]')

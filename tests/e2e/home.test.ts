@@ -1,21 +1,14 @@
-import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { DESKTOP, PHONE, baseUrl, launchBrowser, newContext, screenshot } from './helpers/browser';
+import { describe, expect, test } from 'vitest';
+import { DESKTOP, PHONE, baseUrl, newContext, screenshot, useBrowser } from './helpers/browser';
 
 describe('home page and health', () => {
-  let browser: Browser;
-  beforeAll(async () => {
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-  });
+  const browser = useBrowser();
 
   test.each([
     ['phone', PHONE],
     ['desktop', DESKTOP],
   ])('the home page renders at %s size without horizontal scrolling', async (name, viewport) => {
-    const context = await newContext(browser, viewport);
+    const context = await newContext(browser(), viewport);
     const page = await context.newPage();
     const errors: string[] = [];
     page.on('pageerror', (e) => errors.push(e.message));

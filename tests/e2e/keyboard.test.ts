@@ -1,11 +1,11 @@
 // The drain card with the keyboard alone (gloves, a phone on a stand, or no pointer at all): Tab to the card
 // from the machine page, type the code and odometer, Enter to register. Levels stay readable without colour.
-import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
+import { describe, expect, test } from 'vitest';
+import type { Page } from 'playwright-core';
 import { inject } from 'vitest';
 import { createDb } from '~/lib/db/db';
 import { DEMO_ACCOUNTS } from '../../sample-data/seed-accounts';
-import { PHONE, launchBrowser, newContext, screenshot } from './helpers/browser';
+import { PHONE, newContext, screenshot, useBrowser } from './helpers/browser';
 import { signInAs } from './helpers/sign-in';
 
 /** Presses Tab until `matches` holds for the focused element (at most `limit` presses). */
@@ -24,13 +24,7 @@ async function tabTo(page: Page, matches: (el: Element) => boolean, limit = 80):
 }
 
 describe('keyboard only', () => {
-  let browser: Browser;
-  beforeAll(async () => {
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-  });
+  const browser = useBrowser();
 
   test('a rider fills and registers the drain card with the keyboard alone', async () => {
     const rider = DEMO_ACCOUNTS.find((a) => a.key === 'riderA')!;
@@ -41,7 +35,7 @@ describe('keyboard only', () => {
       .where('owner_user_id', '=', 'demo-ridera')
       .orderBy('name')
       .executeTakeFirstOrThrow();
-    const context = await newContext(browser, PHONE);
+    const context = await newContext(browser(), PHONE);
     const page = await context.newPage();
     await signInAs(page, rider.email, rider.password);
     await page.goto(`/machines/${machine.id}`);
@@ -74,7 +68,7 @@ describe('keyboard only', () => {
 
   test('every level badge carries its word, so levels read without colour', async () => {
     const lead = DEMO_ACCOUNTS.find((a) => a.key === 'lead')!;
-    const context = await newContext(browser, PHONE);
+    const context = await newContext(browser(), PHONE);
     const page = await context.newPage();
     await signInAs(page, lead.email, lead.password);
     for (const path of ['/', '/overview']) {

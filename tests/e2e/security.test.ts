@@ -10,13 +10,13 @@ import type { ChildProcess } from 'node:child_process';
 import type { Kysely } from 'kysely';
 import { PNG } from 'pngjs';
 import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
+import type { Page } from 'playwright-core';
 import { createDb } from '~/lib/db/db';
 import type { Database } from '~/lib/db/database';
 import { DEMO_ACCOUNTS, DEMO_SCHOOL_NAME } from '../../sample-data/seed-accounts';
 import { SERVE_ARGS } from '../../scripts/lib/build';
 import { freePort, httpOk, startService, stopService, waitFor } from '../../scripts/lib/processes';
-import { DESKTOP, baseUrl, launchBrowser, newContext } from './helpers/browser';
+import { DESKTOP, baseUrl, newContext, useBrowser } from './helpers/browser';
 import { sessionCookieFor, signInAs } from './helpers/sign-in';
 
 const lead = DEMO_ACCOUNTS.find((a) => a.key === 'lead')!;
@@ -160,13 +160,7 @@ describe('response headers on every kind of response', () => {
 });
 
 describe('the content security policy holds in Chromium', () => {
-  let browser: Browser;
-  beforeAll(async () => {
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-  });
+  const browser = useBrowser();
 
   /** Visits each path (waiting for islands to load) and returns every CSP violation reported on the way. */
   async function visit(page: Page, paths: string[]): Promise<string[]> {
@@ -188,7 +182,7 @@ describe('the content security policy holds in Chromium', () => {
   }
 
   test('signed out and as the demo lead: no page reports a CSP violation, and the islands run', async () => {
-    const context = await newContext(browser, DESKTOP);
+    const context = await newContext(browser(), DESKTOP);
     // The browser's own violation event as well as its console line, in case one of the two is not printed.
     await context.addInitScript(() => {
       document.addEventListener('securitypolicyviolation', (e) =>

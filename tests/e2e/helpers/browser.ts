@@ -2,7 +2,7 @@
 // each launch a fresh temporary profile of its own.
 import { mkdirSync } from 'node:fs';
 import path from 'node:path';
-import { inject } from 'vitest';
+import { afterAll, beforeAll, inject } from 'vitest';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
 
 export const PHONE = { width: 390, height: 844 } as const;
@@ -30,6 +30,24 @@ export async function launchBrowser(): Promise<Browser> {
       '--disable-dev-shm-usage',
     ],
   });
+}
+
+/**
+ * One headless Chromium for the describe block it is called in: launched before its tests, closed after them.
+ * Returns a getter, since the browser exists only once the block's tests start.
+ */
+export function useBrowser(): () => Browser {
+  let browser: Browser | undefined;
+  beforeAll(async () => {
+    browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await browser?.close();
+  });
+  return () => {
+    if (!browser) throw new Error('the browser is launched before the tests of its describe block');
+    return browser;
+  };
 }
 
 /** A fresh context (own cookies) at a viewport size, with the base URL set. */
