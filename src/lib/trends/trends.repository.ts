@@ -21,6 +21,9 @@ export async function findCrewMachine(
     .executeTakeFirst();
 }
 
+/** States of a sample whose results the chart shows. */
+const RESULT_STATES = ['results_in', 'reviewed'] as const;
+
 /** Samples with results (results in or reviewed), oldest first, with the requested readings and finding levels. */
 export async function listTrendSamples(
   db: Kysely<Database>,
@@ -44,30 +47,44 @@ export async function listTrendSamples(
       'oil_changes.volume_l',
     ])
     .where('samples.machine_id', '=', machine.id)
-    .where('samples.state', 'in', ['results_in', 'reviewed'])
+    .where('samples.state', 'in', RESULT_STATES)
     .orderBy('samples.drawn_on')
     .orderBy('samples.odometer')
     .execute();
   if (samples.length === 0) return [];
-  const ids = samples.map((s) => s.id);
+  // The child rows are found through the machine's samples by a join, not by a list of 200 sample ids: no
+  // parameter per sample to send, and no long IN list for PostgreSQL to plan.
+  const childRows = db
+    .selectFrom('samples')
+    .where('samples.machine_id', '=', machine.id)
+    .where('samples.state', 'in', RESULT_STATES);
   const [readings, findings, bands] = await Promise.all([
-    db
-      .selectFrom('readings')
-      .select(['sample_id', 'measurand', 'value', 'qualifier'])
-      .where('sample_id', 'in', ids)
-      .where('measurand', 'in', [...measurands])
+    childRows
+      .innerJoin('readings', 'readings.sample_id', 'samples.id')
+      .select(['readings.sample_id', 'readings.measurand', 'readings.value', 'readings.qualifier'])
+      .where('readings.measurand', 'in', [...measurands])
       .execute(),
-    db
-      .selectFrom('findings')
-      .select(['sample_id', 'measurand', 'level'])
-      .where('sample_id', 'in', ids)
-      .where('measurand', 'in', [...measurands])
+    childRows
+      .innerJoin('findings', 'findings.sample_id', 'samples.id')
+      .select(['findings.sample_id', 'findings.measurand', 'findings.level'])
+      .where('findings.measurand', 'in', [...measurands])
       .execute(),
-    db
-      .selectFrom('baseline_bands')
-      .selectAll()
-      .where('sample_id', 'in', ids)
-      .where('measurand', 'in', [...measurands])
+    childRows
+      .innerJoin('baseline_bands as b', 'b.sample_id', 'samples.id')
+      .select([
+        'b.sample_id',
+        'b.measurand',
+        'b.basis',
+        'b.n',
+        'b.mean',
+        'b.lower_edge',
+        'b.watch_above',
+        'b.act_from',
+        'b.to_reported',
+        'b.source',
+        'b.source_label',
+      ])
+      .where('b.measurand', 'in', [...measurands])
       .execute(),
   ]);
   const byId = new Map<string, TrendSampleRow>();
