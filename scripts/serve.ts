@@ -5,8 +5,10 @@
 // files included: the adapter serves those before the app's middleware runs) and decides which address a
 // request came from (TRUST_PROXY) before Astro sees any forwarded header.
 //
-// Usage: node --import tsx scripts/serve.ts               (what `npm start` and the e2e tests run)
-//        node --import tsx scripts/serve.ts --production  (`npm run serve`: the production start, never a dev mailbox)
+// The build bundles this file into dist/server/serve.mjs (scripts/lib/bundle-serve.mjs), so the app processes run
+// on plain Node, without tsx's loader in the path of Astro's per-request dynamic imports.
+// Usage: node dist/server/serve.mjs               (what `npm start` and the e2e tests run)
+//        node dist/server/serve.mjs --production  (`npm run serve`: the production start, never a dev mailbox)
 // Why cluster and not SO_REUSEPORT: Node 20's net.Server has no `reusePort` option (it came in 22.12/23.1),
 // and cluster's primary hands accepted connections round-robin to the app processes on Linux, which spreads
 // the load evenly whatever the kernel's hashing would do.

@@ -1,0 +1,31 @@
+// Bundles scripts/serve.ts (the supervisor and app-process wrapper) and the few project modules it imports into
+// one plain JavaScript file next to the Astro server, so that the app processes run on Node alone: under tsx's
+// loader every dynamic import Astro makes per request (its lazy page modules) crosses to the loader's thread and
+// back. Packages stay imports of node_modules. Run by `npm run build` and by scripts/lib/build.ts.
+import { buildSync } from 'esbuild';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
+/** Where the bundle goes: inside dist/server, two folders below the project, as scripts/lib/processes.ts expects. */
+export const SERVE_BUNDLE = path.join(ROOT, 'dist/server/serve.mjs');
+
+/**
+ * Writes the bundle to `outfile` (SERVE_BUNDLE unless told), synchronously: esbuild takes a few milliseconds for
+ * this one file. Another outfile must also sit two folders below the project for the bundle to find it.
+ */
+export function bundleServe(outfile = SERVE_BUNDLE) {
+  buildSync({
+    entryPoints: [path.join(ROOT, 'scripts/serve.ts')],
+    outfile,
+    bundle: true,
+    platform: 'node',
+    format: 'esm',
+    target: 'node20',
+    packages: 'external',
+    tsconfig: path.join(ROOT, 'tsconfig.json'),
+    logLevel: 'warning',
+  });
+}
+
+if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.meta.url)) bundleServe();
