@@ -15,6 +15,7 @@ import { hashPassword } from '~/lib/auth/password';
 import { createDb } from '~/lib/db/db';
 import { startApp } from '../e2e/helpers/server';
 import { quantile } from './bench-app';
+import { cpuBetween, takeCpuSnapshot } from './cpu-shares';
 
 const CONNECTIONS = Number(process.env.LOAD_CONNECTIONS ?? 50);
 const SECONDS = Number(process.env.LOAD_SECONDS ?? 60);
@@ -315,6 +316,7 @@ async function runLoad(processes: number) {
 
     const kinds = Object.fromEntries(CYCLE.map((k) => [k, newTally()])) as Record<Kind, Tally>;
     const overall = newTally();
+    const cpuBefore = takeCpuSnapshot();
     const loadRun = await runAutocannon(
       { url: origin, connections: CONNECTIONS, duration: SECONDS, requests, timeout: 30 },
       (status, ms) => {
@@ -323,6 +325,8 @@ async function runLoad(processes: number) {
       },
     );
 
+    // Where the machine's cores went during the mixed load: app processes, PostgreSQL, this load generator.
+    const cpu = cpuBetween(cpuBefore, takeCpuSnapshot());
     const imports = await sql<{ n: string }>`select count(*)::text as n from lab_imports`.execute(db);
     const floorSummary = summarise(floor, floorRun.duration);
     const overallSummary = summarise(overall, loadRun.duration);
@@ -336,6 +340,7 @@ async function runLoad(processes: number) {
       overall: { ...overallSummary, socketErrors: loadRun.errors, timeouts: loadRun.timeouts },
       perKind,
       importsWritten: Number(imports.rows[0]!.n),
+      cpu,
       floor: {
         endpoint: 'GET /api/health',
         seconds: floorRun.duration,
@@ -382,7 +387,7 @@ console.log(
       },
       {
         what: `mixed load, ${CONNECTIONS} connections, ${cores} app processes`,
-        result: `${all.overall.okPerSecond} answered/s (${all.overall.perSecond} req/s with ${all.overall['4xx']} × 4xx), p95 ${all.overall.p95Ms} ms, ${all.serverErrors} × 5xx`,
+        result: `${all.overall.okPerSecond} answered/s (${all.overall.perSecond} req/s with ${all.overall['4xx']} × 4xx), p95 ${all.overall.p95Ms} ms, ${all.serverErrors} × 5xx; cores busy: app ${all.cpu.coresBusy.app}, PostgreSQL ${all.cpu.coresBusy.postgres}, load generator ${all.cpu.coresBusy.bench} (1 process: ${one.cpu.coresBusy.app}, ${one.cpu.coresBusy.postgres}, ${one.cpu.coresBusy.bench}; machine idle ${Math.round((one.cpu.machineIdle ?? 0) * 100)} %)`,
         floor: `1 process ${one.overall.okPerSecond} answered/s`,
         ratio: scaling,
         limit: cores >= 2 ? '≥ 1.6 ×, 0 × 5xx' : '0 × 5xx',
