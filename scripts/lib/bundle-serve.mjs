@@ -7,7 +7,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
-/** Where the bundle goes: inside dist/server, two folders below the project, as scripts/lib/processes.ts expects. */
+/** Where the server bundle goes: inside dist/server, two folders below the project, as scripts/lib/processes.ts expects. */
 export const SERVE_BUNDLE = path.join(ROOT, 'dist/server/serve.mjs');
 
 /**
@@ -15,8 +15,13 @@ export const SERVE_BUNDLE = path.join(ROOT, 'dist/server/serve.mjs');
  * this one file. Another outfile must also sit two folders below the project for the bundle to find it.
  */
 export function bundleServe(outfile = SERVE_BUNDLE) {
+  bundleForNode(path.join(ROOT, 'scripts/serve.ts'), outfile);
+}
+
+/** One TypeScript entry and the project modules it imports as one ES module for Node 20; packages stay imports. */
+export function bundleForNode(entry, outfile) {
   buildSync({
-    entryPoints: [path.join(ROOT, 'scripts/serve.ts')],
+    entryPoints: [entry],
     outfile,
     bundle: true,
     platform: 'node',

@@ -7,7 +7,6 @@
  */
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
-import { createRequire } from 'node:module';
 import os from 'node:os';
 import path from 'node:path';
 import { performance } from 'node:perf_hooks';
@@ -19,6 +18,7 @@ import { copyRows, type CopyValue } from '~/lib/db/copy';
 import { createDb } from '~/lib/db/db';
 import { parseLabCsv } from '~/lib/lab-csv/lab-csv';
 import { normaliseBottleCode } from '~/lib/samples/bottle-code';
+import { bundleForNode } from '../../scripts/lib/bundle-serve.mjs';
 import { dropEmbeddedDatabase, ensureEmbeddedDatabase, migrateToLatest } from '../../scripts/lib/database';
 
 const HERE = path.dirname(fileURLToPath(import.meta.url));
@@ -86,20 +86,8 @@ function generateReport(): string {
  * run through tsx instead, the child would carry tsx's loader and transpiler (about 40 MB) in the figure.
  */
 function compileImportRun(): string {
-  // esbuild is tsx's own compiler; asking for it through tsx keeps it out of the project's dependencies.
-  const esbuild = createRequire(fileURLToPath(import.meta.resolve('tsx')))('esbuild') as typeof import('esbuild');
   const outfile = path.join(ROOT, 'node_modules/.cache/sumpwise-bench/import-run.mjs');
-  esbuild.buildSync({
-    entryPoints: [path.join(HERE, 'import-run.ts')],
-    bundle: true,
-    platform: 'node',
-    format: 'esm',
-    target: 'node20',
-    packages: 'external',
-    tsconfig: path.join(ROOT, 'tsconfig.json'),
-    outfile,
-    logLevel: 'error',
-  });
+  bundleForNode(path.join(HERE, 'import-run.ts'), outfile);
   return outfile;
 }
 
