@@ -21,9 +21,6 @@ export async function findCrewMachine(
     .executeTakeFirst();
 }
 
-/** States of a sample whose results the chart shows. */
-const RESULT_STATES = ['results_in', 'reviewed'] as const;
-
 /** Samples with results (results in or reviewed), oldest first, with the requested readings and finding levels. */
 export async function listTrendSamples(
   db: Kysely<Database>,
@@ -47,44 +44,46 @@ export async function listTrendSamples(
       'oil_changes.volume_l',
     ])
     .where('samples.machine_id', '=', machine.id)
-    .where('samples.state', 'in', RESULT_STATES)
+    .where('samples.state', 'in', ['results_in', 'reviewed'])
     .orderBy('samples.drawn_on')
     .orderBy('samples.odometer')
     .execute();
   if (samples.length === 0) return [];
-  // The child rows are found through the machine's samples by a join, not by a list of 200 sample ids: no
-  // parameter per sample to send, and no long IN list for PostgreSQL to plan.
-  const childRows = db
-    .selectFrom('samples')
-    .where('samples.machine_id', '=', machine.id)
-    .where('samples.state', 'in', RESULT_STATES);
+  // The child rows are found by the machine's sample ids as one array built in the query, not as a list of 200
+  // parameters from here: nothing per sample to send or plan, and each lookup still goes through the child
+  // table's primary key (a join may choose to scan the whole readings table while it is small).
+  const ofSamples = sql<boolean>`sample_id = any(array(
+    select id from samples where machine_id = ${machine.id} and state in ('results_in', 'reviewed')))`;
   const [readings, findings, bands] = await Promise.all([
-    childRows
-      .innerJoin('readings', 'readings.sample_id', 'samples.id')
-      .select(['readings.sample_id', 'readings.measurand', 'readings.value', 'readings.qualifier'])
-      .where('readings.measurand', 'in', [...measurands])
+    db
+      .selectFrom('readings')
+      .select(['sample_id', 'measurand', 'value', 'qualifier'])
+      .where(ofSamples)
+      .where('measurand', 'in', [...measurands])
       .execute(),
-    childRows
-      .innerJoin('findings', 'findings.sample_id', 'samples.id')
-      .select(['findings.sample_id', 'findings.measurand', 'findings.level'])
-      .where('findings.measurand', 'in', [...measurands])
+    db
+      .selectFrom('findings')
+      .select(['sample_id', 'measurand', 'level'])
+      .where(ofSamples)
+      .where('measurand', 'in', [...measurands])
       .execute(),
-    childRows
-      .innerJoin('baseline_bands as b', 'b.sample_id', 'samples.id')
+    db
+      .selectFrom('baseline_bands')
       .select([
-        'b.sample_id',
-        'b.measurand',
-        'b.basis',
-        'b.n',
-        'b.mean',
-        'b.lower_edge',
-        'b.watch_above',
-        'b.act_from',
-        'b.to_reported',
-        'b.source',
-        'b.source_label',
+        'sample_id',
+        'measurand',
+        'basis',
+        'n',
+        'mean',
+        'lower_edge',
+        'watch_above',
+        'act_from',
+        'to_reported',
+        'source',
+        'source_label',
       ])
-      .where('b.measurand', 'in', [...measurands])
+      .where(ofSamples)
+      .where('measurand', 'in', [...measurands])
       .execute(),
   ]);
   const byId = new Map<string, TrendSampleRow>();
