@@ -523,6 +523,21 @@ export interface BaselineBandsTable {
   source_machines: ColumnType<number | null, number | null | undefined, number | null>;
 }
 
+/** A band's own columns, everything but its sample: what the screens read and what COPY writes after the sample id. */
+export const BAND_FIGURE_COLUMNS = [
+  'measurand',
+  'basis',
+  'n',
+  'mean',
+  'lower_edge',
+  'watch_above',
+  'act_from',
+  'to_reported',
+  'source',
+  'source_label',
+  'source_machines',
+] as const satisfies readonly (keyof BaselineBandsTable)[];
+
 /** Every table Kysely may touch: one interface, one line per table (a new migration adds its table here). */
 export interface Database {
   users: UsersTable;

@@ -5,7 +5,7 @@
  */
 import { sql, type Kysely, type Transaction } from 'kysely';
 import { copyRows, type CopyValue } from '../db/copy';
-import type { Database, IntervalCallKind, Level } from '../db/database';
+import { BAND_FIGURE_COLUMNS, type Database, type IntervalCallKind, type Level } from '../db/database';
 import type { StoredBand } from '../trends/trend-types';
 import type { FindingsSample, StoredFinding, StoredReading, StoredSampleBand } from './findings-view';
 
@@ -292,20 +292,7 @@ export async function replaceBands(db: Db, sampleIds: readonly string[], rows: I
   await copyRows(
     db,
     'baseline_bands',
-    [
-      'sample_id',
-      'measurand',
-      'basis',
-      'n',
-      'mean',
-      'lower_edge',
-      'watch_above',
-      'act_from',
-      'to_reported',
-      'source',
-      'source_label',
-      'source_machines',
-    ],
+    ['sample_id', ...BAND_FIGURE_COLUMNS],
     (function* bandLines(): Generator<CopyValue[]> {
       for (const b of rows)
         yield [

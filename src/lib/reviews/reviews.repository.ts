@@ -1,6 +1,6 @@
 /** Queries of review notes and interval calls; every read is scoped by the crew. */
 import { sql, type Kysely, type Transaction } from 'kysely';
-import type { Database } from '../db/database';
+import { BAND_FIGURE_COLUMNS, type Database } from '../db/database';
 import { isUuid } from '../ids';
 import type { BaselineStatus, CallHistoryEntry, ReviewNote } from './reviews';
 
@@ -188,23 +188,7 @@ export async function updateSampleBaseline(
 /** The baseline bands the rules used for a sample's readings (ready bands only), by measurand. */
 export async function listSampleBands(db: Db, sampleId: string) {
   if (!isUuid(sampleId)) return [];
-  return db
-    .selectFrom('baseline_bands')
-    .select([
-      'measurand',
-      'basis',
-      'n',
-      'mean',
-      'lower_edge',
-      'watch_above',
-      'act_from',
-      'to_reported',
-      'source',
-      'source_label',
-      'source_machines',
-    ])
-    .where('sample_id', '=', sampleId)
-    .execute();
+  return db.selectFrom('baseline_bands').select(BAND_FIGURE_COLUMNS).where('sample_id', '=', sampleId).execute();
 }
 
 /**

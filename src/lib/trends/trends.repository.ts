@@ -1,7 +1,7 @@
 /** Queries behind the wear chart: one machine's samples with results, their readings and stored findings. */
 import { sql, type Kysely } from 'kysely';
 import { isMeasurandCode, type MeasurandCode } from '../analysis';
-import type { Database, Level, MachineRow } from '../db/database';
+import { BAND_FIGURE_COLUMNS, type Database, type Level, type MachineRow } from '../db/database';
 import { levelRank } from '../levels';
 import type { TrendOilChangeRow, TrendSampleRow } from './trends';
 import { isUuid } from '~/lib/ids';
@@ -69,19 +69,7 @@ export async function listTrendSamples(
       .execute(),
     db
       .selectFrom('baseline_bands')
-      .select([
-        'sample_id',
-        'measurand',
-        'basis',
-        'n',
-        'mean',
-        'lower_edge',
-        'watch_above',
-        'act_from',
-        'to_reported',
-        'source',
-        'source_label',
-      ])
+      .select(['sample_id', ...BAND_FIGURE_COLUMNS])
       .where(ofSamples)
       .where('measurand', 'in', [...measurands])
       .execute(),
