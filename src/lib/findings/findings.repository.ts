@@ -394,18 +394,7 @@ export async function findFindingsOfSample(db: Db, sampleId: string): Promise<St
 export async function findBandsOfSample(db: Db, sampleId: string): Promise<StoredSampleBand[]> {
   const rows = await db
     .selectFrom('baseline_bands')
-    .select([
-      'measurand',
-      'basis',
-      'n',
-      'mean',
-      'watch_above',
-      'act_from',
-      'to_reported',
-      'source',
-      'source_label',
-      'source_machines',
-    ])
+    .select(BAND_FIGURE_COLUMNS)
     .where('sample_id', '=', sampleId)
     .execute();
   return rows.map((b) => ({
