@@ -58,12 +58,17 @@ export function takeCpuSnapshot(): Snapshot {
   return { at: performance.now(), ticks, idleTicks, totalTicks };
 }
 
-/** Cores kept busy on average between two snapshots, per group, and the machine's idle share (null off Linux). */
+/**
+ * Cores kept busy on average between two snapshots, per group, the machine's idle share (null off Linux), and how
+ * many processes of each group were running at the end.
+ */
 export function cpuBetween(before: Snapshot, after: Snapshot) {
   const seconds = (after.at - before.at) / 1000;
   const busy: Record<CpuGroup, number> = { app: 0, postgres: 0, bench: 0, other: 0 };
+  const processes: Record<CpuGroup, number> = { app: 0, postgres: 0, bench: 0, other: 0 };
   for (const [pid, now] of after.ticks) {
     busy[now.group] += now.ticks - (before.ticks.get(pid)?.ticks ?? 0);
+    processes[now.group] += 1;
   }
   const r2 = (v: number) => Math.round(v * 100) / 100;
   const total = after.totalTicks - before.totalTicks;
@@ -72,5 +77,7 @@ export function cpuBetween(before: Snapshot, after: Snapshot) {
       Object.entries(busy).map(([group, t]) => [group, r2(t / TICKS_PER_SECOND / seconds)]),
     ) as Record<CpuGroup, number>,
     machineIdle: total > 0 ? r2((after.idleTicks - before.idleTicks) / total) : null,
+    /** Processes of each group alive at the end (the app's include its supervisor). */
+    processes,
   };
 }

@@ -128,9 +128,9 @@ function runAutocannon(
 
 /** One run of the mixed load and its floor against the built app started with `processes` app processes. */
 async function runLoad(processes: number) {
-  process.env.APP_PROCESSES = String(processes);
   process.env.TRUST_PROXY = '1';
-  const app = await startApp('sumpwise_bench_load', { seed: false });
+  // Passed to startApp, which sets APP_PROCESSES itself (one unless told, whatever this process's environment says).
+  const app = await startApp('sumpwise_bench_load', { seed: false, appProcesses: processes });
   const db = createDb(app.databaseUrl, { max: 4 });
   try {
     // USERS invented crews of one lead each, with one liquid-cooled single of HISTORY samples (8 readings each, a watch
@@ -327,6 +327,9 @@ async function runLoad(processes: number) {
 
     // Where the machine's cores went during the mixed load: app processes, PostgreSQL, this load generator.
     const cpu = cpuBetween(cpuBefore, takeCpuSnapshot());
+    // The supervisor and its app processes: a run that did not get the processes it asked for measures nothing.
+    if (process.platform === 'linux' && cpu.processes.app !== processes + 1)
+      throw new Error(`asked for ${processes} app processes, found ${cpu.processes.app - 1} running`);
     const imports = await sql<{ n: string }>`select count(*)::text as n from lab_imports`.execute(db);
     const floorSummary = summarise(floor, floorRun.duration);
     const overallSummary = summarise(overall, loadRun.duration);
