@@ -164,7 +164,10 @@ function expandYear(year: string): number {
 /** True when year-month-day names a real calendar day. */
 export function isRealDate(year: number, month: number, day: number): boolean {
   if (month < 1 || month > 12 || day < 1 || year < 1900 || year > 2999) return false;
-  const daysInMonth = new Date(Date.UTC(year, month, 0)).getUTCDate();
+  // Gregorian calendar: February has 29 days in years divisible by 4, except centuries not divisible by 400.
+  const leap = year % 4 === 0 && (year % 100 !== 0 || year % 400 === 0);
+  const daysInMonth =
+    month === 2 ? (leap ? 29 : 28) : month === 4 || month === 6 || month === 9 || month === 11 ? 30 : 31;
   return day <= daysInMonth;
 }
 

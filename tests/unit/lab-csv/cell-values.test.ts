@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { parseDateCell, parseGlycolCell, parseReadingCell } from '~/lib/lab-csv/cell-values';
+import { isRealDate, parseDateCell, parseGlycolCell, parseReadingCell } from '~/lib/lab-csv/cell-values';
 
 describe('parseReadingCell', () => {
   test.each([
@@ -98,5 +98,39 @@ describe('parseDateCell', () => {
     ['=NOW()', { kind: 'problem', problem: 'formula-like-cell', detail: '=NOW()' }],
   ])('%j', (cell, expected) => {
     expect(parseDateCell(cell)).toEqual(expected);
+  });
+});
+
+describe('isRealDate', () => {
+  // Reference: ECMAScript's Date, whose calendar is the proleptic Gregorian one (ECMA-262, "Days in Year" and
+  // "Month from Time"): a day exists when Date.UTC gives it back unchanged. Every day of every month, 1900-2999.
+  test('agrees with Date.UTC on every day of 1900-2999, leap years and their century rule included', () => {
+    const disagreements: string[] = [];
+    for (let year = 1900; year <= 2999; year += 1) {
+      for (let month = 1; month <= 12; month += 1) {
+        for (let day = 1; day <= 31; day += 1) {
+          const back = new Date(Date.UTC(year, month - 1, day));
+          const exists = back.getUTCMonth() === month - 1 && back.getUTCDate() === day;
+          if (isRealDate(year, month, day) !== exists) disagreements.push(`${year}-${month}-${day}`);
+        }
+      }
+    }
+    expect(disagreements).toEqual([]);
+  });
+
+  test.each([
+    [2000, 2, 29, true],
+    [1900, 2, 29, false],
+    [2100, 2, 29, false],
+    [2024, 2, 29, true],
+    [2026, 4, 31, false],
+    [2026, 12, 31, true],
+    [2026, 13, 1, false],
+    [2026, 0, 1, false],
+    [2026, 1, 0, false],
+    [1899, 12, 31, false],
+    [3000, 1, 1, false],
+  ])('%i-%i-%i exists: %s', (year, month, day, exists) => {
+    expect(isRealDate(year, month, day)).toBe(exists);
   });
 });
