@@ -8,6 +8,7 @@ import { labelOf, type OutboxItem } from '~/lib/offline/outbox';
 import { readCodeBlock, refreshCodeBlock } from './device';
 import { discardBody } from './discard-body';
 import { listOutbox, onOutboxChange, putOutboxItem } from './outbox-store';
+import { createOutboxRetry } from './outbox-retry';
 import { flushOutbox } from './outbox-sync';
 
 const WARM_EVERY_MS = 10 * 60 * 1000;
@@ -165,9 +166,12 @@ async function showWaiting(): Promise<void> {
   );
 }
 
+// A browser that says it is offline fires 'online' when that changes; one that says online but cannot reach the
+// server is tried again after a pause.
+const retry = createOutboxRetry(async () => !navigator.onLine || !(await flushOutbox()).offline);
+
 async function send(): Promise<void> {
-  if (!navigator.onLine) return;
-  await flushOutbox();
+  await retry.run();
 }
 
 async function start(): Promise<void> {
