@@ -119,7 +119,9 @@ export function analyseSample(input: AnalyseInput): SampleAnalysis {
   for (const code of Object.keys(input.sample.readings) as MeasurandCode[]) readingLevels[code] = 'steady';
   for (const f of findings) {
     worst = pickWorseLevel(worst, f.level);
-    for (const code of f.measurands) readingLevels[code] = pickWorseLevel(readingLevels[code] ?? 'steady', f.level);
+    for (const code of f.measurands) {
+      readingLevels[code] = pickWorseLevel(readingLevels[code] ?? 'steady', f.levels?.[code] ?? f.level);
+    }
   }
 
   const wearRates: Partial<Record<MeasurandCode, WearRate>> = {};

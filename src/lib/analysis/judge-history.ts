@@ -11,7 +11,7 @@ import type { Finding, FixedLimits, Level, MachineProfile, SamplePoint } from '.
  * The version of the decision engine. Stored findings and calls remember the version that made them; raise it
  * whenever a rule or threshold changes, and every machine's stored results are judged again.
  */
-export const ENGINE_VERSION = '2026-12-02.crew-reference';
+export const ENGINE_VERSION = '2026-12-03.dirt-aluminium-level';
 
 export interface JudgedSample {
   sampleId: string;

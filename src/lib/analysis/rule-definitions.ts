@@ -254,8 +254,8 @@ export const DIRT = {
     'Silicon and aluminium both up (above the baseline band or at watchFraction of the fixed limit), rising together ' +
     'in the proportion of dust: the rise of silicon over its usual level divided by the rise of aluminium between ' +
     'minRatio and maxRatio. Silicon up alone is more likely sealant or antifoam. Watch; act when silicon is at its ' +
-    "fixed limit or the act edge of its band. Dirt is not the oil's fault: the call is fix-first (air filter, seal, " +
-    'intake boots).',
+    'fixed limit or the act edge of its band; the aluminium reading is marked only as far as its own figures go. ' +
+    "Dirt is not the oil's fault: the call is fix-first (air filter, seal, intake boots).",
   source:
     'Common practice, no published source (road dust is mostly silica with some alumina; the ratio range is from memory).',
   params: { minRatio: 1.5, maxRatio: 15 },

@@ -794,7 +794,8 @@ export function findDirtEntry(ctx: RuleContext): Finding[] {
   const al = readFiringValue(ctx.sample, 'Al');
   if (si === undefined || al === undefined) return [];
   const siState = isRaised(ctx, 'Si', si);
-  if (!siState.raised || !isRaised(ctx, 'Al', al).raised) return [];
+  const alState = isRaised(ctx, 'Al', al);
+  if (!siState.raised || !alState.raised) return [];
   const siUsual = usualPpm(ctx, 'Si');
   const alUsual = usualPpm(ctx, 'Al');
   if (siUsual === undefined || alUsual === undefined) return [];
@@ -808,6 +809,9 @@ export function findDirtEntry(ctx: RuleContext): Finding[] {
       ruleId: 'dirt',
       level: siState.atAct ? 'act' : 'watch',
       measurands: ['Si', 'Al'],
+      // Silicon sets the level; aluminium is marked by its own figures, so more aluminium (which can tip the ratio
+      // out of the dust range) never reads as less concern for it.
+      ...(siState.atAct && !alState.atAct ? { levels: { Al: 'watch' as const } } : {}),
       numbers: { Si: si, Al: al, siRise, alRise, ratio },
       sentence:
         `Silicon is up ${formatFigure(siRise)} ppm and aluminium ${formatFigure(alRise)} ppm over their usual levels, about ${formatFigure(ratio)} to 1, ` +

@@ -110,6 +110,11 @@ export interface Finding {
   level: Exclude<Level, 'steady'>;
   /** The measurands the finding is about; the first is the main one. */
   measurands: MeasurandCode[];
+  /**
+   * A measurand's own level inside the finding when it is milder than the finding's: a reading is marked only as
+   * far as its own figures go (aluminium in a dirt finding that silicon made act is still only up, not at act).
+   */
+  levels?: Partial<Record<MeasurandCode, Exclude<Level, 'steady'>>>;
   /** The numbers behind the call, named, so the interface can show how it was made. */
   numbers: Record<string, number>;
   /** One plain sentence a rider understands, worded as advice. */

@@ -318,6 +318,19 @@ describe('dirt (silicon and aluminium in the proportion of dust)', () => {
   ] as const)('$readings gives $expected', ({ readings, expected }) => {
     expect(levelsOf('dirt', usual, readings)).toEqual(expected);
   });
+
+  // Silicon at its fixed limit sets the finding's level; aluminium is marked only as far as its own figures go, so
+  // raising aluminium (which at 34 ppm tips the ratio below the dust range and ends the finding) never lowers it.
+  test.each([
+    { Al: 6, Si: 'act', Al_: 'steady' },
+    { Al: 9, Si: 'act', Al_: 'watch' },
+    { Al: 20, Si: 'act', Al_: 'act' },
+    { Al: 34, Si: 'act', Al_: 'act' },
+  ] as const)('silicon 48 ppm with aluminium $Al ppm marks aluminium $Al_', ({ Al, Si, Al_ }) => {
+    const sample = makeSample(usual.length, { Si: 48, Al }, {});
+    const { readingLevels } = analyseSample({ machine: AIR_SINGLE, history: makeHistory(usual), sample });
+    expect([readingLevels.Si, readingLevels.Al]).toEqual([Si, Al_]);
+  });
 });
 
 describe('additive-mismatch', () => {
