@@ -355,15 +355,26 @@ export interface ReplayedSample {
  * each sample's results arrive: a measurand that was act on a sample leaves that measurand's baseline, samples
  * marked baselineExcluded never enter it, and each call knows the calls before it.
  */
-export function replayHistory(input: {
+export function replayHistory(input: ReplayInput): ReplayedSample[] {
+  return [...replaySteps(input)];
+}
+
+/** What a replay reads: the machine, its samples oldest first, and the crew's fixed limits. */
+export interface ReplayInput {
   machine: MachineProfile;
   samples: readonly SamplePoint[];
   limits?: Partial<FixedLimits> | undefined;
-}): ReplayedSample[] {
+}
+
+/**
+ * replayHistory one sample at a time: each step is judged when asked for, so a caller that writes the results as
+ * they come (a machine of hundreds of samples) lets each analysis go instead of holding the whole replay.
+ */
+export function* replaySteps(input: ReplayInput): Generator<ReplayedSample> {
   const outOfBaseline = new Map<string, Set<MeasurandCode>>();
   const previous: PreviousJudgement[] = [];
-  const replayed: ReplayedSample[] = [];
-  input.samples.forEach((sample, i) => {
+  for (let i = 0; i < input.samples.length; i += 1) {
+    const sample = input.samples[i]!;
     const history = input.samples.slice(Math.max(0, i - HISTORY_TAIL), i);
     const analysis = analyseSample({ machine: input.machine, history, sample, limits: input.limits, outOfBaseline });
     const call = decideIntervalCall({
@@ -386,9 +397,8 @@ export function replayHistory(input: {
       nextIntervalDistance: call.nextIntervalDistance,
       distanceOnOil: sample.distanceOnOil,
     });
-    replayed.push({ sampleId: sample.id, analysis, call });
-  });
-  return replayed;
+    yield { sampleId: sample.id, analysis, call };
+  }
 }
 
 /**

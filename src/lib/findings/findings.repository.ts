@@ -206,20 +206,15 @@ export interface FindingInsert {
 }
 
 /**
- * Replace the findings of these samples with new ones: the old ones deleted, the new ones written by
- * insertFindings, in the caller's transaction.
+ * Delete what the engine stored for these samples (findings, its interval calls, bands), in the caller's
+ * transaction, before they are judged again: a mechanic's confirm or override of a call stays.
  */
-export async function replaceFindings(
-  db: Db,
-  sampleIds: readonly string[],
-  rows: Iterable<FindingInsert>,
-): Promise<number> {
-  if (sampleIds.length === 0) return 0;
-  await db
-    .deleteFrom('findings')
-    .where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`)
-    .execute();
-  return insertFindings(db, rows);
+export async function deleteJudgements(db: Db, sampleIds: readonly string[]): Promise<void> {
+  if (sampleIds.length === 0) return;
+  const ids = sql<string>`any(${sql.val(sampleIds)}::uuid[])`;
+  await db.deleteFrom('findings').where('sample_id', '=', ids).execute();
+  await db.deleteFrom('interval_calls').where('sample_id', '=', ids).where('source', '=', 'engine').execute();
+  await db.deleteFrom('baseline_bands').where('sample_id', '=', ids).execute();
 }
 
 /**
@@ -247,18 +242,8 @@ export interface IntervalCallInsert {
   reasons: string[];
 }
 
-/** Replace the engine's interval calls of these samples (a mechanic's confirm or override stays). */
-export async function replaceEngineCalls(
-  db: Db,
-  sampleIds: readonly string[],
-  rows: readonly IntervalCallInsert[],
-): Promise<void> {
-  if (sampleIds.length === 0) return;
-  await db
-    .deleteFrom('interval_calls')
-    .where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`)
-    .where('source', '=', 'engine')
-    .execute();
+/** Write the engine's interval calls (the samples' earlier ones deleted by deleteJudgements). */
+export async function insertEngineCalls(db: Db, rows: readonly IntervalCallInsert[]): Promise<void> {
   const CHUNK = 20_000;
   for (let from = 0; from < rows.length; from += CHUNK) {
     const part = rows.slice(from, from + CHUNK);
@@ -281,13 +266,8 @@ export interface BandInsert extends StoredBand {
   sourceMachines: number | null;
 }
 
-/** Replace the stored baseline bands of these samples (the bands the rules used). */
-export async function replaceBands(db: Db, sampleIds: readonly string[], rows: Iterable<BandInsert>): Promise<void> {
-  if (sampleIds.length === 0) return;
-  await db
-    .deleteFrom('baseline_bands')
-    .where('sample_id', '=', sql<string>`any(${sql.val(sampleIds)}::uuid[])`)
-    .execute();
+/** Write the stored baseline bands (the bands the rules used); the samples' earlier ones go by deleteJudgements. */
+export async function insertBands(db: Db, rows: Iterable<BandInsert>): Promise<void> {
   // As many bands as readings: COPY, like the readings.
   await copyRows(
     db,

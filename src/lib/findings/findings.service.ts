@@ -10,7 +10,8 @@ import {
   ENGINE_VERSION,
   crewReferenceLabel,
   isSameEngine,
-  replayHistory,
+  replaySteps,
+  type ReplayedSample,
   type CrewReference,
   type CrewReferenceSample,
   type FixedLimits,
@@ -220,70 +221,94 @@ export async function recomputeMachineFindings(
     attachNewOil(toSamplePoint(s, readingsBySample.get(s.id) ?? {}, machineRow.oil_capacity_l, meter), newOil),
   );
   machine.crewReference = await loadCrewReference(trx, machineRow);
-  const replayed = replayHistory({ machine, samples: points, limits }).slice(firstChanged);
-  const recomputed = replayed.map((r) => r.sampleId);
-  // The rows are made as COPY sends them, not held as arrays beside the replay they come from.
-  const written = await repo.replaceFindings(trx, recomputed, findingRows(replayed));
-  await repo.replaceEngineCalls(trx, recomputed, [...callRows(replayed, machineId, meter)]);
-  await repo.replaceBands(trx, recomputed, bandRows(replayed));
+  await repo.deleteJudgements(
+    trx,
+    samples.slice(firstChanged).map((s) => s.id),
+  );
+  // Each sample's analysis is turned into the rows to store as soon as it is judged, and the rows are written a
+  // batch at a time: a machine of hundreds of samples never holds its analyses (the bulk of the replay's memory),
+  // so a big import's analyses die young instead of piling up in the old generation of the heap.
+  let written = 0;
+  let batch: JudgedRows = { findings: [], calls: [], bands: [] };
+  let batchSamples = 0;
+  const writeBatch = async (): Promise<void> => {
+    if (batch.findings.length > 0) written += await repo.insertFindings(trx, batch.findings);
+    await repo.insertEngineCalls(trx, batch.calls);
+    if (batch.bands.length > 0) await repo.insertBands(trx, batch.bands);
+    batch = { findings: [], calls: [], bands: [] };
+    batchSamples = 0;
+  };
+  let index = 0;
+  for (const step of replaySteps({ machine, samples: points, limits })) {
+    if (index++ < firstChanged) continue;
+    addJudgedRows(batch, step, machineId, meter);
+    batchSamples += 1;
+    if (batchSamples >= JUDGED_BATCH) await writeBatch();
+  }
+  if (batchSamples > 0) await writeBatch();
   if (stale) await repo.markMachineJudged(trx, machineId, ENGINE_VERSION);
   return written;
 }
 
-type Replayed = ReturnType<typeof replayHistory>;
+/**
+ * Samples judged between writes in recomputeMachineFindings: their rows (about 40 small objects a sample) are a
+ * fraction of the analyses they come from, and 300 statements for a 10,000-sample import cost little beside its
+ * COPY work (tests/bench/import.bench.ts).
+ */
+export const JUDGED_BATCH = 100;
 
-function* findingRows(replayed: Replayed): Generator<repo.FindingInsert> {
-  for (const { sampleId, analysis } of replayed)
-    for (const f of analysis.findings)
-      yield {
-        sampleId,
-        measurand: f.measurands[0] ?? null,
-        level: f.level,
-        ruleId: f.ruleId,
-        numbers: f.numbers,
-        sentence: f.sentence,
-      };
+/** What recomputeMachineFindings stores for a run of judged samples. */
+interface JudgedRows {
+  findings: repo.FindingInsert[];
+  calls: repo.IntervalCallInsert[];
+  bands: repo.BandInsert[];
 }
 
-function* bandRows(replayed: Replayed): Generator<repo.BandInsert> {
-  for (const { sampleId, analysis } of replayed)
-    for (const [measurand, band] of Object.entries(analysis.bands)) {
-      if (!band || band.status !== 'ready') continue;
-      yield {
-        sampleId,
-        measurand,
-        basis: band.basis,
-        source: band.source,
-        sourceLabel: band.crew?.label ?? null,
-        sourceMachines: band.crew?.machines ?? null,
-        n: band.n,
-        mean: band.mean,
-        lower: band.lower,
-        watchAbove: band.watchAbove,
-        actFrom: band.actFrom,
-        toReported: band.toReported,
-      };
-    }
-}
-
-function* callRows(replayed: Replayed, machineId: string, meter: MeterUnit): Generator<repo.IntervalCallInsert> {
-  for (const { sampleId, call } of replayed)
-    yield {
+/** The findings, engine call and bands of one judged sample, added to `rows`. */
+function addJudgedRows(rows: JudgedRows, step: ReplayedSample, machineId: string, meter: MeterUnit): void {
+  const { sampleId, analysis, call } = step;
+  for (const f of analysis.findings)
+    rows.findings.push({
       sampleId,
-      machineId,
-      call: call.call,
-      // Back to the stored unit (km, or hours).
-      nextInterval:
-        call.nextIntervalDistance !== null && Number.isFinite(call.nextIntervalDistance)
-          ? toStoredMeter(call.nextIntervalDistance, meter)
-          : null,
-      nextSampleOdometer:
-        call.nextSampleDue.distance !== null && Number.isFinite(call.nextSampleDue.distance)
-          ? toStoredMeter(call.nextSampleDue.distance, meter)
-          : null,
-      nextSampleOn: call.nextSampleDue.date ?? null,
-      reasons: call.reasons,
-    };
+      measurand: f.measurands[0] ?? null,
+      level: f.level,
+      ruleId: f.ruleId,
+      numbers: f.numbers,
+      sentence: f.sentence,
+    });
+  rows.calls.push({
+    sampleId,
+    machineId,
+    call: call.call,
+    // Back to the stored unit (km, or hours).
+    nextInterval:
+      call.nextIntervalDistance !== null && Number.isFinite(call.nextIntervalDistance)
+        ? toStoredMeter(call.nextIntervalDistance, meter)
+        : null,
+    nextSampleOdometer:
+      call.nextSampleDue.distance !== null && Number.isFinite(call.nextSampleDue.distance)
+        ? toStoredMeter(call.nextSampleDue.distance, meter)
+        : null,
+    nextSampleOn: call.nextSampleDue.date ?? null,
+    reasons: call.reasons,
+  });
+  for (const [measurand, band] of Object.entries(analysis.bands)) {
+    if (!band || band.status !== 'ready') continue;
+    rows.bands.push({
+      sampleId,
+      measurand,
+      basis: band.basis,
+      source: band.source,
+      sourceLabel: band.crew?.label ?? null,
+      sourceMachines: band.crew?.machines ?? null,
+      n: band.n,
+      mean: band.mean,
+      lower: band.lower,
+      watchAbove: band.watchAbove,
+      actFrom: band.actFrom,
+      toReported: band.toReported,
+    });
+  }
 }
 
 /**
