@@ -20,6 +20,7 @@ import { pathToFileURL } from 'node:url';
 import { readConfig, type AppConfig } from '../src/lib/config';
 import { FORWARDED_HEADERS, resolveClientAddress } from '../src/lib/http/client-address';
 import { securityHeaders } from '../src/lib/http/security-headers';
+import { APP_NODE_FLAGS } from './lib/app-node-flags';
 import { ROOT } from './lib/processes';
 import { nextRestart } from './lib/restart-backoff';
 
@@ -68,6 +69,7 @@ async function runSupervisor(): Promise<void> {
   let stopping = false;
   let quickDeaths = 0;
   const startedAt = new Map<number, number>();
+  cluster.setupPrimary({ execArgv: [...process.execArgv, ...APP_NODE_FLAGS] });
 
   const fork = (): Worker => {
     const worker = cluster.fork();

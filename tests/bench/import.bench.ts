@@ -18,6 +18,7 @@ import { copyRows, type CopyValue } from '~/lib/db/copy';
 import { createDb } from '~/lib/db/db';
 import { parseLabCsv } from '~/lib/lab-csv/lab-csv';
 import { normaliseBottleCode } from '~/lib/samples/bottle-code';
+import { APP_NODE_FLAGS } from '../../scripts/lib/app-node-flags';
 import { bundleForNode } from '../../scripts/lib/bundle-serve.mjs';
 import { dropEmbeddedDatabase, ensureEmbeddedDatabase, migrateToLatest } from '../../scripts/lib/database';
 
@@ -149,13 +150,21 @@ async function main(): Promise<void> {
     // process's, which holds the generated file, the migrations and the set-up.
     const file = path.join(mkdtempSync(path.join(os.tmpdir(), 'sumpwise-bench-')), 'bench.csv');
     writeFileSync(file, bytes);
-    const child = spawnSync(process.execPath, [compileImportRun()], {
+    // The app processes' V8 flags, plus any given for a look inside (BENCH_IMPORT_FLAGS="--trace-gc", with
+    // BENCH_IMPORT_LOG naming a file for what the process prints).
+    const extraFlags = (process.env.BENCH_IMPORT_FLAGS ?? '').split(' ').filter(Boolean);
+    const child = spawnSync(process.execPath, [...APP_NODE_FLAGS, ...extraFlags, compileImportRun()], {
       encoding: 'utf8',
       env: { ...process.env, BENCH_DB_URL: url, BENCH_CREW_ID: crew.id, BENCH_USER_ID: user.id, BENCH_FILE: file },
       maxBuffer: 16 << 20,
     });
     rmSync(path.dirname(file), { recursive: true, force: true });
-    const lastLine = String(child.stdout).trim().split('\n').pop() ?? '';
+    if (process.env.BENCH_IMPORT_LOG) writeFileSync(process.env.BENCH_IMPORT_LOG, String(child.stdout));
+    const lastLine =
+      String(child.stdout)
+        .trim()
+        .split('\n')
+        .findLast((l) => l.startsWith('{')) ?? '';
     if (child.status !== 0 || !lastLine.startsWith('{'))
       throw new Error(`the import process failed: ${String(child.stderr).trim().split('\n').slice(-3).join(' ')}`);
     const run = JSON.parse(lastLine) as ImportRun;
@@ -230,6 +239,7 @@ async function main(): Promise<void> {
             rssBeforeImportMb: run.rssBeforeImportMb,
             importGrowthMb: Math.round((run.peakRssMb - run.rssBeforeImportMb) * 10) / 10,
             peakHeapMb: run.peakHeapMb,
+            nodeFlags: APP_NODE_FLAGS,
             targetMb: TARGET_RSS_MB,
           },
           summary: [

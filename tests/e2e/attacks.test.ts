@@ -3,6 +3,7 @@
 // verification mail floods, open redirects, and an app process that dies. Each answer is checked from outside.
 import http from 'node:http';
 import { execFileSync, type ChildProcess } from 'node:child_process';
+import { readFileSync } from 'node:fs';
 import type { Kysely } from 'kysely';
 import { afterAll, beforeAll, describe, expect, inject, test } from 'vitest';
 import { createDb } from '~/lib/db/db';
@@ -10,6 +11,7 @@ import type { Database } from '~/lib/db/database';
 import { hashPassword } from '~/lib/auth/password';
 import { ELEMENT_CODES } from '~/lib/analysis/measurands';
 import { DEMO_ACCOUNTS, DEMO_SCHOOL_NAME } from '../../sample-data/seed-accounts';
+import { APP_NODE_FLAGS } from '../../scripts/lib/app-node-flags';
 import { SERVE_ARGS } from '../../scripts/lib/build';
 import { freePort, httpOk, startService, stopService, waitFor } from '../../scripts/lib/processes';
 import { DESKTOP, PHONE, baseUrl, launchBrowser, newContext, screenshot } from './helpers/browser';
@@ -506,16 +508,22 @@ describe('the supervisor', () => {
   test('a killed app process is replaced, with a line in the log, and the service answers again', async () => {
     const app = await startServer({});
     const primary = app.child.pid!;
-    const appPid = Number(
+    const appPids = () =>
       execFileSync('pgrep', ['-P', String(primary)])
         .toString()
         .trim()
-        .split('\n')[0],
-    );
+        .split('\n')
+        .map(Number);
+    // Every app process runs with the app's V8 flags (scripts/lib/app-node-flags.ts), a replacement too.
+    const argvOf = (pid: number) => readFileSync(`/proc/${pid}/cmdline`, 'utf8').split('\0');
+    const appPid = appPids()[0]!;
     expect(appPid).toBeGreaterThan(0);
+    expect(argvOf(appPid)).toEqual(expect.arrayContaining([...APP_NODE_FLAGS]));
     process.kill(appPid, 'SIGKILL');
     await waitFor(async () => /app process \d+ died \(SIGKILL\)/.test(app.log()), 10_000, 'the restart line');
     await waitFor(() => httpOk(`${app.url}/api/health`), 15_000, 'the replaced app process');
+    const replacement = appPids().find((pid) => pid !== appPid)!;
+    expect(argvOf(replacement)).toEqual(expect.arrayContaining([...APP_NODE_FLAGS]));
     expect(app.log()).toMatch(
       new RegExp(`\\[serve\\] app process ${appPid} died \\(SIGKILL\\) after [\\d.]+ s; starting another`),
     );
