@@ -228,24 +228,22 @@ export async function recomputeMachineFindings(
   // Each sample's analysis is turned into the rows to store as soon as it is judged, and the rows are written a
   // batch at a time: a machine of hundreds of samples never holds its analyses (the bulk of the replay's memory),
   // so a big import's analyses die young instead of piling up in the old generation of the heap.
+  // One engine call per judged sample, so the batch's calls count its samples.
   let written = 0;
   let batch: JudgedRows = { findings: [], calls: [], bands: [] };
-  let batchSamples = 0;
   const writeBatch = async (): Promise<void> => {
     if (batch.findings.length > 0) written += await repo.insertFindings(trx, batch.findings);
     await repo.insertEngineCalls(trx, batch.calls);
     if (batch.bands.length > 0) await repo.insertBands(trx, batch.bands);
     batch = { findings: [], calls: [], bands: [] };
-    batchSamples = 0;
   };
   let index = 0;
   for (const step of replaySteps({ machine, samples: points, limits })) {
     if (index++ < firstChanged) continue;
     addJudgedRows(batch, step, machineId, meter);
-    batchSamples += 1;
-    if (batchSamples >= JUDGED_BATCH) await writeBatch();
+    if (batch.calls.length >= JUDGED_BATCH) await writeBatch();
   }
-  if (batchSamples > 0) await writeBatch();
+  if (batch.calls.length > 0) await writeBatch();
   if (stale) await repo.markMachineJudged(trx, machineId, ENGINE_VERSION);
   return written;
 }
