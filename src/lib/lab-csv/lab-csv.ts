@@ -260,7 +260,7 @@ const SET_READING: Readonly<Record<MeasurandCode, ReadingSetter>> = {
  */
 const MAX_PLAIN_READINGS = 65_536;
 
-/** Keys held in PlainReadings' array: 2^20 slots (4 MB at most), enough for one-decimal figures up to 6,553.5. */
+/** Keys held in PlainReadings' table: 2^20 slots (4 MB at most), enough for one-decimal figures up to 6,553.5. */
 const SMALL_KEYS = 2 ** 20;
 
 /**
@@ -278,10 +278,13 @@ class PlainReadings {
 
   // Cells seen before, by plainNumberKey and qualifier: a small-integer key finds the shared reading without
   // making a number. A miss goes on to the maps by value, so "12" and "12.0" still share one reading.
-  // Small keys (whole ppm and one-decimal figures up to a few thousand) index an array, which answers faster than a
-  // map; the table grows by doubling up to SMALL_KEYS slots. Larger keys go to the map.
+  // Small keys (whole ppm and one-decimal figures up to a few thousand) index a typed array holding 1 + the
+  // reading's place in `known` (0 for none yet): zero-filled at birth and never a sparse JavaScript array, which V8
+  // keeps as a hash table once it is large. The table grows by doubling up to SMALL_KEYS slots; larger keys go to
+  // the map.
   private readonly byKey = new Map<number, LabReading>();
-  private small: (LabReading | undefined)[] = [];
+  private small = new Int32Array(0);
+  private readonly known: LabReading[] = [];
 
   constructor(private readonly mark: DecimalMark) {}
 
@@ -295,8 +298,8 @@ class PlainReadings {
     if (key >= 0) {
       const keyed = key * 4 + (qualifier === undefined ? 0 : qualifier === '<' ? 1 : 2);
       if (keyed < this.small.length) {
-        const known = this.small[keyed];
-        if (known !== undefined) return known;
+        const slot = this.small[keyed]!;
+        if (slot !== 0) return this.known[slot - 1];
       } else if (keyed >= SMALL_KEYS) {
         const known = this.byKey.get(keyed);
         if (known !== undefined) return known;
@@ -304,7 +307,8 @@ class PlainReadings {
       const reading = this.byValue(plainKeyValue(key), qualifier);
       if (keyed < SMALL_KEYS) {
         if (keyed >= this.small.length) this.growSmall(keyed);
-        this.small[keyed] = reading;
+        this.known.push(reading);
+        this.small[keyed] = this.known.length;
       } else if (this.byKey.size < MAX_PLAIN_READINGS) this.byKey.set(keyed, reading);
       return reading;
     }
@@ -315,8 +319,8 @@ class PlainReadings {
   private growSmall(keyed: number): void {
     let size = Math.max(1024, this.small.length);
     while (size <= keyed) size *= 2;
-    const grown = new Array<LabReading | undefined>(Math.min(size, SMALL_KEYS)).fill(undefined);
-    for (let i = 0; i < this.small.length; i += 1) grown[i] = this.small[i];
+    const grown = new Int32Array(Math.min(size, SMALL_KEYS));
+    grown.set(this.small);
     this.small = grown;
   }
 
