@@ -55,7 +55,23 @@ export interface ImportFindingInput {
 export interface ImportMachineInput {
   name: string;
   url: string;
+  /** The machine's samples with findings, oldest first: all of them, or only the newest when `totals` is given. */
   samples: { bottleCode: string; drawnOn: string; url: string; findings: ImportFindingInput[] }[];
+  /** Counts over the whole import when `samples` holds only the newest samples; counted from `samples` otherwise. */
+  totals?: { acts: number; watches: number; samples: number };
+}
+
+/** A machine's findings at act and at watch, and its samples with any, over the whole import. */
+function machineTotals(m: ImportMachineInput): { acts: number; watches: number; samples: number } {
+  if (m.totals) return m.totals;
+  let acts = 0;
+  let watches = 0;
+  for (const s of m.samples)
+    for (const f of s.findings) {
+      if (f.level === 'act') acts += 1;
+      else watches += 1;
+    }
+  return { acts, watches, samples: m.samples.length };
 }
 
 /**
@@ -76,9 +92,9 @@ export function composeImportFindingsAlert(input: {
   homeUrl: string;
   machines: ImportMachineInput[];
 }): AlertContent {
-  const all = input.machines.flatMap((m) => m.samples.flatMap((s) => s.findings));
-  const acts = all.filter((f) => f.level === 'act').length;
-  const watches = all.length - acts;
+  const totals = input.machines.map(machineTotals);
+  const acts = totals.reduce((sum, t) => sum + t.acts, 0);
+  const watches = totals.reduce((sum, t) => sum + t.watches, 0);
   const counted = [
     acts ? `${acts.toLocaleString('en-GB')} at act` : '',
     watches ? `${watches.toLocaleString('en-GB')} at watch` : '',
@@ -87,14 +103,15 @@ export function composeImportFindingsAlert(input: {
     .join(' and ');
   const machineNames = input.machines.map((m) => m.name);
   const lines: AlertLine[] = [];
-  for (const m of input.machines.slice(0, IMPORT_ALERT_MACHINES)) {
+  for (const [index, m] of input.machines.slice(0, IMPORT_ALERT_MACHINES).entries()) {
     lines.push({ text: `${m.name}`, url: m.url });
-    const earlier = m.samples.length - IMPORT_ALERT_SAMPLES_PER_MACHINE;
+    const shown = m.samples.slice(-IMPORT_ALERT_SAMPLES_PER_MACHINE);
+    const earlier = totals[index]!.samples - shown.length;
     if (earlier > 0)
       lines.push({
         text: `${formatCount(earlier, 'earlier sample')} of this import also ${earlier === 1 ? 'has' : 'have'} findings; the machine page shows them all.`,
       });
-    for (const s of m.samples.slice(Math.max(0, earlier))) {
+    for (const s of shown) {
       const ordered = [...s.findings].sort((a, b) => byLevelWorstFirst(a.level, b.level));
       for (const f of ordered) {
         lines.push({

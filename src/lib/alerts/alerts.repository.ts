@@ -32,6 +32,10 @@ export interface ImportFindingRow {
   machine_id: string;
   machine_name: string;
   owner_user_id: string;
+  /** The machine's findings at act and at watch, and its samples with any, over the whole import. */
+  machine_acts: number;
+  machine_watches: number;
+  machine_samples: number;
   sample_id: string;
   bottle_code: string;
   drawn_on: string;
@@ -40,17 +44,43 @@ export interface ImportFindingRow {
   sentence: string;
 }
 
-/** Findings at watch or act on the samples whose readings this import wrote, by machine and sample. */
-export async function listImportFindings(db: Db, importId: string): Promise<ImportFindingRow[]> {
+/**
+ * Findings at watch or act on the samples whose readings this import wrote: every finding of each machine's
+ * newest `samplesPerMachine` samples that have any, by machine and sample (oldest first), each row carrying its
+ * machine's counts over the whole import. PostgreSQL counts the rest, so a year's file does not bring its
+ * hundred thousand findings (and their sentences) into the app to fill one mail.
+ */
+export async function listImportFindings(
+  db: Db,
+  importId: string,
+  samplesPerMachine: number,
+): Promise<ImportFindingRow[]> {
   const { rows } = await sql<ImportFindingRow>`
-    select m.id as machine_id, m.name as machine_name, m.owner_user_id, s.id as sample_id, s.bottle_code,
-      s.drawn_on::text as drawn_on, f.level, f.measurand, f.sentence
-    from findings f
-    join samples s on s.id = f.sample_id
-    join machines m on m.id = s.machine_id
-    where f.level in ('watch', 'act')
-      and s.id in (select distinct r.sample_id from readings r where r.lab_import_id = ${importId}::uuid)
-    order by m.name, m.id, s.drawn_on, s.id, f.level, f.measurand nulls last, f.rule_id`.execute(db);
+    with flagged as (
+      select f.sample_id, f.level, f.measurand, f.sentence, f.rule_id
+      from findings f
+      where f.level in ('watch', 'act')
+        and f.sample_id in (select r.sample_id from readings r where r.lab_import_id = ${importId}::uuid)
+    ), per_sample as (
+      select s.id, s.machine_id, s.bottle_code, s.drawn_on,
+        count(*) filter (where fl.level = 'act') as acts,
+        count(*) filter (where fl.level = 'watch') as watches,
+        row_number() over (partition by s.machine_id order by s.drawn_on desc, s.id desc) as newest
+      from flagged fl join samples s on s.id = fl.sample_id
+      group by s.id
+    ), per_machine as (
+      select machine_id, sum(acts)::int as acts, sum(watches)::int as watches, count(*)::int as samples
+      from per_sample group by machine_id
+    )
+    select m.id as machine_id, m.name as machine_name, m.owner_user_id,
+      pm.acts as machine_acts, pm.watches as machine_watches, pm.samples as machine_samples,
+      ps.id as sample_id, ps.bottle_code, ps.drawn_on::text as drawn_on, fl.level, fl.measurand, fl.sentence
+    from per_sample ps
+    join per_machine pm on pm.machine_id = ps.machine_id
+    join machines m on m.id = ps.machine_id
+    join flagged fl on fl.sample_id = ps.id
+    where ps.newest <= ${samplesPerMachine}
+    order by m.name, m.id, ps.drawn_on, ps.id, fl.level, fl.measurand nulls last, fl.rule_id`.execute(db);
   return rows;
 }
 

@@ -14,6 +14,7 @@ import { resolveDeliveries } from '../notification-preferences/notification-pref
 import {
   buildUnsubscribeHeaders,
   composeImportFindingsAlert,
+  IMPORT_ALERT_SAMPLES_PER_MACHINE,
   renderAlertMail,
   renderDigestMail,
   type AlertContent,
@@ -149,7 +150,7 @@ export async function queueImportAlerts(
 ): Promise<AlertOutcome[]> {
   const header = await findImportHeader(trx, importId);
   if (!header) return [];
-  const rows = await listImportFindings(trx, importId);
+  const rows = await listImportFindings(trx, importId, IMPORT_ALERT_SAMPLES_PER_MACHINE);
   if (rows.length === 0) return [];
 
   const machines = new Map<string, { owner: string; input: ImportMachineInput }>();
@@ -159,7 +160,12 @@ export async function queueImportAlerts(
     if (!m) {
       m = {
         owner: r.owner_user_id,
-        input: { name: r.machine_name, url: `${env.publicUrl}/machines/${r.machine_id}`, samples: [] },
+        input: {
+          name: r.machine_name,
+          url: `${env.publicUrl}/machines/${r.machine_id}`,
+          samples: [],
+          totals: { acts: r.machine_acts, watches: r.machine_watches, samples: r.machine_samples },
+        },
       };
       machines.set(r.machine_id, m);
     }

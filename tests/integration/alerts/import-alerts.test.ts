@@ -80,6 +80,29 @@ describe('import alerts', () => {
     expect(text(c.otherRider.email)).not.toContain('Ridge 450');
   });
 
+  test('a machine with more samples at act than the mail spells out: the newest are listed, the counts cover all', async () => {
+    const c = await makeAlertCrew(db);
+    const days = ['2026-01-05', '2026-02-05', '2026-03-05', '2026-04-05', '2026-05-05'];
+    for (const [i, day] of days.entries())
+      await makeSample(db, c.crewId, c.machineId, c.rider.id, `SW-${i + 1}`, {
+        drawnOn: day,
+        odometer: 1000 * (i + 1),
+      });
+    const rows = days.map((day, i) => `SW-${i + 1},${day},30,60,5,3`).join('\n');
+    await importCsv(db, c.crewId, c.lead.id, `${HEADER}\n${rows}\n`);
+
+    // What the engine found, counted from the stored findings themselves.
+    const levels = await db.selectFrom('findings').select('level').execute();
+    const acts = levels.filter((f) => f.level === 'act').length;
+    const watches = levels.filter((f) => f.level === 'watch').length;
+    expect(acts).toBeGreaterThanOrEqual(days.length);
+    const text = (await outboxByRecipient(db, 'alert_import_findings')).get(c.lead.email)![0]!.text_body;
+    expect(text).toContain(`brought ${acts} at act${watches ? ` and ${watches} at watch` : ''} on Ridge 450`);
+    expect(text).toContain('2 earlier samples of this import also have findings');
+    for (const shown of ['SW-3', 'SW-4', 'SW-5']) expect(text).toContain(`Sample ${shown}, readings and findings`);
+    for (const earlier of ['SW-1', 'SW-2']) expect(text).not.toContain(`bottle ${earlier},`);
+  });
+
   test('an import with nothing at watch or act sends nothing', async () => {
     const c = await makeAlertCrew(db);
     await makeSample(db, c.crewId, c.machineId, c.rider.id, 'SW-1');

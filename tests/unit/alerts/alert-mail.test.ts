@@ -10,6 +10,7 @@ import {
   fitSubject,
   renderAlertMail,
   renderDigestMail,
+  type ImportMachineInput,
 } from '~/lib/alerts/alert-mail';
 
 // Invented demo figures and names throughout.
@@ -147,6 +148,49 @@ describe('composeImportFindingsAlert', () => {
         expect(texts).toContain(`Sample B0-${samples - 1}, readings and findings`);
     },
   );
+  // The import's query brings only each machine's newest samples and counts the rest in PostgreSQL: given those
+  // counts, the mail is the one the whole list of findings makes.
+  test.each([
+    // machines, samples each, findings per sample (act, watch)
+    [1, 1, 1, 0],
+    [1, 3, 0, 2],
+    [2, 4, 1, 1],
+    [IMPORT_ALERT_MACHINES + 2, 7, 2, 3],
+  ])('%i machines × %i samples: the newest samples and their counts make the same mail', (machines, samples, a, w) => {
+    const full: ImportMachineInput[] = Array.from({ length: machines }, (_, m) => ({
+      name: `M${m}`,
+      url: `${BASE}/machines/m${m}`,
+      samples: Array.from({ length: samples }, (_, i) => ({
+        bottleCode: `B${m}-${i}`,
+        drawnOn: new Date(Date.UTC(2025, 0, 1 + i)).toISOString().slice(0, 10),
+        url: `${BASE}/samples/s${m}-${i}`,
+        findings: [
+          ...Array.from({ length: a }, (_, k) => ({ level: 'act' as const, measurand: 'Fe', sentence: `Iron ${k}.` })),
+          ...Array.from({ length: w }, (_, k) => ({
+            level: 'watch' as const,
+            measurand: 'Si',
+            sentence: `Dust ${k}.`,
+          })),
+        ],
+      })),
+    }));
+    const cut = full.map((m) => ({
+      ...m,
+      samples: m.samples.slice(-IMPORT_ALERT_SAMPLES_PER_MACHINE),
+      totals: { acts: samples * a, watches: samples * w, samples },
+    }));
+    const input = { crewName: 'C', fileName: 'year.csv', homeUrl: `${BASE}/` };
+    const whole = composeImportFindingsAlert({ ...input, machines: full });
+    expect(composeImportFindingsAlert({ ...input, machines: cut })).toEqual(whole);
+    expect(whole.intro).toContain(
+      [
+        a ? `${(machines * samples * a).toLocaleString('en-GB')} at act` : '',
+        w ? `${(machines * samples * w).toLocaleString('en-GB')} at watch` : '',
+      ]
+        .filter(Boolean)
+        .join(' and '),
+    );
+  });
 });
 
 describe('renderAlertMail', () => {
