@@ -229,21 +229,32 @@ export async function recomputeMachineFindings(
   // batch at a time: a machine of hundreds of samples never holds its analyses (the bulk of the replay's memory),
   // so a big import's analyses die young instead of piling up in the old generation of the heap.
   // One engine call per judged sample, so the batch's calls count its samples.
+  // While PostgreSQL stores one batch (its constraint checks and indexes), the next one is judged: the replay
+  // hands the event loop over between samples, so the batch's rows go out and PostgreSQL works on another core.
+  // One batch is in flight at a time and every write is awaited before the machine is done; a failed write
+  // fails the caller's transaction as before.
   let written = 0;
   let batch: JudgedRows = { findings: [], calls: [], bands: [] };
+  let writing: Promise<void> | undefined;
   const writeBatch = async (): Promise<void> => {
-    if (batch.findings.length > 0) written += await repo.insertFindings(trx, batch.findings);
-    await repo.insertEngineCalls(trx, batch.calls);
-    if (batch.bands.length > 0) await repo.insertBands(trx, batch.bands);
+    const rows = batch;
     batch = { findings: [], calls: [], bands: [] };
+    await writing;
+    writing = writeJudgedRows(trx, rows).then((n) => {
+      written += n;
+    });
+    // Awaited at the next batch or at the end; until then a rejection is not "unhandled".
+    writing.catch(() => undefined);
   };
   let index = 0;
   for (const step of replaySteps({ machine, samples: points, limits })) {
     if (index++ < firstChanged) continue;
     addJudgedRows(batch, step, machineId, meter);
     if (batch.calls.length >= JUDGED_BATCH) await writeBatch();
+    else if (writing) await yieldToIo();
   }
   if (batch.calls.length > 0) await writeBatch();
+  await writing;
   if (stale) await repo.markMachineJudged(trx, machineId, ENGINE_VERSION);
   return written;
 }
@@ -261,6 +272,17 @@ interface JudgedRows {
   calls: repo.IntervalCallInsert[];
   bands: repo.BandInsert[];
 }
+
+/** Store a run of judged samples' rows; returns the findings written. */
+async function writeJudgedRows(trx: Db, rows: JudgedRows): Promise<number> {
+  const findings = rows.findings.length > 0 ? await repo.insertFindings(trx, rows.findings) : 0;
+  await repo.insertEngineCalls(trx, rows.calls);
+  if (rows.bands.length > 0) await repo.insertBands(trx, rows.bands);
+  return findings;
+}
+
+/** Let pending I/O (a batch's rows going out, PostgreSQL's answers) run before the next sample is judged. */
+const yieldToIo = (): Promise<void> => new Promise((resolve) => setImmediate(resolve));
 
 /** The findings, engine call and bands of one judged sample, added to `rows`. */
 function addJudgedRows(rows: JudgedRows, step: ReplayedSample, machineId: string, meter: MeterUnit): void {

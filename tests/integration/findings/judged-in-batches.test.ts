@@ -2,7 +2,7 @@
 // from (and so wherever the runs begin and end), every sample from there on gets its findings, bands and one
 // engine call, the same as when the whole history is judged, and the samples before it are left as they were.
 // Invented figures throughout.
-import type { Kysely } from 'kysely';
+import { sql, type Kysely } from 'kysely';
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
 import type { Database } from '~/lib/db/database';
 import { JUDGED_BATCH, recomputeMachineFindings } from '~/lib/findings/findings.service';
@@ -118,6 +118,39 @@ describe('a long history judged again a run of samples at a time', () => {
       expect(before(again.calls)).toEqual(before(whole.calls));
       const oldIds = new Set([...whole.findings, ...whole.calls].map((r) => r.id));
       for (const id of [...after(again.findings), ...after(again.calls)]) expect(oldIds.has(id)).toBe(false);
+    },
+  );
+
+  // The next run is judged while PostgreSQL stores the one before, so a write can fail while the judging has
+  // moved on: the failure must still reach the caller and take the whole judging with it.
+  test.each([JUDGED_BATCH + 50, SAMPLES - 1])(
+    'a write that PostgreSQL refuses at sample %i fails the judging, and nothing of it stays',
+    async (failAt) => {
+      const c = await makeCrewWithRoles(db);
+      const m = await c.machine({ meter: 'km', cooling: 'liquid' } as Partial<Database['machines']>);
+      const ids = await addSamples(db, c.crew.id, m.id, c.rider.id, history());
+      await db.transaction().execute((trx) => recomputeMachineFindings(trx, m.id, null));
+      const whole = await stored(db, ids);
+
+      const judging = db.transaction().execute(async (trx) => {
+        // A trigger made inside the transaction, gone with it: refuses the bands of one sample.
+        await sql
+          .raw(
+            `create function refuse_one_band() returns trigger language plpgsql as $$
+             begin
+               if new.sample_id = '${ids[failAt]}'::uuid then raise exception 'band refused for the test'; end if;
+               return new;
+             end $$`,
+          )
+          .execute(trx);
+        await sql`create trigger refuse_one_band before insert on baseline_bands for each row execute function refuse_one_band()`.execute(
+          trx,
+        );
+        return recomputeMachineFindings(trx, m.id, null);
+      });
+      await expect(judging).rejects.toThrow('band refused for the test');
+      // Rolled back whole: the rows judged before the failure are the very rows there were before.
+      expect(await stored(db, ids)).toEqual(whole);
     },
   );
 });
