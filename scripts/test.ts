@@ -92,11 +92,16 @@ const formatted = step(
   () => run(bin('prettier'), ['--check', ...cacheArgs('prettier'), '.']) === 0,
 );
 const linted = step('lint (eslint)', () => run(bin('eslint'), [...cacheArgs('eslint'), '.']) === 0);
+// A server this run starts is stopped when it ends; one already running (a developer's `npm start`) is left running.
+let startedDatabase = false;
 const ok =
   formatted &&
   linted &&
   ensureChromium() &&
-  step('database', () => run('bash', ['scripts/db.sh', 'start']) === 0) &&
+  step('database', () => {
+    startedDatabase = run('bash', ['scripts/db.sh', 'status']) !== 0;
+    return run('bash', ['scripts/db.sh', 'start']) === 0;
+  }) &&
   step('type check (astro check)', () => run(bin('astro'), ['check', '--minimumSeverity', 'warning'], { env }) === 0) &&
   step('unit tests (coverage of src/lib)', () => vitest('unit', ['--coverage'])) &&
   step('integration tests (PostgreSQL)', () => vitest('integration', ['--no-file-parallelism'])) &&
@@ -110,6 +115,8 @@ const ok =
     }
   }) &&
   step('end-to-end tests (Chromium)', () => vitest('e2e', ['--no-file-parallelism']));
+
+if (startedDatabase) run('bash', ['scripts/db.sh', 'stop']);
 
 console.log(`\n${timings.join('\n')}\ntotal: ${((performance.now() - started) / 1000).toFixed(1)} s`);
 console.log(`\ntests: ${passed} passed, ${failed} failed${skipped ? `, ${skipped} skipped` : ''}`);
