@@ -64,11 +64,17 @@ export function roundTo(value: number, decimals: number): number {
   return Math.round((value + Number.EPSILON * Math.sign(value)) * f) / f;
 }
 
+/**
+ * The two number formats of meter readings, made once: `toLocaleString` with options builds a new Intl.NumberFormat
+ * on every call (about 18 µs against 0.4 µs here), and a machine page formats a reading per sample.
+ */
+const WHOLE = new Intl.NumberFormat('en-US', { maximumFractionDigits: 0, minimumFractionDigits: 0 });
+const TENTHS = new Intl.NumberFormat('en-US', { maximumFractionDigits: 1, minimumFractionDigits: 0 });
+
 /** A meter reading for screens: whole miles/km with thousands separators, hours to one decimal. */
 export function formatMeter(stored: number, meter: MeterUnit): string {
   const v = fromStoredMeter(stored, meter);
-  const digits = meter === 'h' ? 1 : 0;
-  return `${v.toLocaleString('en-US', { maximumFractionDigits: digits, minimumFractionDigits: 0 })} ${labelMeter(meter)}`;
+  return `${(meter === 'h' ? TENTHS : WHOLE).format(v)} ${labelMeter(meter)}`;
 }
 
 /** A length in mm for screens in the user's unit: inches to 3 decimals, mm to 2. */

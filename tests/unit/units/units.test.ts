@@ -63,6 +63,23 @@ describe('conversions at the edges', () => {
     expect(formatMeter(stored, meter)).toBe(expected);
   });
 
+  // ECMA-402 defines Number.prototype.toLocaleString(locales, options) as formatting with a new
+  // Intl.NumberFormat(locales, options): the formats made once must give exactly what that gives.
+  test('formatMeter matches toLocaleString with the same options, for any reading and unit', () => {
+    fc.assert(
+      fc.property(
+        fc.double({ min: 0, max: 1e8, noNaN: true }),
+        fc.constantFrom('km' as const, 'mi' as const, 'h' as const),
+        (stored, meter) => {
+          const digits = meter === 'h' ? 1 : 0;
+          const v = fromStoredMeter(stored, meter);
+          const reference = v.toLocaleString('en-US', { maximumFractionDigits: digits, minimumFractionDigits: 0 });
+          expect(formatMeter(stored, meter)).toBe(`${reference} ${meter}`);
+        },
+      ),
+    );
+  });
+
   test.each([
     { mm: 2.54, unit: 'in' as const, expected: '0.100 in' },
     { mm: 2.54, unit: 'mm' as const, expected: '2.54 mm' },
