@@ -74,6 +74,15 @@ const content = (s: Awaited<ReturnType<typeof stored>>) => ({
   bands: s.bands,
 });
 
+/** A machine with the long history, judged whole once, and what that judging stored. */
+async function judgedMachine() {
+  const c = await makeCrewWithRoles(db);
+  const m = await c.machine({ meter: 'km', cooling: 'liquid' } as Partial<Database['machines']>);
+  const ids = await addSamples(db, c.crew.id, m.id, c.rider.id, history());
+  await db.transaction().execute((trx) => recomputeMachineFindings(trx, m.id, null));
+  return { m, ids, whole: await stored(db, ids) };
+}
+
 describe('a long history judged again a run of samples at a time', () => {
   test('judged whole: every sample gets one engine call, the climb its findings, and bands once the baseline holds', async () => {
     const c = await makeCrewWithRoles(db);
@@ -98,11 +107,7 @@ describe('a long history judged again a run of samples at a time', () => {
   test.each([0, 1, B - 1, B, B + 1, 2 * B - 1, 2 * B, SAMPLES - 1])(
     'judged again from sample %i: the same results from there on, the samples before it untouched',
     async (from) => {
-      const c = await makeCrewWithRoles(db);
-      const m = await c.machine({ meter: 'km', cooling: 'liquid' } as Partial<Database['machines']>);
-      const ids = await addSamples(db, c.crew.id, m.id, c.rider.id, history());
-      await db.transaction().execute((trx) => recomputeMachineFindings(trx, m.id, null));
-      const whole = await stored(db, ids);
+      const { m, ids, whole } = await judgedMachine();
 
       const written = await db
         .transaction()
@@ -126,11 +131,7 @@ describe('a long history judged again a run of samples at a time', () => {
   test.each([JUDGED_BATCH + 50, SAMPLES - 1])(
     'a write that PostgreSQL refuses at sample %i fails the judging, and nothing of it stays',
     async (failAt) => {
-      const c = await makeCrewWithRoles(db);
-      const m = await c.machine({ meter: 'km', cooling: 'liquid' } as Partial<Database['machines']>);
-      const ids = await addSamples(db, c.crew.id, m.id, c.rider.id, history());
-      await db.transaction().execute((trx) => recomputeMachineFindings(trx, m.id, null));
-      const whole = await stored(db, ids);
+      const { m, ids, whole } = await judgedMachine();
 
       const judging = db.transaction().execute(async (trx) => {
         // A trigger made inside the transaction, gone with it: refuses the bands of one sample.

@@ -10,6 +10,7 @@ import {
   fitSubject,
   renderAlertMail,
   renderDigestMail,
+  type ImportFindingInput,
   type ImportMachineInput,
 } from '~/lib/alerts/alert-mail';
 
@@ -100,22 +101,26 @@ describe('composeImportFindingsAlert', () => {
     expect(watchOnly.title).toBe('Lab results to keep an eye on');
   });
 
-  /** `machines` machines of `samples` samples each (oldest first, as the import lists them), one act finding each. */
+  /** `machines` machines of `samples` samples each (oldest first, as the import lists them), each with `findings`. */
+  const importMachines = (machines: number, samples: number, findings: ImportFindingInput[]): ImportMachineInput[] =>
+    Array.from({ length: machines }, (_, m) => ({
+      name: `M${m}`,
+      url: `${BASE}/machines/m${m}`,
+      samples: Array.from({ length: samples }, (_, i) => ({
+        bottleCode: `B${m}-${i}`,
+        drawnOn: new Date(Date.UTC(2025, 0, 1 + i)).toISOString().slice(0, 10),
+        url: `${BASE}/samples/s${m}-${i}`,
+        findings,
+      })),
+    }));
+
+  /** A big import with one act finding per sample. */
   const bigImport = (machines: number, samples: number) =>
     composeImportFindingsAlert({
       crewName: 'C',
       fileName: 'year.csv',
       homeUrl: `${BASE}/`,
-      machines: Array.from({ length: machines }, (_, m) => ({
-        name: `M${m}`,
-        url: `${BASE}/machines/m${m}`,
-        samples: Array.from({ length: samples }, (_, i) => ({
-          bottleCode: `B${m}-${i}`,
-          drawnOn: new Date(Date.UTC(2025, 0, 1 + i)).toISOString().slice(0, 10),
-          url: `${BASE}/samples/s${m}-${i}`,
-          findings: [{ level: 'act' as const, measurand: 'Fe', sentence: 'Iron is at act.' }],
-        })),
-      })),
+      machines: importMachines(machines, samples, [{ level: 'act', measurand: 'Fe', sentence: 'Iron is at act.' }]),
     });
 
   test.each([
@@ -157,23 +162,10 @@ describe('composeImportFindingsAlert', () => {
     [2, 4, 1, 1],
     [IMPORT_ALERT_MACHINES + 2, 7, 2, 3],
   ])('%i machines × %i samples: the newest samples and their counts make the same mail', (machines, samples, a, w) => {
-    const full: ImportMachineInput[] = Array.from({ length: machines }, (_, m) => ({
-      name: `M${m}`,
-      url: `${BASE}/machines/m${m}`,
-      samples: Array.from({ length: samples }, (_, i) => ({
-        bottleCode: `B${m}-${i}`,
-        drawnOn: new Date(Date.UTC(2025, 0, 1 + i)).toISOString().slice(0, 10),
-        url: `${BASE}/samples/s${m}-${i}`,
-        findings: [
-          ...Array.from({ length: a }, (_, k) => ({ level: 'act' as const, measurand: 'Fe', sentence: `Iron ${k}.` })),
-          ...Array.from({ length: w }, (_, k) => ({
-            level: 'watch' as const,
-            measurand: 'Si',
-            sentence: `Dust ${k}.`,
-          })),
-        ],
-      })),
-    }));
+    const full = importMachines(machines, samples, [
+      ...Array.from({ length: a }, (_, k) => ({ level: 'act' as const, measurand: 'Fe', sentence: `Iron ${k}.` })),
+      ...Array.from({ length: w }, (_, k) => ({ level: 'watch' as const, measurand: 'Si', sentence: `Dust ${k}.` })),
+    ]);
     const cut = full.map((m) => ({
       ...m,
       samples: m.samples.slice(-IMPORT_ALERT_SAMPLES_PER_MACHINE),
