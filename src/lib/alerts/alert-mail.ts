@@ -58,11 +58,17 @@ export interface ImportMachineInput {
   /** The machine's samples with findings, oldest first: all of them, or only the newest when `totals` is given. */
   samples: { bottleCode: string; drawnOn: string; url: string; findings: ImportFindingInput[] }[];
   /** Counts over the whole import when `samples` holds only the newest samples; counted from `samples` otherwise. */
-  totals?: { acts: number; watches: number; samples: number };
+  totals?: ImportMachineTotals;
 }
 
 /** A machine's findings at act and at watch, and its samples with any, over the whole import. */
-function machineTotals(m: ImportMachineInput): { acts: number; watches: number; samples: number } {
+export interface ImportMachineTotals {
+  acts: number;
+  watches: number;
+  samples: number;
+}
+
+function machineTotals(m: ImportMachineInput): ImportMachineTotals {
   if (m.totals) return m.totals;
   let acts = 0;
   let watches = 0;

@@ -236,13 +236,19 @@ export async function recomputeMachineFindings(
   let written = 0;
   let batch: JudgedRows = { findings: [], calls: [], bands: [] };
   let writing: Promise<void> | undefined;
+  let inFlight = false;
   const writeBatch = async (): Promise<void> => {
     const rows = batch;
     batch = { findings: [], calls: [], bands: [] };
     await writing;
-    writing = writeJudgedRows(trx, rows).then((n) => {
-      written += n;
-    });
+    inFlight = true;
+    writing = writeJudgedRows(trx, rows)
+      .then((n) => {
+        written += n;
+      })
+      .finally(() => {
+        inFlight = false;
+      });
     // Awaited at the next batch or at the end; until then a rejection is not "unhandled".
     writing.catch(() => undefined);
   };
@@ -251,7 +257,7 @@ export async function recomputeMachineFindings(
     if (index++ < firstChanged) continue;
     addJudgedRows(batch, step, machineId, meter);
     if (batch.calls.length >= JUDGED_BATCH) await writeBatch();
-    else if (writing) await yieldToIo();
+    else if (inFlight) await yieldToIo();
   }
   if (batch.calls.length > 0) await writeBatch();
   await writing;
