@@ -1,7 +1,6 @@
 import { defineMiddleware } from 'astro:middleware';
 import { randomUUID } from 'node:crypto';
 import { securityHeaders } from './lib/http/security-headers';
-import { getDb } from './lib/db';
 import { getLucia, loadSession, mayClearStaleSessionCookie } from './lib/auth/session';
 import { isForbiddenCrossSiteWrite } from './lib/http/origin-check';
 import { getConfig } from './lib/config';
@@ -46,7 +45,7 @@ export const onRequest = defineMiddleware(async (context, next) => {
   }
   let loaded: Awaited<ReturnType<typeof loadSession>>;
   try {
-    loaded = await loadSession(getDb(), getLucia(), context.cookies, {
+    loaded = await loadSession(getLucia(), context.cookies, {
       clearStale: mayClearStaleSessionCookie(context.request.headers),
     });
   } catch (error) {

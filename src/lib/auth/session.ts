@@ -2,14 +2,11 @@
 // replacing it later touches nothing else. The rest of the app holds an `AppLucia` from here and calls the
 // functions below; tests/unit/auth/lucia-boundary.test.ts fails when another file imports it.
 import type { AstroCookies } from 'astro';
-import type { Kysely } from 'kysely';
-import { Lucia, generateIdFromEntropySize, type Cookie } from 'lucia';
+import { Lucia, generateIdFromEntropySize, type Cookie, type DatabaseSession, type DatabaseUser } from 'lucia';
 import { NodePostgresAdapter } from '@lucia-auth/adapter-postgresql';
 import type pg from 'pg';
 import { getConfig, isSecureOrigin } from '../config';
-import { findMembershipsForUser } from '../crews/crews.repository';
 import { getPool } from '../db';
-import type { Database } from '../db/database';
 import type { CrewMembership, SessionInfo, SessionUser } from './types';
 
 /** The session cookie's name. */
@@ -26,21 +23,74 @@ interface DatabaseUserAttributes {
   length_unit: 'in' | 'mm';
   temperature_unit: 'F' | 'C';
   time_zone: string | null;
+  /** The user's crews, oldest membership first: read with the session (OneQuerySessionAdapter). */
+  crews: CrewMembership[];
 }
 
 interface DatabaseSessionAttributes {
   current_crew_id: string | null;
 }
 
+interface SessionAndUserRow {
+  id: string;
+  user_id: string;
+  expires_at: Date;
+  current_crew_id: string | null;
+  email: string;
+  display_name: string;
+  email_verified_at: Date | null;
+  distance_unit: 'mi' | 'km';
+  length_unit: 'in' | 'mm';
+  temperature_unit: 'F' | 'C';
+  time_zone: string | null;
+  crews: CrewMembership[];
+}
+
+/**
+ * Lucia's PostgreSQL adapter, with the session, its user and the user's crews read in one query. The stock adapter
+ * reads the session and the user in two queries at once (two pooled connections), and the crews came in a third;
+ * every signed-in request makes this call. Writes stay the stock adapter's.
+ */
+class OneQuerySessionAdapter extends NodePostgresAdapter {
+  readonly #pool: pg.Pool;
+
+  constructor(pool: pg.Pool) {
+    super(pool, { user: 'users', session: 'sessions' });
+    this.#pool = pool;
+  }
+
+  override async getSessionAndUser(sessionId: string): Promise<[DatabaseSession | null, DatabaseUser | null]> {
+    const { rows } = await this.#pool.query<SessionAndUserRow>(
+      `select s.id, s.user_id, s.expires_at, s.current_crew_id,
+              u.email, u.display_name, u.email_verified_at, u.distance_unit, u.length_unit, u.temperature_unit,
+              u.time_zone,
+              (select coalesce(json_agg(json_build_object('crewId', m.crew_id, 'crewName', c.name, 'role', m.role)
+                                        order by m.joined_at, c.name), '[]')
+                 from crew_members m join crews c on c.id = m.crew_id
+                where m.user_id = u.id) as crews
+         from sessions s join users u on u.id = s.user_id
+        where s.id = $1`,
+      [sessionId],
+    );
+    const row = rows[0];
+    if (!row) return [null, null];
+    const { id, user_id, expires_at, current_crew_id, ...user } = row;
+    return [
+      { id, userId: user_id, expiresAt: expires_at, attributes: { current_crew_id } },
+      { id: user_id, attributes: user },
+    ];
+  }
+}
+
 /** A Lucia instance over the users and sessions tables on `pool`; `secure` follows the public URL's scheme. */
 export function createLucia(pool: pg.Pool, options: { secure: boolean }) {
-  return new Lucia(new NodePostgresAdapter(pool, { user: 'users', session: 'sessions' }), {
+  return new Lucia(new OneQuerySessionAdapter(pool), {
     sessionCookie: {
       name: SESSION_COOKIE,
       // Lucia sets HttpOnly and Path=/ itself; SameSite=Lax keeps the cookie off cross-site POSTs.
       attributes: { secure: options.secure, sameSite: 'lax' },
     },
-    getUserAttributes: (a): Omit<SessionUser, 'id'> => ({
+    getUserAttributes: (a): Omit<SessionUser, 'id'> & { crews: CrewMembership[] } => ({
       email: a.email,
       displayName: a.display_name,
       emailVerified: a.email_verified_at !== null,
@@ -48,6 +98,7 @@ export function createLucia(pool: pg.Pool, options: { secure: boolean }) {
       lengthUnit: a.length_unit,
       temperatureUnit: a.temperature_unit,
       timeZone: a.time_zone,
+      crews: a.crews,
     }),
     getSessionAttributes: (a) => ({ currentCrewId: a.current_crew_id }),
   });
@@ -97,10 +148,9 @@ export function mayClearStaleSessionCookie(headers: Headers): boolean {
 /**
  * Validates the session cookie (refreshing it as Lucia says, clearing a stale one when `clearStale` allows)
  * and resolves the crew the session works in: the one it points at if the user is still a member, else
- * their first crew.
+ * their first crew. One query (OneQuerySessionAdapter), plus Lucia's write when it extends the session.
  */
 export async function loadSession(
-  db: Kysely<Database>,
   lucia: AppLucia,
   cookies: AstroCookies,
   options: { clearStale: boolean } = { clearStale: true },
@@ -119,7 +169,7 @@ export async function loadSession(
     const cookie = lucia.createSessionCookie(session.id);
     cookies.set(cookie.name, cookie.value, cookie.attributes);
   }
-  const crews = await findMembershipsForUser(db, user.id);
+  const crews = user.crews;
   const crew = crews.find((c) => c.crewId === session.currentCrewId) ?? crews[0] ?? null;
   return {
     user: {
