@@ -75,28 +75,55 @@ export function entityTagFromParts(parts: readonly string[]): string {
 }
 
 /**
+ * A JSON answer made once and sent as often as asked: its text, its tag, and its gzip once a client has accepted
+ * one (kept on the object, so an answer that is kept, as the wear chart's are, is compressed only once).
+ */
+export interface PreparedJson {
+  readonly body: string;
+  readonly etag: string;
+  gzipped?: Uint8Array<ArrayBuffer>;
+}
+
+/** The answer's text and tag: of the body, unless `etag` gives one made from what the body was built from. */
+export function prepareJson(data: unknown, etag?: string): PreparedJson {
+  const body = JSON.stringify(data);
+  return { body, etag: etag ?? entityTagOf(body) };
+}
+
+/** Bytes a prepared answer holds: its text (UTF-16 in memory) and its gzip once made. */
+export function preparedJsonBytes(prepared: PreparedJson): number {
+  return prepared.body.length * 2 + (prepared.gzipped?.byteLength ?? 0);
+}
+
+/**
  * A JSON answer with an entity tag: 304 with no body when the request's If-None-Match already names it, else
  * 200 with the body, gzipped when accepted. Private and revalidated on every use: the answer depends on the
  * signed-in crew, so no shared cache may keep it, and the browser asks each time (cheaply, when unchanged).
- * The tag is of the body unless `etag` gives one made from what the body was built from (entityTagFromParts).
  */
-export async function conditionalJson(request: Request, data: unknown, etag?: string): Promise<Response> {
-  const body = JSON.stringify(data);
-  const tag = etag ?? entityTagOf(body);
+export async function answerPreparedJson(request: Request, prepared: PreparedJson): Promise<Response> {
+  const { body, etag } = prepared;
+  const unchanged = notModified(request, etag);
+  if (unchanged) return unchanged;
   const headers: Record<string, string> = {
     'content-type': 'application/json; charset=utf-8',
     'cache-control': CACHE_CONTROL,
     vary: VARY,
-    etag: tag,
+    etag,
   };
-  const unchanged = notModified(request, tag);
-  if (unchanged) return unchanged;
   if (body.length >= MIN_GZIP_BYTES && acceptsGzip(request.headers.get('accept-encoding'))) {
-    const compressed = await gzipAsync(Buffer.from(body, 'utf8'));
-    return new Response(new Uint8Array(compressed), {
+    prepared.gzipped ??= new Uint8Array(await gzipAsync(Buffer.from(body, 'utf8')));
+    return new Response(prepared.gzipped, {
       status: 200,
-      headers: { ...headers, 'content-encoding': 'gzip', 'content-length': String(compressed.byteLength) },
+      headers: { ...headers, 'content-encoding': 'gzip', 'content-length': String(prepared.gzipped.byteLength) },
     });
   }
   return new Response(body, { status: 200, headers });
+}
+
+/**
+ * `answerPreparedJson` for an answer made for this request only. The tag is of the body unless `etag` gives one
+ * made from what the body was built from (entityTagFromParts).
+ */
+export function conditionalJson(request: Request, data: unknown, etag?: string): Promise<Response> {
+  return answerPreparedJson(request, prepareJson(data, etag));
 }

@@ -2,22 +2,27 @@
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
 import { entityTagFromParts } from '../http/conditional-json';
-import { findCrewMachine, findTrendDataFingerprint, listTrendOilChanges, listTrendSamples } from './trends.repository';
+import { parseTrendSnapshot } from './trend-snapshot';
+import { findTrendDataFingerprint, findTrendSnapshot } from './trends.repository';
 import { findGradeChanges, shapeTrendSeries, type TrendQuery, type TrendResponse } from './trends';
 
-/** Trend series of a crew's machine, or null when the machine is not the crew's (the route answers 404). */
+/**
+ * Trend series of a crew's machine, read in one round trip (findTrendSnapshot) and shaped, or null when the machine
+ * is not the crew's (the route answers 404).
+ */
 export async function loadMachineTrends(
   db: Kysely<Database>,
   crewId: string,
   machineId: string,
   query: TrendQuery,
 ): Promise<TrendResponse | null> {
-  const machine = await findCrewMachine(db, crewId, machineId);
-  if (!machine) return null;
-  const [samples, changes] = await Promise.all([
-    listTrendSamples(db, machine, query.measurands),
-    listTrendOilChanges(db, machine.id),
-  ]);
+  const text = await findTrendSnapshot(db, crewId, machineId, query.measurands);
+  return text === undefined ? null : shapeTrendAnswer(text, query);
+}
+
+/** The answer from a snapshot's text: series shaped by trends.ts, grade changes, and the notes a rate chart needs. */
+function shapeTrendAnswer(text: string, query: TrendQuery): TrendResponse {
+  const { machine, samples, changes } = parseTrendSnapshot(text);
   const series = shapeTrendSeries({ meter: machine.meter, samples, measurands: query.measurands, basis: query.basis });
   const notes: string[] = [];
   if (query.basis === 'rate') {
@@ -45,8 +50,8 @@ export const TREND_ANSWER_FORMAT = 'compact-2';
 
 /**
  * The entity tag of the trend answer for this machine and query, from one cheap query instead of the answer's
- * four (null when the machine is not the crew's: the answer itself then says 404). Nothing of the signed-in
- * person goes into the answer (units and meter are the machine's), so nothing of theirs goes into the tag.
+ * (null when the machine is not the crew's: the answer itself then says 404). Nothing of the signed-in person goes
+ * into the answer (units and meter are the machine's), so nothing of theirs goes into the tag.
  */
 export async function findTrendEntityTag(
   db: Kysely<Database>,
@@ -54,7 +59,7 @@ export async function findTrendEntityTag(
   machineId: string,
   query: TrendQuery,
 ): Promise<string | null> {
-  const fingerprint = await findTrendDataFingerprint(db, crewId, machineId);
+  const fingerprint = await findTrendDataFingerprint(db, crewId, machineId, query.measurands);
   if (fingerprint === undefined) return null;
   return entityTagFromParts([TREND_ANSWER_FORMAT, machineId, fingerprint, JSON.stringify(query)]);
 }

@@ -4,6 +4,7 @@ import type { CrewMembership, SessionUser } from '~/lib/auth/types';
 import type { Insertable } from 'kysely';
 import type { BaselineBandsTable } from '~/lib/db/database';
 import { expandTrendResponse, type CompactTrendResponse } from '~/lib/trends/trend-compact';
+import { createTrendAnswers } from '~/lib/trends/trend-answers';
 import { answerTrendRequest } from '~/lib/trends/trends.routes';
 import { openTestDb, truncateAll } from '../test-database';
 import { addSamples, makeCrewWithRoles } from './decision-fixtures';
@@ -180,7 +181,7 @@ describe('GET /api/trends/[machineId]', () => {
     expect((await compactOf(changed)).series[0]!.value[11]).toBe(99);
   });
 
-  test('an unchanged machine answers 304 after one query, before the answer is built', async () => {
+  test('an unchanged machine answers 304 after one query, before the answer is built; the answer takes one more', async () => {
     const { c, machine } = await machineWithHistory(20);
     const locals = localsOf(c.rider.id, c.crew.id);
     const first = await answerTrendRequest(db, { request: request(machine.id), machineId: machine.id, locals });
@@ -203,18 +204,100 @@ describe('GET /api/trends/[machineId]', () => {
     expect(again.headers.get('etag')).toBe(etag);
     expect(sent).toHaveLength(1);
     sent.length = 0;
-    const fresh = await answerTrendRequest(counted, { request: request(machine.id), machineId: machine.id, locals });
-    expect(fresh.status).toBe(200);
-    expect(fresh.headers.get('etag')).toBe(etag);
-    // The fingerprint, then the chart's own queries (machine, samples, oil changes, readings, findings, bands).
-    expect(sent.length).toBeGreaterThan(4);
+    // With nothing kept, the fingerprint and then the chart's data in one snapshot.
+    const built = await answerTrendRequest(
+      counted,
+      { request: request(machine.id), machineId: machine.id, locals },
+      createTrendAnswers(),
+    );
+    expect(built.status).toBe(200);
+    expect(built.headers.get('etag')).toBe(etag);
+    expect(sent).toHaveLength(2);
+    expect(await compactOf(built)).toEqual(await compactOf(first));
+  });
+
+  test('an answer already built for its tag is sent again after the fingerprint alone, the same bytes, gzipped or not', async () => {
+    const { c, machine } = await machineWithHistory(30);
+    const locals = localsOf(c.rider.id, c.crew.id);
+    const answers = createTrendAnswers();
+    const gz = { 'accept-encoding': 'gzip' };
+    const first = await answerTrendRequest(
+      db,
+      { request: request(machine.id, gz), machineId: machine.id, locals },
+      answers,
+    );
+    const firstBytes = new Uint8Array(await first.arrayBuffer());
+    expect(first.headers.get('content-encoding')).toBe('gzip');
+    expect(answers.bytes).toBeGreaterThan(firstBytes.byteLength);
+    const sent: string[] = [];
+    const counted = db.withPlugin({
+      transformQuery: (args) => {
+        sent.push(args.node.kind);
+        return args.node;
+      },
+      transformResult: async (args) => args.result,
+    });
+    for (let i = 0; i < 2; i++) {
+      const again = await answerTrendRequest(
+        counted,
+        { request: request(machine.id, gz), machineId: machine.id, locals },
+        answers,
+      );
+      expect(again.status).toBe(200);
+      expect(again.headers.get('etag')).toBe(first.headers.get('etag'));
+      // The kept gzip is sent whole each time (the response copies it, the store's copy stays intact).
+      expect(new Uint8Array(await again.arrayBuffer())).toEqual(firstBytes);
+    }
+    expect(sent).toHaveLength(2);
+    const plain = await answerTrendRequest(
+      counted,
+      { request: request(machine.id), machineId: machine.id, locals },
+      answers,
+    );
+    expect(plain.headers.get('content-encoding')).toBeNull();
+    expect(JSON.parse(await plain.text())).toEqual(JSON.parse(gunzipSync(firstBytes).toString('utf8')));
+    expect(sent).toHaveLength(3);
+  });
+
+  test('a change to an element the chart does not show keeps the tag: the answer is the same', async () => {
+    const { c, machine, ids } = await machineWithHistory(8);
+    const locals = localsOf(c.rider.id, c.crew.id);
+    const first = await answerTrendRequest(db, { request: request(machine.id), machineId: machine.id, locals });
+    const etag = first.headers.get('etag')!;
+    await db.insertInto('readings').values({ sample_id: ids[3]!, measurand: 'Cu', value: 4 }).execute();
+    const same = await answerTrendRequest(db, {
+      request: request(machine.id, { 'if-none-match': etag }),
+      machineId: machine.id,
+      locals,
+    });
+    expect(same.status).toBe(304);
+    // Asked for copper too, the chart is another answer with another tag.
+    const withCu = await answerTrendRequest(db, {
+      request: request(machine.id, { 'if-none-match': etag }, 'measurands=Fe,Al,Si,Cu&basis=ppm&x=odometer'),
+      machineId: machine.id,
+      locals,
+    });
+    expect(withCu.status).toBe(200);
+    const cu = (await compactOf(withCu)).series.find((s) => s.code === 'Cu');
+    expect(cu?.value.filter((v) => v !== null)).toEqual([4]);
   });
 
   test.each([
     [
-      'a new reading',
+      'a reading removed',
       async (ids: string[]): Promise<void> => {
-        await db.insertInto('readings').values({ sample_id: ids[3]!, measurand: 'Cu', value: 4 }).execute();
+        await db.deleteFrom('readings').where('sample_id', '=', ids[3]!).where('measurand', '=', 'Si').execute();
+      },
+    ],
+    [
+      'a reading qualified',
+      async (ids: string[]): Promise<void> => {
+        await db
+          .updateTable('readings')
+          .set({ qualifier: '<' })
+          .where('sample_id', '=', ids[5]!)
+          .where('measurand', '=', 'Al')
+          .execute();
       },
     ],
     [
@@ -233,6 +316,16 @@ describe('GET /api/trends/[machineId]', () => {
       'a sample reviewed',
       async (ids: string[]): Promise<void> => {
         await db.updateTable('samples').set({ state: 'reviewed' }).where('id', '=', ids[2]!).execute();
+      },
+    ],
+    [
+      'a sample kept out of the baseline',
+      async (ids: string[]): Promise<void> => {
+        await db
+          .updateTable('samples')
+          .set({ in_baseline: false, baseline_note: 'Drawn after a top-up' })
+          .where('id', '=', ids[2]!)
+          .execute();
       },
     ],
   ] as const)('%s gives a new tag and a 200 with the data', async (_, change) => {
