@@ -1,7 +1,9 @@
 /** Queries behind the wear chart: one machine's samples with results, their readings and stored findings. */
 import { sql, type Kysely } from 'kysely';
-import type { MeasurandCode } from '../analysis';
-import type { Database, Level, MachineRow } from '../db/database';
+import { isMeasurandCode, type MeasurandCode } from '../analysis';
+import { BAND_FIGURE_COLUMNS, type Database, type Level, type MachineRow } from '../db/database';
+import { levelRank } from '../levels';
+import type { TrendOilChangeRow, TrendSampleRow } from './trends';
 import { isUuid } from '~/lib/ids';
 
 /** A machine of the crew, or undefined (another crew's machine is "not found", never forbidden). */
@@ -19,58 +21,111 @@ export async function findCrewMachine(
     .executeTakeFirst();
 }
 
-/**
- * Everything the wear chart is drawn from for one machine of the crew and these measurands, built by PostgreSQL
- * in one query as compact JSON text (see trend-snapshot.ts for its layout): the machine, its samples with results
- * oldest first, their readings, worst finding levels and stored bands for the measurands, and its oil changes.
- * One round trip instead of six and no per-row decoding in the driver. Undefined when the machine is not the crew's
- * (another crew's machine is "not found", never forbidden).
- */
-export async function findTrendSnapshot(
+/** Samples with results (results in or reviewed), oldest first, with the requested readings and finding levels. */
+export async function listTrendSamples(
   db: Kysely<Database>,
-  crewId: string,
-  machineId: string,
+  machine: { id: string; oil_capacity_l: number | null },
   measurands: readonly MeasurandCode[],
-): Promise<string | undefined> {
-  if (!isUuid(machineId)) return undefined;
-  const codes = sql`${[...measurands]}::text[]`;
-  // The child rows are found by the machine's sample ids as one array built in the query, so each lookup goes
-  // through the child table's primary key. The cast to text leaves the parsing to trend-snapshot.ts.
-  const result = await sql<{ snapshot: string }>`
-    with machine as (
-      select id, name, meter, oil_capacity_l from machines where id = ${machineId} and crew_id = ${crewId}
-    ), chart_samples as (
-      select s.id, s.bottle_code, s.drawn_on, s.odometer, s.distance_on_oil, s.sae_grade, s.top_up_l,
-             s.in_baseline, s.baseline_note, s.break_in, oc.volume_l
-      from samples s left join oil_changes oc on oc.id = s.oil_change_id
-      where s.machine_id = (select id from machine) and s.state in ('results_in', 'reviewed')
-    )
-    select json_build_array(
-      json_build_array(m.id, m.name, m.meter, m.oil_capacity_l),
-      (select coalesce(json_agg(json_build_array(s.id, s.bottle_code, s.drawn_on, s.odometer, s.distance_on_oil,
-                 s.sae_grade, s.top_up_l, s.in_baseline, s.baseline_note, s.break_in, s.volume_l)
-                 order by s.drawn_on, s.odometer, s.id), '[]')
-       from chart_samples s),
-      (select coalesce(json_agg(json_build_array(r.sample_id, r.measurand, r.value, r.qualifier)
-                 order by r.sample_id, r.measurand), '[]')
-       from readings r
-       where r.sample_id = any(array(select id from chart_samples)) and r.measurand = any(${codes})),
-      (select coalesce(json_agg(json_build_array(f.sample_id, f.measurand, f.level)
-                 order by f.sample_id, f.measurand, f.level), '[]')
-       from findings f
-       where f.sample_id = any(array(select id from chart_samples)) and f.measurand = any(${codes})),
-      (select coalesce(json_agg(json_build_array(b.sample_id, b.measurand, b.basis, b.n, b.mean, b.lower_edge,
-                 b.watch_above, b.act_from, b.to_reported, b.source, b.source_label)
-                 order by b.sample_id, b.measurand), '[]')
-       from baseline_bands b
-       where b.sample_id = any(array(select id from chart_samples)) and b.measurand = any(${codes})),
-      (select coalesce(json_agg(json_build_array(o.changed_on, o.odometer, o.sae_grade)
-                 order by o.odometer, o.changed_on, o.id), '[]')
-       from oil_changes o where o.machine_id = m.id)
-    )::text as snapshot
-    from machine m
-  `.execute(db);
-  return result.rows[0]?.snapshot;
+): Promise<TrendSampleRow[]> {
+  const samples = await db
+    .selectFrom('samples')
+    .leftJoin('oil_changes', 'oil_changes.id', 'samples.oil_change_id')
+    .select([
+      'samples.id',
+      'samples.bottle_code',
+      'samples.drawn_on',
+      'samples.odometer',
+      'samples.distance_on_oil',
+      'samples.sae_grade',
+      'samples.top_up_l',
+      'samples.in_baseline',
+      'samples.baseline_note',
+      'samples.break_in',
+      'oil_changes.volume_l',
+    ])
+    .where('samples.machine_id', '=', machine.id)
+    .where('samples.state', 'in', ['results_in', 'reviewed'])
+    .orderBy('samples.drawn_on')
+    .orderBy('samples.odometer')
+    .execute();
+  if (samples.length === 0) return [];
+  // The child rows are found by the machine's sample ids as one array built in the query, not as a list of 200
+  // parameters from here: nothing per sample to send or plan, and each lookup still goes through the child
+  // table's primary key (a join may choose to scan the whole readings table while it is small).
+  const ofSamples = sql<boolean>`sample_id = any(array(
+    select id from samples where machine_id = ${machine.id} and state in ('results_in', 'reviewed')))`;
+  const [readings, findings, bands] = await Promise.all([
+    db
+      .selectFrom('readings')
+      .select(['sample_id', 'measurand', 'value', 'qualifier'])
+      .where(ofSamples)
+      .where('measurand', 'in', [...measurands])
+      .execute(),
+    db
+      .selectFrom('findings')
+      .select(['sample_id', 'measurand', 'level'])
+      .where(ofSamples)
+      .where('measurand', 'in', [...measurands])
+      .execute(),
+    db
+      .selectFrom('baseline_bands')
+      .select(['sample_id', ...BAND_FIGURE_COLUMNS])
+      .where(ofSamples)
+      .where('measurand', 'in', [...measurands])
+      .execute(),
+  ]);
+  const byId = new Map<string, TrendSampleRow>();
+  for (const s of samples) {
+    byId.set(s.id, {
+      id: s.id,
+      bottleCode: s.bottle_code,
+      drawnOn: s.drawn_on,
+      odometerStored: Number(s.odometer),
+      distanceOnOilStored: s.distance_on_oil === null ? null : Number(s.distance_on_oil),
+      grade: s.sae_grade,
+      topUpL: Number(s.top_up_l),
+      oilVolumeL:
+        s.volume_l !== null
+          ? Number(s.volume_l)
+          : machine.oil_capacity_l !== null
+            ? Number(machine.oil_capacity_l)
+            : null,
+      inBaseline: s.in_baseline,
+      baselineNote: s.in_baseline
+        ? null
+        : s.baseline_note || (s.break_in ? 'Break-in oil.' : 'Kept out of the baseline.'),
+      readings: {},
+      bands: {},
+      levels: {},
+    });
+  }
+  for (const r of readings) {
+    const row = byId.get(r.sample_id);
+    if (row && isMeasurandCode(r.measurand))
+      row.readings[r.measurand] = { value: Number(r.value), qualifier: r.qualifier };
+  }
+  for (const b of bands) {
+    const row = byId.get(b.sample_id);
+    if (!row || !isMeasurandCode(b.measurand)) continue;
+    row.bands[b.measurand] = {
+      basis: b.basis,
+      n: b.n,
+      mean: Number(b.mean),
+      lower: Number(b.lower_edge),
+      watchAbove: Number(b.watch_above),
+      actFrom: Number(b.act_from),
+      toReported: Number(b.to_reported),
+      source: b.source,
+      sourceLabel: b.source_label,
+    };
+  }
+  for (const f of findings) {
+    const row = byId.get(f.sample_id);
+    if (!row || f.measurand === null || !isMeasurandCode(f.measurand)) continue;
+    const prev: Level = row.levels[f.measurand] ?? 'steady';
+    if (levelRank(f.level) > levelRank(prev)) row.levels[f.measurand] = f.level;
+  }
+  return [...byId.values()];
 }
 
 /** The stored findings of the machine's latest sample with results (none when it has no results yet). */
@@ -97,6 +152,17 @@ export async function listLatestSampleFindings(
     .where('sample_id', '=', latest.id)
     .execute();
   return rows.map((r) => ({ measurand: r.measurand, level: r.level, ruleId: r.rule_id, numbers: r.numbers ?? {} }));
+}
+
+/** The machine's oil changes with the grade poured, for grade-change marks. */
+export async function listTrendOilChanges(db: Kysely<Database>, machineId: string): Promise<TrendOilChangeRow[]> {
+  const rows = await db
+    .selectFrom('oil_changes')
+    .select(['changed_on', 'odometer', 'sae_grade'])
+    .where('machine_id', '=', machineId)
+    .orderBy('odometer')
+    .execute();
+  return rows.map((r) => ({ changedOn: r.changed_on, odometerStored: Number(r.odometer), grade: r.sae_grade }));
 }
 
 /**

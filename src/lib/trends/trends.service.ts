@@ -2,27 +2,22 @@
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
 import { entityTagFromParts } from '../http/conditional-json';
-import { parseTrendSnapshot } from './trend-snapshot';
-import { findTrendDataFingerprint, findTrendSnapshot } from './trends.repository';
+import { findCrewMachine, findTrendDataFingerprint, listTrendOilChanges, listTrendSamples } from './trends.repository';
 import { findGradeChanges, shapeTrendSeries, type TrendQuery, type TrendResponse } from './trends';
 
-/**
- * Trend series of a crew's machine, read in one round trip (findTrendSnapshot) and shaped, or null when the machine
- * is not the crew's (the route answers 404).
- */
+/** Trend series of a crew's machine, or null when the machine is not the crew's (the route answers 404). */
 export async function loadMachineTrends(
   db: Kysely<Database>,
   crewId: string,
   machineId: string,
   query: TrendQuery,
 ): Promise<TrendResponse | null> {
-  const text = await findTrendSnapshot(db, crewId, machineId, query.measurands);
-  return text === undefined ? null : shapeTrendAnswer(text, query);
-}
-
-/** The answer from a snapshot's text: series shaped by trends.ts, grade changes, and the notes a rate chart needs. */
-function shapeTrendAnswer(text: string, query: TrendQuery): TrendResponse {
-  const { machine, samples, changes } = parseTrendSnapshot(text);
+  const machine = await findCrewMachine(db, crewId, machineId);
+  if (!machine) return null;
+  const [samples, changes] = await Promise.all([
+    listTrendSamples(db, machine, query.measurands),
+    listTrendOilChanges(db, machine.id),
+  ]);
   const series = shapeTrendSeries({ meter: machine.meter, samples, measurands: query.measurands, basis: query.basis });
   const notes: string[] = [];
   if (query.basis === 'rate') {

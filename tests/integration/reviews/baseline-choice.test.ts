@@ -4,8 +4,7 @@ import { ENGINE_VERSION } from '~/lib/analysis';
 import { recomputeMachineFindings, recomputeStaleMachines } from '~/lib/findings/findings.service';
 import { baselineChoiceSchema } from '~/lib/reviews/reviews';
 import { changeSampleBaseline, loadBaselineStatus } from '~/lib/reviews/reviews.service';
-import { findTrendSnapshot } from '~/lib/trends/trends.repository';
-import { parseTrendSnapshot } from '~/lib/trends/trend-snapshot';
+import { listTrendSamples } from '~/lib/trends/trends.repository';
 import { openTestDb, truncateAll } from '../test-database';
 import { addSamples, makeCrewWithRoles } from '../trends/decision-fixtures';
 
@@ -103,7 +102,7 @@ describe('a lead or mechanic takes a sample out of the baseline, or puts it back
       breakIn: true,
     });
     // The wear chart sees the exclusion and its reason.
-    const { samples: rows } = parseTrendSnapshot((await findTrendSnapshot(db, c.crew.id, machine.id, ['Fe']))!);
+    const rows = await listTrendSamples(db, { id: machine.id, oil_capacity_l: null }, ['Fe']);
     expect(rows.find((x) => x.id === suspect)).toMatchObject({
       inBaseline: false,
       baselineNote: 'Drawn from the drain plug after a top-up',
