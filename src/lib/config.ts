@@ -53,6 +53,9 @@ export const configSchema = z
     // purpose: processes × pool must stay under the server's max_connections with room for the worker, the relay
     // and maintenance (see the README).
     DATABASE_POOL_SIZE: z.coerce.number().int().min(1).max(100).default(8),
+    // Megabytes of built wear-chart answers each app process keeps for reuse (src/lib/trends/trend-answers.ts);
+    // 0 keeps none and builds every answer.
+    CHART_CACHE_MB: z.coerce.number().int().min(0).max(1024).default(16),
     // Connections of the one job worker's own pool (pg-boss keeps 4 more of its own, and one per listener).
     WORKER_POOL_SIZE: z.coerce.number().int().min(1).max(100).default(5),
     // Where photos are kept: 's3' (any S3 API; the default, served locally by a fake on loopback) or 'disk'

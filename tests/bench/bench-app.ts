@@ -5,7 +5,7 @@ import { randomBytes, randomUUID } from 'node:crypto';
 import type { Kysely } from 'kysely';
 import { createDb } from '~/lib/db/db';
 import type { Database } from '~/lib/db/database';
-import { startApp } from '../e2e/helpers/server';
+import { startApp, type RunningApp } from '../e2e/helpers/server';
 // mulberry32: the same invented history on every run.
 import { makeRandom } from '../unit/analysis/simulated-machines';
 import { TYPICAL_USED_OIL } from './typical-oil';
@@ -13,6 +13,8 @@ import { TYPICAL_USED_OIL } from './typical-oil';
 export interface BenchApp {
   baseUrl: string;
   db: Kysely<Database>;
+  /** One more app server over the same database with other settings (absent when measuring an app already running). */
+  startAnotherServer?: RunningApp['startAnotherServer'];
   stop(): Promise<void>;
 }
 
@@ -27,6 +29,7 @@ export async function openBenchApp(dbName: string): Promise<BenchApp> {
   return {
     baseUrl: app.baseUrl,
     db,
+    startAnotherServer: app.startAnotherServer,
     async stop() {
       await db.destroy();
       await app.stop();

@@ -29,6 +29,9 @@ describe('readConfig', () => {
     [{ DATABASE_POOL_SIZE: '0' }, /DATABASE_POOL_SIZE/],
     [{ DATABASE_POOL_SIZE: '1.5' }, /DATABASE_POOL_SIZE/],
     [{ WORKER_POOL_SIZE: '-1' }, /WORKER_POOL_SIZE/],
+    [{ CHART_CACHE_MB: '-1' }, /CHART_CACHE_MB/],
+    [{ CHART_CACHE_MB: '2048' }, /CHART_CACHE_MB/],
+    [{ CHART_CACHE_MB: 'lots' }, /CHART_CACHE_MB/],
     [{ PHOTO_STORE: 'ftp' }, /PHOTO_STORE/],
     [{ S3_ENDPOINT: 'ftp://127.0.0.1:21' }, /S3_ENDPOINT/],
     [{ S3_BUCKET: 'Photos_Bucket' }, /S3_BUCKET must be an S3 bucket name/],
@@ -54,6 +57,7 @@ describe('readConfig', () => {
     const c = readConfig({});
     expect(c.APP_PROCESSES).toBe(Math.min(64, os.availableParallelism()));
     expect([c.DATABASE_POOL_SIZE, c.WORKER_POOL_SIZE]).toEqual([8, 5]);
+    expect(c.CHART_CACHE_MB).toBe(16);
     expect(c.PHOTO_STORE).toBe('s3');
     expect(c.S3_ENDPOINT).toBe('http://127.0.0.1:4568');
     expect(c.S3_FORCE_PATH_STYLE).toBe(true);
@@ -64,6 +68,7 @@ describe('readConfig', () => {
       { APP_PROCESSES: '3', DATABASE_POOL_SIZE: '12' },
       { APP_PROCESSES: 3, DATABASE_POOL_SIZE: 12 },
     ],
+    [{ CHART_CACHE_MB: '0' }, { CHART_CACHE_MB: 0 }],
     [
       { PHOTO_STORE: 'disk', UPLOAD_DIR: '/srv/photos' },
       { PHOTO_STORE: 'disk', UPLOAD_DIR: '/srv/photos' },

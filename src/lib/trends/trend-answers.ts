@@ -10,14 +10,15 @@
  * else. Bounded by bytes, least recently used out first.
  */
 import { LRUCache } from 'lru-cache';
+import { getConfig } from '../config';
 import { preparedJsonBytes, type PreparedJson } from '../http/conditional-json';
 
 /**
- * Bytes of answers one process keeps, counting text as two bytes a character: about 170 charts of 200 samples ×
- * 3 elements with their gzip, and many more of the usual smaller ones. Sized here against the app's memory,
- * not taken from a source.
+ * The default store: 16 MB a process (CHART_CACHE_MB), counting text as two bytes a character, holds about 170 charts
+ * of 200 samples × 3 elements with their gzip and many more of the usual smaller ones. Sized against the app's
+ * memory, not taken from a source.
  */
-export const TREND_ANSWER_CACHE_BYTES = 16 * 1024 * 1024;
+const MEGABYTE = 1024 * 1024;
 
 export interface TrendAnswers {
   get(etag: string): PreparedJson | undefined;
@@ -26,8 +27,9 @@ export interface TrendAnswers {
   readonly bytes: number;
 }
 
-/** An answer store of at most `maxBytes`. */
-export function createTrendAnswers(maxBytes = TREND_ANSWER_CACHE_BYTES): TrendAnswers {
+/** An answer store of at most `maxBytes`; with 0 it keeps nothing. */
+export function createTrendAnswers(maxBytes = 16 * MEGABYTE): TrendAnswers {
+  if (maxBytes <= 0) return { get: () => undefined, keep: () => undefined, bytes: 0 };
   const cache = new LRUCache<string, PreparedJson>({
     maxSize: maxBytes,
     // Measured on each `keep`: the route keeps an answer again after sending it, so a gzip made on the way counts.
@@ -50,8 +52,8 @@ export function createTrendAnswers(maxBytes = TREND_ANSWER_CACHE_BYTES): TrendAn
 
 let shared: TrendAnswers | undefined;
 
-/** This process's store of wear chart answers. */
+/** This process's store of wear chart answers, of CHART_CACHE_MB. */
 export function getTrendAnswers(): TrendAnswers {
-  shared ??= createTrendAnswers();
+  shared ??= createTrendAnswers(getConfig().CHART_CACHE_MB * MEGABYTE);
   return shared;
 }

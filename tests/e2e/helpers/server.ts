@@ -14,10 +14,14 @@ export interface RunningApp {
   databaseUrl: string;
   smtpPort: number;
   env: NodeJS.ProcessEnv;
-  /** Starts one more app server (its own supervisor) on `port` over the same database, object store and worker. */
+  /**
+   * Starts one more app server (its own supervisor) on `port` over the same database, object store and worker, with
+   * `settings` over the first one's environment.
+   */
   startAnotherServer(
     port: number,
     appProcesses?: number,
+    settings?: Record<string, string>,
   ): Promise<{ baseUrl: string; pid: number; stop(): Promise<void> }>;
   stop(): Promise<void>;
   /** Kills and restarts only the app server (for fault tests). */
@@ -79,12 +83,12 @@ export async function startApp(
     databaseUrl,
     smtpPort,
     env,
-    async startAnotherServer(otherPort, appProcesses = 1) {
+    async startAnotherServer(otherPort, appProcesses = 1, settings = {}) {
       const other = startService(
         'app',
         node,
         SERVE_ARGS,
-        { ...env, PORT: String(otherPort), APP_PROCESSES: String(appProcesses) },
+        { ...env, ...settings, PORT: String(otherPort), APP_PROCESSES: String(appProcesses) },
         true,
       );
       const otherUrl = `http://127.0.0.1:${otherPort}`;

@@ -28,6 +28,13 @@ describe('createTrendAnswers', () => {
     for (const t of ['a', 'c', 'd', 'e']) expect(answers.get(`W/"${t}"`)).toBeDefined();
   });
 
+  test('a store of 0 bytes (CHART_CACHE_MB=0) keeps nothing', () => {
+    const answers = createTrendAnswers(0);
+    answers.keep(answerOf('a', 10));
+    expect(answers.get('W/"a"')).toBeUndefined();
+    expect(answers.bytes).toBe(0);
+  });
+
   test('an answer bigger than the whole store is not kept', () => {
     const answers = createTrendAnswers(1000);
     answers.keep(answerOf('big', 5000));
