@@ -31,20 +31,9 @@ interface DatabaseSessionAttributes {
   current_crew_id: string | null;
 }
 
-interface SessionAndUserRow {
-  id: string;
-  user_id: string;
-  expires_at: Date;
-  current_crew_id: string | null;
-  email: string;
-  display_name: string;
-  email_verified_at: Date | null;
-  distance_unit: 'mi' | 'km';
-  length_unit: 'in' | 'mm';
-  temperature_unit: 'F' | 'C';
-  time_zone: string | null;
-  crews: CrewMembership[];
-}
+/** One row of OneQuerySessionAdapter's query: the session's columns, then its user's and their crews. */
+type SessionAndUserRow = { id: string; user_id: string; expires_at: Date } & DatabaseSessionAttributes &
+  DatabaseUserAttributes;
 
 /**
  * Lucia's PostgreSQL adapter, with the session, its user and the user's crews read in one query. The stock adapter

@@ -99,6 +99,19 @@ async function machineWithHistory(count: number) {
   return { c, machine, ids };
 }
 
+/** The test database with every query the route sends recorded (by kind) as it goes. */
+function countingQueries(): { counted: typeof db; sent: string[] } {
+  const sent: string[] = [];
+  const counted = db.withPlugin({
+    transformQuery: (args) => {
+      sent.push(args.node.kind);
+      return args.node;
+    },
+    transformResult: async (args) => args.result,
+  });
+  return { counted, sent };
+}
+
 async function compactOf(res: Response): Promise<CompactTrendResponse> {
   const bytes = new Uint8Array(await res.arrayBuffer());
   const text =
@@ -186,15 +199,8 @@ describe('GET /api/trends/[machineId]', () => {
     const locals = localsOf(c.rider.id, c.crew.id);
     const first = await answerTrendRequest(db, { request: request(machine.id), machineId: machine.id, locals });
     const etag = first.headers.get('etag')!;
-    // Every query the route sends goes through this plugin: the 304 path sends the fingerprint query only.
-    const sent: string[] = [];
-    const counted = db.withPlugin({
-      transformQuery: (args) => {
-        sent.push(args.node.kind);
-        return args.node;
-      },
-      transformResult: async (args) => args.result,
-    });
+    // The 304 path sends the fingerprint query only.
+    const { counted, sent } = countingQueries();
     const again = await answerTrendRequest(counted, {
       request: request(machine.id, { 'if-none-match': etag }),
       machineId: machine.id,
@@ -230,14 +236,7 @@ describe('GET /api/trends/[machineId]', () => {
     const firstBytes = new Uint8Array(await first.arrayBuffer());
     expect(first.headers.get('content-encoding')).toBe('gzip');
     expect(answers.bytes).toBeGreaterThan(firstBytes.byteLength);
-    const sent: string[] = [];
-    const counted = db.withPlugin({
-      transformQuery: (args) => {
-        sent.push(args.node.kind);
-        return args.node;
-      },
-      transformResult: async (args) => args.result,
-    });
+    const { counted, sent } = countingQueries();
     for (let i = 0; i < 2; i++) {
       const again = await answerTrendRequest(
         counted,
