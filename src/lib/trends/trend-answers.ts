@@ -13,12 +13,14 @@ import { LRUCache } from 'lru-cache';
 import { getConfig } from '../config';
 import { preparedJsonBytes, type PreparedJson } from '../http/conditional-json';
 
-/**
- * The default store: 16 MB a process (CHART_CACHE_MB), counting text as two bytes a character, holds about 170 charts
- * of 200 samples × 3 elements with their gzip and many more of the usual smaller ones. Sized against the app's
- * memory, not taken from a source.
- */
 const MEGABYTE = 1024 * 1024;
+
+/**
+ * CHART_CACHE_MB's default: 16 MB a process, counting text as two bytes a character, holds about 170 charts of 200
+ * samples × 3 elements with their gzip and many more of the usual smaller ones. Sized against the app's memory, not
+ * taken from a source.
+ */
+const DEFAULT_BYTES = 16 * MEGABYTE;
 
 export interface TrendAnswers {
   get(etag: string): PreparedJson | undefined;
@@ -28,7 +30,7 @@ export interface TrendAnswers {
 }
 
 /** An answer store of at most `maxBytes`; with 0 it keeps nothing. */
-export function createTrendAnswers(maxBytes = 16 * MEGABYTE): TrendAnswers {
+export function createTrendAnswers(maxBytes = DEFAULT_BYTES): TrendAnswers {
   if (maxBytes <= 0) return { get: () => undefined, keep: () => undefined, bytes: 0 };
   const cache = new LRUCache<string, PreparedJson>({
     maxSize: maxBytes,
