@@ -26,7 +26,7 @@ import {
   type RecognisedHeader,
 } from './column-recognition';
 import { isFormulaLikeCell } from './csv-cell';
-import { arrayGrid, readCsvGrid, type CsvGrid, type CsvSplitter } from './csv-grid';
+import { arrayGrid, readCsvGrid, type CsvGrid, type CsvSplitter, type RowView } from './csv-grid';
 import { isBareNotDetected, parsePlainNumber, plainKeyValue, plainNumberKey, readIsoDay } from './plain-cells';
 import {
   DAY_FIRST_LANGUAGES,
@@ -861,11 +861,21 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
   }
 
   const rows: LabCsvRow[] = [];
-  const readings = new PlainReadings(decimalMark);
-  const bottleLines = new Map<string, number>();
-  const pendingDates = new Map<number, PendingDate[]>();
-  const width = headerCells.length;
-  const dateColumns = [sampledColumn, reportedColumn].filter((c) => c !== undefined);
+  const rowReading: RowReading = {
+    width: headerCells.length,
+    columns,
+    bottleColumn,
+    dateColumns: [sampledColumn, reportedColumn].filter((c) => c !== undefined),
+    measurands,
+    otherColumns,
+    decimalMark,
+    issues,
+    readings: new PlainReadings(decimalMark),
+    bottleLines: new Map<string, number>(),
+    pendingDates: new Map<number, PendingDate[]>(),
+    found: measurands.map(() => undefined),
+    template: readingsTemplate(measurands),
+  };
 
   for (let r = firstDataRow; r < grid.length; r += 1) {
     if (furniture) {
@@ -876,194 +886,9 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     // The row's cells as ranges of the text: a plain number is read where it lies, never copied out.
     const cells = grid.view(r);
     if (!cells) continue;
-    const line = grid.lineOf(r);
     if (brokenRows.has(r)) continue;
-    let cellCount = cells.length;
-    if (cellCount > width) {
-      let trailingBlank = true;
-      for (let i = width; i < cellCount && trailingBlank; i += 1) trailingBlank = !cells.isFilled(i);
-      if (trailingBlank) cellCount = width;
-    }
-    if (cellCount !== width) {
-      issues.push({
-        severity: 'error',
-        code: 'ragged-row',
-        row: line,
-        column: cellCount > width ? (columns[width - 1]?.header ?? null) : (columns[cellCount]?.header ?? null),
-        message: `Line ${line} has ${cellCount} cells but the header has ${width}, so its values cannot be matched to columns (from column "${(cellCount > width ? columns[width - 1] : columns[cellCount])?.header ?? '?'}" on). In a comma file, a decimal comma such as 12,5 splits a cell in two.`,
-      });
-      continue;
-    }
-
-    const bottleRaw = cells.cell(bottleColumn.index).trim();
-    if (bottleRaw === '') {
-      issues.push({
-        severity: 'error',
-        code: 'missing-bottle-code',
-        row: line,
-        column: bottleColumn.header,
-        message: `${where(line, bottleColumn.header)}: the bottle code is blank, so this row cannot be matched to a sample.`,
-      });
-      continue;
-    }
-    if (isFormulaLikeCell(bottleRaw)) {
-      issues.push({
-        severity: 'error',
-        code: 'formula-like-cell',
-        row: line,
-        column: bottleColumn.header,
-        message: problemMessage('formula-like-cell', bottleRaw, line, bottleColumn.header, decimalMark).replace(
-          'the lab should send a number here',
-          'a bottle code never starts like this',
-        ),
-      });
-      continue;
-    }
-    if (bottleRaw.length > MAX_BOTTLE_CODE_LENGTH) {
-      issues.push({
-        severity: 'error',
-        code: 'bottle-code-too-long',
-        row: line,
-        column: bottleColumn.header,
-        message: `${where(line, bottleColumn.header)}: the bottle code is ${bottleRaw.length} characters long; codes up to ${MAX_BOTTLE_CODE_LENGTH} are accepted.`,
-      });
-      continue;
-    }
-    const issuesBeforeRow = issues.length;
-    const normalised = normaliseBottleCode(bottleRaw);
-    const row: LabCsvRow = { line, bottle: { raw: bottleRaw, normalised }, readings: {}, other: {} };
-    const earlierLine = bottleLines.get(normalised);
-    if (earlierLine !== undefined) {
-      issues.push({
-        severity: 'error',
-        code: 'duplicate-bottle-code',
-        row: line,
-        column: bottleColumn.header,
-        message: `${where(line, bottleColumn.header)}: bottle code ${quoteCell(bottleRaw)} was already used on line ${earlierLine}. One bottle gets one result; remove the repeated row or correct its code.`,
-      });
-    } else {
-      bottleLines.set(normalised, line);
-    }
-
-    for (const dateColumn of dateColumns) {
-      const field = dateColumn.kind === 'sampled' ? 'sampled' : 'reported';
-      const raw = cells.cell(dateColumn.index);
-      const isoDay = readIsoDay(raw);
-      if (isoDay !== null) {
-        row[field] = isoDay;
-        continue;
-      }
-      const parsedDate = readDateCell(raw);
-      if (parsedDate.kind === 'exact') row[field] = formatIsoDate(parsedDate.year, parsedDate.month, parsedDate.day);
-      else if (parsedDate.kind === 'numeric') {
-        const list = pendingDates.get(dateColumn.index) ?? [];
-        list.push({ row, field, cell: parsedDate, raw: raw.trim() });
-        pendingDates.set(dateColumn.index, list);
-      } else if (parsedDate.kind === 'problem') {
-        issues.push({
-          severity: 'error',
-          code: parsedDate.problem,
-          row: line,
-          column: dateColumn.header,
-          message:
-            parsedDate.problem === 'formula-like-cell'
-              ? problemMessage('formula-like-cell', parsedDate.detail, line, dateColumn.header, decimalMark).replace(
-                  'the lab should send a number here',
-                  'a date is expected here',
-                )
-              : `${where(line, dateColumn.header)}: ${quoteCell(parsedDate.detail)} is not a date that exists. Write it as yyyy-mm-dd, for example 2026-04-03.`,
-        });
-      }
-    }
-
-    let readingCount = 0;
-    for (const plan of measurands) {
-      if (plan.fast) {
-        // Plain numbers, "<1"/">1000" and a bare "ND" are read here without a regex, one shared reading per value;
-        // anything else, or a value out of bounds (for its message), goes through the full reader below.
-        const i = plan.index;
-        const reading = readings.get(cells.source(i), cells.start(i), cells.end(i));
-        if (reading !== undefined && reading.value <= plan.bounds.max) {
-          plan.set(row.readings, reading);
-          readingCount += 1;
-          continue;
-        }
-      }
-      const cell = cells.cell(plan.index);
-      const parsedCell = plan.read(cell);
-      if (parsedCell.status === 'missing') continue;
-      if (parsedCell.status === 'problem') {
-        issues.push({
-          severity: 'error',
-          code: parsedCell.problem,
-          row: line,
-          column: plan.header,
-          message: problemMessage(parsedCell.problem, parsedCell.detail, line, plan.header, decimalMark),
-        });
-        continue;
-      }
-      // Bounds apply in the catalogue's unit, after conversion (500 ppm of water is 0.05 %).
-      const value = plan.convert ? plan.convert(parsedCell.value) : parsedCell.value;
-      const bounds = plan.bounds;
-      if (value > bounds.max) {
-        issues.push({
-          severity: 'error',
-          code: 'impossible-value',
-          row: line,
-          column: plan.header,
-          message: `${where(line, plan.header)}: ${quoteCell(cell.trim())} is impossible for ${describeCode(plan.code)}: ${bounds.why}. Check the cell against the lab's report.`,
-        });
-        continue;
-      }
-      const reading: LabReading =
-        parsedCell.qualifier === undefined ? { value } : { value, qualifier: parsedCell.qualifier };
-      plan.set(row.readings, reading);
-      readingCount += 1;
-      if (plan.alsoKv100) {
-        if (parsedCell.belowDetection || parsedCell.value === 0) continue;
-        const kv100 = convertSayboltToKinematic(parsedCell.value, 210);
-        if (kv100 === null) {
-          issues.push({
-            severity: 'error',
-            code: 'out-of-range',
-            row: line,
-            column: plan.header,
-            message: `${where(line, plan.header)}: ${quoteCell(cell.trim())} Saybolt seconds is below the range ASTM D2161 converts (32 SUS and up), so no viscosity at 100 °C can be given for it.`,
-          });
-          continue;
-        }
-        row.readings.KV100 =
-          parsedCell.qualifier === undefined ? { value: kv100 } : { value: kv100, qualifier: parsedCell.qualifier };
-      }
-    }
-
-    for (const column of otherColumns) {
-      const raw = cells.cell(column.index).trim();
-      if (raw === '') continue;
-      row.other[column.header] = raw;
-      if (isFormulaLikeCell(raw)) {
-        issues.push({
-          severity: 'warning',
-          code: 'formula-like-cell',
-          row: line,
-          column: column.header,
-          message: problemMessage('formula-like-cell', raw, line, column.header, decimalMark).replace(
-            '; the lab should send a number here',
-            '',
-          ),
-        });
-      }
-    }
-    if (measurands.length > 0 && readingCount === 0 && issues.length === issuesBeforeRow) {
-      issues.push({
-        severity: 'warning',
-        code: 'no-readings',
-        row: line,
-        column: null,
-        message: `Line ${line} (bottle ${quoteCell(bottleRaw)}) has no readings at all: every measurand cell is blank.`,
-      });
-    }
-    rows.push(row);
+    const row = readDataRow(rowReading, cells, grid.lineOf(r));
+    if (row !== null) rows.push(row);
   }
 
   for (const column of otherColumns) {
@@ -1077,9 +902,278 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
     });
   }
   if (furniture) addFurnitureNotes(furniture.notes());
-  settleDates(pendingDates, columns, options.dateOrder, issues, dayFirstLanguage);
+  settleDates(rowReading.pendingDates, columns, options.dateOrder, issues, dayFirstLanguage);
   if (pivot) rewordPivotIssues(issues, issuesBeforeRows, pivot, headerLine);
   return { ...result(rows, columns, delimiter, decimalMark, headerLine, unitsLine), layout: pivot ? 'long' : 'wide' };
+}
+
+/** What reading one data row needs, made once per file; `found` is scratch space reused row after row. */
+interface RowReading {
+  width: number;
+  columns: readonly LabCsvColumn[];
+  bottleColumn: LabCsvColumn;
+  dateColumns: readonly LabCsvColumn[];
+  measurands: readonly MeasurandPlan[];
+  otherColumns: readonly LabCsvColumn[];
+  decimalMark: DecimalMark;
+  issues: LabCsvIssue[];
+  readings: PlainReadings;
+  /** First line of each bottle code, to tell a repeated code. */
+  bottleLines: Map<string, number>;
+  /** Dates that read either way round, settled by column once every row is read. */
+  pendingDates: Map<number, PendingDate[]>;
+  /** Each row's readings, by plan, before they become the row's object. */
+  found: (LabReading | undefined)[];
+  /** That object's shape when every column of the file holds a reading (see collectReadings). */
+  template: LabReadings | null;
+}
+
+/**
+ * One data row read into a LabCsvRow, or null when it cannot be matched to a sample; its problems go to
+ * `issues`. A function of its own, so that V8 optimises it once for the 10,000 calls of a big file instead of
+ * compiling the whole reader again in the middle of every file's row loop.
+ */
+function readDataRow(reading: RowReading, cells: RowView, line: number): LabCsvRow | null {
+  const {
+    width,
+    columns,
+    bottleColumn,
+    dateColumns,
+    measurands,
+    otherColumns,
+    decimalMark,
+    issues,
+    readings,
+    bottleLines,
+    pendingDates,
+    found,
+    template,
+  } = reading;
+  let cellCount = cells.length;
+  if (cellCount > width) {
+    let trailingBlank = true;
+    for (let i = width; i < cellCount && trailingBlank; i += 1) trailingBlank = !cells.isFilled(i);
+    if (trailingBlank) cellCount = width;
+  }
+  if (cellCount !== width) {
+    issues.push({
+      severity: 'error',
+      code: 'ragged-row',
+      row: line,
+      column: cellCount > width ? (columns[width - 1]?.header ?? null) : (columns[cellCount]?.header ?? null),
+      message: `Line ${line} has ${cellCount} cells but the header has ${width}, so its values cannot be matched to columns (from column "${(cellCount > width ? columns[width - 1] : columns[cellCount])?.header ?? '?'}" on). In a comma file, a decimal comma such as 12,5 splits a cell in two.`,
+    });
+    return null;
+  }
+
+  const bottleRaw = cells.cell(bottleColumn.index).trim();
+  if (bottleRaw === '') {
+    issues.push({
+      severity: 'error',
+      code: 'missing-bottle-code',
+      row: line,
+      column: bottleColumn.header,
+      message: `${where(line, bottleColumn.header)}: the bottle code is blank, so this row cannot be matched to a sample.`,
+    });
+    return null;
+  }
+  if (isFormulaLikeCell(bottleRaw)) {
+    issues.push({
+      severity: 'error',
+      code: 'formula-like-cell',
+      row: line,
+      column: bottleColumn.header,
+      message: problemMessage('formula-like-cell', bottleRaw, line, bottleColumn.header, decimalMark).replace(
+        'the lab should send a number here',
+        'a bottle code never starts like this',
+      ),
+    });
+    return null;
+  }
+  if (bottleRaw.length > MAX_BOTTLE_CODE_LENGTH) {
+    issues.push({
+      severity: 'error',
+      code: 'bottle-code-too-long',
+      row: line,
+      column: bottleColumn.header,
+      message: `${where(line, bottleColumn.header)}: the bottle code is ${bottleRaw.length} characters long; codes up to ${MAX_BOTTLE_CODE_LENGTH} are accepted.`,
+    });
+    return null;
+  }
+  const issuesBeforeRow = issues.length;
+  const normalised = normaliseBottleCode(bottleRaw);
+  const row: LabCsvRow = { line, bottle: { raw: bottleRaw, normalised }, readings: {}, other: {} };
+  const earlierLine = bottleLines.get(normalised);
+  if (earlierLine !== undefined) {
+    issues.push({
+      severity: 'error',
+      code: 'duplicate-bottle-code',
+      row: line,
+      column: bottleColumn.header,
+      message: `${where(line, bottleColumn.header)}: bottle code ${quoteCell(bottleRaw)} was already used on line ${earlierLine}. One bottle gets one result; remove the repeated row or correct its code.`,
+    });
+  } else {
+    bottleLines.set(normalised, line);
+  }
+
+  for (const dateColumn of dateColumns) {
+    const field = dateColumn.kind === 'sampled' ? 'sampled' : 'reported';
+    const raw = cells.cell(dateColumn.index);
+    const isoDay = readIsoDay(raw);
+    if (isoDay !== null) {
+      row[field] = isoDay;
+      continue;
+    }
+    const parsedDate = readDateCell(raw);
+    if (parsedDate.kind === 'exact') row[field] = formatIsoDate(parsedDate.year, parsedDate.month, parsedDate.day);
+    else if (parsedDate.kind === 'numeric') {
+      const list = pendingDates.get(dateColumn.index) ?? [];
+      list.push({ row, field, cell: parsedDate, raw: raw.trim() });
+      pendingDates.set(dateColumn.index, list);
+    } else if (parsedDate.kind === 'problem') {
+      issues.push({
+        severity: 'error',
+        code: parsedDate.problem,
+        row: line,
+        column: dateColumn.header,
+        message:
+          parsedDate.problem === 'formula-like-cell'
+            ? problemMessage('formula-like-cell', parsedDate.detail, line, dateColumn.header, decimalMark).replace(
+                'the lab should send a number here',
+                'a date is expected here',
+              )
+            : `${where(line, dateColumn.header)}: ${quoteCell(parsedDate.detail)} is not a date that exists. Write it as yyyy-mm-dd, for example 2026-04-03.`,
+      });
+    }
+  }
+
+  let readingCount = 0;
+  let kv100FromSaybolt: LabReading | undefined;
+  for (let p = 0; p < measurands.length; p += 1) {
+    const plan = measurands[p]!;
+    found[p] = undefined;
+    if (plan.fast) {
+      // Plain numbers, "<1"/">1000" and a bare "ND" are read here without a regex, one shared reading per value;
+      // anything else, or a value out of bounds (for its message), goes through the full reader below.
+      const i = plan.index;
+      const reading = readings.get(cells.source(i), cells.start(i), cells.end(i));
+      if (reading !== undefined && reading.value <= plan.bounds.max) {
+        found[p] = reading;
+        readingCount += 1;
+        continue;
+      }
+    }
+    const cell = cells.cell(plan.index);
+    const parsedCell = plan.read(cell);
+    if (parsedCell.status === 'missing') continue;
+    if (parsedCell.status === 'problem') {
+      issues.push({
+        severity: 'error',
+        code: parsedCell.problem,
+        row: line,
+        column: plan.header,
+        message: problemMessage(parsedCell.problem, parsedCell.detail, line, plan.header, decimalMark),
+      });
+      continue;
+    }
+    // Bounds apply in the catalogue's unit, after conversion (500 ppm of water is 0.05 %).
+    const value = plan.convert ? plan.convert(parsedCell.value) : parsedCell.value;
+    const bounds = plan.bounds;
+    if (value > bounds.max) {
+      issues.push({
+        severity: 'error',
+        code: 'impossible-value',
+        row: line,
+        column: plan.header,
+        message: `${where(line, plan.header)}: ${quoteCell(cell.trim())} is impossible for ${describeCode(plan.code)}: ${bounds.why}. Check the cell against the lab's report.`,
+      });
+      continue;
+    }
+    const reading: LabReading =
+      parsedCell.qualifier === undefined ? { value } : { value, qualifier: parsedCell.qualifier };
+    found[p] = reading;
+    readingCount += 1;
+    if (plan.alsoKv100) {
+      if (parsedCell.belowDetection || parsedCell.value === 0) continue;
+      const kv100 = convertSayboltToKinematic(parsedCell.value, 210);
+      if (kv100 === null) {
+        issues.push({
+          severity: 'error',
+          code: 'out-of-range',
+          row: line,
+          column: plan.header,
+          message: `${where(line, plan.header)}: ${quoteCell(cell.trim())} Saybolt seconds is below the range ASTM D2161 converts (32 SUS and up), so no viscosity at 100 °C can be given for it.`,
+        });
+        continue;
+      }
+      kv100FromSaybolt =
+        parsedCell.qualifier === undefined ? { value: kv100 } : { value: kv100, qualifier: parsedCell.qualifier };
+    }
+  }
+  row.readings = collectReadings(found, readingCount, measurands, kv100FromSaybolt, template);
+
+  for (const column of otherColumns) {
+    const raw = cells.cell(column.index).trim();
+    if (raw === '') continue;
+    row.other[column.header] = raw;
+    if (isFormulaLikeCell(raw)) {
+      issues.push({
+        severity: 'warning',
+        code: 'formula-like-cell',
+        row: line,
+        column: column.header,
+        message: problemMessage('formula-like-cell', raw, line, column.header, decimalMark).replace(
+          '; the lab should send a number here',
+          '',
+        ),
+      });
+    }
+  }
+  if (measurands.length > 0 && readingCount === 0 && issues.length === issuesBeforeRow) {
+    issues.push({
+      severity: 'warning',
+      code: 'no-readings',
+      row: line,
+      column: null,
+      message: `Line ${line} (bottle ${quoteCell(bottleRaw)}) has no readings at all: every measurand cell is blank.`,
+    });
+  }
+  return row;
+}
+
+/**
+ * An object holding every measurand of the file's plans, in plan order, for `collectReadings` to copy; null when a
+ * Saybolt column adds KV100 in between. Its values are placeholders, always overwritten.
+ */
+function readingsTemplate(measurands: readonly MeasurandPlan[]): LabReadings | null {
+  if (measurands.some((plan) => plan.alsoKv100)) return null;
+  const template: LabReadings = {};
+  const placeholder: LabReading = { value: 0 };
+  for (const plan of measurands) plan.set(template, placeholder);
+  return template;
+}
+
+/**
+ * A row's readings object from the readings found per plan. Built key by key, an object of 30 readings regrows its
+ * property store every few keys (garbage a 10,000-row file makes 10,000 times); a row with a reading in every
+ * column, the common case, copies the template instead, whose store has the right size and keys in the same order.
+ */
+function collectReadings(
+  found: readonly (LabReading | undefined)[],
+  count: number,
+  measurands: readonly MeasurandPlan[],
+  kv100FromSaybolt: LabReading | undefined,
+  template: LabReadings | null,
+): LabReadings {
+  const readings: LabReadings = template !== null && count === measurands.length ? { ...template } : {};
+  for (let p = 0; p < measurands.length; p += 1) {
+    const reading = found[p];
+    if (reading === undefined) continue;
+    const plan = measurands[p]!;
+    plan.set(readings, reading);
+    if (plan.alsoKv100 && kv100FromSaybolt !== undefined) readings.KV100 = kv100FromSaybolt;
+  }
+  return readings;
 }
 
 /** A units row: every filled cell is a unit ("ppm", "cSt", "SUS", "%"). */
