@@ -28,3 +28,16 @@ export async function truncateAll(db: Kysely<any>): Promise<void> {
   const list = rows.map((r) => `"public"."${r.tablename}"`).join(', ');
   await sql.raw(`truncate ${list} restart identity cascade`).execute(db);
 }
+
+/** `db` with every query sent through it recorded (by kind) as it goes: how many round trips a piece of code makes. */
+export function countingQueries(db: Kysely<Database>): { counted: Kysely<Database>; sent: string[] } {
+  const sent: string[] = [];
+  const counted = db.withPlugin({
+    transformQuery: (args) => {
+      sent.push(args.node.kind);
+      return args.node;
+    },
+    transformResult: async (args) => args.result,
+  });
+  return { counted, sent };
+}

@@ -1,6 +1,7 @@
 import type { Kysely } from 'kysely';
 import type { Database } from '../db/database';
 import { canActorEdit, getMachine } from '../machines/machines.service';
+import type { Machine } from '../machines/machines';
 import { refuse, refuseInvalid, succeed, type FieldErrors, type Result } from '~/lib/http/result';
 import type { Actor } from '~/lib/auth/types';
 import { attachPhotos, findPhotosOfOilChanges, type PhotoRow } from '../photos/photos.repository';
@@ -35,17 +36,27 @@ export async function listOilChanges(
 ): Promise<Result<(OilChange & { photos: PhotoRow[] })[]>> {
   const m = await getMachine(db, actor, machineId);
   if (!m.ok) return m;
-  const rows = await findOilChangesOfMachine(db, actor.membership.crewId, machineId);
+  return succeed(await listOilChangesOf(db, actor, m.value));
+}
+
+/**
+ * The same for a machine the caller already loaded for this actor's crew (the machine page): two queries, without
+ * fetching the machine again.
+ */
+export async function listOilChangesOf(
+  db: Kysely<Database>,
+  actor: Actor,
+  machine: Machine,
+): Promise<(OilChange & { photos: PhotoRow[] })[]> {
+  const rows = await findOilChangesOfMachine(db, actor.membership.crewId, machine.id);
   const photos = await findPhotosOfOilChanges(
     db,
     actor.membership.crewId,
     rows.map((r) => r.id),
   );
-  return succeed(
-    computeDistances(rows)
-      .reverse()
-      .map((c) => ({ ...c, photos: photos.filter((p) => p.oil_change_id === c.id) })),
-  );
+  return computeDistances(rows)
+    .reverse()
+    .map((c) => ({ ...c, photos: photos.filter((p) => p.oil_change_id === c.id) }));
 }
 
 /** The machine's latest oil change (what a drain card prefills from), or null. */

@@ -1,10 +1,11 @@
 import { afterAll, beforeEach, describe, expect, test } from 'vitest';
-import { openTestDb, truncateAll } from '../test-database';
+import { countingQueries, openTestDb, truncateAll } from '../test-database';
 import { countRiderRows, makeActor, MACHINE_450 } from '../rider-fixtures';
 import { collectMachineForm } from '~/lib/machines/machines';
 import { readFormObject } from '~/lib/http/result';
 import { createMachine } from '~/lib/machines/machines.service';
-import { createOilChange, listOilChanges } from '~/lib/oil-changes/oil-changes.service';
+import { createOilChange, listOilChanges, listOilChangesOf } from '~/lib/oil-changes/oil-changes.service';
+import { getMachine } from '~/lib/machines/machines.service';
 
 const db = openTestDb();
 afterAll(() => db.destroy());
@@ -126,5 +127,25 @@ describe('oil changes', () => {
     expect(r.ok).toBe(false);
     if (!r.ok) expect(r.fields['photos']).toMatch(/could not be attached/);
     expect((await countRiderRows(db)).oil_changes).toBe(0);
+  });
+
+  test('for a machine already loaded, the same list in two queries instead of three', async () => {
+    const { rider, machineId } = await setup();
+    for (const [changedOn, odometer] of [
+      ['2024-10-01', '9000'],
+      ['2025-04-01', '12000'],
+    ] as const) {
+      expect((await createOilChange(db, rider, machineId, change({ changedOn, odometer }))).ok).toBe(true);
+    }
+    const machine = await getMachine(db, rider, machineId);
+    if (!machine.ok) throw new Error('setup');
+    const { counted, sent } = countingQueries(db);
+    const byId = await listOilChanges(counted, rider, machineId);
+    expect(sent).toHaveLength(3);
+    sent.length = 0;
+    const loaded = await listOilChangesOf(counted, rider, machine.value);
+    expect(sent).toHaveLength(2);
+    expect(byId.ok && byId.value).toEqual(loaded);
+    expect(loaded.map((c) => c.changedOn)).toEqual(['2025-04-01', '2024-10-01']);
   });
 });

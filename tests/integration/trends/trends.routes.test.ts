@@ -6,7 +6,7 @@ import type { BaselineBandsTable } from '~/lib/db/database';
 import { expandTrendResponse, type CompactTrendResponse } from '~/lib/trends/trend-compact';
 import { createTrendAnswers } from '~/lib/trends/trend-answers';
 import { answerTrendRequest } from '~/lib/trends/trends.routes';
-import { openTestDb, truncateAll } from '../test-database';
+import { countingQueries, openTestDb, truncateAll } from '../test-database';
 import { addSamples, makeCrewWithRoles } from './decision-fixtures';
 
 const db = openTestDb();
@@ -99,19 +99,6 @@ async function machineWithHistory(count: number) {
   return { c, machine, ids };
 }
 
-/** The test database with every query the route sends recorded (by kind) as it goes. */
-function countingQueries(): { counted: typeof db; sent: string[] } {
-  const sent: string[] = [];
-  const counted = db.withPlugin({
-    transformQuery: (args) => {
-      sent.push(args.node.kind);
-      return args.node;
-    },
-    transformResult: async (args) => args.result,
-  });
-  return { counted, sent };
-}
-
 async function compactOf(res: Response): Promise<CompactTrendResponse> {
   const bytes = new Uint8Array(await res.arrayBuffer());
   const text =
@@ -200,7 +187,7 @@ describe('GET /api/trends/[machineId]', () => {
     const first = await answerTrendRequest(db, { request: request(machine.id), machineId: machine.id, locals });
     const etag = first.headers.get('etag')!;
     // The 304 path sends the fingerprint query only.
-    const { counted, sent } = countingQueries();
+    const { counted, sent } = countingQueries(db);
     const again = await answerTrendRequest(counted, {
       request: request(machine.id, { 'if-none-match': etag }),
       machineId: machine.id,
@@ -236,7 +223,7 @@ describe('GET /api/trends/[machineId]', () => {
     const firstBytes = new Uint8Array(await first.arrayBuffer());
     expect(first.headers.get('content-encoding')).toBe('gzip');
     expect(answers.bytes).toBeGreaterThan(firstBytes.byteLength);
-    const { counted, sent } = countingQueries();
+    const { counted, sent } = countingQueries(db);
     for (let i = 0; i < 2; i++) {
       const again = await answerTrendRequest(
         counted,
