@@ -3,7 +3,8 @@
  * one-transaction confirm with findings and interval calls) into a scratch database, beside its floor measured in
  * the same run: papaparse parsing the same file alone plus one COPY of the same readings into the readings table.
  * Target: the whole import within 2 × that floor, peak RSS under 250 MB. Prints JSON; no assertions.
- * Run: node --import tsx tests/bench/import.bench.ts
+ * Run: node --import tsx tests/bench/import.bench.ts (BENCH_KEEP_DB=1 keeps the scratch database afterwards, to look
+ * at what the import stored).
  */
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
@@ -268,7 +269,7 @@ async function main(): Promise<void> {
     );
   } finally {
     await db.destroy();
-    dropEmbeddedDatabase(DB_NAME);
+    if (!process.env.BENCH_KEEP_DB) dropEmbeddedDatabase(DB_NAME);
   }
 }
 
