@@ -9,7 +9,7 @@ import { createDb } from '../src/lib/db/db';
 import { isDatabaseEmpty, seedDemo } from '../sample-data/seed';
 import { sendDemoLabMail } from '../sample-data/seed-lab-mail';
 import { assertReachable, ensureEmbeddedDatabase, migrateToLatest } from './lib/database';
-import { buildIfNeeded, SERVE_ARGS } from './lib/build';
+import { buildIfNeeded, SERVE_ARGS, WORKER_ARGS } from './lib/build';
 import { ROOT, httpOk, isPortOpen, startService, stopService, waitFor } from './lib/processes';
 
 const PID_FILE = path.join(ROOT, '.data/app.pid');
@@ -103,8 +103,7 @@ async function main(): Promise<void> {
       await waitFor(() => isPortOpen(s3.hostname, s3Port), 30_000, 'the local object store');
     }
   }
-  if (existsSync(path.join(ROOT, 'scripts/worker.ts')))
-    children.push(startService('worker', node, ['--import', 'tsx', 'scripts/worker.ts'], env));
+  if (existsSync(path.join(ROOT, 'scripts/worker.ts'))) children.push(startService('worker', node, WORKER_ARGS, env));
   const server = startService('app', node, SERVE_ARGS, env, true);
   children.push(server);
   server.once('exit', (code) => {

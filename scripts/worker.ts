@@ -1,6 +1,7 @@
 // The background worker: starts pg-boss on DATABASE_URL and runs every registered job family (mail
 // delivery now; reminders and digests later) until SIGTERM or SIGINT, then stops gracefully.
-// Usage: node --import tsx scripts/worker.ts
+// Usage: `npm run worker` after `npm run build` (its bundle, dist/server/worker.mjs), or node --import tsx
+// scripts/worker.ts from the sources.
 import { readConfig } from '../src/lib/config';
 import { createDb } from '../src/lib/db/db';
 import { createMailTransport } from '../src/lib/mail/transport';

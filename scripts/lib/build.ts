@@ -1,7 +1,8 @@
 // Builds the Astro server when its output is missing or older than any of its inputs.
 import { existsSync, readdirSync, statSync } from 'node:fs';
 import path from 'node:path';
-import { bundleServe, SERVE_BUNDLE } from './bundle-serve.mjs';
+import { APP_NODE_FLAGS } from './app-node-flags';
+import { bundleServe, SERVE_BUNDLE, WORKER_BUNDLE } from './bundle-serve.mjs';
 import { ROOT, run } from './processes';
 
 const INPUTS = ['src', 'public', 'astro.config.mjs', 'tailwind.config.cjs', 'package-lock.json', 'tsconfig.json'];
@@ -11,8 +12,10 @@ export const SERVER_ENTRY = path.join(ROOT, 'dist/server/entry.mjs');
  * bundled by the build into plain JavaScript (scripts/lib/bundle-serve.mjs).
  */
 export const SERVE_ARGS = [SERVE_BUNDLE];
-/** What the server bundle is made of: scripts/serve.ts, the script helpers and the project modules it imports. */
-const SERVE_INPUTS = ['scripts/serve.ts', 'scripts/lib', 'src', 'tsconfig.json'];
+/** Arguments to `node` that run the job worker from its bundle, with the app processes' V8 flags. */
+export const WORKER_ARGS = [...APP_NODE_FLAGS, WORKER_BUNDLE];
+/** What the two bundles are made of: their scripts, the script helpers and the project modules they import. */
+const SERVE_INPUTS = ['scripts/serve.ts', 'scripts/worker.ts', 'scripts/lib', 'src', 'tsconfig.json'];
 
 function newestMtime(p: string): number {
   const s = statSync(p);
@@ -30,8 +33,8 @@ export function buildIsStale(): boolean {
 }
 
 function serveBundleIsStale(): boolean {
-  if (!existsSync(SERVE_BUNDLE)) return true;
-  const built = statSync(SERVE_BUNDLE).mtimeMs;
+  if (!existsSync(SERVE_BUNDLE) || !existsSync(WORKER_BUNDLE)) return true;
+  const built = Math.min(statSync(SERVE_BUNDLE).mtimeMs, statSync(WORKER_BUNDLE).mtimeMs);
   return SERVE_INPUTS.some((i) => existsSync(path.join(ROOT, i)) && newestMtime(path.join(ROOT, i)) > built);
 }
 

@@ -6,7 +6,7 @@ import type { ChildProcess } from 'node:child_process';
 import { createDb } from '~/lib/db/db';
 import { seedDemo } from '../../../sample-data/seed';
 import { migrateToLatest, recreateEmbeddedDatabase } from '../../../scripts/lib/database';
-import { buildIfNeeded, SERVE_ARGS } from '../../../scripts/lib/build';
+import { buildIfNeeded, SERVE_ARGS, WORKER_ARGS } from '../../../scripts/lib/build';
 import { ROOT, freePort, httpOk, isPortOpen, startService, stopService, waitFor } from '../../../scripts/lib/processes';
 
 export interface RunningApp {
@@ -75,7 +75,7 @@ export async function startApp(
   children.push(startService('object-store', node, ['--import', 'tsx', 'scripts/object-store.ts', objects], env, true));
   await waitFor(() => isPortOpen('127.0.0.1', s3Port), 30_000, 'the local object store');
   if (existsSync(path.join(ROOT, 'scripts/worker.ts')))
-    children.push(startService('worker', node, ['--import', 'tsx', 'scripts/worker.ts'], env, true));
+    children.push(startService('worker', node, WORKER_ARGS, env, true));
   let server = startService('app', node, SERVE_ARGS, env, true);
   await waitFor(() => httpOk(`${baseUrl}/api/health`), 30_000, 'the app server');
   return {
