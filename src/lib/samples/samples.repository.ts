@@ -105,12 +105,16 @@ export async function reserveBottleCode(
   return inserted !== undefined;
 }
 
-/** Codes reserved for a device of a user in a crew that no sample of the crew uses yet, oldest first. */
+/**
+ * Codes reserved for a user in a crew (on one device, when given; reserved since a time, when given) that no
+ * sample of the crew uses yet, oldest first.
+ */
 export async function findUnusedReservedCodes(
   db: Db,
   crewId: string,
   userId: string,
   deviceKey?: string,
+  since?: Date,
 ): Promise<string[]> {
   let q = db
     .selectFrom('bottle_code_reservations as r')
@@ -122,6 +126,7 @@ export async function findUnusedReservedCodes(
     .where('r.user_id', '=', userId)
     .where('s.id', 'is', null);
   if (deviceKey !== undefined) q = q.where('r.device_key', '=', deviceKey);
+  if (since !== undefined) q = q.where('r.reserved_at', '>=', since);
   return (await q.orderBy('r.reserved_at').orderBy('r.code_norm').execute()).map((r) => r.code_norm);
 }
 

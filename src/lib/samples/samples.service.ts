@@ -99,6 +99,12 @@ export async function issueBottleCode(db: Db, actor: Actor, deviceKey = 'online'
 export const RESERVED_BLOCK_SIZE = 10;
 /** Unused reserved codes one rider may hold in a crew over all devices (five phones' worth). */
 export const RESERVED_PER_RIDER = 5 * RESERVED_BLOCK_SIZE;
+/**
+ * Days a reserved code counts toward RESERVED_PER_RIDER. A phone that was lost, replaced or wiped keeps its block
+ * reserved for good (no code is ever issued twice), but after this long the block no longer stands in the way of
+ * the rider's next device (common practice for an abuse guard, no published source).
+ */
+export const RESERVED_COUNT_DAYS = 90;
 
 /**
  * Tops up a device's block of reserved bottle codes to RESERVED_BLOCK_SIZE and answers the whole block
@@ -115,12 +121,13 @@ export async function reserveBottleCodes(
   const held = await findUnusedReservedCodes(db, crewId, actor.userId, deviceKey);
   const missing = RESERVED_BLOCK_SIZE - held.length;
   if (missing > 0) {
-    const all = await findUnusedReservedCodes(db, crewId, actor.userId);
-    if (all.length + missing > RESERVED_PER_RIDER) {
+    const since = new Date(Date.now() - RESERVED_COUNT_DAYS * 86_400_000);
+    const recent = await findUnusedReservedCodes(db, crewId, actor.userId, undefined, since);
+    if (recent.length + missing > RESERVED_PER_RIDER) {
       return refuse(
         409,
         'too_many_reserved',
-        `You already hold ${all.length} unused bottle codes on other devices; use those first.`,
+        `You already hold ${recent.length} unused bottle codes reserved on other devices in the last ${RESERVED_COUNT_DAYS} days; use those first. A device's codes stop counting ${RESERVED_COUNT_DAYS} days after it was given them.`,
       );
     }
     for (let i = 0; i < missing; i++) held.push(await issueBottleCode(db, actor, deviceKey));

@@ -16,6 +16,7 @@ import {
   registerDrainCard,
   reserveBottleCodes,
   RESERVED_BLOCK_SIZE,
+  RESERVED_COUNT_DAYS,
   RESERVED_PER_RIDER,
 } from '~/lib/samples/samples.service';
 import { addWearMeasurement, createWearPart } from '~/lib/wear-parts/wear-parts.service';
@@ -158,6 +159,40 @@ describe('bottle codes reserved for a device', () => {
     });
     const mechanic = await addActor(db, rider, 'mechanic');
     expect(await reserveBottleCodes(db, mechanic, 'device-m-0001')).toMatchObject({ ok: false, status: 403 });
+  });
+
+  test('a lost phone’s block stops counting after its days, and stays reserved: the next device gets fresh codes', async () => {
+    const rider = await makeActor(db);
+    const blocks: string[][] = [];
+    for (let i = 0; i < RESERVED_PER_RIDER / RESERVED_BLOCK_SIZE; i++) {
+      const r = await reserveBottleCodes(db, rider, `device-${i}-0001`);
+      if (!r.ok) throw new Error(JSON.stringify(r));
+      blocks.push(r.value.codes);
+    }
+    const refused = await reserveBottleCodes(db, rider, 'device-new-0001');
+    expect(refused).toMatchObject({ ok: false, code: 'too_many_reserved' });
+    expect(!refused.ok && refused.message).toContain(`last ${RESERVED_COUNT_DAYS} days`);
+    // The first phone's block was handed out a day past the window; another's a day inside it.
+    const ago = (days: number) => new Date(Date.now() - days * 86_400_000);
+    await db
+      .updateTable('bottle_code_reservations')
+      .set({ reserved_at: ago(RESERVED_COUNT_DAYS + 1) })
+      .where('device_key', '=', 'device-0-0001')
+      .execute();
+    await db
+      .updateTable('bottle_code_reservations')
+      .set({ reserved_at: ago(RESERVED_COUNT_DAYS - 1) })
+      .where('device_key', '=', 'device-1-0001')
+      .execute();
+    const next = await reserveBottleCodes(db, rider, 'device-new-0001');
+    if (!next.ok) throw new Error(JSON.stringify(next));
+    expect(next.value.codes).toHaveLength(RESERVED_BLOCK_SIZE);
+    expect(next.value.codes.filter((c) => blocks.flat().includes(c))).toEqual([]);
+    // Still 50 counted now (four recent blocks and the new one): a sixth recent device is refused again.
+    expect(await reserveBottleCodes(db, rider, 'device-other-0001')).toMatchObject({ ok: false, status: 409 });
+    // The old phone still gets its own block back, unchanged, if it turns up.
+    const old = await reserveBottleCodes(db, rider, 'device-0-0001');
+    expect(old.ok && [...old.value.codes].sort()).toEqual([...blocks[0]!].sort());
   });
 });
 
