@@ -106,15 +106,14 @@ export async function reserveBottleCode(
 }
 
 /**
- * Codes reserved for a user in a crew (on one device, when given; reserved since a time, when given) that no
- * sample of the crew uses yet, oldest first.
+ * Codes reserved for a user in a crew (on one device, and reserved since a time, when given) that no sample of the
+ * crew uses yet, oldest first.
  */
 export async function findUnusedReservedCodes(
   db: Db,
   crewId: string,
   userId: string,
-  deviceKey?: string,
-  since?: Date,
+  { deviceKey, since }: { deviceKey?: string; since?: Date } = {},
 ): Promise<string[]> {
   let q = db
     .selectFrom('bottle_code_reservations as r')

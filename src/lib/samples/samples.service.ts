@@ -118,11 +118,11 @@ export async function reserveBottleCodes(
   if (!canCreateMachine(actor.membership))
     return refuse(403, 'forbidden', 'Your role in this crew does not register samples.');
   const { crewId } = actor.membership;
-  const held = await findUnusedReservedCodes(db, crewId, actor.userId, deviceKey);
+  const held = await findUnusedReservedCodes(db, crewId, actor.userId, { deviceKey });
   const missing = RESERVED_BLOCK_SIZE - held.length;
   if (missing > 0) {
     const since = new Date(Date.now() - RESERVED_COUNT_DAYS * 86_400_000);
-    const recent = await findUnusedReservedCodes(db, crewId, actor.userId, undefined, since);
+    const recent = await findUnusedReservedCodes(db, crewId, actor.userId, { since });
     if (recent.length + missing > RESERVED_PER_RIDER) {
       return refuse(
         409,
