@@ -907,6 +907,9 @@ export function parseLabCsv(text: string, options: ParseLabCsvOptions = {}): Lab
   return { ...result(rows, columns, delimiter, decimalMark, headerLine, unitsLine), layout: pivot ? 'long' : 'wide' };
 }
 
+/** What a row's `readings` holds until its cells are read: one frozen object, not one made per row. */
+const NO_READINGS_YET: LabReadings = Object.freeze({});
+
 /** What reading one data row needs, made once per file; `found` is scratch space reused row after row. */
 interface RowReading {
   width: number;
@@ -1002,7 +1005,8 @@ function readDataRow(reading: RowReading, cells: RowView, line: number): LabCsvR
   }
   const issuesBeforeRow = issues.length;
   const normalised = normaliseBottleCode(bottleRaw);
-  const row: LabCsvRow = { line, bottle: { raw: bottleRaw, normalised }, readings: {}, other: {} };
+  // The readings are set once read, below (collectReadings); until then the row points at a shared empty object.
+  const row: LabCsvRow = { line, bottle: { raw: bottleRaw, normalised }, readings: NO_READINGS_YET, other: {} };
   const earlierLine = bottleLines.get(normalised);
   if (earlierLine !== undefined) {
     issues.push({
